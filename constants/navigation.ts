@@ -1,0 +1,18 @@
+import type { Role } from "@/schemas/account";
+
+export interface NavItem {
+  href: string;
+  label: string;
+  /** Short label for the phone's bottom bar. */
+  short: string;
+  /** Shown only to these roles (admins see everything); undefined means everyone. */
+  roles?: Role[];
+  /** Shown only to visitors who are not signed in. */
+  visitorsOnly?: boolean;
+  /** Whether this item is active for a pathname. */
+  match: (pathname: string) => boolean;
+}
+
+export const navItems: NavItem[] = [
+  { href: "/datasets", label: "Datasets", short: "Datasets", match: (p) => p.startsWith("/datasets") },
+];

@@ -1,0 +1,53 @@
+import { mkdirSync } from "node:fs";
+import path from "node:path";
+import { PGlite } from "@electric-sql/pglite";
+import { drizzle as drizzlePglite } from "drizzle-orm/pglite";
+import { migrate as migratePglite } from "drizzle-orm/pglite/migrator";
+import { drizzle as drizzlePg } from "drizzle-orm/node-postgres";
+import { migrate as migratePg } from "drizzle-orm/node-postgres/migrator";
+import type { PgDatabase, PgQueryResultHKT } from "drizzle-orm/pg-core";
+import pg from "pg";
+import * as schema from "./schema";
+
+export type Db = PgDatabase<PgQueryResultHKT, typeof schema>;
+
+export interface Database {
+  db: Db;
+  kind: "pglite" | "postgres";
+  /** Present for PGlite only: the embedded instance (dump/restore, raw COPY in benchmarks). */
+  pglite?: PGlite;
+  close(): Promise<void>;
+}
+
+export interface DatabaseOptions {
+  /** A PostgreSQL connection string; when set, Plotbank talks to that server instead of PGlite. */
+  url?: string;
+  /** PGlite data directory; "memory://" (or undefined with memory: true) keeps everything in memory. */
+  dataDir?: string;
+  /** A PGlite data-dir tarball to start from (tests clone one migrated instance this way). */
+  loadDataDir?: Blob | File;
+}
+
+const migrationsFolder = path.resolve(__dirname, "../drizzle");
+
+export async function openDatabase(options: DatabaseOptions = {}): Promise<Database> {
+  if (options.url) {
+    const pool = new pg.Pool({ connectionString: options.url, max: 10 });
+    const db = drizzlePg(pool, { schema }) as unknown as Db;
+    return { db, kind: "postgres", close: () => pool.end() };
+  }
+  const dataDir = options.dataDir ?? "memory://";
+  if (!dataDir.startsWith("memory://")) mkdirSync(dataDir, { recursive: true });
+  const pglite = new PGlite(dataDir, options.loadDataDir ? { loadDataDir: options.loadDataDir } : {});
+  await pglite.waitReady;
+  const db = drizzlePglite(pglite, { schema }) as unknown as Db;
+  return { db, kind: "pglite", pglite, close: () => pglite.close() };
+}
+
+export async function migrateDatabase(database: Database): Promise<void> {
+  if (database.kind === "postgres") {
+    await migratePg(database.db as never, { migrationsFolder });
+  } else {
+    await migratePglite(database.db as never, { migrationsFolder });
+  }
+}

@@ -1,0 +1,74 @@
+import cookieParser from "cookie-parser";
+import cors from "cors";
+import express, { type Express } from "express";
+import helmet from "helmet";
+import swaggerUi from "swagger-ui-express";
+import type { Database } from "@/db/client";
+import { authenticate } from "./auth/authenticate";
+import type { AppConfig } from "./config";
+import type { AppContext } from "./context";
+import { notFoundHandler, problemMiddleware } from "./errors";
+import { createRegistry, generateOpenApiDocument } from "./openapi/registry";
+import { apiRoutes } from "./routes";
+import { mountWebApp } from "./web";
+
+export interface CreateAppOptions {
+  database: Database;
+  config: AppConfig;
+  /** Serve the exported web app from this folder; false for API-only apps (tests). */
+  webDistDir?: string | false;
+}
+
+/** Build the Express app. It does not listen: server/main.ts does, and tests drive it through supertest. */
+export function createApp({ database, config, webDistDir }: CreateAppOptions): { app: Express; ctx: AppContext } {
+  const registry = createRegistry();
+  const ctx: AppContext = { database, db: database.db, config, registry };
+  const app = express();
+  app.disable("x-powered-by");
+  app.set("trust proxy", "loopback");
+  app.set("etag", "strong");
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          // Swagger UI and the Expo web export both start from a small inline script.
+          scriptSrc: ["'self'", "'unsafe-inline'"],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", "data:", "blob:"],
+          fontSrc: ["'self'", "data:"],
+          connectSrc: ["'self'"],
+          upgradeInsecureRequests: null,
+        },
+      },
+      crossOriginEmbedderPolicy: false,
+    }),
+  );
+  app.use(cookieParser());
+
+  const api = express.Router();
+  // The public read API is open to any origin; writes are same-origin only (no CORS for them).
+  api.use(cors({ origin: "*", methods: ["GET", "HEAD"], exposedHeaders: ["ETag", "Link", "Retry-After", "RateLimit", "RateLimit-Policy"] }));
+  api.use(express.json({ limit: "1mb" }));
+  api.use(authenticate(ctx.db));
+  api.use(apiRoutes(ctx));
+
+  let openApiDocument: ReturnType<typeof generateOpenApiDocument> | undefined;
+  const openApi = () => (openApiDocument ??= generateOpenApiDocument(registry, config.version));
+  api.get("/openapi.json", (_req, res) => {
+    res.set("Cache-Control", "public, max-age=300").json(openApi());
+  });
+  api.use(notFoundHandler);
+  app.use("/api/v1", api);
+
+  app.use("/api/docs", swaggerUi.serveFiles(undefined, { swaggerUrl: "/api/v1/openapi.json" }), swaggerUi.setup(undefined, {
+    customSiteTitle: "Plotbank API",
+    swaggerOptions: { url: "/api/v1/openapi.json" },
+  }));
+  app.use("/api", notFoundHandler);
+
+  if (webDistDir !== false) mountWebApp(app, webDistDir);
+  app.use(problemMiddleware);
+  return { app, ctx };
+}

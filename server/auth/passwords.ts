@@ -1,0 +1,45 @@
+import { randomBytes, scrypt as scryptCallback } from "node:crypto";
+import { promisify } from "node:util";
+import { safeEqual } from "./secrets";
+import { commonPasswords } from "./common-passwords";
+
+const scrypt = promisify(scryptCallback) as (password: string, salt: Buffer, keylen: number, options: object) => Promise<Buffer>;
+
+/** scrypt cost: N = 2^15, r = 8, p = 1 uses 32 MiB per hash, a memory-hard setting (OWASP's scrypt minimum is 2^17 with r=8 over 128 MiB; 2^15 keeps sign-in fast on 2 cores). */
+const N = 2 ** 15;
+const r = 8;
+const p = 1;
+const keyLength = 32;
+const maxmem = 64 * 1024 * 1024;
+
+export const minimumPasswordLength = 12;
+
+export async function hashPassword(password: string): Promise<string> {
+  const salt = randomBytes(16);
+  const key = await scrypt(password.normalize("NFKC"), salt, keyLength, { N, r, p, maxmem });
+  return `scrypt$${N}$${r}$${p}$${salt.toString("base64url")}$${key.toString("base64url")}`;
+}
+
+export async function verifyPassword(password: string, stored: string | null | undefined): Promise<boolean> {
+  if (!stored) return false;
+  const [scheme, n, rr, pp, salt, hash] = stored.split("$");
+  if (scheme !== "scrypt" || !n || !rr || !pp || !salt || !hash) return false;
+  const key = await scrypt(password.normalize("NFKC"), Buffer.from(salt, "base64url"), keyLength, {
+    N: Number(n),
+    r: Number(rr),
+    p: Number(pp),
+    maxmem,
+  });
+  return safeEqual(key.toString("base64url"), hash);
+}
+
+/** Why a password is refused, or null when it is acceptable. */
+export function passwordWeakness(password: string, email?: string): string | null {
+  if (password.length < minimumPasswordLength) return `Use at least ${minimumPasswordLength} characters.`;
+  if (password.length > 256) return "Use at most 256 characters.";
+  const lower = password.toLowerCase();
+  if (commonPasswords.has(lower)) return "This password is one of the most common ones; choose another.";
+  if (/^(.)\1+$/.test(password)) return "A single repeated character is too easy to guess.";
+  if (email && lower.includes(email.toLowerCase().split("@")[0] ?? "\u0000")) return "Do not build the password from your e-mail address.";
+  return null;
+}

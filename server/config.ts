@@ -1,0 +1,67 @@
+import path from "node:path";
+import { z } from "zod";
+
+const env = z.object({
+  PORT: z.coerce.number().int().min(0).max(65535).default(8080),
+  HOST: z.string().default("127.0.0.1"),
+  /** When set, Plotbank uses this PostgreSQL server instead of the embedded database. */
+  DATABASE_URL: z.string().optional(),
+  PLOTBANK_DATA_DIR: z.string().default(path.resolve(process.cwd(), "data/pglite")),
+  /** Public URL the app is reached at; used in e-mailed links and citations. */
+  PLOTBANK_PUBLIC_URL: z.string().optional(),
+  PLOTBANK_DEMO: z.enum(["auto", "off"]).default("auto"),
+  PLOTBANK_UPLOAD_LIMIT_MB: z.coerce.number().positive().default(200),
+  PLOTBANK_ANON_RATE_PER_MIN: z.coerce.number().int().positive().default(60),
+  PLOTBANK_TOKEN_RATE_PER_MIN: z.coerce.number().int().positive().default(1000),
+  SMTP_URL: z.string().optional(),
+  MAIL_FROM: z.string().default("Plotbank <no-reply@plotbank.test>"),
+  DATACITE_URL: z.string().optional(),
+  DATACITE_USER: z.string().default("PLOTBANK.DEMO"),
+  DATACITE_PASSWORD: z.string().default("local-fake"),
+  DATACITE_PREFIX: z.string().default("10.80555"),
+  NODE_ENV: z.string().default("development"),
+});
+
+export interface AppConfig {
+  port: number;
+  host: string;
+  databaseUrl?: string;
+  dataDir: string;
+  publicUrl: string;
+  demo: "auto" | "off";
+  uploadLimitBytes: number;
+  anonRatePerMinute: number;
+  tokenRatePerMinute: number;
+  smtpUrl?: string;
+  mailFrom: string;
+  datacite: { url?: string; user: string; password: string; prefix: string };
+  /** Development conveniences (the admin outbox screen) are on unless NODE_ENV is production. */
+  development: boolean;
+  version: string;
+}
+
+export function loadConfig(source: NodeJS.ProcessEnv = process.env, overrides: Partial<AppConfig> = {}): AppConfig {
+  const e = env.parse(source);
+  const config: AppConfig = {
+    port: e.PORT,
+    host: e.HOST,
+    databaseUrl: e.DATABASE_URL || undefined,
+    dataDir: e.PLOTBANK_DATA_DIR,
+    publicUrl: (e.PLOTBANK_PUBLIC_URL ?? `http://${e.HOST === "0.0.0.0" ? "localhost" : e.HOST}:${e.PORT}`).replace(/\/$/, ""),
+    demo: e.PLOTBANK_DEMO,
+    uploadLimitBytes: Math.round(e.PLOTBANK_UPLOAD_LIMIT_MB * 1024 * 1024),
+    anonRatePerMinute: e.PLOTBANK_ANON_RATE_PER_MIN,
+    tokenRatePerMinute: e.PLOTBANK_TOKEN_RATE_PER_MIN,
+    smtpUrl: e.SMTP_URL,
+    mailFrom: e.MAIL_FROM,
+    datacite: { url: e.DATACITE_URL, user: e.DATACITE_USER, password: e.DATACITE_PASSWORD, prefix: e.DATACITE_PREFIX },
+    development: e.NODE_ENV !== "production",
+    version: appVersion(),
+  };
+  return { ...config, ...overrides };
+}
+
+function appVersion(): string {
+  // eslint-disable-next-line @typescript-eslint/no-require-imports
+  return (require("../package.json") as { version: string }).version;
+}

@@ -1,0 +1,11 @@
+import type { Database, Db } from "@/db/client";
+import type { AppConfig } from "./config";
+import type { Registry } from "./openapi/registry";
+
+/** What every route module receives: the database, the configuration and the OpenAPI registry to document itself in. */
+export interface AppContext {
+  database: Database;
+  db: Db;
+  config: AppConfig;
+  registry: Registry;
+}

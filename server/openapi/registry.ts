@@ -1,0 +1,57 @@
+import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-openapi";
+import { problemSchema } from "@/schemas/problem";
+
+export type Registry = OpenAPIRegistry;
+
+export function createRegistry(): OpenAPIRegistry {
+  const registry = new OpenAPIRegistry();
+  registry.registerComponent("securitySchemes", "bearerToken", {
+    type: "http",
+    scheme: "bearer",
+    description: "An API token made on the Tokens screen. Send it as `Authorization: Bearer pb_…`.",
+  });
+  registry.registerComponent("securitySchemes", "sessionCookie", {
+    type: "apiKey",
+    in: "cookie",
+    name: "pb_session",
+    description: "The web app's sign-in session.",
+  });
+  return registry;
+}
+
+/** Standard error answers, to spread into a path's `responses`. */
+export const problemResponses = (...statuses: number[]) =>
+  Object.fromEntries(
+    statuses.map((status) => [
+      status,
+      { description: problemDescriptions[status] ?? "Problem", content: { "application/problem+json": { schema: problemSchema } } },
+    ]),
+  );
+
+const problemDescriptions: Record<number, string> = {
+  400: "A parameter or the body is not valid; `errors` names each field.",
+  401: "No valid session or token.",
+  403: "The role or token scope does not allow this.",
+  404: "Not found.",
+  409: "The resource's state does not allow this.",
+  413: "The body is larger than the limit.",
+  429: "Over the rate limit; see Retry-After.",
+};
+
+export function generateOpenApiDocument(registry: OpenAPIRegistry, version: string, serverUrl = "/") {
+  return new OpenApiGeneratorV31(registry.definitions).generateDocument({
+    openapi: "3.1.0",
+    info: {
+      title: "Plotbank open-data API",
+      version,
+      description:
+        "Versioned fertilizer field-trial data: datasets, site-years, treatments, plot observations, site-year responses " +
+        "against the untreated check, and random-effects meta-analyses, all with one set of typed filters. " +
+        "Published data are open to everyone (CC BY 4.0 unless a version says otherwise); tokens raise the rate limit " +
+        "and allow writes for curators. Results summarise the trials in the data: a field can differ, seed-placed " +
+        "fertilizer can injure a stand, and local recommendations and licensed advisers have the last word.",
+      license: { name: "API: MIT; data: per version (default CC BY 4.0)" },
+    },
+    servers: [{ url: serverUrl }],
+  });
+}

@@ -1,0 +1,69 @@
+import { Router } from "express";
+import { me, signInBody } from "@/schemas/account";
+import type { AppContext } from "@/server/context";
+import { unauthorized } from "@/server/errors";
+import { problemResponses } from "@/server/openapi/registry";
+import { verifyPassword } from "@/server/auth/passwords";
+import { createSession, endSession, sessionCookieName, sessionLifetimeMs } from "@/server/auth/sessions";
+import { currentUser } from "@/server/auth/guards";
+import { findUserByEmail, meOf } from "@/server/services/users";
+import { parseBody } from "@/server/validate";
+
+/** Sign-in, sign-out and "who am I" for the web app's cookie session. */
+export function sessionRoutes({ db, registry, config }: AppContext): Router {
+  const router = Router();
+
+  registry.registerPath({
+    method: "post",
+    path: "/api/v1/session",
+    tags: ["Accounts"],
+    summary: "Sign in with e-mail and password; sets the httpOnly session cookie",
+    request: { body: { content: { "application/json": { schema: signInBody } } } },
+    responses: { 200: { description: "Signed in", content: { "application/json": { schema: me } } }, ...problemResponses(400, 401, 429) },
+  });
+  router.post("/session", async (req, res) => {
+    const body = parseBody(signInBody, req);
+    const user = await findUserByEmail(db, body.email);
+    const ok = await verifyPassword(body.password, user?.passwordHash);
+    if (!user || !ok || user.disabledAt) throw unauthorized("The e-mail or the password is wrong.");
+    if (!user.emailVerifiedAt) throw unauthorized("Confirm your e-mail address first: open the link we sent you.");
+    const session = await createSession(db, user.id);
+    res.cookie(sessionCookieName, session.secret, {
+      httpOnly: true,
+      sameSite: "lax",
+      secure: config.publicUrl.startsWith("https://"),
+      maxAge: sessionLifetimeMs,
+      path: "/",
+    });
+    res.json(await meOf(db, user.id));
+  });
+
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/session",
+    tags: ["Accounts"],
+    summary: "The signed-in user",
+    security: [{ sessionCookie: [] }, { bearerToken: [] }],
+    responses: { 200: { description: "The signed-in user", content: { "application/json": { schema: me } } }, ...problemResponses(401) },
+  });
+  router.get("/session", async (req, res) => {
+    const user = currentUser(req);
+    res.json(await meOf(db, user.id));
+  });
+
+  registry.registerPath({
+    method: "delete",
+    path: "/api/v1/session",
+    tags: ["Accounts"],
+    summary: "Sign out",
+    responses: { 204: { description: "Signed out" } },
+  });
+  router.delete("/session", async (req, res) => {
+    const secret = (req.cookies as Record<string, string> | undefined)?.[sessionCookieName];
+    if (secret) await endSession(db, secret);
+    res.clearCookie(sessionCookieName, { path: "/" });
+    res.status(204).end();
+  });
+
+  return router;
+}

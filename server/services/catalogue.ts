@@ -1,0 +1,67 @@
+import { and, desc, eq, inArray, sql } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { datasets, siteYears, versions } from "@/db/schema";
+import type { DatasetSummary } from "@/schemas/dataset";
+
+/**
+ * Datasets that have at least one published version, each with its latest published version's figures.
+ * Ordering by semver happens in code: text order would put 1.10.0 before 1.9.0.
+ */
+export async function listPublishedDatasets(db: Db): Promise<DatasetSummary[]> {
+  const published = await db
+    .select({ id: versions.id, datasetId: versions.datasetId, semver: versions.semver, publishedAt: versions.publishedAt })
+    .from(versions)
+    .where(eq(versions.state, "published"))
+    .orderBy(desc(versions.publishedAt));
+  const latestByDataset = new Map<string, (typeof published)[number]>();
+  for (const v of published) {
+    const current = latestByDataset.get(v.datasetId);
+    if (!current || compareSemver(v.semver, current.semver) > 0) latestByDataset.set(v.datasetId, v);
+  }
+  if (latestByDataset.size === 0) return [];
+  const latestIds = [...latestByDataset.values()].map((v) => v.id);
+  const [rows, counts] = await Promise.all([
+    db.select().from(datasets).where(inArray(datasets.id, [...latestByDataset.keys()])).orderBy(datasets.title),
+    db
+      .select({
+        versionId: siteYears.versionId,
+        n: sql<number>`count(*)`.mapWith(Number),
+        yearFrom: sql<number>`min(${siteYears.year})`.mapWith(Number),
+        yearTo: sql<number>`max(${siteYears.year})`.mapWith(Number),
+      })
+      .from(siteYears)
+      .where(and(inArray(siteYears.versionId, latestIds)))
+      .groupBy(siteYears.versionId),
+  ]);
+  const countByVersion = new Map(counts.map((c) => [c.versionId, c]));
+  return rows.map((d) => {
+    const latest = latestByDataset.get(d.id)!;
+    const count = countByVersion.get(latest.id);
+    return {
+      id: d.id,
+      slug: d.slug,
+      title: d.title,
+      crops: d.crops,
+      region: d.region,
+      description: d.description,
+      licence: d.licence,
+      keywords: d.keywords,
+      contributors: d.contributors,
+      latestVersion: latest.semver,
+      publishedAt: latest.publishedAt?.toISOString() ?? null,
+      siteYears: count?.n ?? 0,
+      yearFrom: count?.yearFrom ?? null,
+      yearTo: count?.yearTo ?? null,
+    };
+  });
+}
+
+export function compareSemver(a: string, b: string): number {
+  const pa = a.split(".").map(Number);
+  const pb = b.split(".").map(Number);
+  for (let i = 0; i < 3; i++) {
+    const d = (pa[i] ?? 0) - (pb[i] ?? 0);
+    if (d !== 0) return d;
+  }
+  return 0;
+}

@@ -1,0 +1,43 @@
+import { existsSync, readFileSync } from "node:fs";
+import path from "node:path";
+import express, { type Express } from "express";
+
+export const webDistDir = path.resolve(__dirname, "../dist");
+
+/**
+ * Serve the exported Expo web app. Hashed bundles are cached for a year; every other path that is not a file gets
+ * index.html, so a deep link (a shared analysis, a dataset page) works on reload.
+ */
+export function mountWebApp(app: Express, distDir = webDistDir, transformIndex?: (html: string, url: string) => Promise<string> | string) {
+  const indexPath = path.join(distDir, "index.html");
+  if (!existsSync(indexPath)) {
+    app.get("/", (_req, res) => {
+      res
+        .status(503)
+        .type("text/plain")
+        .send("The web app has not been built yet. Run `npm run build:web`, or start with `npm start`, which builds it.");
+    });
+    return;
+  }
+  const indexHtml = readFileSync(indexPath, "utf8");
+  app.use(
+    express.static(distDir, {
+      index: false,
+      setHeaders(res, filePath) {
+        if (filePath.includes(`${path.sep}_expo${path.sep}`) || filePath.includes(`${path.sep}assets${path.sep}`)) {
+          res.setHeader("Cache-Control", "public, max-age=31536000, immutable");
+        }
+      },
+    }),
+  );
+  app.get("/{*splat}", async (req, res, next) => {
+    if (req.path.startsWith("/api/")) return next();
+    try {
+      const html = transformIndex ? await transformIndex(indexHtml, req.path) : indexHtml;
+      res.setHeader("Cache-Control", "no-cache");
+      res.type("html").send(html);
+    } catch (error) {
+      next(error);
+    }
+  });
+}

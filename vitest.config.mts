@@ -1,0 +1,29 @@
+import { defineConfig } from "vitest/config";
+
+export default defineConfig({
+  resolve: { tsconfigPaths: true },
+  test: {
+    projects: [
+      {
+        extends: true,
+        test: {
+          name: "unit",
+          include: ["tests/stats/**/*.test.ts", "tests/unit/**/*.test.ts"],
+          environment: "node",
+        },
+      },
+      {
+        extends: true,
+        test: {
+          name: "server",
+          include: ["tests/server/**/*.test.ts"],
+          environment: "node",
+          testTimeout: 60_000,
+          hookTimeout: 60_000,
+          // PGlite is single-threaded WASM; a few files at a time keeps 2 cores busy without thrashing.
+          maxWorkers: 2,
+        },
+      },
+    ],
+  },
+});
