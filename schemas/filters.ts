@@ -1,0 +1,100 @@
+import { z } from "zod";
+
+export const crops = ["soybean", "corn", "wheat"] as const;
+export const nutrients = ["N", "P", "K", "S"] as const;
+/** Placement terms of the trade, as stored. */
+export const placements = [
+  "in-furrow",
+  "2x2-band",
+  "broadcast",
+  "broadcast-incorporated",
+  "surface-band",
+  "side-dress",
+  "foliar",
+  "deep-band",
+] as const;
+export const placementLabels: Record<(typeof placements)[number], string> = {
+  "in-furrow": "In-furrow (seed-placed)",
+  "2x2-band": "2x2 band",
+  broadcast: "Broadcast",
+  "broadcast-incorporated": "Broadcast, incorporated",
+  "surface-band": "Surface band",
+  "side-dress": "Side-dress",
+  foliar: "Foliar",
+  "deep-band": "Deep band",
+};
+export const soilTestClasses = ["very_low", "low", "optimum", "high", "very_high"] as const;
+export const soilTestClassLabels: Record<(typeof soilTestClasses)[number], string> = {
+  very_low: "Very low",
+  low: "Low",
+  optimum: "Optimum",
+  high: "High",
+  very_high: "Very high",
+};
+export const tillages = ["no-till", "strip-till", "reduced", "conventional"] as const;
+
+/** A comma-separated or repeated query parameter, parsed into a list of allowed values. */
+const listOf = <T extends readonly [string, ...string[]]>(values: T) =>
+  z
+    .union([z.string(), z.array(z.string())])
+    .transform((v) => (Array.isArray(v) ? v : v.split(",")).map((s) => s.trim()).filter(Boolean))
+    .pipe(z.array(z.enum(values)).min(1));
+
+const numberParam = z.coerce.number().finite();
+const yearParam = z.coerce.number().int().min(1900).max(2100);
+const monthDay = z.string().regex(/^\d{2}-\d{2}$/, "use MM-DD, e.g. 05-10");
+
+/**
+ * The one set of filters shared by observations, responses and analyses, so a screen's numbers can be fetched with
+ * the same URL. Unknown parameters are refused (strict), and every value is typed.
+ */
+export const trialFilterShape = {
+  crop: listOf(crops).optional().describe("Crop(s): soybean, corn, wheat"),
+  nutrient: listOf(nutrients).optional().describe("Treatments that supply any of these nutrients: N, P, K, S"),
+  placement: listOf(placements).optional().describe("Treatments with an application placed so"),
+  soilTestClass: listOf(soilTestClasses)
+    .optional()
+    .describe("Soil-test class of the nutrient's own soil test (P class for P, K class for K, S class for S); with several nutrients or none, the treatment's primary nutrient"),
+  yearFrom: yearParam.optional(),
+  yearTo: yearParam.optional(),
+  dataset: z.string().max(120).optional().describe("Dataset slug; default all datasets"),
+  version: z
+    .string()
+    .regex(/^(latest|\d+\.\d+\.\d+)$/, "a semantic version such as 1.2.0, or latest")
+    .optional()
+    .describe("Version of `dataset` (needs dataset); default the latest published version of each dataset"),
+  tillage: listOf(tillages).optional(),
+  rowSpacingMin: numberParam.min(0).max(80).optional().describe("Row spacing, inches, at least"),
+  rowSpacingMax: numberParam.min(0).max(80).optional().describe("Row spacing, inches, at most"),
+  plantedFrom: monthDay.optional().describe("Planting date on or after this day of the year (MM-DD)"),
+  plantedTo: monthDay.optional().describe("Planting date on or before this day of the year (MM-DD)"),
+  nRateMin: numberParam.min(0).optional().describe("Total N, lb/ac, at least"),
+  nRateMax: numberParam.min(0).optional(),
+  p2o5RateMin: numberParam.min(0).optional().describe("Total P2O5, lb/ac, at least"),
+  p2o5RateMax: numberParam.min(0).optional(),
+  k2oRateMin: numberParam.min(0).optional().describe("Total K2O, lb/ac, at least"),
+  k2oRateMax: numberParam.min(0).optional(),
+  sRateMin: numberParam.min(0).optional().describe("Total S, lb/ac, at least"),
+  sRateMax: numberParam.min(0).optional(),
+};
+
+export const trialFilters = z
+  .object(trialFilterShape)
+  .strict()
+  .superRefine((f, ctx) => {
+    if (f.version && !f.dataset) ctx.addIssue({ code: "custom", path: ["version"], message: "version needs dataset" });
+    if (f.yearFrom && f.yearTo && f.yearFrom > f.yearTo) ctx.addIssue({ code: "custom", path: ["yearTo"], message: "yearTo is before yearFrom" });
+  })
+  .meta({ id: "TrialFilters" });
+
+export type TrialFilters = z.infer<typeof trialFilters>;
+
+/** Back to query-string form: the canonical (normalised) filters shown in provenance and used in share links. */
+export function filtersToQuery(f: Partial<TrialFilters>): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const [key, value] of Object.entries(f)) {
+    if (value === undefined || value === null) continue;
+    out[key] = Array.isArray(value) ? [...value].sort().join(",") : String(value);
+  }
+  return Object.fromEntries(Object.entries(out).sort(([a], [b]) => a.localeCompare(b)));
+}
