@@ -24,6 +24,19 @@ export default defineConfig({
           maxWorkers: 2,
         },
       },
+      {
+        extends: true,
+        test: {
+          name: "browser",
+          include: ["tests/browser/**/*.test.ts"],
+          environment: "node",
+          globalSetup: ["tests/browser/global-setup.ts"],
+          testTimeout: 120_000,
+          hookTimeout: 180_000,
+          // One Chromium at a time on a 2-core machine.
+          fileParallelism: false,
+        },
+      },
     ],
   },
 });

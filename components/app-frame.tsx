@@ -21,7 +21,8 @@ function NavLink({ item, active, compact }: { item: NavItem; active: boolean; co
         role="link"
         accessibilityLabel={item.label}
         aria-current={active ? "page" : undefined}
-        style={[compact ? styles.tab : styles.sideLink, active && (compact ? styles.tabActive : styles.sideLinkActive)]}
+        // Link asChild merges styles through a Slot that needs a flat object, not an array.
+        style={StyleSheet.flatten([compact ? styles.tab : styles.sideLink, active && (compact ? styles.tabActive : styles.sideLinkActive)])}
       >
         <Text style={[styles.navText, active && styles.navTextActive]} numberOfLines={1}>
           {compact ? item.short : item.label}

@@ -1,0 +1,58 @@
+import type { Browser } from "playwright-core";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { datasetList } from "@/schemas/dataset";
+import { desktop, launchBrowser, newContext, phone, screenshot, startServer, watchPage, type RunningServer } from "./harness";
+
+let server: RunningServer;
+let browser: Browser;
+beforeAll(async () => {
+  server = await startServer();
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+describe.each([
+  ["phone", phone],
+  ["desktop", desktop],
+])("the dataset list at %s size", (name, viewport) => {
+  it("shows what the API serves, in the shipped font, with no horizontal scroll", async () => {
+    const api = datasetList.parse(await (await fetch(`${server.url}/api/v1/datasets`)).json());
+    const context = await newContext(browser, viewport);
+    const page = await context.newPage();
+    const problems = watchPage(page);
+    const external: string[] = [];
+    page.on("request", (r) => {
+      if (!r.url().startsWith(server.url) && !r.url().startsWith("data:") && !r.url().startsWith("blob:")) external.push(r.url());
+    });
+    await page.goto(`${server.url}/datasets`);
+    await page.getByRole("heading", { name: "Datasets" }).first().waitFor();
+    if (api.items.length) {
+      for (const d of api.items) await expect(page.getByText(d.title, { exact: true }).first().isVisible()).resolves.toBe(true);
+    } else {
+      await page.getByText("No published datasets yet").waitFor();
+    }
+    // The web build must render Inter from assets/ without any network beyond this server.
+    const fontOk = await page.evaluate(async () => {
+      await document.fonts.ready;
+      return [...document.fonts].some((f) => f.family.replace(/"/g, "") === "Inter_400Regular" && f.status === "loaded");
+    });
+    expect(fontOk).toBe(true);
+    expect(external).toEqual([]);
+    const scrollWidth = await page.evaluate(() => document.documentElement.scrollWidth);
+    expect(scrollWidth).toBeLessThanOrEqual(viewport.width);
+    await screenshot(page, `foundation-datasets-${name}`);
+    expect(problems).toEqual([]);
+    await context.close();
+  });
+});
+
+describe("deep links", () => {
+  it("a reload on a deep path serves the app, not a 404", async () => {
+    const res = await fetch(`${server.url}/datasets/some-slug`);
+    expect(res.status).toBe(200);
+    expect(res.headers.get("content-type")).toMatch(/text\/html/);
+  });
+});
