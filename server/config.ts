@@ -13,6 +13,10 @@ const env = z.object({
   PLOTBANK_UPLOAD_LIMIT_MB: z.coerce.number().positive().default(200),
   PLOTBANK_ANON_RATE_PER_MIN: z.coerce.number().int().positive().default(60),
   PLOTBANK_TOKEN_RATE_PER_MIN: z.coerce.number().int().positive().default(1000),
+  /** Sign-in and e-mail-link requests allowed per IP and per e-mail address in each window. */
+  PLOTBANK_AUTH_PER_IP: z.coerce.number().int().positive().default(20),
+  PLOTBANK_AUTH_PER_ACCOUNT: z.coerce.number().int().positive().default(5),
+  PLOTBANK_AUTH_WINDOW_MIN: z.coerce.number().positive().default(15),
   SMTP_URL: z.string().optional(),
   MAIL_FROM: z.string().default("Plotbank <no-reply@plotbank.test>"),
   DATACITE_URL: z.string().optional(),
@@ -32,6 +36,8 @@ export interface AppConfig {
   uploadLimitBytes: number;
   anonRatePerMinute: number;
   tokenRatePerMinute: number;
+  /** Abuse limits on sign-in, sign-up and reset requests. */
+  authLimits: { windowMs: number; perIp: number; perAccount: number };
   smtpUrl?: string;
   mailFrom: string;
   datacite: { url?: string; user: string; password: string; prefix: string };
@@ -52,6 +58,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env, overrides: P
     uploadLimitBytes: Math.round(e.PLOTBANK_UPLOAD_LIMIT_MB * 1024 * 1024),
     anonRatePerMinute: e.PLOTBANK_ANON_RATE_PER_MIN,
     tokenRatePerMinute: e.PLOTBANK_TOKEN_RATE_PER_MIN,
+    authLimits: { windowMs: e.PLOTBANK_AUTH_WINDOW_MIN * 60_000, perIp: e.PLOTBANK_AUTH_PER_IP, perAccount: e.PLOTBANK_AUTH_PER_ACCOUNT },
     smtpUrl: e.SMTP_URL,
     mailFrom: e.MAIL_FROM,
     datacite: { url: e.DATACITE_URL, user: e.DATACITE_USER, password: e.DATACITE_PASSWORD, prefix: e.DATACITE_PREFIX },
@@ -62,6 +69,5 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env, overrides: P
 }
 
 function appVersion(): string {
-  // eslint-disable-next-line @typescript-eslint/no-require-imports
   return (require("../package.json") as { version: string }).version;
 }

@@ -1,4 +1,5 @@
 import type { Express } from "express";
+import pg from "pg";
 import { migrateDatabase, openDatabase, type Database } from "@/db/client";
 import { createApp } from "@/server/app";
 import { loadConfig, type AppConfig } from "@/server/config";
@@ -34,9 +35,11 @@ export interface TestApp {
 export async function testApp(overrides: Partial<AppConfig> = {}): Promise<TestApp> {
   const url = process.env.PLOTBANK_TEST_DATABASE_URL;
   let database: Database;
+  let dropDatabase: (() => Promise<void>) | undefined;
   if (url) {
-    database = await openDatabase({ url });
-    await resetPostgres(database);
+    const fresh = await createPostgresDatabase(url);
+    database = await openDatabase({ url: fresh.url });
+    dropDatabase = fresh.drop;
     await migrateDatabase(database);
   } else {
     database = await openDatabase({ loadDataDir: await migratedTemplate() });
@@ -46,12 +49,37 @@ export async function testApp(overrides: Partial<AppConfig> = {}): Promise<TestA
     ...overrides,
   });
   const { app, ctx } = createApp({ database, config, webDistDir: false });
-  return { app, ctx, database, close: () => database.close() };
+  return {
+    app,
+    ctx,
+    database,
+    async close() {
+      await database.close();
+      await dropDatabase?.();
+    },
+  };
 }
 
-async function resetPostgres(database: Database) {
-  const { sql } = await import("drizzle-orm");
-  await database.db.execute(sql.raw("DROP SCHEMA IF EXISTS public CASCADE; DROP SCHEMA IF EXISTS drizzle CASCADE; CREATE SCHEMA public;"));
+let databaseCounter = 0;
+
+/** A database of its own for each test app, so test files can run in parallel against one server. */
+async function createPostgresDatabase(adminUrl: string) {
+  const name = `plotbank_t_${process.pid}_${++databaseCounter}_${Date.now().toString(36)}`;
+  const admin = new pg.Client({ connectionString: adminUrl });
+  await admin.connect();
+  await admin.query(`CREATE DATABASE ${name}`);
+  await admin.end();
+  const url = new URL(adminUrl);
+  url.pathname = `/${name}`;
+  return {
+    url: url.toString(),
+    async drop() {
+      const again = new pg.Client({ connectionString: adminUrl });
+      await again.connect();
+      await again.query(`DROP DATABASE IF EXISTS ${name} WITH (FORCE)`);
+      await again.end();
+    },
+  };
 }
 
 export const testPassword = "field-plots-2026!";
