@@ -3,23 +3,27 @@ import { existsSync } from "node:fs";
 import path from "node:path";
 import { migrateDatabase, openDatabase } from "@/db/client";
 import { createApp } from "./app";
+import { mountDevProxy, proxyUpgrades } from "./dev-proxy";
 import { loadConfig } from "./config";
 import { webDistDir } from "./web";
 
 async function main() {
   const config = loadConfig();
-  if (!existsSync(path.join(webDistDir, "index.html"))) {
+  const devProxy = process.env.PLOTBANK_WEB_PROXY;
+  if (!devProxy && !existsSync(path.join(webDistDir, "index.html"))) {
     console.log("Building the web app (first start only, about a minute)…");
     const build = spawnSync("npm", ["run", "build:web"], { stdio: "inherit" });
     if (build.status !== 0) throw new Error("The web build failed; see the output above.");
   }
   const database = await openDatabase({ url: config.databaseUrl, dataDir: config.dataDir });
   await migrateDatabase(database);
-  const { app } = createApp({ database, config });
+  const { app } = createApp({ database, config, webDistDir: devProxy ? false : undefined });
+  if (devProxy) mountDevProxy(app, devProxy);
   const server = app.listen(config.port, config.host, () => {
     const where = config.databaseUrl ? "PostgreSQL (DATABASE_URL)" : `PGlite at ${config.dataDir}`;
     console.log(`Plotbank ${config.version} is serving ${config.publicUrl} (API docs: ${config.publicUrl}/api/docs; database: ${where})`);
   });
+  if (devProxy) proxyUpgrades(server, devProxy);
   const stop = async () => {
     server.close();
     await database.close();
