@@ -1,0 +1,196 @@
+import { z } from "zod";
+import { trialFilterShape, trialFilters } from "./filters";
+
+export const effectMeasures = ["md", "lnrr"] as const;
+export const tauMethods = ["REML", "DL", "PM", "FE"] as const;
+export const ciMethods = ["hksj", "wald"] as const;
+export const groupings = ["soilTestClass", "placement", "nutrient", "crop", "tillage", "plantingWindow", "dataset"] as const;
+export const yieldUnits = ["bu/ac", "kg/ha"] as const;
+
+export type EffectMeasure = (typeof effectMeasures)[number];
+export type TauMethod = (typeof tauMethods)[number];
+export type CiMethod = (typeof ciMethods)[number];
+export type Grouping = (typeof groupings)[number];
+export type YieldUnit = (typeof yieldUnits)[number];
+
+const money = z.coerce.number().finite().min(0).max(100_000);
+
+/** The analysis options beside the shared trial filters; each also appears in share links of the Evidence screen. */
+export const metaOptionShape = {
+  effect: z.enum(effectMeasures).default("md").describe("md: yield response (treated − check); lnrr: log response ratio ln(treated/check)"),
+  method: z.enum(tauMethods).default("REML").describe("τ² estimator: REML (default), DL (DerSimonian–Laird), PM (Paule–Mandel); FE is the fixed-effect model"),
+  ci: z.enum(ciMethods).default("hksj").describe("hksj: Hartung–Knapp–Sidik–Jonkman, t(k − 1) (default); wald: normal"),
+  groupBy: z.enum(groupings).optional().describe("Subgroups: one estimate per level and the between-group test QM"),
+  price: z.coerce.number().finite().positive().max(1000).optional().describe("Grain price, $/bu"),
+  cost: money.optional().describe("Total cost of the practice, $/ac (product + application)"),
+  productCost: money.optional().describe("Product cost, $/ac (instead of cost)"),
+  applicationCost: money.optional().describe("Application cost, $/ac (instead of cost)"),
+  units: z.enum(yieldUnits).default("bu/ac").describe("Units of a yield response; each row is converted with its own crop's bushel weight"),
+  format: z.enum(["json", "csv"]).default("json").describe("csv: the per-site-year rows, to reproduce the fit elsewhere"),
+};
+
+const filterKeys = Object.keys(trialFilterShape) as (keyof typeof trialFilterShape)[];
+
+/** GET /api/v1/analyses/meta query: the shared filters plus the options; unknown parameters are refused. */
+export const metaQuery = z
+  .object({ ...trialFilterShape, ...metaOptionShape })
+  .strict()
+  .superRefine((q, ctx) => {
+    // The filters' own cross-field rules (version needs dataset, year order) come from the one shared contract.
+    const filters = Object.fromEntries(filterKeys.flatMap((k) => (q[k] === undefined ? [] : [[k, q[k]]])));
+    const checked = trialFilters.safeParse(filters);
+    if (!checked.success) for (const issue of checked.error.issues) ctx.addIssue({ code: "custom", path: issue.path, message: issue.message });
+    if (q.cost !== undefined && (q.productCost !== undefined || q.applicationCost !== undefined)) {
+      ctx.addIssue({ code: "custom", path: ["cost"], message: "give either cost or productCost/applicationCost, not both" });
+    }
+  })
+  .meta({ id: "MetaAnalysisQuery" });
+export type MetaQuery = z.infer<typeof metaQuery>;
+
+const interval = z.object({ lower: z.number(), upper: z.number() });
+
+export const forestRow = z
+  .object({
+    id: z.string().describe("Site-year id, with the group level when grouped"),
+    siteYearCode: z.string(),
+    siteCode: z.string(),
+    dataset: z.string().describe("Dataset slug"),
+    version: z.string().describe("Semantic version read"),
+    year: z.number().int(),
+    crop: z.string(),
+    treatments: z.array(z.string()).describe("Treatment codes; several are combined within the site-year (shared-check covariance)"),
+    responseIds: z.array(z.number().int()),
+    group: z.string().nullable().describe("Level of groupBy"),
+    estimate: z.number().describe("md in `units`, or lnrr"),
+    se: z.number(),
+    ciLower: z.number().describe("estimate ± t(0.975, df)·se with the site-year's error df"),
+    ciUpper: z.number(),
+    df: z.number().int(),
+    pValue: z.number().nullable().describe("Two-sided t test of the site-year's own contrast"),
+    significant: z.boolean().nullable().describe("p < 0.05 in the site-year's own analysis"),
+    weightPercent: z.number().describe("Weight in the pooled estimate (within its group when grouped)"),
+    soilTestAnalyte: z.string().nullable(),
+    soilTestClass: z.string().nullable(),
+    soilTestValue: z.number().nullable(),
+    checkMean: z.number().describe("Check yield in `units` (kg/ha when effect=lnrr and units=kg/ha)"),
+  })
+  .meta({ id: "ForestRow" });
+export type ForestRow = z.infer<typeof forestRow>;
+
+export const pooledEstimate = z
+  .object({
+    estimate: z.number(),
+    se: z.number(),
+    ciLower: z.number(),
+    ciUpper: z.number(),
+    pValue: z.number(),
+    distribution: z.enum(["normal", "t"]),
+    df: z.number().nullable(),
+    ciMethod: z.enum(ciMethods).describe("What was used; HKSJ falls back to Wald with k = 1"),
+    predictionInterval: interval
+      .extend({ df: z.number().int() })
+      .nullable()
+      .describe("95 % interval for a new site-year, μ̂ ± t(k − 2)·√(τ̂² + SE²); null for k < 3 or FE"),
+  })
+  .meta({ id: "PooledEstimate" });
+
+export const heterogeneity = z
+  .object({
+    q: z.number(),
+    df: z.number().int(),
+    pValue: z.number().nullable(),
+    i2Percent: z.number().nullable(),
+    h2: z.number().nullable(),
+    tau2: z.number(),
+    tau: z.number(),
+    plainWords: z.string(),
+  })
+  .meta({ id: "Heterogeneity" });
+
+export const subgroupLevel = z
+  .object({
+    level: z.string(),
+    k: z.number().int(),
+    estimate: z.number(),
+    se: z.number(),
+    ciLower: z.number(),
+    ciUpper: z.number(),
+    pValue: z.number(),
+  })
+  .meta({ id: "SubgroupLevel" });
+
+export const subgroups = z
+  .object({
+    by: z.enum(groupings),
+    model: z.string().describe("How levels and QM were estimated"),
+    levels: z.array(subgroupLevel),
+    qm: z
+      .object({
+        statistic: z.number(),
+        df: z.number().int(),
+        df2: z.number().int().nullable().describe("Denominator df of the F test under HKSJ"),
+        distribution: z.enum(["chi-square", "F"]),
+        pValue: z.number(),
+      })
+      .nullable()
+      .describe("Test that all levels have the same mean; null with fewer than two levels"),
+    tau2: z.number().nullable().describe("Residual τ² shared by the levels"),
+    notes: z.array(z.string()),
+  })
+  .meta({ id: "Subgroups" });
+
+export const decisionNumbers = z
+  .object({
+    costPerAcre: z.number().nullable(),
+    pricePerBushel: z.number().nullable(),
+    breakEven: z.number().nullable().describe("B = cost ÷ price, in `units`"),
+    probabilityAboveZero: z.number().nullable().describe("P(response > 0) on a new site-year, t(k − 2) predictive distribution"),
+    probabilityAboveBreakEven: z.number().nullable(),
+    shareAboveZero: z.number().nullable().describe("Share of these site-years with an observed response > 0"),
+    shareAboveBreakEven: z.number().nullable(),
+    shareSignificant: z.number().nullable().describe("Share of site-years whose own analysis found the response significant (p < 0.05)"),
+    significantCount: z.number().int(),
+    notes: z.array(z.string()),
+  })
+  .meta({ id: "DecisionNumbers" });
+
+export const excludedSiteYear = z
+  .object({ siteYearCode: z.string(), dataset: z.string(), version: z.string(), treatments: z.array(z.string()), reason: z.string() })
+  .meta({ id: "ExcludedSiteYear" });
+
+export const analysisProvenance = z
+  .object({
+    versions: z.array(
+      z.object({ dataset: z.string(), title: z.string(), version: z.string(), licence: z.string(), siteYearsUsed: z.number().int() }),
+    ),
+    filters: z.record(z.string(), z.string()).describe("The normalised filters"),
+    effect: z.enum(effectMeasures),
+    method: z.enum(tauMethods),
+    ci: z.enum(ciMethods),
+    units: z.string(),
+    groupBy: z.enum(groupings).nullable(),
+    k: z.number().int().describe("Site-years in the pooled estimate"),
+    datasets: z.number().int(),
+    contrastsRead: z.number().int().describe("Treatment-vs-check rows that matched the filters"),
+    combinedSiteYears: z.number().int().describe("Site-years where several matching treatments were combined into one effect"),
+    excluded: z.array(excludedSiteYear),
+    combination: z.string().describe("How several treatments of one site-year enter the analysis"),
+  })
+  .meta({ id: "AnalysisProvenance" });
+
+export const metaAnalysisResult = z
+  .object({
+    k: z.number().int(),
+    effect: z.enum(effectMeasures),
+    units: z.string().describe("bu/ac, kg/ha, or ln(ratio)"),
+    rows: z.array(forestRow),
+    pooled: pooledEstimate.nullable(),
+    heterogeneity: heterogeneity.nullable(),
+    subgroups: subgroups.nullable(),
+    decision: decisionNumbers,
+    provenance: analysisProvenance,
+    notes: z.array(z.string()),
+    cautions: z.array(z.string()),
+  })
+  .meta({ id: "MetaAnalysis" });
+export type MetaAnalysisResponse = z.infer<typeof metaAnalysisResult>;

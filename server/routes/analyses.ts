@@ -1,0 +1,46 @@
+import { Router } from "express";
+import { metaAnalysisResult, metaQuery } from "@/schemas/analysis";
+import type { AppContext } from "@/server/context";
+import { problemResponses } from "@/server/openapi/registry";
+import { forestRowsCsv } from "@/server/services/analysis/forest-csv";
+import { runMetaAnalysis } from "@/server/services/analysis/run-meta-analysis";
+import { parseQuery } from "@/server/validate";
+
+export function analysisRoutes({ db, registry }: AppContext): Router {
+  const router = Router();
+
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/analyses/meta",
+    tags: ["Analyses"],
+    summary: "Random-effects meta-analysis of yield response over the filtered site-years",
+    description:
+      "Takes the same filters as the responses and rows endpoints, so a screen's numbers come from one URL. Each " +
+      "site-year enters once: several matching treatments of one site-year are combined first, using the covariance " +
+      "their shared check induces (MSE/r). τ² by REML (default), DL or PM, or the fixed-effect model; CI by " +
+      "Hartung–Knapp–Sidik–Jonkman (default) or Wald; the prediction interval uses t(k − 2). With price and cost, the " +
+      "decision block gives the break-even response and the chance a new site-year exceeds it. `format=csv` returns " +
+      "the per-site-year rows (reproduce in R: `rma(yi = estimate, sei = se, data = d, method = \"REML\", test = \"knha\")`). " +
+      "k = 0 is an answer (200), not an error. Results summarise these trials; a field can differ.",
+    request: { query: metaQuery },
+    responses: {
+      200: {
+        description: "The analysis with its provenance",
+        content: { "application/json": { schema: metaAnalysisResult }, "text/csv": { schema: { type: "string" } } },
+      },
+      ...problemResponses(400, 404, 429),
+    },
+  });
+  router.get("/analyses/meta", async (req, res) => {
+    const query = parseQuery(metaQuery, req);
+    const result = await runMetaAnalysis(db, query);
+    res.set("Cache-Control", "public, max-age=60");
+    if (query.format === "csv") {
+      res.type("text/csv; charset=utf-8").set("Content-Disposition", 'inline; filename="meta-analysis-site-years.csv"').send(forestRowsCsv(result));
+      return;
+    }
+    res.json(result);
+  });
+
+  return router;
+}

@@ -1,0 +1,270 @@
+import type { Db } from "@/db/client";
+import type { Grouping, MetaAnalysisResponse, MetaQuery } from "@/schemas/analysis";
+import { filtersToQuery, trialFilterShape, type TrialFilters } from "@/schemas/filters";
+import {
+  breakEvenResponse,
+  commonTauSquaredSubgroups,
+  empiricalShares,
+  kilogramsPerHectarePerBushelPerAcre,
+  metaAnalysis,
+  probabilityNewResponseAbove,
+  shareSignificant,
+  cropStandards,
+  type StandardCrop,
+} from "@/stats";
+import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
+import { loadContrasts, type Contrast, type ResolvedVersion } from "./load-contrasts";
+import { buildUnits, ownTest, type AnalysisUnit, type ExcludedContrast } from "./site-year-effects";
+import { analysisCautions, combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
+
+type Result = MetaAnalysisResponse;
+
+export function splitQuery(query: MetaQuery): { filters: TrialFilters; options: Omit<MetaQuery, keyof TrialFilters> } {
+  const filters: Record<string, unknown> = {};
+  const options: Record<string, unknown> = {};
+  for (const [key, value] of Object.entries(query)) (key in trialFilterShape ? filters : options)[key] = value;
+  return { filters: filters as TrialFilters, options: options as Omit<MetaQuery, keyof TrialFilters> };
+}
+
+/**
+ * The live random-effects meta-analysis of yield response behind the Evidence screen and /api/v1/analyses/meta:
+ * filtered responses → one effect per site-year → pooled estimate, heterogeneity, subgroups, decision numbers, with
+ * the provenance needed to re-derive every number.
+ */
+export async function runMetaAnalysis(db: Db, query: MetaQuery): Promise<Result> {
+  const { filters, options } = splitQuery(query);
+  const { versions, rows } = await loadContrasts(db, filters);
+  return analyseContrasts(rows, versions, filters, options);
+}
+
+export function analyseContrasts(rows: Contrast[], versions: ResolvedVersion[], filters: TrialFilters, options: Omit<MetaQuery, keyof TrialFilters>): Result {
+  const { effect, method, ci, units } = options;
+  const groupBy = options.groupBy ?? null;
+  const unitLabel = effect === "lnrr" ? "ln(treated/check)" : units;
+  const versionOf = new Map(versions.map((v) => [v.versionId, v]));
+  const slugOf = (row: Contrast) => versionOf.get(row.versionId)?.datasetSlug ?? "";
+
+  const overall = buildUnits(rows, { effect, units });
+  const grouped = groupBy ? buildUnits(rows, { effect, units, levelOf: (r) => groupLevel(r, groupBy, filters, slugOf(r)) }) : null;
+  const k = overall.units.length;
+  const notes = [...sampleSizeNotes(k)];
+  const crops = [...new Set(overall.units.map((u) => u.contrasts[0]!.crop))];
+  if (effect === "md" && units === "bu/ac" && crops.length > 1) {
+    notes.push(`Several crops (${crops.join(", ")}): each response is converted to bu/ac with its own crop's bushel weight, then pooled.`);
+  }
+  const combinedSiteYears = overall.units.filter((u) => u.contrasts.length > 1).length;
+  if (combinedSiteYears > 0) notes.push(`${combinedSiteYears} site-year(s) had several matching treatments; each was combined into one response (shared-check covariance).`);
+
+  const fit = k > 0 ? metaAnalysis({ yi: overall.units.map((u) => u.yi), vi: overall.units.map((u) => u.vi), method, ci, heterogeneityInterval: false }) : null;
+  if (fit) for (const n of fit.notes) if (!notes.includes(n) && !/^(Only|Two site-years)/.test(n)) notes.push(n);
+
+  const subgroups = grouped && groupBy ? subgroupBlock(grouped.units, groupBy, options) : null;
+  const forestUnits = grouped ?? overall;
+  const weights = forestUnits === overall ? fit?.weightsPercent ?? [] : withinGroupWeights(grouped!.units, subgroups?.tau2 ?? 0);
+  const forestRows = forestUnits.units.map((unit, i) => forestRow(unit, weights[i] ?? 0, filters, versionOf));
+
+  const pooled = fit
+    ? {
+        estimate: fit.estimate,
+        se: fit.se,
+        ciLower: fit.ciLower,
+        ciUpper: fit.ciUpper,
+        pValue: fit.pValue,
+        distribution: fit.distribution,
+        df: fit.df,
+        ciMethod: fit.ci,
+        predictionInterval: fit.predictionInterval.tKMinus2
+          ? { lower: fit.predictionInterval.tKMinus2.lower, upper: fit.predictionInterval.tKMinus2.upper, df: fit.predictionInterval.tKMinus2.df ?? k - 2 }
+          : null,
+      }
+    : null;
+  const heterogeneity =
+    fit && k >= 2
+      ? {
+          q: fit.q.statistic,
+          df: fit.q.df,
+          pValue: fit.q.pValue,
+          i2Percent: fit.i2Percent,
+          h2: fit.h2,
+          tau2: fit.tau2,
+          tau: fit.tau,
+          plainWords: describeHeterogeneity({ i2Percent: fit.i2Percent, tau: fit.tau, k, units: unitLabel, qPValue: fit.q.pValue }),
+        }
+      : null;
+
+  return {
+    k,
+    effect,
+    units: unitLabel,
+    rows: forestRows,
+    pooled,
+    heterogeneity,
+    subgroups,
+    decision: decisionBlock(overall.units, fit, options, crops),
+    provenance: {
+      versions: versions.map((v) => ({
+        dataset: v.datasetSlug,
+        title: v.datasetTitle,
+        version: v.semver,
+        licence: v.licence,
+        siteYearsUsed: overall.units.filter((u) => u.contrasts[0]!.versionId === v.versionId).length,
+      })),
+      filters: filtersToQuery(filters),
+      effect,
+      method,
+      ci,
+      units: unitLabel,
+      groupBy,
+      k,
+      datasets: new Set(overall.units.map((u) => u.contrasts[0]!.versionId)).size,
+      contrastsRead: rows.length,
+      combinedSiteYears,
+      excluded: excludedSiteYears(overall.excluded, versionOf),
+      combination: combinationNote,
+    },
+    notes,
+    cautions: analysisCautions,
+  };
+}
+
+function forestRow(unit: AnalysisUnit, weightPercent: number, filters: TrialFilters, versionOf: Map<string, ResolvedVersion>) {
+  const first = unit.contrasts[0]!;
+  const version = versionOf.get(first.versionId);
+  const soil = relevantSoilTest(first, filters.nutrient);
+  const test = ownTest(unit);
+  return {
+    id: unit.key,
+    siteYearCode: first.siteYearCode,
+    siteCode: first.siteCode,
+    dataset: version?.datasetSlug ?? "",
+    version: version?.semver ?? "",
+    year: first.year,
+    crop: first.crop,
+    treatments: unit.contrasts.map((c) => c.treatmentCode),
+    responseIds: unit.contrasts.map((c) => c.id),
+    group: unit.group,
+    estimate: unit.yi,
+    se: test.se,
+    ciLower: test.ciLower,
+    ciUpper: test.ciUpper,
+    df: unit.df,
+    pValue: test.pValue,
+    significant: test.significant,
+    weightPercent,
+    soilTestAnalyte: soil.analyte,
+    soilTestClass: soil.class,
+    soilTestValue: soil.value,
+    checkMean: unit.checkMean,
+  };
+}
+
+function withinGroupWeights(units: AnalysisUnit[], tau2: number): number[] {
+  const totals = new Map<string, number>();
+  for (const u of units) totals.set(u.group ?? "", (totals.get(u.group ?? "") ?? 0) + 1 / (u.vi + tau2));
+  return units.map((u) => (100 * (1 / (u.vi + tau2))) / (totals.get(u.group ?? "") ?? 1));
+}
+
+/**
+ * Subgroups as a mixed-effects model with the grouping as a categorical moderator (one residual τ² for all levels),
+ * as `rma(yi, vi, mods = ~ group)` computes QM; per-level estimates from `mods = ~ 0 + group`.
+ */
+function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQuery, "method" | "ci">): Result["subgroups"] {
+  const levels = orderLevels(by, units.map((u) => u.group ?? ""));
+  const model = `Mixed-effects model with ${by} as a categorical moderator and one residual τ² (${options.method}, ${options.ci === "hksj" ? "HKSJ F/t tests" : "Wald χ²/z tests"}).`;
+  const notes: string[] = [];
+  const count = (level: string) => units.filter((u) => u.group === level).length;
+  for (const level of levels) if (count(level) < 5) notes.push(`${level}: only ${count(level)} site-year(s); its estimate is imprecise.`);
+  if (units.length === 0) return { by, model, levels: [], qm: null, tau2: null, notes };
+  if (levels.length < 2) {
+    const only = metaAnalysis({ yi: units.map((u) => u.yi), vi: units.map((u) => u.vi), method: options.method, ci: options.ci, heterogeneityInterval: false });
+    notes.push("Only one level matches: there is nothing to compare between groups.");
+    return {
+      by,
+      model,
+      levels: [{ level: levels[0]!, k: units.length, estimate: only.estimate, se: only.se, ciLower: only.ciLower, ciUpper: only.ciUpper, pValue: only.pValue }],
+      qm: null,
+      tau2: only.tau2,
+      notes,
+    };
+  }
+  const fit = commonTauSquaredSubgroups({
+    yi: units.map((u) => u.yi),
+    vi: units.map((u) => u.vi),
+    groups: units.map((u) => u.group ?? ""),
+    levels,
+    method: options.method,
+    ci: options.ci,
+  });
+  notes.push(...fit.differences.notes.filter((n) => !notes.includes(n)));
+  const qm = fit.differences.qm;
+  return {
+    by,
+    model,
+    levels: fit.perLevel.coefficients.map((c) => ({ level: c.name, k: count(c.name), estimate: c.estimate, se: c.se, ciLower: c.ciLower, ciUpper: c.ciUpper, pValue: c.pValue })),
+    qm: qm
+      ? {
+          statistic: qm.statistic,
+          df: Array.isArray(qm.df) ? qm.df[0] : qm.df,
+          df2: Array.isArray(qm.df) ? qm.df[1] : null,
+          distribution: qm.distribution,
+          pValue: qm.pValue,
+        }
+      : null,
+    tau2: fit.differences.tau2,
+    notes,
+  };
+}
+
+function decisionBlock(units: AnalysisUnit[], fit: ReturnType<typeof metaAnalysis> | null, options: Omit<MetaQuery, keyof TrialFilters>, crops: string[]): Result["decision"] {
+  const notes: string[] = [];
+  const price = options.price ?? null;
+  const cost = options.cost ?? (options.productCost !== undefined || options.applicationCost !== undefined ? (options.productCost ?? 0) + (options.applicationCost ?? 0) : null);
+  let breakEven: number | null = null;
+  if (price !== null && cost !== null) {
+    const perBushel = breakEvenResponse(cost, price);
+    if (options.effect === "lnrr") notes.push("A break-even yield needs a yield response: ask for effect=md to compare with the cost.");
+    else if (options.units === "kg/ha") {
+      if (crops.length === 1) breakEven = perBushel * kilogramsPerHectarePerBushelPerAcre(cropStandards[crops[0] as StandardCrop]?.poundsPerBushel ?? Number.NaN);
+      else notes.push("Several crops: a price per bushel has no single kg/ha break-even; choose one crop or bu/ac.");
+    } else {
+      breakEven = perBushel;
+      if (crops.length > 1) notes.push("Several crops: one price per bushel is applied to all of them.");
+    }
+  } else if (price === null || cost === null) {
+    notes.push("Give a grain price ($/bu) and the cost ($/ac) for the break-even response and the chance it pays.");
+  }
+  const k = units.length;
+  const ys = units.map((u) => u.yi);
+  const predictive = (x: number) => (fit ? probabilityNewResponseAbove({ x, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k }) : null);
+  const aboveZero = predictive(0);
+  const aboveB = breakEven !== null ? predictive(breakEven) : null;
+  for (const n of [aboveZero?.note, aboveB?.note]) if (n && !notes.includes(n)) notes.push(n);
+  const shares = k > 0 ? empiricalShares(ys, breakEven ?? Number.POSITIVE_INFINITY) : null;
+  const significance = shareSignificant(units.map((u) => ownTest(u).pValue));
+  return {
+    costPerAcre: cost,
+    pricePerBushel: price,
+    breakEven,
+    probabilityAboveZero: aboveZero?.probability ?? null,
+    probabilityAboveBreakEven: aboveB?.probability ?? null,
+    shareAboveZero: shares?.aboveZero ?? null,
+    shareAboveBreakEven: breakEven !== null ? (shares?.aboveBreakEven ?? null) : null,
+    shareSignificant: significance.share,
+    significantCount: significance.significant,
+    notes,
+  };
+}
+
+function excludedSiteYears(excluded: ExcludedContrast[], versionOf: Map<string, ResolvedVersion>) {
+  const bySiteYear = new Map<string, { siteYearCode: string; dataset: string; version: string; treatments: string[]; reason: string }>();
+  for (const { contrast, reason } of excluded) {
+    const key = `${contrast.siteYearId}:${reason}`;
+    const entry = bySiteYear.get(key);
+    if (entry) entry.treatments.push(contrast.treatmentCode);
+    else {
+      const v = versionOf.get(contrast.versionId);
+      bySiteYear.set(key, { siteYearCode: contrast.siteYearCode, dataset: v?.datasetSlug ?? "", version: v?.semver ?? "", treatments: [contrast.treatmentCode], reason });
+    }
+  }
+  return [...bySiteYear.values()];
+}
