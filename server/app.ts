@@ -5,6 +5,7 @@ import helmet from "helmet";
 import swaggerUi from "swagger-ui-express";
 import type { Database } from "@/db/client";
 import { authenticate } from "./auth/authenticate";
+import { csrfGuard } from "./auth/csrf";
 import type { AppConfig } from "./config";
 import type { AppContext } from "./context";
 import { notFoundHandler, problemMiddleware } from "./errors";
@@ -52,6 +53,7 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   api.use(cors({ origin: "*", methods: ["GET", "HEAD"], exposedHeaders: ["ETag", "Link", "Retry-After", "RateLimit", "RateLimit-Policy"] }));
   api.use(express.json({ limit: "1mb" }));
   api.use(authenticate(ctx.db));
+  api.use(csrfGuard(config.publicUrl));
   api.use(apiRoutes(ctx));
 
   let openApiDocument: ReturnType<typeof generateOpenApiDocument> | undefined;

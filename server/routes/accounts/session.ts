@@ -6,11 +6,12 @@ import { problemResponses } from "@/server/openapi/registry";
 import { verifyPassword } from "@/server/auth/passwords";
 import { createSession, endSession, sessionCookieName, sessionLifetimeMs } from "@/server/auth/sessions";
 import { currentUser } from "@/server/auth/guards";
+import type { AuthLimiters } from "@/server/auth/rate-limits";
 import { findUserByEmail, meOf } from "@/server/services/users";
 import { parseBody } from "@/server/validate";
 
 /** Sign-in, sign-out and "who am I" for the web app's cookie session. */
-export function sessionRoutes({ db, registry, config }: AppContext): Router {
+export function sessionRoutes({ db, registry, config }: AppContext, limiters: AuthLimiters): Router {
   const router = Router();
 
   registry.registerPath({
@@ -21,7 +22,7 @@ export function sessionRoutes({ db, registry, config }: AppContext): Router {
     request: { body: { content: { "application/json": { schema: signInBody } } } },
     responses: { 200: { description: "Signed in", content: { "application/json": { schema: me } } }, ...problemResponses(400, 401, 429) },
   });
-  router.post("/session", async (req, res) => {
+  router.post("/session", ...limiters.signIn, async (req, res) => {
     const body = parseBody(signInBody, req);
     const user = await findUserByEmail(db, body.email);
     const ok = await verifyPassword(body.password, user?.passwordHash);
@@ -47,6 +48,7 @@ export function sessionRoutes({ db, registry, config }: AppContext): Router {
     responses: { 200: { description: "The signed-in user", content: { "application/json": { schema: me } } }, ...problemResponses(401) },
   });
   router.get("/session", async (req, res) => {
+    res.set("Cache-Control", "private, no-store");
     const user = currentUser(req);
     res.json(await meOf(db, user.id));
   });
