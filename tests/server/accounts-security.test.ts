@@ -1,0 +1,198 @@
+import { and, eq } from "drizzle-orm";
+import request from "supertest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { apiTokens, datasets, follows, outbox, versions } from "@/db/schema";
+import { newSecret, sha256Hex } from "@/server/auth/secrets";
+import type { AppContext } from "@/server/context";
+import { notifyReviewDecision, notifyReviewRequested } from "@/server/services/accounts/notifications";
+import { runPublishHooks } from "@/server/services/publish-hooks";
+import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
+import { signedInAgent } from "@/tests/support/sign-in";
+
+let t: TestApp;
+beforeAll(async () => {
+  t = await testApp({ authLimits: { windowMs: 60_000, perIp: 6, perAccount: 3 } });
+});
+afterAll(() => t.close());
+
+async function insertDataset(ctx: AppContext, slug: string, state: "draft" | "in_review" | "published", submitter?: string) {
+  const owner = await makeUser(ctx, "curator");
+  const [dataset] = await ctx.db
+    .insert(datasets)
+    .values({ slug, title: `Tallgrass ${slug}`, crops: ["corn"], region: "Tallgrass Basin", description: "Invented trials", ownerId: owner.id })
+    .returning();
+  const [version] = await ctx.db
+    .insert(versions)
+    .values({ datasetId: dataset!.id, semver: "1.0.0", tableSchema: { resources: {} }, createdBy: owner.id, changelog: "First release." })
+    .returning();
+  if (state !== "draft") {
+    await ctx.db
+      .update(versions)
+      .set({ state, submittedBy: submitter ?? owner.id, ...(state === "published" ? { publishedAt: new Date() } : {}) })
+      .where(eq(versions.id, version!.id));
+  }
+  return { owner, dataset: dataset!, versionId: version!.id };
+}
+
+async function tokenFor(userId: string, scope: "read" | "write") {
+  const secret = newSecret("pb_");
+  await t.ctx.db.insert(apiTokens).values({ userId, name: "test", prefix: secret.slice(0, 8), tokenHash: sha256Hex(secret), scope });
+  return secret;
+}
+
+describe("abuse limits", () => {
+  it("limits failed sign-ins per account with a 429 problem and Retry-After; successes do not count", async () => {
+    const user = await makeUser(t.ctx, "member");
+    for (let i = 0; i < 3; i++) await signedInAgent(t.app, user.email);
+    for (let i = 0; i < 3; i++) {
+      await request(t.app).post("/api/v1/session").send({ email: user.email, password: "wrong-password-1" }).expect(401);
+    }
+    const res = await request(t.app).post("/api/v1/session").send({ email: user.email.toUpperCase(), password: testPassword }).expect(429);
+    expect(res.headers["content-type"]).toMatch(/^application\/problem\+json/);
+    expect(Number(res.headers["retry-after"])).toBeGreaterThan(0);
+    expect(res.body.detail).toMatch(/Too many sign-in attempts\. Wait 1 minute/);
+    expect(res.body.retryAfter).toBe(Number(res.headers["retry-after"]));
+  });
+
+  it("limits failed sign-ins per address across accounts", async () => {
+    const fresh = await testApp({ authLimits: { windowMs: 60_000, perIp: 4, perAccount: 100 } });
+    try {
+      for (let i = 0; i < 4; i++) {
+        await request(fresh.app).post("/api/v1/session").send({ email: `spray${i}@tallgrass.test`, password: "wrong-password-1" }).expect(401);
+      }
+      const res = await request(fresh.app).post("/api/v1/session").send({ email: "spray9@tallgrass.test", password: "wrong-password-1" }).expect(429);
+      expect(res.headers["retry-after"]).toBeDefined();
+    } finally {
+      await fresh.close();
+    }
+  });
+
+  it("limits reset requests per e-mail address", async () => {
+    const user = await makeUser(t.ctx, "member");
+    for (let i = 0; i < 3; i++) await request(t.app).post("/api/v1/password-reset").send({ email: user.email }).expect(202);
+    const res = await request(t.app).post("/api/v1/password-reset").send({ email: user.email }).expect(429);
+    expect(res.body.detail).toMatch(/requests for e-mailed links/);
+    const sent = await t.ctx.db.select().from(outbox).where(and(eq(outbox.to, user.email), eq(outbox.kind, "password-reset")));
+    expect(sent).toHaveLength(3);
+  });
+});
+
+describe("cross-site request guard", () => {
+  it("refuses a cookie write from a foreign Origin or Referer, accepts our own and none", async () => {
+    const user = await makeUser(t.ctx, "member");
+    const agent = await signedInAgent(t.app, user.email);
+    const foreign = await agent.patch("/api/v1/account").set("Origin", "https://evil.example").send({ displayName: "Hacked" }).expect(403);
+    expect(foreign.body.detail).toMatch(/Cross-site/);
+    await agent.patch("/api/v1/account").set("Referer", "https://evil.example/page").send({ displayName: "Hacked" }).expect(403);
+    await agent.patch("/api/v1/account").set("Origin", "null").send({ displayName: "Hacked" }).expect(403);
+    await agent.patch("/api/v1/account").set("Origin", "http://plotbank.test").send({ displayName: "Own origin" }).expect(200);
+    const res = await agent.patch("/api/v1/account").send({ displayName: "No origin" }).expect(200);
+    expect(res.body.displayName).toBe("No origin");
+  });
+
+  it("refuses bodies a cross-site form could send", async () => {
+    const user = await makeUser(t.ctx, "member");
+    const agent = await signedInAgent(t.app, user.email);
+    const res = await agent.patch("/api/v1/account").set("Content-Type", "text/plain").send('{"displayName":"x"}').expect(415);
+    expect(res.body.errors[0].field).toBe("header.content-type");
+    await agent.patch("/api/v1/account").type("form").send({ displayName: "x" }).expect(415);
+  });
+
+  it("guards sign-up and sign-in too (login CSRF), but not bearer-token requests", async () => {
+    await request(t.app).post("/api/v1/sign-up").set("Origin", "https://evil.example").send({ email: "z@tallgrass.test", displayName: "Z", password: testPassword }).expect(403);
+    const user = await makeUser(t.ctx, "member");
+    const token = await tokenFor(user.id, "write");
+    await request(t.app).patch("/api/v1/account").set("Authorization", `Bearer ${token}`).set("Origin", "https://script.example").send({ displayName: "Script" }).expect(200);
+  });
+});
+
+describe("session cookie and headers", () => {
+  it("sets an httpOnly SameSite=Lax cookie and security headers, and never returns a hash", async () => {
+    const user = await makeUser(t.ctx, "member");
+    const res = await request(t.app).post("/api/v1/session").send({ email: user.email, password: testPassword }).expect(200);
+    const cookie = String(res.headers["set-cookie"]);
+    expect(cookie).toMatch(/pb_session=pbs_/);
+    expect(cookie).toMatch(/HttpOnly/);
+    expect(cookie).toMatch(/SameSite=Lax/);
+    expect(res.headers["x-content-type-options"]).toBe("nosniff");
+    expect(res.headers["content-security-policy"]).toContain("default-src 'self'");
+    expect(JSON.stringify(res.body)).not.toMatch(/scrypt|passwordHash|tokenHash/);
+  });
+});
+
+describe("outbox screen", () => {
+  it("is for admins in development, and absent in production", async () => {
+    const admin = await makeUser(t.ctx, "admin");
+    const member = await makeUser(t.ctx, "member");
+    await request(t.app).post("/api/v1/password-reset").send({ email: member.email }).expect(202);
+    const agent = await signedInAgent(t.app, admin.email);
+    const list = await agent.get("/api/v1/admin/outbox").expect(200);
+    const item = list.body.items.find((m: { to: string }) => m.to === member.email);
+    const one = await agent.get(`/api/v1/admin/outbox/${item.id}`).expect(200);
+    expect(one.body.links[0]).toMatch(/^http:\/\/plotbank\.test\/reset-password\?token=pbr_/);
+    await (await signedInAgent(t.app, member.email)).get("/api/v1/admin/outbox").expect(403);
+    await agent.get("/api/v1/admin/outbox/not-a-uuid").expect(404);
+
+    const prod = await testApp({ development: false });
+    try {
+      const prodAdmin = await makeUser(prod.ctx, "admin");
+      const prodAgent = await signedInAgent(prod.app, prodAdmin.email);
+      await prodAgent.get("/api/v1/admin/outbox").expect(404);
+      await request(prod.app).get("/api/v1/admin/outbox").expect(404);
+    } finally {
+      await prod.close();
+    }
+  });
+});
+
+describe("following datasets and the e-mails that go with it", () => {
+  it("follows a published dataset, lists it, refuses a draft, unfollows", async () => {
+    const { dataset } = await insertDataset(t.ctx, "basin-corn-n", "published");
+    const draft = await insertDataset(t.ctx, "basin-draft", "draft");
+    const member = await makeUser(t.ctx, "member");
+    const agent = await signedInAgent(t.app, member.email);
+    expect((await agent.post(`/api/v1/datasets/${dataset.slug}/follow`).expect(200)).body).toEqual({ slug: dataset.slug, following: true });
+    await agent.post(`/api/v1/datasets/${dataset.slug}/follow`).expect(200);
+    const list = await agent.get("/api/v1/account/follows").expect(200);
+    expect(list.body.items).toEqual([expect.objectContaining({ slug: dataset.slug, latestVersion: "1.0.0" })]);
+    await agent.post(`/api/v1/datasets/${draft.dataset.slug}/follow`).expect(404);
+    await agent.delete(`/api/v1/datasets/${dataset.slug}/follow`).expect(200);
+    expect((await agent.get("/api/v1/account/follows").expect(200)).body.items).toEqual([]);
+    await request(t.app).post(`/api/v1/datasets/${dataset.slug}/follow`).expect(401);
+  });
+
+  it("e-mails each follower once when a version is published", async () => {
+    const { dataset, versionId } = await insertDataset(t.ctx, "basin-soy-p", "published");
+    const a = await makeUser(t.ctx, "member");
+    const b = await makeUser(t.ctx, "reviewer");
+    const bystander = await makeUser(t.ctx, "member");
+    await t.ctx.db.insert(follows).values([{ datasetId: dataset.id, userId: a.id }, { datasetId: dataset.id, userId: b.id }]);
+    await runPublishHooks(t.ctx, versionId);
+    await runPublishHooks(t.ctx, versionId);
+    const notices = await t.ctx.db.select().from(outbox).where(eq(outbox.kind, "new-version"));
+    const mine = notices.filter((n) => (n.meta as { versionId?: string }).versionId === versionId);
+    expect(mine.map((n) => n.to).sort()).toEqual([a.email, b.email].sort());
+    expect(mine.map((n) => n.to)).not.toContain(bystander.email);
+    expect(mine[0]!.text).toContain(`http://plotbank.test/datasets/${dataset.slug}`);
+    expect(mine[0]!.text).toContain("First release.");
+  });
+
+  it("asks reviewers (not the submitter) to review, and tells the submitter the decision with the comment", async () => {
+    const fresh = await testApp();
+    try {
+      const reviewer = await makeUser(fresh.ctx, "reviewer");
+      const submitter = await makeUser(fresh.ctx, "reviewer");
+      const { versionId } = await insertDataset(fresh.ctx, "basin-k-review", "in_review", submitter.id);
+      expect(await notifyReviewRequested(fresh.ctx, versionId)).toBe(1);
+      const asked = await fresh.ctx.db.select().from(outbox).where(eq(outbox.kind, "review-requested"));
+      expect(asked.map((m) => m.to)).toEqual([reviewer.email]);
+      await notifyReviewDecision(fresh.ctx, versionId, "returned", "Site 3 lacks the soil-test K value.");
+      const [decision] = await fresh.ctx.db.select().from(outbox).where(eq(outbox.kind, "review-returned"));
+      expect(decision?.to).toBe(submitter.email);
+      expect(decision?.subject).toMatch(/Returned for changes/);
+      expect(decision?.text).toContain("Site 3 lacks the soil-test K value.");
+    } finally {
+      await fresh.close();
+    }
+  });
+});
