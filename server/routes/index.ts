@@ -3,6 +3,7 @@ import type { AppContext } from "@/server/context";
 import { healthRoutes } from "./health";
 import { accountRoutes } from "./accounts";
 import { datasetRoutes } from "./public/datasets";
+import { citationRoutes } from "./public/citations";
 import { analysisRoutes } from "./analyses";
 
 /** Every API route module, mounted under /api/v1. Each documents itself in the registry as it is built. */
@@ -12,5 +13,6 @@ export function apiRoutes(ctx: AppContext): Router {
   router.use(accountRoutes(ctx));
   router.use(datasetRoutes(ctx));
   router.use(analysisRoutes(ctx));
+  router.use(citationRoutes(ctx));
   return router;
 }

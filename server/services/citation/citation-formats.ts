@@ -1,0 +1,39 @@
+import { Cite } from "@citation-js/core";
+import "@citation-js/plugin-bibtex";
+import "@citation-js/plugin-csl";
+import "@citation-js/plugin-ris";
+import type { CslItem } from "./csl-item";
+
+export const citationFormats = ["text", "bibtex", "ris", "csl-json"] as const;
+export type CitationFormat = (typeof citationFormats)[number];
+
+export const citationMediaTypes: Record<CitationFormat, string> = {
+  text: "text/plain",
+  bibtex: "application/x-bibtex",
+  ris: "application/x-research-info-systems",
+  "csl-json": "application/vnd.citationstyles.csl+json",
+};
+
+export const citationExtensions: Record<CitationFormat, string> = { text: "txt", bibtex: "bib", ris: "ris", "csl-json": "json" };
+
+/**
+ * Render one CSL-JSON item with citation-js. Plain text follows APA 7 (its dataset pattern: "(Version x) [Dataset]").
+ * BibTeX has no version or full-date fields for @misc, so it gets the version as a note and the year alone
+ * (a day in `month` would not be valid BibTeX).
+ */
+export function renderCitation(item: CslItem, format: CitationFormat): string {
+  switch (format) {
+    case "csl-json":
+      return `${JSON.stringify([item], null, 2)}\n`;
+    case "text":
+      return `${new Cite([item]).format("bibliography", { format: "text", template: "apa", lang: "en-US" }).trim()}\n`;
+    case "bibtex": {
+      const year = item.issued["date-parts"][0][0];
+      const bib: CslItem = { ...item, issued: { "date-parts": [[year]] }, note: `Version ${item.version}` };
+      delete bib.abstract;
+      return `${new Cite([bib]).format("bibtex", { format: "text" }).trim()}\n`;
+    }
+    case "ris":
+      return new Cite([item]).format("ris", { format: "text" }).replace(/\s+$/, "") + "\n";
+  }
+}

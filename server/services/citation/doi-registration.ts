@@ -1,0 +1,126 @@
+import { and, eq, inArray, sql } from "drizzle-orm";
+import { datasets, versions } from "@/db/schema";
+import type { AppContext } from "@/server/context";
+import { createDataCiteClient, DataCiteRequestError, type DataCiteClient } from "@/server/doi/datacite-client";
+import type { DataCiteAttributes } from "@/server/doi/datacite-metadata";
+import { onVersionPublished } from "@/server/services/publish-hooks";
+import { loadCitableDatasetOfVersion, neighbours } from "./citable-version";
+import { conceptDoiAttributes, versionDoiAttributes } from "./datacite-payload";
+
+export type DoiOutcome = "registered" | "pending" | "failed" | "skipped";
+
+/** Waits between attempts: 30 s, 1, 2, 4 … minutes, never more than an hour. */
+export function retryDelayMs(attempts: number): number {
+  if (attempts <= 0) return 0;
+  return Math.min(30_000 * 2 ** (attempts - 1), 60 * 60_000);
+}
+
+function clientOf(ctx: AppContext): DataCiteClient | undefined {
+  const { url, user, password } = ctx.config.datacite;
+  return url ? createDataCiteClient({ url, user, password }) : undefined;
+}
+
+/** Mint a DOI, or bring its metadata up to date when it exists already (a retry after a lost answer). */
+async function upsertDoi(client: DataCiteClient, attributes: DataCiteAttributes): Promise<DataCiteAttributes> {
+  try {
+    return await client.createDoi(attributes);
+  } catch (error) {
+    if (error instanceof DataCiteRequestError && error.alreadyTaken) return client.updateDoi(attributes.doi!, attributes);
+    throw error;
+  }
+}
+
+/**
+ * Register a released version's DOI, then refresh its neighbours' version links and the dataset's concept DOI.
+ * Every step is idempotent, so a retry simply runs them all again. A failure never touches the publication: the
+ * version stays published with doi_status pending (the service was unreachable or refused for now) or failed
+ * (it rejected the metadata itself), and the error is kept for curators to read.
+ */
+export async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<DoiOutcome> {
+  const client = clientOf(ctx);
+  if (!client) return "skipped";
+  const dataset = await loadCitableDatasetOfVersion(ctx.db, ctx.config, versionId);
+  const version = dataset?.versions.find((v) => v.versionId === versionId);
+  if (!dataset || !version) return "skipped";
+  try {
+    const minted = await upsertDoi(client, versionDoiAttributes(dataset, version));
+    const { previous, next } = neighbours(dataset, versionId);
+    for (const n of [previous, next]) {
+      // A neighbour still waiting for its own DOI gets these links when its registration runs.
+      if (n?.doiStatus === "registered") await client.updateDoi(n.intendedDoi, versionDoiAttributes(dataset, n));
+    }
+    const concept = await upsertDoi(client, conceptDoiAttributes(dataset));
+    await ctx.db.update(datasets).set({ conceptDoi: concept.doi ?? dataset.intendedConceptDoi }).where(eq(datasets.id, dataset.datasetId));
+    await ctx.db
+      .update(versions)
+      .set({ doi: minted.doi ?? version.intendedDoi, doiStatus: "registered", doiAttempts: sql`${versions.doiAttempts} + 1`, doiLastError: null, updatedAt: new Date() })
+      .where(eq(versions.id, versionId));
+    return "registered";
+  } catch (error) {
+    const outcome = error instanceof DataCiteRequestError && error.permanent ? "failed" : "pending";
+    const message = error instanceof Error ? error.message : String(error);
+    await ctx.db
+      .update(versions)
+      .set({ doiStatus: outcome, doiAttempts: sql`${versions.doiAttempts} + 1`, doiLastError: message.slice(0, 2000), updatedAt: new Date() })
+      .where(eq(versions.id, versionId));
+    return outcome;
+  }
+}
+
+export interface RetrySummary {
+  attempted: number;
+  registered: number;
+  pending: number;
+  failed: number;
+}
+
+/**
+ * Register every released version that has no DOI yet and whose back-off has run out. `failed` versions (the
+ * service refused their metadata) are left for a person to look at rather than sent again unchanged.
+ */
+export async function retryPendingDois(ctx: AppContext, options: { now?: Date } = {}): Promise<RetrySummary> {
+  const summary: RetrySummary = { attempted: 0, registered: 0, pending: 0, failed: 0 };
+  if (!ctx.config.datacite.url) return summary;
+  const now = (options.now ?? new Date()).getTime();
+  const waiting = await ctx.db
+    .select({ id: versions.id, attempts: versions.doiAttempts, updatedAt: versions.updatedAt, semver: versions.semver })
+    .from(versions)
+    .where(and(inArray(versions.state, ["published", "withdrawn"]), inArray(versions.doiStatus, ["none", "pending"])))
+    .orderBy(versions.publishedAt);
+  for (const v of waiting) {
+    if (v.attempts > 0 && v.updatedAt.getTime() + retryDelayMs(v.attempts) > now) continue;
+    summary.attempted++;
+    const outcome = await registerVersionDoi(ctx, v.id);
+    if (outcome === "registered") summary.registered++;
+    else if (outcome === "failed") summary.failed++;
+    else if (outcome === "pending") summary.pending++;
+  }
+  return summary;
+}
+
+/** The background retry: one pass at a time, every `intervalMs`. Returns a function that stops it. */
+export function startDoiRetryLoop(ctx: AppContext, intervalMs = 15_000): () => void {
+  let running = false;
+  const timer = setInterval(() => {
+    if (running) return;
+    running = true;
+    retryPendingDois(ctx)
+      .then((s) => {
+        if (s.attempted) console.log(`DOI retry: ${s.registered} registered, ${s.pending} still pending, ${s.failed} refused`);
+      })
+      .catch((error) => console.error("DOI retry pass failed:", error))
+      .finally(() => {
+        running = false;
+      });
+  }, intervalMs);
+  // The retry loop alone must not keep the process alive (tests, shutdown).
+  (timer as unknown as { unref?: () => void }).unref?.();
+  return () => clearInterval(timer);
+}
+
+/** Register DOIs as versions are published. */
+export function registerDoiPublishHook() {
+  onVersionPublished("register-doi", async (ctx, versionId) => {
+    await registerVersionDoi(ctx, versionId);
+  });
+}

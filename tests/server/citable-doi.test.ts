@@ -1,0 +1,198 @@
+import { eq } from "drizzle-orm";
+import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
+import { datasets, versions } from "@/db/schema";
+import { createDataCiteClient, DataCiteRequestError } from "@/server/doi/datacite-client";
+import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacite";
+import { missingMandatoryProperties, type DataCiteAttributes } from "@/server/doi/datacite-metadata";
+import { retryDelayMs, retryPendingDois } from "@/server/services/citation/doi-registration";
+import { citableFixture } from "@/tests/support/citable-fixture";
+import { testApp, type TestApp } from "@/tests/support/test-app";
+
+const credentials = { user: "PLOTBANK.TEST", password: "fake-secret" };
+const prefix = "10.80555";
+
+let fake: FakeDataCite;
+let t: TestApp;
+beforeAll(async () => {
+  fake = createFakeDataCite({ ...credentials, prefixes: [prefix] });
+  const url = await fake.start();
+  t = await testApp({ datacite: { url, ...credentials, prefix } });
+});
+afterEach(async () => {
+  await fake.start();
+});
+afterAll(async () => {
+  await fake.stop();
+  await t.close();
+});
+
+const versionRow = async (id: string) => (await t.ctx.db.select().from(versions).where(eq(versions.id, id)))[0]!;
+
+describe("DOI registration on publication", () => {
+  it("registers a findable DOI with the mandatory DataCite properties and the version chain", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-chain");
+    const v1 = await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2024, 4, 2)) });
+    const row1 = await versionRow(v1);
+    expect(row1).toMatchObject({ state: "published", doi: `${prefix}/plotbank.tb-doi-chain.v1.0.0`, doiStatus: "registered", doiAttempts: 1, doiLastError: null });
+
+    const first = fake.records.get(row1.doi!)!;
+    expect(first.state).toBe("findable");
+    expect(first).toMatchObject({
+      url: "http://plotbank.test/datasets/tb-doi-chain?version=1.0.0",
+      titles: [{ title: "Soybean starter phosphorus placement in the Tallgrass Basin" }],
+      publisher: "Plotbank",
+      publicationYear: 2024,
+      types: { resourceTypeGeneral: "Dataset" },
+      version: "1.0.0",
+      rightsList: [expect.objectContaining({ rightsIdentifier: "cc-by-4.0", rightsUri: "https://creativecommons.org/licenses/by/4.0/" })],
+    });
+    // Creators are the project leader and the creator group; the funder is not one.
+    expect(first.creators).toEqual([
+      {
+        name: "Quillon, Marta",
+        nameType: "Personal",
+        givenName: "Marta",
+        familyName: "Quillon",
+        nameIdentifiers: [{ nameIdentifier: "https://orcid.org/0000-0002-1825-0097", nameIdentifierScheme: "ORCID", schemeUri: "https://orcid.org" }],
+        affiliation: [{ name: "Tallgrass Basin Agronomy Network" }],
+      },
+      { name: "Tallgrass Basin Agronomy Network", nameType: "Organizational" },
+    ]);
+    expect(missingMandatoryProperties(first)).toEqual([]);
+
+    const v2 = await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2025, 0, 20)) });
+    const row2 = await versionRow(v2);
+    expect(row2.doi).toBe(`${prefix}/plotbank.tb-doi-chain.v1.1.0`);
+    const second = fake.records.get(row2.doi!)!;
+    expect(second.relatedIdentifiers).toEqual(
+      expect.arrayContaining([
+        { relatedIdentifier: row1.doi, relatedIdentifierType: "DOI", relationType: "IsNewVersionOf" },
+        { relatedIdentifier: `${prefix}/plotbank.tb-doi-chain`, relatedIdentifierType: "DOI", relationType: "IsVersionOf" },
+      ]),
+    );
+    // The earlier version's DOI metadata now points forward to the new one.
+    expect(fake.records.get(row1.doi!)!.relatedIdentifiers).toContainEqual({ relatedIdentifier: row2.doi, relatedIdentifierType: "DOI", relationType: "IsPreviousVersionOf" });
+
+    // The concept DOI names the dataset and has both versions.
+    const [d] = await t.ctx.db.select().from(datasets).where(eq(datasets.id, f.datasetId));
+    expect(d!.conceptDoi).toBe(`${prefix}/plotbank.tb-doi-chain`);
+    const concept = fake.records.get(d!.conceptDoi!)!;
+    expect(concept.url).toBe("http://plotbank.test/datasets/tb-doi-chain");
+    expect(concept.relatedIdentifiers!.filter((r) => r.relationType === "HasVersion").map((r) => r.relatedIdentifier)).toEqual([row1.doi, row2.doi]);
+    expect(concept.publicationYear).toBe(2024);
+  });
+
+  it("publishes while the DOI service is down, keeps the DOI pending, and registers it when the service is back", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-retry");
+    await fake.stop();
+    const id = await f.publish("1.0.0");
+    let row = await versionRow(id);
+    expect(row.state).toBe("published");
+    expect(row).toMatchObject({ doi: null, doiStatus: "pending", doiAttempts: 1 });
+    expect(row.doiLastError).toMatch(/could not be reached/);
+
+    // Still down: a retry pass that is due records another attempt and stays pending.
+    const later = new Date(row.updatedAt.getTime() + retryDelayMs(1));
+    expect((await retryPendingDois(t.ctx, { now: later })).pending).toBeGreaterThanOrEqual(1);
+    row = await versionRow(id);
+    expect(row).toMatchObject({ doiStatus: "pending", doiAttempts: 2 });
+
+    // Before the back-off has passed, nothing is sent.
+    await fake.start();
+    const early = await retryPendingDois(t.ctx, { now: new Date(row.updatedAt.getTime() + 1000) });
+    expect(early.attempted).toBe(0);
+    expect((await versionRow(id)).doiStatus).toBe("pending");
+
+    const summary = await retryPendingDois(t.ctx, { now: new Date(row.updatedAt.getTime() + retryDelayMs(2)) });
+    expect(summary.registered).toBeGreaterThanOrEqual(1);
+    row = await versionRow(id);
+    expect(row).toMatchObject({ doi: `${prefix}/plotbank.tb-doi-retry.v1.0.0`, doiStatus: "registered", doiAttempts: 3, doiLastError: null });
+    expect(fake.records.get(row.doi!)!.state).toBe("findable");
+  });
+
+  it("re-registering after a lost answer updates the existing DOI instead of failing", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-again");
+    const id = await f.publish("1.0.0");
+    const doi = (await versionRow(id)).doi!;
+    // Forget the DOI on our side only, as if the service's answer had been lost.
+    await t.ctx.db.update(versions).set({ doi: null, doiStatus: "pending" }).where(eq(versions.id, id));
+    await retryPendingDois(t.ctx, { now: new Date(Date.now() + 24 * 3600_000) });
+    expect(await versionRow(id)).toMatchObject({ doi, doiStatus: "registered" });
+  });
+
+  it("backs off exponentially up to an hour", () => {
+    expect([0, 1, 2, 3, 4].map(retryDelayMs)).toEqual([0, 30_000, 60_000, 120_000, 240_000]);
+    expect(retryDelayMs(40)).toBe(3_600_000);
+  });
+});
+
+describe("the local DataCite fake", () => {
+  const valid = (): DataCiteAttributes => ({
+    doi: `${prefix}/plotbank.fake-check.v1.0.0`,
+    event: "publish",
+    url: "http://plotbank.test/datasets/fake-check?version=1.0.0",
+    creators: [{ name: "Tallgrass Basin Agronomy Network", nameType: "Organizational" }],
+    titles: [{ title: "Fake check" }],
+    publisher: "Plotbank",
+    publicationYear: 2025,
+    types: { resourceTypeGeneral: "Dataset" },
+  });
+  const post = (body: unknown, auth = true) =>
+    fetch(`${fake.url}/dois`, {
+      method: "POST",
+      headers: {
+        "Content-Type": "application/vnd.api+json",
+        ...(auth ? { Authorization: `Basic ${Buffer.from(`${credentials.user}:${credentials.password}`).toString("base64")}` } : {}),
+      },
+      body: JSON.stringify(body),
+    });
+
+  it("refuses requests without Basic credentials", async () => {
+    const res = await post({ data: { type: "dois", attributes: valid() } }, false);
+    expect(res.status).toBe(401);
+    expect((await res.json()).errors[0].title).toBe("Bad credentials");
+    const wrong = createDataCiteClient({ url: fake.url!, user: credentials.user, password: "nope" });
+    await expect(wrong.getDoi(valid().doi!)).rejects.toMatchObject({ status: 401 });
+  });
+
+  it.each([
+    ["creators", { creators: [] }],
+    ["titles", { titles: undefined }],
+    ["publisher", { publisher: "" }],
+    ["publicationYear", { publicationYear: undefined }],
+    ["types", { types: {} }],
+    ["url", { url: undefined }],
+    ["doi", { doi: undefined }],
+  ])("rejects a findable DOI without %s with a 422 naming it", async (property, change) => {
+    const res = await post({ data: { type: "dois", attributes: { ...valid(), ...change } } });
+    expect(res.status).toBe(422);
+    expect(res.headers.get("content-type")).toMatch(/application\/vnd\.api\+json/);
+    const body = (await res.json()) as { errors: { source: string; title: string }[] };
+    expect(body.errors.map((e) => e.source)).toContain(property);
+    expect(body.errors.every((e) => typeof e.title === "string" && e.title.length > 0)).toBe(true);
+  });
+
+  it("accepts a complete payload, refuses the same DOI twice, and refuses a prefix the account does not hold", async () => {
+    const client = createDataCiteClient({ url: fake.url!, ...credentials });
+    const made = await client.createDoi(valid());
+    expect(made).toMatchObject({ doi: valid().doi, state: "findable" });
+    const again = await client.createDoi(valid()).catch((e: unknown) => e);
+    expect(again).toBeInstanceOf(DataCiteRequestError);
+    expect((again as DataCiteRequestError).alreadyTaken).toBe(true);
+    await expect(client.createDoi({ ...valid(), doi: "10.99999/not-ours" })).rejects.toMatchObject({ status: 403 });
+    expect((await client.getDoi(valid().doi!)).titles).toEqual([{ title: "Fake check" }]);
+  });
+
+  it("a version whose metadata the service refuses is marked failed with the reason, and stays published", async () => {
+    // A creator with a blank name, written past the API's own validation.
+    const f = await citableFixture(t.ctx, "tb-doi-refused", [{ name: "  ", role: "creator" }]);
+    const id = await f.publish("1.0.0");
+    const row = await versionRow(id);
+    expect(row).toMatchObject({ state: "published", doiStatus: "failed", doi: null });
+    expect(row.doiLastError).toMatch(/creators\[0\]\.name/);
+    // Refused metadata is not sent again unchanged.
+    const pass = await retryPendingDois(t.ctx, { now: new Date(Date.now() + 24 * 3600_000) });
+    expect((await versionRow(id)).doiAttempts).toBe(1);
+    expect(pass.failed).toBe(0);
+  });
+});
