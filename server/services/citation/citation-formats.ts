@@ -20,6 +20,7 @@ export const citationExtensions: Record<CitationFormat, string> = { text: "txt",
  * Render one CSL-JSON item with citation-js. Plain text follows APA 7 (its dataset pattern: "(Version x) [Dataset]").
  * BibTeX has no version or full-date fields for @misc, so it gets the version as a note and the year alone
  * (a day in `month` would not be valid BibTeX).
+ * The abstract stays in CSL-JSON only: a reference list does not carry it.
  */
 export function renderCitation(item: CslItem, format: CitationFormat): string {
   switch (format) {
@@ -33,7 +34,11 @@ export function renderCitation(item: CslItem, format: CitationFormat): string {
       delete bib.abstract;
       return `${new Cite([bib]).format("bibtex", { format: "text" }).trim()}\n`;
     }
-    case "ris":
-      return new Cite([item]).format("ris", { format: "text" }).replace(/\s+$/, "") + "\n";
+    case "ris": {
+      // RIS writers wrap a long abstract over lines many readers do not join again; a reference needs none.
+      const ris: CslItem = { ...item };
+      delete ris.abstract;
+      return `${new Cite([ris]).format("ris", { format: "text" }).trim()}\n`;
+    }
   }
 }

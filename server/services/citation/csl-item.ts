@@ -34,6 +34,7 @@ export function cslItem(version: CitableVersion, slug: string): CslItem {
     URL: version.landingUrl,
     abstract: version.description,
     license: version.licence.spdx,
-    ...(version.keywords.length ? { keyword: version.keywords.join(", ") } : {}),
+    // citation-js splits CSL's comma-separated keyword string on the bare comma.
+    ...(version.keywords.length ? { keyword: version.keywords.join(",") } : {}),
   };
 }

@@ -1,0 +1,163 @@
+import { Cite } from "@citation-js/core";
+// The parsers that read the formats back.
+import "@citation-js/plugin-bibtex";
+import "@citation-js/plugin-ris";
+import request from "supertest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { defaultTableSchema } from "@/datasets/default-table-schema";
+import { versions } from "@/db/schema";
+import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacite";
+import { citableFixture } from "@/tests/support/citable-fixture";
+import { testApp, type TestApp } from "@/tests/support/test-app";
+
+let fake: FakeDataCite;
+let t: TestApp;
+beforeAll(async () => {
+  fake = createFakeDataCite({ user: "PLOTBANK.TEST", password: "fake-secret", prefixes: ["10.80555"] });
+  const url = await fake.start();
+  t = await testApp({ datacite: { url, user: "PLOTBANK.TEST", password: "fake-secret", prefix: "10.80555" } });
+  const f = await citableFixture(t.ctx, "tb-starter-p");
+  await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2024, 4, 2, 9)) });
+  await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2025, 2, 14, 9)) });
+});
+afterAll(async () => {
+  await fake.stop();
+  await t.close();
+});
+
+const base = "/api/v1/datasets/tb-starter-p/versions";
+const doi = "10.80555/plotbank.tb-starter-p.v1.1.0";
+
+describe("citation formats of a published version", () => {
+  it("plain text in APA style, with the registered DOI", async () => {
+    const res = await request(t.app).get(`${base}/1.1.0/citation?format=text`).expect(200);
+    expect(res.headers["content-type"]).toBe("text/plain; charset=utf-8");
+    // APA 7 dataset pattern: Author. (Year). Title (Version x) [Dataset]. Publisher. DOI URL.
+    expect(res.text).toBe(
+      "Quillon, M. & Tallgrass Basin Agronomy Network. (2025). Soybean starter phosphorus placement in the Tallgrass Basin " +
+        `(Version 1.1.0) [Dataset]. Plotbank. https://doi.org/${doi}\n`,
+    );
+    // Plain text is the default.
+    expect((await request(t.app).get(`${base}/1.1.0/citation`).expect(200)).text).toBe(res.text);
+  });
+
+  it("BibTeX that a BibTeX parser reads back to the same record", async () => {
+    const res = await request(t.app).get(`${base}/1.1.0/citation?format=bibtex`).expect(200);
+    expect(res.headers["content-type"]).toBe("application/x-bibtex; charset=utf-8");
+    expect(res.headers["content-disposition"]).toBe('inline; filename="tb-starter-p-v1.1.0.bib"');
+    expect(res.text).toBe(
+      [
+        "@misc{Quillon2025Soybean,",
+        "\tauthor = {Quillon, Marta and {Tallgrass Basin Agronomy Network}},",
+        `\tdoi = {${doi}},`,
+        "\tyear = {2025},",
+        "\tnote = {Version 1.1.0},",
+        "\tpublisher = {Plotbank},",
+        "\ttitle = {Soybean starter phosphorus placement in the {Tallgrass} {Basin}},",
+        "\turl = {http://plotbank.test/datasets/tb-starter-p?version=1.1.0},",
+        "}",
+        "",
+      ].join("\n"),
+    );
+    const [parsed] = new Cite(res.text).data as Record<string, unknown>[];
+    expect(parsed).toMatchObject({
+      "citation-key": "Quillon2025Soybean",
+      title: "Soybean starter phosphorus placement in the Tallgrass Basin",
+      author: [{ family: "Quillon", given: "Marta" }, { family: "Tallgrass Basin Agronomy Network" }],
+      DOI: doi,
+      publisher: "Plotbank",
+      issued: { "date-parts": [[2025]] },
+      note: "Version 1.1.0",
+      URL: "http://plotbank.test/datasets/tb-starter-p?version=1.1.0",
+    });
+  });
+
+  it("RIS with the dataset type, each author on a line, and an end-of-record tag", async () => {
+    const res = await request(t.app).get(`${base}/1.1.0/citation?format=ris`).expect(200);
+    expect(res.headers["content-type"]).toBe("application/x-research-info-systems; charset=utf-8");
+    expect(res.text).toBe(
+      [
+        "TY  - DATA",
+        "AU  - Quillon, Marta",
+        "AU  - Tallgrass Basin Agronomy Network",
+        "DA  - 2025/3/14/",
+        "PY  - 2025",
+        `DO  - ${doi}`,
+        "ET  - 1.1.0",
+        "ID  - tb-starter-p-v1.1.0",
+        "KW  - soybean",
+        "KW  - phosphorus",
+        "KW  - starter fertilizer",
+        "PB  - Plotbank",
+        "TI  - Soybean starter phosphorus placement in the Tallgrass Basin",
+        "UR  - http://plotbank.test/datasets/tb-starter-p?version=1.1.0",
+        "ER  -",
+        "",
+      ].join("\n"),
+    );
+    // Read back with citation-js's RIS input: the same record.
+    const [parsed] = new Cite(res.text).data as Record<string, unknown>[];
+    expect(parsed).toMatchObject({ type: "dataset", DOI: doi, version: "1.1.0", publisher: "Plotbank" });
+  });
+
+  it("CSL-JSON, the record the other formats render from", async () => {
+    const res = await request(t.app).get(`${base}/1.1.0/citation?format=csl-json`).expect(200);
+    expect(res.headers["content-type"]).toBe("application/vnd.citationstyles.csl+json; charset=utf-8");
+    expect(JSON.parse(res.text)).toEqual([
+      {
+        id: "tb-starter-p-v1.1.0",
+        type: "dataset",
+        title: "Soybean starter phosphorus placement in the Tallgrass Basin",
+        author: [{ family: "Quillon", given: "Marta" }, { literal: "Tallgrass Basin Agronomy Network" }],
+        publisher: "Plotbank",
+        issued: { "date-parts": [[2025, 3, 14]] },
+        version: "1.1.0",
+        DOI: doi,
+        URL: "http://plotbank.test/datasets/tb-starter-p?version=1.1.0",
+        abstract: "Invented demonstration trials: starter P placement (check, in-furrow, 2x2 band, broadcast) on soybean across soil-test P classes.",
+        license: "CC-BY-4.0",
+        keyword: "soybean,phosphorus,starter fertilizer",
+      },
+    ]);
+  });
+
+  it("`latest` names the newest published version; each version keeps its own year", async () => {
+    const latest = await request(t.app).get(`${base}/latest/citation`).expect(200);
+    expect(latest.text).toContain("(Version 1.1.0)");
+    const first = await request(t.app).get(`${base}/1.0.0/citation`).expect(200);
+    expect(first.text).toContain("(2024). Soybean starter phosphorus placement in the Tallgrass Basin (Version 1.0.0) [Dataset]");
+  });
+});
+
+describe("citations of a version still waiting for its DOI", () => {
+  it("point at the version's stable page instead of an unregistered DOI", async () => {
+    const f = await citableFixture(t.ctx, "tb-no-doi-yet");
+    await fake.stop();
+    await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2025, 5, 1)) });
+    await fake.start();
+    const text = await request(t.app).get("/api/v1/datasets/tb-no-doi-yet/versions/1.0.0/citation").expect(200);
+    expect(text.text).toMatch(/\[Dataset\]\. Plotbank\. http:\/\/plotbank\.test\/datasets\/tb-no-doi-yet\?version=1\.0\.0\n$/);
+    expect(text.text).not.toContain("doi.org");
+    const csl = JSON.parse((await request(t.app).get("/api/v1/datasets/tb-no-doi-yet/versions/1.0.0/citation?format=csl-json")).text);
+    expect(csl[0].DOI).toBeUndefined();
+  });
+});
+
+describe("bad citation requests", () => {
+  it("an unknown format is a 400 naming the parameter", async () => {
+    const res = await request(t.app).get(`${base}/1.1.0/citation?format=endnote`).expect(400);
+    expect(res.headers["content-type"]).toMatch(/^application\/problem\+json/);
+    expect(res.body.errors[0].field).toBe("query.format");
+  });
+  it("an unknown version or dataset is a 404 problem saying which", async () => {
+    const v = await request(t.app).get(`${base}/9.9.9/citation`).expect(404);
+    expect(v.body.detail).toContain("9.9.9");
+    const d = await request(t.app).get("/api/v1/datasets/no-such-dataset/versions/1.0.0/citation").expect(404);
+    expect(d.body.detail).toContain("no-such-dataset");
+  });
+  it("a draft is not citable", async () => {
+    const f = await citableFixture(t.ctx, "tb-draft-only");
+    await t.ctx.db.insert(versions).values({ datasetId: f.datasetId, semver: "1.0.0", createdBy: f.ownerId, tableSchema: defaultTableSchema() });
+    await request(t.app).get("/api/v1/datasets/tb-draft-only/versions/1.0.0/citation").expect(404);
+  });
+});
