@@ -11,6 +11,7 @@ import type { AppContext } from "./context";
 import { notFoundHandler, problemMiddleware } from "./errors";
 import { createRegistry, generateOpenApiDocument } from "./openapi/registry";
 import { apiRoutes } from "./routes";
+import { datasetPageHead } from "./services/linked-data/dataset-page-head";
 import { mountWebApp } from "./web";
 
 export interface CreateAppOptions {
@@ -70,7 +71,7 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   }));
   app.use("/api", notFoundHandler);
 
-  if (webDistDir !== false) mountWebApp(app, webDistDir);
+  if (webDistDir !== false) mountWebApp(app, webDistDir, datasetPageHead(ctx));
   app.use(problemMiddleware);
   return { app, ctx };
 }

@@ -5,6 +5,8 @@ import { migrateDatabase, openDatabase } from "@/db/client";
 import { createApp } from "./app";
 import { mountDevProxy, proxyUpgrades } from "./dev-proxy";
 import { loadConfig } from "./config";
+import { startLocalDataCiteUnlessConfigured } from "./doi/local-datacite";
+import { startDoiRetryLoop } from "./services/citation/doi-registration";
 import { webDistDir } from "./web";
 
 async function main() {
@@ -17,7 +19,9 @@ async function main() {
   }
   const database = await openDatabase({ url: config.databaseUrl, dataDir: config.dataDir });
   await migrateDatabase(database);
-  const { app } = createApp({ database, config, webDistDir: devProxy ? false : undefined });
+  const dataCite = await startLocalDataCiteUnlessConfigured(config);
+  const { app, ctx } = createApp({ database, config, webDistDir: devProxy ? false : undefined });
+  const stopDoiRetries = startDoiRetryLoop(ctx);
   if (devProxy) mountDevProxy(app, devProxy);
   const server = app.listen(config.port, config.host, () => {
     const where = config.databaseUrl ? "PostgreSQL (DATABASE_URL)" : `PGlite at ${config.dataDir}`;
@@ -26,6 +30,8 @@ async function main() {
   if (devProxy) proxyUpgrades(server, devProxy);
   const stop = async () => {
     server.close();
+    stopDoiRetries();
+    await dataCite.stop();
     await database.close();
     process.exit(0);
   };

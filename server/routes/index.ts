@@ -4,6 +4,7 @@ import { healthRoutes } from "./health";
 import { accountRoutes } from "./accounts";
 import { datasetRoutes } from "./public/datasets";
 import { citationRoutes } from "./public/citations";
+import { catalogRoutes } from "./public/catalog";
 import { analysisRoutes } from "./analyses";
 
 /** Every API route module, mounted under /api/v1. Each documents itself in the registry as it is built. */
@@ -14,5 +15,6 @@ export function apiRoutes(ctx: AppContext): Router {
   router.use(datasetRoutes(ctx));
   router.use(analysisRoutes(ctx));
   router.use(citationRoutes(ctx));
+  router.use(catalogRoutes(ctx));
   return router;
 }

@@ -1,0 +1,30 @@
+import { Router } from "express";
+import { z } from "zod";
+import type { AppContext } from "@/server/context";
+import { problemResponses } from "@/server/openapi/registry";
+import { dcatCatalog } from "@/server/services/linked-data/dcat-catalog";
+
+export function catalogRoutes(ctx: AppContext): Router {
+  const router = Router();
+
+  ctx.registry.registerPath({
+    method: "get",
+    path: "/api/v1/catalog",
+    tags: ["Datasets"],
+    summary: "The catalogue as W3C DCAT 3 (JSON-LD)",
+    description:
+      "Every dataset with its published versions, chained by dcat:previousVersion (dcat:hasCurrentVersion names the newest), " +
+      "and each version's downloads as dcat:Distribution with media type, byte size and SHA-256 checksum (spdx:checksum). " +
+      "The @context is inline, so it expands without fetching anything.",
+    responses: {
+      200: { description: "A dcat:Catalog", content: { "application/ld+json": { schema: z.record(z.string(), z.unknown()) } } },
+      ...problemResponses(429),
+    },
+  });
+  router.get("/catalog", async (_req, res) => {
+    const catalog = await dcatCatalog(ctx);
+    res.set("Cache-Control", "public, max-age=60").type("application/ld+json; charset=utf-8").send(JSON.stringify(catalog));
+  });
+
+  return router;
+}

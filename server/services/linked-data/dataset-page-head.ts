@@ -1,0 +1,44 @@
+import type { AppContext } from "@/server/context";
+import { schemaOrgDataset } from "./schema-org-dataset";
+
+const datasetPath = /^\/datasets\/([a-z0-9]+(?:-[a-z0-9]+)*)\/?$/;
+
+const escapeHtml = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
+
+/**
+ * JSON inside a <script> element: `<` becomes \u003c, so no "</script" (in any letter case) or "<!--" can end
+ * the element early; U+2028/2029 are escaped for old parsers. The JSON value is unchanged.
+ */
+export function scriptSafeJson(value: unknown): string {
+  return JSON.stringify(value)
+    .replace(/</g, "\\u003c")
+    .replace(/>/g, "\\u003e")
+    .replace(/&/g, "\\u0026")
+    .replace(/\u2028/g, "\\u2028")
+    .replace(/\u2029/g, "\\u2029");
+}
+
+function shorten(text: string, max = 300): string {
+  const flat = text.replace(/\s+/g, " ").trim();
+  return flat.length <= max ? flat : `${flat.slice(0, max - 1).replace(/\s+\S*$/, "")}…`;
+}
+
+/**
+ * The index.html transform: a dataset page gets its title, meta description and schema.org Dataset JSON-LD in
+ * the served HTML, so crawlers that run no JavaScript still see them. Every other path is served unchanged.
+ */
+export function datasetPageHead(ctx: AppContext) {
+  return async (html: string, url: string): Promise<string> => {
+    const slug = datasetPath.exec(url)?.[1];
+    if (!slug) return html;
+    const found = await schemaOrgDataset(ctx, slug);
+    if (!found) return html;
+    const title = `${found.version.title} (version ${found.version.semver}) · Plotbank`;
+    const head =
+      `<title>${escapeHtml(title)}</title>\n` +
+      `    <meta name="description" content="${escapeHtml(shorten(found.version.description))}" />\n` +
+      `    <link rel="canonical" href="${escapeHtml(found.dataset.landingUrl)}" />\n` +
+      `    <script type="application/ld+json">${scriptSafeJson(found.jsonLd)}</script>`;
+    return /<title>[\s\S]*?<\/title>/.test(html) ? html.replace(/<title>[\s\S]*?<\/title>/, () => head) : html.replace("</head>", () => `${head}\n</head>`);
+  };
+}

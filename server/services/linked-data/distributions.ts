@@ -1,0 +1,73 @@
+import { createHash } from "node:crypto";
+import type { Db } from "@/db/client";
+import type { ResourceName } from "@/schemas/table-schema";
+import type { AppConfig } from "@/server/config";
+import type { CitableVersion } from "@/server/services/citation/citable-version";
+import { resourceCsvChunks, resourceOrder } from "@/server/services/curation/resource-csv";
+
+export interface Distribution {
+  title: string;
+  downloadUrl: string;
+  mediaType: string;
+  /** Exact size and SHA-256 of the bytes the download sends, when Plotbank can generate them here. */
+  byteSize?: number;
+  sha256?: string;
+  /** The specification the file follows (Frictionless Data Package, or Table Schema for a CSV). */
+  conformsTo: string;
+}
+
+const resourceTitles: Record<ResourceName, string> = {
+  sites: "Sites",
+  site_years: "Site-years",
+  soil_tests: "Soil tests",
+  treatments: "Treatments",
+  plots: "Plot observations",
+  summaries: "Treatment means (site-years without plots)",
+};
+
+/** Published versions never change, so the size and digest of a download, once computed, hold for good. */
+const factsCache = new Map<string, { byteSize: number; sha256: string }>();
+
+async function csvFacts(db: Db, version: CitableVersion, resource: ResourceName) {
+  const key = `${version.versionId}/${resource}`;
+  const cached = factsCache.get(key);
+  if (cached) return cached;
+  const hash = createHash("sha256");
+  let byteSize = 0;
+  for await (const chunk of resourceCsvChunks(db, version.versionId, version.tableSchema, resource)) {
+    const bytes = Buffer.from(chunk, "utf8");
+    byteSize += bytes.length;
+    hash.update(bytes);
+  }
+  const facts = { byteSize, sha256: hash.digest("hex") };
+  // Only published bytes are final; a withdrawn version is not listed and a draft never gets here.
+  if (version.state === "published") factsCache.set(key, facts);
+  return facts;
+}
+
+/**
+ * The downloads of one published version: its Data Package (zip) and one canonical CSV per resource in its data
+ * dictionary. CSV sizes and digests come from generating the same bytes the CSV download streams.
+ */
+export async function versionDistributions(db: Db, config: AppConfig, slug: string, version: CitableVersion): Promise<Distribution[]> {
+  const base = `${config.publicUrl}/api/v1/datasets/${encodeURIComponent(slug)}/versions/${encodeURIComponent(version.semver)}`;
+  const resources = resourceOrder.filter((r) => version.tableSchema.resources[r]);
+  const csvs = await Promise.all(
+    resources.map(async (resource) => ({
+      title: `${resourceTitles[resource]} (CSV)`,
+      downloadUrl: `${base}/resources/${resource}.csv`,
+      mediaType: "text/csv",
+      conformsTo: "https://specs.frictionlessdata.io/table-schema/",
+      ...(await csvFacts(db, version, resource)),
+    })),
+  );
+  return [
+    {
+      title: "Frictionless Data Package (zip: datapackage.json and CSV files)",
+      downloadUrl: `${base}/datapackage.zip`,
+      mediaType: "application/zip",
+      conformsTo: "https://specs.frictionlessdata.io/data-package/",
+    },
+    ...csvs,
+  ];
+}

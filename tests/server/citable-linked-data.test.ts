@@ -1,0 +1,199 @@
+import { createHash } from "node:crypto";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
+import type { Express } from "express";
+import jsonld from "jsonld";
+import request from "supertest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { createApp } from "@/server/app";
+import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacite";
+import { resourceCsv } from "@/server/services/curation/resource-csv";
+import { scriptSafeJson } from "@/server/services/linked-data/dataset-page-head";
+import { defaultTableSchema } from "@/datasets/default-table-schema";
+import { citableFixture } from "@/tests/support/citable-fixture";
+import { testApp, type TestApp } from "@/tests/support/test-app";
+
+const DCAT = "http://www.w3.org/ns/dcat#";
+const DCT = "http://purl.org/dc/terms/";
+const SPDX = "http://spdx.org/rdf/terms#";
+const SDO = "https://schema.org/";
+
+/**
+ * Offline JSON-LD: the only remote context the pages use is schema.org's, served here from a local copy that maps
+ * its terms onto the https://schema.org/ vocabulary. Any other fetch fails the test.
+ */
+const documentLoader = async (url: string) => {
+  if (url === "https://schema.org" || url === "https://schema.org/") {
+    return { contextUrl: null, documentUrl: url, document: { "@context": { "@vocab": SDO } } };
+  }
+  throw new Error(`the JSON-LD processor tried to fetch ${url}`);
+};
+const expand = (doc: unknown) => jsonld.expand(doc, { documentLoader });
+
+type Expanded = Record<string, unknown>;
+const values = (node: Expanded, iri: string) => ((node[iri] ?? []) as { "@value"?: unknown; "@id"?: string; "@type"?: string }[]);
+const value = (node: Expanded, iri: string) => values(node, iri)[0]?.["@value"];
+const id = (node: Expanded, iri: string) => values(node, iri)[0]?.["@id"];
+const nodes = (node: Expanded, iri: string) => (node[iri] ?? []) as Expanded[];
+
+let fake: FakeDataCite;
+let t: TestApp;
+let webDir: string;
+let web: Express;
+let versionIds: string[];
+beforeAll(async () => {
+  fake = createFakeDataCite({ user: "PLOTBANK.TEST", password: "fake-secret", prefixes: ["10.80555"] });
+  const url = await fake.start();
+  t = await testApp({ datacite: { url, user: "PLOTBANK.TEST", password: "fake-secret", prefix: "10.80555" } });
+  const f = await citableFixture(t.ctx, "tb-linked");
+  versionIds = [
+    await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2023, 10, 1)), years: [2019, 2021] }),
+    await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2024, 10, 1)), years: [2019, 2023] }),
+  ];
+  // The same app with a web export to serve: a minimal index.html shaped like Expo's.
+  webDir = mkdtempSync(path.join(os.tmpdir(), "plotbank-web-"));
+  writeFileSync(
+    path.join(webDir, "index.html"),
+    '<!DOCTYPE html>\n<html lang="en">\n  <head>\n    <meta charset="utf-8" />\n    <title>Plotbank</title>\n</head>\n  <body><div id="root"></div></body>\n</html>\n',
+  );
+  web = createApp({ database: t.database, config: t.ctx.config, webDistDir: webDir }).app;
+});
+afterAll(async () => {
+  await fake.stop();
+  await t.close();
+  rmSync(webDir, { recursive: true, force: true });
+});
+
+describe("the DCAT 3 catalogue", () => {
+  it("expands as JSON-LD to a dcat:Catalog of datasets with version chains", async () => {
+    const res = await request(t.app).get("/api/v1/catalog").expect(200);
+    expect(res.headers["content-type"]).toBe("application/ld+json; charset=utf-8");
+    const [catalog] = await expand(JSON.parse(res.text));
+    expect(catalog!["@type"]).toEqual([`${DCAT}Catalog`]);
+    expect(catalog!["@id"]).toBe("http://plotbank.test/api/v1/catalog");
+
+    const [dataset] = nodes(catalog!, `${DCAT}dataset`);
+    expect(dataset!["@type"]).toEqual([`${DCAT}Dataset`]);
+    expect(dataset!["@id"]).toBe("http://plotbank.test/datasets/tb-linked");
+    expect(value(dataset!, `${DCT}title`)).toBe("Soybean starter phosphorus placement in the Tallgrass Basin");
+    expect(value(dataset!, `${DCT}identifier`)).toBe("10.80555/plotbank.tb-linked");
+    expect(id(dataset!, `${DCT}license`)).toBe("https://creativecommons.org/licenses/by/4.0/");
+    expect(id(dataset!, `${DCAT}hasCurrentVersion`)).toBe("http://plotbank.test/datasets/tb-linked?version=1.1.0");
+    expect(nodes(nodes(dataset!, `${DCT}publisher`)[0]!, "http://xmlns.com/foaf/0.1/name")[0]!["@value"]).toBe("Plotbank");
+
+    const versions = nodes(dataset!, `${DCAT}hasVersion`);
+    expect(versions.map((v) => value(v, `${DCAT}version`))).toEqual(["1.0.0", "1.1.0"]);
+    const [v1, v2] = versions as [Expanded, Expanded];
+    expect(v1["@type"]).toEqual([`${DCAT}Dataset`]);
+    expect(id(v1, `${DCAT}previousVersion`)).toBeUndefined();
+    expect(id(v2, `${DCAT}previousVersion`)).toBe(v1["@id"]);
+    expect(value(v2, `${DCT}identifier`)).toBe("10.80555/plotbank.tb-linked.v1.1.0");
+    expect(values(v2, `${DCT}issued`)[0]).toEqual({ "@value": "2024-11-01", "@type": "http://www.w3.org/2001/XMLSchema#date" });
+    const temporal = nodes(v2, `${DCT}temporal`)[0]!;
+    expect([value(temporal, `${DCAT}startDate`), value(temporal, `${DCAT}endDate`)]).toEqual(["2019", "2023"]);
+    expect(value(nodes(v2, `${DCT}spatial`)[0]!, "http://www.w3.org/2000/01/rdf-schema#label")).toBe("Tallgrass Basin (invented), temperate uplands");
+  });
+
+  it("lists each version's Data Package and CSVs as distributions, with the CSVs' exact size and SHA-256", async () => {
+    const [catalog] = await expand(JSON.parse((await request(t.app).get("/api/v1/catalog")).text));
+    const v2 = nodes(nodes(catalog!, `${DCAT}dataset`)[0]!, `${DCAT}hasVersion`)[1]!;
+    const distributions = nodes(v2, `${DCAT}distribution`);
+    expect(distributions.every((d) => (d["@type"] as string[]).includes(`${DCAT}Distribution`))).toBe(true);
+    const base = "http://plotbank.test/api/v1/datasets/tb-linked/versions/1.1.0";
+    const zip = distributions.find((d) => id(d, `${DCAT}downloadURL`) === `${base}/datapackage.zip`)!;
+    expect(id(zip, `${DCAT}mediaType`)).toBe("https://www.iana.org/assignments/media-types/application/zip");
+
+    const schema = defaultTableSchema();
+    for (const resource of ["sites", "site_years", "plots"] as const) {
+      const d = distributions.find((x) => id(x, `${DCAT}downloadURL`) === `${base}/resources/${resource}.csv`)!;
+      expect(id(d, `${DCAT}mediaType`)).toBe("https://www.iana.org/assignments/media-types/text/csv");
+      const bytes = await resourceCsv(t.ctx.db, versionIds[1]!, schema, resource);
+      expect(value(d, `${DCAT}byteSize`)).toBe(String(bytes.length));
+      const checksum = nodes(d, `${SPDX}checksum`)[0]!;
+      expect(checksum["@type"]).toEqual([`${SPDX}Checksum`]);
+      expect(id(checksum, `${SPDX}algorithm`)).toBe(`${SPDX}checksumAlgorithm_sha256`);
+      expect(value(checksum, `${SPDX}checksumValue`)).toBe(createHash("sha256").update(bytes).digest("hex"));
+    }
+  });
+});
+
+describe("schema.org Dataset JSON-LD in the served dataset page", () => {
+  const ldOf = (html: string) => {
+    const m = /<script type="application\/ld\+json">([\s\S]*?)<\/script>/.exec(html);
+    expect(m, "the page carries a JSON-LD script").not.toBeNull();
+    return JSON.parse(m![1]!) as Record<string, unknown>;
+  };
+
+  it("puts a title, a meta description and the Dataset markup in <head>, without JavaScript", async () => {
+    const res = await request(web).get("/datasets/tb-linked").expect(200);
+    expect(res.headers["content-type"]).toMatch(/^text\/html/);
+    const head = res.text.slice(0, res.text.indexOf("</head>"));
+    expect(head).toContain("<title>Soybean starter phosphorus placement in the Tallgrass Basin (version 1.1.0) · Plotbank</title>");
+    expect(head).toMatch(/<meta name="description" content="Invented demonstration trials: starter P placement/);
+    expect(head.match(/<title>/g)).toHaveLength(1);
+    expect(head).toContain('<script type="application/ld+json">');
+  });
+
+  it("expands to a https://schema.org/Dataset with version, licence, creators, coverage, variables and downloads", async () => {
+    const res = await request(web).get("/datasets/tb-linked").expect(200);
+    const [d] = await expand(ldOf(res.text));
+    expect(d!["@type"]).toEqual([`${SDO}Dataset`]);
+    expect(value(d!, `${SDO}name`)).toBe("Soybean starter phosphorus placement in the Tallgrass Basin");
+    expect(value(d!, `${SDO}version`)).toBe("1.1.0");
+    expect(value(d!, `${SDO}license`)).toBe("https://creativecommons.org/licenses/by/4.0/");
+    expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.1.0");
+    expect(value(d!, `${SDO}temporalCoverage`)).toBe("2019/2023");
+    const place = nodes(d!, `${SDO}spatialCoverage`)[0]!;
+    expect(place["@type"]).toEqual([`${SDO}Place`]);
+    expect(value(place, `${SDO}name`)).toBe("Tallgrass Basin (invented), temperate uplands");
+
+    const creators = nodes(d!, `${SDO}creator`);
+    expect(creators.map((c) => [c["@type"], value(c, `${SDO}name`)])).toEqual([
+      [[`${SDO}Person`], "Marta Quillon"],
+      [[`${SDO}Organization`], "Tallgrass Basin Agronomy Network"],
+    ]);
+
+    const variables = nodes(d!, `${SDO}variableMeasured`);
+    expect(variables.every((v) => (v["@type"] as string[])[0] === `${SDO}PropertyValue`)).toBe(true);
+    const yieldVar = variables.find((v) => value(v, `${SDO}propertyID`) === "yield_kg_ha")!;
+    expect(value(yieldVar, `${SDO}unitText`)).toBe("kg/ha");
+    // Every variable the data dictionary gives a unit is listed, with that unit.
+    const withUnits = Object.values(defaultTableSchema().resources).flatMap((r) => r!.fields.filter((f) => f.unit));
+    expect(new Set(variables.map((v) => value(v, `${SDO}propertyID`)))).toEqual(new Set(withUnits.map((f) => f.name)));
+
+    const downloads = nodes(d!, `${SDO}distribution`);
+    expect(downloads.every((x) => (x["@type"] as string[])[0] === `${SDO}DataDownload`)).toBe(true);
+    expect(downloads.map((x) => [value(x, `${SDO}encodingFormat`), value(x, `${SDO}contentUrl`)])).toContainEqual([
+      "application/zip",
+      "http://plotbank.test/api/v1/datasets/tb-linked/versions/1.1.0/datapackage.zip",
+    ]);
+  });
+
+  it("escapes markup inside the JSON so no value can close the script element", async () => {
+    const hostile = { name: "</script><script>alert(1)</script> & <!-- \u2028" };
+    const safe = scriptSafeJson(hostile);
+    expect(safe.toLowerCase()).not.toContain("</script");
+    expect(safe).not.toContain("<!--");
+    expect(JSON.parse(safe)).toEqual(hostile);
+
+    const f = await citableFixture(t.ctx, "tb-hostile-title");
+    await t.ctx.db.execute(
+      // Written past the API's own validation, as a stored value could be.
+      (await import("drizzle-orm")).sql`UPDATE datasets SET description = ${"Ends early? </SCRIPT><img src=x onerror=alert(1)>"} WHERE id = ${f.datasetId}`,
+    );
+    await f.publish("1.0.0");
+    const res = await request(web).get("/datasets/tb-hostile-title").expect(200);
+    expect(res.text.match(/<\/script>/gi)).toHaveLength(1);
+    expect(res.text).not.toContain("<img");
+    expect(ldOf(res.text).description).toBe("Ends early? </SCRIPT><img src=x onerror=alert(1)>");
+  });
+
+  it("other pages, and datasets with nothing published, are served unchanged", async () => {
+    const plain = await request(web).get("/datasets").expect(200);
+    expect(plain.text).toContain("<title>Plotbank</title>");
+    expect(plain.text).not.toContain("application/ld+json");
+    const unknown = await request(web).get("/datasets/not-published-anywhere").expect(200);
+    expect(unknown.text).not.toContain("application/ld+json");
+  });
+});
