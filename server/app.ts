@@ -10,6 +10,7 @@ import type { AppConfig } from "./config";
 import type { AppContext } from "./context";
 import { notFoundHandler, problemMiddleware } from "./errors";
 import { createRegistry, generateOpenApiDocument } from "./openapi/registry";
+import { apiRateLimits } from "./rate-limit";
 import { apiRoutes } from "./routes";
 import { datasetPageHead } from "./services/linked-data/dataset-page-head";
 import { mountWebApp } from "./web";
@@ -55,6 +56,7 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   api.use(express.json({ limit: "1mb" }));
   api.use(authenticate(ctx.db));
   api.use(csrfGuard(config.publicUrl));
+  api.use(apiRateLimits(config));
   api.use(apiRoutes(ctx));
 
   let openApiDocument: ReturnType<typeof generateOpenApiDocument> | undefined;

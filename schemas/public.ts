@@ -1,0 +1,322 @@
+import { z } from "zod";
+import { datasetSummary } from "./dataset";
+import { contributor } from "./dataset-metadata";
+import { crops, nutrients, placements, soilTestClasses, tillages, trialFilters, trialFilterShape } from "./filters";
+
+/**
+ * Contracts of the public read API: dataset and version metadata, the row shapes of every resource, and the query
+ * parameters each resource accepts. Rows are JSON types; the CSV form of a resource has the same columns, with
+ * lists joined by ";".
+ */
+
+export const yieldUnits = ["bu/ac", "kg/ha"] as const;
+export type YieldUnit = (typeof yieldUnits)[number];
+
+// ---------------------------------------------------------------- query parameters
+
+/** Bushels per acre by default: the unit the trials' users plan in. Canonical storage is kg/ha at standard moisture. */
+export const unitsParam = z
+  .enum(yieldUnits)
+  .default("bu/ac")
+  .describe("Unit of yields, responses, SEs and LSDs: bu/ac (default; crop test weight) or kg/ha. Both at the crop's standard moisture.");
+export const formatParam = z.enum(["json", "csv"]).optional().describe("csv streams every matching row (no paging); the same as `Accept: text/csv`");
+export const maxPageSize = 1000;
+export const limitParam = z.coerce
+  .number()
+  .int()
+  .min(1)
+  .max(maxPageSize)
+  .default(100)
+  .describe(`Rows per JSON page, 1–${maxPageSize} (default 100)`);
+export const pageTokenParam = z.string().min(1).max(400).optional().describe("Opaque token from the previous page's `nextPageToken` (or its Link rel=next)");
+
+const pagingShape = { format: formatParam, limit: limitParam, pageToken: pageTokenParam };
+
+/**
+ * The list filters parse "a,b" or repeated parameters through a transform, which OpenAPI cannot see into; their
+ * documentation names the allowed values explicitly. Same validating schemas, documentation attached.
+ */
+function documentedList<T extends z.ZodType>(schema: T, values: readonly string[]): T {
+  return schema.meta({
+    type: "array",
+    items: { type: "string", enum: [...values] },
+    param: { style: "form", explode: false, description: `${schema.description ?? ""} Comma-separated or repeated; one of: ${values.join(", ")}.`.trim() },
+  }) as T;
+}
+
+const documentedLists = {
+  crop: documentedList(trialFilterShape.crop, crops),
+  nutrient: documentedList(trialFilterShape.nutrient, nutrients),
+  placement: documentedList(trialFilterShape.placement, placements),
+  soilTestClass: documentedList(trialFilterShape.soilTestClass, soilTestClasses),
+  tillage: documentedList(trialFilterShape.tillage, tillages),
+};
+
+const { dataset: _dataset, version: _version, ...baseVersionFilterShape } = trialFilterShape;
+const versionFilterShape = { ...baseVersionFilterShape, ...documentedLists };
+
+function yearsInOrder(f: { yearFrom?: number; yearTo?: number }, ctx: z.RefinementCtx) {
+  if (f.yearFrom && f.yearTo && f.yearFrom > f.yearTo) ctx.addIssue({ code: "custom", path: ["yearTo"], message: "yearTo is before yearFrom" });
+}
+
+/** Cross-dataset rows with yields (observations, responses): every shared filter, units and paging. */
+export const crossDatasetYieldQuery = trialFilters.safeExtend({ ...documentedLists, units: unitsParam, ...pagingShape }).meta({ id: "CrossDatasetYieldQuery" });
+/** Cross-dataset site-years: every shared filter and paging. */
+export const crossDatasetSiteYearQuery = trialFilters.safeExtend({ ...documentedLists, ...pagingShape }).meta({ id: "CrossDatasetSiteYearQuery" });
+/** Rows of one version with yields: the shared filters except dataset and version (the path names those). */
+export const versionYieldQuery = z
+  .object({ ...versionFilterShape, units: unitsParam, ...pagingShape })
+  .strict()
+  .superRefine(yearsInOrder)
+  .meta({ id: "VersionYieldQuery" });
+export const versionSiteYearQuery = z.object({ ...versionFilterShape, ...pagingShape }).strict().superRefine(yearsInOrder).meta({ id: "VersionSiteYearQuery" });
+/** Treatments are filtered by what they supply, how it is placed and how much. */
+export const versionTreatmentQuery = z
+  .object({
+    nutrient: documentedLists.nutrient,
+    placement: documentedLists.placement,
+    nRateMin: trialFilterShape.nRateMin,
+    nRateMax: trialFilterShape.nRateMax,
+    p2o5RateMin: trialFilterShape.p2o5RateMin,
+    p2o5RateMax: trialFilterShape.p2o5RateMax,
+    k2oRateMin: trialFilterShape.k2oRateMin,
+    k2oRateMax: trialFilterShape.k2oRateMax,
+    sRateMin: trialFilterShape.sRateMin,
+    sRateMax: trialFilterShape.sRateMax,
+    ...pagingShape,
+  })
+  .strict()
+  .meta({ id: "VersionTreatmentQuery" });
+export const versionSiteQuery = z.object(pagingShape).strict().meta({ id: "VersionSiteQuery" });
+/** Metadata endpoints take no parameters; anything sent is a mistake worth naming. */
+export const noQuery = z.object({}).strict();
+
+export type CrossDatasetYieldQuery = z.infer<typeof crossDatasetYieldQuery>;
+export type VersionYieldQuery = z.infer<typeof versionYieldQuery>;
+
+// ---------------------------------------------------------------- dataset and version metadata
+
+export const publicVersionState = z.enum(["published", "withdrawn"]).meta({ id: "PublicVersionState" });
+
+export const versionSummary = z
+  .object({
+    semver: z.string(),
+    state: publicVersionState,
+    publishedAt: z.string().nullable(),
+    withdrawnAt: z.string().nullable(),
+    withdrawnReason: z.string().nullable().describe("Why a withdrawn version was withdrawn; its rows are no longer served (410)"),
+    changelog: z.string(),
+    checksum: z.string().nullable().describe("SHA-256 over the canonical CSV of every resource"),
+    doi: z.string().nullable(),
+    licence: z.string(),
+    url: z.string().describe("Stable URL of this version's metadata"),
+  })
+  .meta({ id: "VersionSummary" });
+export type VersionSummary = z.infer<typeof versionSummary>;
+
+export const versionCounts = z
+  .object({ sites: z.number().int(), siteYears: z.number().int(), treatments: z.number().int(), plots: z.number().int(), responses: z.number().int() })
+  .meta({ id: "VersionCounts" });
+
+export const versionDetail = versionSummary
+  .extend({
+    dataset: z.object({ slug: z.string(), title: z.string() }),
+    counts: versionCounts.nullable().describe("Row counts; null for a withdrawn version"),
+    yearFrom: z.number().int().nullable(),
+    yearTo: z.number().int().nullable(),
+    links: z
+      .record(z.string(), z.string())
+      .describe("URLs of the version's schema and rows (published versions), keyed by name"),
+  })
+  .meta({ id: "VersionDetail" });
+export type VersionDetail = z.infer<typeof versionDetail>;
+
+export const versionList = z.object({ items: z.array(versionSummary) }).meta({ id: "VersionList" });
+
+export const datasetDetail = datasetSummary
+  .extend({
+    funding: z.string().nullable(),
+    methods: z.string().nullable(),
+    conceptDoi: z.string().nullable(),
+    contributors: z.array(contributor),
+    versions: z.array(versionSummary).describe("Published and withdrawn versions, newest first; withdrawn ones are tombstones with their reason"),
+  })
+  .meta({ id: "DatasetDetail" });
+export type DatasetDetail = z.infer<typeof datasetDetail>;
+
+// ---------------------------------------------------------------- rows
+
+/** Which version a row comes from, so any row can be cited. */
+const provenanceShape = { dataset: z.string().describe("Dataset slug"), version: z.string().describe("Semantic version") };
+const yieldUnitShape = {
+  yieldUnit: z.enum(yieldUnits),
+  moistureBasisPct: z.number().nullable().describe("Standard moisture (% wet basis) the yields are expressed at"),
+};
+
+export const siteRow = z
+  .object({
+    id: z.number().int(),
+    ...provenanceShape,
+    code: z.string(),
+    location: z.string().describe("Coarse location (county or grid cell)"),
+    soilSeries: z.string().nullable(),
+    soilTexture: z.string().nullable(),
+  })
+  .meta({ id: "SiteRow" });
+
+export const soilTestRow = z
+  .object({
+    analyte: z.string(),
+    value: z.number(),
+    unit: z.string(),
+    extractant: z.string().nullable(),
+    depthIn: z.number().nullable(),
+    class: z.string().nullable(),
+    interpretation: z.string().nullable(),
+  })
+  .meta({ id: "SoilTest" });
+
+export const siteYearRow = z
+  .object({
+    id: z.number().int(),
+    ...provenanceShape,
+    code: z.string(),
+    siteCode: z.string(),
+    location: z.string(),
+    soilTexture: z.string().nullable(),
+    crop: z.string(),
+    year: z.number().int(),
+    design: z.string(),
+    blocks: z.number().int(),
+    tillage: z.string().nullable(),
+    previousCrop: z.string().nullable(),
+    plantingDate: z.string().nullable(),
+    rowSpacingIn: z.number().nullable(),
+    variety: z.string().nullable(),
+    maturityGroup: z.string().nullable(),
+    soilTests: z.array(soilTestRow).describe("In CSV: soilP/K/S value, unit, extractant and class columns"),
+  })
+  .meta({ id: "SiteYearRow" });
+
+export const applicationRow = z
+  .object({
+    product: z.string(),
+    grade: z.string(),
+    productRate: z.number(),
+    rateUnit: z.string(),
+    placement: z.string(),
+    timing: z.string(),
+    nLbAc: z.number(),
+    p2o5LbAc: z.number(),
+    k2oLbAc: z.number(),
+    sLbAc: z.number(),
+  })
+  .meta({ id: "Application" });
+
+export const treatmentRow = z
+  .object({
+    id: z.number().int(),
+    ...provenanceShape,
+    code: z.string(),
+    name: z.string(),
+    isCheck: z.boolean(),
+    nLbAc: z.number(),
+    p2o5LbAc: z.number(),
+    k2oLbAc: z.number(),
+    sLbAc: z.number(),
+    nutrients: z.array(z.string()),
+    placements: z.array(z.string()),
+    applications: z.array(applicationRow).describe("In CSV: one text cell, applications separated by ' | '"),
+  })
+  .meta({ id: "TreatmentRow" });
+
+export const observationRow = z
+  .object({
+    id: z.number().int(),
+    ...provenanceShape,
+    siteCode: z.string(),
+    siteYearCode: z.string(),
+    crop: z.string(),
+    year: z.number().int(),
+    treatmentCode: z.string(),
+    isCheck: z.boolean(),
+    plot: z.string(),
+    block: z.number().int(),
+    yield: z.number().nullable().describe("Plot yield in `yieldUnit` at the standard moisture; null when not harvested"),
+    ...yieldUnitShape,
+    harvestMoisturePct: z.number().nullable().describe("As reported at harvest"),
+    standCount: z.number().nullable(),
+    vigour: z.number().nullable(),
+    testWeight: z.number().nullable(),
+  })
+  .meta({ id: "ObservationRow" });
+
+export const responseRow = z
+  .object({
+    id: z.number().int(),
+    ...provenanceShape,
+    siteCode: z.string(),
+    siteYearCode: z.string(),
+    treatmentCode: z.string(),
+    checkTreatmentCode: z.string(),
+    crop: z.string(),
+    year: z.number().int(),
+    tillage: z.string().nullable(),
+    rowSpacingIn: z.number().nullable(),
+    plantingDate: z.string().nullable(),
+    nutrients: z.array(z.string()),
+    placements: z.array(z.string()),
+    nLbAc: z.number(),
+    p2o5LbAc: z.number(),
+    k2oLbAc: z.number(),
+    sLbAc: z.number(),
+    soilPClass: z.string().nullable(),
+    soilPValue: z.number().nullable(),
+    soilKClass: z.string().nullable(),
+    soilKValue: z.number().nullable(),
+    soilSClass: z.string().nullable(),
+    soilSValue: z.number().nullable(),
+    ...yieldUnitShape,
+    checkMean: z.number().describe("Mean yield of the check"),
+    treatedMean: z.number(),
+    md: z.number().describe("Mean difference, treated − check"),
+    se: z.number().describe("Standard error of the difference from the site-year's ANOVA"),
+    df: z.number().int().describe("Error degrees of freedom of the site-year's ANOVA"),
+    lnrr: z.number().nullable().describe("ln(treated / check); unitless"),
+    lnrrVar: z.number().nullable(),
+    pValue: z.number().nullable().describe("The site-year's own treatment F-test p value"),
+    lsd05: z.number().nullable().describe("The site-year's Fisher LSD at α = 0.05"),
+    cvPct: z.number().nullable(),
+    replicates: z.number().int(),
+    balanced: z.boolean(),
+    fromSummary: z.boolean().describe("From published means and MSE rather than plots"),
+  })
+  .meta({ id: "ResponseRow" });
+
+export type SiteRow = z.infer<typeof siteRow>;
+export type SiteYearRow = z.infer<typeof siteYearRow>;
+export type TreatmentRow = z.infer<typeof treatmentRow>;
+export type ObservationRow = z.infer<typeof observationRow>;
+export type ResponseRow = z.infer<typeof responseRow>;
+
+export const versionRef = z
+  .object({ dataset: z.string(), version: z.string(), licence: z.string() })
+  .meta({ id: "VersionRef" });
+
+/** One page of rows: the versions they come from (with their licences) and the token of the next page. */
+function page<T extends z.ZodType>(row: T, id: string, withUnits: boolean) {
+  return z
+    .object({
+      items: z.array(row),
+      nextPageToken: z.string().nullable().describe("Pass as `pageToken` for the next page; null on the last page"),
+      versions: z.array(versionRef).describe("The dataset versions these rows are read from"),
+      ...(withUnits ? { units: z.enum(yieldUnits) } : {}),
+    })
+    .meta({ id });
+}
+
+export const sitePage = page(siteRow, "SitePage", false);
+export const siteYearPage = page(siteYearRow, "SiteYearPage", false);
+export const treatmentPage = page(treatmentRow, "TreatmentPage", false);
+export const observationPage = page(observationRow, "ObservationPage", true);
+export const responsePage = page(responseRow, "ResponsePage", true);

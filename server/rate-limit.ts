@@ -1,0 +1,54 @@
+import type { Request, RequestHandler } from "express";
+import { ipKeyGenerator, rateLimit } from "express-rate-limit";
+import type { AppConfig } from "./config";
+import { HttpProblem } from "./errors";
+
+/** Health checks and the OpenAPI document are never limited: monitors and code generators poll them. */
+const exempt = new Set(["/health", "/openapi.json"]);
+
+const windowMs = 60_000;
+
+function tooMany(who: string): RequestHandler {
+  return (_req, res, next) => {
+    // express-rate-limit has set Retry-After (seconds) and the RateLimit headers before calling this.
+    const retryAfter = Number(res.getHeader("Retry-After") ?? windowMs / 1000);
+    next(
+      new HttpProblem(429, "Too many requests", `Over the ${who} rate limit. Wait ${retryAfter} s and try again.`, {
+        retryAfter,
+      }),
+    );
+  };
+}
+
+/**
+ * Per-client API quotas: a low one per address for anonymous callers, a higher one per token (or per signed-in
+ * user for the web app's session). Headers follow the IETF RateLimit draft 8 on every answer. A 304 does not count:
+ * `skipSuccessfulRequests` with "success" meaning exactly a 304 gives back the hit once the answer is sent.
+ */
+export function apiRateLimits(config: Pick<AppConfig, "anonRatePerMinute" | "tokenRatePerMinute">): RequestHandler[] {
+  const common = {
+    windowMs,
+    standardHeaders: "draft-8" as const,
+    legacyHeaders: false,
+    skipSuccessfulRequests: true,
+    requestWasSuccessful: (_req: Request, res: { statusCode: number }) => res.statusCode === 304,
+  };
+  return [
+    rateLimit({
+      ...common,
+      identifier: "anonymous",
+      limit: config.anonRatePerMinute,
+      skip: (req) => exempt.has(req.path) || !!req.user,
+      keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}`,
+      handler: tooMany("anonymous"),
+    }),
+    rateLimit({
+      ...common,
+      identifier: "client",
+      limit: config.tokenRatePerMinute,
+      skip: (req) => exempt.has(req.path) || !req.user,
+      keyGenerator: (req) => (req.auth?.via === "token" && req.auth.tokenId ? `token:${req.auth.tokenId}` : `user:${req.user!.id}`),
+      handler: tooMany("per-client"),
+    }),
+  ];
+}

@@ -1,0 +1,59 @@
+import { Router } from "express";
+import { crossDatasetSiteYearQuery, crossDatasetYieldQuery, observationPage, responsePage, siteYearPage } from "@/schemas/public";
+import type { AppContext } from "@/server/context";
+import { observationResource } from "@/server/services/public/observations";
+import { responseResource } from "@/server/services/public/responses";
+import { siteYearResource } from "@/server/services/public/site-years";
+import { resolveVersions } from "@/server/services/trial-filter";
+import { parseQuery } from "@/server/validate";
+import { rowsRoute } from "./rows-doc";
+import { serveRows } from "./serve-rows";
+
+const resolution =
+  "Reads the latest published version of every dataset, or with `dataset` (and `version`) just that one; " +
+  "every row names its dataset and version, and `versions` lists them with their licences.";
+
+/** Rows across datasets with the shared filters: the same query string as the analyses, so numbers can be re-derived. */
+export function crossDatasetRoutes({ db, registry }: AppContext): Router {
+  const router = Router();
+
+  registry.registerPath(
+    rowsRoute({ path: "/api/v1/responses", tag: "Rows across datasets", summary: "Site-year responses across datasets", description: resolution, query: crossDatasetYieldQuery, page: responsePage, gone: true }),
+  );
+  router.get("/responses", async (req, res) => {
+    const query = parseQuery(crossDatasetYieldQuery, req);
+    const versions = await resolveVersions(db, query);
+    const { dataset: _d, version: _v, ...rest } = query;
+    await serveRows(req, res, { db, resource: responseResource, versions, query: rest, freshness: "moving" });
+  });
+
+  registry.registerPath(
+    rowsRoute({ path: "/api/v1/observations", tag: "Rows across datasets", summary: "Plot observations across datasets", description: resolution, query: crossDatasetYieldQuery, page: observationPage, gone: true }),
+  );
+  router.get("/observations", async (req, res) => {
+    const query = parseQuery(crossDatasetYieldQuery, req);
+    const versions = await resolveVersions(db, query);
+    const { dataset: _d, version: _v, ...rest } = query;
+    await serveRows(req, res, { db, resource: observationResource, versions, query: rest, freshness: "moving" });
+  });
+
+  registry.registerPath(
+    rowsRoute({
+      path: "/api/v1/site-years",
+      tag: "Rows across datasets",
+      summary: "Site-years across datasets, with their soil tests",
+      description: `${resolution} Treatment filters keep the site-years that have a matching response.`,
+      query: crossDatasetSiteYearQuery,
+      page: siteYearPage,
+      gone: true,
+    }),
+  );
+  router.get("/site-years", async (req, res) => {
+    const query = parseQuery(crossDatasetSiteYearQuery, req);
+    const versions = await resolveVersions(db, query);
+    const { dataset: _d, version: _v, ...rest } = query;
+    await serveRows(req, res, { db, resource: siteYearResource, versions, query: rest, freshness: "moving" });
+  });
+
+  return router;
+}
