@@ -1,5 +1,5 @@
-import { Redirect } from "expo-router";
+import { EvidenceScreen } from "@/components/evidence/evidence-screen";
 
-export default function Home() {
-  return <Redirect href="/datasets" />;
+export default function EvidenceRoute() {
+  return <EvidenceScreen />;
 }

@@ -14,5 +14,6 @@ export interface NavItem {
 }
 
 export const navItems: NavItem[] = [
+  { href: "/", label: "Evidence", short: "Evidence", match: (p) => p === "/" },
   { href: "/datasets", label: "Datasets", short: "Datasets", match: (p) => p.startsWith("/datasets") },
 ];

@@ -1,0 +1,67 @@
+import { useState } from "react";
+import { StyleSheet, View, type LayoutChangeEvent } from "react-native";
+import Svg, { G, Line, Text as SvgText } from "react-native-svg";
+import { Text } from "@/components/ui/text";
+import { colors, fonts, soilClassColors, space } from "@/constants/theme";
+import type { ForestRow } from "@/schemas/analysis";
+import { soilTestClasses, soilTestClassLabels } from "@/schemas/filters";
+import { classShapes, Marker } from "./marker";
+import { linearScale, niceDomain } from "./scale";
+
+const height = 250;
+const margin = { left: 48, right: 12, top: 10, bottom: 40 };
+
+/** Response against the soil-test value, one marker per site-year, coloured and shaped by soil-test class. */
+export function SoilTestScatter({ rows, format, unitLabel, summary }: { rows: ForestRow[]; format: (v: number) => string; unitLabel: string; summary: string }) {
+  const [width, setWidth] = useState(280);
+  const onLayout = (e: LayoutChangeEvent) => setWidth(Math.max(260, Math.floor(e.nativeEvent.layout.width)));
+  const points = rows.filter((r): r is ForestRow & { soilTestValue: number } => r.soilTestValue !== null);
+  const analyte = points[0]?.soilTestAnalyte ?? "";
+  const xs = niceDomain(points.map((p) => p.soilTestValue), false);
+  const ys = niceDomain(points.map((p) => p.estimate));
+  const x = linearScale(xs.domain, [margin.left, width - margin.right]);
+  const y = linearScale(ys.domain, [height - margin.bottom, margin.top]);
+  const present = soilTestClasses.filter((c) => points.some((p) => p.soilTestClass === c));
+  return (
+    <View onLayout={onLayout} style={styles.box}>
+      <View role="img" aria-label={summary} testID="soil-scatter">
+        <Svg width={width} height={height} aria-hidden>
+          <Line x1={margin.left} x2={width - margin.right} y1={y(0)} y2={y(0)} stroke={colors.muted} strokeDasharray="4 3" />
+          <Line x1={margin.left} x2={margin.left} y1={margin.top} y2={height - margin.bottom} stroke={colors.muted} />
+          <Line x1={margin.left} x2={width - margin.right} y1={height - margin.bottom} y2={height - margin.bottom} stroke={colors.muted} />
+          {ys.ticks.map((t) => (
+            <SvgText key={`y${t}`} x={margin.left - 4} y={y(t) + 4} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="end">{format(t)}</SvgText>
+          ))}
+          {xs.ticks.map((t) => (
+            <SvgText key={`x${t}`} x={x(t)} y={height - margin.bottom + 15} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">{String(t)}</SvgText>
+          ))}
+          <SvgText x={(margin.left + width) / 2} y={height - 6} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">
+            Soil-test {analyte} (as reported) · response in {unitLabel}
+          </SvgText>
+          <G>
+            {points.map((p) => (
+              <Marker key={p.id} x={x(p.soilTestValue)} y={y(p.estimate)} size={5} shape={classShapes[p.soilTestClass ?? ""] ?? "circle"} fill={soilClassColors[p.soilTestClass ?? ""] ?? colors.muted} />
+            ))}
+          </G>
+        </Svg>
+      </View>
+      <View style={styles.legend} aria-label="Legend">
+        {present.map((c) => (
+          <View key={c} style={styles.legendItem}>
+            <Svg width={16} height={16} aria-hidden>
+              <Marker x={8} y={8} size={5} shape={classShapes[c] ?? "circle"} fill={soilClassColors[c] ?? colors.muted} />
+            </Svg>
+            <Text variant="caption">{soilTestClassLabels[c]}</Text>
+          </View>
+        ))}
+      </View>
+      {points.length < rows.length ? <Text variant="caption">{rows.length - points.length} site-year(s) have no soil-test value and are not plotted.</Text> : null}
+    </View>
+  );
+}
+
+const styles = StyleSheet.create({
+  box: { width: "100%", gap: space.sm },
+  legend: { flexDirection: "row", flexWrap: "wrap", gap: space.md },
+  legendItem: { flexDirection: "row", alignItems: "center", gap: space.xs },
+});

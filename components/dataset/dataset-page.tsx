@@ -1,0 +1,104 @@
+import { router } from "expo-router";
+import { useState } from "react";
+import { StyleSheet, View } from "react-native";
+import { ChoiceChips } from "@/components/evidence/choice-chips";
+import { Screen } from "@/components/screen";
+import { Button } from "@/components/ui/button";
+import { Card } from "@/components/ui/card";
+import { ErrorState, LoadingState } from "@/components/ui/state-views";
+import { Text } from "@/components/ui/text";
+import { colors, space } from "@/constants/theme";
+import { useDatasetDetail, useVersionSchema, versionDownloads } from "@/hooks/use-dataset-page";
+import { shareUrl, defaultEvidenceState } from "@/lib/share-link";
+import type { DatasetDetail, VersionSummary } from "@/schemas/public";
+import { DataDictionary } from "./data-dictionary";
+import { DownloadLink } from "./download-link";
+
+function VersionEntry({ v }: { v: VersionSummary }) {
+  const withdrawn = v.state === "withdrawn";
+  return (
+    <View style={[styles.version, withdrawn && styles.withdrawn]} testID={`version-${v.semver}`}>
+      <Text variant="subheading">
+        v{v.semver} {withdrawn ? "· withdrawn" : ""}
+      </Text>
+      <Text variant="caption">
+        {withdrawn ? `Withdrawn ${v.withdrawnAt?.slice(0, 10) ?? ""}: ${v.withdrawnReason ?? "no reason given"}` : `Published ${v.publishedAt?.slice(0, 10) ?? ""}`}
+        {v.doi ? ` · DOI ${v.doi}` : ""} · {v.licence}
+      </Text>
+      {v.changelog ? <Text>{v.changelog}</Text> : null}
+      {v.checksum && !withdrawn ? <Text variant="caption" selectable>SHA-256 {v.checksum.slice(0, 16)}…</Text> : null}
+    </View>
+  );
+}
+
+function citationText(d: DatasetDetail, v: VersionSummary): string {
+  const creators = d.contributors.filter((c) => c.role === "creator").map((c) => c.name);
+  const year = v.publishedAt?.slice(0, 4) ?? "n.d.";
+  return `${creators.length ? creators.join("; ") : "Plotbank"} (${year}). ${d.title} (Version ${v.semver}) [Data set]. Plotbank.${v.doi ? ` https://doi.org/${v.doi}` : ` ${v.url}`}`;
+}
+
+/** A dataset's public page: what it is, its data dictionary, versions, downloads, licence and citation. */
+export function DatasetPage({ slug }: { slug: string }) {
+  const detail = useDatasetDetail(slug);
+  const published = detail.data?.versions.filter((v) => v.state === "published") ?? [];
+  const [chosen, setChosen] = useState<string | null>(null);
+  const semver = chosen ?? published[0]?.semver ?? null;
+  const schema = useVersionSchema(slug, semver);
+
+  if (detail.isPending) return <Screen title="Dataset"><LoadingState label="Loading the dataset…" /></Screen>;
+  if (detail.isError) return <Screen title="Dataset"><ErrorState error={detail.error} onRetry={() => detail.refetch()} /></Screen>;
+  const d = detail.data;
+  const current = d.versions.find((v) => v.semver === semver) ?? null;
+  const resources = schema.data ? Object.keys(schema.data.resources) : [];
+  const downloads = semver ? versionDownloads(slug, semver, resources) : null;
+  const years = d.yearFrom && d.yearTo ? `${d.yearFrom}–${d.yearTo}` : "no seasons yet";
+  return (
+    <Screen title={d.title} subtitle={`${d.crops.join(", ")} · ${d.region} · ${d.siteYears} site-years · ${years}`}>
+      <Card testID="dataset-metadata">
+        <Text>{d.description}</Text>
+        {d.methods ? <Text variant="caption">Methods: {d.methods}</Text> : null}
+        {d.funding ? <Text variant="caption">Funding: {d.funding}</Text> : null}
+        {d.contributors.length ? <Text variant="caption">Contributors: {d.contributors.map((c) => `${c.name} (${c.role.replace("_", " ")})`).join(", ")}</Text> : null}
+        {d.keywords.length ? <Text variant="caption">Keywords: {d.keywords.join(", ")}</Text> : null}
+        <Text variant="label" testID="dataset-licence">Licence: {d.licence}</Text>
+        <Button
+          label="Analyse this dataset"
+          testID="analyse-dataset"
+          onPress={() => router.push(shareUrl("", { ...defaultEvidenceState, filters: { dataset: slug } }) as never)}
+        />
+      </Card>
+      {published.length > 1 ? (
+        <ChoiceChips label="Version" testID="version-picker" choices={published.map((v) => ({ value: v.semver, label: `v${v.semver}` }))} selected={semver ? [semver] : []} onToggle={setChosen} />
+      ) : null}
+      {current && downloads ? (
+        <Card testID="downloads">
+          <Text variant="heading">Download v{current.semver}</Text>
+          <DownloadLink href={downloads.dataPackage} label="Data Package (datapackage.json + CSV, zip)" testID="download-datapackage" />
+          {downloads.resources.map((r) => (
+            <DownloadLink key={r.resource} href={r.url} label={`${r.resource}.csv`} testID={`download-${r.resource}`} />
+          ))}
+          <Text variant="caption">Licence {current.licence}: reuse with attribution to the citation below.</Text>
+        </Card>
+      ) : null}
+      {current ? (
+        <Card testID="citation">
+          <Text variant="heading">Cite this version</Text>
+          <Text selectable>{citationText(d, current)}</Text>
+        </Card>
+      ) : null}
+      <Card>
+        <Text variant="heading">Data dictionary{semver ? ` (v${semver})` : ""}</Text>
+        {schema.isPending && semver ? <LoadingState label="Loading the data dictionary…" /> : schema.isError ? <ErrorState error={schema.error} onRetry={() => schema.refetch()} /> : schema.data ? <DataDictionary schema={schema.data} /> : <Text variant="caption">No published version yet.</Text>}
+      </Card>
+      <Card testID="versions">
+        <Text variant="heading">Versions</Text>
+        {d.versions.length ? d.versions.map((v) => <VersionEntry key={v.semver} v={v} />) : <Text variant="caption">No published versions.</Text>}
+      </Card>
+    </Screen>
+  );
+}
+
+const styles = StyleSheet.create({
+  version: { gap: 2, paddingVertical: space.sm, borderTopWidth: 1, borderTopColor: colors.line },
+  withdrawn: { backgroundColor: colors.dangerTint, paddingHorizontal: space.sm, borderRadius: 8 },
+});

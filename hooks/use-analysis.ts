@@ -1,0 +1,25 @@
+import { keepPreviousData, queryOptions, useQuery } from "@tanstack/react-query";
+import { staleTimeMs } from "@/constants/theme";
+import { api } from "@/lib/api-client";
+import { metaApiPath, type EvidenceState } from "@/lib/share-link";
+import { metaAnalysisResult } from "@/schemas/analysis";
+
+export const analysisKeys = {
+  all: ["analyses"] as const,
+  metas: () => [...analysisKeys.all, "meta"] as const,
+  meta: (path: string) => [...analysisKeys.metas(), path] as const,
+};
+
+export const metaAnalysisQuery = (state: EvidenceState) => {
+  const path = metaApiPath(state);
+  return queryOptions({
+    queryKey: analysisKeys.meta(path),
+    queryFn: ({ signal }) => api(path, metaAnalysisResult, { signal }),
+    staleTime: staleTimeMs,
+    // Keep the last result on screen while a changed filter loads, so the page does not jump.
+    placeholderData: keepPreviousData,
+    retry: (count, error) => count < 1 && !(error instanceof Error && "status" in error && (error as { status: number }).status === 400),
+  });
+};
+
+export const useMetaAnalysis = (state: EvidenceState) => useQuery(metaAnalysisQuery(state));
