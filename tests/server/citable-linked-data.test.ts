@@ -95,26 +95,39 @@ describe("the DCAT 3 catalogue", () => {
     expect(value(nodes(v2, `${DCT}spatial`)[0]!, "http://www.w3.org/2000/01/rdf-schema#label")).toBe("Tallgrass Basin (invented), temperate uplands");
   });
 
-  it("lists each version's Data Package and CSVs as distributions, with the CSVs' exact size and SHA-256", async () => {
+  it("lists each version's Data Package and CSVs as distributions, with the exact size and SHA-256 of what each download sends", async () => {
     const [catalog] = await expand(JSON.parse((await request(t.app).get("/api/v1/catalog")).text));
     const v2 = nodes(nodes(catalog!, `${DCAT}dataset`)[0]!, `${DCAT}hasVersion`)[1]!;
     const distributions = nodes(v2, `${DCAT}distribution`);
     expect(distributions.every((d) => (d["@type"] as string[]).includes(`${DCAT}Distribution`))).toBe(true);
     const base = "http://plotbank.test/api/v1/datasets/tb-linked/versions/1.1.0";
-    const zip = distributions.find((d) => id(d, `${DCAT}downloadURL`) === `${base}/datapackage.zip`)!;
-    expect(id(zip, `${DCAT}mediaType`)).toBe("https://www.iana.org/assignments/media-types/application/zip");
+    const expected = [
+      [`${base}/datapackage.zip`, "application/zip"],
+      ...["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"].map((r) => [`${base}/resources/${r}.csv`, "text/csv"]),
+    ];
+    expect(distributions.map((d) => [id(d, `${DCAT}downloadURL`), id(d, `${DCAT}mediaType`)?.replace("https://www.iana.org/assignments/media-types/", "")])).toEqual(expected);
 
-    const schema = defaultTableSchema();
-    for (const resource of ["sites", "site_years", "plots"] as const) {
-      const d = distributions.find((x) => id(x, `${DCAT}downloadURL`) === `${base}/resources/${resource}.csv`)!;
-      expect(id(d, `${DCAT}mediaType`)).toBe("https://www.iana.org/assignments/media-types/text/csv");
-      const bytes = await resourceCsv(t.ctx.db, versionIds[1]!, schema, resource);
-      expect(value(d, `${DCAT}byteSize`)).toBe(String(bytes.length));
+    for (const d of distributions) {
+      const url = id(d, `${DCAT}downloadURL`)!;
+      const download = await request(t.app)
+        .get(url.replace("http://plotbank.test", ""))
+        .buffer(true)
+        .parse((res, done) => {
+          const parts: Buffer[] = [];
+          res.on("data", (c: Buffer) => parts.push(c));
+          res.on("end", () => done(null, Buffer.concat(parts)));
+        })
+        .expect(200);
+      const bytes = download.body as Buffer;
+      expect(value(d, `${DCAT}byteSize`), url).toBe(String(bytes.length));
       const checksum = nodes(d, `${SPDX}checksum`)[0]!;
       expect(checksum["@type"]).toEqual([`${SPDX}Checksum`]);
       expect(id(checksum, `${SPDX}algorithm`)).toBe(`${SPDX}checksumAlgorithm_sha256`);
-      expect(value(checksum, `${SPDX}checksumValue`)).toBe(createHash("sha256").update(bytes).digest("hex"));
+      expect(value(checksum, `${SPDX}checksumValue`), url).toBe(createHash("sha256").update(bytes).digest("hex"));
     }
+    // The CSV bytes are the canonical export of the version's rows.
+    const sitesCsv = await resourceCsv(t.ctx.db, versionIds[1]!, defaultTableSchema(), "sites");
+    expect(sitesCsv.toString("utf8")).toContain("TB-01,Tallgrass County (invented)");
   });
 });
 

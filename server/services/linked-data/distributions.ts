@@ -3,6 +3,8 @@ import type { Db } from "@/db/client";
 import type { ResourceName } from "@/schemas/table-schema";
 import type { AppConfig } from "@/server/config";
 import type { CitableVersion } from "@/server/services/citation/citable-version";
+import { versionById } from "@/server/services/curation/access";
+import { dataPackageZip } from "@/server/services/curation/data-package";
 import { resourceCsvChunks, resourceOrder } from "@/server/services/curation/resource-csv";
 
 export interface Distribution {
@@ -28,14 +30,13 @@ const resourceTitles: Record<ResourceName, string> = {
 /** Published versions never change, so the size and digest of a download, once computed, hold for good. */
 const factsCache = new Map<string, { byteSize: number; sha256: string }>();
 
-async function csvFacts(db: Db, version: CitableVersion, resource: ResourceName) {
-  const key = `${version.versionId}/${resource}`;
+async function measure(key: string, version: CitableVersion, chunks: () => AsyncIterable<string | Buffer>) {
   const cached = factsCache.get(key);
   if (cached) return cached;
   const hash = createHash("sha256");
   let byteSize = 0;
-  for await (const chunk of resourceCsvChunks(db, version.versionId, version.tableSchema, resource)) {
-    const bytes = Buffer.from(chunk, "utf8");
+  for await (const chunk of chunks()) {
+    const bytes = typeof chunk === "string" ? Buffer.from(chunk, "utf8") : chunk;
     byteSize += bytes.length;
     hash.update(bytes);
   }
@@ -45,9 +46,19 @@ async function csvFacts(db: Db, version: CitableVersion, resource: ResourceName)
   return facts;
 }
 
+const csvFacts = (db: Db, version: CitableVersion, resource: ResourceName) =>
+  measure(`${version.versionId}/${resource}`, version, () => resourceCsvChunks(db, version.versionId, version.tableSchema, resource));
+
+/** The zip the download route streams: the same builder, so the same bytes (its entries carry the publication time). */
+const zipFacts = (db: Db, config: AppConfig, version: CitableVersion) =>
+  measure(`${version.versionId}/datapackage.zip@${config.publicUrl}`, version, async function* () {
+    const { dataset, version: row } = await versionById(db, version.versionId);
+    yield* (await dataPackageZip(db, config.publicUrl, dataset, row)) as AsyncIterable<Buffer>;
+  });
+
 /**
  * The downloads of one published version: its Data Package (zip) and one canonical CSV per resource in its data
- * dictionary. CSV sizes and digests come from generating the same bytes the CSV download streams.
+ * dictionary. Sizes and digests come from generating the same bytes the downloads send.
  */
 export async function versionDistributions(db: Db, config: AppConfig, slug: string, version: CitableVersion): Promise<Distribution[]> {
   const base = `${config.publicUrl}/api/v1/datasets/${encodeURIComponent(slug)}/versions/${encodeURIComponent(version.semver)}`;
@@ -67,6 +78,7 @@ export async function versionDistributions(db: Db, config: AppConfig, slug: stri
       downloadUrl: `${base}/datapackage.zip`,
       mediaType: "application/zip",
       conformsTo: "https://specs.frictionlessdata.io/data-package/",
+      ...(await zipFacts(db, config, version)),
     },
     ...csvs,
   ];
