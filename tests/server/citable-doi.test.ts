@@ -1,8 +1,13 @@
+import { mkdtempSync, readFileSync, rmSync } from "node:fs";
+import os from "node:os";
+import path from "node:path";
 import { eq } from "drizzle-orm";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
 import { datasets, versions } from "@/db/schema";
 import { createDataCiteClient, DataCiteRequestError } from "@/server/doi/datacite-client";
 import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacite";
+import { startLocalDataCiteUnlessConfigured } from "@/server/doi/local-datacite";
+import { loadConfig } from "@/server/config";
 import { missingMandatoryProperties, type DataCiteAttributes } from "@/server/doi/datacite-metadata";
 import { retryDelayMs, retryPendingDois } from "@/server/services/citation/doi-registration";
 import { citableFixture } from "@/tests/support/citable-fixture";
@@ -194,5 +199,43 @@ describe("the local DataCite fake", () => {
     const pass = await retryPendingDois(t.ctx, { now: new Date(Date.now() + 24 * 3600_000) });
     expect((await versionRow(id)).doiAttempts).toBe(1);
     expect(pass.failed).toBe(0);
+  });
+});
+
+describe("the fake DOI service as the server runs it", () => {
+  it("starts in-process on a loopback port unless DATACITE_URL is set, and keeps its DOIs across a restart", async () => {
+    const dir = mkdtempSync(path.join(os.tmpdir(), "plotbank-doi-"));
+    try {
+      const config = loadConfig({ NODE_ENV: "test", PLOTBANK_DATA_DIR: path.join(dir, "pglite") } as NodeJS.ProcessEnv);
+      expect(config.datacite.url).toBeUndefined();
+      const running = await startLocalDataCiteUnlessConfigured(config);
+      expect(config.datacite.url).toMatch(/^http:\/\/127\.0\.0\.1:\d+$/);
+      const client = createDataCiteClient({ url: config.datacite.url!, user: config.datacite.user, password: config.datacite.password });
+      const doi = `${config.datacite.prefix}/plotbank.kept.v1.0.0`;
+      await client.createDoi({
+        doi,
+        event: "publish",
+        url: "http://plotbank.test/datasets/kept?version=1.0.0",
+        creators: [{ name: "Tallgrass Basin Agronomy Network" }],
+        titles: [{ title: "Kept" }],
+        publisher: "Plotbank",
+        publicationYear: 2025,
+        types: { resourceTypeGeneral: "Dataset" },
+      });
+      await running.stop();
+      expect(Object.keys(JSON.parse(readFileSync(path.join(dir, "fake-datacite.json"), "utf8")))).toEqual([doi]);
+
+      const again = loadConfig({ NODE_ENV: "test", PLOTBANK_DATA_DIR: path.join(dir, "pglite") } as NodeJS.ProcessEnv);
+      const restarted = await startLocalDataCiteUnlessConfigured(again);
+      const back = createDataCiteClient({ url: again.datacite.url!, user: again.datacite.user, password: again.datacite.password });
+      expect((await back.getDoi(doi)).titles).toEqual([{ title: "Kept" }]);
+      await restarted.stop();
+
+      const real = loadConfig({ NODE_ENV: "test", DATACITE_URL: "http://127.0.0.1:9" } as NodeJS.ProcessEnv);
+      await startLocalDataCiteUnlessConfigured(real);
+      expect(real.datacite.url).toBe("http://127.0.0.1:9");
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
   });
 });
