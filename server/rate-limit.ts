@@ -7,6 +7,7 @@ import { HttpProblem } from "./errors";
 const exempt = new Set(["/health", "/openapi.json"]);
 
 const windowMs = 60_000;
+const readMethods = new Set(["GET", "HEAD", "OPTIONS"]);
 
 function tooMany(who: string): RequestHandler {
   return (_req, res, next) => {
@@ -38,7 +39,9 @@ export function apiRateLimits(config: Pick<AppConfig, "anonRatePerMinute" | "tok
       ...common,
       identifier: "anonymous",
       limit: config.anonRatePerMinute,
-      skip: (req) => exempt.has(req.path) || !!req.user,
+      // Anonymous writes are sign-in, sign-up and resets, which have their own tighter limits; a spent read quota
+      // must not stop someone from signing in to get the higher one.
+      skip: (req) => exempt.has(req.path) || !!req.user || !readMethods.has(req.method),
       keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}`,
       handler: tooMany("anonymous"),
     }),

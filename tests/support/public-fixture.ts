@@ -142,7 +142,12 @@ export const fixtureVersions: VersionSpec[] = [
   { slug: "tb-corn-nk", semver: "1.0.0", crop: "corn", years: [2021, 2022], sites: soySites.slice(1, 3), treatments: cornTreatments, baseKgHa: 11000, seed: 20 },
 ];
 
-const blocks = [1, 2, 3, 4];
+export const blocks = [1, 2, 3, 4];
+
+/** Planting dates spread over May, so the planting-window filters have something to cut. */
+function plantingDateOf(site: SiteSpec, year: number): string {
+  return `${year}-05-${String(1 + ((year + Number(site.code.slice(3)) * 7 + site.rowSpacingIn) % 25)).padStart(2, "0")}`;
+}
 
 const codeField = (name: string) => ({ name, type: "string" as const, constraints: { required: true } });
 /** A small data dictionary; the real default lives with the curation tools. */
@@ -214,7 +219,7 @@ async function insertVersion(ctx: AppContext, ownerId: string, spec: VersionSpec
       .returning();
     for (const year of spec.years) {
       const code = `${site.code}-${year}`;
-      const plantingDate = `${year}-05-${String(1 + ((year + site.code.length * 3 + site.rowSpacingIn) % 25)).padStart(2, "0")}`;
+      const plantingDate = plantingDateOf(site, year);
       const [sy] = await db
         .insert(siteYears)
         .values({
@@ -343,3 +348,59 @@ export async function insertPublicFixture(ctx: AppContext): Promise<PublicFixtur
   }
   return { versionIds };
 }
+
+/** One site-year × treatment of a version as the fixture made it: what a filter test predicts from. */
+export interface ModelCell {
+  dataset: string;
+  version: string;
+  siteCode: string;
+  siteYearCode: string;
+  crop: string;
+  year: number;
+  tillage: string;
+  rowSpacingIn: number;
+  plantingDate: string;
+  treatment: string;
+  isCheck: boolean;
+  nutrients: string[];
+  placements: string[];
+  n: number;
+  p2o5: number;
+  k2o: number;
+  s: number;
+  soilClass: { P: string; K: string; S: null };
+}
+
+/** Every site-year × treatment (checks included) of the named versions. */
+export function modelCells(which: (spec: VersionSpec) => boolean): ModelCell[] {
+  return fixtureVersions.filter(which).flatMap((spec) =>
+    spec.sites.flatMap((site) =>
+      spec.years.flatMap((year) =>
+        spec.treatments.map((t) => ({
+          dataset: spec.slug,
+          version: spec.semver,
+          siteCode: site.code,
+          siteYearCode: `${site.code}-${year}`,
+          crop: spec.crop,
+          year,
+          tillage: site.tillage,
+          rowSpacingIn: site.rowSpacingIn,
+          plantingDate: plantingDateOf(site, year),
+          treatment: t.code,
+          isCheck: !!t.isCheck,
+          nutrients: t.nutrients,
+          placements: t.placements,
+          n: t.n,
+          p2o5: t.p2o5,
+          k2o: t.k2o,
+          s: 0,
+          soilClass: { P: site.pClass, K: site.kClass, S: null },
+        })),
+      ),
+    ),
+  );
+}
+
+/** The versions a cross-dataset read uses by default: the latest published of each dataset. */
+export const isLatestPublished = (spec: VersionSpec) =>
+  !spec.withdraw && !fixtureVersions.some((o) => o.slug === spec.slug && !o.withdraw && o.semver > spec.semver);
