@@ -58,9 +58,16 @@ const zipFacts = (db: Db, config: AppConfig, version: CitableVersion) =>
 
 /**
  * The downloads of one published version: its Data Package (zip) and one canonical CSV per resource in its data
- * dictionary. Sizes and digests come from generating the same bytes the downloads send.
+ * dictionary. Sizes and digests come from generating the same bytes the downloads send (the first time a
+ * version is measured that means building its files; `measure: false` skips it where only the links matter).
  */
-export async function versionDistributions(db: Db, config: AppConfig, slug: string, version: CitableVersion): Promise<Distribution[]> {
+export async function versionDistributions(
+  db: Db,
+  config: AppConfig,
+  slug: string,
+  version: CitableVersion,
+  { measure: withFacts = true }: { measure?: boolean } = {},
+): Promise<Distribution[]> {
   const base = `${config.publicUrl}/api/v1/datasets/${encodeURIComponent(slug)}/versions/${encodeURIComponent(version.semver)}`;
   const resources = resourceOrder.filter((r) => version.tableSchema.resources[r]);
   const csvs = await Promise.all(
@@ -69,7 +76,7 @@ export async function versionDistributions(db: Db, config: AppConfig, slug: stri
       downloadUrl: `${base}/resources/${resource}.csv`,
       mediaType: "text/csv",
       conformsTo: "https://specs.frictionlessdata.io/table-schema/",
-      ...(await csvFacts(db, version, resource)),
+      ...(withFacts ? await csvFacts(db, version, resource) : {}),
     })),
   );
   return [
@@ -78,7 +85,7 @@ export async function versionDistributions(db: Db, config: AppConfig, slug: stri
       downloadUrl: `${base}/datapackage.zip`,
       mediaType: "application/zip",
       conformsTo: "https://specs.frictionlessdata.io/data-package/",
-      ...(await zipFacts(db, config, version)),
+      ...(withFacts ? await zipFacts(db, config, version) : {}),
     },
     ...csvs,
   ];

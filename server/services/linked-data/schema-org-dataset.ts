@@ -17,7 +17,8 @@ export async function schemaOrgDataset(ctx: AppContext, slug: string): Promise<{
   if (!dataset || !version) return undefined;
   const [seasons, distributions] = await Promise.all([
     seasonsByVersion(ctx.db, [version.versionId]),
-    versionDistributions(ctx.db, ctx.config, slug, version),
+    // A page view must not wait for a large version's files to be built just to print their sizes.
+    versionDistributions(ctx.db, ctx.config, slug, version, { measure: false }),
   ]);
   const span = seasons.get(version.versionId);
   const jsonLd: Node = {
@@ -43,8 +44,6 @@ export async function schemaOrgDataset(ctx: AppContext, slug: string): Promise<{
       name: x.title,
       encodingFormat: x.mediaType,
       contentUrl: x.downloadUrl,
-      ...(x.byteSize !== undefined ? { contentSize: `${x.byteSize} B` } : {}),
-      ...(x.sha256 ? { sha256: x.sha256 } : {}),
     })),
     ...(dataset.conceptDoi ? { isPartOf: { "@type": "Dataset", "@id": `https://doi.org/${dataset.conceptDoi}`, name: dataset.title } } : {}),
   };
