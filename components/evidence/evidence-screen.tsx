@@ -13,6 +13,7 @@ import { useMetaAnalysis } from "@/hooks/use-analysis";
 import { useDatasetList } from "@/hooks/use-datasets";
 import { useLayout } from "@/hooks/use-layout";
 import { apiUrl } from "@/lib/api-client";
+import { ApiError } from "@/lib/api-error";
 import { loadPrices, savePrices } from "@/lib/device-storage";
 import { countActiveFilters, evidenceStateFromParams, metaApiPath, routerParams, shareUrl, type EvidenceState, type Prices } from "@/lib/share-link";
 import type { MetaAnalysisResponse } from "@/schemas/analysis";
@@ -162,7 +163,11 @@ export function EvidenceScreen() {
   const active = countActiveFilters(state.filters);
   const filters = <FilterPanel filters={state.filters} onChange={(f) => update({ ...state, filters: f })} years={years} />;
 
-  const body = analysis.isError ? (
+  // Without a network the query pauses rather than fails; say so instead of showing stale numbers as current.
+  const offline = analysis.fetchStatus === "paused";
+  const body = offline ? (
+    <ErrorState error={new ApiError(0, null, "offline")} onRetry={() => analysis.refetch()} />
+  ) : analysis.isError ? (
     <ErrorState error={analysis.error} onRetry={() => analysis.refetch()} />
   ) : !analysis.data ? (
     <LoadingState label="Pooling the site-years…" />

@@ -30,7 +30,7 @@ export function SummaryCard({ result, units, onUnits }: { result: MetaAnalysisRe
           </Text>
           <Text testID="prediction-interval">
             {pooled.predictionInterval
-              ? `A new field: 95 % of site-years like these would fall between ${formatInterval(pooled.predictionInterval.lower, pooled.predictionInterval.upper, u)} ${unitLabel(u)}.`
+              ? `A new field: 95 % of site-years like these would respond by ${formatInterval(pooled.predictionInterval.lower, pooled.predictionInterval.upper, u)} ${unitLabel(u)}.`
               : "A new field: too few site-years for a prediction interval (needs 3 or more)."}
           </Text>
         </>

@@ -127,3 +127,42 @@ export async function insertAnalysisFixture(ctx: AppContext, input: FixtureDatas
   await db.update(versions).set({ state: input.state ?? "published", publishedAt: new Date() }).where(eq(versions.id, versionId));
   return { dataset, versionId, responses: inserted };
 }
+
+/**
+ * A small Tallgrass Basin P-starter set for screens when no demo data are loaded: 24 site-years over six seasons,
+ * three placements against one check, responses larger on low-testing soils. Deterministic (no randomness).
+ */
+export function tallgrassStarterResponses(): FixtureResponse[] {
+  const classes = [
+    { soilPClass: "very_low", soilPValue: 4, base: 420 },
+    { soilPClass: "low", soilPValue: 9, base: 260 },
+    { soilPClass: "optimum", soilPValue: 18, base: 90 },
+    { soilPClass: "high", soilPValue: 30, base: 10 },
+  ];
+  const placements = [
+    { treatment: "IF", placements: ["in-furrow"], factor: 0.8 },
+    { treatment: "BAND", placements: ["2x2-band"], factor: 1 },
+    { treatment: "BC", placements: ["broadcast"], factor: 0.6 },
+  ];
+  const out: FixtureResponse[] = [];
+  for (let i = 0; i < 24; i++) {
+    const c = classes[i % 4]!;
+    const year = 2019 + (i % 6);
+    const wobble = ((i * 37) % 11) - 5;
+    for (const p of placements) {
+      out.push({
+        siteYear: `TB-${String(i + 1).padStart(2, "0")}-${year}`,
+        year,
+        treatment: p.treatment,
+        placements: p.placements,
+        md: c.base * p.factor + wobble * 30,
+        se: 70 + ((i * 13) % 5) * 10,
+        soilPClass: c.soilPClass,
+        soilPValue: c.soilPValue + (i % 3),
+        tillage: i % 2 ? "no-till" : "conventional",
+        rowSpacingIn: i % 3 ? 30 : 15,
+      });
+    }
+  }
+  return out;
+}
