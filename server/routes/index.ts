@@ -7,6 +7,7 @@ import { tokenRoutes } from "./tokens";
 import { citationRoutes } from "./public/citations";
 import { catalogRoutes } from "./public/catalog";
 import { analysisRoutes } from "./analyses";
+import { curationRoutes } from "./curation";
 
 /** Every API route module, mounted under /api/v1. Each documents itself in the registry as it is built. */
 export function apiRoutes(ctx: AppContext): Router {
@@ -18,5 +19,6 @@ export function apiRoutes(ctx: AppContext): Router {
   router.use(analysisRoutes(ctx));
   router.use(citationRoutes(ctx));
   router.use(catalogRoutes(ctx));
+  router.use(curationRoutes(ctx));
   return router;
 }

@@ -1,0 +1,277 @@
+import { z } from "zod";
+import { contributor } from "./dataset-metadata";
+import { datasetSummary, versionState } from "./dataset";
+import { crops } from "./filters";
+import { resourceName, tableSchemaDescriptor } from "./table-schema";
+
+/** Contracts of the curation side: datasets, draft versions, uploads and their reports, review, diffs. */
+
+export const semver = z.string().regex(/^\d+\.\d+\.\d+$/, "a semantic version such as 1.2.0");
+
+export const datasetCreate = z
+  .object({
+    slug: z.string().min(3).max(80).regex(/^[a-z0-9]+(-[a-z0-9]+)*$/, "lower-case words joined by hyphens"),
+    title: z.string().min(3).max(200),
+    crops: z.array(z.enum(crops)).min(1),
+    region: z.string().min(2).max(200),
+    description: z.string().min(1).max(10_000),
+    licence: z.string().min(2).max(40).default("CC-BY-4.0").describe("SPDX identifier; default CC-BY-4.0"),
+    keywords: z.array(z.string().min(1).max(60)).max(40).default([]),
+    contributors: z.array(contributor).max(100).default([]),
+    funding: z.string().max(2000).nullable().optional(),
+    methods: z.string().max(20_000).nullable().optional().describe("Methods and protocol"),
+  })
+  .strict()
+  .meta({ id: "DatasetCreate" });
+export type DatasetCreate = z.input<typeof datasetCreate>;
+
+export const datasetPatch = datasetCreate.omit({ slug: true }).partial().strict().meta({ id: "DatasetPatch" });
+export type DatasetPatch = z.input<typeof datasetPatch>;
+
+export const versionBrief = z
+  .object({
+    id: z.string(),
+    semver,
+    state: versionState,
+    changelog: z.string(),
+    createdAt: z.string(),
+    submittedAt: z.string().nullable(),
+    publishedAt: z.string().nullable(),
+    withdrawnAt: z.string().nullable(),
+  })
+  .meta({ id: "VersionBrief" });
+export type VersionBrief = z.infer<typeof versionBrief>;
+
+export const curationDataset = datasetSummary
+  .pick({ id: true, slug: true, title: true, crops: true, region: true, description: true, licence: true, keywords: true, contributors: true })
+  .extend({
+    funding: z.string().nullable(),
+    methods: z.string().nullable(),
+    ownerId: z.string(),
+    editorIds: z.array(z.string()),
+    canEdit: z.boolean().describe("The signed-in user may edit this dataset's drafts"),
+    versions: z.array(versionBrief).describe("Newest first"),
+    createdAt: z.string(),
+    updatedAt: z.string(),
+  })
+  .meta({ id: "CurationDataset" });
+export type CurationDataset = z.infer<typeof curationDataset>;
+
+export const curationDatasetList = z.object({ items: z.array(curationDataset) }).meta({ id: "CurationDatasetList" });
+
+export const versionCreate = z
+  .object({
+    semver: semver.optional().describe("Default: the next minor version after the latest published one (1.0.0 for a first version)"),
+  })
+  .strict()
+  .meta({ id: "VersionCreate" });
+
+export const resourceCounts = z.record(resourceName, z.number().int()).meta({ id: "ResourceCounts" });
+
+export const uncomputedSiteYear = z
+  .object({ siteYear: z.string(), reason: z.string() })
+  .meta({ id: "UncomputedSiteYear" });
+
+export const uploadBrief = z
+  .object({
+    id: z.string(),
+    resource: resourceName,
+    filename: z.string(),
+    byteSize: z.number().int(),
+    sha256: z.string(),
+    rowCount: z.number().int(),
+    options: z.record(z.string(), z.unknown()),
+    createdAt: z.string(),
+  })
+  .meta({ id: "UploadBrief" });
+
+export const reportBrief = z
+  .object({
+    id: z.string(),
+    resource: resourceName,
+    filename: z.string(),
+    accepted: z.boolean(),
+    errors: z.number().int(),
+    warnings: z.number().int(),
+    createdAt: z.string(),
+  })
+  .meta({ id: "ValidationReportBrief" });
+
+export const versionDetail = z
+  .object({
+    id: z.string(),
+    datasetId: z.string(),
+    datasetSlug: z.string(),
+    datasetTitle: z.string(),
+    semver,
+    state: versionState,
+    changelog: z.string(),
+    tableSchema: tableSchemaDescriptor,
+    metadataSnapshot: z.record(z.string(), z.unknown()).nullable(),
+    checksum: z.string().nullable().describe("sha256:… over the canonical CSV of every resource; set on publish"),
+    basedOnVersionId: z.string().nullable(),
+    basedOnSemver: z.string().nullable(),
+    createdBy: z.string(),
+    submittedBy: z.string().nullable(),
+    reviewedBy: z.string().nullable(),
+    reviewComment: z.string().nullable(),
+    withdrawnReason: z.string().nullable(),
+    createdAt: z.string(),
+    updatedAt: z.string(),
+    submittedAt: z.string().nullable(),
+    publishedAt: z.string().nullable(),
+    withdrawnAt: z.string().nullable(),
+    counts: resourceCounts.nullable().describe("Rows per resource; null for a withdrawn version (tombstone)"),
+    responses: z.number().int().nullable(),
+    uncomputedSiteYears: z.array(uncomputedSiteYear).describe("Site-years without responses, each with the reason"),
+    uploads: z.array(uploadBrief),
+    reports: z.array(reportBrief),
+    canEdit: z.boolean(),
+    canReview: z.boolean(),
+    latestPublishedSemver: z.string().nullable(),
+    suggestedBump: z.enum(["major", "minor", "patch"]).nullable().describe("From the diff against the version it is based on"),
+    suggestedSemver: semver.nullable(),
+  })
+  .meta({ id: "VersionDetail" });
+export type VersionDetail = z.infer<typeof versionDetail>;
+
+export const tableSchemaUpdate = tableSchemaDescriptor;
+
+export const versionPatch = z
+  .object({
+    semver: semver.optional(),
+    changelog: z.string().max(20_000).optional(),
+  })
+  .strict()
+  .meta({ id: "VersionPatch" });
+
+export const severity = z.enum(["error", "warning"]);
+export const validationProblem = z
+  .object({
+    severity,
+    file: z.string(),
+    row: z.number().int().nullable().describe("1-based data row; the header row is not counted (spreadsheet line = row + 1)"),
+    column: z.string().nullable(),
+    value: z.string().nullable(),
+    message: z.string(),
+  })
+  .meta({ id: "ValidationProblem" });
+export type ValidationProblem = z.infer<typeof validationProblem>;
+
+export const validationReport = z
+  .object({
+    id: z.string(),
+    versionId: z.string(),
+    resource: resourceName,
+    filename: z.string(),
+    accepted: z.boolean(),
+    errors: z.number().int(),
+    warnings: z.number().int(),
+    total: z.number().int().describe("Problems matching the filter, before limit"),
+    problems: z.array(validationProblem),
+    createdAt: z.string(),
+  })
+  .meta({ id: "ValidationReport" });
+export type ValidationReport = z.infer<typeof validationReport>;
+
+export const reportQuery = z
+  .object({
+    severity: severity.optional(),
+    column: z.string().max(64).optional(),
+    row: z.coerce.number().int().min(1).optional(),
+    q: z.string().max(200).optional().describe("Text the message must contain"),
+    limit: z.coerce.number().int().min(1).max(10_000).default(500),
+    offset: z.coerce.number().int().min(0).default(0),
+  })
+  .strict();
+
+export const uploadUnits = z
+  .object({
+    yield: z.enum(["kg/ha", "bu/ac", "lb/ac"]).default("kg/ha").describe("Unit of yields in plots and summaries (MSE in its square)"),
+    yieldMoisture: z
+      .enum(["standard", "harvest"])
+      .default("standard")
+      .describe("standard: yields already at the crop's standard moisture; harvest: at the harvest moisture of each plot (needs harvest_moisture_pct)"),
+    soilTest: z.enum(["ppm", "lb/ac"]).default("ppm").describe("Soil-test P/K/S values; lb/ac is converted as ppm × 2 for a 6-inch sample"),
+    gradeBasis: z.enum(["oxide", "element"]).default("oxide").describe("element: the grade gives P and K, converted to P2O5 and K2O"),
+  })
+  .strict()
+  .meta({ id: "UploadUnits" });
+export type UploadUnits = z.infer<typeof uploadUnits>;
+
+export const uploadOptions = z
+  .object({
+    mapping: z.record(z.string(), z.string()).default({}).describe("CSV header → data-dictionary field; unmapped headers match fields by name"),
+    units: uploadUnits.default({ yield: "kg/ha", yieldMoisture: "standard", soilTest: "ppm", gradeBasis: "oxide" }),
+    mode: z
+      .enum(["merge", "replace"])
+      .default("merge")
+      .describe("merge: rows keyed as existing ones replace them (plots, summaries and soil tests per site-year), others are added; replace: the file becomes the whole resource"),
+  })
+  .strict()
+  .meta({ id: "UploadOptions" });
+export type UploadOptions = z.infer<typeof uploadOptions>;
+
+export const uploadResult = z
+  .object({
+    accepted: z.boolean(),
+    reportId: z.string(),
+    uploadId: z.string().nullable(),
+    resource: resourceName,
+    filename: z.string(),
+    rows: z.number().int(),
+    sha256: z.string(),
+    byteSize: z.number().int(),
+    delimiter: z.string(),
+    errors: z.number().int(),
+    warnings: z.number().int(),
+    problems: z.array(validationProblem).describe("The first 200 problems; the report has them all"),
+    responses: z.object({ siteYears: z.number().int(), rows: z.number().int(), uncomputed: z.array(uncomputedSiteYear) }).nullable(),
+  })
+  .meta({ id: "UploadResult" });
+export type UploadResult = z.infer<typeof uploadResult>;
+
+export const submitBody = z.object({ changelog: z.string().trim().min(3).max(20_000) }).strict().meta({ id: "SubmitVersion" });
+export const returnBody = z.object({ comment: z.string().trim().min(3).max(5000) }).strict().meta({ id: "ReturnVersion" });
+export const approveBody = z.object({ comment: z.string().max(5000).optional() }).strict().meta({ id: "ApproveVersion" });
+export const withdrawBody = z.object({ reason: z.string().trim().min(3).max(5000) }).strict().meta({ id: "WithdrawVersion" });
+export const editorsBody = z.object({ email: z.email() }).strict().meta({ id: "DatasetEditor" });
+
+export const bump = z.enum(["major", "minor", "patch"]);
+export const siteYearChange = z.object({ siteYear: z.string(), fields: z.array(z.string()) });
+export const rowChange = z.object({ key: z.string(), change: z.enum(["added", "removed", "changed"]), fields: z.array(z.string()) });
+export const rowDiff = z.object({ added: z.number().int(), removed: z.number().int(), changed: z.number().int(), sample: z.array(rowChange) });
+export const versionDiff = z
+  .object({
+    from: z.object({ id: z.string(), semver, state: versionState }),
+    to: z.object({ id: z.string(), semver, state: versionState }),
+    siteYears: z.object({ added: z.array(z.string()), removed: z.array(z.string()), changed: z.array(siteYearChange) }),
+    rows: z.record(resourceName, rowDiff),
+    schema: z.object({
+      added: z.array(z.string()).describe("resource.field"),
+      removed: z.array(z.string()),
+      changed: z.array(z.object({ field: z.string(), what: z.array(z.string()) })),
+    }),
+    suggestedBump: bump,
+    reasons: z.array(z.string()),
+    suggestedSemver: semver,
+  })
+  .meta({ id: "VersionDiff" });
+export type VersionDiff = z.infer<typeof versionDiff>;
+
+export const diffQuery = z.object({ from: z.uuid(), to: z.uuid() }).strict();
+
+export const reviewQueueItem = z
+  .object({
+    versionId: z.string(),
+    datasetSlug: z.string(),
+    datasetTitle: z.string(),
+    semver,
+    changelog: z.string(),
+    submittedAt: z.string().nullable(),
+    submittedBy: z.string().nullable(),
+    submittedByName: z.string().nullable(),
+    canApprove: z.boolean().describe("False when you created or submitted it"),
+  })
+  .meta({ id: "ReviewQueueItem" });
+export const reviewQueue = z.object({ items: z.array(reviewQueueItem) }).meta({ id: "ReviewQueue" });

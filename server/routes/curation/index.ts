@@ -1,0 +1,16 @@
+import { Router } from "express";
+import type { AppContext } from "@/server/context";
+import { curationDatasetRoutes } from "./datasets";
+import { curationExportRoutes } from "./exports";
+import { curationUploadRoutes } from "./uploads";
+import { curationVersionRoutes } from "./versions";
+
+/** Datasets, drafts, uploads, review and the public downloads of published versions. */
+export function curationRoutes(ctx: AppContext): Router {
+  const router = Router();
+  router.use(curationDatasetRoutes(ctx));
+  router.use(curationVersionRoutes(ctx));
+  router.use(curationUploadRoutes(ctx));
+  router.use(curationExportRoutes(ctx));
+  return router;
+}

@@ -1,0 +1,153 @@
+import busboy from "busboy";
+import type { Request } from "express";
+import { Router } from "express";
+import type { Readable } from "node:stream";
+import { z } from "zod";
+import { uploadOptions, uploadResult, type UploadOptions } from "@/schemas/curation";
+import { resourceName } from "@/schemas/table-schema";
+import type { AppContext } from "@/server/context";
+import { currentUser, requireWriteScope } from "@/server/auth/guards";
+import { HttpProblem, zodProblems } from "@/server/errors";
+import { problemResponses } from "@/server/openapi/registry";
+import { assertCanEdit, versionById } from "@/server/services/curation/access";
+import { tooLarge } from "@/server/services/ingest/csv-stream";
+import { ingestUpload } from "@/server/services/ingest/ingest-upload";
+import { parseParams } from "@/server/validate";
+import { json, security } from "./docs";
+
+const params = z.object({ id: z.uuid(), resource: resourceName });
+const optionQuery = z
+  .object({
+    mapping: z.string().max(20_000).optional().describe('JSON object, CSV header → field, e.g. {"Yield (bu/ac)":"yield_kg_ha"}'),
+    units: z.string().max(2_000).optional().describe('JSON object, e.g. {"yield":"bu/ac","yieldMoisture":"harvest"}'),
+    mode: z.enum(["merge", "replace"]).optional(),
+    filename: z.string().max(200).optional(),
+  })
+  .strict();
+
+/** Options as JSON text (query parameters or multipart fields), parsed with the shared contract. */
+function parseOptions(raw: { mapping?: string; units?: string; mode?: string }, where: string): UploadOptions {
+  const parsed: Record<string, unknown> = {};
+  for (const key of ["mapping", "units"] as const) {
+    if (raw[key] === undefined || raw[key] === "") continue;
+    try {
+      parsed[key] = JSON.parse(raw[key]!);
+    } catch {
+      throw new HttpProblem(400, "Bad request", `${key} must be a JSON object.`, { errors: [{ field: `${where}.${key}`, message: "not valid JSON" }] });
+    }
+  }
+  if (raw.mode) parsed.mode = raw.mode;
+  const result = uploadOptions.safeParse(parsed);
+  if (!result.success) throw new HttpProblem(400, "Bad request", "The upload options are not valid.", { errors: zodProblems(result.error, where) });
+  return result.data;
+}
+
+/** The file part of a multipart body; fields sent before the file are its options. */
+function multipartFile(req: Request, limitBytes: number): Promise<{ stream: Readable; filename: string; fields: Record<string, string> }> {
+  return new Promise((resolve, reject) => {
+    const fields: Record<string, string> = {};
+    let found = false;
+    // One byte over the limit lets the reader see the file is too large (busboy would cut it silently).
+    const bb = busboy({ headers: req.headers, limits: { fileSize: limitBytes + 1, files: 1, fields: 10, fieldSize: 64 * 1024 } });
+    bb.on("field", (name, value) => {
+      fields[name] = value;
+    });
+    bb.on("file", (_name, stream, info) => {
+      found = true;
+      resolve({ stream, filename: info.filename || "upload.csv", fields });
+    });
+    bb.on("error", reject);
+    bb.on("close", () => {
+      if (!found) reject(new HttpProblem(400, "Bad request", "The multipart body has no file part.", { errors: [{ field: "body.file", message: "missing" }] }));
+    });
+    req.pipe(bb);
+  });
+}
+
+export function curationUploadRoutes(ctx: AppContext): Router {
+  const { db, registry, config } = ctx;
+  const router = Router();
+
+  registry.registerPath({
+    method: "post",
+    path: "/api/v1/curation/versions/{id}/uploads/{resource}",
+    tags: ["Curation"],
+    summary: "Upload one resource's CSV into a draft; stored only if the whole file validates",
+    description:
+      "Send multipart/form-data with a `file` part (fields `mapping`, `units`, `mode` before it), or the CSV itself as " +
+      "text/csv with the options as query parameters. UTF-8 (a BOM is fine); comma, semicolon or tab delimited (detected). " +
+      "Problems name the file, the row (1-based data row; the header is not counted, so a spreadsheet's line is row + 1), " +
+      "the column and the value. A rejected file is answered 422 with the same problems and changes nothing in the draft. " +
+      `Files over the upload limit (PLOTBANK_UPLOAD_LIMIT_MB, default 200 MB) get 413.`,
+    security,
+    request: {
+      params,
+      query: optionQuery,
+      body: { content: { "text/csv": { schema: z.string() }, "multipart/form-data": { schema: z.object({ mapping: z.string().optional(), units: z.string().optional(), mode: z.string().optional(), file: z.string() }) } } },
+    },
+    responses: {
+      201: json(uploadResult, "Accepted and stored; responses recomputed"),
+      422: { description: "Rejected: problem+json with `errors` (located problems), `problems`, `reportId` and the file's sha256", content: { "application/problem+json": { schema: uploadResult } } },
+      ...problemResponses(400, 401, 403, 404, 409, 413),
+    },
+  });
+  router.post("/curation/versions/:id/uploads/:resource", requireWriteScope, async (req, res) => {
+    const { id, resource } = parseParams(params, req);
+    const query = optionQuery.safeParse(req.query);
+    if (!query.success) throw new HttpProblem(400, "Bad request", "A query parameter is not valid.", { errors: zodProblems(query.error, "query") });
+    const user = currentUser(req);
+    const { dataset } = await versionById(db, id);
+    await assertCanEdit(db, user, dataset);
+    const declared = Number(req.headers["content-length"] ?? 0);
+    const multipart = req.is("multipart/form-data");
+    // Multipart framing adds a few hundred bytes; anything far beyond the limit is refused before reading it.
+    if (declared > config.uploadLimitBytes + (multipart ? 64 * 1024 : 0)) {
+      req.resume();
+      throw tooLarge(config.uploadLimitBytes);
+    }
+    let source: Readable = req;
+    let filename = query.data.filename ?? `${resource}.csv`;
+    let options: UploadOptions;
+    if (multipart) {
+      const part = await multipartFile(req, config.uploadLimitBytes);
+      source = part.stream;
+      filename = part.filename;
+      options = parseOptions({ ...query.data, ...part.fields }, "body");
+    } else {
+      if (!req.is(["text/csv", "text/plain", "application/octet-stream"])) {
+        req.resume();
+        throw new HttpProblem(415, "Unsupported media type", "Send the CSV as multipart/form-data (field `file`) or as a text/csv body.");
+      }
+      options = parseOptions(query.data, "query");
+    }
+    let result;
+    try {
+      result = await ingestUpload(ctx, { versionId: id, resource, filename, source, options, userId: user.id });
+    } catch (error) {
+      source.resume();
+      req.resume();
+      throw error;
+    }
+    if (result.accepted) {
+      res.status(201).json(result);
+      return;
+    }
+    const { errors, warnings, ...rest } = result;
+    const located = result.problems.filter((p) => p.severity === "error").map((p) => ({
+      file: p.file, row: p.row ?? undefined, column: p.column ?? undefined, value: p.value ?? undefined, message: p.message,
+    }));
+    res.status(422).type("application/problem+json").json({
+      type: "about:blank",
+      title: "Unprocessable content",
+      status: 422,
+      detail: `${filename}: ${errors} error(s) and ${warnings} warning(s); nothing was stored. See report ${result.reportId}.`,
+      instance: req.originalUrl,
+      errors: located,
+      errorCount: errors,
+      warningCount: warnings,
+      ...rest,
+    });
+  });
+
+  return router;
+}

@@ -1,0 +1,63 @@
+import { and, eq } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import { validationReports } from "@/db/schema";
+import type { ValidationProblem, ValidationReport } from "@/schemas/curation";
+import type { ResourceName } from "@/schemas/table-schema";
+import { notFound } from "@/server/errors";
+
+export interface ReportFilter {
+  severity?: "error" | "warning";
+  column?: string;
+  row?: number;
+  q?: string;
+  limit: number;
+  offset: number;
+}
+
+async function load(db: Db, versionId: string, reportId: string) {
+  const [r] = await db.select().from(validationReports).where(and(eq(validationReports.id, reportId), eq(validationReports.versionId, versionId)));
+  if (!r) throw notFound("No such validation report for this version.");
+  return r;
+}
+
+function matches(p: ValidationProblem, f: Omit<ReportFilter, "limit" | "offset">) {
+  if (f.severity && p.severity !== f.severity) return false;
+  if (f.column && p.column !== f.column) return false;
+  if (f.row && p.row !== f.row) return false;
+  if (f.q && !p.message.toLowerCase().includes(f.q.toLowerCase())) return false;
+  return true;
+}
+
+export async function getReport(db: Db, versionId: string, reportId: string, filter: ReportFilter): Promise<ValidationReport> {
+  const r = await load(db, versionId, reportId);
+  const problems = r.problems as unknown as ValidationProblem[];
+  const selected = problems.filter((p) => matches(p, filter));
+  return {
+    id: r.id,
+    versionId: r.versionId,
+    resource: r.resource as ResourceName,
+    filename: r.filename,
+    accepted: r.accepted,
+    errors: problems.filter((p) => p.severity === "error").length,
+    warnings: problems.filter((p) => p.severity === "warning").length,
+    total: selected.length,
+    problems: selected.slice(filter.offset, filter.offset + filter.limit),
+    createdAt: r.createdAt.toISOString(),
+  };
+}
+
+const cell = (v: string | number | null) => {
+  if (v === null) return "";
+  const s = String(v);
+  return /[",\r\n]/.test(s) ? `"${s.replaceAll('"', '""')}"` : s;
+};
+
+/** The report as CSV: severity, file, row (1-based data row, header not counted), column, value, message. */
+export async function reportCsv(db: Db, versionId: string, reportId: string, filter: Omit<ReportFilter, "limit" | "offset">): Promise<string> {
+  const r = await load(db, versionId, reportId);
+  const lines = ["severity,file,row,column,value,message"];
+  for (const p of r.problems as unknown as ValidationProblem[]) {
+    if (matches(p, filter)) lines.push([p.severity, p.file, p.row, p.column, p.value, p.message].map(cell).join(","));
+  }
+  return lines.join("\n") + "\n";
+}

@@ -1,0 +1,124 @@
+import { createHash } from "node:crypto";
+import { sql } from "drizzle-orm";
+import type { Db } from "@/db/client";
+import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
+import type { Tx } from "@/server/services/ingest/write-rows";
+
+/** Resources in the fixed order of exports and of the version checksum. */
+export const resourceOrder: ResourceName[] = ["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"];
+
+interface ResourceQuery {
+  from: string;
+  orderBy: string;
+  /** field → SQL expression over the FROM clause. Every data-dictionary field the database stores is here. */
+  columns: Record<string, string>;
+}
+
+const C = 'COLLATE "C"';
+/** How each resource is read back from the tables as canonical rows (stored units, stable order). */
+export const resourceQueries: Record<ResourceName, ResourceQuery> = {
+  sites: {
+    from: "sites s",
+    orderBy: `s.code ${C}`,
+    columns: { site: "s.code", location: "s.location", soil_series: "s.soil_series", soil_texture: "s.soil_texture" },
+  },
+  site_years: {
+    from: "site_years sy JOIN sites s ON s.id = sy.site_id",
+    orderBy: `sy.code ${C}`,
+    columns: {
+      site_year: "sy.code", site: "s.code", crop: "sy.crop", year: "sy.year", design: "sy.design", blocks: "sy.blocks", tillage: "sy.tillage",
+      previous_crop: "sy.previous_crop", planting_date: "to_char(sy.planting_date, 'YYYY-MM-DD')", row_spacing_in: "sy.row_spacing_in",
+      variety: "sy.variety", maturity_group: "sy.maturity_group",
+    },
+  },
+  soil_tests: {
+    from: "soil_tests st JOIN site_years sy ON sy.id = st.site_year_id",
+    orderBy: `sy.code ${C}, st.analyte ${C}`,
+    columns: {
+      site_year: "sy.code", analyte: "st.analyte", value: "st.value", unit: "st.unit", extractant: "st.extractant", depth_in: "st.depth_in",
+      class: "st.class", interpretation: "st.interpretation",
+    },
+  },
+  treatments: {
+    from: "treatments t LEFT JOIN applications a ON a.treatment_id = t.id",
+    orderBy: `t.code ${C}, a.id`,
+    columns: {
+      treatment: "t.code", name: "t.name", is_check: "t.is_check", application: "row_number() OVER (PARTITION BY t.id ORDER BY a.id)",
+      product: "a.product", grade: "a.grade", product_rate: "a.product_rate", rate_unit: "a.rate_unit", density_lb_gal: "NULL",
+      placement: "a.placement", timing: "a.timing", n_lb_ac: "coalesce(a.n_lb_ac, 0)", p2o5_lb_ac: "coalesce(a.p2o5_lb_ac, 0)",
+      k2o_lb_ac: "coalesce(a.k2o_lb_ac, 0)", s_lb_ac: "coalesce(a.s_lb_ac, 0)",
+    },
+  },
+  plots: {
+    from: "plots p JOIN site_years sy ON sy.id = p.site_year_id JOIN treatments t ON t.id = p.treatment_id",
+    orderBy: `sy.code ${C}, p.plot ${C}`,
+    columns: {
+      site_year: "sy.code", plot: "p.plot", block: "p.block", treatment: "t.code", yield_kg_ha: "p.yield_kg_ha",
+      harvest_moisture_pct: "p.harvest_moisture_pct", stand_count: "p.stand_count", vigour: "p.vigour", test_weight: "p.test_weight",
+    },
+  },
+  summaries: {
+    from: "summary_means m JOIN site_years sy ON sy.id = m.site_year_id JOIN treatments t ON t.id = m.treatment_id",
+    orderBy: `sy.code ${C}, t.code ${C}`,
+    columns: { site_year: "sy.code", treatment: "t.code", mean_kg_ha: "m.mean_kg_ha", replicates: "m.replicates", mse: "m.mse", df_error: "m.df_error" },
+  },
+};
+
+const firstAlias: Record<ResourceName, string> = { sites: "s", site_years: "sy", soil_tests: "st", treatments: "t", plots: "p", summaries: "m" };
+
+function csvCell(v: string | null): string {
+  if (v === null) return "";
+  return /[",\r\n]|^\s|\s$/.test(v) ? `"${v.replaceAll('"', '""')}"` : v;
+}
+
+/** The fields of a resource in the version's data dictionary order. */
+export function fieldsOf(schema: TableSchemaDescriptor, resource: ResourceName): string[] {
+  return (schema.resources[resource]?.fields ?? []).map((f) => f.name).filter((f) => f in resourceQueries[resource].columns);
+}
+
+const PAGE = 100_000;
+
+/**
+ * The canonical CSV of one resource of a version, in pages: header = the data dictionary's fields, values as
+ * PostgreSQL prints them (so PGlite and PostgreSQL give the same bytes), empty for missing.
+ */
+export async function* resourceCsvChunks(db: Db | Tx, versionId: string, schema: TableSchemaDescriptor, resource: ResourceName): AsyncGenerator<string> {
+  const q = resourceQueries[resource];
+  const fields = fieldsOf(schema, resource);
+  yield fields.join(",") + "\n";
+  const select = fields.map((f, i) => `(${q.columns[f]})::text AS c${i}`).join(", ");
+  for (let offset = 0; ; offset += PAGE) {
+    const result = await db.execute(
+      sql.raw(`SELECT ${select} FROM ${q.from} WHERE ${firstAlias[resource]}.version_id = '${versionId.replace(/[^0-9a-f-]/gi, "")}' ORDER BY ${q.orderBy} LIMIT ${PAGE} OFFSET ${offset}`),
+    );
+    const rows = (result as unknown as { rows: Record<string, string | null>[] }).rows;
+    if (rows.length === 0) return;
+    let out = "";
+    for (const row of rows) {
+      let line = "";
+      for (let i = 0; i < fields.length; i++) line += (i ? "," : "") + csvCell(row[`c${i}`] ?? null);
+      out += line + "\n";
+    }
+    yield out;
+    if (rows.length < PAGE) return;
+  }
+}
+
+export async function resourceCsv(db: Db | Tx, versionId: string, schema: TableSchemaDescriptor, resource: ResourceName): Promise<Buffer> {
+  const parts: Buffer[] = [];
+  for await (const chunk of resourceCsvChunks(db, versionId, schema, resource)) parts.push(Buffer.from(chunk, "utf8"));
+  return Buffer.concat(parts);
+}
+
+/**
+ * The version checksum: SHA-256 over, for each resource in `resourceOrder`, its name, a newline and its canonical
+ * CSV. Written as "sha256:<hex>".
+ */
+export async function versionChecksum(db: Db | Tx, versionId: string, schema: TableSchemaDescriptor): Promise<string> {
+  const hash = createHash("sha256");
+  for (const resource of resourceOrder) {
+    hash.update(`${resource}\n`);
+    for await (const chunk of resourceCsvChunks(db, versionId, schema, resource)) hash.update(chunk);
+  }
+  return `sha256:${hash.digest("hex")}`;
+}

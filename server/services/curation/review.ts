@@ -1,0 +1,101 @@
+import { and, asc, count, eq } from "drizzle-orm";
+import { datasets, siteYears, users, versions } from "@/db/schema";
+import type { AppContext } from "@/server/context";
+import { conflict, forbidden } from "@/server/errors";
+import { runPublishHooks } from "@/server/services/publish-hooks";
+import { assertCanEdit, canEditDataset, isReviewer, versionById, type User } from "./access";
+import { versionChecksum } from "./resource-csv";
+import { assertSemverIncreases } from "./versions";
+
+/** Draft → in review. The changelog entry says what the version changes; it is required. */
+export async function submitVersion(ctx: AppContext, user: User, versionId: string, changelog: string) {
+  const { db } = ctx;
+  const { version, dataset } = await versionById(db, versionId);
+  await assertCanEdit(db, user, dataset);
+  if (version.state !== "draft") throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a draft can be submitted.`);
+  await assertSemverIncreases(db, dataset.id, version.semver, "semver");
+  const [n] = await db.select({ n: count() }).from(siteYears).where(eq(siteYears.versionId, versionId));
+  if (!n?.n) throw conflict(`Version ${version.semver} has no site-years yet; upload its data before submitting it.`);
+  const now = new Date();
+  await db.update(versions).set({ state: "in_review", changelog, submittedBy: user.id, submittedAt: now, updatedAt: now, reviewComment: null }).where(and(eq(versions.id, versionId), eq(versions.state, "draft")));
+}
+
+async function reviewable(ctx: AppContext, user: User, versionId: string, verb: string) {
+  if (!isReviewer(user)) throw forbidden(`Only reviewers ${verb} versions.`);
+  const found = await versionById(ctx.db, versionId);
+  if (found.version.state !== "in_review") throw conflict(`Version ${found.version.semver} is ${found.version.state.replace("_", " ")}, not in review.`);
+  return found;
+}
+
+/**
+ * In review → published: the checksum over every resource's canonical CSV and the dataset's metadata are frozen
+ * with the version in one transaction; the publish hooks (DOI, follower notices) run after it commits.
+ */
+export async function approveVersion(ctx: AppContext, user: User, versionId: string, comment?: string) {
+  const { version, dataset } = await reviewable(ctx, user, versionId, "approve");
+  if (user.id === version.createdBy || user.id === version.submittedBy) {
+    throw forbidden("You created or submitted this version, so another reviewer must approve it.");
+  }
+  await assertSemverIncreases(ctx.db, dataset.id, version.semver, "semver");
+  await ctx.db.transaction(async (tx) => {
+    const checksum = await versionChecksum(tx, versionId, version.tableSchema);
+    const [d] = await tx.select().from(datasets).where(eq(datasets.id, dataset.id));
+    const { id: _id, ownerId: _owner, createdAt, updatedAt, ...metadata } = d!;
+    const now = new Date();
+    await tx
+      .update(versions)
+      .set({
+        state: "published",
+        checksum,
+        metadataSnapshot: { ...metadata, datasetCreatedAt: createdAt.toISOString(), metadataUpdatedAt: updatedAt.toISOString() },
+        publishedAt: now,
+        updatedAt: now,
+        reviewedBy: user.id,
+        reviewComment: comment ?? null,
+      })
+      .where(and(eq(versions.id, versionId), eq(versions.state, "in_review")));
+  });
+  await runPublishHooks(ctx, versionId);
+}
+
+/** In review → draft, with the reviewer's comment for the curator. */
+export async function returnVersion(ctx: AppContext, user: User, versionId: string, comment: string) {
+  await reviewable(ctx, user, versionId, "return");
+  await ctx.db
+    .update(versions)
+    .set({ state: "draft", reviewComment: comment, reviewedBy: user.id, updatedAt: new Date() })
+    .where(and(eq(versions.id, versionId), eq(versions.state, "in_review")));
+}
+
+/** Published → withdrawn: a tombstone keeps the metadata and the reason; the rows are no longer served. */
+export async function withdrawVersion(ctx: AppContext, user: User, versionId: string, reason: string) {
+  const { version, dataset } = await versionById(ctx.db, versionId);
+  if (!isReviewer(user) && !(await canEditDataset(ctx.db, user, dataset))) {
+    throw forbidden(`Only reviewers and the editors of dataset "${dataset.slug}" may withdraw its versions.`);
+  }
+  if (version.state !== "published") throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a published version can be withdrawn.`);
+  const now = new Date();
+  await ctx.db.update(versions).set({ state: "withdrawn", withdrawnReason: reason, withdrawnAt: now, updatedAt: now }).where(eq(versions.id, versionId));
+}
+
+export async function reviewQueue(ctx: AppContext, user: User) {
+  if (!isReviewer(user)) throw forbidden("The review queue is for reviewers.");
+  const rows = await ctx.db
+    .select({ v: versions, slug: datasets.slug, title: datasets.title, submitter: users.displayName })
+    .from(versions)
+    .innerJoin(datasets, eq(datasets.id, versions.datasetId))
+    .leftJoin(users, eq(users.id, versions.submittedBy))
+    .where(eq(versions.state, "in_review"))
+    .orderBy(asc(versions.submittedAt));
+  return rows.map((r) => ({
+    versionId: r.v.id,
+    datasetSlug: r.slug,
+    datasetTitle: r.title,
+    semver: r.v.semver,
+    changelog: r.v.changelog,
+    submittedAt: r.v.submittedAt?.toISOString() ?? null,
+    submittedBy: r.v.submittedBy,
+    submittedByName: r.submitter,
+    canApprove: user.id !== r.v.createdBy && user.id !== r.v.submittedBy,
+  }));
+}

@@ -1,0 +1,63 @@
+import { defaultTableSchema } from "@/datasets/default-table-schema";
+import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
+import type { ProblemLocation } from "@/server/errors";
+import { resourceOrder, resourceQueries } from "./resource-csv";
+
+/** Fields the tables cannot do without: keys, references and NOT NULL columns. */
+const essential: Record<ResourceName, string[]> = {
+  sites: ["site", "location"],
+  site_years: ["site_year", "site", "crop", "year", "blocks"],
+  soil_tests: ["site_year", "analyte", "value"],
+  treatments: ["treatment", "name", "is_check", "application"],
+  plots: ["site_year", "plot", "block", "treatment"],
+  summaries: ["site_year", "treatment", "mean_kg_ha", "replicates", "mse", "df_error"],
+};
+
+/**
+ * What a curator may change in a draft's data dictionary: titles, descriptions, units shown, constraints, categories
+ * and missing-value codes; optional fields may be dropped (and added back). Types, keys and the fields the tables
+ * need stay as they are, because the stored columns do.
+ */
+export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocation[] {
+  const base = defaultTableSchema();
+  const problems: ProblemLocation[] = [];
+  for (const resource of resourceOrder) {
+    const r = next.resources[resource];
+    const where = `body.resources.${resource}`;
+    if (!r) {
+      problems.push({ field: where, message: `resource ${resource} is missing` });
+      continue;
+    }
+    const b = base.resources[resource]!;
+    const baseTypes = new Map(b.fields.map((f) => [f.name, f.type]));
+    const names = new Set<string>();
+    r.fields.forEach((f, i) => {
+      if (names.has(f.name)) problems.push({ field: `${where}.fields.${i}.name`, message: `field ${f.name} appears twice` });
+      names.add(f.name);
+      if (!(f.name in resourceQueries[resource].columns)) {
+        problems.push({ field: `${where}.fields.${i}.name`, message: `field ${f.name} is not one Plotbank stores for ${resource}; known fields: ${Object.keys(resourceQueries[resource].columns).join(", ")}` });
+      } else if (baseTypes.get(f.name) !== f.type) {
+        problems.push({ field: `${where}.fields.${i}.type`, message: `field ${f.name} is stored as ${baseTypes.get(f.name)}; its type cannot change` });
+      }
+      const c = f.constraints;
+      if (c?.minimum !== undefined && c.maximum !== undefined && c.minimum > c.maximum) {
+        problems.push({ field: `${where}.fields.${i}.constraints`, message: `minimum ${c.minimum} is above maximum ${c.maximum}` });
+      }
+      if (c?.pattern) {
+        try {
+          new RegExp(c.pattern);
+        } catch {
+          problems.push({ field: `${where}.fields.${i}.constraints.pattern`, message: "not a valid regular expression" });
+        }
+      }
+    });
+    for (const name of essential[resource]) if (!names.has(name)) problems.push({ field: `${where}.fields`, message: `field ${name} cannot be removed: the ${resource} table needs it` });
+    if (JSON.stringify(r.primaryKey ?? null) !== JSON.stringify(b.primaryKey ?? null)) {
+      problems.push({ field: `${where}.primaryKey`, message: `the primary key of ${resource} is ${JSON.stringify(b.primaryKey)} and cannot change` });
+    }
+    if (JSON.stringify(r.foreignKeys ?? null) !== JSON.stringify(b.foreignKeys ?? null)) {
+      problems.push({ field: `${where}.foreignKeys`, message: `the foreign keys of ${resource} cannot change` });
+    }
+  }
+  return problems;
+}

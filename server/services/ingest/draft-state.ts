@@ -1,0 +1,56 @@
+import { eq, sql } from "drizzle-orm";
+import { sites, siteYears, soilTests, summaryMeans, plots, treatments } from "@/db/schema";
+import type { Tx } from "./write-rows";
+
+export interface SiteYearState {
+  id: number;
+  siteId: number;
+  blocks: number;
+  crop: string;
+  design: string;
+  hasPlots: boolean;
+  hasSummaries: boolean;
+  hasSoilTests: boolean;
+}
+
+/** What a draft already holds, as far as validating a new file needs it (keys, blocks, checks, references). */
+export interface DraftState {
+  versionId: string;
+  sites: Map<string, { id: number; used: boolean }>;
+  siteYears: Map<string, SiteYearState>;
+  treatments: Map<string, { id: number; isCheck: boolean; used: boolean }>;
+}
+
+export async function loadDraftState(tx: Tx, versionId: string): Promise<DraftState> {
+  const [siteRows, syRows, trtRows, used] = await Promise.all([
+    tx.select({ id: sites.id, code: sites.code }).from(sites).where(eq(sites.versionId, versionId)),
+    tx
+      .select({
+        id: siteYears.id,
+        code: siteYears.code,
+        siteId: siteYears.siteId,
+        blocks: siteYears.blocks,
+        crop: siteYears.crop,
+        design: siteYears.design,
+        hasPlots: sql<boolean>`exists (select 1 from ${plots} where ${plots.siteYearId} = ${siteYears.id})`,
+        hasSummaries: sql<boolean>`exists (select 1 from ${summaryMeans} where ${summaryMeans.siteYearId} = ${siteYears.id})`,
+        hasSoilTests: sql<boolean>`exists (select 1 from ${soilTests} where ${soilTests.siteYearId} = ${siteYears.id})`,
+      })
+      .from(siteYears)
+      .where(eq(siteYears.versionId, versionId)),
+    tx.select({ id: treatments.id, code: treatments.code, isCheck: treatments.isCheck }).from(treatments).where(eq(treatments.versionId, versionId)),
+    tx.execute<{ treatment_id: number | string }>(
+      sql`select distinct treatment_id from ${plots} where version_id = ${versionId} union select distinct treatment_id from ${summaryMeans} where version_id = ${versionId}`,
+    ),
+  ]);
+  const usedTreatments = new Set(((used as unknown as { rows?: { treatment_id: number | string }[] }).rows ?? (used as unknown as { treatment_id: number | string }[])).map((r) => Number(r.treatment_id)));
+  const usedSites = new Set(syRows.map((s) => s.siteId));
+  return {
+    versionId,
+    sites: new Map(siteRows.map((s) => [s.code, { id: s.id, used: usedSites.has(s.id) }])),
+    siteYears: new Map(
+      syRows.map((s) => [s.code, { id: s.id, siteId: s.siteId, blocks: s.blocks, crop: s.crop, design: s.design, hasPlots: !!s.hasPlots, hasSummaries: !!s.hasSummaries, hasSoilTests: !!s.hasSoilTests }]),
+    ),
+    treatments: new Map(trtRows.map((t) => [t.code, { id: t.id, isCheck: t.isCheck, used: usedTreatments.has(t.id) }])),
+  };
+}

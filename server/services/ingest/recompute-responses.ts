@@ -1,0 +1,119 @@
+import { and, asc, eq, inArray, isNotNull } from "drizzle-orm";
+import type { Database } from "@/db/client";
+import { plots, responses, sites, siteYears, soilTests, summaryMeans, treatments } from "@/db/schema";
+import type { Cell } from "./field-values";
+import type { Affected } from "./resource-ingest";
+import { responsesFromPlots, responsesFromSummaries, type SiteYearOutcome } from "./site-year-responses";
+import { insertRows, type Tx } from "./write-rows";
+
+export interface RecomputeResult {
+  siteYears: number;
+  rows: number;
+  uncomputed: { siteYear: string; reason: string }[];
+}
+
+const RESPONSE_COLUMNS = [
+  "version_id", "site_year_id", "treatment_id", "check_treatment_id", "site_code", "site_year_code", "treatment_code", "crop", "year",
+  "tillage", "row_spacing_in", "planting_date", "nutrients", "placements", "n_lb_ac", "p2o5_lb_ac", "k2o_lb_ac", "s_lb_ac",
+  "soil_p_class", "soil_p_value", "soil_k_class", "soil_k_value", "soil_s_class", "soil_s_value", "check_mean_kg_ha",
+  "treated_mean_kg_ha", "md_kg_ha", "se_kg_ha", "df_error", "lnrr", "lnrr_var", "p_value", "lsd05_kg_ha", "cv_pct",
+  "replicates", "balanced", "from_summary",
+] as const;
+
+/** A PostgreSQL array literal, for COPY and for INSERT alike. */
+const pgArray = (values: string[]) => `{${values.map((v) => `"${v.replaceAll('"', '\\"')}"`).join(",")}}`;
+
+const CHUNK = 400;
+
+/**
+ * Computes the responses of a draft's site-years again (all of them, or those a file touched), inside the upload's
+ * transaction. A site-year whose responses cannot be computed keeps none and is listed with the reason.
+ */
+export async function recomputeResponses(database: Database, tx: Tx, versionId: string, affected: Affected): Promise<RecomputeResult> {
+  const computed = await computeResponses(tx, versionId, affected);
+  if (affected === "all") await tx.delete(responses).where(eq(responses.versionId, versionId));
+  else if (computed.siteYearIds.length) await tx.delete(responses).where(and(eq(responses.versionId, versionId), inArray(responses.siteYearId, computed.siteYearIds)));
+  await insertRows(database, tx, "responses", RESPONSE_COLUMNS, computed.rows);
+  return { siteYears: computed.siteYearIds.length, rows: computed.rows.length, uncomputed: computed.uncomputed };
+}
+
+/** The response rows of a draft's site-years (read only), and the site-years that have none, with the reason. */
+export async function computeResponses(tx: Tx, versionId: string, affected: Affected): Promise<{ siteYearIds: number[]; rows: Cell[][]; uncomputed: RecomputeResult["uncomputed"] }> {
+  const syRows = await tx
+    .select({
+      id: siteYears.id, code: siteYears.code, siteCode: sites.code, crop: siteYears.crop, year: siteYears.year, tillage: siteYears.tillage,
+      rowSpacingIn: siteYears.rowSpacingIn, plantingDate: siteYears.plantingDate,
+    })
+    .from(siteYears)
+    .innerJoin(sites, eq(sites.id, siteYears.siteId))
+    .where(and(eq(siteYears.versionId, versionId), affected === "all" ? undefined : inArray(siteYears.code, affected.siteYearCodes.length ? affected.siteYearCodes : ["\u0000"])))
+    .orderBy(asc(siteYears.code));
+  const siteYearIds = syRows.map((s) => s.id);
+  const rows: Cell[][] = [];
+
+  const trtRows = await tx.select().from(treatments).where(eq(treatments.versionId, versionId));
+  const trtById = new Map(trtRows.map((t) => [t.id, t]));
+  const isCheck = (id: number) => trtById.get(id)?.isCheck === true;
+  const uncomputed: RecomputeResult["uncomputed"] = [];
+
+  for (let start = 0; start < syRows.length; start += CHUNK) {
+    const chunk = syRows.slice(start, start + CHUNK);
+    const chunkIds = chunk.map((s) => s.id);
+    const [plotRows, meanRows, soilRows] = await Promise.all([
+      tx
+        .select({ siteYearId: plots.siteYearId, treatmentId: plots.treatmentId, block: plots.block, y: plots.yieldKgHa })
+        .from(plots)
+        .where(and(inArray(plots.siteYearId, chunkIds), isNotNull(plots.yieldKgHa))),
+      tx.select().from(summaryMeans).where(inArray(summaryMeans.siteYearId, chunkIds)),
+      tx.select().from(soilTests).where(inArray(soilTests.siteYearId, chunkIds)),
+    ]);
+    const plotsBySy = new Map<number, { treatmentId: number; block: number; y: number }[]>();
+    for (const p of plotRows) {
+      let list = plotsBySy.get(p.siteYearId);
+      if (!list) plotsBySy.set(p.siteYearId, (list = []));
+      list.push({ treatmentId: p.treatmentId, block: p.block, y: p.y! });
+    }
+    const meansBySy = new Map<number, typeof meanRows>();
+    for (const m of meanRows) {
+      const list = meansBySy.get(m.siteYearId) ?? [];
+      list.push(m);
+      meansBySy.set(m.siteYearId, list);
+    }
+    const soilBySy = new Map<number, Map<string, { cls: string | null; value: number }>>();
+    for (const s of soilRows) {
+      const m = soilBySy.get(s.siteYearId) ?? new Map();
+      m.set(s.analyte, { cls: s.class, value: s.value });
+      soilBySy.set(s.siteYearId, m);
+    }
+    const out = rows;
+    for (const sy of chunk) {
+      const plotList = plotsBySy.get(sy.id);
+      const meanList = meansBySy.get(sy.id);
+      let outcome: SiteYearOutcome;
+      if (plotList?.length) outcome = responsesFromPlots(plotList, isCheck);
+      else if (meanList?.length)
+        outcome = responsesFromSummaries(
+          meanList.map((m) => ({ treatmentId: m.treatmentId, mean: m.meanKgHa, replicates: m.replicates, mse: m.mse, dfError: m.dfError })),
+          isCheck,
+        );
+      else outcome = { ok: false, reason: "no plots or summary means yet" };
+      if (!outcome.ok) {
+        uncomputed.push({ siteYear: sy.code, reason: outcome.reason });
+        continue;
+      }
+      const soil = soilBySy.get(sy.id);
+      const p = soil?.get("P"), k = soil?.get("K"), s = soil?.get("S");
+      for (const r of outcome.rows) {
+        const t = trtById.get(r.treatmentId)!;
+        out.push([
+          versionId, sy.id, r.treatmentId, r.checkTreatmentId, sy.siteCode, sy.code, t.code, sy.crop, sy.year,
+          sy.tillage, sy.rowSpacingIn, sy.plantingDate, pgArray(t.nutrients), pgArray(t.placements), t.nLbAc, t.p2o5LbAc, t.k2oLbAc, t.sLbAc,
+          p?.cls ?? null, p?.value ?? null, k?.cls ?? null, k?.value ?? null, s?.cls ?? null, s?.value ?? null, r.checkMean,
+          r.treatedMean, r.md, r.se, r.dfError, r.lnrr, r.lnrrVar, r.pValue, r.lsd05, r.cvPct,
+          r.replicates, r.balanced, r.fromSummary,
+        ]);
+      }
+    }
+  }
+  return { siteYearIds, rows, uncomputed };
+}

@@ -1,0 +1,36 @@
+import type { Database } from "@/db/client";
+import type { UploadOptions } from "@/schemas/curation";
+import type { ResourceName } from "@/schemas/table-schema";
+import type { DraftState } from "./draft-state";
+import type { Cell } from "./field-values";
+import type { Reporter } from "./report";
+import type { Tx } from "./write-rows";
+
+/** A parsed row: field name → typed value (null when missing or when the field has no column). */
+export type RowValues = Record<string, Cell>;
+
+export interface IngestContext {
+  state: DraftState;
+  options: UploadOptions;
+  report: Reporter;
+  versionId: string;
+}
+
+/** Which site-years' responses must be computed again after a write. */
+export type Affected = { siteYearCodes: string[] } | "all";
+
+/**
+ * One resource's part of an upload: it checks each parsed row against the domain rules, keeps the canonical rows,
+ * runs the whole-file rules at the end, and writes the rows inside the upload's transaction.
+ */
+export interface ResourceIngest {
+  resource: ResourceName;
+  row(values: RowValues, row: number): void;
+  finish(): void;
+  /** Rows the file contributes (for the upload record). */
+  count(): number;
+  write(database: Database, tx: Tx): Promise<Affected>;
+}
+
+export const str = (v: Cell | undefined): string | null => (v === null || v === undefined ? null : String(v));
+export const num = (v: Cell | undefined): number | null => (typeof v === "number" ? v : null);

@@ -1,0 +1,91 @@
+import { and, eq, inArray } from "drizzle-orm";
+import { plots } from "@/db/schema";
+import { toStandardMoisture, yieldFactorToKgHa } from "../edge-units";
+import type { Cell } from "../field-values";
+import { num, str, type IngestContext, type ResourceIngest } from "../resource-ingest";
+import { insertRows } from "../write-rows";
+import { balanceRule, checkRule, newTally, outlierRule, type SiteYearTally } from "./site-year-rules";
+
+/** Plausible grain moisture at harvest, % wet basis (common practice, no source). */
+const MOISTURE_MIN = 5;
+const MOISTURE_MAX = 40;
+
+export function plotsIngest({ state, options, report, versionId }: IngestContext): ResourceIngest {
+  const keys = new Set<string>();
+  const tallies = new Map<string, SiteYearTally & { factor: number; crop: string; blocks: number; rcbd: boolean; id: number }>();
+  const out: Cell[][] = [];
+  const harvestBasis = options.units.yieldMoisture === "harvest";
+  return {
+    resource: "plots",
+    row(v, row) {
+      const code = v.site_year as string | null;
+      const plot = v.plot as string | null;
+      const trtCode = v.treatment as string | null;
+      const block = v.block as number | null;
+      if (code === null || plot === null || trtCode === null || block === null) return;
+      let tally = tallies.get(code);
+      if (!tally) {
+        const sy = state.siteYears.get(code);
+        if (!sy) return report.error(row, "site_year", code, `site-year "${code}" is not in this version; upload it in site_years first`);
+        let factor = 1;
+        try {
+          factor = yieldFactorToKgHa(options.units.yield, sy.crop);
+        } catch (error) {
+          return report.error(row, "yield_kg_ha", null, (error as Error).message);
+        }
+        if (sy.hasSummaries) report.error(row, "site_year", code, `site-year "${code}" already has summary means; a site-year has either plots or summaries`);
+        tally = { ...newTally(code, row), factor, crop: sy.crop, blocks: sy.blocks, rcbd: sy.design === "RCBD", id: sy.id };
+        tallies.set(code, tally);
+      }
+      const trt = state.treatments.get(trtCode);
+      if (!trt) return report.error(row, "treatment", trtCode, `treatment "${trtCode}" is not in this version; upload it in treatments first`);
+      if (block > tally.blocks) return report.error(row, "block", String(block), `block ${block} is outside 1–${tally.blocks}, the blocks of site-year "${code}"`);
+      const key = `${code}\u0000${plot}`;
+      if (keys.has(key)) return report.error(row, "plot", plot, `plot "${plot}" appears twice in site-year "${code}" (site_year + plot is the primary key)`);
+      keys.add(key);
+      const moisture = num(v.harvest_moisture_pct);
+      if (moisture !== null && (moisture < MOISTURE_MIN || moisture > MOISTURE_MAX)) {
+        report.error(row, "harvest_moisture_pct", String(moisture), `harvest moisture ${moisture} % is not plausible (expected ${MOISTURE_MIN}–${MOISTURE_MAX} %)`);
+      }
+      let y = num(v.yield_kg_ha);
+      if (y !== null) {
+        y *= tally.factor;
+        if (harvestBasis) {
+          if (moisture === null) {
+            report.error(row, "harvest_moisture_pct", null, "yields are given at harvest moisture, so harvest_moisture_pct is required to move them to standard moisture");
+            y = null;
+          } else if (moisture >= MOISTURE_MIN && moisture <= MOISTURE_MAX) y = toStandardMoisture(y, moisture, tally.crop);
+        }
+      }
+      tally.treatments.add(trtCode);
+      const cell = `${trtCode}|${block}`;
+      const seen = tally.cells.get(cell) ?? 0;
+      if (seen >= 1 && tally.rcbd) {
+        report.error(row, "block", String(block), `treatment "${trtCode}" appears more than once in block ${block} of site-year "${code}"; an RCBD has each treatment once per block`);
+      }
+      if (y !== null) {
+        tally.cells.set(cell, seen + 1);
+        tally.yields.push(y);
+        tally.yieldRows.push(row);
+      } else if (!tally.cells.has(cell)) tally.cells.set(cell, 0);
+      out.push([versionId, tally.id, trt.id, plot, block, y, moisture, num(v.stand_count), num(v.vigour), num(v.test_weight)]);
+    },
+    finish() {
+      for (const tally of tallies.values()) {
+        checkRule(tally, state, report);
+        balanceRule(tally, tally.blocks, report);
+        outlierRule(tally, report);
+      }
+    },
+    count: () => out.length,
+    async write(database, tx) {
+      if (options.mode === "replace") await tx.delete(plots).where(eq(plots.versionId, versionId));
+      else {
+        const ids = [...tallies.values()].filter((t) => state.siteYears.get(t.code)?.hasPlots).map((t) => t.id);
+        if (ids.length) await tx.delete(plots).where(and(eq(plots.versionId, versionId), inArray(plots.siteYearId, ids)));
+      }
+      await insertRows(database, tx, "plots", ["version_id", "site_year_id", "treatment_id", "plot", "block", "yield_kg_ha", "harvest_moisture_pct", "stand_count", "vigour", "test_weight"], out);
+      return options.mode === "replace" ? "all" : { siteYearCodes: [...tallies.keys()] };
+    },
+  };
+}

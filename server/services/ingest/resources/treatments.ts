@@ -1,0 +1,148 @@
+import { and, eq, inArray } from "drizzle-orm";
+import { applications, treatments } from "@/db/schema";
+import { nutrientRates, parseFertilizerGrade } from "@/stats";
+import { gradeAsOxides, isFluidUnit, productPoundsPerAcre, typicalDensity } from "../edge-units";
+import type { Cell } from "../field-values";
+import { num, str, type IngestContext, type ResourceIngest } from "../resource-ingest";
+import { insertRows } from "../write-rows";
+
+interface Application {
+  product: string;
+  grade: string;
+  productRate: number;
+  rateUnit: string;
+  placement: string;
+  timing: string;
+  n: number;
+  p2o5: number;
+  k2o: number;
+  s: number;
+}
+
+interface TreatmentRow {
+  code: string;
+  name: string;
+  isCheck: boolean;
+  firstRow: number;
+  applications: Map<number, Application>;
+}
+
+const round = (x: number) => Math.round(x * 1000) / 1000;
+const required = ["product", "grade", "product_rate", "rate_unit", "placement", "timing"] as const;
+
+export function treatmentsIngest({ state, options, report, versionId }: IngestContext): ResourceIngest {
+  const rows = new Map<string, TreatmentRow>();
+  let count = 0;
+  return {
+    resource: "treatments",
+    row(v, row) {
+      const code = str(v.treatment);
+      const name = str(v.name);
+      if (code === null || name === null || v.is_check === null || v.application === null) return;
+      const isCheck = v.is_check === true;
+      const appNo = num(v.application)!;
+      let t = rows.get(code);
+      if (!t) {
+        t = { code, name, isCheck, firstRow: row, applications: new Map() };
+        rows.set(code, t);
+      } else {
+        if (t.name !== name) report.error(row, "name", name, `treatment "${code}" is called "${t.name}" in data row ${t.firstRow}`);
+        if (t.isCheck !== isCheck) report.error(row, "is_check", String(v.is_check), `treatment "${code}" has is_check ${t.isCheck} in data row ${t.firstRow}`);
+      }
+      if (t.applications.has(appNo) || (isCheck && t.firstRow !== row)) {
+        return report.error(row, "application", String(appNo), `treatment "${code}" already has application ${appNo} (treatment + application is the primary key)`);
+      }
+      count += 1;
+      if (isCheck) {
+        if (v.product !== null || (num(v.product_rate) ?? 0) > 0) {
+          report.error(row, "product", str(v.product), `treatment "${code}" is the untreated check, so it has no product; give it one row with the product blank`);
+        }
+        return;
+      }
+      const missing = required.filter((f) => v[f] === null);
+      for (const f of missing) report.error(row, f, null, `${f} is required for an application of a treatment that is not the check`);
+      if (missing.length) return;
+      const grade = String(v.grade);
+      const unit = String(v.rate_unit);
+      let parsed;
+      try {
+        parsed = gradeAsOxides(parseFertilizerGrade(grade), options.units.gradeBasis);
+      } catch (error) {
+        return report.error(row, "grade", grade, (error as Error).message);
+      }
+      let density = num(v.density_lb_gal);
+      if (isFluidUnit(unit) && density === null) {
+        density = typicalDensity(grade);
+        if (density === null) return report.error(row, "density_lb_gal", null, `a fluid rate (${unit}) of grade ${grade} needs density_lb_gal; no typical density is on file for it`);
+      }
+      const productLbAc = productPoundsPerAcre(num(v.product_rate)!, unit, density);
+      const rates = nutrientRates(productLbAc, parsed);
+      const app: Application = {
+        product: String(v.product),
+        grade,
+        productRate: num(v.product_rate)!,
+        rateUnit: unit,
+        placement: String(v.placement),
+        timing: String(v.timing),
+        n: round(rates.nitrogen),
+        p2o5: round(rates.phosphate),
+        k2o: round(rates.potash),
+        s: round(rates.sulfur),
+      };
+      for (const [field, computed] of [["n_lb_ac", app.n], ["p2o5_lb_ac", app.p2o5], ["k2o_lb_ac", app.k2o], ["s_lb_ac", app.s]] as const) {
+        const given = num(v[field]);
+        if (given !== null && Math.abs(given - computed) > 0.5 + 0.02 * computed) {
+          report.warn(row, field, String(given), `${field} ${given} differs from ${computed} computed from grade ${grade} at ${app.productRate} ${unit}; the computed value is stored`);
+        }
+      }
+      t.applications.set(appNo, app);
+    },
+    finish() {
+      for (const t of rows.values()) {
+        if (!t.isCheck && t.applications.size === 0) report.error(t.firstRow, "treatment", t.code, `treatment "${t.code}" is not the check but has no valid application`);
+      }
+      if (options.mode === "replace") {
+        for (const [code, t] of state.treatments) {
+          if (!rows.has(code) && t.used) report.error(null, "treatment", code, `treatment "${code}" is missing from the file but plots or summaries still use it; remove those first`);
+        }
+      }
+    },
+    count: () => count,
+    async write(database, tx) {
+      const totals = (t: TreatmentRow) => {
+        const apps = [...t.applications.values()];
+        const sum = (k: "n" | "p2o5" | "k2o" | "s") => round(apps.reduce((a, x) => a + x[k], 0));
+        const n = sum("n"), p2o5 = sum("p2o5"), k2o = sum("k2o"), s = sum("s");
+        const nutrients = [n > 0 && "N", p2o5 > 0 && "P", k2o > 0 && "K", s > 0 && "S"].filter((x): x is string => !!x);
+        const placements = [...new Set(apps.map((a) => a.placement))].sort();
+        return { name: t.name, isCheck: t.isCheck, nLbAc: n, p2o5LbAc: p2o5, k2oLbAc: k2o, sLbAc: s, nutrients, placements };
+      };
+      const ids = new Map<string, number>();
+      for (const t of rows.values()) {
+        const values = totals(t);
+        const existing = state.treatments.get(t.code);
+        if (existing) {
+          await tx.update(treatments).set(values).where(eq(treatments.id, existing.id));
+          ids.set(t.code, existing.id);
+        } else {
+          const [inserted] = await tx.insert(treatments).values({ versionId, code: t.code, ...values }).returning({ id: treatments.id });
+          ids.set(t.code, inserted!.id);
+        }
+      }
+      const touched = [...ids.values()];
+      if (touched.length) await tx.delete(applications).where(and(eq(applications.versionId, versionId), inArray(applications.treatmentId, touched)));
+      const appRows: Cell[][] = [];
+      for (const t of rows.values()) {
+        for (const a of [...t.applications.entries()].sort(([x], [y]) => x - y).map(([, a]) => a)) {
+          appRows.push([versionId, ids.get(t.code)!, a.product, a.grade, a.productRate, a.rateUnit, a.placement, a.timing, a.n, a.p2o5, a.k2o, a.s]);
+        }
+      }
+      await insertRows(database, tx, "applications", ["version_id", "treatment_id", "product", "grade", "product_rate", "rate_unit", "placement", "timing", "n_lb_ac", "p2o5_lb_ac", "k2o_lb_ac", "s_lb_ac"], appRows);
+      if (options.mode === "replace") {
+        const gone = [...state.treatments.entries()].filter(([c]) => !rows.has(c)).map(([, t]) => t.id);
+        if (gone.length) await tx.delete(treatments).where(inArray(treatments.id, gone));
+      }
+      return "all";
+    },
+  };
+}
