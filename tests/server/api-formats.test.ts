@@ -144,11 +144,11 @@ describe("cursor paging", () => {
     let url: string | null = "/api/v1/observations?limit=7";
     let pages = 0;
     while (url) {
-      const res = await get(url).expect(200);
+      const res: request.Response = await get(url).expect(200);
       const body = observationPage.parse(res.body);
       expect(body.items.length).toBeLessThanOrEqual(7);
       ids.push(...body.items.map((r) => r.id));
-      const next = (res.headers.link as string | undefined)?.match(/<([^>]+)>; rel="next"/)?.[1] ?? null;
+      const next: string | null = (res.headers.link as string | undefined)?.match(/<([^>]+)>; rel="next"/)?.[1] ?? null;
       expect(next === null).toBe(body.nextPageToken === null);
       url = next;
       pages++;

@@ -90,7 +90,7 @@ async function readAll(endpoint: Endpoint, q: Query, limit = 1000): Promise<stri
   const keys: string[] = [];
   let url: string | null = `/api/v1/${endpoint}?${new URLSearchParams({ ...q, limit: String(limit) })}`;
   while (url) {
-    const res = await request(t.app).get(url).expect(200);
+    const res: request.Response = await request(t.app).get(url).expect(200);
     if (endpoint === "responses") for (const r of responsePage.parse(res.body).items) keys.push(`${r.dataset}@${r.version}/${r.siteYearCode}/${r.treatmentCode}`);
     if (endpoint === "observations") for (const r of observationPage.parse(res.body).items) keys.push(`${r.dataset}@${r.version}/${r.siteYearCode}/${r.treatmentCode}/${r.block}`);
     if (endpoint === "site-years") for (const r of siteYearPage.parse(res.body).items) keys.push(`${r.dataset}@${r.version}/${r.code}`);
