@@ -77,8 +77,8 @@ export function ForestPlot({ rows, pooled, format, unitLabel, summary }: { rows:
             <SvgText x={x(t)} y={plotBottom + 16} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">{format(t)}</SvgText>
           </G>
         ))}
-        <SvgText x={(labelWidth + width) / 2} y={plotBottom + 30} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">
-          Response, {unitLabel} (filled: significant in its own trial)
+        <SvgText x={width / 2} y={plotBottom + 30} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">
+          {unitLabel} · filled = significant on its own
         </SvgText>
       </Svg>
     </View>
