@@ -1,0 +1,107 @@
+import { createHash } from "node:crypto";
+import { inflateRawSync } from "node:zlib";
+import supertest from "supertest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { testApp, type TestApp } from "@/tests/support/test-app";
+import { draftWithData, type Fixture } from "./curation-fixtures";
+
+let t: TestApp;
+let f: Fixture;
+let checksum: string;
+beforeAll(async () => {
+  t = await testApp();
+  f = await draftWithData(t.app, t.ctx);
+  await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
+  const v = await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
+  checksum = v.body.checksum;
+});
+afterAll(() => t.close());
+
+const binary = (res: NodeJS.ReadableStream & { setEncoding(e: string): void }, cb: (err: Error | null, body: Buffer) => void) => {
+  const parts: Buffer[] = [];
+  res.on("data", (c: Buffer) => parts.push(c));
+  res.on("end", () => cb(null, Buffer.concat(parts)));
+};
+
+/** A minimal zip reader (central directory → local header → raw deflate), enough to check what yazl wrote. */
+function unzip(zip: Buffer): Map<string, Buffer> {
+  let eocd = zip.length - 22;
+  while (eocd >= 0 && zip.readUInt32LE(eocd) !== 0x06054b50) eocd--;
+  const entries = zip.readUInt16LE(eocd + 10);
+  let at = zip.readUInt32LE(eocd + 16);
+  const out = new Map<string, Buffer>();
+  for (let i = 0; i < entries; i++) {
+    expect(zip.readUInt32LE(at)).toBe(0x02014b50);
+    const method = zip.readUInt16LE(at + 10);
+    const compressed = zip.readUInt32LE(at + 20);
+    const nameLength = zip.readUInt16LE(at + 28);
+    const extra = zip.readUInt16LE(at + 30);
+    const comment = zip.readUInt16LE(at + 32);
+    const local = zip.readUInt32LE(at + 42);
+    const name = zip.subarray(at + 46, at + 46 + nameLength).toString("utf8");
+    const dataStart = local + 30 + zip.readUInt16LE(local + 26) + zip.readUInt16LE(local + 28);
+    const data = zip.subarray(dataStart, dataStart + compressed);
+    out.set(name, method === 8 ? inflateRawSync(data) : Buffer.from(data));
+    at += 46 + nameLength + extra + comment;
+  }
+  return out;
+}
+
+describe("exports of a published version", () => {
+  it("a Frictionless Data Package zip: datapackage.json with hashes and sizes, and one CSV per resource", async () => {
+    const res = await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.zip`).buffer(true).parse(binary).expect(200);
+    expect(res.headers["content-type"]).toBe("application/zip");
+    const files = unzip(res.body as Buffer);
+    expect([...files.keys()].sort()).toEqual(["data/plots.csv", "data/site_years.csv", "data/sites.csv", "data/soil_tests.csv", "data/summaries.csv", "data/treatments.csv", "datapackage.json"]);
+    const dp = JSON.parse(files.get("datapackage.json")!.toString("utf8"));
+    expect(dp).toMatchObject({ profile: "tabular-data-package", name: f.slug, version: "1.0.0", licenses: [{ name: "CC-BY-4.0" }] });
+    expect(dp.resources).toHaveLength(6);
+    for (const r of dp.resources) {
+      const csv = files.get(r.path)!;
+      expect(r.hash).toBe(`sha256:${createHash("sha256").update(csv).digest("hex")}`);
+      expect(r.bytes).toBe(csv.length);
+      expect(r.schema.fields.map((x: { name: string }) => x.name)).toEqual(csv.toString("utf8").split("\n")[0]!.split(","));
+    }
+    const plots = files.get("data/plots.csv")!.toString("utf8").trim().split("\n");
+    expect(plots).toHaveLength(33);
+    expect(plots[0]).toBe("site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct,stand_count,vigour,test_weight");
+    const treatments = files.get("data/treatments.csv")!.toString("utf8");
+    expect(treatments).toContain("CHK,Untreated check,true,1,,,,,,,,0,0,0,0");
+    // The version checksum is SHA-256 over "<resource>\n" + CSV, in the fixed resource order.
+    const h = createHash("sha256");
+    for (const name of ["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"]) h.update(`${name}\n`).update(files.get(`data/${name}.csv`)!);
+    expect(checksum).toBe(`sha256:${h.digest("hex")}`);
+    expect(dp.plotbank.checksum).toBe(checksum);
+  });
+
+  it("a resource CSV with Digest, a strong ETag, 304 and a describedby link", async () => {
+    const res = await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/resources/plots.csv`).expect(200);
+    const sha = createHash("sha256").update(res.text).digest();
+    expect(res.headers.digest).toBe(`sha-256=${sha.toString("base64")}`);
+    expect(res.headers.etag).toBe(`"${sha.toString("hex")}"`);
+    expect(res.headers.link).toContain(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.json>; rel="describedby"`);
+    await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/resources/plots.csv`).set("If-None-Match", res.headers.etag!).expect(304);
+    const latest = await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/latest/resources/plots.csv`).expect(200);
+    expect(latest.text).toBe(res.text);
+    await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/resources/nothing.csv`).expect(404);
+  });
+
+  it("drafts are not downloadable", async () => {
+    await f.curatorAgent.post(`/api/v1/datasets/${f.slug}/versions`).send({}).expect(201);
+    await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.1.0/datapackage.zip`).expect(404);
+  });
+
+  it("every curation route is in the OpenAPI document", async () => {
+    const doc = await supertest(t.app).get("/api/v1/openapi.json").expect(200);
+    expect(Object.keys(doc.body.paths)).toEqual(
+      expect.arrayContaining([
+        "/api/v1/curation/versions/{id}/uploads/{resource}",
+        "/api/v1/curation/diff",
+        "/api/v1/datasets/{slug}/versions/{semver}/datapackage.zip",
+        "/api/v1/curation/review-queue",
+      ]),
+    );
+    expect(doc.body.components.schemas.VersionDetail).toBeDefined();
+    expect(doc.body.components.schemas.ValidationProblem).toBeDefined();
+  });
+});
