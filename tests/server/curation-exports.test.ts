@@ -17,10 +17,11 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const binary = (res: NodeJS.ReadableStream & { setEncoding(e: string): void }, cb: (err: Error | null, body: Buffer) => void) => {
+const binary = (res: supertest.Response, cb: (err: Error | null, body: Buffer) => void) => {
   const parts: Buffer[] = [];
-  res.on("data", (c: Buffer) => parts.push(c));
-  res.on("end", () => cb(null, Buffer.concat(parts)));
+  const stream = res as unknown as NodeJS.ReadableStream;
+  stream.on("data", (c: Buffer) => parts.push(c));
+  stream.on("end", () => cb(null, Buffer.concat(parts)));
 };
 
 /** A minimal zip reader (central directory → local header → raw deflate), enough to check what yazl wrote. */
