@@ -8,6 +8,7 @@ import { loadConfig } from "./config";
 import { startLocalDataCiteUnlessConfigured } from "./doi/local-datacite";
 import { startDoiRetryLoop } from "./services/citation/doi-registration";
 import { webDistDir } from "./web";
+import { seedDemo } from "@/datasets";
 
 async function main() {
   const config = loadConfig();
@@ -23,6 +24,10 @@ async function main() {
   const { app, ctx } = createApp({ database, config, webDistDir: devProxy ? false : undefined });
   const stopDoiRetries = startDoiRetryLoop(ctx);
   if (devProxy) mountDevProxy(app, devProxy);
+  if (config.demo !== "off") {
+    const demo = await seedDemo(ctx);
+    if (demo.seeded) console.log(`Loaded the Tallgrass Basin demo: ${demo.datasets} datasets, ${demo.versions} versions (accounts *@plotbank.test, password tallgrass-demo-2026).`);
+  }
   const server = app.listen(config.port, config.host, () => {
     const where = config.databaseUrl ? "PostgreSQL (DATABASE_URL)" : `PGlite at ${config.dataDir}`;
     console.log(`Plotbank ${config.version} is serving ${config.publicUrl} (API docs: ${config.publicUrl}/api/docs; database: ${where})`);

@@ -1,0 +1,2 @@
+export { seedDemo, demoAccounts, demoPassword } from "./seed-demo";
+export { defaultTableSchema } from "./default-table-schema";
