@@ -1,0 +1,146 @@
+/**
+ * Ingest benchmark: 1,000,000 plot rows through the upload service (stream parse, Table Schema and domain
+ * validation, COPY into the draft, responses recomputed for every site-year, raw file kept) against PGlite's own
+ * COPY of the same rows into the plots table. Goal: the service at ≥ 0.7× COPY's rows/s, peak RSS < 1 GB.
+ * Run: node --import tsx bench/ingest.ts [rows]   (writes bench/out/ingest.json)
+ */
+import { writeFileSync, mkdirSync } from "node:fs";
+import path from "node:path";
+import { Readable } from "node:stream";
+import { eq } from "drizzle-orm";
+import { migrateDatabase, openDatabase } from "@/db/client";
+import { siteYears, treatments } from "@/db/schema";
+import { mulberry32 } from "@/datasets/prng";
+import type { UploadOptions } from "@/schemas/curation";
+import { createApp } from "@/server/app";
+import { loadConfig } from "@/server/config";
+import { createDataset } from "@/server/services/curation/datasets";
+import { datasetBySlug } from "@/server/services/curation/access";
+import { createVersion } from "@/server/services/curation/versions";
+import { textStream } from "@/server/services/ingest/csv-stream";
+import { ingestUpload } from "@/server/services/ingest/ingest-upload";
+import { createUser } from "@/server/services/users";
+
+const ROWS = Number(process.argv[2] ?? 1_000_000);
+const TREATMENTS = 5;
+const BLOCKS = 20;
+const PER_SITE_YEAR = TREATMENTS * BLOCKS;
+const SITE_YEARS = Math.ceil(ROWS / PER_SITE_YEAR);
+const options: UploadOptions = { mapping: {}, units: { yield: "kg/ha", yieldMoisture: "standard", soilTest: "ppm", gradeBasis: "oxide" }, mode: "merge" };
+
+let peakRss = 0;
+const sampler = setInterval(() => {
+  peakRss = Math.max(peakRss, process.memoryUsage().rss);
+}, 25);
+
+const syCode = (i: number) => `S${String(Math.floor(i / 100)).padStart(4, "0")}-${2000 + (i % 100)}`;
+
+/** The plots file as 64 KiB-ish chunks, never one string. */
+function plotChunks(): Buffer[] {
+  const rng = mulberry32("bench-plots");
+  const chunks: Buffer[] = [Buffer.from("site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct\n")];
+  let lines: string[] = [];
+  for (let r = 0; r < ROWS; r++) {
+    const sy = Math.floor(r / PER_SITE_YEAR);
+    const within = r % PER_SITE_YEAR;
+    const block = Math.floor(within / TREATMENTS) + 1;
+    const t = within % TREATMENTS;
+    lines.push(`${syCode(sy)},${within + 1},${block},T${t},${Math.round(3800 + t * 60 + rng.normal(0, 250))},${(12 + rng.next() * 3).toFixed(1)}`);
+    if (lines.length === 2000) {
+      chunks.push(Buffer.from(lines.join("\n") + "\n"));
+      lines = [];
+    }
+  }
+  if (lines.length) chunks.push(Buffer.from(lines.join("\n") + "\n"));
+  return chunks;
+}
+
+async function prepare() {
+  const database = await openDatabase();
+  await migrateDatabase(database);
+  const config = loadConfig({ NODE_ENV: "production", PLOTBANK_DEMO: "off" } as NodeJS.ProcessEnv, { uploadLimitBytes: 1024 * 1024 * 1024 });
+  const { ctx } = createApp({ database, config, webDistDir: false });
+  const user = await createUser(ctx.db, { email: "bench@plotbank.test", displayName: "Bench", password: "bench-password-2026", role: "curator", verified: true });
+  const u = { id: user.id, email: user.email, displayName: user.displayName, role: user.role } as Express.User;
+  await createDataset(ctx.db, u, { slug: "bench", title: "Bench", crops: ["soybean"], region: "Bench", description: "Benchmark." });
+  const version = await createVersion(ctx, u, await datasetBySlug(ctx.db, "bench"));
+  const up = async (resource: "sites" | "site_years" | "treatments", text: string) => {
+    const r = await ingestUpload(ctx, { versionId: version.id, resource, filename: `${resource}.csv`, source: textStream(text), options, userId: u.id });
+    if (!r.accepted) throw new Error(JSON.stringify(r.problems.slice(0, 3)));
+  };
+  const siteCount = Math.ceil(SITE_YEARS / 100);
+  await up("sites", "site,location\n" + Array.from({ length: siteCount }, (_, i) => `S${String(i).padStart(4, "0")},Bench County`).join("\n") + "\n");
+  await up("treatments", "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\nT0,Check,true,1,,,,,,\n" +
+    Array.from({ length: TREATMENTS - 1 }, (_, i) => `T${i + 1},MAP ${i + 1},false,1,MAP,11-52-0,${50 * (i + 1)},lb/ac,2x2-band,at-planting`).join("\n") + "\n");
+  await up("site_years", "site_year,site,crop,year,blocks\n" + Array.from({ length: SITE_YEARS }, (_, i) => `${syCode(i)},S${String(Math.floor(i / 100)).padStart(4, "0")},soybean,${2000 + (i % 100)},${BLOCKS}`).join("\n") + "\n");
+  return { database, ctx, version, user: u };
+}
+
+async function main() {
+  console.log(`Generating ${ROWS.toLocaleString("en")} plot rows in ${SITE_YEARS.toLocaleString("en")} site-years…`);
+  const chunks = plotChunks();
+  const bytes = chunks.reduce((a, c) => a + c.length, 0);
+
+  // Baseline: PGlite's own COPY of the same rows (ids already resolved), into a draft prepared the same way.
+  const base = await prepare();
+  const sy = new Map((await base.ctx.db.select({ id: siteYears.id, code: siteYears.code }).from(siteYears).where(eq(siteYears.versionId, base.version.id))).map((r) => [r.code, r.id]));
+  const tr = new Map((await base.ctx.db.select({ id: treatments.id, code: treatments.code }).from(treatments).where(eq(treatments.versionId, base.version.id))).map((r) => [r.code, r.id]));
+  const copyParts: string[] = [];
+  for (const chunk of chunks.slice(1)) {
+    let out = "";
+    for (const line of chunk.toString("utf8").split("\n")) {
+      if (!line) continue;
+      const [s, plot, block, t, y, m] = line.split(",");
+      out += `${base.version.id},${sy.get(s!)},${tr.get(t!)},${plot},${block},${y},${m}\n`;
+    }
+    copyParts.push(out);
+  }
+  const copyBlob = new Blob(copyParts);
+  copyParts.length = 0;
+  let started = performance.now();
+  await base.database.pglite!.query("COPY plots (version_id, site_year_id, treatment_id, plot, block, yield_kg_ha, harvest_moisture_pct) FROM '/dev/blob' WITH (FORMAT csv)", [], { blob: copyBlob });
+  const copySeconds = (performance.now() - started) / 1000;
+  await base.database.close();
+
+  // The service: the same file as a stream.
+  const svc = await prepare();
+  if (global.gc) global.gc();
+  peakRss = process.memoryUsage().rss;
+  started = performance.now();
+  const result = await ingestUpload(svc.ctx, { versionId: svc.version.id, resource: "plots", filename: "plots.csv", source: Readable.from(chunks), options, userId: svc.user.id });
+  const serviceSeconds = (performance.now() - started) / 1000;
+  clearInterval(sampler);
+  if (!result.accepted) throw new Error(`refused: ${JSON.stringify(result.problems.slice(0, 3))}`);
+  await svc.database.close();
+
+  const copyRate = ROWS / copySeconds;
+  const serviceRate = ROWS / serviceSeconds;
+  const out = {
+    rows: ROWS,
+    siteYears: SITE_YEARS,
+    fileBytes: bytes,
+    copy: { seconds: copySeconds, rowsPerSecond: copyRate },
+    service: { seconds: serviceSeconds, rowsPerSecond: serviceRate, responses: result.responses?.rows ?? 0, warnings: result.warnings },
+    ratio: serviceRate / copyRate,
+    peakRssMb: peakRss / 1024 / 1024,
+    goals: { ratio: 0.7, peakRssMb: 1024 },
+    node: process.version,
+    at: new Date().toISOString(),
+  };
+  console.log(`
+| what | seconds | rows/s |
+|---|---:|---:|
+| PGlite COPY (ids resolved, no checks) | ${copySeconds.toFixed(2)} | ${Math.round(copyRate).toLocaleString("en")} |
+| ingest service (parse, validate, store, ${out.service.responses.toLocaleString("en")} responses, raw file) | ${serviceSeconds.toFixed(2)} | ${Math.round(serviceRate).toLocaleString("en")} |
+
+ratio service/COPY: **${out.ratio.toFixed(2)}** (goal ≥ 0.7) · peak RSS **${out.peakRssMb.toFixed(0)} MB** (goal < 1024 MB) · file ${(bytes / 1024 / 1024).toFixed(1)} MB
+`);
+  const dir = path.resolve(__dirname, "out");
+  mkdirSync(dir, { recursive: true });
+  writeFileSync(path.join(dir, "ingest.json"), JSON.stringify(out, null, 2) + "\n");
+}
+
+main().catch((error) => {
+  console.error(error);
+  process.exit(1);
+});
