@@ -1,0 +1,82 @@
+import { useLocalSearchParams } from "expo-router";
+import { useState } from "react";
+import { StyleSheet, View } from "react-native";
+import { DictionaryEditor } from "@/components/curation/dictionary-editor";
+import { LinkButton } from "@/components/curation/link-button";
+import { SegmentTabs } from "@/components/curation/segment-tabs";
+import { StateBadge } from "@/components/curation/state-badge";
+import { UploadPanel } from "@/components/curation/upload-panel";
+import { VersionActions } from "@/components/curation/version-actions";
+import { VersionDiffView } from "@/components/curation/version-diff-view";
+import { VersionOverview } from "@/components/curation/version-overview";
+import { WorkbenchGate } from "@/components/curation/workbench-gate";
+import { Screen } from "@/components/screen";
+import { Card } from "@/components/ui/card";
+import { ErrorState, LoadingState } from "@/components/ui/state-views";
+import { Text } from "@/components/ui/text";
+import { colors, space } from "@/constants/theme";
+import { useCurationDataset, useVersion } from "@/hooks/use-curation";
+import type { SessionUser } from "@/hooks/use-session";
+
+type Panel = "overview" | "upload" | "dictionary" | "changes";
+
+function VersionDesk({ id, user }: { id: string; user: SessionUser }) {
+  const version = useVersion(id);
+  const dataset = useCurationDataset(version.data?.datasetSlug ?? "");
+  const [panel, setPanel] = useState<Panel>("overview");
+  if (version.isPending) return <LoadingState label="Loading the version…" />;
+  if (version.isError) return <ErrorState error={version.error} onRetry={() => version.refetch()} />;
+  const v = version.data;
+  const editable = v.canEdit && v.state === "draft";
+  const tabs = [
+    { value: "overview" as const, label: "Overview" },
+    ...(editable ? [{ value: "upload" as const, label: "Upload" }] : []),
+    { value: "dictionary" as const, label: "Data dictionary" },
+    ...(v.basedOnVersionId ? [{ value: "changes" as const, label: `Changes since v${v.basedOnSemver}` }] : []),
+  ];
+  const current = tabs.some((t) => t.value === panel) ? panel : "overview";
+  return (
+    <>
+      <Card>
+        <View style={styles.head}>
+          <Text variant="heading">{v.datasetTitle} · v{v.semver}</Text>
+          <StateBadge state={v.state} />
+        </View>
+        <Text variant="caption">
+          {v.basedOnSemver ? `Based on v${v.basedOnSemver}` : "First version"}
+          {v.latestPublishedSemver ? ` · latest published v${v.latestPublishedSemver}` : " · nothing published yet"}
+          {v.suggestedBump && v.state === "draft" ? ` · suggested number v${v.suggestedSemver} (${v.suggestedBump})` : ""}
+        </Text>
+        {v.changelog ? <Text>{v.changelog}</Text> : null}
+        {v.reviewComment ? (
+          <View style={styles.comment}>
+            <Text variant="subheading">Reviewer's comment</Text>
+            <Text>{v.reviewComment}</Text>
+          </View>
+        ) : null}
+        {v.withdrawnReason ? <Text style={{ color: colors.danger }}>Withdrawn: {v.withdrawnReason}</Text> : null}
+        <LinkButton href={`/curate/datasets/${v.datasetSlug}`} label="All versions of this dataset" tone="quiet" />
+      </Card>
+      <VersionActions version={v} user={user} datasetCanEdit={dataset.data?.canEdit ?? false} />
+      <SegmentTabs label="Version panels" tabs={tabs} value={current} onChange={setPanel} />
+      {current === "overview" ? <VersionOverview version={v} /> : null}
+      {current === "upload" ? <UploadPanel version={v} /> : null}
+      {current === "dictionary" ? <DictionaryEditor version={v} /> : null}
+      {current === "changes" && v.basedOnVersionId ? <VersionDiffView from={v.basedOnVersionId} to={v.id} /> : null}
+    </>
+  );
+}
+
+export default function VersionScreen() {
+  const { id } = useLocalSearchParams<{ id: string }>();
+  return (
+    <Screen title="Version" subtitle="Upload, check, document and submit; reviewers approve or return it.">
+      <WorkbenchGate>{(user) => <VersionDesk id={id} user={user} />}</WorkbenchGate>
+    </Screen>
+  );
+}
+
+const styles = StyleSheet.create({
+  head: { flexDirection: "row", alignItems: "center", gap: space.sm, flexWrap: "wrap" },
+  comment: { padding: space.md, borderRadius: 10, backgroundColor: colors.infoTint, gap: space.xs },
+});

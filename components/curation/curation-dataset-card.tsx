@@ -1,0 +1,41 @@
+import { Link } from "expo-router";
+import { Pressable, StyleSheet, View } from "react-native";
+import { Card } from "@/components/ui/card";
+import { Text } from "@/components/ui/text";
+import { space } from "@/constants/theme";
+import type { CurationDataset } from "@/schemas/curation";
+import { stateLabels } from "./format";
+import { StateBadge } from "./state-badge";
+
+/** A dataset on the workbench: its newest version's state first, then the rest of its history in one line. */
+export function CurationDatasetCard({ dataset }: { dataset: CurationDataset }) {
+  const [newest, ...older] = dataset.versions;
+  return (
+    <Link href={`/curate/datasets/${dataset.slug}` as never} asChild>
+      <Pressable
+        role="link"
+        accessibilityLabel={`${dataset.title}${newest ? `, version ${newest.semver} ${stateLabels[newest.state]}` : ", no versions yet"}`}
+      >
+        <Card>
+          <View style={styles.head}>
+            <Text variant="heading" style={styles.title}>{dataset.title}</Text>
+            {newest ? <StateBadge state={newest.state} /> : null}
+          </View>
+          <Text variant="label">
+            {dataset.slug} · {dataset.crops.join(", ")} · {dataset.region}
+          </Text>
+          <Text variant="caption">
+            {newest ? `v${newest.semver} ${stateLabels[newest.state].toLowerCase()}` : "No versions yet"}
+            {older.length ? ` · earlier: ${older.map((v) => `v${v.semver} ${stateLabels[v.state].toLowerCase()}`).join(", ")}` : ""}
+            {dataset.canEdit ? "" : " · view only"}
+          </Text>
+        </Card>
+      </Pressable>
+    </Link>
+  );
+}
+
+const styles = StyleSheet.create({
+  head: { flexDirection: "row", alignItems: "center", gap: space.sm, flexWrap: "wrap" },
+  title: { flexShrink: 1 },
+});

@@ -1,0 +1,49 @@
+import { StyleSheet, View } from "react-native";
+import { Card } from "@/components/ui/card";
+import { ErrorState, LoadingState } from "@/components/ui/state-views";
+import { Text } from "@/components/ui/text";
+import { colors, space } from "@/constants/theme";
+import { curationPaths, useReport } from "@/hooks/use-curation";
+import { send } from "@/lib/api-client";
+import { resourceLabels } from "./format";
+import { ProblemReportTable } from "./problem-report-table";
+import { saveTextFile } from "./save-text-file";
+
+/** One stored validation report: the verdict, the counts, then every problem. */
+/** "plots-2024.csv" → "plots-2024-report.csv". */
+export const reportFilename = (file: string) => `${file.replace(/\.[^.]+$/, "") || "upload"}-report.csv`;
+
+export function ReportView({ versionId, reportId }: { versionId: string; reportId: string }) {
+  const report = useReport(versionId, reportId);
+  if (report.isPending) return <LoadingState label="Loading the validation report…" />;
+  if (report.isError) return <ErrorState error={report.error} onRetry={() => report.refetch()} />;
+  const r = report.data;
+  return (
+    <Card accessibilityLabel={`Validation report for ${r.filename}`}>
+      <View style={[styles.verdict, r.accepted ? styles.ok : styles.bad]} role="status">
+        <Text variant="subheading" style={{ color: r.accepted ? colors.fieldDark : colors.danger }}>
+          {r.accepted ? `${r.filename} was accepted` : `${r.filename} was not stored`}
+        </Text>
+        <Text>
+          {resourceLabels[r.resource]} · {r.errors} error{r.errors === 1 ? "" : "s"} · {r.warnings} warning{r.warnings === 1 ? "" : "s"}
+          {r.accepted ? "" : ". Nothing from this file was saved: fix the rows below and upload it again."}
+        </Text>
+      </View>
+      <ProblemReportTable
+        problems={r.problems}
+        filename={r.filename}
+        // The server's CSV is the whole report (all problems, not only those loaded here), spreadsheet-safe.
+        onDownload={async () => {
+          const res = await send(curationPaths.reportCsv(versionId, reportId), { headers: { Accept: "text/csv" } });
+          await saveTextFile(reportFilename(r.filename), await res.text());
+        }}
+      />
+    </Card>
+  );
+}
+
+const styles = StyleSheet.create({
+  verdict: { padding: space.md, borderRadius: 10, gap: space.xs },
+  ok: { backgroundColor: colors.fieldTint },
+  bad: { backgroundColor: colors.dangerTint },
+});
