@@ -16,5 +16,6 @@ export interface NavItem {
 export const navItems: NavItem[] = [
   { href: "/", label: "Evidence", short: "Evidence", match: (p) => p === "/" },
   { href: "/datasets", label: "Datasets", short: "Datasets", match: (p) => p.startsWith("/datasets") },
+  { href: "/curate", label: "Workbench", short: "Workbench", roles: ["curator", "reviewer", "admin"], match: (p) => p.startsWith("/curate") },
   { href: "/developers", label: "Developers", short: "API", roles: ["member", "curator", "reviewer", "admin"], match: (p) => p.startsWith("/developers") },
 ];
