@@ -1,5 +1,5 @@
 import { flexRender, type Cell, type Header, type HeaderGroup, type Row, type RowData, type TableFeatures } from "@tanstack/react-table";
-import { ScrollView, StyleSheet, View } from "react-native";
+import { Platform, ScrollView, StyleSheet, View, type TextStyle } from "react-native";
 import { colors, fonts, space } from "@/constants/theme";
 import { Text } from "@/components/ui/text";
 
@@ -17,8 +17,11 @@ function render<P extends object>(renderer: unknown, props: P): React.ReactNode 
   return flexRender(renderer as React.ReactNode, props) as React.ReactNode;
 }
 
+// Inter's contextual alternates draw "20x1" as "20×1"; a data value must show the characters it holds.
+const literal = (Platform.OS === "web" ? { fontFeatureSettings: '"calt" 0' } : {}) as TextStyle;
+
 function renderContent(node: React.ReactNode) {
-  if (typeof node === "string" || typeof node === "number") return <Text style={styles.cellText}>{node}</Text>;
+  if (typeof node === "string" || typeof node === "number") return <Text style={[styles.cellText, literal]}>{node}</Text>;
   return node;
 }
 
