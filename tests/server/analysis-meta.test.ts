@@ -20,10 +20,8 @@ const soybean = kilogramsPerHectarePerBushelPerAcre(60);
 const corn = kilogramsPerHectarePerBushelPerAcre(56);
 
 let t: TestApp;
-const get = async (query: string, status = 200) => {
-  const res = await request(t.app).get(`/api/v1/analyses/meta${query}`).expect(status);
-  return status === 200 ? metaAnalysisResult.parse(res.body) : res.body;
-};
+const get = async (query: string) => metaAnalysisResult.parse((await request(t.app).get(`/api/v1/analyses/meta${query}`).expect(200)).body);
+const problem = async (query: string, status: number) => (await request(t.app).get(`/api/v1/analyses/meta${query}`).expect(status)).body;
 
 // Normand (1999), Stat Med 18:321–359, dat.normand1999 (metafor 3.8-1): yi and vi as responses of nine site-years.
 const normand = JSON.parse(readFileSync("/work/shared/checks/meta_normand1999_md_results.json", "utf8"));
@@ -364,14 +362,14 @@ describe("bad input", () => {
     ["?yearFrom=2022&yearTo=2020", "query.yearTo"],
     ["?cost=10&productCost=5", "query.cost"],
   ])("%s is a 400 naming %s", async (query, field) => {
-    const body = await get(query, 400);
+    const body = await problem(query, 400);
     expect(body.title).toBe("Bad request");
     const named = body.errors.map((e: { field: string; message: string }) => `${e.field} ${e.message}`).join(" | ");
     expect(named).toContain(field === "colour" ? "colour" : field);
   });
 
   it("an unknown dataset is a 404", async () => {
-    const body = await get("?dataset=no-such-dataset", 404);
+    const body = await problem("?dataset=no-such-dataset", 404);
     expect(body.detail).toContain("no-such-dataset");
   });
 });

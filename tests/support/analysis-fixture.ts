@@ -1,4 +1,5 @@
 import { eq } from "drizzle-orm";
+import type { TableSchemaDescriptor } from "@/schemas/table-schema";
 import { datasets, responses, siteYears, sites, treatments, versions } from "@/db/schema";
 import type { AppContext } from "@/server/context";
 import { makeUser } from "./test-app";
@@ -52,7 +53,7 @@ export async function insertAnalysisFixture(ctx: AppContext, input: FixtureDatas
     )[0]!;
   const [version] = await db
     .insert(versions)
-    .values({ datasetId: dataset.id, semver: input.semver ?? "1.0.0", tableSchema: { resources: {} }, createdBy: owner.id })
+    .values({ datasetId: dataset.id, semver: input.semver ?? "1.0.0", tableSchema: { resources: {} } as TableSchemaDescriptor, createdBy: owner.id })
     .returning();
   const versionId = version!.id;
   const siteIds = new Map<string, number>();
