@@ -1,6 +1,7 @@
 import { router } from "expo-router";
 import { useState } from "react";
 import { StyleSheet, View } from "react-native";
+import { CitationPanel } from "@/components/citation-panel";
 import { ChoiceChips } from "@/components/evidence/choice-chips";
 import { Screen } from "@/components/screen";
 import { Button } from "@/components/ui/button";
@@ -10,7 +11,7 @@ import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
 import { useDatasetDetail, useVersionSchema, versionDownloads } from "@/hooks/use-dataset-page";
 import { shareUrl, defaultEvidenceState } from "@/lib/share-link";
-import type { DatasetDetail, VersionSummary } from "@/schemas/public";
+import type { VersionSummary } from "@/schemas/public";
 import { DataDictionary } from "./data-dictionary";
 import { DownloadLink } from "./download-link";
 
@@ -29,12 +30,6 @@ function VersionEntry({ v }: { v: VersionSummary }) {
       {v.checksum && !withdrawn ? <Text variant="caption" selectable>SHA-256 {v.checksum.slice(0, 16)}…</Text> : null}
     </View>
   );
-}
-
-function citationText(d: DatasetDetail, v: VersionSummary): string {
-  const creators = d.contributors.filter((c) => c.role === "creator").map((c) => c.name);
-  const year = v.publishedAt?.slice(0, 4) ?? "n.d.";
-  return `${creators.length ? creators.join("; ") : "Plotbank"} (${year}). ${d.title} (Version ${v.semver}) [Data set]. Plotbank.${v.doi ? ` https://doi.org/${v.doi}` : ` ${v.url}`}`;
 }
 
 /** A dataset's public page: what it is, its data dictionary, versions, downloads, licence and citation. */
@@ -80,10 +75,9 @@ export function DatasetPage({ slug }: { slug: string }) {
           <Text variant="caption">Licence {current.licence}: reuse with attribution to the citation below.</Text>
         </Card>
       ) : null}
-      {current ? (
+      {current && current.state === "published" ? (
         <Card testID="citation">
-          <Text variant="heading">Cite this version</Text>
-          <Text selectable>{citationText(d, current)}</Text>
+          <CitationPanel slug={slug} semver={current.semver} />
         </Card>
       ) : null}
       <Card>

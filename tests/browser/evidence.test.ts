@@ -230,4 +230,29 @@ describe("states of the Evidence screen", () => {
     expect(await firstRow.getAttribute("data-testid")).toBe(`site-year-row-${lowest.siteYearCode}`);
     await context.close();
   });
+
+  it("the dataset page shows metadata, dictionary, versions and downloads, and 'Analyse this dataset' opens the Evidence screen on it", async () => {
+    const list = (await (await fetch(`${server.url}/api/v1/datasets`)).json()) as { items: { slug: string; title: string }[] };
+    const dataset = list.items[0]!;
+    const context = await newContext(browser, phone);
+    const page = await context.newPage();
+    const problems = watchPage(page);
+    await page.goto(`${server.url}/datasets/${dataset.slug}`);
+    await page.getByTestId("dataset-metadata").waitFor({ timeout: 20_000 });
+    expect(await page.getByRole("heading", { name: dataset.title }).count()).toBeGreaterThan(0);
+    expect(await text(page, "dataset-licence")).toMatch(/Licence/);
+    await page.getByTestId("data-dictionary").waitFor();
+    expect(await page.getByTestId("versions").innerText()).toMatch(/v\d+\.\d+\.\d+/);
+    expect(await page.getByTestId("download-datapackage").getAttribute("href")).toMatch(new RegExp(`/api/v1/datasets/${dataset.slug}/versions/.+/datapackage.zip$`));
+    expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(phone.width);
+    await screenshot(page, "dataset-page-phone");
+    await page.getByTestId("analyse-dataset").click();
+    await page.waitForURL(new RegExp(`/\\?dataset=${dataset.slug}$`));
+    await settled(page);
+    const api = await apiFor(page);
+    expect(api.provenance.versions.map((v) => v.dataset)).toEqual([dataset.slug]);
+    expect(await text(page, "k-site-years")).toContain(`${api.k} site-year`);
+    expect(problems).toEqual([]);
+    await context.close();
+  });
 });
