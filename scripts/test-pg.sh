@@ -17,4 +17,5 @@ as_postgres "$PGBIN/pg_ctl -D $WORK/data -l $WORK/server.log -o '-c listen_addre
 stop() { as_postgres "$PGBIN/pg_ctl -D $WORK/data -m fast -w stop >/dev/null" || true; rm -rf "$WORK"; }
 trap stop EXIT
 echo "PostgreSQL $("$PGBIN/postgres" --version | awk '{print $3}') on 127.0.0.1:$PORT"
-PLOTBANK_TEST_DATABASE_URL="postgres://postgres@127.0.0.1:$PORT/postgres" npx vitest run --project server "$@"
+# The parity run repeats every API test; the long property runs use fewer cases there (the PGlite run has the full count).
+FUZZ_UPLOAD_RUNS=${FUZZ_UPLOAD_RUNS:-1000} FUZZ_QUERY_RUNS=${FUZZ_QUERY_RUNS:-1000} PLOTBANK_TEST_DATABASE_URL="postgres://postgres@127.0.0.1:$PORT/postgres" npx vitest run --project server "$@"

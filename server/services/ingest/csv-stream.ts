@@ -15,6 +15,16 @@ export interface CsvReadResult {
   header: string[];
 }
 
+const utf16le = Buffer.from([0xff, 0xfe]);
+const utf16be = Buffer.from([0xfe, 0xff]);
+
+/** The file is not UTF-8 text; say where and what to do, rather than storing text the database cannot hold. */
+function notUtf8(byteOffset: number, why: string): HttpProblem {
+  return new HttpProblem(400, "Bad request", `The file is not UTF-8 text: ${why}, near byte ${byteOffset}. Save it as "CSV UTF-8" and upload it again.`, {
+    errors: [{ field: "file", message: `not UTF-8 text near byte ${byteOffset}` }],
+  });
+}
+
 /** The file is over the upload limit: answered as 413 naming the limit. */
 export function tooLarge(limitBytes: number): HttpProblem {
   const mb = (limitBytes / 1024 / 1024).toFixed(limitBytes < 1024 * 1024 ? 3 : 0);
@@ -47,9 +57,15 @@ export async function readCsvStream(
         overLimit = true;
         return done(tooLarge(limitBytes));
       }
+      const nul = chunk.indexOf(0);
+      if (nul >= 0 || (byteSize === chunk.length && (chunk.subarray(0, 2).equals(utf16le) || chunk.subarray(0, 2).equals(utf16be)))) {
+        return done(notUtf8(byteSize - chunk.length + Math.max(nul, 0), "it holds NUL bytes or a UTF-16 byte-order mark"));
+      }
       hash.update(chunk);
       chunks.push(chunk);
       let s = decoder.write(chunk);
+      const bad = s.indexOf("\uFFFD");
+      if (bad >= 0) return done(notUtf8(byteSize - chunk.length, "it has bytes that are not valid UTF-8 (Latin-1 or Windows-1252, perhaps)"));
       if (first && s.length > 0) {
         first = false;
         if (s.charCodeAt(0) === 0xfeff) s = s.slice(1);
