@@ -2,15 +2,18 @@ import fc from "fast-check";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { crops, nutrients, placements, soilTestClasses, tillages, trialFilterShape } from "@/schemas/filters";
+import { seedDemo } from "@/datasets";
 import { testApp, type TestApp } from "@/tests/support/test-app";
 
 /**
  * Property: no query string, however odd, makes a filtered read answer 5xx; every refusal is problem+json that
- * names a parameter. Runs the real app on a real (empty) database.
+ * names a parameter. Runs the real app on a real database holding the demo data.
  */
 let t: TestApp;
 beforeAll(async () => {
   t = await testApp({ anonRatePerMinute: 1_000_000, tokenRatePerMinute: 1_000_000 });
+  // On the demo data, so the filters really reach the SQL and the statistics.
+  await seedDemo(t.ctx);
 });
 afterAll(() => t.close());
 
