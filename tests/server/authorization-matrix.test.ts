@@ -1,0 +1,379 @@
+/**
+ * Who may call what: every route the Express app registers, called as each kind of caller, against the status this
+ * table expects. A route without a row fails the test, so a new route cannot ship without deciding its access.
+ *
+ * Adding a route: add a row under its "METHOD /api/v1/path" (Express path syntax) with one of the policy helpers
+ * below, and `params`/`body`/`query` builders if the defaults (the fixture dataset's slug, version 1.0.0, …) do not
+ * fit. Each cell gets a fresh fixture dataset and a fresh session, so a cell that changes state never affects another.
+ */
+import { and, eq } from "drizzle-orm";
+import type { Express } from "express";
+import request from "supertest";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { defaultTableSchema } from "@/datasets/default-table-schema";
+import { apiTokens, datasets, emailTokens, outbox, sessions, users, validationReports, versions } from "@/db/schema";
+import { newSecret, sha256Hex } from "@/server/auth/secrets";
+import { createSession, sessionCookieName } from "@/server/auth/sessions";
+import { issueEmailToken } from "@/server/services/accounts/email-tokens";
+import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
+
+const actors = ["anonymous", "member", "curatorOwner", "curatorOther", "reviewer", "admin", "readToken", "writeToken", "revokedToken"] as const;
+type Actor = (typeof actors)[number];
+
+/**
+ * A cell's expectation: an exact status, or
+ * - "ok": any 2xx;
+ * - "pass": got past authorization (not 401/403/404, not 5xx): for routes whose minimal body may still be refused
+ *   on its merits (400, 409, 410, 422);
+ * - "hidden": refused as 403 or 404 (404 where a route hides that the resource exists).
+ */
+type Expectation = number | "ok" | "pass" | "hidden";
+type Cells = Record<Exclude<Actor, "revokedToken">, Expectation> & { revokedToken?: Expectation };
+
+interface Fixture {
+  slug: string;
+  datasetId: string;
+  publishedId: string;
+  draftId: string;
+  inReviewId: string;
+  reportId: string;
+}
+
+interface Cell {
+  actor: Actor;
+  user: typeof users.$inferSelect | null;
+  fx: Fixture;
+  t: TestApp;
+  /** E-mail addresses the caller legitimately learns (the owner of a link they hold); builders add to it. */
+  revealed: string[];
+}
+
+interface Row {
+  expect: Cells;
+  params?: (c: Cell) => Promise<Record<string, string>> | Record<string, string>;
+  body?: (c: Cell) => Promise<unknown> | unknown;
+  query?: (c: Cell) => Record<string, string>;
+}
+
+// Policy helpers: read them as sentences ("signed in, write scope: 200").
+const everyone = (e: Expectation): Cells => ({ anonymous: e, member: e, curatorOwner: e, curatorOther: e, reviewer: e, admin: e, readToken: e, writeToken: e });
+const signedIn = (e: Expectation): Cells => ({ ...everyone(e), anonymous: 401 });
+const signedInWrite = (e: Expectation): Cells => ({ ...signedIn(e), readToken: 403 });
+const sessionOnly = (e: Expectation): Cells => ({ ...signedIn(e), readToken: 403, writeToken: 403 });
+const adminOnly = (e: Expectation): Cells => ({ anonymous: 401, member: 403, curatorOwner: 403, curatorOther: 403, reviewer: 403, admin: e, readToken: 403, writeToken: 403 });
+const reviewerWrite = (e: Expectation): Cells => ({ ...adminOnly(e), reviewer: e });
+/** Changing a dataset: its owner (and editors) and admins; another curator is refused. Tokens belong to the owner. */
+const ownerWrite = (e: Expectation, other: Expectation = 403): Cells => ({
+  anonymous: 401, member: 403, curatorOwner: e, curatorOther: other, reviewer: 403, admin: e, readToken: 403, writeToken: e,
+});
+/** Seeing a draft: its editors, reviewers and admins; everyone else is told it does not exist. */
+const draftView = (e: Expectation, anonymous: Expectation = 404): Cells => ({
+  anonymous, member: 404, curatorOwner: e, curatorOther: 404, reviewer: e, admin: e, readToken: e, writeToken: e,
+});
+
+const fresh = (prefix: string) => `${prefix}-${Math.random().toString(36).slice(2, 10)}`;
+const emailToken = async (c: Cell, purpose: "verify" | "reset" | "invite") => {
+  const user = purpose === "invite" ? null : await makeUser(c.t.ctx, "member");
+  const email = user?.email ?? `${fresh("invitee")}@tallgrass.test`;
+  const { secret } = await issueEmailToken(c.t.ctx.db, { purpose, email, userId: user?.id, role: purpose === "invite" ? "curator" : undefined });
+  c.revealed.push(email);
+  return { secret, email };
+};
+
+const table: Record<string, Row> = {
+  // Health, documents, public catalogue and data: open to all; a revoked token is still refused (401).
+  "GET /api/v1/health": { expect: everyone(200) },
+  "GET /api/v1/openapi.json": { expect: everyone(200) },
+  "GET /api/v1/catalog": { expect: everyone(200) },
+  "GET /api/v1/datasets": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/schema": { expect: everyone("pass") },
+  "GET /api/v1/datasets/:slug/versions/:semver/sites": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/site-years": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/treatments": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/observations": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/responses": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/citation": { expect: everyone("pass") },
+  "GET /api/v1/datasets/:slug/versions/:semver/datapackage.zip": { expect: everyone("pass") },
+  "GET /api/v1/datasets/:slug/versions/:semver/datapackage.json": { expect: everyone("pass") },
+  "GET /api/v1/datasets/:slug/versions/:semver/resources/:resource": { expect: everyone("pass"), params: () => ({ resource: "sites.csv" }) },
+  "GET /api/v1/responses": { expect: everyone(200) },
+  "GET /api/v1/observations": { expect: everyone(200) },
+  "GET /api/v1/site-years": { expect: everyone(200) },
+  "GET /api/v1/analyses/meta": { expect: everyone("pass") },
+
+  // Session: anyone may try to sign in or out; "who am I" needs a caller.
+  "POST /api/v1/session": {
+    expect: everyone(200),
+    body: async (c) => ({ email: (await makeUser(c.t.ctx, "member")).email, password: testPassword }),
+  },
+  "GET /api/v1/session": { expect: signedIn(200) },
+  "DELETE /api/v1/session": { expect: everyone(204) },
+
+  // Sign-up and e-mailed links: anonymous by nature. Bodies are fresh per cell.
+  "POST /api/v1/sign-up": { expect: everyone(202), body: () => ({ email: `${fresh("new")}@tallgrass.test`, displayName: "New Member", password: testPassword }) },
+  "POST /api/v1/email-verification": {
+    expect: everyone(200),
+    body: async (c) => ({ token: (await emailToken(c, "verify")).secret }),
+  },
+  "POST /api/v1/email-verification/resend": { expect: everyone(202), body: () => ({ email: `${fresh("nobody")}@tallgrass.test` }) },
+  "POST /api/v1/password-reset": { expect: everyone(202), body: () => ({ email: `${fresh("nobody")}@tallgrass.test` }) },
+  "POST /api/v1/password-reset/confirm": { expect: everyone(204), body: async (c) => ({ token: (await emailToken(c, "reset")).secret, password: "new-basin-password-1" }) },
+  "POST /api/v1/invitations/preview": { expect: everyone(200), body: async (c) => ({ token: (await emailToken(c, "invite")).secret }) },
+  "POST /api/v1/invitations/accept": {
+    expect: everyone(201),
+    body: async (c) => ({ token: (await emailToken(c, "invite")).secret, displayName: "Invited Curator", password: testPassword }),
+  },
+
+  // Own account and follows.
+  "GET /api/v1/account": { expect: signedIn(200) },
+  "PATCH /api/v1/account": { expect: signedInWrite(200), body: () => ({ displayName: "Renamed", role: "admin" }) },
+  "GET /api/v1/account/follows": { expect: signedIn(200) },
+  "POST /api/v1/datasets/:slug/follow": { expect: signedInWrite(200) },
+  "DELETE /api/v1/datasets/:slug/follow": { expect: signedInWrite(200) },
+
+  // Administration. The API tokens in this matrix belong to a curator, so they are refused too.
+  "GET /api/v1/admin/users": { expect: adminOnly(200) },
+  "PATCH /api/v1/admin/users/:id": {
+    expect: adminOnly(200),
+    params: async (c) => ({ id: (await makeUser(c.t.ctx, "member")).id }),
+    body: () => ({ role: "reviewer" }),
+  },
+  "GET /api/v1/admin/role-changes": { expect: adminOnly(200) },
+  "GET /api/v1/admin/invitations": { expect: adminOnly(200) },
+  "POST /api/v1/admin/invitations": { expect: adminOnly(201), body: () => ({ email: `${fresh("invite")}@tallgrass.test`, role: "curator" }) },
+  "GET /api/v1/admin/outbox": { expect: adminOnly(200) },
+  "GET /api/v1/admin/outbox/:id": {
+    expect: adminOnly(200),
+    params: async (c) => {
+      const [m] = await c.t.ctx.db.insert(outbox).values({ kind: "test", to: "someone@tallgrass.test", subject: "Hello", text: "Body" }).returning();
+      return { id: m!.id };
+    },
+  },
+
+  // API tokens: managed from a session only. BOLA: another user's token id is "not yours" (404).
+  "POST /api/v1/tokens": { expect: sessionOnly(201), body: () => ({ name: "matrix", scope: "read" }) },
+  "GET /api/v1/tokens": { expect: sessionOnly(200) },
+  "DELETE /api/v1/tokens/:id": {
+    expect: { ...sessionOnly(404), curatorOwner: 204 },
+    params: async (c) => ({ id: await tokenOf(c.t, world.curatorOwner.id, "read").then((x) => x.id) }),
+  },
+
+  // Curation.
+  "POST /api/v1/datasets": {
+    expect: { ...ownerWrite(201, 201) },
+    body: () => ({ slug: fresh("matrix"), title: "Matrix dataset", crops: ["corn"], region: "Tallgrass Basin", description: "Invented." }),
+  },
+  "PATCH /api/v1/datasets/:slug": { expect: ownerWrite("ok"), body: () => ({ title: "Renamed dataset" }) },
+  "GET /api/v1/curation/datasets": { expect: { ...signedIn(200), member: 403 } },
+  "GET /api/v1/curation/datasets/:slug": { expect: { ...draftView(200, 401) } },
+  "POST /api/v1/curation/datasets/:slug/editors": {
+    expect: ownerWrite("pass"),
+    body: async (c) => ({ email: (await makeUser(c.t.ctx, "curator")).email }),
+  },
+  "POST /api/v1/datasets/:slug/versions": { expect: ownerWrite("pass", "hidden"), body: () => ({ semver: "2.0.0" }) },
+  "GET /api/v1/curation/versions/:id": { expect: draftView(200), params: (c) => ({ id: c.fx.draftId }) },
+  "PATCH /api/v1/curation/versions/:id": { expect: ownerWrite("ok", "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => ({ changelog: "More site-years." }) },
+  "PUT /api/v1/curation/versions/:id/table-schema": { expect: ownerWrite("pass", "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => defaultTableSchema() },
+  "GET /api/v1/curation/versions/:id/reports/:report": { expect: draftView(200, 401), params: (c) => ({ id: c.fx.draftId, report: c.fx.reportId }) },
+  "POST /api/v1/curation/versions/:id/submit": { expect: ownerWrite("pass", "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => ({ changelog: "First release of the basin trials." }) },
+  "POST /api/v1/curation/versions/:id/approve": { expect: reviewerWrite("pass"), params: (c) => ({ id: c.fx.inReviewId }), body: () => ({ comment: "Looks right." }) },
+  "POST /api/v1/curation/versions/:id/return": { expect: reviewerWrite("pass"), params: (c) => ({ id: c.fx.inReviewId }), body: () => ({ comment: "Site 2 lacks soil tests." }) },
+  "POST /api/v1/curation/versions/:id/withdraw": {
+    expect: { ...ownerWrite("pass"), reviewer: "pass" },
+    params: (c) => ({ id: c.fx.publishedId }),
+    body: () => ({ reason: "A unit error in site 4." }),
+  },
+  "GET /api/v1/curation/diff": { expect: draftView("pass"), query: (c) => ({ from: c.fx.publishedId, to: c.fx.draftId }) },
+  "GET /api/v1/curation/review-queue": { expect: { ...adminOnly(200), reviewer: 200 } },
+  "POST /api/v1/curation/versions/:id/uploads/:resource": { expect: ownerWrite("pass", "hidden"), params: (c) => ({ id: c.fx.draftId, resource: "sites" }) },
+};
+
+interface World {
+  users: Record<Exclude<Actor, "anonymous" | "readToken" | "writeToken" | "revokedToken">, typeof users.$inferSelect>;
+  curatorOwner: typeof users.$inferSelect;
+  tokens: Record<"readToken" | "writeToken" | "revokedToken", string>;
+}
+let world: World;
+
+async function tokenOf(t: TestApp, userId: string, scope: "read" | "write", revoked = false) {
+  const secret = newSecret("pb_");
+  const [row] = await t.ctx.db
+    .insert(apiTokens)
+    .values({ userId, name: "matrix", prefix: secret.slice(0, 8), tokenHash: sha256Hex(secret), scope, revokedAt: revoked ? new Date() : null })
+    .returning();
+  return { secret, id: row!.id };
+}
+
+async function newFixture(t: TestApp): Promise<Fixture> {
+  const db = t.ctx.db;
+  const slug = fresh("basin");
+  const [dataset] = await db
+    .insert(datasets)
+    .values({ slug, title: "Tallgrass Basin N rates", crops: ["corn"], region: "Tallgrass Basin", description: "Invented trials", ownerId: world.curatorOwner.id })
+    .returning();
+  const version = async (semver: string) =>
+    (await db.insert(versions).values({ datasetId: dataset!.id, semver, tableSchema: defaultTableSchema(), createdBy: world.curatorOwner.id }).returning())[0]!;
+  const published = await version("1.0.0");
+  const draft = await version("1.1.0");
+  const inReview = await version("1.2.0");
+  await db.update(versions).set({ state: "published", publishedAt: new Date(), submittedBy: world.curatorOwner.id }).where(eq(versions.id, published.id));
+  await db.update(versions).set({ state: "in_review", submittedAt: new Date(), submittedBy: world.curatorOwner.id }).where(eq(versions.id, inReview.id));
+  const [report] = await db.insert(validationReports).values({ versionId: draft.id, resource: "sites", filename: "sites.csv", accepted: true, problems: [] }).returning();
+  return { slug, datasetId: dataset!.id, publishedId: published.id, draftId: draft.id, inReviewId: inReview.id, reportId: report!.id };
+}
+
+function matches(e: Expectation, status: number) {
+  if (typeof e === "number") return status === e;
+  if (e === "ok") return status >= 200 && status < 300;
+  if (e === "hidden") return status === 403 || status === 404;
+  return ![401, 403, 404].includes(status) && status < 500;
+}
+
+/** Every route registered on the app, as "METHOD /path" with Express's parameter syntax. */
+function registeredRoutes(app: Express): string[] {
+  const out: string[] = [];
+  type Layer = { route?: { path: string; methods: Record<string, boolean> }; handle?: { stack?: Layer[] }; rawPath?: unknown };
+  const walk = (stack: Layer[], prefix: string) => {
+    for (const layer of stack) {
+      if (layer.route) {
+        for (const m of Object.keys(layer.route.methods)) if (m !== "_all") out.push(`${m.toUpperCase()} ${prefix}${layer.route.path}`);
+      } else if (layer.handle?.stack) {
+        const mount = typeof layer.rawPath === "string" && layer.rawPath !== "/" ? layer.rawPath : "";
+        walk(layer.handle.stack, prefix + mount);
+      }
+    }
+  };
+  walk((app as unknown as { router: { stack: Layer[] } }).router.stack, "");
+  return [...new Set(out)].filter((r) => r.includes(" /api/")).sort();
+}
+
+let t: TestApp;
+const results: { key: string; actor: Actor; status: number; text: string; allowedEmails: Set<string> }[] = [];
+
+beforeAll(async () => {
+  t = await testApp({ authLimits: { windowMs: 60_000, perIp: 100_000, perAccount: 100_000 } });
+  const u = {
+    member: await makeUser(t.ctx, "member"),
+    curatorOwner: await makeUser(t.ctx, "curator"),
+    curatorOther: await makeUser(t.ctx, "curator"),
+    reviewer: await makeUser(t.ctx, "reviewer"),
+    admin: await makeUser(t.ctx, "admin"),
+  };
+  world = {
+    users: u,
+    curatorOwner: u.curatorOwner,
+    tokens: {
+      readToken: (await tokenOf(t, u.curatorOwner.id, "read")).secret,
+      writeToken: (await tokenOf(t, u.curatorOwner.id, "write")).secret,
+      revokedToken: (await tokenOf(t, u.curatorOwner.id, "write", true)).secret,
+    },
+  };
+});
+afterAll(() => t.close());
+
+describe("authorization matrix", () => {
+  it("has a row for every registered route, and no row for a route that is gone", () => {
+    const routes = registeredRoutes(t.app);
+    expect(routes.length).toBeGreaterThan(20);
+    expect(routes.filter((r) => !(r in table)), "routes without a row in the matrix").toEqual([]);
+    expect(Object.keys(table).filter((k) => !routes.includes(k)), "rows for routes that do not exist").toEqual([]);
+  });
+
+  it("documents every route in the OpenAPI document", async () => {
+    const doc = (await request(t.app).get("/api/v1/openapi.json").expect(200)).body as { paths: Record<string, Record<string, unknown>> };
+    // Compared by shape: parameter names may differ, and a documented `{resource}.csv` is the route's `:resource`.
+    const shape = (route: string) => route.replace(/\{\w+\}(\.[a-z]+)?/g, ":p").replace(/:\w+/g, ":p");
+    const documented = new Set(Object.entries(doc.paths).flatMap(([path, ops]) => Object.keys(ops).map((m) => shape(`${m.toUpperCase()} ${path}`))));
+    const undocumented = registeredRoutes(t.app).filter((r) => r !== "GET /api/v1/openapi.json" && !documented.has(shape(r)));
+    expect(undocumented, "routes missing from the OpenAPI document").toEqual([]);
+  });
+
+  it("answers every cell as the table says", async () => {
+    const failures: string[] = [];
+    for (const [key, row] of Object.entries(table)) {
+      const [method, pathPattern] = key.split(" ") as [string, string];
+      for (const actor of actors) {
+        const fx = await newFixture(t);
+        const user = actor in world.users ? world.users[actor as keyof World["users"]] : actor.endsWith("Token") ? world.curatorOwner : null;
+        const cell: Cell = { actor, user, fx, t, revealed: [] };
+        const params = { slug: fx.slug, semver: "1.0.0", resource: "sites", ...(await row.params?.(cell)) };
+        const path = pathPattern.replace(/:(\w+)/g, (_m, name: string) => {
+          const value = (params as Record<string, string>)[name];
+          if (value === undefined) throw new Error(`${key}: no value for :${name}; give the row a params builder`);
+          return encodeURIComponent(value);
+        });
+        const body = await row.body?.(cell);
+        let req = request(t.app)[method.toLowerCase() as "get"](path);
+        if (row.query) req = req.query(row.query(cell));
+        if (actor.endsWith("Token")) req = req.set("Authorization", `Bearer ${world.tokens[actor as keyof World["tokens"]]}`);
+        else if (user) req = req.set("Cookie", `${sessionCookieName}=${(await createSession(t.ctx.db, user.id)).secret}`);
+        if (body !== undefined) req = req.send(body as object);
+        const res = await req;
+        const expected = row.expect[actor] ?? (actor === "revokedToken" ? 401 : undefined);
+        if (expected === undefined) throw new Error(`${key}: no expectation for ${actor}`);
+        if (!matches(expected, res.status)) failures.push(`${key} as ${actor}: expected ${expected}, got ${res.status} ${res.text.slice(0, 160)}`);
+        const allowedEmails = new Set<string>([...(user ? [user.email] : []), ...JSON.stringify(body ?? "").match(/[\w.+-]+@[\w.-]+/g) ?? [], ...cell.revealed]);
+        results.push({ key, actor, status: res.status, text: res.text ?? "", allowedEmails });
+      }
+    }
+    expect(failures).toEqual([]);
+  }, 600_000);
+
+  it("never answers with a password hash, a token hash or another user's e-mail address", async () => {
+    expect(results.length).toBeGreaterThan(100);
+    const db = t.ctx.db;
+    const secrets = [
+      ...(await db.select({ h: users.passwordHash }).from(users)).map((r) => r.h),
+      ...(await db.select({ h: sessions.tokenHash }).from(sessions)).map((r) => r.h),
+      ...(await db.select({ h: apiTokens.tokenHash }).from(apiTokens)).map((r) => r.h),
+      ...(await db.select({ h: emailTokens.tokenHash }).from(emailTokens)).map((r) => r.h),
+    ].filter((h): h is string => !!h);
+    const emails = (await db.select({ e: users.email }).from(users)).map((r) => r.e);
+    const leaks: string[] = [];
+    for (const r of results) {
+      if (/scrypt\$|passwordHash|tokenHash/.test(r.text)) leaks.push(`${r.key} as ${r.actor}: names a hash`);
+      for (const h of secrets) if (r.text.includes(h)) leaks.push(`${r.key} as ${r.actor}: contains a stored hash`);
+      // Admins manage people, so admin routes may list e-mail addresses to them; nowhere else.
+      if (r.actor === "admin" && r.key.includes(" /api/v1/admin/")) continue;
+      for (const e of emails) if (!r.allowedEmails.has(e) && r.text.includes(e)) leaks.push(`${r.key} as ${r.actor}: shows ${e}`);
+    }
+    expect(leaks).toEqual([]);
+  });
+});
+
+describe("mass assignment and object-level checks", () => {
+  it("ignores role and emailVerified in a sign-up body", async () => {
+    const email = `${fresh("mass")}@tallgrass.test`;
+    await request(t.app).post("/api/v1/sign-up").send({ email, displayName: "Mass", password: testPassword, role: "admin", emailVerified: true, emailVerifiedAt: "2020-01-01" }).expect(202);
+    const [row] = await t.ctx.db.select().from(users).where(eq(users.email, email));
+    expect(row).toMatchObject({ role: "member", emailVerifiedAt: null });
+  });
+
+  it("ignores role in a profile body", async () => {
+    const member = await makeUser(t.ctx, "member");
+    const cookie = `${sessionCookieName}=${(await createSession(t.ctx.db, member.id)).secret}`;
+    const res = await request(t.app).patch("/api/v1/account").set("Cookie", cookie).send({ role: "admin", id: world.users.admin.id, email: "x@y.z" }).expect(200);
+    expect(res.body).toMatchObject({ id: member.id, role: "member", email: member.email });
+  });
+
+  it("refuses a role change in the role-change body beyond the role itself", async () => {
+    const admin = world.users.admin;
+    const target = await makeUser(t.ctx, "member");
+    const cookie = `${sessionCookieName}=${(await createSession(t.ctx.db, admin.id)).secret}`;
+    const res = await request(t.app).patch(`/api/v1/admin/users/${target.id}`).set("Cookie", cookie).send({ role: "curator", email: "taken@tallgrass.test" }).expect(400);
+    expect(res.body.errors[0].field).toMatch(/^body/);
+  });
+
+  it("one curator cannot see or change another's draft", async () => {
+    const fx = await newFixture(t);
+    const cookie = `${sessionCookieName}=${(await createSession(t.ctx.db, world.users.curatorOther.id)).secret}`;
+    await request(t.app).get(`/api/v1/curation/versions/${fx.draftId}`).set("Cookie", cookie).expect(404);
+    const patch = await request(t.app).patch(`/api/v1/curation/versions/${fx.draftId}`).set("Cookie", cookie).send({ changelog: "hijack" });
+    expect([403, 404]).toContain(patch.status);
+    const [draft] = await t.ctx.db.select().from(versions).where(and(eq(versions.id, fx.draftId)));
+    expect(draft?.changelog).not.toBe("hijack");
+  });
+});
