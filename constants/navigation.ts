@@ -17,5 +17,14 @@ export const navItems: NavItem[] = [
   { href: "/", label: "Evidence", short: "Evidence", match: (p) => p === "/" },
   { href: "/datasets", label: "Datasets", short: "Datasets", match: (p) => p.startsWith("/datasets") },
   { href: "/curate", label: "Workbench", short: "Workbench", roles: ["curator", "reviewer", "admin"], match: (p) => p.startsWith("/curate") },
+  { href: "/admin", label: "Admin", short: "Admin", roles: ["admin"], match: (p) => p.startsWith("/admin") },
+  { href: "/account", label: "Account", short: "Account", roles: ["member", "curator", "reviewer", "admin"], match: (p) => p.startsWith("/account") },
   { href: "/developers", label: "Developers", short: "API", roles: ["member", "curator", "reviewer", "admin"], match: (p) => p.startsWith("/developers") },
+  {
+    href: "/sign-in",
+    label: "Sign in",
+    short: "Sign in",
+    visitorsOnly: true,
+    match: (p) => ["/sign-in", "/sign-up", "/verify", "/forgot-password", "/reset-password", "/invite"].some((x) => p.startsWith(x)),
+  },
 ];

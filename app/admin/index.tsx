@@ -1,0 +1,26 @@
+import { View } from "react-native";
+import { AdminGate } from "@/components/account/admin-gate";
+import { TextLink } from "@/components/account/auth-panel";
+import { InviteForm } from "@/components/account/invite-form";
+import { PeopleList } from "@/components/account/people-list";
+import { RoleChangeLog } from "@/components/account/role-change-log";
+import { space } from "@/constants/theme";
+import { useLayout } from "@/hooks/use-layout";
+
+export default function PeopleAndRolesScreen() {
+  const { wide } = useLayout();
+  return (
+    <AdminGate title="People & roles" subtitle="Who can curate, review and administer Plotbank.">
+      <TextLink href="/admin/outbox" label="Outbox (development)" />
+      <View style={{ flexDirection: wide ? "row" : "column", gap: space.lg, alignItems: wide ? "flex-start" : "stretch" }}>
+        <View style={wide ? { flex: 3, gap: space.lg } : { gap: space.lg, alignSelf: "stretch" }}>
+          <PeopleList />
+        </View>
+        <View style={wide ? { flex: 2, gap: space.lg } : { gap: space.lg, alignSelf: "stretch" }}>
+          <InviteForm />
+          <RoleChangeLog />
+        </View>
+      </View>
+    </AdminGate>
+  );
+}
