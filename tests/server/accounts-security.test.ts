@@ -23,7 +23,7 @@ async function insertDataset(ctx: AppContext, slug: string, state: "draft" | "in
     .returning();
   const [version] = await ctx.db
     .insert(versions)
-    .values({ datasetId: dataset!.id, semver: "1.0.0", tableSchema: { resources: {} }, createdBy: owner.id, changelog: "First release." })
+    .values({ datasetId: dataset!.id, semver: "1.0.0", tableSchema: { resources: {} } as never, createdBy: owner.id, changelog: "First release." })
     .returning();
   if (state !== "draft") {
     await ctx.db
@@ -139,6 +139,32 @@ describe("outbox screen", () => {
       const prodAgent = await signedInAgent(prod.app, prodAdmin.email);
       await prodAgent.get("/api/v1/admin/outbox").expect(404);
       await request(prod.app).get("/api/v1/admin/outbox").expect(404);
+    } finally {
+      await prod.close();
+    }
+  });
+});
+
+describe("real mail in production", () => {
+  it("records SMTP mail without its link secret, and keeps a delivery failure beside the message", async () => {
+    const prod = await testApp({ development: false, smtpUrl: "smtp://127.0.0.1:9" });
+    try {
+      const user = await makeUser(prod.ctx, "member");
+      const errors: unknown[] = [];
+      const original = console.error;
+      console.error = (...args: unknown[]) => errors.push(args);
+      try {
+        await request(prod.app).post("/api/v1/password-reset").send({ email: user.email }).expect(202);
+      } finally {
+        console.error = original;
+      }
+      const [sent] = await prod.ctx.db.select().from(outbox).where(eq(outbox.to, user.email));
+      expect(sent?.transport).toBe("smtp");
+      expect(sent?.text).toContain("/reset-password?token=[redacted]");
+      expect(sent?.text).not.toMatch(/pbr_/);
+      expect(sent?.html).not.toMatch(/pbr_/);
+      expect((sent?.meta as { deliveryError?: string }).deliveryError).toBeTruthy();
+      expect(errors).toHaveLength(1);
     } finally {
       await prod.close();
     }
