@@ -98,7 +98,7 @@ describe("accounts on a phone (390x844)", () => {
     await screenshot(page, "accounts-admin-people-phone");
 
     await page.getByLabel("E-mail").fill("new.reviewer@tallgrass.test");
-    await page.getByRole("radio", { name: "Reviewer", exact: true }).click();
+    await page.getByRole("radio", { name: "Role: Reviewer", exact: true }).click();
     await page.getByRole("button", { name: "Send invitation" }).click();
     await page.getByText("Invitation sent to new.reviewer@tallgrass.test.").waitFor();
 
