@@ -8,6 +8,7 @@ export default defineConfig({
         extends: true,
         test: {
           name: "unit",
+          sequence: { groupOrder: 0 },
           include: ["tests/stats/**/*.test.ts", "tests/unit/**/*.test.ts"],
           environment: "node",
         },
@@ -16,6 +17,7 @@ export default defineConfig({
         extends: true,
         test: {
           name: "server",
+          sequence: { groupOrder: 1 },
           include: ["tests/server/**/*.test.ts"],
           environment: "node",
           testTimeout: 60_000,
@@ -28,6 +30,7 @@ export default defineConfig({
         extends: true,
         test: {
           name: "browser",
+          sequence: { groupOrder: 2 },
           include: ["tests/browser/**/*.test.ts"],
           environment: "node",
           globalSetup: ["tests/browser/global-setup.ts"],

@@ -2,7 +2,7 @@ import { and, eq, inArray } from "drizzle-orm";
 import { plots } from "@/db/schema";
 import { toStandardMoisture, yieldFactorToKgHa } from "../edge-units";
 import type { Cell } from "../field-values";
-import { num, str, type IngestContext, type ResourceIngest } from "../resource-ingest";
+import { num, type IngestContext, type ResourceIngest } from "../resource-ingest";
 import { insertRows } from "../write-rows";
 import { balanceRule, checkRule, newTally, outlierRule, type SiteYearTally } from "./site-year-rules";
 
