@@ -63,7 +63,8 @@ export function CitationPanel({ slug, semver }: { slug: string; semver: string }
       ) : (
         <ScrollView horizontal={format !== "text"} style={styles.box} contentContainerStyle={styles.boxContent}>
           <Text selectable testID="citation-text" variant={format === "text" ? "body" : "mono"} accessibilityLabel={`${label} citation`}>
-            {citation.data.trimEnd()}
+            {/* BibTeX indents with tabs, which a phone shows eight columns wide; the copy keeps them. */}
+            {citation.data.trimEnd().replace(/\t/g, "  ")}
           </Text>
         </ScrollView>
       )}
