@@ -1,17 +1,18 @@
 import { z } from "zod";
 import { trialFilterShape, trialFilters } from "./filters";
+import { yieldUnits, type YieldUnit } from "./public";
+
+export { yieldUnits, type YieldUnit };
 
 export const effectMeasures = ["md", "lnrr"] as const;
 export const tauMethods = ["REML", "DL", "PM", "FE"] as const;
 export const ciMethods = ["hksj", "wald"] as const;
 export const groupings = ["soilTestClass", "placement", "nutrient", "crop", "tillage", "plantingWindow", "dataset"] as const;
-export const yieldUnits = ["bu/ac", "kg/ha"] as const;
 
 export type EffectMeasure = (typeof effectMeasures)[number];
 export type TauMethod = (typeof tauMethods)[number];
 export type CiMethod = (typeof ciMethods)[number];
 export type Grouping = (typeof groupings)[number];
-export type YieldUnit = (typeof yieldUnits)[number];
 
 const money = z.coerce.number().finite().min(0).max(100_000);
 
