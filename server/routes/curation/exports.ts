@@ -9,7 +9,7 @@ import { resourceOrder } from "@/server/services/curation/resource-csv";
 import { parseParams } from "@/server/validate";
 
 const versionParams = z.object({ slug: z.string().min(1).max(120), semver: z.union([semver, z.literal("latest")]) });
-const resourceParams = versionParams.extend({ resource: z.string().regex(/^[a-z_]+\.csv$/, "resource.csv") });
+const resourceParams = versionParams.extend({ resource: z.string().regex(/^[a-z_]+$/, "a resource name") });
 const immutable = "public, max-age=31536000, immutable";
 
 export function curationExportRoutes(ctx: AppContext): Router {
@@ -54,9 +54,9 @@ export function curationExportRoutes(ctx: AppContext): Router {
     request: { params: versionParams.extend({ resource: resourceName }) },
     responses: { 200: { description: "The CSV", content: { "text/csv": { schema: z.string() } } }, 304: { description: "Not modified" }, 410: { description: "Withdrawn" }, ...problemResponses(404) },
   });
-  router.get("/datasets/:slug/versions/:semver/resources/:resource", async (req, res) => {
+  router.get("/datasets/:slug/versions/:semver/resources/:resource.csv", async (req, res) => {
     const { slug, semver: v, resource: file } = parseParams(resourceParams, req);
-    const resource = parseParams(z.object({ resource: resourceName }), { params: { resource: file.slice(0, -4) } } as never).resource;
+    const resource = parseParams(z.object({ resource: resourceName }), { params: { resource: file } } as never).resource;
     const { dataset, version } = await publishedVersion(db, slug, v);
     const built = await buildResource(db, version, resource);
     const etag = `"${built.sha256}"`;

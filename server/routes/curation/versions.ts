@@ -59,9 +59,9 @@ export function curationVersionRoutes(ctx: AppContext): Router {
   });
 
   registry.registerPath({
-    method: "get", path: "/api/v1/curation/versions/{id}/reports/{reportId}", tags: ["Curation"],
+    method: "get", path: "/api/v1/curation/versions/{id}/reports/{report}", tags: ["Curation"],
     summary: "A validation report, filterable; end the id with .csv for the whole (filtered) report as CSV", security,
-    request: { params: z.object({ id: z.uuid(), reportId: z.string() }), query: reportQuery },
+    request: { params: z.object({ id: z.uuid(), report: z.string().describe("The report id; end it with .csv for CSV") }), query: reportQuery },
     responses: { 200: { description: "The report", content: { "application/json": { schema: validationReport }, "text/csv": { schema: z.string() } } }, ...problemResponses(400, 404) },
   });
   router.get("/curation/versions/:id/reports/:report", requireUser, async (req, res) => {
