@@ -17,7 +17,8 @@ export const mailPaths = {
   reset: (token: string) => `/reset-password?token=${encodeURIComponent(token)}`,
   invite: (token: string) => `/invite?token=${encodeURIComponent(token)}`,
   signIn: () => "/sign-in",
-  review: () => "/review",
+  // The review queue is the top of the curator workbench.
+  review: () => "/curate",
   dataset: (slug: string) => `/datasets/${encodeURIComponent(slug)}`,
   account: () => "/account",
 };
