@@ -30,7 +30,8 @@ describe.each([
     await page.goto(`${server.url}/datasets`);
     await page.getByRole("heading", { name: "Datasets" }).first().waitFor();
     if (api.items.length) {
-      for (const d of api.items) await expect(page.getByText(d.title, { exact: true }).first().isVisible()).resolves.toBe(true);
+      // The heading renders before the list arrives, so wait for each title rather than sampling once.
+      for (const d of api.items) await page.getByText(d.title, { exact: true }).first().waitFor({ state: "visible" });
     } else {
       await page.getByText("No published datasets yet").waitFor();
     }
