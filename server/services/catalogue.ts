@@ -38,15 +38,7 @@ export async function listPublishedDatasets(db: Db): Promise<DatasetSummary[]> {
     const latest = latestByDataset.get(d.id)!;
     const count = countByVersion.get(latest.id);
     return {
-      id: d.id,
-      slug: d.slug,
-      title: d.title,
-      crops: d.crops,
-      region: d.region,
-      description: d.description,
-      licence: d.licence,
-      keywords: d.keywords,
-      contributors: d.contributors,
+      ...datasetDescription(d),
       latestVersion: latest.semver,
       publishedAt: latest.publishedAt?.toISOString() ?? null,
       siteYears: count?.n ?? 0,
@@ -54,6 +46,21 @@ export async function listPublishedDatasets(db: Db): Promise<DatasetSummary[]> {
       yearTo: count?.yearTo ?? null,
     };
   });
+}
+
+/** What a dataset says about itself, as both the public catalogue and the curation screens show it. */
+export function datasetDescription(d: typeof datasets.$inferSelect) {
+  return {
+    id: d.id,
+    slug: d.slug,
+    title: d.title,
+    crops: d.crops,
+    region: d.region,
+    description: d.description,
+    licence: d.licence,
+    keywords: d.keywords,
+    contributors: d.contributors,
+  };
 }
 
 export function compareSemver(a: string, b: string): number {

@@ -5,7 +5,7 @@ import type { CurationDataset, DatasetCreate, DatasetPatch, VersionBrief } from 
 import { datasetCreate } from "@/schemas/curation";
 import { conflict, notFound } from "@/server/errors";
 import { findUserByEmail } from "@/server/services/users";
-import { compareSemver } from "@/server/services/catalogue";
+import { compareSemver, datasetDescription } from "@/server/services/catalogue";
 import { assertCanEdit, canEditDataset, type Dataset, type User } from "./access";
 
 export const iso = (d: Date | null) => (d ? d.toISOString() : null);
@@ -30,15 +30,7 @@ async function describe(db: Db, user: User | undefined, d: Dataset): Promise<Cur
   ]);
   vs.sort((a, b) => compareSemver(b.semver, a.semver));
   return {
-    id: d.id,
-    slug: d.slug,
-    title: d.title,
-    crops: d.crops,
-    region: d.region,
-    description: d.description,
-    licence: d.licence,
-    keywords: d.keywords,
-    contributors: d.contributors,
+    ...datasetDescription(d),
     funding: d.funding,
     methods: d.methods,
     ownerId: d.ownerId,
