@@ -19,7 +19,7 @@ export const navItems: NavItem[] = [
   { href: "/curate", label: "Workbench", short: "Workbench", roles: ["curator", "reviewer", "admin"], match: (p) => p.startsWith("/curate") },
   { href: "/admin", label: "Admin", short: "Admin", roles: ["admin"], match: (p) => p.startsWith("/admin") },
   { href: "/account", label: "Account", short: "Account", roles: ["member", "curator", "reviewer", "admin"], match: (p) => p.startsWith("/account") },
-  { href: "/developers", label: "Developers", short: "API", roles: ["member", "curator", "reviewer", "admin"], match: (p) => p.startsWith("/developers") },
+  { href: "/developers", label: "Developers", short: "API", match: (p) => p.startsWith("/developers") },
   {
     href: "/sign-in",
     label: "Sign in",
