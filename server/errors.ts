@@ -35,9 +35,14 @@ export const conflict = (detail: string, errors?: ProblemLocation[]) =>
 
 /** Turn zod issues into located problems; `where` prefixes the field path (query, body, …). */
 export function zodProblems(error: z.ZodError, where: string): ProblemLocation[] {
-  return error.issues.map((issue) => {
+  return error.issues.flatMap((issue) => {
     const path = issue.path.map(String).join(".");
-    return { field: path ? `${where}.${path}` : where, message: issue.message };
+    const at = path ? `${where}.${path}` : where;
+    // An unknown key is named itself, so a typo in `?placment=` points at `query.placment`, not at the whole query.
+    if (issue.code === "unrecognized_keys") {
+      return issue.keys.map((key) => ({ field: `${at}.${key}`, message: `"${key}" is not a known ${where === "query" ? "parameter" : "field"} here` }));
+    }
+    return [{ field: at, message: issue.message }];
   });
 }
 

@@ -167,8 +167,15 @@ describe("version-scoped reads take the same filters", () => {
   });
   it("refuses dataset and version parameters on a version path (the path names them)", async () => {
     const res = await request(t.app).get("/api/v1/datasets/tb-soy-starter-p/versions/1.0.0/responses?dataset=tb-corn-nk").expect(400);
-    expect(res.body.errors.map((e: { field: string }) => e.field)).toContain("query");
-    expect(JSON.stringify(res.body.errors)).toContain("dataset");
+    expect(res.body.errors.map((e: { field: string }) => e.field)).toEqual(["query.dataset"]);
+  });
+  it("names each unknown parameter as its own field, so a typo points at itself", async () => {
+    const res = await request(t.app).get("/api/v1/responses?placment=2x2-band&nutrient=P&colour=red").expect(400);
+    expect(res.headers["content-type"]).toMatch(/^application\/problem\+json/);
+    expect(res.body.errors).toEqual([
+      { field: "query.placment", message: '"placment" is not a known parameter here' },
+      { field: "query.colour", message: '"colour" is not a known parameter here' },
+    ]);
   });
   it("filters treatments by nutrient and rate", async () => {
     const res = await request(t.app).get("/api/v1/datasets/tb-corn-nk/versions/1.0.0/treatments?k2oRateMin=30").expect(200);
