@@ -23,6 +23,8 @@ export const curationPaths = {
   createDataset: "/api/v1/datasets",
   dataset: (slug: string) => `/api/v1/curation/datasets/${encodeURIComponent(slug)}`,
   datasetEdit: (slug: string) => `/api/v1/datasets/${encodeURIComponent(slug)}`,
+  editors: (slug: string) => `/api/v1/curation/datasets/${encodeURIComponent(slug)}/editors`,
+  editor: (slug: string, userId: string) => `/api/v1/curation/datasets/${encodeURIComponent(slug)}/editors/${encodeURIComponent(userId)}`,
   versions: (slug: string) => `/api/v1/datasets/${encodeURIComponent(slug)}/versions`,
   version: (id: string) => `/api/v1/curation/versions/${encodeURIComponent(id)}`,
   tableSchema: (id: string) => `/api/v1/curation/versions/${encodeURIComponent(id)}/table-schema`,
@@ -123,6 +125,23 @@ export function useUpdateDatasetMutation(slug: string) {
       qc.setQueryData(curationKeys.dataset(slug), dataset);
       return qc.invalidateQueries({ queryKey: curationKeys.lists() });
     },
+  });
+}
+
+/** Share a dataset with a curator (by e-mail), or stop sharing it; the answer is the dataset with its editors. */
+export function useAddEditorMutation(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (email: string) => api(curationPaths.editors(slug), curationDataset, { method: "POST", body: { email } }),
+    onSuccess: (dataset) => qc.setQueryData(curationKeys.dataset(slug), dataset),
+  });
+}
+
+export function useRemoveEditorMutation(slug: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (userId: string) => api(curationPaths.editor(slug, userId), curationDataset, { method: "DELETE" }),
+    onSuccess: (dataset) => qc.setQueryData(curationKeys.dataset(slug), dataset),
   });
 }
 

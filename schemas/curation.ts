@@ -49,6 +49,10 @@ export const curationDataset = datasetSummary
     methods: z.string().nullable(),
     ownerId: z.string(),
     editorIds: z.array(z.string()),
+    editors: z
+      .array(z.object({ id: z.string(), displayName: z.string(), email: z.string() }))
+      .describe("Curators the owner has shared the dataset with; e-mail addresses only for its owner, editors and admins"),
+    canShare: z.boolean().describe("The signed-in user may add and remove editors (the owner or an admin)"),
     canEdit: z.boolean().describe("The signed-in user may edit this dataset's drafts"),
     versions: z.array(versionBrief).describe("Newest first"),
     createdAt: z.string(),
@@ -235,7 +239,8 @@ export const submitBody = z.object({ changelog: z.string().trim().min(3).max(20_
 export const returnBody = z.object({ comment: z.string().trim().min(3).max(5000) }).strict().meta({ id: "ReturnVersion" });
 export const approveBody = z.object({ comment: z.string().max(5000).optional() }).strict().meta({ id: "ApproveVersion" });
 export const withdrawBody = z.object({ reason: z.string().trim().min(3).max(5000) }).strict().meta({ id: "WithdrawVersion" });
-export const editorsBody = z.object({ email: z.email() }).strict().meta({ id: "DatasetEditor" });
+export const editorsBody = z.object({ email: z.email("an e-mail address") }).strict().meta({ id: "DatasetEditor" });
+export const editorParams = z.object({ slug: z.string(), userId: z.uuid() });
 
 export const bump = z.enum(["major", "minor", "patch"]);
 export const siteYearChange = z.object({ siteYear: z.string(), fields: z.array(z.string()) });

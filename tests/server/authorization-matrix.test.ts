@@ -11,7 +11,7 @@ import type { Express } from "express";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
-import { apiTokens, datasets, emailTokens, outbox, sessions, users, validationReports, versions } from "@/db/schema";
+import { apiTokens, datasetEditors, datasets, emailTokens, outbox, sessions, users, validationReports, versions } from "@/db/schema";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
 import { createSession, sessionCookieName } from "@/server/auth/sessions";
 import { issueEmailToken } from "@/server/services/accounts/email-tokens";
@@ -172,6 +172,14 @@ const table: Record<string, Row> = {
   "POST /api/v1/curation/datasets/:slug/editors": {
     expect: ownerWrite("pass"),
     body: async (c) => ({ email: (await makeUser(c.t.ctx, "curator")).email }),
+  },
+  "DELETE /api/v1/curation/datasets/:slug/editors/:userId": {
+    expect: ownerWrite("ok"),
+    params: async (c) => {
+      const editor = await makeUser(c.t.ctx, "curator");
+      await c.t.ctx.db.insert(datasetEditors).values({ datasetId: c.fx.datasetId, userId: editor.id });
+      return { slug: c.fx.slug, userId: editor.id };
+    },
   },
   "POST /api/v1/datasets/:slug/versions": { expect: ownerWrite("pass", "hidden"), body: () => ({ semver: "2.0.0" }) },
   "GET /api/v1/curation/versions/:id": { expect: draftView(200), params: (c) => ({ id: c.fx.draftId }) },

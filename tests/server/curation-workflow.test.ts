@@ -128,10 +128,26 @@ describe("draft → review → published → next version", () => {
     await agent.patch(`/api/v1/datasets/${f.slug}`).send({ title: "Taken over" }).expect(403);
     expect((await upload(agent, draft.id, "sites", "site,location\nTB-09,Wren County\n")).status).toBe(403);
     await agent.put(`/api/v1/curation/versions/${draft.id}/table-schema`).send(draft.tableSchema ?? {}).expect((r) => expect([400, 403]).toContain(r.status));
-    await f.curatorAgent.post(`/api/v1/curation/datasets/${f.slug}/editors`).send({ email: other.email }).expect(200);
+    const shared = await f.curatorAgent.post(`/api/v1/curation/datasets/${f.slug}/editors`).send({ email: other.email }).expect(200);
+    expect(shared.body.editors).toEqual([{ id: other.id, displayName: other.displayName, email: other.email }]);
+    expect(shared.body.canShare).toBe(true);
     await agent.patch(`/api/v1/datasets/${f.slug}`).send({ title: "Shared starter test" }).expect(200);
     const mine = await agent.get("/api/v1/curation/datasets").expect(200);
     expect(mine.body.items.map((d: { slug: string }) => d.slug)).toContain(f.slug);
+    // An editor edits but does not choose editors; the owner can stop sharing, and then the edits are refused again.
+    const asEditor = (await agent.get(`/api/v1/curation/datasets/${f.slug}`).expect(200)).body;
+    expect(asEditor).toMatchObject({ canEdit: true, canShare: false });
+    await agent.delete(`/api/v1/curation/datasets/${f.slug}/editors/${other.id}`).expect(403);
+    const member0 = await makeUser(t.ctx, "member");
+    const refused = await f.curatorAgent.post(`/api/v1/curation/datasets/${f.slug}/editors`).send({ email: member0.email }).expect(409);
+    expect(refused.body.errors).toEqual([{ field: "body.email", message: "a member, not a curator" }]);
+    const unknown = await f.curatorAgent.post(`/api/v1/curation/datasets/${f.slug}/editors`).send({ email: "nobody@tallgrass.test" }).expect(404);
+    expect(unknown.body.errors[0].field).toBe("body.email");
+    const after = await f.curatorAgent.delete(`/api/v1/curation/datasets/${f.slug}/editors/${other.id}`).expect(200);
+    expect(after.body.editors).toEqual([]);
+    await f.curatorAgent.delete(`/api/v1/curation/datasets/${f.slug}/editors/${other.id}`).expect(404);
+    await agent.patch(`/api/v1/datasets/${f.slug}`).send({ title: "Taken over" }).expect(403);
+    await f.curatorAgent.post(`/api/v1/curation/datasets/${f.slug}/editors`).send({ email: other.email }).expect(200);
     // A member sees no drafts.
     const member = await makeUser(t.ctx, "member");
     const m = await signedInAgent(t.app, member.email);

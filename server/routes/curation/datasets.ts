@@ -1,12 +1,12 @@
 import { Router } from "express";
 import { z } from "zod";
-import { curationDataset, curationDatasetList, datasetCreate, datasetPatch, editorsBody, versionCreate, versionDetail } from "@/schemas/curation";
+import { curationDataset, curationDatasetList, datasetCreate, datasetPatch, editorParams, editorsBody, versionCreate, versionDetail } from "@/schemas/curation";
 import type { AppContext } from "@/server/context";
 import { currentUser, requireRole, requireUser, requireWriteScope } from "@/server/auth/guards";
 import { notFound } from "@/server/errors";
 import { problemResponses } from "@/server/openapi/registry";
 import { canEditDataset, datasetBySlug, isReviewer } from "@/server/services/curation/access";
-import { addEditor, createDataset, datasetDetail, listCurationDatasets, patchDataset } from "@/server/services/curation/datasets";
+import { addEditor, createDataset, datasetDetail, listCurationDatasets, patchDataset, removeEditor } from "@/server/services/curation/datasets";
 import { createVersion, versionDetail as describeVersion } from "@/server/services/curation/versions";
 import { parseBody, parseParams } from "@/server/validate";
 import { json, security } from "./docs";
@@ -68,6 +68,16 @@ export function curationDatasetRoutes(ctx: AppContext): Router {
     const { slug } = parseParams(slugParams, req);
     const { email } = parseBody(editorsBody, req);
     res.json(await addEditor(db, currentUser(req), await datasetBySlug(db, slug), email));
+  });
+
+  registry.registerPath({
+    method: "delete", path: "/api/v1/curation/datasets/{slug}/editors/{userId}", tags: ["Curation"], summary: "Stop sharing a dataset with an editor (owner, admin)", security,
+    request: { params: editorParams },
+    responses: { 200: json(curationDataset, "The dataset with its remaining editors"), ...problemResponses(401, 403, 404) },
+  });
+  router.delete("/curation/datasets/:slug/editors/:userId", requireWriteScope, requireRole("curator"), async (req, res) => {
+    const { slug, userId } = parseParams(editorParams, req);
+    res.json(await removeEditor(db, currentUser(req), await datasetBySlug(db, slug), userId));
   });
 
   registry.registerPath({

@@ -1,9 +1,9 @@
-import { desc, eq, inArray, or } from "drizzle-orm";
+import { and, desc, eq, inArray, or } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { datasetEditors, datasets, versions } from "@/db/schema";
+import { datasetEditors, datasets, users, versions } from "@/db/schema";
 import type { CurationDataset, DatasetCreate, DatasetPatch, VersionBrief } from "@/schemas/curation";
 import { datasetCreate } from "@/schemas/curation";
-import { conflict, notFound } from "@/server/errors";
+import { conflict, forbidden, HttpProblem, notFound } from "@/server/errors";
 import { findUserByEmail } from "@/server/services/users";
 import { compareSemver, datasetDescription } from "@/server/services/catalogue";
 import { assertCanEdit, canEditDataset, type Dataset, type User } from "./access";
@@ -24,10 +24,18 @@ export function versionBrief(v: typeof versions.$inferSelect): VersionBrief {
 }
 
 async function describe(db: Db, user: User | undefined, d: Dataset): Promise<CurationDataset> {
-  const [vs, editors] = await Promise.all([
+  const [vs, editors, canEdit] = await Promise.all([
     db.select().from(versions).where(eq(versions.datasetId, d.id)),
-    db.select({ userId: datasetEditors.userId }).from(datasetEditors).where(eq(datasetEditors.datasetId, d.id)),
+    db
+      .select({ userId: datasetEditors.userId, displayName: users.displayName, email: users.email })
+      .from(datasetEditors)
+      .innerJoin(users, eq(users.id, datasetEditors.userId))
+      .where(eq(datasetEditors.datasetId, d.id))
+      .orderBy(users.displayName),
+    canEditDataset(db, user, d),
   ]);
+  // Reviewers see who edits, but addresses are for the people who work on the dataset.
+  const seesAddresses = canEdit || user?.role === "admin";
   vs.sort((a, b) => compareSemver(b.semver, a.semver));
   return {
     ...datasetDescription(d),
@@ -35,7 +43,9 @@ async function describe(db: Db, user: User | undefined, d: Dataset): Promise<Cur
     methods: d.methods,
     ownerId: d.ownerId,
     editorIds: editors.map((e) => e.userId),
-    canEdit: await canEditDataset(db, user, d),
+    editors: editors.map((e) => ({ id: e.userId, displayName: e.displayName, email: seesAddresses ? e.email : "" })),
+    canShare: !!user && (user.role === "admin" || user.id === d.ownerId),
+    canEdit,
     versions: vs.map(versionBrief),
     createdAt: d.createdAt.toISOString(),
     updatedAt: d.updatedAt.toISOString(),
@@ -78,12 +88,32 @@ export async function datasetDetail(db: Db, user: User | undefined, dataset: Dat
   return describe(db, user, dataset);
 }
 
+function assertCanShare(user: User, dataset: Dataset) {
+  if (user.role !== "admin" && dataset.ownerId !== user.id) {
+    throw forbidden(`Only the owner of dataset "${dataset.slug}" (or an admin) may choose its editors.`);
+  }
+}
+
 /** The owner (or an admin) shares a dataset with another curator. */
 export async function addEditor(db: Db, user: User, dataset: Dataset, email: string): Promise<CurationDataset> {
-  if (user.role !== "admin" && dataset.ownerId !== user.id) await assertCanEdit(db, undefined, dataset);
+  assertCanShare(user, dataset);
   const editor = await findUserByEmail(db, email);
-  if (!editor) throw notFound(`No user has the e-mail ${email}.`);
-  if (editor.role !== "curator" && editor.role !== "admin") throw conflict(`${email} is a ${editor.role}; only curators can be editors.`);
+  if (!editor) throw new HttpProblem(404, "Not found", `No user has the e-mail ${email}.`, { errors: [{ field: "body.email", message: "no account has this address" }] });
+  if (editor.id === dataset.ownerId) throw conflict(`${email} owns this dataset already.`, [{ field: "body.email", message: "this is the owner" }]);
+  if (editor.role !== "curator" && editor.role !== "admin") {
+    throw conflict(`${email} is a ${editor.role}; only curators can be editors.`, [{ field: "body.email", message: `a ${editor.role}, not a curator` }]);
+  }
   await db.insert(datasetEditors).values({ datasetId: dataset.id, userId: editor.id }).onConflictDoNothing();
+  return describe(db, user, dataset);
+}
+
+/** The owner (or an admin) stops sharing a dataset with an editor. Removing someone who is not an editor is a 404. */
+export async function removeEditor(db: Db, user: User, dataset: Dataset, editorId: string): Promise<CurationDataset> {
+  assertCanShare(user, dataset);
+  const removed = await db
+    .delete(datasetEditors)
+    .where(and(eq(datasetEditors.datasetId, dataset.id), eq(datasetEditors.userId, editorId)))
+    .returning({ userId: datasetEditors.userId });
+  if (!removed.length) throw notFound(`That user is not an editor of dataset "${dataset.slug}".`);
   return describe(db, user, dataset);
 }

@@ -1,6 +1,7 @@
 import { useLocalSearchParams, useRouter } from "expo-router";
 import { StyleSheet, View } from "react-native";
 import { canStartVersion } from "@/components/curation/action-policy";
+import { EditorsPanel } from "@/components/curation/editors-panel";
 import { FieldError } from "@/components/curation/form-fields";
 import { LinkButton } from "@/components/curation/link-button";
 import { VersionTimeline } from "@/components/curation/version-timeline";
@@ -63,6 +64,8 @@ function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
         <Text variant="heading">Versions</Text>
         <VersionTimeline versions={d.versions} />
       </View>
+
+      <EditorsPanel dataset={d} />
     </>
   );
 }
