@@ -97,6 +97,8 @@ export const applications = pgTable(
     productRate: doublePrecision("product_rate").notNull(),
     /** lb/ac, kg/ha, gal/ac or L/ha. */
     rateUnit: text("rate_unit").notNull(),
+    /** Fluids only: the density (lb/gal) the rate was converted with, as given or the grade's typical value. */
+    densityLbGal: doublePrecision("density_lb_gal"),
     placement: text("placement").notNull(),
     timing: text("timing").notNull(),
     nLbAc: doublePrecision("n_lb_ac").notNull(),

@@ -228,6 +228,16 @@ describe("units at the edge", () => {
     expect(t2[0]).toMatchObject({ code: "BAND", n_lb_ac: 11, p2o5_lb_ac: 52, nutrients: ["N", "P"], placements: ["2x2-band"] });
     expect(t2[1]!.n_lb_ac).toBeCloseTo(5.7, 9);
     expect(t2[1]!.p2o5_lb_ac).toBeCloseTo(19.38, 9);
+    // The density used is kept with the application (the grade's typical one here), and a dry product has none.
+    const dens = await rows<{ code: string; density_lb_gal: number | null }>(
+      sql`select t.code, a.density_lb_gal from applications a join treatments t on t.id = a.treatment_id where a.version_id = ${f.versionId} and t.code in ('IF', 'BAND') order by t.code`,
+    );
+    expect(dens).toEqual([{ code: "BAND", density_lb_gal: null }, { code: "IF", density_lb_gal: 11.4 }]);
+    // A density given in the file wins over the typical one (10.67 lb/gal for 28 % UAN, from memory).
+    await upload(f.curatorAgent, f.versionId, "treatments", "treatment,name,is_check,application,product,grade,product_rate,rate_unit,density_lb_gal,placement,timing\nFL,Fluid given,false,1,UAN,28-0-0,10,gal/ac,10.67,broadcast,pre-plant\n").expect(201);
+    const [fl] = await rows<{ n_lb_ac: number; density_lb_gal: number }>(sql`select t.n_lb_ac, a.density_lb_gal from treatments t join applications a on a.treatment_id = t.id where t.version_id = ${f.versionId} and t.code = 'FL'`);
+    expect(fl!.density_lb_gal).toBe(10.67);
+    expect(fl!.n_lb_ac).toBeCloseTo(10 * 10.67 * 0.28, 3);
     // An elemental grade: 0-20-0 as P is 45.82 % P2O5 (÷ 0.4365, Virginia Tech SPES-201NP).
     await upload(f.curatorAgent, f.versionId, "treatments", "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\nEL,Elemental,false,1,TSP-E,0-20-0,100,kg/ha,broadcast,pre-plant\n", { units: JSON.stringify({ gradeBasis: "element" }) }).expect(201);
     const [el] = await rows<{ p2o5_lb_ac: number }>(sql`select p2o5_lb_ac from treatments where version_id = ${f.versionId} and code = 'EL'`);

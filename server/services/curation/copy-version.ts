@@ -19,8 +19,8 @@ export async function copyVersionRows(tx: Tx, from: string, to: string): Promise
         WHERE st.version_id = ${from}`,
     sql`INSERT INTO treatments (version_id, code, name, is_check, n_lb_ac, p2o5_lb_ac, k2o_lb_ac, s_lb_ac, nutrients, placements)
         SELECT ${to}, code, name, is_check, n_lb_ac, p2o5_lb_ac, k2o_lb_ac, s_lb_ac, nutrients, placements FROM treatments WHERE version_id = ${from}`,
-    sql`INSERT INTO applications (version_id, treatment_id, product, grade, product_rate, rate_unit, placement, timing, n_lb_ac, p2o5_lb_ac, k2o_lb_ac, s_lb_ac)
-        SELECT ${to}, nt.id, a.product, a.grade, a.product_rate, a.rate_unit, a.placement, a.timing, a.n_lb_ac, a.p2o5_lb_ac, a.k2o_lb_ac, a.s_lb_ac
+    sql`INSERT INTO applications (version_id, treatment_id, product, grade, product_rate, rate_unit, density_lb_gal, placement, timing, n_lb_ac, p2o5_lb_ac, k2o_lb_ac, s_lb_ac)
+        SELECT ${to}, nt.id, a.product, a.grade, a.product_rate, a.rate_unit, a.density_lb_gal, a.placement, a.timing, a.n_lb_ac, a.p2o5_lb_ac, a.k2o_lb_ac, a.s_lb_ac
         FROM applications a JOIN treatments ot ON ot.id = a.treatment_id JOIN treatments nt ON nt.version_id = ${to} AND nt.code = ot.code
         WHERE a.version_id = ${from} ORDER BY a.id`,
     sql`INSERT INTO plots (version_id, site_year_id, treatment_id, plot, block, yield_kg_ha, harvest_moisture_pct, stand_count, vigour, test_weight)

@@ -11,6 +11,7 @@ interface Application {
   grade: string;
   productRate: number;
   rateUnit: string;
+  densityLbGal: number | null;
   placement: string;
   timing: string;
   n: number;
@@ -82,6 +83,7 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
         grade,
         productRate: num(v.product_rate)!,
         rateUnit: unit,
+        densityLbGal: isFluidUnit(unit) ? density : null,
         placement: String(v.placement),
         timing: String(v.timing),
         n: round(rates.nitrogen),
@@ -134,10 +136,10 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
       const appRows: Cell[][] = [];
       for (const t of rows.values()) {
         for (const a of [...t.applications.entries()].sort(([x], [y]) => x - y).map(([, a]) => a)) {
-          appRows.push([versionId, ids.get(t.code)!, a.product, a.grade, a.productRate, a.rateUnit, a.placement, a.timing, a.n, a.p2o5, a.k2o, a.s]);
+          appRows.push([versionId, ids.get(t.code)!, a.product, a.grade, a.productRate, a.rateUnit, a.densityLbGal, a.placement, a.timing, a.n, a.p2o5, a.k2o, a.s]);
         }
       }
-      await insertRows(database, tx, "applications", ["version_id", "treatment_id", "product", "grade", "product_rate", "rate_unit", "placement", "timing", "n_lb_ac", "p2o5_lb_ac", "k2o_lb_ac", "s_lb_ac"], appRows);
+      await insertRows(database, tx, "applications", ["version_id", "treatment_id", "product", "grade", "product_rate", "rate_unit", "density_lb_gal", "placement", "timing", "n_lb_ac", "p2o5_lb_ac", "k2o_lb_ac", "s_lb_ac"], appRows);
       if (options.mode === "replace") {
         const gone = [...state.treatments.entries()].filter(([c]) => !rows.has(c)).map(([, t]) => t.id);
         if (gone.length) await tx.delete(treatments).where(inArray(treatments.id, gone));

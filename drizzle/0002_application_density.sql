@@ -1,0 +1,1 @@
+ALTER TABLE "applications" ADD COLUMN "density_lb_gal" double precision;
