@@ -1,6 +1,7 @@
 /**
  * Plotbank's palette. Text colours are chosen for WCAG AA contrast (4.5:1 or more) on the surfaces they sit on:
- * ink on paper 14.8:1, muted on paper 6.0:1, white on field 6.4:1, danger on paper 6.1:1.
+ * ink on paper 14.8:1, muted on paper 6.0:1, white on field 6.4:1, danger on paper 6.1:1, wheatText on wheatTint 5.8:1.
+ * tests/browser/contrast.test.ts checks every rendered text against its real background.
  */
 export const colors = {
   paper: "#f7f5ef",
@@ -12,6 +13,8 @@ export const colors = {
   fieldDark: "#214d2a",
   fieldTint: "#e3eee2",
   wheat: "#9a6b00",
+  /** Wheat for text: 5.8:1 on wheatTint, 6.8:1 on white (plain wheat is 4.0:1 on its tint, too little for text). */
+  wheatText: "#7a5400",
   wheatTint: "#f6ecd2",
   danger: "#a3262a",
   dangerTint: "#f9e3e2",

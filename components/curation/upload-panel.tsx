@@ -148,7 +148,7 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
       {reportId ? <ReportView versionId={version.id} reportId={reportId} /> : null}
       {upload.data && !upload.data.accepted ? null : upload.data?.responses?.uncomputed.length ? (
         <Card>
-          <Text variant="subheading" style={{ color: colors.wheat }}>Site-years without responses</Text>
+          <Text variant="subheading" style={{ color: colors.wheatText }}>Site-years without responses</Text>
           {upload.data.responses.uncomputed.map((u) => (
             <Text key={u.siteYear}>{u.siteYear}: {u.reason}</Text>
           ))}

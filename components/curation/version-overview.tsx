@@ -34,7 +34,7 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
         )}
         {version.uncomputedSiteYears.length ? (
           <View style={styles.warn}>
-            <Text variant="subheading" style={{ color: colors.wheat }}>Site-years without responses ({version.uncomputedSiteYears.length})</Text>
+            <Text variant="subheading" style={{ color: colors.wheatText }}>Site-years without responses ({version.uncomputedSiteYears.length})</Text>
             {version.uncomputedSiteYears.map((u) => <Text key={u.siteYear}>{u.siteYear}: {u.reason}</Text>)}
           </View>
         ) : null}

@@ -6,7 +6,7 @@ import { colors, radius, space } from "@/constants/theme";
 export function Cautions({ cautions }: { cautions: string[] }) {
   return (
     <View style={styles.box} role="note" aria-label="Cautions" testID="cautions">
-      <Text variant="subheading" style={{ color: colors.wheat }}>Before you act on this</Text>
+      <Text variant="subheading" style={{ color: colors.wheatText }}>Before you act on this</Text>
       {cautions.map((c) => (
         <Text key={c} variant="caption" style={styles.text}>• {c}</Text>
       ))}
