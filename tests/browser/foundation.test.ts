@@ -50,6 +50,22 @@ describe.each([
   });
 });
 
+describe("compression", () => {
+  it("serves the web bundle and API pages gzipped to a client that accepts it, and plain to one that does not", async () => {
+    const html = await (await fetch(server.url)).text();
+    const bundle = html.match(/<script[^>]+src="([^"]+\.js)"/)![1]!;
+    const gz = await fetch(`${server.url}${bundle}`, { headers: { "Accept-Encoding": "gzip" } });
+    expect(gz.headers.get("content-encoding")).toBe("gzip");
+    const plain = await fetch(`${server.url}${bundle}`, { headers: { "Accept-Encoding": "identity" } });
+    expect(plain.headers.get("content-encoding")).toBeNull();
+    // Same script either way (fetch undoes the gzip).
+    expect(await gz.text()).toBe(await plain.text());
+    const api = await fetch(`${server.url}/api/v1/responses?limit=200`, { headers: { "Accept-Encoding": "gzip" } });
+    expect(api.headers.get("content-encoding")).toBe("gzip");
+    expect(((await api.json()) as { items: unknown[] }).items.length).toBeGreaterThan(0);
+  });
+});
+
 describe("deep links", () => {
   it("a reload on a deep path serves the app, not a 404", async () => {
     const res = await fetch(`${server.url}/datasets/some-slug`);
