@@ -8,6 +8,7 @@ import { conflict, HttpProblem } from "@/server/errors";
 import { readCsvStream } from "./csv-stream";
 import { loadDraftState } from "./draft-state";
 import { compileResource, type CompiledField } from "./field-values";
+import { plotOutcomes } from "./plot-outcomes";
 import { recomputeResponses, type RecomputeResult } from "./recompute-responses";
 import { Reporter } from "./report";
 import { storeUpload } from "./upload-store";
@@ -125,6 +126,8 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
   handler.finish();
 
   const problems = report.all();
+  // Started before the transaction so that, for a large file, the ANOVAs run on a worker while the plots are stored.
+  const fileOutcomes = report.errors === 0 && handler.plotOutcomeRequest ? plotOutcomes(handler.plotOutcomeRequest()) : undefined;
   const base = { resource: input.resource, filename: input.filename, rows: read.rows, sha256: read.sha256, byteSize: read.byteSize, delimiter: read.delimiter };
   if (report.errors > 0) {
     const [saved] = await db
@@ -142,7 +145,7 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
       throw conflict("The draft changed while the file was being checked (another upload or a submission); upload it again.");
     }
     const affected = await handler.write(database, tx);
-    if (input.resource !== "sites") recomputed = await recomputeResponses(database, tx, input.versionId, affected);
+    if (input.resource !== "sites") recomputed = await recomputeResponses(database, tx, input.versionId, affected, fileOutcomes);
     const uploadId = await storeUpload(database, tx, {
       versionId: input.versionId,
       resource: input.resource,

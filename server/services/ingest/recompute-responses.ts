@@ -29,16 +29,25 @@ const CHUNK = 400;
  * Computes the responses of a draft's site-years again (all of them, or those a file touched), inside the upload's
  * transaction. A site-year whose responses cannot be computed keeps none and is listed with the reason.
  */
-export async function recomputeResponses(database: Database, tx: Tx, versionId: string, affected: Affected): Promise<RecomputeResult> {
-  const computed = await computeResponses(tx, versionId, affected);
+export async function recomputeResponses(database: Database, tx: Tx, versionId: string, affected: Affected, fromFile?: FilePlotOutcomes): Promise<RecomputeResult> {
+  const computed = await computeResponses(tx, versionId, affected, fromFile);
   if (affected === "all") await tx.delete(responses).where(eq(responses.versionId, versionId));
   else if (computed.siteYearIds.length) await tx.delete(responses).where(and(eq(responses.versionId, versionId), inArray(responses.siteYearId, computed.siteYearIds)));
   await insertRows(database, tx, "responses", RESPONSE_COLUMNS, computed.rows);
   return { siteYears: computed.siteYearIds.length, rows: computed.rows.length, uncomputed: computed.uncomputed };
 }
 
-/** The response rows of a draft's site-years (read only), and the site-years that have none, with the reason. */
-export async function computeResponses(tx: Tx, versionId: string, affected: Affected): Promise<{ siteYearIds: number[]; rows: Cell[][]; uncomputed: RecomputeResult["uncomputed"] }> {
+/**
+ * The outcomes of the site-years a plots file has just written, computed from the file's rows. They hold every
+ * plot those site-years now have (the write replaced their plots), so the plots need not be read back.
+ */
+export type FilePlotOutcomes = Promise<Map<number, SiteYearOutcome>>;
+
+/**
+ * The response rows of a draft's site-years (read only), and the site-years that have none, with the reason.
+ * With `fromFile`, plots come from that file alone: a site-year it has no yields for has no plots with yields now.
+ */
+export async function computeResponses(tx: Tx, versionId: string, affected: Affected, fromFile?: FilePlotOutcomes): Promise<{ siteYearIds: number[]; rows: Cell[][]; uncomputed: RecomputeResult["uncomputed"] }> {
   const syRows = await tx
     .select({
       id: siteYears.id, code: siteYears.code, siteCode: sites.code, crop: siteYears.crop, year: siteYears.year, tillage: siteYears.tillage,
@@ -55,15 +64,18 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
   const trtById = new Map(trtRows.map((t) => [t.id, t]));
   const isCheck = (id: number) => trtById.get(id)?.isCheck === true;
   const uncomputed: RecomputeResult["uncomputed"] = [];
+  const fileOutcomes = fromFile ? await fromFile : null;
 
   for (let start = 0; start < syRows.length; start += CHUNK) {
     const chunk = syRows.slice(start, start + CHUNK);
     const chunkIds = chunk.map((s) => s.id);
     const [plotRows, meanRows, soilRows] = await Promise.all([
-      tx
-        .select({ siteYearId: plots.siteYearId, treatmentId: plots.treatmentId, block: plots.block, y: plots.yieldKgHa })
-        .from(plots)
-        .where(and(inArray(plots.siteYearId, chunkIds), isNotNull(plots.yieldKgHa))),
+      fileOutcomes
+        ? Promise.resolve([])
+        : tx
+            .select({ siteYearId: plots.siteYearId, treatmentId: plots.treatmentId, block: plots.block, y: plots.yieldKgHa })
+            .from(plots)
+            .where(and(inArray(plots.siteYearId, chunkIds), isNotNull(plots.yieldKgHa))),
       tx.select().from(summaryMeans).where(inArray(summaryMeans.siteYearId, chunkIds)),
       tx.select().from(soilTests).where(inArray(soilTests.siteYearId, chunkIds)),
     ]);
@@ -90,7 +102,9 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
       const plotList = plotsBySy.get(sy.id);
       const meanList = meansBySy.get(sy.id);
       let outcome: SiteYearOutcome;
-      if (plotList?.length) outcome = responsesFromPlots(plotList, isCheck);
+      const fromPlotsFile = fileOutcomes?.get(sy.id);
+      if (fromPlotsFile) outcome = fromPlotsFile;
+      else if (plotList?.length) outcome = responsesFromPlots(plotList, isCheck);
       else if (meanList?.length)
         outcome = responsesFromSummaries(
           meanList.map((m) => ({ treatmentId: m.treatmentId, mean: m.meanKgHa, replicates: m.replicates, mse: m.mse, dfError: m.dfError })),

@@ -3,6 +3,7 @@ import type { UploadOptions } from "@/schemas/curation";
 import type { ResourceName } from "@/schemas/table-schema";
 import type { DraftState } from "./draft-state";
 import type { Cell } from "./field-values";
+import type { PlotOutcomeRequest } from "./plot-outcomes";
 import type { Reporter } from "./report";
 import type { Tx } from "./write-rows";
 
@@ -30,6 +31,8 @@ export interface ResourceIngest {
   /** Rows the file contributes (for the upload record). */
   count(): number;
   write(database: Database, tx: Tx): Promise<Affected>;
+  /** Plots files: the plots with a yield per site-year, so responses can be computed from the file itself. */
+  plotOutcomeRequest?(): PlotOutcomeRequest;
 }
 
 export const str = (v: Cell | undefined): string | null => (v === null || v === undefined ? null : String(v));

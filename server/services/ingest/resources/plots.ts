@@ -3,6 +3,7 @@ import { plots } from "@/db/schema";
 import { toStandardMoisture, yieldFactorToKgHa } from "../edge-units";
 import type { Cell } from "../field-values";
 import { num, type IngestContext, type ResourceIngest } from "../resource-ingest";
+import type { PlotOutcomeRequest } from "../plot-outcomes";
 import { insertRows } from "../write-rows";
 import { balanceRule, checkRule, newTally, outlierRule, type SiteYearTally } from "./site-year-rules";
 
@@ -67,6 +68,8 @@ export function plotsIngest({ state, options, report, versionId }: IngestContext
         tally.cells.set(cell, seen + 1);
         tally.yields.push(y);
         tally.yieldRows.push(row);
+        tally.yieldTreatmentIds.push(trt.id);
+        tally.yieldBlocks.push(block);
       } else if (!tally.cells.has(cell)) tally.cells.set(cell, 0);
       out.push([versionId, tally.id, trt.id, plot, block, y, moisture, num(v.stand_count), num(v.vigour), num(v.test_weight)]);
     },
@@ -78,6 +81,28 @@ export function plotsIngest({ state, options, report, versionId }: IngestContext
       }
     },
     count: () => out.length,
+    plotOutcomeRequest() {
+      const withYields = [...tallies.values()].filter((t) => t.yields.length > 0);
+      const total = withYields.reduce((a, t) => a + t.yields.length, 0);
+      const request: PlotOutcomeRequest = {
+        siteYearIds: withYields.map((t) => t.id),
+        offsets: new Int32Array(withYields.length + 1),
+        treatmentIds: new Float64Array(total),
+        blocks: new Int32Array(total),
+        yields: new Float64Array(total),
+        checkTreatmentIds: [...state.treatments.values()].filter((t) => t.isCheck).map((t) => t.id),
+      };
+      let at = 0;
+      withYields.forEach((t, i) => {
+        request.offsets[i] = at;
+        request.treatmentIds.set(t.yieldTreatmentIds, at);
+        request.blocks.set(t.yieldBlocks, at);
+        request.yields.set(t.yields, at);
+        at += t.yields.length;
+      });
+      request.offsets[withYields.length] = at;
+      return request;
+    },
     async write(database, tx) {
       if (options.mode === "replace") await tx.delete(plots).where(eq(plots.versionId, versionId));
       else {

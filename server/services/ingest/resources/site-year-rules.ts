@@ -9,10 +9,13 @@ export interface SiteYearTally {
   cells: Map<string, number>;
   yields: number[];
   yieldRows: number[];
+  /** Treatment id and block of each yield, in the same order (plots files only). */
+  yieldTreatmentIds: number[];
+  yieldBlocks: number[];
 }
 
 export function newTally(code: string, row: number): SiteYearTally {
-  return { code, firstRow: row, treatments: new Set(), cells: new Map(), yields: [], yieldRows: [] };
+  return { code, firstRow: row, treatments: new Set(), cells: new Map(), yields: [], yieldRows: [], yieldTreatmentIds: [], yieldBlocks: [] };
 }
 
 /** Exactly one untreated check among the treatments a site-year uses. */
