@@ -6,7 +6,7 @@ import { colors, space } from "@/constants/theme";
 import { curationPaths, useReport } from "@/hooks/use-curation";
 import { send } from "@/lib/api-client";
 import { resourceLabels } from "./format";
-import { ProblemReportTable } from "./problem-report-table";
+import { ProblemReportTable } from "@/components/lazy-tables";
 import { saveTextFile } from "./save-text-file";
 
 /** One stored validation report: the verdict, the counts, then every problem. */

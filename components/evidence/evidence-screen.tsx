@@ -25,7 +25,7 @@ import { Disclosure } from "./disclosure";
 import { FilterPanel } from "./filter-panel";
 import { formatInterval, formatResponse, unitLabel } from "./format";
 import { ProvenancePanel } from "./provenance-panel";
-import { SiteYearTable } from "./site-year-table";
+import { SiteYearTable } from "@/components/lazy-tables";
 import { SubgroupView } from "./subgroup-view";
 import { SummaryCard } from "./summary-card";
 

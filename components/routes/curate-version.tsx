@@ -1,7 +1,7 @@
 import { useLocalSearchParams } from "expo-router";
 import { useState } from "react";
 import { StyleSheet, View } from "react-native";
-import { DictionaryEditor } from "@/components/curation/dictionary-editor";
+import { DictionaryEditor } from "@/components/lazy-tables";
 import { LinkButton } from "@/components/curation/link-button";
 import { SegmentTabs } from "@/components/curation/segment-tabs";
 import { StateBadge } from "@/components/curation/state-badge";

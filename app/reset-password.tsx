@@ -1,0 +1,3 @@
+import { lazyRoute } from "@/components/lazy";
+
+export default lazyRoute(() => import("@/components/routes/reset-password"));
