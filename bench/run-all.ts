@@ -4,7 +4,7 @@ import { existsSync, readFileSync, writeFileSync } from "node:fs";
 import path from "node:path";
 
 /**
- * `npm run bench`: run the ingest, API and meta-analysis benchmarks (and, with BENCH_ALL=1, the load and crash
+ * `npm run bench`: run the ingest, API, meta-analysis and web-bundle benchmarks (and, with BENCH_ALL=1, the load and crash
  * scripts), then write bench/RESULTS.md: each benchmark's own table (figures beside their baselines) and the
  * machine it ran on. Benchmarks are not tests: they only report.
  */
@@ -12,6 +12,7 @@ const benches = [
   { name: "ingest", file: "ingest.ts", title: "Ingest: 1,000,000 plot rows through the upload service vs PGlite COPY" },
   { name: "api", file: "api.ts", title: "API: filtered reads through HTTP vs the same SQL on PGlite" },
   { name: "meta", file: "meta.ts", title: "Meta-analysis: REML + HKSJ fits and the endpoint" },
+  { name: "bundle", file: "bundle.ts", title: "Web export: first-screen JavaScript, gzip (needs dist/: npm run build:web)" },
   ...(process.env.BENCH_ALL ? [
     { name: "load", file: "load.ts", title: "Load: 50 clients for 60 s against the public reads and the meta-analysis" },
     { name: "crash", file: "crash.ts", title: "Crash safety: SIGKILL mid-import and mid-publish" },
