@@ -13,7 +13,9 @@ import { metaAnalysis } from "@/stats";
 /**
  * Meta-analysis speed: REML + HKSJ on k = 100, 1,000 and 10,000 effects, and the whole /api/v1/analyses/meta endpoint
  * (database read, per-site-year effects, fit, subgroups, decision numbers, JSON) on the demo data and on 20,000
- * site-years. Writes a Markdown table and bench/out/meta.json. Loopback only.
+ * site-years (BENCH_META_SITE_YEARS=2000 for a quicker run; BENCH_META_ENDPOINT_ONLY=1 skips the fit and demo rows). The
+ * large JSON answers use the default forest bound; one row asks for forestLimit=all to show what the full forest costs.
+ * Writes a Markdown table and bench/out/meta.json. Loopback only.
  */
 
 /** Park–Miller minimal standard generator: reproducible effects without a dependency. */
@@ -107,6 +109,30 @@ async function bulkInsert(ctx: AppContext, count: number) {
 
 async function main() {
   const rows: { case: string; k: number; medianMs: number; note: string }[] = [];
+  const siteYearCount = Number(process.env.BENCH_META_SITE_YEARS ?? 20_000);
+  const endpointOnly = process.env.BENCH_META_ENDPOINT_ONLY === "1";
+  if (!endpointOnly) await fitAndDemo(rows);
+
+  const large = await serve();
+  const t0 = performance.now();
+  await bulkInsert(large.ctx, siteYearCount);
+  const insertMs = performance.now() - t0;
+  const label = siteYearCount.toLocaleString("en-US");
+  for (const query of ["?dataset=bench-large", "?dataset=bench-large&groupBy=soilTestClass&price=11&cost=24", "?dataset=bench-large&forestLimit=all"]) {
+    const r = await timeRequest(`${large.url}/api/v1/analyses/meta${query}`, 3);
+    const size = r.bytes > 1024 * 1024 ? `${(r.bytes / 1024 / 1024).toFixed(1)} MB` : `${(r.bytes / 1024).toFixed(0)} KB`;
+    rows.push({ case: `endpoint, ${label} site-years ${query}`, k: r.k, medianMs: r.medianMs, note: `PGlite in memory; ${size} JSON; bulk insert took ${(insertMs / 1000).toFixed(1)} s` });
+  }
+  await large.stop();
+
+  const table = ["| case | k | median ms | note |", "|---|---:|---:|---|", ...rows.map((r) => `| ${r.case} | ${r.k} | ${r.medianMs.toFixed(1)} | ${r.note} |`)].join("\n");
+  console.log(table);
+  const out = path.resolve(__dirname, "out");
+  mkdirSync(out, { recursive: true });
+  writeFileSync(path.join(out, "meta.json"), JSON.stringify({ node: process.version, at: new Date().toISOString(), rows }, null, 2));
+}
+
+async function fitAndDemo(rows: { case: string; k: number; medianMs: number; note: string }[]) {
   // Warm the JIT so the first size is not charged for compilation.
   for (let i = 0; i < 20; i++) metaAnalysis({ ...effects(200), method: "REML", ci: "hksj" });
   for (const k of [100, 1_000, 10_000]) {
@@ -133,22 +159,6 @@ async function main() {
     rows.push({ case: `endpoint, demo data ${query || "(no filters)"}`, k: r.k, medianMs: r.medianMs, note: `${demoNote}; ${(r.bytes / 1024).toFixed(0)} KB JSON` });
   }
   await demo.stop();
-
-  const large = await serve();
-  const t0 = performance.now();
-  await bulkInsert(large.ctx, 20_000);
-  const insertMs = performance.now() - t0;
-  for (const query of ["?dataset=bench-large", "?dataset=bench-large&groupBy=soilTestClass&price=11&cost=24"]) {
-    const r = await timeRequest(`${large.url}/api/v1/analyses/meta${query}`, 3);
-    rows.push({ case: `endpoint, 20,000 site-years ${query}`, k: r.k, medianMs: r.medianMs, note: `PGlite in memory; ${(r.bytes / 1024 / 1024).toFixed(1)} MB JSON; bulk insert took ${(insertMs / 1000).toFixed(1)} s` });
-  }
-  await large.stop();
-
-  const table = ["| case | k | median ms | note |", "|---|---:|---:|---|", ...rows.map((r) => `| ${r.case} | ${r.k} | ${r.medianMs.toFixed(1)} | ${r.note} |`)].join("\n");
-  console.log(table);
-  const out = path.resolve(__dirname, "out");
-  mkdirSync(out, { recursive: true });
-  writeFileSync(path.join(out, "meta.json"), JSON.stringify({ node: process.version, at: new Date().toISOString(), rows }, null, 2));
 }
 
 main().catch((error) => {

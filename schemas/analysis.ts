@@ -16,6 +16,9 @@ export type Grouping = (typeof groupings)[number];
 
 const money = z.coerce.number().finite().min(0).max(100_000);
 
+/** Forest rows in a JSON answer when forestLimit is not given; a phone's forest plot reads no more than this. */
+export const defaultForestLimit = 200;
+
 /** The analysis options beside the shared trial filters; each also appears in share links of the Evidence screen. */
 export const metaOptionShape = {
   effect: z.enum(effectMeasures).default("md").describe("md: yield response (treated − check); lnrr: log response ratio ln(treated/check)"),
@@ -28,6 +31,14 @@ export const metaOptionShape = {
   applicationCost: money.optional().describe("Application cost, $/ac (instead of cost)"),
   units: z.enum(yieldUnits).default("bu/ac").describe("Units of a yield response; each row is converted with its own crop's bushel weight"),
   format: z.enum(["json", "csv"]).default("json").describe("csv: the per-site-year rows, to reproduce the fit elsewhere"),
+  forestLimit: z
+    .union([z.literal("all"), z.coerce.number().int().min(0).max(1_000_000)])
+    .optional()
+    .describe(
+      `Most per-site-year forest rows to return: a number (0 for none) or all. Default ${defaultForestLimit} for JSON and all for ` +
+        "CSV. Beyond it the most precise site-years (largest 1/(vᵢ + τ²)) are kept, in the usual order; every number " +
+        "(pooled, heterogeneity, subgroups, decision, provenance) still uses every site-year, and `forest` says how many rows were left out.",
+    ),
 };
 
 const filterKeys = Object.keys(trialFilterShape) as (keyof typeof trialFilterShape)[];
@@ -77,6 +88,17 @@ export const forestRow = z
   })
   .meta({ id: "ForestRow" });
 export type ForestRow = z.infer<typeof forestRow>;
+
+export const forestExtent = z
+  .object({
+    total: z.number().int().describe("Forest rows the analysis has (site-years, or site-year × level when grouped)"),
+    returned: z.number().int().describe("Rows in `rows`"),
+    limit: z.number().int().nullable().describe("The forestLimit applied; null for all"),
+    truncated: z.boolean(),
+    note: z.string().nullable().describe("Which rows were kept when truncated"),
+  })
+  .meta({ id: "ForestExtent" });
+export type ForestExtent = z.infer<typeof forestExtent>;
 
 export const pooledEstimate = z
   .object({
@@ -184,7 +206,8 @@ export const metaAnalysisResult = z
     k: z.number().int(),
     effect: z.enum(effectMeasures),
     units: z.string().describe("bu/ac, kg/ha, or ln(ratio)"),
-    rows: z.array(forestRow),
+    rows: z.array(forestRow).describe("Per-site-year rows, bounded by forestLimit (see `forest`)"),
+    forest: forestExtent,
     pooled: pooledEstimate.nullable(),
     heterogeneity: heterogeneity.nullable(),
     subgroups: subgroups.nullable(),

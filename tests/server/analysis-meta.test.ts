@@ -2,7 +2,7 @@ import { readFileSync } from "node:fs";
 import Papa from "papaparse";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { metaAnalysisResult } from "@/schemas/analysis";
+import { defaultForestLimit, metaAnalysisResult } from "@/schemas/analysis";
 import {
   breakEvenResponse,
   combineWithinSiteYear,
@@ -361,6 +361,8 @@ describe("bad input", () => {
     ["?version=1.0.0", "query.version"],
     ["?yearFrom=2022&yearTo=2020", "query.yearTo"],
     ["?cost=10&productCost=5", "query.cost"],
+    ["?forestLimit=-1", "query.forestLimit"],
+    ["?forestLimit=some", "query.forestLimit"],
   ])("%s is a 400 naming %s", async (query, field) => {
     const body = await problem(query, 400);
     expect(body.title).toBe("Bad request");
@@ -374,12 +376,73 @@ describe("bad input", () => {
   });
 });
 
+describe("forestLimit bounds the forest rows, never the numbers", () => {
+  const numbers = (b: Awaited<ReturnType<typeof get>>) => ({ k: b.k, pooled: b.pooled, heterogeneity: b.heterogeneity, subgroups: b.subgroups, decision: b.decision, provenance: b.provenance });
+
+  it("keeps the most precise site-years in their usual order; the pooled estimate is the same with and without the bound", async () => {
+    const all = await get("?dataset=p-starter&forestLimit=all&price=11&cost=18");
+    const bounded = await get("?dataset=p-starter&forestLimit=3&price=11&cost=18");
+    expect(all.forest).toEqual({ total: all.k, returned: all.k, limit: null, truncated: false, note: null });
+    expect(bounded.rows).toHaveLength(3);
+    expect(bounded.forest).toMatchObject({ total: all.k, returned: 3, limit: 3, truncated: true });
+    expect(bounded.forest.note).toContain(`3 most precise of ${all.k} site-years`);
+    expect(bounded.notes).toContain(bounded.forest.note);
+    expect(numbers(bounded)).toEqual(numbers(all));
+    // Most precise = smallest SE (largest weight), listed in the unbounded answer's order with identical rows.
+    const expected = [...all.rows].sort((a, b) => a.se - b.se).slice(0, 3).map((r) => r.id);
+    expect(bounded.rows.map((r) => r.id)).toEqual(all.rows.map((r) => r.id).filter((id) => expected.includes(id)));
+    for (const row of bounded.rows) expect(row).toEqual(all.rows.find((r) => r.id === row.id));
+    // The same pooled estimate by hand from every site-year, not only the rows shown.
+    const hand = metaAnalysis({ yi: starterEffects().map((e) => e.yi), vi: starterEffects().map((e) => e.vi), method: "REML", ci: "hksj" });
+    expect(bounded.pooled!.estimate).toBeCloseTo(hand.estimate, 10);
+  });
+
+  it("forestLimit=0 returns no rows and the same numbers, also with subgroups", async () => {
+    const all = await get("?dataset=p-starter&groupBy=placement&forestLimit=all");
+    const none = await get("?dataset=p-starter&groupBy=placement&forestLimit=0");
+    expect(none.rows).toEqual([]);
+    expect(none.forest).toMatchObject({ total: all.rows.length, returned: 0, truncated: true });
+    expect(none.forest.note).toMatch(/site-year × level rows/);
+    expect(numbers(none)).toEqual(numbers(all));
+  });
+
+  it("format=csv gives every row unless forestLimit is given", async () => {
+    const lines = async (q: string) => (await request(t.app).get(`/api/v1/analyses/meta?dataset=p-starter&format=csv${q}`).expect(200)).text.trim().split("\r\n").length - 1;
+    expect(await lines("")).toBe((await get("?dataset=p-starter")).k);
+    expect(await lines("&forestLimit=2")).toBe(2);
+  });
+
+  describe("on more site-years than the default bound", () => {
+    let many: TestApp;
+    beforeAll(async () => {
+      many = await testApp();
+      await insertAnalysisFixture(many.ctx, {
+        slug: "many-site-years",
+        responses: Array.from({ length: defaultForestLimit + 25 }, (_, i) => ({ siteYear: `MS-${String(i).padStart(3, "0")}-2021`, year: 2021, treatment: "BAND", md: 150 + ((i * 37) % 200), se: 60 + ((i * 53) % 90) })),
+      });
+    });
+    afterAll(() => many.close());
+
+    it(`returns ${defaultForestLimit} rows by default and says the forest is truncated`, async () => {
+      const body = metaAnalysisResult.parse((await request(many.app).get("/api/v1/analyses/meta").expect(200)).body);
+      const all = metaAnalysisResult.parse((await request(many.app).get("/api/v1/analyses/meta?forestLimit=all").expect(200)).body);
+      expect(body.k).toBe(defaultForestLimit + 25);
+      expect(body.rows).toHaveLength(defaultForestLimit);
+      expect(body.forest).toMatchObject({ total: defaultForestLimit + 25, returned: defaultForestLimit, limit: defaultForestLimit, truncated: true });
+      expect(all.rows).toHaveLength(defaultForestLimit + 25);
+      expect(numbers(body)).toEqual(numbers(all));
+    });
+  });
+});
+
 describe("OpenAPI", () => {
   it("documents the endpoint with its named schemas", async () => {
     const res = await request(t.app).get("/api/v1/openapi.json").expect(200);
     const op = res.body.paths["/api/v1/analyses/meta"].get;
-    expect(op.parameters.map((p: { name: string }) => p.name)).toEqual(expect.arrayContaining(["crop", "nutrient", "soilTestClass", "effect", "method", "ci", "groupBy", "price", "cost", "units", "format"]));
+    expect(op.parameters.map((p: { name: string }) => p.name)).toEqual(expect.arrayContaining(["crop", "nutrient", "soilTestClass", "effect", "method", "ci", "groupBy", "price", "cost", "units", "format", "forestLimit"]));
     expect(res.body.components.schemas).toHaveProperty("MetaAnalysis");
     expect(res.body.components.schemas).toHaveProperty("ForestRow");
+    expect(res.body.components.schemas).toHaveProperty("ForestExtent");
+    expect(op.parameters.find((p: { name: string }) => p.name === "forestLimit").description).toMatch(/Default 200/);
   });
 });

@@ -1,5 +1,5 @@
 import type { Db } from "@/db/client";
-import type { Grouping, MetaAnalysisResponse, MetaQuery } from "@/schemas/analysis";
+import { defaultForestLimit, type ForestExtent, type Grouping, type MetaAnalysisResponse, type MetaQuery } from "@/schemas/analysis";
 import { filtersToQuery, trialFilterShape, type TrialFilters } from "@/schemas/filters";
 import {
   breakEvenResponse,
@@ -60,8 +60,13 @@ export function analyseContrasts(rows: Contrast[], versions: ResolvedVersion[], 
 
   const subgroups = grouped && groupBy ? subgroupBlock(grouped.units, groupBy, options) : null;
   const forestUnits = grouped ?? overall;
-  const weights = forestUnits === overall ? fit?.weightsPercent ?? [] : withinGroupWeights(grouped!.units, subgroups?.tau2 ?? 0);
-  const forestRows = forestUnits.units.map((unit, i) => forestRow(unit, weights[i] ?? 0, filters, versionOf));
+  const forestTau2 = (grouped ? subgroups?.tau2 : fit?.tau2) ?? 0;
+  const weights = forestUnits === overall ? fit?.weightsPercent ?? [] : withinGroupWeights(grouped!.units, forestTau2);
+  const limit = options.forestLimit ?? (options.format === "csv" ? "all" : defaultForestLimit);
+  const shown = forestSelection(forestUnits.units, forestTau2, limit);
+  const forestRows = shown.map((i) => forestRow(forestUnits.units[i]!, weights[i] ?? 0, filters, versionOf));
+  const forest = forestExtent(forestUnits.units.length, forestRows.length, limit, grouped !== null);
+  if (forest.note) notes.push(forest.note);
 
   const pooled = fit
     ? {
@@ -97,6 +102,7 @@ export function analyseContrasts(rows: Contrast[], versions: ResolvedVersion[], 
     effect,
     units: unitLabel,
     rows: forestRows,
+    forest,
     pooled,
     heterogeneity,
     subgroups,
@@ -155,6 +161,32 @@ function forestRow(unit: AnalysisUnit, weightPercent: number, filters: TrialFilt
     soilTestClass: soil.class,
     soilTestValue: soil.value,
     checkMean: unit.checkMean,
+  };
+}
+
+/**
+ * Which forest rows a bounded answer keeps: the most precise units (largest 1/(vᵢ + τ²), so the largest weights), in
+ * their usual order. Only the rows are bounded; every estimate is computed from all units before this.
+ */
+function forestSelection(units: AnalysisUnit[], tau2: number, limit: number | "all"): number[] {
+  const order = units.map((_, i) => i);
+  if (limit === "all" || units.length <= limit) return order;
+  // Ascending vᵢ is descending 1/(vᵢ + τ²) for one τ²; ties keep the earlier row.
+  order.sort((a, b) => units[a]!.vi - units[b]!.vi || a - b);
+  return order.slice(0, limit).sort((a, b) => a - b);
+}
+
+function forestExtent(total: number, returned: number, limit: number | "all", grouped: boolean): ForestExtent {
+  const truncated = returned < total;
+  const what = grouped ? "site-year × level rows" : "site-years";
+  return {
+    total,
+    returned,
+    limit: limit === "all" ? null : limit,
+    truncated,
+    note: truncated
+      ? `The forest lists the ${returned} most precise of ${total} ${what} (largest weight); every estimate uses all ${total}. forestLimit=all or format=csv gives every row.`
+      : null,
   };
 }
 

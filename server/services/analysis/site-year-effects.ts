@@ -111,10 +111,21 @@ export function buildUnits(
   return { units, excluded };
 }
 
+const criticalByDf = new Map<number, number>();
+/** t(0.975, df), or z(0.975) when df is unknown; site-years share a handful of error dfs, so each is computed once. */
+function critical975(df: number): number {
+  let value = criticalByDf.get(df);
+  if (value === undefined) {
+    value = df > 0 ? tQuantile(0.975, df) : normalQuantile(0.975);
+    criticalByDf.set(df, value);
+  }
+  return value;
+}
+
 /** The site-year's own test of its (combined) contrast, with its error df; normal when df is unknown. */
 export function ownTest(unit: Pick<AnalysisUnit, "yi" | "vi" | "df">) {
   const se = Math.sqrt(unit.vi);
-  const critical = unit.df > 0 ? tQuantile(0.975, unit.df) : normalQuantile(0.975);
+  const critical = critical975(unit.df);
   const pValue = unit.df > 0 && se > 0 ? tTwoSidedP(unit.yi / se, unit.df) : null;
   return { se, ciLower: unit.yi - critical * se, ciUpper: unit.yi + critical * se, pValue, significant: pValue === null ? null : pValue < 0.05 };
 }
