@@ -1,6 +1,5 @@
 import { sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { WORKER_MIN_SITE_YEARS } from "@/server/services/ingest/plot-outcomes";
 import { computeResponses } from "@/server/services/ingest/recompute-responses";
 import { testApp, type TestApp } from "@/tests/support/test-app";
 import { draftWithData, upload, type Fixture } from "./curation-fixtures";
@@ -13,10 +12,10 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const siteYearCount = WORKER_MIN_SITE_YEARS + 10;
+const siteYearCount = 40;
 const code = (i: number) => `TB-01-${String(1800 + i)}`;
 
-/** Plots of many site-years (enough for the worker thread); every seventh one unbalanced by a missing plot. */
+/** Plots of many site-years; every seventh one unbalanced by a missing plot. */
 function manyPlots(): string {
   const lines = ["site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct"];
   for (let s = 0; s < siteYearCount; s++) {

@@ -126,7 +126,7 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
   handler.finish();
 
   const problems = report.all();
-  // Started before the transaction so that, for a large file, the ANOVAs run on a worker while the plots are stored.
+  // Plots files: responses from the file's rows, so the plots need not be read back inside the transaction.
   const fileOutcomes = report.errors === 0 && handler.plotOutcomeRequest ? plotOutcomes(handler.plotOutcomeRequest()) : undefined;
   const base = { resource: input.resource, filename: input.filename, rows: read.rows, sha256: read.sha256, byteSize: read.byteSize, delimiter: read.delimiter };
   if (report.errors > 0) {

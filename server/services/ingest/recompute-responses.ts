@@ -41,7 +41,7 @@ export async function recomputeResponses(database: Database, tx: Tx, versionId: 
  * The outcomes of the site-years a plots file has just written, computed from the file's rows. They hold every
  * plot those site-years now have (the write replaced their plots), so the plots need not be read back.
  */
-export type FilePlotOutcomes = Promise<Map<number, SiteYearOutcome>>;
+export type FilePlotOutcomes = Map<number, SiteYearOutcome>;
 
 /**
  * The response rows of a draft's site-years (read only), and the site-years that have none, with the reason.
@@ -64,7 +64,7 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
   const trtById = new Map(trtRows.map((t) => [t.id, t]));
   const isCheck = (id: number) => trtById.get(id)?.isCheck === true;
   const uncomputed: RecomputeResult["uncomputed"] = [];
-  const fileOutcomes = fromFile ? await fromFile : null;
+  const fileOutcomes = fromFile ?? null;
 
   for (let start = 0; start < syRows.length; start += CHUNK) {
     const chunk = syRows.slice(start, start + CHUNK);
