@@ -33,6 +33,11 @@ const migrationsFolder = path.resolve(__dirname, "../drizzle");
 export async function openDatabase(options: DatabaseOptions = {}): Promise<Database> {
   if (options.url) {
     const pool = new pg.Pool({ connectionString: options.url, max: 10 });
+    // An idle pooled connection can be cut by the server (a restart, an administrator, a dropped database). pg then
+    // emits "error" on the pool and drops that client; unhandled, the event would end the whole process.
+    pool.on("error", (error: Error & { code?: string }) => {
+      if (error.code !== "57P01") console.error(`PostgreSQL: an idle connection failed and was dropped: ${error.message}`);
+    });
     const db = drizzlePg(pool, { schema }) as unknown as Db;
     return { db, kind: "postgres", close: () => pool.end() };
   }
