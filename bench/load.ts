@@ -49,7 +49,7 @@ async function main() {
       `| requests | ${result.requests.total} |`,
       `| throughput | ${Math.round(result.requests.average)} req/s |`,
       `| latency p50 / p95 / p99 | ${p50} / ${p95} / ${p99} ms |`,
-      `| errors (non-2xx, timeouts, socket) | ${errors} |`,
+      `| errors (non-2xx, timeouts, socket) | ${errors}${errors ? ` (${describeErrors(result)})` : ""} |`,
       `| server RSS before → after | ${rssBefore} → ${rssAfter} MB (${growth.toFixed(1)} %; goal < 10 %) |`,
     ];
     record = { seconds, connections, requests: result.requests, p50, p95, p99, errors, rssBefore, rssAfter };
@@ -75,6 +75,13 @@ async function main() {
   mkdirSync(out, { recursive: true });
   writeFileSync(path.join(out, "load.json"), JSON.stringify(record, null, 2));
   if (failed) process.exitCode = 1;
+}
+
+/** Which errors: status codes other than 2xx with their counts, timeouts and socket errors. */
+function describeErrors(result: autocannon.Result): string {
+  const codes = (result as unknown as { statusCodeStats?: Record<string, { count: number }> }).statusCodeStats ?? {};
+  const bad = Object.entries(codes).filter(([c]) => !c.startsWith("2")).map(([c, v]) => `${v.count} × ${c}`);
+  return [...bad, result.timeouts ? `${result.timeouts} timeouts` : "", result.errors ? `${result.errors} socket errors` : ""].filter(Boolean).join(", ");
 }
 
 function percentile(values: number[], q: number): number {
