@@ -42,6 +42,11 @@ async function main() {
     const growth = ((rssAfter - rssBefore) / rssBefore) * 100;
     const [p50, p95, p99] = [0.5, 0.95, 0.99].map((q) => percentile(latencies, q));
     failed = errors > 0 || growth >= 10;
+    if (errors > 0) {
+      // What the server said about them (stderr and stdout, last lines that mention an error).
+      const said = server.output().split("\n").filter((l) => /error|fail|5\d\d/i.test(l)).slice(-10);
+      console.error(`server output about errors:\n${said.join("\n") || "(nothing)"}`);
+    }
     table = [
       `| measure | value |`,
       `|---|---|`,
