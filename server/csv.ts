@@ -28,20 +28,32 @@ export interface CsvColumn<Row> {
   value: (row: Row) => CsvValue;
 }
 
-/** Write a chunk and wait while the socket's buffer is full, so a slow client never makes the server hold rows. */
-function write(res: Response, chunk: string): Promise<void> {
-  if (res.write(chunk)) return Promise.resolve();
-  return new Promise((resolve, reject) => {
-    const done = () => {
-      res.off("drain", done);
-      res.off("close", done);
-      res.off("error", reject);
-      resolve();
-    };
-    res.once("drain", done);
-    res.once("close", done);
-    res.once("error", reject);
+/**
+ * A writer that waits while the socket's buffer is full, so a slow client never makes the server hold rows. It keeps
+ * one listener per event for the whole response: with gzip, "drain" listeners land on the compressor, where
+ * removing them again does not reach, so a listener per wait would pile up.
+ */
+function writerFor(res: Response): (chunk: string) => Promise<void> {
+  let wake: (() => void) | null = null;
+  let failure: Error | null = null;
+  const resume = () => {
+    const w = wake;
+    wake = null;
+    w?.();
+  };
+  res.on("drain", resume);
+  res.on("close", resume);
+  res.on("error", (error: Error) => {
+    failure = error;
+    resume();
   });
+  return (chunk) => {
+    if (failure) return Promise.reject(failure);
+    if (res.write(chunk) || res.destroyed) return Promise.resolve();
+    return new Promise<void>((resolve, reject) => {
+      wake = () => (failure ? reject(failure) : resolve());
+    });
+  };
 }
 
 /**
@@ -50,13 +62,14 @@ function write(res: Response, chunk: string): Promise<void> {
  */
 export async function streamCsv<Row>(res: Response, columns: readonly CsvColumn<Row>[], batches: AsyncIterable<Row[]>): Promise<number> {
   let rows = 0;
-  await write(res, csvLine(columns.map((c) => c.name)));
+  const write = writerFor(res);
+  await write(csvLine(columns.map((c) => c.name)));
   for await (const batch of batches) {
     if (res.destroyed) break;
     let chunk = "";
     for (const row of batch) chunk += csvLine(columns.map((c) => c.value(row)));
     rows += batch.length;
-    await write(res, chunk);
+    await write(chunk);
   }
   res.end();
   return rows;
