@@ -1,13 +1,16 @@
 import { responsesFromPlots, type SiteYearOutcome } from "./site-year-responses";
 
-/** The plots with a yield of the site-years a file writes, flattened into typed arrays (compact for 1,000,000 rows). */
+/** One site-year's plots with a yield, in parallel lists, as the plots file gave them. */
+export interface SiteYearPlots {
+  siteYearId: number;
+  treatmentIds: readonly number[];
+  blocks: readonly number[];
+  yields: readonly number[];
+}
+
+/** The plots with a yield of the site-years a file writes, and which treatments are checks. */
 export interface PlotOutcomeRequest {
-  siteYearIds: number[];
-  /** Start of each site-year's plots in the arrays below; one more entry than siteYearIds. */
-  offsets: Int32Array;
-  treatmentIds: Float64Array;
-  blocks: Int32Array;
-  yields: Float64Array;
+  siteYears: SiteYearPlots[];
   checkTreatmentIds: number[];
 }
 
@@ -19,10 +22,9 @@ export function plotOutcomes(request: PlotOutcomeRequest): Map<number, SiteYearO
   const checks = new Set(request.checkTreatmentIds);
   const isCheck = (id: number) => checks.has(id);
   const out = new Map<number, SiteYearOutcome>();
-  request.siteYearIds.forEach((id, i) => {
-    const plots: { treatmentId: number; block: number; y: number }[] = [];
-    for (let p = request.offsets[i]!; p < request.offsets[i + 1]!; p++) plots.push({ treatmentId: request.treatmentIds[p]!, block: request.blocks[p]!, y: request.yields[p]! });
-    out.set(id, responsesFromPlots(plots, isCheck));
-  });
+  for (const sy of request.siteYears) {
+    const plots = sy.yields.map((y, p) => ({ treatmentId: sy.treatmentIds[p]!, block: sy.blocks[p]!, y }));
+    out.set(sy.siteYearId, responsesFromPlots(plots, isCheck));
+  }
   return out;
 }

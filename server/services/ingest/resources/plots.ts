@@ -81,27 +81,13 @@ export function plotsIngest({ state, options, report, versionId }: IngestContext
       }
     },
     count: () => out.length,
-    plotOutcomeRequest() {
-      const withYields = [...tallies.values()].filter((t) => t.yields.length > 0);
-      const total = withYields.reduce((a, t) => a + t.yields.length, 0);
-      const request: PlotOutcomeRequest = {
-        siteYearIds: withYields.map((t) => t.id),
-        offsets: new Int32Array(withYields.length + 1),
-        treatmentIds: new Float64Array(total),
-        blocks: new Int32Array(total),
-        yields: new Float64Array(total),
+    plotOutcomeRequest(): PlotOutcomeRequest {
+      return {
+        siteYears: [...tallies.values()]
+          .filter((t) => t.yields.length > 0)
+          .map((t) => ({ siteYearId: t.id, treatmentIds: t.yieldTreatmentIds, blocks: t.yieldBlocks, yields: t.yields })),
         checkTreatmentIds: [...state.treatments.values()].filter((t) => t.isCheck).map((t) => t.id),
       };
-      let at = 0;
-      withYields.forEach((t, i) => {
-        request.offsets[i] = at;
-        request.treatmentIds.set(t.yieldTreatmentIds, at);
-        request.blocks.set(t.yieldBlocks, at);
-        request.yields.set(t.yields, at);
-        at += t.yields.length;
-      });
-      request.offsets[withYields.length] = at;
-      return request;
     },
     async write(database, tx) {
       if (options.mode === "replace") await tx.delete(plots).where(eq(plots.versionId, versionId));
