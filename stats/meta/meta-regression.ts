@@ -14,11 +14,12 @@ import {
   tQuantile,
   tTwoSidedP,
 } from "@/stats/distributions";
-import { estimateTauSquared } from "@/stats/meta/tau-squared";
+import { estimateTauSquared, marginalWeights } from "@/stats/meta/tau-squared";
 import type {
   CoefficientEstimate,
   ConfidenceIntervalMethod,
   IterationControl,
+  TauSquaredEstimate,
   TauSquaredMethod,
 } from "@/stats/meta/types";
 import { invertSymmetricPositiveDefinite, weightedLeastSquares } from "@/stats/meta/weighted-least-squares";
@@ -35,6 +36,11 @@ export interface MetaRegressionInput {
   testedCoefficients?: readonly number[];
   level?: number;
   control?: IterationControl;
+  /**
+   * A τ² already estimated for a model with the same column space (metafor's `tau2 =` argument): `~ 0 + group` has
+   * the same residual τ² as `~ group`, so it is not estimated twice.
+   */
+  tau2Estimate?: TauSquaredEstimate;
 }
 
 export interface MetaRegressionResult {
@@ -98,12 +104,12 @@ export function metaRegression(input: MetaRegressionInput): MetaRegressionResult
   const notes: string[] = [];
   const residualDf = k - p;
 
-  const estimate = estimateTauSquared(yi, vi, design, method, input.control);
+  const estimate = input.tau2Estimate ?? estimateTauSquared(yi, vi, design, method, input.control);
   if (estimate.message) notes.push(estimate.message);
   const tau2 = estimate.tau2;
-  const fixedFit = weightedLeastSquares(yi, design, Float64Array.from(vi, (v) => 1 / v));
+  const fixedFit = weightedLeastSquares(yi, design, marginalWeights(vi, 0));
   const qeStatistic = fixedFit.weightedResidualSumOfSquares;
-  const fit = weightedLeastSquares(yi, design, Float64Array.from(vi, (v) => 1 / (v + tau2)));
+  const fit = weightedLeastSquares(yi, design, marginalWeights(vi, tau2));
 
   let covariance = fit.inverseInformation.map((row) => [...row]);
   let knhaScale: number | null = null;

@@ -24,6 +24,8 @@ export interface SubgroupInput {
   ci?: ConfidenceIntervalMethod;
   level?: number;
   control?: IterationControl;
+  /** Fit the model without the moderator for R² (default true); the live analysis has its own overall fit. */
+  r2?: boolean;
 }
 
 export interface CommonTauSquaredSubgroups {
@@ -31,7 +33,7 @@ export interface CommonTauSquaredSubgroups {
   differences: MetaRegressionResult;
   /** `~ 0 + group`: one estimate per level (same τ²); its QM tests all level means = 0. */
   perLevel: MetaRegressionResult;
-  /** R² (%) = max(0, 100(τ²_RE − τ²_ME)/τ²_RE), τ²_RE from the model without the moderator. */
+  /** R² (%) = max(0, 100(τ²_RE − τ²_ME)/τ²_RE), τ²_RE from the model without the moderator; null when not asked. */
   r2Percent: number | null;
 }
 
@@ -74,9 +76,11 @@ export function commonTauSquaredSubgroups(input: SubgroupInput): CommonTauSquare
     coefficientNames: levels,
     testedCoefficients: levels.map((_, index) => index),
     ...options,
+    // Same column space as `~ group`, so the same residual τ² (metafor estimates it again and gets it to 1e-10).
+    tau2Estimate: { tau2: differences.tau2, seTau2: differences.seTau2, converged: differences.converged, iterations: differences.iterations, message: null },
   });
   let r2Percent: number | null = null;
-  if (method !== "FE") {
+  if (method !== "FE" && input.r2 !== false) {
     const overall = metaRegression({ yi: input.yi, vi: input.vi, design: input.yi.map(() => [1]), coefficientNames: ["intrcpt"], ...options });
     r2Percent = overall.tau2 > 0 ? Math.max(0, (100 * (overall.tau2 - differences.tau2)) / overall.tau2) : null;
   }

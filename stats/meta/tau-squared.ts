@@ -12,8 +12,11 @@ import type { IterationControl, TauSquaredEstimate, TauSquaredMethod } from "@/s
 
 export const defaultIterationControl: Required<IterationControl> = { maxIterations: 100, tolerance: 1e-12 };
 
-function marginalWeights(vi: readonly number[], tau2: number): Float64Array {
-  return Float64Array.from(vi, (v) => 1 / (v + tau2));
+/** 1/(vᵢ + τ²). A plain loop: `Float64Array.from` with a map function is several times slower in V8. */
+export function marginalWeights(vi: readonly number[], tau2: number): Float64Array {
+  const weights = new Float64Array(vi.length);
+  for (let i = 0; i < vi.length; i++) weights[i] = 1 / ((vi[i] as number) + tau2);
+  return weights;
 }
 
 function sumOf(values: ArrayLike<number>): number {
@@ -95,7 +98,7 @@ export function estimateTauSquared(
   if (residualDf <= 0) {
     return { tau2: 0, seTau2: null, converged: true, iterations: 0, message: "No residual degrees of freedom: τ² is set to 0." };
   }
-  const fixedWeights = Float64Array.from(vi, (v) => 1 / v);
+  const fixedWeights = marginalWeights(vi, 0);
 
   switch (method) {
     case "DL": {

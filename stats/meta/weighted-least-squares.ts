@@ -83,15 +83,22 @@ export function weightedLeastSquares(y: ArrayLike<number>, design: readonly (rea
   const k = y.length;
   const p = design[0]?.length ?? 0;
   const w = Float64Array.from(weights);
+  // The design row-major in one typed array: the passes below are the hot loops of every τ² iteration.
+  const x = new Float64Array(k * p);
+  for (let i = 0; i < k; i++) {
+    const row = design[i] as readonly number[];
+    for (let a = 0; a < p; a++) x[i * p + a] = row[a] ?? 0;
+  }
   const information: Matrix = Array.from({ length: p }, () => new Array<number>(p).fill(0));
   const score = new Array<number>(p).fill(0);
   for (let i = 0; i < k; i++) {
-    const row = design[i] as readonly number[];
-    const wi = w[i] ?? 0;
+    const wi = w[i] as number;
+    const yi = y[i] ?? 0;
     for (let a = 0; a < p; a++) {
-      const xa = (row[a] ?? 0) * wi;
-      score[a] = (score[a] ?? 0) + xa * (y[i] ?? 0);
-      for (let b = 0; b <= a; b++) (information[a] as number[])[b] = (information[a]?.[b] ?? 0) + xa * (row[b] ?? 0);
+      const xa = (x[i * p + a] as number) * wi;
+      score[a] = (score[a] as number) + xa * yi;
+      const target = information[a] as number[];
+      for (let b = 0; b <= a; b++) target[b] = (target[b] as number) + xa * (x[i * p + b] as number);
     }
   }
   for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) (information[a] as number[])[b] = information[b]?.[a] ?? 0;
@@ -101,30 +108,34 @@ export function weightedLeastSquares(y: ArrayLike<number>, design: readonly (rea
   let rss = 0;
   let rss2 = 0;
   for (let i = 0; i < k; i++) {
-    const row = design[i] as readonly number[];
     let fitted = 0;
-    for (let a = 0; a < p; a++) fitted += (row[a] ?? 0) * (coefficients[a] ?? 0);
+    for (let a = 0; a < p; a++) fitted += (x[i * p + a] as number) * (coefficients[a] as number);
     const residual = (y[i] ?? 0) - fitted;
     residuals[i] = residual;
-    const wi = w[i] ?? 0;
+    const wi = w[i] as number;
     rss += wi * residual * residual;
     rss2 += wi * wi * residual * residual;
   }
-  /** S(G) = X' W G W X. */
-  const sandwich = (g: (i: number) => number): Matrix => {
+  /** S(G) = X' W G W X for the diagonal gᵢ (all ones when omitted). */
+  const sandwich = (g: Float64Array | null): Matrix => {
     const result: Matrix = Array.from({ length: p }, () => new Array<number>(p).fill(0));
     for (let i = 0; i < k; i++) {
-      const row = design[i] as readonly number[];
-      const factor = (w[i] ?? 0) ** 2 * g(i);
+      const factor = (w[i] as number) ** 2 * (g ? (g[i] as number) : 1);
       for (let a = 0; a < p; a++) {
-        const xa = (row[a] ?? 0) * factor;
-        for (let b = 0; b <= a; b++) (result[a] as number[])[b] = (result[a]?.[b] ?? 0) + xa * (row[b] ?? 0);
+        const xa = (x[i * p + a] as number) * factor;
+        const target = result[a] as number[];
+        for (let b = 0; b <= a; b++) target[b] = (target[b] as number) + xa * (x[i * p + b] as number);
       }
     }
     for (let a = 0; a < p; a++) for (let b = a + 1; b < p; b++) (result[a] as number[])[b] = result[b]?.[a] ?? 0;
     return result;
   };
-  const value = (diagonal: ArrayLike<number> | undefined, i: number) => (diagonal ? (diagonal[i] ?? 0) : 1);
+  const diagonalOf = (diagonal: ArrayLike<number> | undefined): Float64Array | null => {
+    if (!diagonal) return null;
+    const values = new Float64Array(k);
+    for (let i = 0; i < k; i++) values[i] = diagonal[i] ?? 0;
+    return values;
+  };
   return {
     weights: w,
     coefficients,
@@ -133,16 +144,26 @@ export function weightedLeastSquares(y: ArrayLike<number>, design: readonly (rea
     weightedResidualSumOfSquares: rss,
     squaredWeightedResidualSumOfSquares: rss2,
     traceP(diagonal) {
+      const d = diagonalOf(diagonal);
       let sum = 0;
-      for (let i = 0; i < k; i++) sum += (w[i] ?? 0) * value(diagonal, i);
-      return sum - traceOfProduct(inverseInformation, sandwich((i) => value(diagonal, i)));
+      for (let i = 0; i < k; i++) sum += (w[i] as number) * (d ? (d[i] as number) : 1);
+      return sum - traceOfProduct(inverseInformation, sandwich(d));
     },
     tracePP(first, second) {
+      const d1 = diagonalOf(first);
+      const d2 = second === first ? d1 : diagonalOf(second);
+      const product = new Float64Array(k);
       let sum = 0;
-      for (let i = 0; i < k; i++) sum += (w[i] ?? 0) ** 2 * value(first, i) * value(second, i);
-      const cross = traceOfProduct(inverseInformation, sandwich((i) => (w[i] ?? 0) * value(first, i) * value(second, i)));
-      const firstSandwich = sandwich((i) => value(first, i));
-      const secondSandwich = second === first ? firstSandwich : sandwich((i) => value(second, i));
+      for (let i = 0; i < k; i++) {
+        const wi = w[i] as number;
+        const v1 = d1 ? (d1[i] as number) : 1;
+        const v2 = d2 ? (d2[i] as number) : 1;
+        sum += wi ** 2 * v1 * v2;
+        product[i] = wi * v1 * v2;
+      }
+      const cross = traceOfProduct(inverseInformation, sandwich(product));
+      const firstSandwich = sandwich(d1);
+      const secondSandwich = second === first ? firstSandwich : sandwich(d2);
       const mFirst = multiply(inverseInformation, firstSandwich);
       const mSecond = multiply(inverseInformation, secondSandwich);
       return sum - 2 * cross + traceOfProduct(mFirst, mSecond);
