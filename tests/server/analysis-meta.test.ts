@@ -3,6 +3,8 @@ import Papa from "papaparse";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { defaultForestLimit, metaAnalysisResult } from "@/schemas/analysis";
+import { trialFilters } from "@/schemas/filters";
+import { loadContrasts, withLabels } from "@/server/services/analysis/load-contrasts";
 import {
   breakEvenResponse,
   combineWithinSiteYear,
@@ -431,6 +433,18 @@ describe("forestLimit bounds the forest rows, never the numbers", () => {
       expect(body.forest).toMatchObject({ total: defaultForestLimit + 25, returned: defaultForestLimit, limit: defaultForestLimit, truncated: true });
       expect(all.rows).toHaveLength(defaultForestLimit + 25);
       expect(numbers(body)).toEqual(numbers(all));
+    });
+
+    it("reads the labels of a long forest with the filter instead of an id list, with the same result", async () => {
+      const { rows, where } = await loadContrasts(many.ctx.db, trialFilters.parse({ dataset: "many-site-years" }));
+      expect(rows).toHaveLength(defaultForestLimit + 25);
+      const byIds = await withLabels(many.ctx.db, where, rows);
+      const byFilter = await withLabels(many.ctx.db, where, rows, 10);
+      expect(byIds.size).toBe(rows.length);
+      expect([...byFilter.entries()]).toEqual([...byIds.entries()]);
+      expect(byIds.get(rows[0]!.id)).toMatchObject({ siteYearCode: "MS-000-2021", treatmentCode: "BAND", year: 2021, seKgHa: 60 });
+      // A subset asks only for its own rows.
+      expect([...(await withLabels(many.ctx.db, where, rows.slice(3, 5))).keys()]).toEqual([rows[3]!.id, rows[4]!.id]);
     });
   });
 });

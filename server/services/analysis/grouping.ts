@@ -1,6 +1,8 @@
 import { placements, soilTestClasses, tillages, crops, nutrients, type TrialFilters } from "@/schemas/filters";
 import type { Grouping } from "@/schemas/analysis";
-import type { Contrast } from "./load-contrasts";
+import type { Contrast, EstimationContrast } from "./load-contrasts";
+
+type SoilTestFields = Partial<Pick<Contrast, "nutrients" | "soilPClass" | "soilPValue" | "soilKClass" | "soilKValue" | "soilSClass" | "soilSValue">>;
 
 type Analyte = "P" | "K" | "S";
 
@@ -8,11 +10,15 @@ type Analyte = "P" | "K" | "S";
  * The soil test a contrast is judged by: the filtered nutrient's own test (P before K before S), else the treatment's
  * primary nutrient — the same rule the soil-test-class filter applies, so a class shown is the class filtered on.
  */
-export function relevantSoilTest(row: Contrast, filterNutrients: TrialFilters["nutrient"]) {
+export function relevantSoilTest(row: SoilTestFields, filterNutrients: TrialFilters["nutrient"]) {
   const tested = (["P", "K", "S"] as const).filter((n) => filterNutrients?.includes(n));
-  const candidates: readonly Analyte[] = tested.length ? tested : (["P", "K", "S"] as const).filter((n) => row.nutrients.includes(n));
+  const candidates: readonly Analyte[] = tested.length ? tested : (["P", "K", "S"] as const).filter((n) => row.nutrients?.includes(n));
   const pick = (n: Analyte) =>
-    n === "P" ? { analyte: n, class: row.soilPClass, value: row.soilPValue } : n === "K" ? { analyte: n, class: row.soilKClass, value: row.soilKValue } : { analyte: n, class: row.soilSClass, value: row.soilSValue };
+    n === "P"
+      ? { analyte: n, class: row.soilPClass ?? null, value: row.soilPValue ?? null }
+      : n === "K"
+        ? { analyte: n, class: row.soilKClass ?? null, value: row.soilKValue ?? null }
+        : { analyte: n, class: row.soilSClass ?? null, value: row.soilSValue ?? null };
   const withClass = candidates.map(pick).find((t) => t.class !== null);
   return withClass ?? (candidates[0] ? pick(candidates[0]) : { analyte: null, class: null, value: null });
 }
@@ -32,20 +38,20 @@ export function plantingWindow(plantingDate: string | null): string {
 export const notRecorded = "not recorded";
 
 /** The level of a contrast under a grouping; treatments with several placements or nutrients form their own level. */
-export function groupLevel(row: Contrast, by: Grouping, filters: TrialFilters, datasetSlug: string): string {
+export function groupLevel(row: EstimationContrast, by: Grouping, filters: TrialFilters, datasetSlug: string): string {
   switch (by) {
     case "soilTestClass":
       return relevantSoilTest(row, filters.nutrient).class ?? notRecorded;
     case "placement":
-      return row.placements.length ? [...row.placements].sort(byOrder(placements)).join(" + ") : notRecorded;
+      return row.placements?.length ? [...row.placements].sort(byOrder(placements)).join(" + ") : notRecorded;
     case "nutrient":
-      return row.nutrients.length ? [...row.nutrients].sort(byOrder(nutrients)).join(" + ") : notRecorded;
+      return row.nutrients?.length ? [...row.nutrients].sort(byOrder(nutrients)).join(" + ") : notRecorded;
     case "crop":
       return row.crop;
     case "tillage":
       return row.tillage ?? notRecorded;
     case "plantingWindow":
-      return plantingWindow(row.plantingDate);
+      return plantingWindow(row.plantingDate ?? null);
     case "dataset":
       return datasetSlug;
   }

@@ -13,8 +13,8 @@ import {
   type StandardCrop,
 } from "@/stats";
 import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
-import { loadContrasts, type Contrast, type ResolvedVersion } from "./load-contrasts";
-import { buildUnits, ownTest, type AnalysisUnit, type ExcludedContrast } from "./site-year-effects";
+import { byForestOrder, loadContrasts, withLabels, type Contrast, type EstimationContrast, type ResolvedVersion } from "./load-contrasts";
+import { buildUnits, ownTest, type AnalysisUnit } from "./site-year-effects";
 import { analysisCautions, combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
 
 type Result = MetaAnalysisResponse;
@@ -33,16 +33,25 @@ export function splitQuery(query: MetaQuery): { filters: TrialFilters; options: 
  */
 export async function runMetaAnalysis(db: Db, query: MetaQuery): Promise<Result> {
   const { filters, options } = splitQuery(query);
-  const { versions, rows } = await loadContrasts(db, filters);
-  return analyseContrasts(rows, versions, filters, options);
+  const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null);
+  return analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named));
 }
 
-export function analyseContrasts(rows: Contrast[], versions: ResolvedVersion[], filters: TrialFilters, options: Omit<MetaQuery, keyof TrialFilters>): Result {
+/** Reads the labels (codes, year, soil tests) of the responses an answer names. */
+export type LabelReader = (rows: EstimationContrast[]) => Promise<Map<number, Contrast>>;
+
+export async function analyseContrasts(
+  rows: EstimationContrast[],
+  versions: ResolvedVersion[],
+  filters: TrialFilters,
+  options: Omit<MetaQuery, keyof TrialFilters>,
+  labelsOf: LabelReader,
+): Promise<Result> {
   const { effect, method, ci, units } = options;
   const groupBy = options.groupBy ?? null;
   const unitLabel = effect === "lnrr" ? "ln(treated/check)" : units;
   const versionOf = new Map(versions.map((v) => [v.versionId, v]));
-  const slugOf = (row: Contrast) => versionOf.get(row.versionId)?.datasetSlug ?? "";
+  const slugOf = (row: EstimationContrast) => versionOf.get(row.versionId)?.datasetSlug ?? "";
 
   const overall = buildUnits(rows, { effect, units });
   const grouped = groupBy ? buildUnits(rows, { effect, units, levelOf: (r) => groupLevel(r, groupBy, filters, slugOf(r)) }) : null;
@@ -64,7 +73,13 @@ export function analyseContrasts(rows: Contrast[], versions: ResolvedVersion[], 
   const weights = forestUnits === overall ? fit?.weightsPercent ?? [] : withinGroupWeights(grouped!.units, forestTau2);
   const limit = options.forestLimit ?? (options.format === "csv" ? "all" : defaultForestLimit);
   const shown = forestSelection(forestUnits.units, forestTau2, limit);
-  const forestRows = shown.map((i) => forestRow(forestUnits.units[i]!, weights[i] ?? 0, filters, versionOf));
+  // Only now are labels read, for the rows the answer names.
+  const labelled = await labelsOf([...shown.flatMap((i) => forestUnits.units[i]!.contrasts), ...overall.excluded.map((e) => e.contrast)]);
+  const labelOf = (c: EstimationContrast) => labelled.get(c.id)!;
+  const forestRows = shown
+    .map((i) => ({ unit: forestUnits.units[i]!, weight: weights[i] ?? 0, contrasts: forestUnits.units[i]!.contrasts.map(labelOf).sort(byForestOrder) }))
+    .sort((a, b) => byForestOrder(a.contrasts[0]!, b.contrasts[0]!))
+    .map(({ unit, weight, contrasts }) => forestRow(unit, contrasts, weight, filters, versionOf));
   const forest = forestExtent(forestUnits.units.length, forestRows.length, limit, grouped !== null);
   if (forest.note) notes.push(forest.note);
 
@@ -125,7 +140,7 @@ export function analyseContrasts(rows: Contrast[], versions: ResolvedVersion[], 
       datasets: new Set(overall.units.map((u) => u.contrasts[0]!.versionId)).size,
       contrastsRead: rows.length,
       combinedSiteYears,
-      excluded: excludedSiteYears(overall.excluded, versionOf),
+      excluded: excludedSiteYears(overall.excluded.map((e) => ({ contrast: labelOf(e.contrast), reason: e.reason })), versionOf),
       combination: combinationNote,
     },
     notes,
@@ -133,8 +148,8 @@ export function analyseContrasts(rows: Contrast[], versions: ResolvedVersion[], 
   };
 }
 
-function forestRow(unit: AnalysisUnit, weightPercent: number, filters: TrialFilters, versionOf: Map<string, ResolvedVersion>) {
-  const first = unit.contrasts[0]!;
+function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: number, filters: TrialFilters, versionOf: Map<string, ResolvedVersion>) {
+  const first = contrasts[0]!;
   const version = versionOf.get(first.versionId);
   const soil = relevantSoilTest(first, filters.nutrient);
   const test = ownTest(unit);
@@ -146,8 +161,8 @@ function forestRow(unit: AnalysisUnit, weightPercent: number, filters: TrialFilt
     version: version?.semver ?? "",
     year: first.year,
     crop: first.crop,
-    treatments: unit.contrasts.map((c) => c.treatmentCode),
-    responseIds: unit.contrasts.map((c) => c.id),
+    treatments: contrasts.map((c) => c.treatmentCode),
+    responseIds: contrasts.map((c) => c.id),
     group: unit.group,
     estimate: unit.yi,
     se: test.se,
@@ -165,13 +180,14 @@ function forestRow(unit: AnalysisUnit, weightPercent: number, filters: TrialFilt
 }
 
 /**
- * Which forest rows a bounded answer keeps: the most precise units (largest 1/(vᵢ + τ²), so the largest weights), in
- * their usual order. Only the rows are bounded; every estimate is computed from all units before this.
+ * Which forest rows a bounded answer keeps: the most precise units (largest 1/(vᵢ + τ²), so the largest weights); the
+ * caller puts them in forest order once their labels are read. Only the rows are bounded; every estimate is computed
+ * from all units before this.
  */
 function forestSelection(units: AnalysisUnit[], tau2: number, limit: number | "all"): number[] {
   const order = units.map((_, i) => i);
   if (limit === "all" || units.length <= limit) return order;
-  // Ascending vᵢ is descending 1/(vᵢ + τ²) for one τ²; ties keep the earlier row.
+  // Ascending vᵢ is descending 1/(vᵢ + τ²) for one τ²; ties keep the row read first (response id order).
   order.sort((a, b) => units[a]!.vi - units[b]!.vi || a - b);
   return order.slice(0, limit).sort((a, b) => a - b);
 }
@@ -226,6 +242,8 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
     levels,
     method: options.method,
     ci: options.ci,
+    // The answer reports no R², and the overall fit is made once elsewhere.
+    r2: false,
   });
   notes.push(...fit.differences.notes.filter((n) => !notes.includes(n)));
   const qm = fit.differences.qm;
@@ -287,9 +305,9 @@ function decisionBlock(units: AnalysisUnit[], fit: ReturnType<typeof metaAnalysi
   };
 }
 
-function excludedSiteYears(excluded: ExcludedContrast[], versionOf: Map<string, ResolvedVersion>) {
+function excludedSiteYears(excluded: { contrast: Contrast; reason: string }[], versionOf: Map<string, ResolvedVersion>) {
   const bySiteYear = new Map<string, { siteYearCode: string; dataset: string; version: string; treatments: string[]; reason: string }>();
-  for (const { contrast, reason } of excluded) {
+  for (const { contrast, reason } of [...excluded].sort((a, b) => byForestOrder(a.contrast, b.contrast))) {
     const key = `${contrast.siteYearId}:${reason}`;
     const entry = bySiteYear.get(key);
     if (entry) entry.treatments.push(contrast.treatmentCode);
