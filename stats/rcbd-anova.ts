@@ -2,6 +2,7 @@
  * Analysis of variance of one site-year laid out as a randomized complete block design (RCBD).
  */
 import { fitLinearModel, factorLevels, type AnovaTableRow } from "@/stats/linear-model";
+import { fSurvival } from "@/stats/distributions";
 import { coefficientOfVariationPercent, meanSeparation, type MeanSeparation } from "@/stats/mean-separation";
 
 /** One plot of a site-year: its block (replicate), treatment and measured response (e.g. yield). */
@@ -107,11 +108,6 @@ export function rcbdAnova(plots: readonly RcbdPlot[]): RcbdAnovaResult {
     );
   }
 
-  const fit = fitLinearModel({
-    response: plots.map((plot) => plot.y),
-    factors: { block: { values: blockValues, levels: blocks }, treatment: { values: treatmentValues, levels: treatments } },
-    terms: [["block"], ["treatment"]],
-  });
   const n = plots.length;
   let sum = 0;
   for (const plot of plots) sum += plot.y;
@@ -122,12 +118,121 @@ export function rcbdAnova(plots: readonly RcbdPlot[]): RcbdAnovaResult {
   let totalSs = 0;
   for (const plot of plots) totalSs += (plot.y - grandMean) ** 2;
 
-  const emptyRow = (term: string): AnovaTableRow => ({ term, df: 0, sumOfSquares: 0, meanSquare: 0, fStatistic: null, pValue: null });
+  const fitted = balanced ? balancedFit(plots, blocks, treatments, firstCount, grandMean) : leastSquaresFit(plots, blockValues, treatmentValues, blocks, treatments, notes);
+  const { blockRow, treatmentRow, residual, covariance, adjusted } = fitted;
+  const mse = residual.meanSquare;
+  if (mse === null) notes.push("No error degrees of freedom: no F test, LSD or standard errors.");
+
+  const treatmentMeans = treatments.map((treatment, index): RcbdTreatmentMean => {
+    const values = plots.filter((plot) => plot.treatment === treatment).map((plot) => plot.y);
+    const mean = values.reduce((acc, value) => acc + value, 0) / values.length;
+    const variance = covariance?.[index]?.[index];
+    return {
+      treatment,
+      plots: values.length,
+      mean,
+      adjustedMean: balanced ? mean : (adjusted[index] ?? Number.NaN),
+      standardError: variance === undefined ? null : Math.sqrt(variance),
+    };
+  });
+  const replicates = balanced ? firstCount * blocks.length : null;
+  return {
+    balanced,
+    notes,
+    plots: n,
+    blocks,
+    treatments,
+    grandMean,
+    block: blockRow,
+    treatment: treatmentRow,
+    error: residual,
+    total: { df: n - 1, sumOfSquares: totalSs },
+    mse,
+    cvPercent: mse === null ? null : coefficientOfVariationPercent(mse, grandMean),
+    meanSeparation:
+      mse !== null && replicates !== null ? meanSeparation({ mse, dfError: residual.df, replicates, grandMean }) : null,
+    replicates,
+    treatmentMeans,
+    adjustedMeanCovariance: covariance,
+  };
+}
+
+interface ModelFit {
+  blockRow: AnovaTableRow;
+  treatmentRow: AnovaTableRow;
+  residual: { df: number; sumOfSquares: number; meanSquare: number | null };
+  /** Covariance of the adjusted treatment means (× MSE), or null without error df or when not estimable. */
+  covariance: number[][] | null;
+  /** Adjusted treatment means, in `treatments` order. */
+  adjusted: number[];
+}
+
+const emptyRow = (term: string): AnovaTableRow => ({ term, df: 0, sumOfSquares: 0, meanSquare: 0, fStatistic: null, pValue: null });
+
+function anovaRow(term: string, df: number, sumOfSquares: number, residualMs: number | null, residualDf: number): AnovaTableRow {
+  if (df === 0) return emptyRow(term);
+  const meanSquare = sumOfSquares / df;
+  const fStatistic = residualMs !== null && residualMs > 0 ? meanSquare / residualMs : null;
+  return { term, df, sumOfSquares, meanSquare, fStatistic, pValue: fStatistic === null ? null : fSurvival(fStatistic, df, residualDf) };
+}
+
+/**
+ * The textbook RCBD sums of squares for a balanced layout (the same number c of plots in every treatment × block
+ * cell): SS_block = t·c·Σ(ȳ_b − ȳ)², SS_treatment = b·c·Σ(ȳ_t − ȳ)², and the error SS from the residuals
+ * y − ȳ_b − ȳ_t + ȳ of the additive fit. The least-squares fit gives the same numbers (the design is orthogonal), and
+ * the treatment means are independent with variance MSE/(b·c). Used for every balanced site-year: a plots file of
+ * 10,000 site-years spends a few milliseconds here instead of seconds in QR factorisations.
+ */
+function balancedFit(plots: readonly RcbdPlot[], blocks: string[], treatments: string[], perCell: number, grandMean: number): ModelFit {
+  const blockIndex = new Map(blocks.map((b, i) => [b, i]));
+  const treatmentIndex = new Map(treatments.map((t, i) => [t, i]));
+  const b = blocks.length;
+  const t = treatments.length;
+  const blockSum = new Float64Array(b);
+  const treatmentSum = new Float64Array(t);
+  const bi = new Int32Array(plots.length);
+  const ti = new Int32Array(plots.length);
+  plots.forEach((plot, i) => {
+    bi[i] = blockIndex.get(plot.block)!;
+    ti[i] = treatmentIndex.get(plot.treatment)!;
+    blockSum[bi[i]!]! += plot.y;
+    treatmentSum[ti[i]!]! += plot.y;
+  });
+  const blockMean = Array.from(blockSum, (sum) => sum / (t * perCell));
+  const treatmentMean = Array.from(treatmentSum, (sum) => sum / (b * perCell));
+  let blockSs = 0;
+  for (const m of blockMean) blockSs += (m - grandMean) ** 2;
+  blockSs *= t * perCell;
+  let treatmentSs = 0;
+  for (const m of treatmentMean) treatmentSs += (m - grandMean) ** 2;
+  treatmentSs *= b * perCell;
+  let errorSs = 0;
+  plots.forEach((plot, i) => {
+    errorSs += (plot.y - blockMean[bi[i]!]! - treatmentMean[ti[i]!]! + grandMean) ** 2;
+  });
+  const errorDf = plots.length - 1 - (b - 1) - (t - 1);
+  const mse = errorDf > 0 ? errorSs / errorDf : null;
+  const variance = mse === null ? null : mse / (b * perCell);
+  return {
+    blockRow: anovaRow("block", b - 1, blockSs, mse, errorDf),
+    treatmentRow: anovaRow("treatment", t - 1, treatmentSs, mse, errorDf),
+    residual: { df: errorDf, sumOfSquares: errorSs, meanSquare: mse },
+    covariance: variance === null ? null : treatments.map((_, i) => treatments.map((__, j) => (i === j ? variance : 0))),
+    adjusted: treatmentMean,
+  };
+}
+
+/** y ~ block + treatment by least squares (Householder QR), for layouts with missing or extra plots. */
+function leastSquaresFit(plots: readonly RcbdPlot[], blockValues: string[], treatmentValues: string[], blocks: string[], treatments: string[], notes: string[]): ModelFit {
+  const fit = fitLinearModel({
+    response: plots.map((plot) => plot.y),
+    factors: { block: { values: blockValues, levels: blocks }, treatment: { values: treatmentValues, levels: treatments } },
+    terms: [["block"], ["treatment"]],
+  });
   const blockRow = fit.rows.find((row) => row.term === "block") ?? emptyRow("block");
   const treatmentRow = fit.rows.find((row) => row.term === "treatment") ?? emptyRow("treatment");
   if (fit.aliasedTerms.includes("treatment")) notes.push("Treatment effects are not estimable from these plots (aliased with blocks).");
   const mse = fit.residual.meanSquare;
-  if (mse === null) notes.push("No error degrees of freedom: no F test, LSD or standard errors.");
 
   // Adjusted means: L·b with L = intercept + treatment dummy + average of the block dummies.
   const coefficientIndex = new Map(fit.coefficientNames.map((name, index) => [name, index]));
@@ -163,36 +268,5 @@ export function rcbdAnova(plots: readonly RcbdPlot[]): RcbdAnovaResult {
     );
   }
 
-  const treatmentMeans = treatments.map((treatment, index): RcbdTreatmentMean => {
-    const values = plots.filter((plot) => plot.treatment === treatment).map((plot) => plot.y);
-    const mean = values.reduce((acc, value) => acc + value, 0) / values.length;
-    const variance = covariance?.[index]?.[index];
-    return {
-      treatment,
-      plots: values.length,
-      mean,
-      adjustedMean: balanced ? mean : (adjusted[index] ?? Number.NaN),
-      standardError: variance === undefined ? null : Math.sqrt(variance),
-    };
-  });
-  const replicates = balanced ? firstCount * blocks.length : null;
-  return {
-    balanced,
-    notes,
-    plots: n,
-    blocks,
-    treatments,
-    grandMean,
-    block: blockRow,
-    treatment: treatmentRow,
-    error: fit.residual,
-    total: { df: n - 1, sumOfSquares: totalSs },
-    mse,
-    cvPercent: mse === null ? null : coefficientOfVariationPercent(mse, grandMean),
-    meanSeparation:
-      mse !== null && replicates !== null ? meanSeparation({ mse, dfError: fit.residual.df, replicates, grandMean }) : null,
-    replicates,
-    treatmentMeans,
-    adjustedMeanCovariance: covariance,
-  };
+  return { blockRow, treatmentRow, residual: fit.residual, covariance, adjusted };
 }

@@ -9,7 +9,9 @@
  * R equivalent: anova(lm(y ~ block + treatment)); emmeans(fit, "treatment").
  * The plot values are invented numbers for the test.
  */
+import fc from "fast-check";
 import { describe, expect, it } from "vitest";
+import { fitLinearModel } from "@/stats/linear-model";
 import { rcbdAnova, type RcbdPlot } from "@/stats/rcbd-anova";
 import { treatmentVersusCheckContrasts } from "@/stats/effects";
 import { tQuantile } from "@/stats/distributions";
@@ -113,5 +115,52 @@ describe("rcbdAnova — one missing plot (Yates 1933 missing-plot formula; R lm(
   it("names the plot and field of bad input", () => {
     expect(() => rcbdAnova([...plots, { block: "3", treatment: "band", y: Number.NaN }])).toThrow(/plot 16, field "y"/);
     expect(() => rcbdAnova([{ block: "", treatment: "a", y: 1 }])).toThrow(/plot 1, field "block"/);
+  });
+});
+
+describe("rcbdAnova — the balanced closed form agrees with the least-squares fit (R anova(lm(y ~ block + treatment)))", () => {
+  // The least-squares fit is the reference: fitLinearModel is checked against R's aov on Yates' npk and NIST StRD.
+  it("on random balanced layouts (t 2–6, b 1–6, 1–3 plots per cell): SS, df, MSE, F, p and mean covariance", () => {
+    fc.assert(
+      fc.property(
+        fc.integer({ min: 2, max: 6 }),
+        fc.integer({ min: 1, max: 6 }),
+        fc.integer({ min: 1, max: 3 }),
+        fc.array(fc.double({ min: 1000, max: 6000, noNaN: true }), { minLength: 108, maxLength: 108 }),
+        (t, b, c, values) => {
+          const plots: RcbdPlot[] = [];
+          for (let ti = 0; ti < t; ti++) for (let bi = 0; bi < b; bi++) for (let ci = 0; ci < c; ci++) {
+            plots.push({ treatment: `T${ti}`, block: `${bi + 1}`, y: values[plots.length]! });
+          }
+          const result = rcbdAnova(plots);
+          expect(result.balanced).toBe(true);
+          const ls = fitLinearModel({
+            response: plots.map((p) => p.y),
+            factors: { block: { values: plots.map((p) => p.block) }, treatment: { values: plots.map((p) => p.treatment) } },
+            terms: [["block"], ["treatment"]],
+          });
+          const tol = 1e-9;
+          const close = (a: number | null | undefined, e: number | null | undefined, what: string) => {
+            if (e === null || e === undefined) return expect(a ?? null, what).toBeNull();
+            expect(Math.abs((a ?? Number.NaN) - e), what).toBeLessThanOrEqual(tol * Math.max(1, Math.abs(e)));
+          };
+          expect(result.error.df).toBe(ls.residual.df);
+          close(result.error.sumOfSquares, ls.residual.sumOfSquares, "error SS");
+          close(result.mse, ls.residual.meanSquare, "MSE");
+          for (const term of ["block", "treatment"] as const) {
+            const reference = ls.rows.find((r) => r.term === term);
+            expect(result[term].df).toBe(reference?.df ?? 0);
+            close(result[term].sumOfSquares, reference?.sumOfSquares ?? 0, `${term} SS`);
+            close(result[term].fStatistic, reference?.fStatistic ?? null, `${term} F`);
+            close(result[term].pValue, reference?.pValue ?? null, `${term} p`);
+          }
+          // Balanced: the treatment means are independent, each with variance MSE/(b·c).
+          const mse = ls.residual.meanSquare;
+          if (mse === null) expect(result.adjustedMeanCovariance).toBeNull();
+          else result.adjustedMeanCovariance!.forEach((row, i) => row.forEach((v, j) => close(v, i === j ? mse / (b * c) : 0, `cov ${i},${j}`)));
+        },
+      ),
+      { numRuns: 300 },
+    );
   });
 });
