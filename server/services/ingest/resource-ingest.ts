@@ -15,6 +15,8 @@ export interface IngestContext {
   options: UploadOptions;
   report: Reporter;
   versionId: string;
+  /** Rows will go in by COPY (PGlite), so a resource may keep them as CSV text (RowBuffer). */
+  bulkCopy: boolean;
 }
 
 /** Which site-years' responses must be computed again after a write. */

@@ -1,20 +1,18 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { plots } from "@/db/schema";
 import { toStandardMoisture, yieldFactorToKgHa } from "../edge-units";
-import type { Cell } from "../field-values";
 import { num, type IngestContext, type ResourceIngest } from "../resource-ingest";
 import type { PlotOutcomeRequest } from "../plot-outcomes";
-import { insertRows } from "../write-rows";
+import { insertRows, RowBuffer } from "../write-rows";
 import { balanceRule, checkRule, newTally, outlierRule, type SiteYearTally } from "./site-year-rules";
 
 /** Plausible grain moisture at harvest, % wet basis (common practice, no source). */
 const MOISTURE_MIN = 5;
 const MOISTURE_MAX = 40;
 
-export function plotsIngest({ state, options, report, versionId }: IngestContext): ResourceIngest {
-  const keys = new Set<string>();
-  const tallies = new Map<string, SiteYearTally & { factor: number; crop: string; blocks: number; rcbd: boolean; id: number }>();
-  const out: Cell[][] = [];
+export function plotsIngest({ state, options, report, versionId, bulkCopy }: IngestContext): ResourceIngest {
+  const tallies = new Map<string, SiteYearTally & { factor: number; crop: string; blocks: number; rcbd: boolean; id: number; plots: Set<string> }>();
+  const out = new RowBuffer(bulkCopy);
   const harvestBasis = options.units.yieldMoisture === "harvest";
   return {
     resource: "plots",
@@ -35,15 +33,14 @@ export function plotsIngest({ state, options, report, versionId }: IngestContext
           return report.error(row, "yield_kg_ha", null, (error as Error).message);
         }
         if (sy.hasSummaries) report.error(row, "site_year", code, `site-year "${code}" already has summary means; a site-year has either plots or summaries`);
-        tally = { ...newTally(code, row), factor, crop: sy.crop, blocks: sy.blocks, rcbd: sy.design === "RCBD", id: sy.id };
+        tally = { ...newTally(code, row), factor, crop: sy.crop, blocks: sy.blocks, rcbd: sy.design === "RCBD", id: sy.id, plots: new Set() };
         tallies.set(code, tally);
       }
       const trt = state.treatments.get(trtCode);
       if (!trt) return report.error(row, "treatment", trtCode, `treatment "${trtCode}" is not in this version; upload it in treatments first`);
       if (block > tally.blocks) return report.error(row, "block", String(block), `block ${block} is outside 1–${tally.blocks}, the blocks of site-year "${code}"`);
-      const key = `${code}\u0000${plot}`;
-      if (keys.has(key)) return report.error(row, "plot", plot, `plot "${plot}" appears twice in site-year "${code}" (site_year + plot is the primary key)`);
-      keys.add(key);
+      if (tally.plots.has(plot)) return report.error(row, "plot", plot, `plot "${plot}" appears twice in site-year "${code}" (site_year + plot is the primary key)`);
+      tally.plots.add(plot);
       const moisture = num(v.harvest_moisture_pct);
       if (moisture !== null && (moisture < MOISTURE_MIN || moisture > MOISTURE_MAX)) {
         report.error(row, "harvest_moisture_pct", String(moisture), `harvest moisture ${moisture} % is not plausible (expected ${MOISTURE_MIN}–${MOISTURE_MAX} %)`);
