@@ -2,7 +2,8 @@
  * Ingest benchmark: 1,000,000 plot rows through the upload service (stream parse, Table Schema and domain
  * validation, COPY into the draft, responses recomputed for every site-year, raw file kept) against PGlite's own
  * COPY of the same rows into the plots table. Goal: the service at ≥ 0.7× COPY's rows/s, peak RSS < 1 GB.
- * The COPY baseline runs before and after the service, each part in its own process, so peak RSS is the service's own.
+ * COPY and the service run twice each, alternating, each in its own process (so peak RSS is the service's own); the
+ * ratio compares the best run of each, since COPY's speed drifts between runs on this machine.
  * Run: node --import tsx bench/ingest.ts [rows]   (writes bench/out/ingest.json)
  */
 import { spawnSync } from "node:child_process";
@@ -145,13 +146,18 @@ async function main() {
     return;
   }
   clearInterval(sampler);
-  console.log(`${ROWS.toLocaleString("en")} plot rows in ${SITE_YEARS.toLocaleString("en")} site-years; COPY, service, COPY, each in its own process…`);
+  console.log(`${ROWS.toLocaleString("en")} plot rows in ${SITE_YEARS.toLocaleString("en")} site-years; COPY and service twice each, alternating, each in its own process…`);
   const bytes = plotChunks().reduce((a, c) => a + c.length, 0);
-  // COPY runs before and after the service: its speed drifts between runs on this machine, and both are shown.
-  const copies = [runPart("copy")];
-  const service = runPart("service");
-  copies.push(runPart("copy"));
-  const copySeconds = (copies[0]!.seconds + copies[1]!.seconds) / 2;
+  // COPY and the service alternate, twice each: COPY's speed drifts between runs on this machine, so each side is
+  // taken at its best run (the least disturbed), and every run is shown.
+  const copies: PartResult[] = [];
+  const services: PartResult[] = [];
+  for (let round = 0; round < 2; round++) {
+    copies.push(runPart("copy"));
+    services.push(runPart("service"));
+  }
+  const copySeconds = Math.min(...copies.map((c) => c.seconds));
+  const service = services.reduce((best, s) => (s.seconds < best.seconds ? s : best));
   const copyRate = ROWS / copySeconds;
   const serviceRate = ROWS / service.seconds;
   const out = {
@@ -159,22 +165,25 @@ async function main() {
     siteYears: SITE_YEARS,
     fileBytes: bytes,
     copy: { seconds: copySeconds, runs: copies.map((c) => c.seconds), rowsPerSecond: copyRate, peakRssMb: Math.max(...copies.map((c) => c.peakRssMb)) },
-    service: { seconds: service.seconds, rowsPerSecond: serviceRate, responses: service.responses ?? 0, warnings: service.warnings ?? 0 },
+    service: { seconds: service.seconds, runs: services.map((s) => s.seconds), rowsPerSecond: serviceRate, responses: service.responses ?? 0, warnings: service.warnings ?? 0 },
     ratio: serviceRate / copyRate,
-    peakRssMb: service.peakRssMb,
+    ratioOfMeans: copies.reduce((a, c) => a + c.seconds, 0) / services.reduce((a, s) => a + s.seconds, 0),
+    peakRssMb: Math.max(...services.map((s) => s.peakRssMb)),
     goals: { ratio: 0.7, peakRssMb: 1024 },
     node: process.version,
     at: new Date().toISOString(),
   };
   const rate = (r: number) => Math.round(r).toLocaleString("en");
+  const rows = [
+    ...copies.map((c, i) => `| PGlite COPY (ids resolved, no checks), run ${i + 1} | ${c.seconds.toFixed(2)} | ${rate(ROWS / c.seconds)} | ${c.peakRssMb.toFixed(0)} |`),
+    ...services.map((s, i) => `| ingest service (parse, validate, store, ${(s.responses ?? 0).toLocaleString("en")} responses, raw file), run ${i + 1} | ${s.seconds.toFixed(2)} | ${rate(ROWS / s.seconds)} | ${s.peakRssMb.toFixed(0)} |`),
+  ];
   console.log(`
 | what | seconds | rows/s | peak RSS MB |
 |---|---:|---:|---:|
-| PGlite COPY (ids resolved, no checks), before the service | ${copies[0]!.seconds.toFixed(2)} | ${rate(ROWS / copies[0]!.seconds)} | ${copies[0]!.peakRssMb.toFixed(0)} |
-| PGlite COPY, after the service | ${copies[1]!.seconds.toFixed(2)} | ${rate(ROWS / copies[1]!.seconds)} | ${copies[1]!.peakRssMb.toFixed(0)} |
-| ingest service (parse, validate, store, ${out.service.responses.toLocaleString("en")} responses, raw file) | ${service.seconds.toFixed(2)} | ${rate(serviceRate)} | ${service.peakRssMb.toFixed(0)} |
+${rows.join("\n")}
 
-ratio service/COPY (mean of the two COPY runs): **${out.ratio.toFixed(2)}** (goal ≥ 0.7) · service peak RSS **${out.peakRssMb.toFixed(0)} MB** (goal < 1024 MB) · file ${(bytes / 1024 / 1024).toFixed(1)} MB
+ratio service/COPY, best run of each: **${out.ratio.toFixed(2)}** (of the means: ${out.ratioOfMeans.toFixed(2)}; goal ≥ 0.7) · service peak RSS **${out.peakRssMb.toFixed(0)} MB** (goal < 1024 MB) · file ${(bytes / 1024 / 1024).toFixed(1)} MB
 `);
   const dir = path.resolve(__dirname, "out");
   mkdirSync(dir, { recursive: true });
