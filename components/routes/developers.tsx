@@ -1,7 +1,8 @@
 import * as Clipboard from "expo-clipboard";
 import { Link, useLocalSearchParams } from "expo-router";
 import { useMemo, useState } from "react";
-import { Platform, Pressable, StyleSheet, TextInput, View } from "react-native";
+import { Platform, Pressable, StyleSheet, View } from "react-native";
+import { TextField } from "@/components/curation/form-fields";
 import { Screen } from "@/components/screen";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
@@ -109,19 +110,7 @@ function TokenForm({ canWrite, onCreated }: { canWrite: boolean; onCreated: (t: 
   return (
     <Card style={{ gap: space.md }}>
       <Text variant="heading">Make a token</Text>
-      <View style={{ gap: space.xs }}>
-        <Text variant="label" nativeID="token-name">Name</Text>
-        <TextInput
-          aria-labelledby="token-name"
-          value={name}
-          onChangeText={setName}
-          placeholder="e.g. nightly pull"
-          placeholderTextColor={colors.muted}
-          style={styles.input}
-          maxLength={100}
-        />
-        {errors.name ? <Text style={styles.error}>{errors.name}</Text> : null}
-      </View>
+      <TextField label="Name" value={name} onChangeText={setName} placeholder="e.g. nightly pull" maxLength={100} error={errors.name} />
       <View style={{ gap: space.xs }}>
         <Text variant="label">Scope</Text>
         <View style={styles.row} role="radiogroup" accessibilityLabel="Scope">
@@ -139,10 +128,8 @@ function TokenForm({ canWrite, onCreated }: { canWrite: boolean; onCreated: (t: 
         </View>
         {errors.scope ? <Text style={styles.error}>{errors.scope}</Text> : null}
       </View>
-      <View style={{ gap: space.xs }}>
-        <Text variant="label" nativeID="token-days">Expires after (days, 1–365)</Text>
-        <TextInput aria-labelledby="token-days" value={days} onChangeText={setDays} inputMode="numeric" style={[styles.input, { maxWidth: 120 }]} />
-        {errors.expiresInDays ? <Text style={styles.error}>{errors.expiresInDays}</Text> : null}
+      <View style={{ maxWidth: 240 }}>
+        <TextField label="Expires after (days, 1–365)" value={days} onChangeText={setDays} inputMode="numeric" error={errors.expiresInDays} />
       </View>
       {create.error && !Object.keys(errors).length ? <Text style={styles.error}>{create.error.message}</Text> : null}
       <Button
@@ -245,17 +232,6 @@ export default function DevelopersScreen() {
 const styles = StyleSheet.create({
   row: { flexDirection: "row", flexWrap: "wrap", alignItems: "center", gap: space.sm },
   link: { color: colors.info, fontFamily: fonts.medium, textDecorationLine: "underline", minHeight: minTap, paddingVertical: space.sm },
-  input: {
-    minHeight: minTap,
-    borderWidth: 1,
-    borderColor: colors.line,
-    borderRadius: radius.sm,
-    paddingHorizontal: space.md,
-    backgroundColor: colors.card,
-    color: colors.ink,
-    fontFamily: fonts.regular,
-    fontSize: 16,
-  },
   choice: { minHeight: minTap, paddingHorizontal: space.md, justifyContent: "center", borderWidth: 1, borderColor: colors.line, borderRadius: radius.md, backgroundColor: colors.card },
   choiceOn: { backgroundColor: colors.field, borderColor: colors.field },
   choiceTextOn: { color: "#fff" },

@@ -78,7 +78,14 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
   const tombstone = v.state === "withdrawn";
   const [counts, ups, reps, latest, basedOn, canEdit] = await Promise.all([
     tombstone ? null : resourceCounts(db, v.id),
-    tombstone ? [] : db.select().from(uploads).where(eq(uploads.versionId, v.id)).orderBy(desc(uploads.createdAt)),
+    // Everything but the raw content: a million-plot file is 28 MB, and the desk lists only its record.
+    tombstone
+      ? []
+      : db
+          .select({ id: uploads.id, resource: uploads.resource, filename: uploads.filename, byteSize: uploads.byteSize, sha256: uploads.sha256, rowCount: uploads.rowCount, options: uploads.options, createdAt: uploads.createdAt })
+          .from(uploads)
+          .where(eq(uploads.versionId, v.id))
+          .orderBy(desc(uploads.createdAt)),
     tombstone ? [] : db.select().from(validationReports).where(eq(validationReports.versionId, v.id)).orderBy(desc(validationReports.createdAt)),
     latestPublished(db, dataset.id),
     v.basedOnVersionId ? db.select({ semver: versions.semver }).from(versions).where(eq(versions.id, v.basedOnVersionId)) : [],
