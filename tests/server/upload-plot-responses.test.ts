@@ -57,5 +57,13 @@ describe("responses computed from a large plots file", () => {
       .map((r) => [Number(r[col.sy]), Number(r[col.trt]), r[col.md], r[col.se], r[col.lnrr], r[col.p], r[col.balanced]])
       .sort((a, b) => (a[0] as number) - (b[0] as number) || (a[1] as number) - (b[1] as number));
     expect(stored).toEqual(expected);
+
+    // Named site-years: by a code list, or (for long lists) by reading the version's site-years and keeping those named.
+    const some = { siteYearCodes: [code(2), code(3), code(17), "TB-99-0000"] };
+    const byList = await computeResponses(t.ctx.db, f.versionId, some);
+    const byFilter = await computeResponses(t.ctx.db, f.versionId, some, undefined, 2);
+    expect(byList.siteYearIds).toHaveLength(3);
+    expect(byFilter).toEqual(byList);
+    expect(byList.rows).toHaveLength(9);
   });
 });

@@ -47,16 +47,21 @@ export type FilePlotOutcomes = Map<number, SiteYearOutcome>;
  * The response rows of a draft's site-years (read only), and the site-years that have none, with the reason.
  * With `fromFile`, plots come from that file alone: a site-year it has no yields for has no plots with yields now.
  */
-export async function computeResponses(tx: Tx, versionId: string, affected: Affected, fromFile?: FilePlotOutcomes): Promise<{ siteYearIds: number[]; rows: Cell[][]; uncomputed: RecomputeResult["uncomputed"] }> {
-  const syRows = await tx
+export async function computeResponses(tx: Tx, versionId: string, affected: Affected, fromFile?: FilePlotOutcomes, codeListLimit = 1000): Promise<{ siteYearIds: number[]; rows: Cell[][]; uncomputed: RecomputeResult["uncomputed"] }> {
+  // A file of thousands of site-years would send thousands of codes as parameters; reading the version's site-years
+  // and keeping the named ones is cheaper then.
+  const byList = affected !== "all" && affected.siteYearCodes.length <= codeListLimit;
+  const fetched = await tx
     .select({
       id: siteYears.id, code: siteYears.code, siteCode: sites.code, crop: siteYears.crop, year: siteYears.year, tillage: siteYears.tillage,
       rowSpacingIn: siteYears.rowSpacingIn, plantingDate: siteYears.plantingDate,
     })
     .from(siteYears)
     .innerJoin(sites, eq(sites.id, siteYears.siteId))
-    .where(and(eq(siteYears.versionId, versionId), affected === "all" ? undefined : inArray(siteYears.code, affected.siteYearCodes.length ? affected.siteYearCodes : ["\u0000"])))
+    .where(and(eq(siteYears.versionId, versionId), byList ? inArray(siteYears.code, affected.siteYearCodes.length ? affected.siteYearCodes : ["\u0000"]) : undefined))
     .orderBy(asc(siteYears.code));
+  const named = affected === "all" || byList ? null : new Set(affected.siteYearCodes);
+  const syRows = named ? fetched.filter((s) => named.has(s.code)) : fetched;
   const siteYearIds = syRows.map((s) => s.id);
   const rows: Cell[][] = [];
 
