@@ -3,6 +3,7 @@ import type { Db } from "@/db/client";
 import { responses } from "@/db/schema";
 import type { Grouping } from "@/schemas/analysis";
 import type { TrialFilters } from "@/schemas/filters";
+import { conflict } from "@/server/errors";
 import { resolveVersions, responseConditions, type ResolvedVersion } from "@/server/services/trial-filter";
 
 type Response = typeof responses.$inferSelect;
@@ -113,7 +114,8 @@ export async function withLabels(db: Db, where: SQL | undefined, rows: Estimatio
   const labelOf = new Map(labels.map((l) => [l.id, l]));
   for (const row of rows) {
     const label = labelOf.get(row.id);
-    if (!label) throw new Error(`Response ${row.id} changed while it was being analysed; ask again.`);
+    // Published rows do not change, but a dataset can be withdrawn between the two reads.
+    if (!label) throw conflict("The data changed while the analysis was being computed (a version was withdrawn); ask again.");
     byId.set(row.id, { ...row, ...label });
   }
   return byId;
