@@ -35,6 +35,13 @@ export interface AnovaTableRow {
   pValue: number | null;
 }
 
+/** One ANOVA row (df > 0): MS = SS/df, F = MS/MSE and its upper-tail p; no F without a positive error mean square. */
+export function anovaRow(term: string, df: number, sumOfSquares: number, residualMs: number | null, residualDf: number): AnovaTableRow {
+  const meanSquare = sumOfSquares / df;
+  const fStatistic = residualMs !== null && residualMs > 0 ? meanSquare / residualMs : null;
+  return { term, df, sumOfSquares, meanSquare, fStatistic, pValue: fStatistic === null ? null : fSurvival(fStatistic, df, residualDf) };
+}
+
 export interface LinearModelFit {
   n: number;
   rows: AnovaTableRow[];
@@ -141,17 +148,7 @@ export function fitLinearModel(input: LinearModelInput): LinearModelFit {
       aliasedTerms.push(termLabel(term));
       return;
     }
-    const sumOfSquares = termSs[index] ?? 0;
-    const meanSquare = sumOfSquares / df;
-    const fStatistic = residualMs !== null && residualMs > 0 ? meanSquare / residualMs : null;
-    rows.push({
-      term: termLabel(term),
-      df,
-      sumOfSquares,
-      meanSquare,
-      fStatistic,
-      pValue: fStatistic === null ? null : fSurvival(fStatistic, df, residualDf),
-    });
+    rows.push(anovaRow(termLabel(term), df, termSs[index] ?? 0, residualMs, residualDf));
   });
 
   const coefficients = solveUpperTriangular(qr.r, effects);

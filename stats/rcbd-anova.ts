@@ -1,8 +1,7 @@
 /**
  * Analysis of variance of one site-year laid out as a randomized complete block design (RCBD).
  */
-import { fitLinearModel, factorLevels, type AnovaTableRow } from "@/stats/linear-model";
-import { fSurvival } from "@/stats/distributions";
+import { anovaRow, fitLinearModel, factorLevels, type AnovaTableRow } from "@/stats/linear-model";
 import { coefficientOfVariationPercent, meanSeparation, type MeanSeparation } from "@/stats/mean-separation";
 
 /** One plot of a site-year: its block (replicate), treatment and measured response (e.g. yield). */
@@ -169,12 +168,9 @@ interface ModelFit {
 
 const emptyRow = (term: string): AnovaTableRow => ({ term, df: 0, sumOfSquares: 0, meanSquare: 0, fStatistic: null, pValue: null });
 
-function anovaRow(term: string, df: number, sumOfSquares: number, residualMs: number | null, residualDf: number): AnovaTableRow {
-  if (df === 0) return emptyRow(term);
-  const meanSquare = sumOfSquares / df;
-  const fStatistic = residualMs !== null && residualMs > 0 ? meanSquare / residualMs : null;
-  return { term, df, sumOfSquares, meanSquare, fStatistic, pValue: fStatistic === null ? null : fSurvival(fStatistic, df, residualDf) };
-}
+/** A term with no degrees of freedom (one block, or aliased) has an empty row. */
+const termRow = (term: string, df: number, sumOfSquares: number, residualMs: number | null, residualDf: number): AnovaTableRow =>
+  df === 0 ? emptyRow(term) : anovaRow(term, df, sumOfSquares, residualMs, residualDf);
 
 /**
  * The textbook RCBD sums of squares for a balanced layout (the same number c of plots in every treatment × block
@@ -214,8 +210,8 @@ function balancedFit(plots: readonly RcbdPlot[], blocks: string[], treatments: s
   const mse = errorDf > 0 ? errorSs / errorDf : null;
   const variance = mse === null ? null : mse / (b * perCell);
   return {
-    blockRow: anovaRow("block", b - 1, blockSs, mse, errorDf),
-    treatmentRow: anovaRow("treatment", t - 1, treatmentSs, mse, errorDf),
+    blockRow: termRow("block", b - 1, blockSs, mse, errorDf),
+    treatmentRow: termRow("treatment", t - 1, treatmentSs, mse, errorDf),
     residual: { df: errorDf, sumOfSquares: errorSs, meanSquare: mse },
     covariance: variance === null ? null : treatments.map((_, i) => treatments.map((__, j) => (i === j ? variance : 0))),
     adjusted: treatmentMean,

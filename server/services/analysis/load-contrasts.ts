@@ -38,7 +38,7 @@ const groupingColumnsOf = {
   plantingWindow: { plantingDate: responses.plantingDate },
   dataset: {},
 } satisfies Record<Grouping, Partial<Record<keyof Response, unknown>>>;
-type GroupingKey = "nutrients" | "soilPClass" | "soilKClass" | "soilSClass" | "placements" | "tillage" | "plantingDate";
+type GroupingKey = { [G in Grouping]: keyof (typeof groupingColumnsOf)[G] }[Grouping];
 
 const labelColumns = {
   id: responses.id,
