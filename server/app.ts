@@ -3,13 +3,13 @@ import cookieParser from "cookie-parser";
 import cors from "cors";
 import express, { type Express } from "express";
 import helmet from "helmet";
-import swaggerUi from "swagger-ui-express";
 import type { Database } from "@/db/client";
 import { authenticate } from "./auth/authenticate";
 import { csrfGuard } from "./auth/csrf";
 import type { AppConfig } from "./config";
 import type { AppContext } from "./context";
 import { notFoundHandler, problemMiddleware } from "./errors";
+import { mountApiDocs } from "./openapi/docs";
 import { createRegistry, generateOpenApiDocument } from "./openapi/registry";
 import { apiRateLimits } from "./rate-limit";
 import { apiRoutes } from "./routes";
@@ -71,10 +71,7 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   api.use(notFoundHandler);
   app.use("/api/v1", api);
 
-  app.use("/api/docs", swaggerUi.serveFiles(undefined, { swaggerUrl: "/api/v1/openapi.json" }), swaggerUi.setup(undefined, {
-    customSiteTitle: "Plotbank API",
-    swaggerOptions: { url: "/api/v1/openapi.json" },
-  }));
+  mountApiDocs(app, "/api/v1/openapi.json");
   app.use("/api", notFoundHandler);
 
   if (webDistDir !== false) mountWebApp(app, webDistDir, datasetPageHead(ctx));

@@ -77,8 +77,22 @@ describe("OpenAPI", () => {
     expect(Object.keys(res.body.paths)).toEqual(expect.arrayContaining(["/api/v1/health", "/api/v1/datasets", "/api/v1/session"]));
     expect(res.body.components.schemas.Problem).toBeDefined();
   });
-  it("serves interactive docs", async () => {
-    const res = await request(t.app).get("/api/docs/").expect(200);
+  it("serves interactive docs at /api/docs/ with the files the page loads", async () => {
+    await request(t.app).get("/api/docs").expect(301).expect("Location", "/api/docs/");
+    const res = await request(t.app).get("/api/docs/").expect(200).expect("Content-Type", /^text\/html/);
     expect(res.text).toContain("swagger-ui");
+    const files = [...res.text.matchAll(/(?:src|href)="\.\/([^"]+)"/g)].map((m) => m[1]);
+    expect(files).toEqual(expect.arrayContaining(["swagger-ui.css", "swagger-ui-bundle.js", "swagger-ui-init.js"]));
+    for (const file of files) await request(t.app).get(`/api/docs/${file}`).expect(200);
+    const init = await request(t.app).get("/api/docs/swagger-ui-init.js").expect(200);
+    expect(init.text).toContain("/api/v1/openapi.json");
   });
+  it.each(["/api/docs/no-such", "/api/docs/v1/nope.json", "/api/docs/index.html", "/api/docs/package.json", "/api/nope"])(
+    "answers %s, which is not a docs file, with a 404 problem",
+    async (path) => {
+      const res = await request(t.app).get(path).expect(404);
+      expect(res.headers["content-type"]).toMatch(/^application\/problem\+json/);
+      expect(problemSchema.parse(res.body).status).toBe(404);
+    },
+  );
 });
