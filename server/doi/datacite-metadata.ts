@@ -85,3 +85,35 @@ export function missingMandatoryProperties(a: DataCiteAttributes): DataCiteError
   else if (!/^https?:\/\//.test(a.url!)) errors.push({ source: "url", title: "url must be an http or https URL" });
   return errors;
 }
+
+/**
+ * DataCite Metadata Schema 4.6's controlled list for resourceTypeGeneral (from memory of the schema documentation;
+ * 4.5 added Instrument and StudyRegistration, 4.6 Award and Project).
+ */
+export const resourceTypesGeneral = [
+  "Audiovisual", "Award", "Book", "BookChapter", "Collection", "ComputationalNotebook", "ConferencePaper", "ConferenceProceeding",
+  "DataPaper", "Dataset", "Dissertation", "Event", "Image", "Instrument", "InteractiveResource", "Journal", "JournalArticle", "Model",
+  "OutputManagementPlan", "PeerReview", "PhysicalObject", "Preprint", "Project", "Report", "Service", "Software", "Sound", "Standard",
+  "StudyRegistration", "Text", "Workflow", "Other",
+] as const;
+
+export const creatorNameTypes = ["Personal", "Organizational"] as const;
+
+/**
+ * Values outside the schema's controlled lists, which the service refuses when it validates a registered or findable
+ * DOI: resourceTypeGeneral and a creator's nameType. The match is exact, as in the schema's XSD enumerations.
+ */
+export function controlledListProblems(a: DataCiteAttributes): DataCiteError[] {
+  const errors: DataCiteError[] = [];
+  const general = a.types?.resourceTypeGeneral;
+  if (!blank(general) && !(resourceTypesGeneral as readonly string[]).includes(general!)) {
+    errors.push({ source: "types.resourceTypeGeneral", title: `"${general}" is not one of DataCite's resource types (${resourceTypesGeneral.join(", ")})` });
+  }
+  (Array.isArray(a.creators) ? a.creators : []).forEach((c, i) => {
+    const nameType: unknown = c?.nameType;
+    if (nameType !== undefined && !(creatorNameTypes as readonly unknown[]).includes(nameType)) {
+      errors.push({ source: `creators[${i}].nameType`, title: `nameType "${String(nameType)}" must be Personal or Organizational` });
+    }
+  });
+  return errors;
+}

@@ -4,7 +4,7 @@ import type { Server } from "node:http";
 import type { AddressInfo } from "node:net";
 import path from "node:path";
 import express, { type ErrorRequestHandler, type Express, type RequestHandler } from "express";
-import { missingMandatoryProperties, type DataCiteAttributes, type DataCiteError } from "./datacite-metadata";
+import { controlledListProblems, missingMandatoryProperties, type DataCiteAttributes, type DataCiteError } from "./datacite-metadata";
 
 export interface FakeDataCiteOptions {
   user: string;
@@ -131,12 +131,12 @@ export function createFakeDataCite(options: FakeDataCiteOptions): FakeDataCite {
 
 type Outcome = { ok: true; record: DataCiteAttributes } | { ok: false; errors: DataCiteError[] };
 
-/** Draft DOIs need only an identifier; `publish` (findable) and `register` need the mandatory metadata. */
+/** Draft DOIs need only an identifier; `publish` (findable) and `register` need the mandatory metadata, within the controlled lists. */
 function applyEvent(attributes: DataCiteAttributes, existing: DataCiteAttributes | undefined): Outcome {
   const { event, prefix: _prefix, ...rest } = attributes;
   const state = event === "publish" ? "findable" : event === "register" ? "registered" : event === "hide" ? "registered" : existing?.state ?? "draft";
   if (state !== "draft") {
-    const missing = missingMandatoryProperties(rest);
+    const missing = [...missingMandatoryProperties(rest), ...controlledListProblems(rest)];
     if (missing.length) return { ok: false, errors: missing.map((e) => ({ status: "422", ...e })) };
   }
   const now = new Date().toISOString();

@@ -177,6 +177,30 @@ describe("the local DataCite fake", () => {
     expect(body.errors.every((e) => typeof e.title === "string" && e.title.length > 0)).toBe(true);
   });
 
+  it.each([
+    ["types.resourceTypeGeneral", { types: { resourceTypeGeneral: "Spreadsheet" } }],
+    // The schema's enumeration is case-sensitive.
+    ["types.resourceTypeGeneral", { types: { resourceTypeGeneral: "dataset" } }],
+    ["creators[1].nameType", { creators: [{ name: "Quillon, Marta", nameType: "Personal" }, { name: "Tallgrass Basin Agronomy Network", nameType: "Organisation" }] }],
+    ["creators[0].nameType", { creators: [{ name: "Quillon, Marta", nameType: "Person" }] }],
+  ])("rejects a findable DOI whose %s is outside DataCite's controlled list", async (property, change) => {
+    const res = await post({ data: { type: "dois", attributes: { ...valid(), ...change } } });
+    expect(res.status).toBe(422);
+    const body = (await res.json()) as { errors: { source: string; title: string }[] };
+    expect(body.errors.map((e) => e.source)).toEqual([property]);
+    expect(fake.records.has(valid().doi!)).toBe(false);
+  });
+
+  it("accepts other values from the controlled lists, and a creator without a nameType", async () => {
+    const client = createDataCiteClient({ url: fake.url!, ...credentials });
+    const doi = `${prefix}/plotbank.fake-lists.v1.0.0`;
+    const made = await client.createDoi({ ...valid(), doi, types: { resourceTypeGeneral: "Software" }, creators: [{ name: "Tallgrass Basin Agronomy Network" }] });
+    expect(made).toMatchObject({ state: "findable", types: { resourceTypeGeneral: "Software" } });
+    // A draft is not validated against the lists, as on the real service.
+    const draft = await client.createDoi({ doi: `${prefix}/plotbank.fake-lists-draft`, types: { resourceTypeGeneral: "Spreadsheet" } });
+    expect(draft.state).toBe("draft");
+  });
+
   it("accepts a complete payload, refuses the same DOI twice, and refuses a prefix the account does not hold", async () => {
     const client = createDataCiteClient({ url: fake.url!, ...credentials });
     const made = await client.createDoi(valid());
