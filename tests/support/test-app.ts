@@ -30,9 +30,10 @@ export interface TestApp {
 
 /**
  * The real app on a real database: in-memory PGlite by default, or the PostgreSQL server named by
- * PLOTBANK_TEST_DATABASE_URL (the parity run), migrated and emptied first.
+ * PLOTBANK_TEST_DATABASE_URL (the parity run), migrated and emptied first. API only, unless `webDistDir` names a web
+ * export to serve beside it.
  */
-export async function testApp(overrides: Partial<AppConfig> = {}): Promise<TestApp> {
+export async function testApp(overrides: Partial<AppConfig> = {}, options: { webDistDir?: string } = {}): Promise<TestApp> {
   const url = process.env.PLOTBANK_TEST_DATABASE_URL;
   let database: Database;
   let dropDatabase: (() => Promise<void>) | undefined;
@@ -48,7 +49,7 @@ export async function testApp(overrides: Partial<AppConfig> = {}): Promise<TestA
     publicUrl: "http://plotbank.test",
     ...overrides,
   });
-  const { app, ctx } = createApp({ database, config, webDistDir: false });
+  const { app, ctx } = createApp({ database, config, webDistDir: options.webDistDir ?? false });
   return {
     app,
     ctx,
