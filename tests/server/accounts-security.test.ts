@@ -1,13 +1,13 @@
-import { and, eq } from "drizzle-orm";
+import { and, asc, eq, sql } from "drizzle-orm";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { apiTokens, datasets, follows, outbox, versions } from "@/db/schema";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
 import type { AppContext } from "@/server/context";
-import { notifyReviewDecision, notifyReviewRequested } from "@/server/services/accounts/notifications";
 import { runPublishHooks } from "@/server/services/publish-hooks";
 import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
 import { signedInAgent } from "@/tests/support/sign-in";
+import { draftWithData } from "@/tests/server/curation-fixtures";
 
 let t: TestApp;
 beforeAll(async () => {
@@ -15,7 +15,7 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-async function insertDataset(ctx: AppContext, slug: string, state: "draft" | "in_review" | "published", submitter?: string) {
+async function insertDataset(ctx: AppContext, slug: string, state: "draft" | "published") {
   const owner = await makeUser(ctx, "curator");
   const [dataset] = await ctx.db
     .insert(datasets)
@@ -28,7 +28,7 @@ async function insertDataset(ctx: AppContext, slug: string, state: "draft" | "in
   if (state !== "draft") {
     await ctx.db
       .update(versions)
-      .set({ state, submittedBy: submitter ?? owner.id, ...(state === "published" ? { publishedAt: new Date() } : {}) })
+      .set({ state, submittedBy: owner.id, publishedAt: new Date() })
       .where(eq(versions.id, version!.id));
   }
   return { owner, dataset: dataset!, versionId: version!.id };
@@ -202,22 +202,92 @@ describe("following datasets and the e-mails that go with it", () => {
     expect(mine[0]!.text).toContain(`http://plotbank.test/datasets/${dataset.slug}`);
     expect(mine[0]!.text).toContain("First release.");
   });
+});
 
-  it("asks reviewers (not the submitter) to review, and tells the submitter the decision with the comment", async () => {
+describe("review e-mails", () => {
+  const mails = async (ctx: AppContext, kind: string) =>
+    (await ctx.db.select().from(outbox).where(eq(outbox.kind, kind)).orderBy(asc(outbox.createdAt))).map((m) => ({ to: m.to, subject: m.subject, text: m.text, meta: m.meta as Record<string, unknown> }));
+
+  it("asks reviewers (not the submitter) on submit, and tells the submitter each decision with the comment", async () => {
     const fresh = await testApp();
     try {
-      const reviewer = await makeUser(fresh.ctx, "reviewer");
-      const submitter = await makeUser(fresh.ctx, "reviewer");
-      const { versionId } = await insertDataset(fresh.ctx, "basin-k-review", "in_review", submitter.id);
-      expect(await notifyReviewRequested(fresh.ctx, versionId)).toBe(1);
-      const asked = await fresh.ctx.db.select().from(outbox).where(eq(outbox.kind, "review-requested"));
-      expect(asked.map((m) => m.to)).toEqual([reviewer.email]);
-      await notifyReviewDecision(fresh.ctx, versionId, "returned", "Site 3 lacks the soil-test K value.");
-      const [decision] = await fresh.ctx.db.select().from(outbox).where(eq(outbox.kind, "review-returned"));
-      expect(decision?.to).toBe(submitter.email);
-      expect(decision?.subject).toMatch(/Returned for changes/);
-      expect(decision?.text).toContain("Site 3 lacks the soil-test K value.");
+      const f = await draftWithData(fresh.app, fresh.ctx);
+      const secondReviewer = await makeUser(fresh.ctx, "reviewer");
+      const admin = await makeUser(fresh.ctx, "admin");
+      const submit = () => f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release: 2021 season." }).expect(200);
+
+      await submit();
+      const asked = await mails(fresh.ctx, "review-requested");
+      expect(asked.map((m) => m.to).sort()).toEqual([f.reviewer.email, secondReviewer.email].sort());
+      expect(asked.map((m) => m.to)).not.toContain(f.curator.email);
+      expect(asked.map((m) => m.to)).not.toContain(admin.email);
+      expect(asked[0]!.text).toContain("First release: 2021 season.");
+      expect(asked[0]!.meta.versionId).toBe(f.versionId);
+
+      await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/return`).send({ comment: "Site TB-02 lacks the soil-test K value." }).expect(200);
+      const returned = await mails(fresh.ctx, "review-returned");
+      expect(returned).toHaveLength(1);
+      expect(returned[0]).toMatchObject({ to: f.curator.email, subject: expect.stringMatching(/^Returned for changes/) });
+      expect(returned[0]!.text).toContain("Site TB-02 lacks the soil-test K value.");
+
+      await submit();
+      expect(await mails(fresh.ctx, "review-requested")).toHaveLength(4);
+
+      await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({ comment: "Soil tests complete now." }).expect(200);
+      const approved = await mails(fresh.ctx, "review-approved");
+      expect(approved).toHaveLength(1);
+      expect(approved[0]).toMatchObject({ to: f.curator.email, subject: expect.stringMatching(/^Approved/) });
+      expect(approved[0]!.text).toContain("Soil tests complete now.");
+      expect(approved[0]!.text).toContain(`http://plotbank.test/datasets/${f.slug}`);
     } finally {
+      await fresh.close();
+    }
+  });
+
+  it("keeps the submission and the decision when mail cannot be sent, with the failure kept in the outbox", async () => {
+    // Port 9 (discard) refuses SMTP connections here: every send fails at the transport.
+    const prod = await testApp({ development: false, smtpUrl: "smtp://127.0.0.1:9" });
+    const logged: unknown[][] = [];
+    const original = console.error;
+    console.error = (...args: unknown[]) => logged.push(args);
+    try {
+      const f = await draftWithData(prod.app, prod.ctx);
+      await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
+      const approve = await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({ comment: "Fine." }).expect(200);
+      expect(approve.body.state).toBe("published");
+      const [asked] = await mails(prod.ctx, "review-requested");
+      const [approved] = await mails(prod.ctx, "review-approved");
+      expect(asked?.meta.deliveryError).toBeTruthy();
+      expect(approved?.meta.deliveryError).toBeTruthy();
+      expect(logged.length).toBeGreaterThanOrEqual(2);
+    } finally {
+      console.error = original;
+      await prod.close();
+    }
+  });
+
+  it("keeps the state change when the outbox itself cannot be written, and logs why", async () => {
+    const fresh = await testApp();
+    const logged: unknown[][] = [];
+    const original = console.error;
+    try {
+      const f = await draftWithData(fresh.app, fresh.ctx);
+      // A database-level fault: every insert into the outbox fails from here on.
+      await fresh.ctx.db.execute(sql`create function refuse_mail() returns trigger language plpgsql as $$ begin raise exception 'outbox is full'; end $$`);
+      await fresh.ctx.db.execute(sql`create trigger refuse_mail before insert on outbox for each row execute function refuse_mail()`);
+      console.error = (...args: unknown[]) => logged.push(args);
+      await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
+      await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/return`).send({ comment: "Add the K rates." }).expect(200);
+      console.error = original;
+      const [v] = await fresh.ctx.db.select().from(versions).where(eq(versions.id, f.versionId));
+      expect(v).toMatchObject({ state: "draft", reviewComment: "Add the K rates.", changelog: "First release." });
+      expect(logged.map((args) => String(args[0]))).toEqual([
+        `Review request for version ${f.versionId} e-mail failed; the review state change stands:`,
+        `Return of version ${f.versionId} e-mail failed; the review state change stands:`,
+      ]);
+      expect(String((logged[0]![1] as Error).cause)).toMatch(/outbox is full/);
+    } finally {
+      console.error = original;
       await fresh.close();
     }
   });

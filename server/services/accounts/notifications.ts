@@ -75,6 +75,18 @@ export async function notifyReviewDecision(ctx: AppContext, versionId: string, d
   await createMailer(ctx).send({ kind: `review-${decision}`, to: submitter.email, ...mail, meta: { versionId, decision, datasetSlug: dataset.slug } });
 }
 
+/**
+ * Review mail is sent after the state change has committed. Failing to write or send it is logged and never passed
+ * on: the submission or decision stands, and the outbox row (when one was written) carries the delivery error.
+ */
+export async function sendReviewMail(what: string, send: () => Promise<unknown>): Promise<void> {
+  try {
+    await send();
+  } catch (error) {
+    console.error(`${what} e-mail failed; the review state change stands:`, error);
+  }
+}
+
 /** One message per follower (never a shared To: line, which would show every follower's address to all). */
 export async function notifyFollowers(ctx: AppContext, versionId: string): Promise<number> {
   const { version, dataset } = await versionWithDataset(ctx, versionId);

@@ -2,6 +2,7 @@ import { and, asc, count, eq } from "drizzle-orm";
 import { datasets, siteYears, users, versions } from "@/db/schema";
 import type { AppContext } from "@/server/context";
 import { conflict, forbidden } from "@/server/errors";
+import { notifyReviewDecision, notifyReviewRequested, sendReviewMail } from "@/server/services/accounts/notifications";
 import { runPublishHooks } from "@/server/services/publish-hooks";
 import { assertCanEdit, canEditDataset, isReviewer, versionById, type User } from "./access";
 import { versionChecksum } from "./resource-csv";
@@ -17,7 +18,8 @@ export async function submitVersion(ctx: AppContext, user: User, versionId: stri
   const [n] = await db.select({ n: count() }).from(siteYears).where(eq(siteYears.versionId, versionId));
   if (!n?.n) throw conflict(`Version ${version.semver} has no site-years yet; upload its data before submitting it.`);
   const now = new Date();
-  await db.update(versions).set({ state: "in_review", changelog, submittedBy: user.id, submittedAt: now, updatedAt: now, reviewComment: null }).where(and(eq(versions.id, versionId), eq(versions.state, "draft")));
+  const [submitted] = await db.update(versions).set({ state: "in_review", changelog, submittedBy: user.id, submittedAt: now, updatedAt: now, reviewComment: null }).where(and(eq(versions.id, versionId), eq(versions.state, "draft"))).returning({ id: versions.id });
+  if (submitted) await sendReviewMail(`Review request for version ${versionId}`, () => notifyReviewRequested(ctx, versionId));
 }
 
 async function reviewable(ctx: AppContext, user: User, versionId: string, verb: string) {
@@ -55,16 +57,19 @@ export async function approveVersion(ctx: AppContext, user: User, versionId: str
       })
       .where(and(eq(versions.id, versionId), eq(versions.state, "in_review")));
   });
+  await sendReviewMail(`Approval of version ${versionId}`, () => notifyReviewDecision(ctx, versionId, "approved", comment ?? ""));
   await runPublishHooks(ctx, versionId);
 }
 
 /** In review → draft, with the reviewer's comment for the curator. */
 export async function returnVersion(ctx: AppContext, user: User, versionId: string, comment: string) {
   await reviewable(ctx, user, versionId, "return");
-  await ctx.db
+  const [returned] = await ctx.db
     .update(versions)
     .set({ state: "draft", reviewComment: comment, reviewedBy: user.id, updatedAt: new Date() })
-    .where(and(eq(versions.id, versionId), eq(versions.state, "in_review")));
+    .where(and(eq(versions.id, versionId), eq(versions.state, "in_review")))
+    .returning({ id: versions.id });
+  if (returned) await sendReviewMail(`Return of version ${versionId}`, () => notifyReviewDecision(ctx, versionId, "returned", comment));
 }
 
 /** Published → withdrawn: a tombstone keeps the metadata and the reason; the rows are no longer served. */
