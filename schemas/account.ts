@@ -84,7 +84,8 @@ export const roleChangeEntry = z
   .object({
     id: z.string(),
     at: z.string(),
-    fromRole: role,
+    /** Null when the account was created with the role by accepting an invitation. */
+    fromRole: role.nullable(),
     toRole: role,
     user: z.object({ id: z.string(), displayName: z.string(), email: z.string() }),
     actor: z.object({ id: z.string(), displayName: z.string() }).nullable(),

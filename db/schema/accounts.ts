@@ -80,7 +80,8 @@ export const roleChanges = pgTable("role_changes", {
   id: uuid("id").primaryKey().defaultRandom(),
   actorId: uuid("actor_id").references(() => users.id, { onDelete: "set null" }),
   userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
-  fromRole: roleEnum("from_role").notNull(),
+  /** Null when the account was created with the role: an accepted invitation, whose actor is the inviter. */
+  fromRole: roleEnum("from_role"),
   toRole: roleEnum("to_role").notNull(),
   at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
 });

@@ -1,8 +1,8 @@
-import { and, desc, eq } from "drizzle-orm";
+import { and, desc, eq, sql } from "drizzle-orm";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { outbox, roleChanges, users } from "@/db/schema";
-import { checkEmail, me } from "@/schemas/account";
+import { checkEmail, me, roleChangeList } from "@/schemas/account";
 import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
 import { signedInAgent } from "@/tests/support/sign-in";
 
@@ -154,6 +154,33 @@ describe("invitation → accept → sign-in", () => {
     expect((await agent.get("/api/v1/session").expect(200)).body.role).toBe("curator");
     const again = await request(t.app).post("/api/v1/invitations/accept").send({ token, displayName: "X", password: newPassword }).expect(410);
     expect(again.body.detail).toMatch(/invitation has already been used/);
+
+    // The grant is in the role-change log like any change of role, made by the inviter.
+    const log = roleChangeList.parse((await adminAgent.get("/api/v1/admin/role-changes").expect(200)).body);
+    const granted = log.items.filter((c) => c.user.id === accepted.body.id);
+    expect(granted).toEqual([expect.objectContaining({ fromRole: null, toRole: "curator", actor: { id: admin.id, displayName: admin.displayName } })]);
+  });
+
+  it("creates no account when the role grant cannot be logged, and the link still works afterwards", async () => {
+    const fresh = await testApp();
+    try {
+      const admin = await makeUser(fresh.ctx, "admin");
+      const adminAgent = await signedInAgent(fresh.app, admin.email);
+      await adminAgent.post("/api/v1/admin/invitations").send({ email: "logged.reviewer@tallgrass.test", role: "reviewer" }).expect(201);
+      const [invitation] = await fresh.ctx.db.select().from(outbox).where(eq(outbox.kind, "invitation"));
+      const token = new URL(invitation!.text.match(/https?:\/\/\S+/)![0]).searchParams.get("token")!;
+      // A database-level fault in the audit log: the account must not exist without its log row.
+      await fresh.ctx.db.execute(sql`create function refuse_log() returns trigger language plpgsql as $$ begin raise exception 'audit log unavailable'; end $$`);
+      await fresh.ctx.db.execute(sql`create trigger refuse_log before insert on role_changes for each row execute function refuse_log()`);
+      await request(fresh.app).post("/api/v1/invitations/accept").send({ token, displayName: "Lee Margin", password: newPassword }).expect(500);
+      expect(await fresh.ctx.db.select().from(users).where(eq(users.email, "logged.reviewer@tallgrass.test"))).toEqual([]);
+      await fresh.ctx.db.execute(sql`drop trigger refuse_log on role_changes`);
+      const accepted = await request(fresh.app).post("/api/v1/invitations/accept").send({ token, displayName: "Lee Margin", password: newPassword }).expect(201);
+      const rows = await fresh.ctx.db.select().from(roleChanges).where(eq(roleChanges.userId, accepted.body.id));
+      expect(rows).toEqual([expect.objectContaining({ actorId: admin.id, fromRole: null, toRole: "reviewer" })]);
+    } finally {
+      await fresh.close();
+    }
   });
 
   it("refuses to invite an address that already has an account", async () => {

@@ -1,5 +1,5 @@
 import { and, desc, eq, gt, isNull } from "drizzle-orm";
-import { emailTokens, users } from "@/db/schema";
+import { emailTokens, roleChanges, users } from "@/db/schema";
 import type { InvitationPreview, Role } from "@/schemas/account";
 import type { AppContext } from "@/server/context";
 import { conflict } from "@/server/errors";
@@ -46,7 +46,10 @@ export async function previewInvitation(ctx: AppContext, token: string): Promise
   return { email: row.email, role: row.role ?? "curator", expiresAt: row.expiresAt.toISOString() };
 }
 
-/** Accepting makes a verified account with the invited role: the link itself proved the address. */
+/**
+ * Accepting makes a verified account with the invited role: the link itself proved the address. The grant goes into
+ * the role-change log in the same transaction, with the inviter as its actor, like any other change of role.
+ */
 export async function acceptInvitation(ctx: AppContext, input: { token: string; displayName: string; password: string }) {
   const preview = await peekEmailToken(ctx.db, "invite", input.token);
   refuseWeakPassword(input.password, preview.email);
@@ -55,6 +58,7 @@ export async function acceptInvitation(ctx: AppContext, input: { token: string; 
     const [taken] = await tx.select({ id: users.id }).from(users).where(eq(users.email, row.email));
     if (taken) throw conflict("This address already has an account; sign in instead.");
     const user = await createUser(tx, { email: row.email, displayName: input.displayName, password: input.password, role: row.role ?? "curator", verified: true });
+    await tx.insert(roleChanges).values({ actorId: row.invitedBy, userId: user.id, fromRole: null, toRole: user.role });
     return user;
   });
 }

@@ -1,0 +1,1 @@
+ALTER TABLE "role_changes" ALTER COLUMN "from_role" DROP NOT NULL;
