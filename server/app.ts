@@ -14,6 +14,7 @@ import { createRegistry, generateOpenApiDocument } from "./openapi/registry";
 import { apiRateLimits } from "./rate-limit";
 import { apiRoutes } from "./routes";
 import { datasetPageHead } from "./services/linked-data/dataset-page-head";
+import { registerPublishHooks } from "./services/publish-hook-setup";
 import { mountWebApp } from "./web";
 
 export interface CreateAppOptions {
@@ -27,6 +28,7 @@ export interface CreateAppOptions {
 export function createApp({ database, config, webDistDir }: CreateAppOptions): { app: Express; ctx: AppContext } {
   const registry = createRegistry();
   const ctx: AppContext = { database, db: database.db, config, registry };
+  registerPublishHooks();
   const app = express();
   app.disable("x-powered-by");
   app.set("trust proxy", "loopback");

@@ -6,7 +6,7 @@ import { createApp } from "./app";
 import { mountDevProxy, proxyUpgrades } from "./dev-proxy";
 import { loadConfig } from "./config";
 import { startLocalDataCiteUnlessConfigured } from "./doi/local-datacite";
-import { startDoiRetryLoop } from "./services/citation/doi-registration";
+import { startDoiRetryLoop } from "./services/citation/doi-queue";
 import { webDistDir } from "./web";
 import { seedDemo } from "@/datasets";
 

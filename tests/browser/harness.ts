@@ -6,6 +6,7 @@ import { migrateDatabase, openDatabase, type Database } from "@/db/client";
 import { createApp } from "@/server/app";
 import { loadConfig, type AppConfig } from "@/server/config";
 import type { AppContext } from "@/server/context";
+import { drainDoiQueue } from "@/server/services/citation/doi-queue";
 import { webDistDir } from "@/server/web";
 
 export const artifactsDir = path.resolve(__dirname, "../artifacts");
@@ -47,6 +48,7 @@ export async function startServer(options: { demo?: boolean; config?: Partial<Ap
     database,
     async stop() {
       await new Promise<void>((resolve) => server.close(() => resolve()));
+      await drainDoiQueue(ctx);
       await database.close();
     },
   };

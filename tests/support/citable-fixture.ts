@@ -2,6 +2,7 @@ import { eq } from "drizzle-orm";
 import { datasets, sites, siteYears, versions } from "@/db/schema";
 import type { Contributor } from "@/schemas/dataset-metadata";
 import type { AppContext } from "@/server/context";
+import { drainDoiQueue } from "@/server/services/citation/doi-queue";
 import { runPublishHooks } from "@/server/services/publish-hooks";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
 import { makeUser } from "./test-app";
@@ -16,7 +17,7 @@ export interface CitableFixture {
   datasetId: string;
   slug: string;
   ownerId: string;
-  /** Make and publish a version (a draft with two site-years, then published), running the publish hooks. */
+  /** Make and publish a version (a draft with two site-years, then published), running the publish hooks and the DOI pass they start. */
   publish(semver: string, options?: { publishedAt?: Date; years?: [number, number]; hooks?: boolean }): Promise<string>;
 }
 
@@ -65,7 +66,11 @@ export async function citableFixture(
         .update(versions)
         .set({ state: "published", publishedAt, checksum: `sha256:${"ab".repeat(32)}`, reviewedBy: owner.id, updatedAt: publishedAt })
         .where(eq(versions.id, v!.id));
-      if (options.hooks !== false) await runPublishHooks(ctx, v!.id);
+      if (options.hooks !== false) {
+        await runPublishHooks(ctx, v!.id);
+        // Registration runs in the background; these tests read its outcome, so wait for the pass to end.
+        await drainDoiQueue(ctx);
+      }
       return v!.id;
     },
   };

@@ -4,6 +4,7 @@ import { migrateDatabase, openDatabase, type Database } from "@/db/client";
 import { createApp } from "@/server/app";
 import { loadConfig, type AppConfig } from "@/server/config";
 import type { AppContext } from "@/server/context";
+import { drainDoiQueue } from "@/server/services/citation/doi-queue";
 import { createUser } from "@/server/services/users";
 import type { Role } from "@/schemas/account";
 
@@ -55,6 +56,8 @@ export async function testApp(overrides: Partial<AppConfig> = {}, options: { web
     ctx,
     database,
     async close() {
+      // A DOI pass still running would write to a closed database.
+      await drainDoiQueue(ctx);
       await database.close();
       await dropDatabase?.();
     },

@@ -6,7 +6,6 @@ import { problemResponses } from "@/server/openapi/registry";
 import { findVersion, loadCitableDataset } from "@/server/services/citation/citable-version";
 import { citationExtensions, citationFormats, citationMediaTypes, renderCitation } from "@/server/services/citation/citation-formats";
 import { cslItem } from "@/server/services/citation/csl-item";
-import { registerDoiPublishHook } from "@/server/services/citation/doi-registration";
 import { parseParams, parseQuery } from "@/server/validate";
 
 const citationParams = z.object({
@@ -19,7 +18,6 @@ const citationQuery = z
 
 export function citationRoutes(ctx: AppContext): Router {
   const { db, config, registry } = ctx;
-  registerDoiPublishHook();
   const router = Router();
 
   registry.registerPath({

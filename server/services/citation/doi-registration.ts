@@ -3,7 +3,6 @@ import { datasets, versions } from "@/db/schema";
 import type { AppContext } from "@/server/context";
 import { createDataCiteClient, DataCiteRequestError, type DataCiteClient } from "@/server/doi/datacite-client";
 import type { DataCiteAttributes } from "@/server/doi/datacite-metadata";
-import { onVersionPublished } from "@/server/services/publish-hooks";
 import { loadCitableDatasetOfVersion, neighbours } from "./citable-version";
 import { conceptDoiAttributes, versionDoiAttributes } from "./datacite-payload";
 
@@ -96,31 +95,4 @@ export async function retryPendingDois(ctx: AppContext, options: { now?: Date } 
     else if (outcome === "pending") summary.pending++;
   }
   return summary;
-}
-
-/** The background retry: one pass at a time, every `intervalMs`. Returns a function that stops it. */
-export function startDoiRetryLoop(ctx: AppContext, intervalMs = 15_000): () => void {
-  let running = false;
-  const timer = setInterval(() => {
-    if (running) return;
-    running = true;
-    retryPendingDois(ctx)
-      .then((s) => {
-        if (s.attempted) console.log(`DOI retry: ${s.registered} registered, ${s.pending} still pending, ${s.failed} refused`);
-      })
-      .catch((error) => console.error("DOI retry pass failed:", error))
-      .finally(() => {
-        running = false;
-      });
-  }, intervalMs);
-  // The retry loop alone must not keep the process alive (tests, shutdown).
-  (timer as unknown as { unref?: () => void }).unref?.();
-  return () => clearInterval(timer);
-}
-
-/** Register DOIs as versions are published. */
-export function registerDoiPublishHook() {
-  onVersionPublished("register-doi", async (ctx, versionId) => {
-    await registerVersionDoi(ctx, versionId);
-  });
 }
