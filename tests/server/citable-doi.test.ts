@@ -115,6 +115,39 @@ describe("DOI registration on publication", () => {
     expect(fake.records.get(row.doi!)!.state).toBe("findable");
   });
 
+  it("links only DOIs the service has; when a pending version registers later, its neighbour and the concept DOI gain the links", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-links");
+    const conceptDoi = `${prefix}/plotbank.tb-doi-links`;
+    const [doi1, doi2] = [`${conceptDoi}.v1.0.0`, `${conceptDoi}.v1.1.0`];
+    await fake.stop();
+    const v1 = await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2024, 4, 2)) });
+    expect(await versionRow(v1)).toMatchObject({ doiStatus: "pending", doi: null });
+    await fake.start();
+    const v2 = await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2025, 0, 20)) });
+    expect(await versionRow(v2)).toMatchObject({ doiStatus: "registered", doi: doi2 });
+    // 1.0.0 is still waiting for its back-off: 1.1.0 names no earlier version, and the concept DOI has only 1.1.0.
+    const relations = (doi: string) => (fake.records.get(doi)?.relatedIdentifiers ?? []).map((r) => `${r.relationType} ${r.relatedIdentifier}`);
+    expect(relations(doi2)).toEqual([`IsVersionOf ${conceptDoi}`]);
+    expect(relations(conceptDoi)).toEqual([`HasVersion ${doi2}`]);
+
+    await retryPendingDois(t.ctx, { now: new Date(Date.now() + 24 * 3600_000) });
+    expect(await versionRow(v1)).toMatchObject({ doiStatus: "registered", doi: doi1 });
+    expect(relations(doi1)).toEqual([`IsVersionOf ${conceptDoi}`, `IsPreviousVersionOf ${doi2}`]);
+    expect(relations(doi2)).toEqual([`IsVersionOf ${conceptDoi}`, `IsNewVersionOf ${doi1}`]);
+    expect(relations(conceptDoi)).toEqual([`HasVersion ${doi1}`, `HasVersion ${doi2}`]);
+  });
+
+  it("never links a DOI the service refused", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-refused-link");
+    const v1 = await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2024, 4, 2)) });
+    await t.ctx.db.update(versions).set({ doi: null, doiStatus: "failed", doiLastError: "refused" }).where(eq(versions.id, v1));
+    const v2 = await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2025, 0, 20)) });
+    const doi2 = (await versionRow(v2)).doi!;
+    expect(fake.records.get(doi2)!.relatedIdentifiers!.map((r) => r.relationType)).toEqual(["IsVersionOf"]);
+    const concept = fake.records.get(`${prefix}/plotbank.tb-doi-refused-link`)!;
+    expect(concept.relatedIdentifiers!.map((r) => r.relatedIdentifier)).toEqual([doi2]);
+  });
+
   it("re-registering after a lost answer updates the existing DOI instead of failing", async () => {
     const f = await citableFixture(t.ctx, "tb-doi-again");
     const id = await f.publish("1.0.0");

@@ -32,7 +32,7 @@ export interface CitableVersion extends CitableMetadata {
   changelog: string;
   tableSchema: TableSchemaDescriptor;
   checksum: string | null;
-  /** Registered DOI (null until the DOI service has confirmed it). */
+  /** Registered DOI: null until the DOI service has confirmed it, and kept while a metadata update is pending. */
   doi: string | null;
   doiStatus: "none" | "pending" | "registered" | "failed";
   /** The DOI this version is registered under, registered or not. */
@@ -156,7 +156,8 @@ function toCitableVersion(config: AppConfig, d: DatasetRow, v: VersionRow, owner
     changelog: v.changelog,
     tableSchema: v.tableSchema,
     checksum: v.checksum,
-    doi: v.doiStatus === "registered" ? v.doi : null,
+    // Only a successful registration writes the column.
+    doi: v.doi,
     doiStatus: v.doiStatus,
     intendedDoi: versionDoiName(config.datacite.prefix, d.slug, v.semver),
     landingUrl: versionLandingUrl(config, d.slug, v.semver),

@@ -5,12 +5,16 @@ import type { LicenceInfo } from "./licences";
 
 const resourceType = "Fertilizer field-trial data";
 
-/** DataCite attributes of one version's DOI, with its version chain and its concept DOI. */
+/**
+ * DataCite attributes of one version's DOI, with its concept DOI and the neighbouring versions' DOIs. Only DOIs the
+ * service has (a version's `doi` is set once registered) are linked: a link to a DOI still pending, or refused, would
+ * not resolve. Registering a version refreshes its neighbours and the concept DOI, so the links fill in.
+ */
 export function versionDoiAttributes(dataset: CitableDataset, version: CitableVersion): DataCiteAttributes {
   const { previous, next } = neighbours(dataset, version.versionId);
   const related: DataCiteRelatedIdentifier[] = [{ relatedIdentifier: dataset.intendedConceptDoi, relatedIdentifierType: "DOI", relationType: "IsVersionOf" }];
-  if (previous) related.push({ relatedIdentifier: previous.intendedDoi, relatedIdentifierType: "DOI", relationType: "IsNewVersionOf" });
-  if (next) related.push({ relatedIdentifier: next.intendedDoi, relatedIdentifierType: "DOI", relationType: "IsPreviousVersionOf" });
+  if (previous?.doi) related.push({ relatedIdentifier: previous.doi, relatedIdentifierType: "DOI", relationType: "IsNewVersionOf" });
+  if (next?.doi) related.push({ relatedIdentifier: next.doi, relatedIdentifierType: "DOI", relationType: "IsPreviousVersionOf" });
   const base = describe(version, version.intendedDoi, version.landingUrl, version.publishedAt);
   return {
     ...base,
@@ -24,12 +28,17 @@ export function versionDoiAttributes(dataset: CitableDataset, version: CitableVe
   };
 }
 
-/** DataCite attributes of the concept DOI: the dataset as a whole, pointing at each of its versions. */
+/** DataCite attributes of the concept DOI: the dataset as a whole, pointing at each of its registered versions. */
 export function conceptDoiAttributes(dataset: CitableDataset): DataCiteAttributes {
   return {
     ...describe(dataset, dataset.intendedConceptDoi, dataset.landingUrl, dataset.versions[0]!.publishedAt),
-    relatedIdentifiers: dataset.versions.map((v) => ({ relatedIdentifier: v.intendedDoi, relatedIdentifierType: "DOI" as const, relationType: "HasVersion" as const })),
+    relatedIdentifiers: dataset.versions.flatMap((v) => (v.doi ? [{ relatedIdentifier: v.doi, relatedIdentifierType: "DOI" as const, relationType: "HasVersion" as const }] : [])),
   };
+}
+
+/** The dataset as it will be once the service has confirmed `versionId`'s DOI: what its neighbours may link to. */
+export function withRegisteredDoi(dataset: CitableDataset, versionId: string, doi: string): CitableDataset {
+  return { ...dataset, versions: dataset.versions.map((v) => (v.versionId === versionId ? { ...v, doi } : v)) };
 }
 
 /** The properties a version and its concept DOI share. */

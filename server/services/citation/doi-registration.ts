@@ -4,7 +4,7 @@ import type { AppContext } from "@/server/context";
 import { createDataCiteClient, DataCiteRequestError, type DataCiteClient } from "@/server/doi/datacite-client";
 import type { DataCiteAttributes } from "@/server/doi/datacite-metadata";
 import { loadCitableDatasetOfVersion, neighbours } from "./citable-version";
-import { conceptDoiAttributes, versionDoiAttributes } from "./datacite-payload";
+import { conceptDoiAttributes, versionDoiAttributes, withRegisteredDoi } from "./datacite-payload";
 
 export type DoiOutcome = "registered" | "pending" | "failed" | "skipped";
 
@@ -42,13 +42,16 @@ export async function registerVersionDoi(ctx: AppContext, versionId: string): Pr
   const version = dataset?.versions.find((v) => v.versionId === versionId);
   if (!dataset || !version) return "skipped";
   try {
-    const minted = await upsertDoi(client, versionDoiAttributes(dataset, version));
-    const { previous, next } = neighbours(dataset, versionId);
+    const attributes = versionDoiAttributes(dataset, version);
+    const minted = version.doi ? await client.updateDoi(version.doi, attributes) : await upsertDoi(client, attributes);
+    // From here on the service has this DOI, so its neighbours and the concept DOI may link to it.
+    const linked = withRegisteredDoi(dataset, versionId, minted.doi ?? version.intendedDoi);
+    const { previous, next } = neighbours(linked, versionId);
     for (const n of [previous, next]) {
       // A neighbour still waiting for its own DOI gets these links when its registration runs.
-      if (n?.doiStatus === "registered") await client.updateDoi(n.intendedDoi, versionDoiAttributes(dataset, n));
+      if (n?.doi) await client.updateDoi(n.doi, versionDoiAttributes(linked, n));
     }
-    const concept = await upsertDoi(client, conceptDoiAttributes(dataset));
+    const concept = await upsertDoi(client, conceptDoiAttributes(linked));
     await ctx.db.update(datasets).set({ conceptDoi: concept.doi ?? dataset.intendedConceptDoi }).where(eq(datasets.id, dataset.datasetId));
     await ctx.db
       .update(versions)
