@@ -41,7 +41,7 @@ export interface DataCiteAttributes {
   subjects?: { subject: string }[];
   descriptions?: { description: string; descriptionType: "Abstract" | "Methods" | "Other" }[];
   rightsList?: { rights: string; rightsUri?: string; rightsIdentifier?: string; rightsIdentifierScheme?: string; schemeUri?: string }[];
-  dates?: { date: string; dateType: "Issued" | "Available" | "Updated" | "Collected" }[];
+  dates?: { date: string; dateType: "Issued" | "Available" | "Updated" | "Collected" | "Withdrawn"; dateInformation?: string }[];
   geoLocations?: { geoLocationPlace: string }[];
   relatedIdentifiers?: DataCiteRelatedIdentifier[];
   /** Set by the service in its answers. */

@@ -2,6 +2,7 @@ import { mkdtempSync, readFileSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { eq } from "drizzle-orm";
+import request from "supertest";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
 import { datasets, versions } from "@/db/schema";
 import { createDataCiteClient, DataCiteRequestError } from "@/server/doi/datacite-client";
@@ -9,9 +10,11 @@ import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacit
 import { startLocalDataCiteUnlessConfigured } from "@/server/doi/local-datacite";
 import { loadConfig } from "@/server/config";
 import { missingMandatoryProperties, type DataCiteAttributes } from "@/server/doi/datacite-metadata";
+import { drainDoiQueue } from "@/server/services/citation/doi-queue";
 import { retryDelayMs, retryPendingDois } from "@/server/services/citation/doi-registration";
 import { citableFixture } from "@/tests/support/citable-fixture";
-import { testApp, type TestApp } from "@/tests/support/test-app";
+import { signedInAgent } from "@/tests/support/sign-in";
+import { makeUser, testApp, type TestApp } from "@/tests/support/test-app";
 
 const credentials = { user: "PLOTBANK.TEST", password: "fake-secret" };
 const prefix = "10.80555";
@@ -161,6 +164,52 @@ describe("DOI registration on publication", () => {
   it("backs off exponentially up to an hour", () => {
     expect([0, 1, 2, 3, 4].map(retryDelayMs)).toEqual([0, 30_000, 60_000, 120_000, 240_000]);
     expect(retryDelayMs(40)).toBe(3_600_000);
+  });
+});
+
+describe("withdrawing a version", () => {
+  const withdraw = async (versionId: string, reason: string) => {
+    const reviewer = await signedInAgent(t.app, (await makeUser(t.ctx, "reviewer")).email);
+    await reviewer.post(`/api/v1/curation/versions/${versionId}/withdraw`).send({ reason }).expect(200);
+  };
+
+  it("keeps the DOI and updates its metadata: a note with the reason and a Withdrawn date", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-withdrawn");
+    const id = await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2024, 4, 2)) });
+    const doi = (await versionRow(id)).doi!;
+    expect(fake.records.get(doi)!.descriptions!.map((d) => d.descriptionType)).toEqual(["Abstract"]);
+
+    await withdraw(id, "Plot yields at TB-01 were entered in bu/ac as kg/ha");
+    await drainDoiQueue(t.ctx);
+    const row = await versionRow(id);
+    expect(row).toMatchObject({ state: "withdrawn", doi, doiStatus: "registered", doiLastError: null });
+    const record = fake.records.get(doi)!;
+    expect(record.state).toBe("findable");
+    expect(record.url).toBe("http://plotbank.test/datasets/tb-doi-withdrawn?version=1.0.0");
+    const withdrawnOn = row.withdrawnAt!.toISOString().slice(0, 10);
+    expect(record.descriptions).toContainEqual({
+      description: `Withdrawn on ${withdrawnOn}: Plot yields at TB-01 were entered in bu/ac as kg/ha. The data of this version are no longer served; its landing page keeps this record.`,
+      descriptionType: "Other",
+    });
+    expect(record.dates).toContainEqual({ date: withdrawnOn, dateType: "Withdrawn", dateInformation: "Plot yields at TB-01 were entered in bu/ac as kg/ha" });
+  });
+
+  it("while the DOI service is down, the update waits (the DOI is still cited) and goes out on a later pass", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-withdrawn-later");
+    const id = await f.publish("1.0.0");
+    const doi = (await versionRow(id)).doi!;
+    await fake.stop();
+    await withdraw(id, "Duplicate of another dataset");
+    await drainDoiQueue(t.ctx);
+    expect(await versionRow(id)).toMatchObject({ state: "withdrawn", doi, doiStatus: "pending", doiAttempts: 1 });
+    expect(fake.records.get(doi)!.descriptions!.some((d) => d.description.startsWith("Withdrawn"))).toBe(false);
+    const citation = await request(t.app).get("/api/v1/datasets/tb-doi-withdrawn-later/versions/1.0.0/citation").expect(200);
+    expect(citation.text).toContain(`https://doi.org/${doi}`);
+
+    await fake.start();
+    await retryPendingDois(t.ctx, { now: new Date(Date.now() + 24 * 3600_000) });
+    expect(await versionRow(id)).toMatchObject({ doiStatus: "registered", doiLastError: null });
+    expect(fake.records.get(doi)!.descriptions!.some((d) => d.description.includes("Duplicate of another dataset"))).toBe(true);
   });
 });
 

@@ -29,6 +29,7 @@ export interface CitableVersion extends CitableMetadata {
   state: "published" | "withdrawn";
   publishedAt: Date;
   withdrawnReason: string | null;
+  withdrawnAt: Date | null;
   changelog: string;
   tableSchema: TableSchemaDescriptor;
   checksum: string | null;
@@ -146,6 +147,7 @@ function toCitableVersion(config: AppConfig, d: DatasetRow, v: VersionRow, owner
     // A released version always has published_at; created_at only stands in for rows made before that rule.
     publishedAt: v.publishedAt ?? v.createdAt,
     withdrawnReason: v.withdrawnReason,
+    withdrawnAt: v.withdrawnAt,
     title: frozen.title ?? d.title,
     description: frozen.description ?? d.description,
     licence: licenceInfo(frozen.licence ?? d.licence),

@@ -16,15 +16,29 @@ export function versionDoiAttributes(dataset: CitableDataset, version: CitableVe
   if (previous?.doi) related.push({ relatedIdentifier: previous.doi, relatedIdentifierType: "DOI", relationType: "IsNewVersionOf" });
   if (next?.doi) related.push({ relatedIdentifier: next.doi, relatedIdentifierType: "DOI", relationType: "IsPreviousVersionOf" });
   const base = describe(version, version.intendedDoi, version.landingUrl, version.publishedAt);
+  const withdrawn = version.state === "withdrawn" ? withdrawal(version) : undefined;
   return {
     ...base,
     version: version.semver,
-    descriptions: [
-      ...base.descriptions!,
-      ...(version.state === "withdrawn" ? [{ description: `Withdrawn: ${version.withdrawnReason ?? "no reason given"}`, descriptionType: "Other" as const }] : []),
+    descriptions: [...base.descriptions!, ...(withdrawn ? [{ description: withdrawn.note, descriptionType: "Other" as const }] : [])],
+    dates: [
+      { date: day(version.publishedAt), dateType: "Issued" },
+      ...(withdrawn ? [{ date: withdrawn.date, dateType: "Withdrawn" as const, dateInformation: withdrawn.reason }] : []),
     ],
-    dates: [{ date: version.publishedAt.toISOString().slice(0, 10), dateType: "Issued" }],
     relatedIdentifiers: related,
+  };
+}
+
+const day = (d: Date) => d.toISOString().slice(0, 10);
+
+/** What a withdrawn version's DOI says: the DOI stays and resolves to the tombstone, which keeps the reason. */
+function withdrawal(version: CitableVersion) {
+  const reason = version.withdrawnReason ?? "no reason given";
+  const date = day(version.withdrawnAt ?? version.publishedAt);
+  return {
+    date,
+    reason,
+    note: `Withdrawn on ${date}: ${reason}. The data of this version are no longer served; its landing page keeps this record.`,
   };
 }
 

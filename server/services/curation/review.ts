@@ -3,6 +3,7 @@ import { datasets, siteYears, users, versions } from "@/db/schema";
 import type { AppContext } from "@/server/context";
 import { conflict, forbidden } from "@/server/errors";
 import { notifyReviewDecision, notifyReviewRequested, sendReviewMail } from "@/server/services/accounts/notifications";
+import { queueDoiWork } from "@/server/services/citation/doi-queue";
 import { runPublishHooks } from "@/server/services/publish-hooks";
 import { assertCanEdit, canEditDataset, isReviewer, versionById, type User } from "./access";
 import { versionChecksum } from "./resource-csv";
@@ -81,6 +82,8 @@ export async function withdrawVersion(ctx: AppContext, user: User, versionId: st
   if (version.state !== "published") throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a published version can be withdrawn.`);
   const now = new Date();
   await ctx.db.update(versions).set({ state: "withdrawn", withdrawnReason: reason, withdrawnAt: now, updatedAt: now }).where(eq(versions.id, versionId));
+  // The DOI stays and keeps resolving to the tombstone; its metadata is updated in the background to say why.
+  await queueDoiWork(ctx, versionId, ["registered", "pending"]);
 }
 
 export async function reviewQueue(ctx: AppContext, user: User) {
