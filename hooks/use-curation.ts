@@ -30,6 +30,7 @@ export const curationPaths = {
   tableSchema: (id: string) => `/api/v1/curation/versions/${encodeURIComponent(id)}/table-schema`,
   upload: (id: string, resource: ResourceName) => `/api/v1/curation/versions/${encodeURIComponent(id)}/uploads/${resource}`,
   action: (id: string, action: VersionAction) => `/api/v1/curation/versions/${encodeURIComponent(id)}/${action}`,
+  requeueDoi: (id: string) => `/api/v1/curation/versions/${encodeURIComponent(id)}/doi/requeue`,
   report: (versionId: string, reportId: string) => `/api/v1/curation/versions/${encodeURIComponent(versionId)}/reports/${encodeURIComponent(reportId)}`,
   reportCsv: (versionId: string, reportId: string) => `/api/v1/curation/versions/${encodeURIComponent(versionId)}/reports/${encodeURIComponent(reportId)}.csv`,
   diff: (from: string, to: string) => `/api/v1/curation/diff?from=${encodeURIComponent(from)}&to=${encodeURIComponent(to)}`,
@@ -191,6 +192,15 @@ export function useVersionActionMutation(id: string) {
       // Approving publishes; publishing and withdrawing change what the public catalogue lists.
       if (action === "withdraw" || action === "approve") await qc.invalidateQueries({ queryKey: datasetKeys.all });
     },
+  });
+}
+
+/** Send a failed or pending DOI registration again now; the answer is the version with its registration pending. */
+export function useRequeueDoiMutation(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: () => api(curationPaths.requeueDoi(id), versionDetail, { method: "POST" }),
+    onSuccess: (detail) => qc.setQueryData(curationKeys.version(id), detail),
   });
 }
 

@@ -101,6 +101,21 @@ export const reportBrief = z
   })
   .meta({ id: "ValidationReportBrief" });
 
+export const doiRegistration = z
+  .object({
+    status: z.enum(["none", "pending", "registered", "failed"]).describe(
+      "none: nothing to register (no DOI service); pending: waiting for the service (first registration or a metadata update); " +
+        "registered; failed: the service refused the metadata",
+    ),
+    doi: z.string().nullable().describe("The DOI, once the service has registered it"),
+    intendedDoi: z.string().describe("The DOI this version is registered under"),
+    attempts: z.number().int(),
+    lastError: z.string().nullable().describe("What the DOI service answered to the last attempt that did not succeed"),
+    canRequeue: z.boolean().describe("A pending or failed registration may be sent again now"),
+  })
+  .meta({ id: "DoiRegistration" });
+export type DoiRegistration = z.infer<typeof doiRegistration>;
+
 export const versionDetail = z
   .object({
     id: z.string(),
@@ -135,6 +150,7 @@ export const versionDetail = z
     latestPublishedSemver: z.string().nullable(),
     suggestedBump: z.enum(["major", "minor", "patch"]).nullable().describe("From the diff against the version it is based on"),
     suggestedSemver: semver.nullable(),
+    doiRegistration: doiRegistration.nullable().describe("For the dataset's editors and reviewers once the version is released; null otherwise"),
   })
   .meta({ id: "VersionDetail" });
 export type VersionDetail = z.infer<typeof versionDetail>;

@@ -2,6 +2,7 @@ import { useLocalSearchParams } from "expo-router";
 import { useState } from "react";
 import { StyleSheet, View } from "react-native";
 import { DictionaryEditor } from "@/components/lazy-tables";
+import { DoiStatusCard } from "@/components/curation/doi-status-card";
 import { LinkButton } from "@/components/curation/link-button";
 import { SegmentTabs } from "@/components/curation/segment-tabs";
 import { StateBadge } from "@/components/curation/state-badge";
@@ -58,6 +59,7 @@ function VersionDesk({ id, user }: { id: string; user: SessionUser }) {
         <LinkButton href={`/curate/datasets/${v.datasetSlug}`} label="All versions of this dataset" tone="quiet" />
       </Card>
       <VersionActions version={v} user={user} datasetCanEdit={dataset.data?.canEdit ?? false} />
+      <DoiStatusCard version={v} />
       <SegmentTabs label="Version panels" tabs={tabs} value={current} onChange={setPanel} />
       {current === "overview" ? <VersionOverview version={v} /> : null}
       {current === "upload" ? <UploadPanel version={v} /> : null}

@@ -194,6 +194,7 @@ const table: Record<string, Row> = {
     params: (c) => ({ id: c.fx.publishedId }),
     body: () => ({ reason: "A unit error in site 4." }),
   },
+  "POST /api/v1/curation/versions/:id/doi/requeue": { expect: { ...ownerWrite("pass"), reviewer: "pass" }, params: (c) => ({ id: c.fx.publishedId }) },
   "GET /api/v1/curation/diff": { expect: draftView("pass"), query: (c) => ({ from: c.fx.publishedId, to: c.fx.draftId }) },
   "GET /api/v1/curation/review-queue": { expect: { ...adminOnly(200), reviewer: 200 } },
   "POST /api/v1/curation/versions/:id/uploads/:resource": { expect: ownerWrite("pass", "hidden"), params: (c) => ({ id: c.fx.draftId, resource: "sites" }) },

@@ -4,7 +4,7 @@ import path from "node:path";
 import { eq } from "drizzle-orm";
 import request from "supertest";
 import { afterAll, afterEach, beforeAll, describe, expect, it } from "vitest";
-import { datasets, versions } from "@/db/schema";
+import { datasets, users, versions } from "@/db/schema";
 import { createDataCiteClient, DataCiteRequestError } from "@/server/doi/datacite-client";
 import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacite";
 import { startLocalDataCiteUnlessConfigured } from "@/server/doi/local-datacite";
@@ -210,6 +210,58 @@ describe("withdrawing a version", () => {
     await retryPendingDois(t.ctx, { now: new Date(Date.now() + 24 * 3600_000) });
     expect(await versionRow(id)).toMatchObject({ doiStatus: "registered", doiLastError: null });
     expect(fake.records.get(doi)!.descriptions!.some((d) => d.description.includes("Duplicate of another dataset"))).toBe(true);
+  });
+});
+
+describe("DOI registration on the version desk", () => {
+  const desk = async (versionId: string, email?: string) => {
+    const agent = email ? await signedInAgent(t.app, email) : request.agent(t.app);
+    return (await agent.get(`/api/v1/curation/versions/${versionId}`).expect(200)).body as { doiRegistration: Record<string, unknown> | null };
+  };
+  const ownerEmail = async (ownerId: string) => (await t.ctx.db.select().from(users).where(eq(users.id, ownerId)))[0]!.email;
+
+  it("shows the dataset's editors and reviewers a refused registration with the service's reason; others see nothing", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-desk", [{ name: "  ", role: "creator" }]);
+    const id = await f.publish("1.0.0");
+    const owner = await ownerEmail(f.ownerId);
+    const reviewer = (await makeUser(t.ctx, "reviewer")).email;
+    for (const email of [owner, reviewer]) {
+      expect((await desk(id, email)).doiRegistration).toEqual({
+        status: "failed",
+        doi: null,
+        intendedDoi: `${prefix}/plotbank.tb-doi-desk.v1.0.0`,
+        attempts: 1,
+        lastError: expect.stringMatching(/422.*creators\[0\]\.name: Each creator needs a name/),
+        canRequeue: true,
+      });
+    }
+    expect((await desk(id)).doiRegistration).toBeNull();
+    expect((await desk(id, (await makeUser(t.ctx, "member")).email)).doiRegistration).toBeNull();
+    expect((await desk(id, (await makeUser(t.ctx, "curator")).email)).doiRegistration).toBeNull();
+  });
+
+  it("sends a failed registration again when an editor asks, and it registers once the service accepts it", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-requeue");
+    const id = await f.publish("1.0.0");
+    // As left by a service that refused this version's metadata before it was set up to accept it.
+    const doi = `${prefix}/plotbank.tb-doi-requeue.v1.0.0`;
+    fake.records.delete(doi);
+    await t.ctx.db.update(versions).set({ doi: null, doiStatus: "failed", doiLastError: "The DOI service answered 422 to POST /dois: types: not accepted." }).where(eq(versions.id, id));
+    // The retry loop leaves a refused registration alone.
+    await retryPendingDois(t.ctx, { now: new Date(Date.now() + 24 * 3600_000) });
+    expect((await versionRow(id)).doiStatus).toBe("failed");
+
+    const member = await signedInAgent(t.app, (await makeUser(t.ctx, "member")).email);
+    await member.post(`/api/v1/curation/versions/${id}/doi/requeue`).expect(403);
+    const editor = await signedInAgent(t.app, await ownerEmail(f.ownerId));
+    const queued = await editor.post(`/api/v1/curation/versions/${id}/doi/requeue`).expect(202);
+    expect(queued.body.doiRegistration).toMatchObject({ status: "pending", attempts: 0 });
+    await drainDoiQueue(t.ctx);
+    expect(await versionRow(id)).toMatchObject({ doi, doiStatus: "registered", doiLastError: null });
+    expect(fake.records.get(doi)?.state).toBe("findable");
+    // Nothing left to send: a registered DOI is not queued again.
+    const again = await editor.post(`/api/v1/curation/versions/${id}/doi/requeue`).expect(409);
+    expect(again.body.detail).toMatch(/registered already/);
   });
 });
 

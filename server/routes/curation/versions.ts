@@ -10,6 +10,7 @@ import { assertCanView, versionById } from "@/server/services/curation/access";
 import { diffVersions } from "@/server/services/curation/diff";
 import { getReport, reportCsv } from "@/server/services/curation/reports";
 import { approveVersion, returnVersion, reviewQueue as listQueue, submitVersion, withdrawVersion } from "@/server/services/curation/review";
+import { requeueVersionDoi } from "@/server/services/curation/version-doi";
 import { patchVersion, putTableSchema, versionDetail as describe } from "@/server/services/curation/versions";
 import { parseBody, parseParams, parseQuery } from "@/server/validate";
 import { json, security } from "./docs";
@@ -125,6 +126,18 @@ export function curationVersionRoutes(ctx: AppContext): Router {
     const { reason } = parseBody(withdrawBody, req);
     await withdrawVersion(ctx, currentUser(req), id, reason);
     res.json(await describe(ctx, req.user, id));
+  });
+
+  registry.registerPath({
+    method: "post", path: "/api/v1/curation/versions/{id}/doi/requeue", tags: ["Review"],
+    summary: "Send a failed or pending DOI registration again now (reviewer, dataset editors); it runs in the background", security,
+    request: { params: idParams },
+    responses: { 202: json(versionDetail, "The version; its DOI registration is pending again"), ...problemResponses(401, 403, 404, 409) },
+  });
+  router.post("/curation/versions/:id/doi/requeue", requireWriteScope, async (req, res) => {
+    const { id } = parseParams(idParams, req);
+    await requeueVersionDoi(ctx, currentUser(req), id);
+    res.status(202).json(await describe(ctx, req.user, id));
   });
 
   registry.registerPath({

@@ -13,6 +13,7 @@ import { copyVersionRows } from "./copy-version";
 import { iso } from "./datasets";
 import { bumpSemver, diffVersions } from "./diff";
 import { checkTableSchemaEdit } from "./table-schema-rules";
+import { doiRegistrationOf } from "./version-doi";
 
 export async function latestPublished(db: Db, datasetId: string): Promise<Version | null> {
   const rows = await db.select().from(versions).where(and(eq(versions.datasetId, datasetId), eq(versions.state, "published")));
@@ -141,6 +142,7 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
     latestPublishedSemver: latest?.semver ?? null,
     suggestedBump,
     suggestedSemver,
+    doiRegistration: await doiRegistrationOf(ctx, user, dataset, v),
   };
 }
 
