@@ -33,7 +33,8 @@ export function mountWebApp(app: Express, distDir = webDistDir, transformIndex?:
   app.get("/{*splat}", async (req, res, next) => {
     if (req.path.startsWith("/api/")) return next();
     try {
-      const html = transformIndex ? await transformIndex(indexHtml, req.path) : indexHtml;
+      // The whole URL: a page may depend on its query (a dataset page on ?version=).
+      const html = transformIndex ? await transformIndex(indexHtml, req.originalUrl) : indexHtml;
       res.setHeader("Cache-Control", "no-cache");
       res.type("html").send(html);
     } catch (error) {

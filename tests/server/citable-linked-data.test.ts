@@ -2,10 +2,12 @@ import { createHash } from "node:crypto";
 import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
+import { eq } from "drizzle-orm";
 import type { Express } from "express";
 import jsonld from "jsonld";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { versions as versionsTable } from "@/db/schema";
 import { createApp } from "@/server/app";
 import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacite";
 import { resourceCsv } from "@/server/services/curation/resource-csv";
@@ -181,6 +183,46 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
       "application/zip",
       "http://plotbank.test/api/v1/datasets/tb-linked/versions/1.1.0/datapackage.zip",
     ]);
+  });
+
+  it("?version= describes that version: its own @id and page, its coverage and DOI, and a link to the dataset as a whole", async () => {
+    const res = await request(web).get("/datasets/tb-linked?version=1.0.0").expect(200);
+    const head = res.text.slice(0, res.text.indexOf("</head>"));
+    expect(head).toContain("<title>Soybean starter phosphorus placement in the Tallgrass Basin (version 1.0.0) · Plotbank</title>");
+    expect(head).toContain('<link rel="canonical" href="http://plotbank.test/datasets/tb-linked?version=1.0.0" />');
+    const [d] = await expand(ldOf(res.text));
+    expect(d!["@id"]).toBe("http://plotbank.test/datasets/tb-linked?version=1.0.0");
+    expect(value(d!, `${SDO}version`)).toBe("1.0.0");
+    expect(value(d!, `${SDO}temporalCoverage`)).toBe("2019/2021");
+    expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.0.0");
+    expect(value(d!, `${SDO}datePublished`)).toBe("2023-11-01");
+    const downloads = nodes(d!, `${SDO}distribution`).map((x) => value(x, `${SDO}contentUrl`));
+    expect(downloads).toContain("http://plotbank.test/api/v1/datasets/tb-linked/versions/1.0.0/datapackage.zip");
+    expect(downloads.some((u) => String(u).includes("/versions/1.1.0/"))).toBe(false);
+    const whole = nodes(d!, `${SDO}isPartOf`)[0]!;
+    expect(whole["@id"]).toBe("http://plotbank.test/datasets/tb-linked");
+    expect(value(whole, `${SDO}name`)).toBe("Soybean starter phosphorus placement in the Tallgrass Basin");
+
+    // Without ?version= (or with `latest`, or a version that does not exist) the page describes the current version.
+    for (const path of ["/datasets/tb-linked", "/datasets/tb-linked?version=latest", "/datasets/tb-linked?version=9.9.9"]) {
+      const [current] = await expand(ldOf((await request(web).get(path).expect(200)).text));
+      expect([current!["@id"], value(current!, `${SDO}version`)], path).toEqual(["http://plotbank.test/datasets/tb-linked", "1.1.0"]);
+    }
+  });
+
+  it("a withdrawn version's page carries its tombstone: the reason, no downloads, and its DOI", async () => {
+    const f = await citableFixture(t.ctx, "tb-linked-withdrawn");
+    const id = await f.publish("1.0.0");
+    await f.publish("1.1.0");
+    await t.ctx.db.update(versionsTable).set({ state: "withdrawn", withdrawnReason: "Yields at TB-01 were in bu/ac", withdrawnAt: new Date() }).where(eq(versionsTable.id, id));
+    const res = await request(web).get("/datasets/tb-linked-withdrawn?version=1.0.0").expect(200);
+    expect(res.text).toContain("<title>Soybean starter phosphorus placement in the Tallgrass Basin (version 1.0.0, withdrawn) · Plotbank</title>");
+    const [d] = await expand(ldOf(res.text));
+    expect(d!["@id"]).toBe("http://plotbank.test/datasets/tb-linked-withdrawn?version=1.0.0");
+    expect(value(d!, `${SDO}creativeWorkStatus`)).toBe("Withdrawn");
+    expect(value(d!, `${SDO}description`)).toMatch(/^Withdrawn: Yields at TB-01 were in bu\/ac\./);
+    expect(nodes(d!, `${SDO}distribution`)).toEqual([]);
+    expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked-withdrawn.v1.0.0");
   });
 
   it("escapes markup inside the JSON so no value can close the script element", async () => {

@@ -25,19 +25,23 @@ function shorten(text: string, max = 300): string {
 
 /**
  * The index.html transform: a dataset page gets its title, meta description and schema.org Dataset JSON-LD in
- * the served HTML, so crawlers that run no JavaScript still see them. Every other path is served unchanged.
+ * the served HTML, so crawlers that run no JavaScript still see them; `?version=` picks the version described.
+ * Every other path is served unchanged.
  */
 export function datasetPageHead(ctx: AppContext) {
   return async (html: string, url: string): Promise<string> => {
-    const slug = datasetPath.exec(url)?.[1];
+    const { pathname, searchParams } = new URL(url, "http://localhost");
+    const slug = datasetPath.exec(pathname)?.[1];
     if (!slug) return html;
-    const found = await schemaOrgDataset(ctx, slug);
+    // A version's DOI resolves to ?version=X: that page describes that version, withdrawn or not.
+    const found = await schemaOrgDataset(ctx, slug, searchParams.get("version") ?? undefined);
     if (!found) return html;
-    const title = `${found.version.title} (version ${found.version.semver}) · Plotbank`;
+    const { version, pinned } = found;
+    const title = `${version.title} (version ${version.semver}${version.state === "withdrawn" ? ", withdrawn" : ""}) · Plotbank`;
     const head =
       `<title>${escapeHtml(title)}</title>\n` +
-      `    <meta name="description" content="${escapeHtml(shorten(found.version.description))}" />\n` +
-      `    <link rel="canonical" href="${escapeHtml(found.dataset.landingUrl)}" />\n` +
+      `    <meta name="description" content="${escapeHtml(shorten(version.description))}" />\n` +
+      `    <link rel="canonical" href="${escapeHtml(pinned ? version.landingUrl : found.dataset.landingUrl)}" />\n` +
       `    <script type="application/ld+json">${scriptSafeJson(found.jsonLd)}</script>`;
     return /<title>[\s\S]*?<\/title>/.test(html) ? html.replace(/<title>[\s\S]*?<\/title>/, () => head) : html.replace("</head>", () => `${head}\n</head>`);
   };

@@ -1,5 +1,5 @@
 import type { AppContext } from "@/server/context";
-import { loadCitableDataset, publisherName, type CitableDataset, type CitableVersion } from "@/server/services/citation/citable-version";
+import { findVersion, loadCitableDataset, publisherName, type CitableDataset, type CitableVersion } from "@/server/services/citation/citable-version";
 import type { Creator } from "@/server/services/citation/creators";
 import type { TableSchemaDescriptor } from "@/schemas/table-schema";
 import { seasonsByVersion } from "./coverage";
@@ -8,27 +8,46 @@ import { versionDistributions } from "./distributions";
 type Node = Record<string, unknown>;
 
 /**
- * schema.org Dataset markup of a dataset's current published version, as search engines read it from a page.
+ * schema.org Dataset markup, as search engines read it from a page: of the dataset's current published version, or
+ * of the released version `semver` names (the page a version's DOI resolves to). A pinned version is its own node
+ * (@id its page), part of the dataset as a whole; a withdrawn one is described as a tombstone, without downloads.
  * The context is the usual "https://schema.org" string, which every crawler knows without fetching it.
  */
-export async function schemaOrgDataset(ctx: AppContext, slug: string): Promise<{ dataset: CitableDataset; version: CitableVersion; jsonLd: Node } | undefined> {
+export async function schemaOrgDataset(
+  ctx: AppContext,
+  slug: string,
+  semver?: string,
+): Promise<{ dataset: CitableDataset; version: CitableVersion; pinned: boolean; jsonLd: Node } | undefined> {
   const dataset = await loadCitableDataset(ctx.db, ctx.config, slug);
-  const version = dataset?.current;
-  if (!dataset || !version) return undefined;
+  if (!dataset) return undefined;
+  const asked = semver ? findVersion(dataset, semver) : undefined;
+  const version = asked ?? dataset.current;
+  if (!version) return undefined;
+  const pinned = !!asked && semver !== "latest";
+  const withdrawn = version.state === "withdrawn";
   const [seasons, distributions] = await Promise.all([
     seasonsByVersion(ctx.db, [version.versionId]),
     // A page view must not wait for a large version's files to be built just to print their sizes.
-    versionDistributions(ctx.db, ctx.config, slug, version, { measure: false }),
+    withdrawn ? [] : versionDistributions(ctx.db, ctx.config, slug, version, { measure: false }),
   ]);
   const span = seasons.get(version.versionId);
+  const url = pinned ? version.landingUrl : dataset.landingUrl;
+  const wholeDataset: Node = {
+    "@type": "Dataset",
+    "@id": dataset.landingUrl,
+    url: dataset.landingUrl,
+    name: dataset.title,
+    ...(dataset.conceptDoi ? { sameAs: `https://doi.org/${dataset.conceptDoi}` } : {}),
+  };
   const jsonLd: Node = {
     "@context": "https://schema.org",
     "@type": "Dataset",
-    "@id": dataset.landingUrl,
+    "@id": url,
     name: version.title,
-    description: version.description,
-    url: dataset.landingUrl,
+    description: withdrawn ? `Withdrawn: ${version.withdrawnReason ?? "no reason given"}. ${version.description}` : version.description,
+    url,
     version: version.semver,
+    ...(withdrawn ? { creativeWorkStatus: "Withdrawn" } : {}),
     datePublished: version.publishedAt.toISOString().slice(0, 10),
     ...(version.doi ? { identifier: `https://doi.org/${version.doi}`, sameAs: `https://doi.org/${version.doi}` } : {}),
     license: version.licence.url ?? version.licence.spdx,
@@ -45,9 +64,13 @@ export async function schemaOrgDataset(ctx: AppContext, slug: string): Promise<{
       encodingFormat: x.mediaType,
       contentUrl: x.downloadUrl,
     })),
-    ...(dataset.conceptDoi ? { isPartOf: { "@type": "Dataset", "@id": `https://doi.org/${dataset.conceptDoi}`, name: dataset.title } } : {}),
+    ...(pinned
+      ? { isPartOf: wholeDataset }
+      : dataset.conceptDoi
+        ? { isPartOf: { "@type": "Dataset", "@id": `https://doi.org/${dataset.conceptDoi}`, name: dataset.title } }
+        : {}),
   };
-  return { dataset, version, jsonLd };
+  return { dataset, version, pinned, jsonLd };
 }
 
 function creatorNode(c: Creator): Node {
