@@ -1,17 +1,30 @@
 import type { Problem } from "@/schemas/problem";
 
-/** An API answer that was not OK, with the problem+json body when the server sent one. */
+/**
+ * What went wrong with an API call:
+ * - `offline`: no answer at all (network down, server unreachable);
+ * - `status`: an answer that was not OK, with its problem+json when the server sent one;
+ * - `shape`: an OK answer whose JSON is not what the shared schema describes (usually an app older or newer than
+ *   the server);
+ * - `not-json`: an OK answer that is not JSON at all (a captive portal's or a proxy's page, say).
+ */
+export type ApiErrorKind = "offline" | "status" | "shape" | "not-json";
+
+/** Every failure of an API call, so callers and screens handle one error type. */
 export class ApiError extends Error {
+  readonly kind: ApiErrorKind;
   constructor(
     readonly status: number,
     readonly problem: Problem | null,
     message: string,
+    options: { kind?: ApiErrorKind; cause?: unknown } = {},
   ) {
-    super(message);
+    super(message, options.cause === undefined ? undefined : { cause: options.cause });
     this.name = "ApiError";
+    this.kind = options.kind ?? (status === 0 ? "offline" : "status");
   }
   get offline() {
-    return this.status === 0;
+    return this.kind === "offline";
   }
   /** "body.email" → message, for showing errors at their fields. */
   fieldErrors(prefix = "body."): Record<string, string> {
