@@ -19,6 +19,15 @@ describe("health", () => {
     expect(body.database.connected).toBe(true);
     expect(body.version).toBe(t.ctx.config.version);
   });
+  it("answers 503 degraded, not a 500, when the database is gone", async () => {
+    const down = await testApp();
+    await down.close();
+    const res = await request(down.app).get("/api/v1/health").expect(503);
+    expect(res.headers["content-type"]).toMatch(/^application\/json/);
+    expect(res.headers["cache-control"]).toBe("no-store");
+    const body = health.parse(res.body);
+    expect(body).toMatchObject({ status: "degraded", version: down.ctx.config.version, database: { kind: down.database.kind, connected: false } });
+  });
 });
 
 describe("bad requests get problem+json, never HTML or a 500", () => {
