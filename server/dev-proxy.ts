@@ -15,9 +15,19 @@ export function mountDevProxy(app: Express, target: string) {
       (answer) => {
         res.writeHead(answer.statusCode ?? 502, answer.headers);
         answer.pipe(res);
+        // The dev server died mid-answer (a restart, a crash): end the browser's connection too, or it waits forever.
+        answer.on("error", (error) => res.destroy(error));
       },
     );
-    upstream.on("error", () => res.status(502).type("text/plain").send(`The Expo dev server at ${target} is not answering yet.`));
+    upstream.on("error", (error) => {
+      // A status can be sent only before the answer has begun; after that, cutting the connection is all that is left.
+      if (res.headersSent) return res.destroy(error);
+      res.status(502).type("text/plain").send(`The Expo dev server at ${target} is not answering yet.`);
+    });
+    // The browser went away: stop the dev server's work for it.
+    res.on("close", () => {
+      if (!res.writableFinished) upstream.destroy();
+    });
     req.pipe(upstream);
   });
 }
