@@ -1,10 +1,12 @@
 import { spawnSync } from "node:child_process";
 import { existsSync } from "node:fs";
+import http from "node:http";
 import path from "node:path";
 import { migrateDatabase, openDatabase } from "@/db/client";
 import { createApp } from "./app";
 import { mountDevProxy, proxyUpgrades } from "./dev-proxy";
 import { loadConfig } from "./config";
+import { closeServer, listen, localUrl } from "./listen";
 import { startLocalDataCiteUnlessConfigured } from "./doi/local-datacite";
 import { startDoiRetryLoop } from "./services/citation/doi-queue";
 import { webDistDir } from "./web";
@@ -24,24 +26,58 @@ async function main() {
   const { app, ctx } = createApp({ database, config, webDistDir: devProxy ? false : undefined });
   const stopDoiRetries = startDoiRetryLoop(ctx);
   if (devProxy) mountDevProxy(app, devProxy);
-  if (config.demo !== "off") {
-    const demo = await seedDemo(ctx);
-    if (demo.seeded) console.log(`Loaded the Tallgrass Basin demo: ${demo.datasets} datasets, ${demo.versions} versions (accounts *@plotbank.test, password tallgrass-demo-2026).`);
-  }
-  const server = app.listen(config.port, config.host, () => {
-    const where = config.databaseUrl ? "PostgreSQL (DATABASE_URL)" : `PGlite at ${config.dataDir}`;
-    console.log(`Plotbank ${config.version} is serving ${config.publicUrl} (API docs: ${config.publicUrl}/api/docs; database: ${where})`);
-  });
+
+  // The port is bound before the demo loads: with PORT=0 only the bound socket knows the address, and the demo's
+  // links and DOIs are written with it. Until the process is ready every request gets a 503, not a half-filled catalogue.
+  let ready = false;
+  const server = http.createServer((req, res) => (ready ? app(req, res) : answerStarting(res)));
+  const address = await listen(server, config.port, config.host);
+  const url = localUrl(address);
+  if (config.port === 0 && !process.env.PLOTBANK_PUBLIC_URL) config.publicUrl = url;
   if (devProxy) proxyUpgrades(server, devProxy);
-  const stop = async () => {
-    server.close();
-    stopDoiRetries();
-    await dataCite.stop();
-    await database.close();
-    process.exit(0);
+
+  let stopping = false;
+  // A stop during the first start's demo load lets the load finish rather than closing the database under it.
+  let seeding: Promise<unknown> = Promise.resolve();
+  const stop = async (signal: NodeJS.Signals) => {
+    if (stopping) {
+      console.error(`${signal} again: stopping at once.`);
+      process.exit(1);
+    }
+    stopping = true;
+    console.log(`${signal}: finishing the requests in flight and closing the database…`);
+    let code = 0;
+    try {
+      await closeServer(server, 10_000);
+      await seeding.catch(() => undefined);
+      stopDoiRetries();
+      await dataCite.stop();
+      await database.close();
+    } catch (error) {
+      console.error(error);
+      code = 1;
+    }
+    process.exit(code);
   };
   process.on("SIGINT", stop);
   process.on("SIGTERM", stop);
+
+  if (config.demo !== "off") {
+    const loading = seedDemo(ctx);
+    seeding = loading;
+    const demo = await loading;
+    if (demo.seeded) console.log(`Loaded the Tallgrass Basin demo: ${demo.datasets} datasets, ${demo.versions} versions (accounts *@plotbank.test, password tallgrass-demo-2026).`);
+  }
+  if (stopping) return;
+  ready = true;
+  const where = config.databaseUrl ? "PostgreSQL (DATABASE_URL)" : `PGlite at ${config.dataDir}`;
+  const publicNote = config.publicUrl === url ? "" : `; public address ${config.publicUrl}`;
+  console.log(`Plotbank ${config.version} is serving ${url} (API docs: ${url}/api/docs/; database: ${where}${publicNote})`);
+}
+
+function answerStarting(res: http.ServerResponse) {
+  res.writeHead(503, { "Content-Type": "application/problem+json", "Retry-After": "5", "Cache-Control": "no-store" });
+  res.end(JSON.stringify({ type: "about:blank", title: "Service unavailable", status: 503, detail: "Plotbank is starting; try again in a few seconds." }));
 }
 
 main().catch((error) => {
