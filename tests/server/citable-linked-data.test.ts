@@ -1,5 +1,5 @@
 import { createHash } from "node:crypto";
-import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { eq } from "drizzle-orm";
@@ -7,7 +7,7 @@ import type { Express } from "express";
 import jsonld from "jsonld";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { versions as versionsTable } from "@/db/schema";
+import { datasets as datasetsTable, versions as versionsTable } from "@/db/schema";
 import { createApp } from "@/server/app";
 import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacite";
 import { resourceCsv } from "@/server/services/curation/resource-csv";
@@ -19,15 +19,17 @@ import { testApp, type TestApp } from "@/tests/support/test-app";
 const DCAT = "http://www.w3.org/ns/dcat#";
 const DCT = "http://purl.org/dc/terms/";
 const SPDX = "http://spdx.org/rdf/terms#";
-const SDO = "https://schema.org/";
+// The schema.org context maps its terms onto the http: vocabulary, whichever scheme the page names it by.
+const SDO = "http://schema.org/";
 
 /**
- * Offline JSON-LD: the only remote context the pages use is schema.org's, served here from a local copy that maps
- * its terms onto the https://schema.org/ vocabulary. Any other fetch fails the test.
+ * Offline JSON-LD: the only remote context the pages use is schema.org's, served here from a stored subset of it
+ * (tests/fixtures/schema-org-context.jsonld) under each name a page may give it. Any other fetch fails the test.
  */
+const schemaOrgContext = JSON.parse(readFileSync(path.resolve(__dirname, "../fixtures/schema-org-context.jsonld"), "utf8")) as object;
 const documentLoader = async (url: string) => {
-  if (url === "https://schema.org" || url === "https://schema.org/") {
-    return { contextUrl: null, documentUrl: url, document: { "@context": { "@vocab": SDO } } };
+  if (["https://schema.org", "https://schema.org/", "http://schema.org", "http://schema.org/"].includes(url)) {
+    return { contextUrl: null, documentUrl: url, document: schemaOrgContext };
   }
   throw new Error(`the JSON-LD processor tried to fetch ${url}`);
 };
@@ -156,7 +158,9 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     expect(d!["@type"]).toEqual([`${SDO}Dataset`]);
     expect(value(d!, `${SDO}name`)).toBe("Soybean starter phosphorus placement in the Tallgrass Basin");
     expect(value(d!, `${SDO}version`)).toBe("1.1.0");
-    expect(value(d!, `${SDO}license`)).toBe("https://creativecommons.org/licenses/by/4.0/");
+    expect(id(d!, `${SDO}license`)).toBe("https://creativecommons.org/licenses/by/4.0/");
+    expect(id(d!, `${SDO}url`)).toBe("http://plotbank.test/datasets/tb-linked");
+    expect(id(d!, `${SDO}sameAs`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.1.0");
     expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.1.0");
     expect(value(d!, `${SDO}temporalCoverage`)).toBe("2019/2023");
     const place = nodes(d!, `${SDO}spatialCoverage`)[0]!;
@@ -179,7 +183,7 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
 
     const downloads = nodes(d!, `${SDO}distribution`);
     expect(downloads.every((x) => (x["@type"] as string[])[0] === `${SDO}DataDownload`)).toBe(true);
-    expect(downloads.map((x) => [value(x, `${SDO}encodingFormat`), value(x, `${SDO}contentUrl`)])).toContainEqual([
+    expect(downloads.map((x) => [value(x, `${SDO}encodingFormat`), id(x, `${SDO}contentUrl`)])).toContainEqual([
       "application/zip",
       "http://plotbank.test/api/v1/datasets/tb-linked/versions/1.1.0/datapackage.zip",
     ]);
@@ -196,7 +200,8 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     expect(value(d!, `${SDO}temporalCoverage`)).toBe("2019/2021");
     expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.0.0");
     expect(value(d!, `${SDO}datePublished`)).toBe("2023-11-01");
-    const downloads = nodes(d!, `${SDO}distribution`).map((x) => value(x, `${SDO}contentUrl`));
+    const downloads = nodes(d!, `${SDO}distribution`).map((x) => id(x, `${SDO}contentUrl`));
+    expect(id(d!, `${SDO}url`)).toBe("http://plotbank.test/datasets/tb-linked?version=1.0.0");
     expect(downloads).toContain("http://plotbank.test/api/v1/datasets/tb-linked/versions/1.0.0/datapackage.zip");
     expect(downloads.some((u) => String(u).includes("/versions/1.1.0/"))).toBe(false);
     const whole = nodes(d!, `${SDO}isPartOf`)[0]!;
@@ -223,6 +228,18 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     expect(value(d!, `${SDO}description`)).toMatch(/^Withdrawn: Yields at TB-01 were in bu\/ac\./);
     expect(nodes(d!, `${SDO}distribution`)).toEqual([]);
     expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked-withdrawn.v1.0.0");
+  });
+
+  it("names the schema.org context, and a licence without a known deed URL as a CreativeWork rather than a bare IRI", async () => {
+    const f = await citableFixture(t.ctx, "tb-linked-own-licence");
+    await t.ctx.db.update(datasetsTable).set({ licence: "LicenseRef-basin-data-1.0" }).where(eq(datasetsTable.id, f.datasetId));
+    await f.publish("1.0.0");
+    const ld = ldOf((await request(web).get("/datasets/tb-linked-own-licence").expect(200)).text);
+    expect(ld["@context"]).toBe("https://schema.org");
+    const [d] = await expand(ld);
+    const licence = nodes(d!, `${SDO}license`)[0]!;
+    expect(licence["@type"]).toEqual([`${SDO}CreativeWork`]);
+    expect(value(licence, `${SDO}name`)).toBe("LicenseRef-basin-data-1.0");
   });
 
   it("escapes markup inside the JSON so no value can close the script element", async () => {

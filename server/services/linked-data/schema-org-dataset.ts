@@ -50,7 +50,9 @@ export async function schemaOrgDataset(
     ...(withdrawn ? { creativeWorkStatus: "Withdrawn" } : {}),
     datePublished: version.publishedAt.toISOString().slice(0, 10),
     ...(version.doi ? { identifier: `https://doi.org/${version.doi}`, sameAs: `https://doi.org/${version.doi}` } : {}),
-    license: version.licence.url ?? version.licence.spdx,
+    // schema.org reads a string license as a URL (the context types it @id): a licence without a known deed URL is
+    // named as a CreativeWork instead, not left as a bare identifier that would read as a relative IRI.
+    license: version.licence.url ?? { "@type": "CreativeWork", name: version.licence.name, identifier: version.licence.spdx },
     isAccessibleForFree: true,
     keywords: version.keywords,
     creator: version.creators.map(creatorNode),
