@@ -19,7 +19,10 @@ export const signInBody = z
   .object({ email: z.email().max(254), password: z.string().min(1).max(256) })
   .meta({ id: "SignIn" });
 
-/** Passwords: the server also refuses the most common ones (passwordWeakness); this is the part a form can check. */
+/**
+ * Passwords: this is the part a form can check. The server also refuses common and easily guessed ones with a strength
+ * estimator whose dictionaries stay on the server (server/auth/password-strength.ts).
+ */
 export const newPassword = z.string().min(12, "Use at least 12 characters.").max(256, "Use at most 256 characters.");
 export const displayName = z.string().trim().min(1, "Enter a name.").max(120, "Use at most 120 characters.");
 export const emailAddress = z.email("Enter an e-mail address like name@example.org.").max(254);

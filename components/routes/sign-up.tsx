@@ -41,7 +41,7 @@ export default function CreateAccountScreen() {
         value={form.values.password}
         onChangeText={form.set("password")}
         error={form.errors.password}
-        hint="At least 12 characters. A few unrelated words are easy to remember and hard to guess."
+        hint="At least 12 characters. Common and easily guessed passwords are refused; a few unrelated words are easy to remember and hard to guess."
         secureTextEntry
         autoComplete="new-password"
         onSubmitEditing={submit}

@@ -1,7 +1,6 @@
 import { randomBytes, scrypt as scryptCallback } from "node:crypto";
 import { promisify } from "node:util";
 import { safeEqual } from "./secrets";
-import { commonPasswords } from "./common-passwords";
 
 const scrypt = promisify(scryptCallback) as (password: string, salt: Buffer, keylen: number, options: object) => Promise<Buffer>;
 
@@ -11,8 +10,6 @@ const r = 8;
 const p = 1;
 const keyLength = 32;
 const maxmem = 64 * 1024 * 1024;
-
-export const minimumPasswordLength = 12;
 
 export async function hashPassword(password: string): Promise<string> {
   const salt = randomBytes(16);
@@ -31,15 +28,4 @@ export async function verifyPassword(password: string, stored: string | null | u
     maxmem,
   });
   return safeEqual(key.toString("base64url"), hash);
-}
-
-/** Why a password is refused, or null when it is acceptable. */
-export function passwordWeakness(password: string, email?: string): string | null {
-  if (password.length < minimumPasswordLength) return `Use at least ${minimumPasswordLength} characters.`;
-  if (password.length > 256) return "Use at most 256 characters.";
-  const lower = password.toLowerCase();
-  if (commonPasswords.has(lower)) return "This password is one of the most common ones; choose another.";
-  if (/^(.)\1+$/.test(password)) return "A single repeated character is too easy to guess.";
-  if (email && lower.includes(email.toLowerCase().split("@")[0] ?? "\u0000")) return "Do not build the password from your e-mail address.";
-  return null;
 }

@@ -1,8 +1,10 @@
-import { and, desc, eq, sql } from "drizzle-orm";
+import { and, desc, eq, like, sql } from "drizzle-orm";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { outbox, roleChanges, users } from "@/db/schema";
+import { demoAccounts, demoPassword } from "@/datasets/seed-demo";
 import { checkEmail, me, roleChangeList } from "@/schemas/account";
+import { passwordWeakness } from "@/server/auth/password-strength";
 import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
 import { signedInAgent } from "@/tests/support/sign-in";
 
@@ -70,11 +72,28 @@ describe("sign-up → confirmation link → sign-in", () => {
     expect(message.subject).toMatch(/already have/);
   });
 
-  it("refuses weak passwords at the field", async () => {
-    const short = await request(t.app).post("/api/v1/sign-up").send({ email: "x1@tallgrass.test", displayName: "X", password: "short" }).expect(400);
+  it("refuses weak passwords at the field, with the strength estimator's own advice", async () => {
+    const signUp = (email: string, password: string) => request(t.app).post("/api/v1/sign-up").send({ email, displayName: "X", password });
+    const short = await signUp("x1@tallgrass.test", "short").expect(400);
     expect(short.body.errors[0].field).toBe("body.password");
-    const common = await request(t.app).post("/api/v1/sign-up").send({ email: "x2@tallgrass.test", displayName: "X", password: "password1234" }).expect(400);
-    expect(common.body.errors).toEqual([{ field: "body.password", message: expect.stringMatching(/common/) }]);
+    // Whole entries of zxcvbn's common-password list, and near-variants of them (score below 3).
+    const common = await signUp("x2@tallgrass.test", "123456789012").expect(400);
+    expect(common.body.errors).toEqual([{ field: "body.password", message: "This is a commonly used password. Add more words that are less common." }]);
+    const similar = await signUp("x3@tallgrass.test", "password1234").expect(400);
+    expect(similar.body.errors[0].message).toMatch(/^This is similar to a commonly used password\./);
+    const repeated = await signUp("x4@tallgrass.test", "aaaaaaaaaaaa").expect(400);
+    expect(repeated.body.errors[0].message).toMatch(/^Repeated characters like "aaa" are easy to guess\./);
+    const keyboard = await signUp("x5@tallgrass.test", "qwertyuiop12").expect(400);
+    expect(keyboard.body.errors[0].message).toMatch(/common/);
+    const fromAddress = await signUp("wren.headland@tallgrass.test", "wren.headland-2026").expect(400);
+    expect(fromAddress.body.errors[0].message).toBe("Do not build the password from your e-mail address.");
+    expect(await t.ctx.db.select().from(users).where(like(users.email, "x_@tallgrass.test"))).toEqual([]);
+  });
+
+  it("accepts passphrases of a few unrelated words, the demo accounts' password among them", async () => {
+    for (const { email } of demoAccounts) expect(passwordWeakness(demoPassword, email), email).toBeNull();
+    await request(t.app).post("/api/v1/sign-up").send({ email: "demo.like@tallgrass.test", displayName: "Demo Like", password: demoPassword }).expect(202);
+    await request(t.app).post("/api/v1/sign-up").send({ email: "furrow@tallgrass.test", displayName: "Furrow", password: testPassword }).expect(202);
   });
 
   it("refuses an unknown link with a clear message", async () => {

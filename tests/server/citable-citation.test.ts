@@ -2,6 +2,7 @@ import { Cite } from "@citation-js/core";
 // The parsers that read the formats back.
 import "@citation-js/plugin-bibtex";
 import "@citation-js/plugin-ris";
+import { parse as parseBibtex } from "@retorquere/bibtex-parser";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
@@ -59,6 +60,24 @@ describe("citation formats of a published version", () => {
         "",
       ].join("\n"),
     );
+    // Read back by an independent BibTeX parser (the one Better BibTeX for Zotero uses), not only by the library
+    // that wrote it: the braces keep the group author one name and the title's capitals as written.
+    const library = parseBibtex(res.text, { sentenceCase: false });
+    expect(library.errors).toEqual([]);
+    expect(library.entries).toHaveLength(1);
+    expect(library.entries[0]).toMatchObject({
+      type: "misc",
+      key: "Quillon2025Soybean",
+      fields: {
+        author: [{ lastName: "Quillon", firstName: "Marta" }, { name: "Tallgrass Basin Agronomy Network" }],
+        doi,
+        year: "2025",
+        note: "Version 1.1.0",
+        publisher: ["Plotbank"],
+        title: "Soybean starter phosphorus placement in the Tallgrass Basin",
+        url: "http://plotbank.test/datasets/tb-starter-p?version=1.1.0",
+      },
+    });
     const [parsed] = new Cite(res.text).data as Record<string, unknown>[];
     expect(parsed).toMatchObject({
       "citation-key": "Quillon2025Soybean",

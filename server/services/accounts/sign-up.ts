@@ -1,7 +1,7 @@
 import { and, eq, isNull } from "drizzle-orm";
 import { users } from "@/db/schema";
 import type { CheckEmail, SignUpBody } from "@/schemas/account";
-import { passwordWeakness } from "@/server/auth/passwords";
+import { passwordWeakness } from "@/server/auth/password-strength";
 import type { AppContext } from "@/server/context";
 import { badRequest } from "@/server/errors";
 import { createMailer } from "@/server/mail/mailer";
