@@ -17,8 +17,19 @@ export async function hashPassword(password: string): Promise<string> {
   return `scrypt$${N}$${r}$${p}$${salt.toString("base64url")}$${key.toString("base64url")}`;
 }
 
+/**
+ * Stands in for the hash of an address without an account (or an account without a password): same scheme and cost
+ * as a real hash, and no password derives an all-zero key. Verifying against it makes an unknown address cost the
+ * same scrypt run as a wrong password, so the time a sign-in takes does not tell which addresses have accounts.
+ */
+const noAccountHash = `scrypt$${N}$${r}$${p}$${"A".repeat(22)}$${"A".repeat(43)}`;
+
 export async function verifyPassword(password: string, stored: string | null | undefined): Promise<boolean> {
-  if (!stored) return false;
+  const matches = await matchesHash(password, stored ?? noAccountHash);
+  return !!stored && matches;
+}
+
+async function matchesHash(password: string, stored: string): Promise<boolean> {
   const [scheme, n, rr, pp, salt, hash] = stored.split("$");
   if (scheme !== "scrypt" || !n || !rr || !pp || !salt || !hash) return false;
   const key = await scrypt(password.normalize("NFKC"), Buffer.from(salt, "base64url"), keyLength, {
