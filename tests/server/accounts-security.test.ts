@@ -77,6 +77,29 @@ describe("abuse limits", () => {
   });
 });
 
+describe("reset requests per client", () => {
+  it("limits reset requests per client IP across many e-mail addresses; another IP is not slowed", async () => {
+    const fresh = await testApp({ authLimits: { windowMs: 60_000, perIp: 3, perAccount: 100 } });
+    try {
+      const people = [];
+      for (let i = 0; i < 5; i++) people.push(await makeUser(fresh.ctx, "member"));
+      // Behind the loopback proxy the app trusts, X-Forwarded-For names the client.
+      const from = (ip: string, email: string) => request(fresh.app).post("/api/v1/password-reset").set("X-Forwarded-For", ip).send({ email });
+      for (const person of people.slice(0, 3)) await from("203.0.113.7", person.email).expect(202);
+      const refused = await from("203.0.113.7", people[3]!.email).expect(429);
+      expect(refused.headers["content-type"]).toMatch(/^application\/problem\+json/);
+      expect(refused.body.detail).toMatch(/Too many requests for e-mailed links/);
+      expect(Number(refused.headers["retry-after"])).toBeGreaterThan(0);
+      await from("198.51.100.4", people[4]!.email).expect(202);
+
+      const sent = (await fresh.ctx.db.select().from(outbox).where(eq(outbox.kind, "password-reset"))).map((m) => m.to);
+      expect(sent.sort()).toEqual([people[0]!, people[1]!, people[2]!, people[4]!].map((p) => p.email).sort());
+    } finally {
+      await fresh.close();
+    }
+  });
+});
+
 describe("cross-site request guard", () => {
   it("refuses a cookie write from a foreign Origin or Referer, accepts our own and none", async () => {
     const user = await makeUser(t.ctx, "member");
