@@ -1,11 +1,11 @@
 import compression from "compression";
 import cookieParser from "cookie-parser";
-import cors from "cors";
 import express, { type Express } from "express";
 import helmet from "helmet";
 import type { Database } from "@/db/client";
 import { authenticate } from "./auth/authenticate";
 import { csrfGuard } from "./auth/csrf";
+import { publicReadCors } from "./cors";
 import type { AppConfig } from "./config";
 import type { AppContext } from "./context";
 import { notFoundHandler, problemMiddleware } from "./errors";
@@ -58,7 +58,7 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
 
   const api = express.Router();
   // The public read API is open to any origin; writes are same-origin only (no CORS for them).
-  api.use(cors({ origin: "*", methods: ["GET", "HEAD"], exposedHeaders: ["ETag", "Link", "Retry-After", "RateLimit", "RateLimit-Policy"] }));
+  api.use(publicReadCors());
   api.use(express.json({ limit: "1mb" }));
   api.use(authenticate(ctx.db));
   api.use(csrfGuard(config.publicUrl));
