@@ -1,5 +1,4 @@
 import { router } from "expo-router";
-import { useState } from "react";
 import { StyleSheet, View } from "react-native";
 import { CitationPanel } from "@/components/citation-panel";
 import { ChoiceChips } from "@/components/evidence/choice-chips";
@@ -32,12 +31,33 @@ function VersionEntry({ v }: { v: VersionSummary }) {
   );
 }
 
-/** A dataset's public page: what it is, its data dictionary, versions, downloads, licence and citation. */
-export function DatasetPage({ slug }: { slug: string }) {
+/** What stays of a withdrawn version: when and why, its DOI, and where the data went. */
+function Tombstone({ v, newest }: { v: VersionSummary; newest: VersionSummary | undefined }) {
+  return (
+    <Card testID="tombstone" accessibilityLabel={`Version ${v.semver} was withdrawn`}>
+      <Text variant="heading">v{v.semver} was withdrawn</Text>
+      <Text>
+        Withdrawn {v.withdrawnAt?.slice(0, 10) ?? ""}: {v.withdrawnReason ?? "no reason given"}
+      </Text>
+      <Text variant="caption">
+        Its data are no longer served; this page keeps its record{v.doi ? `, and its DOI ${v.doi} still resolves here` : ""}.
+        {newest ? ` The newest published version is v${newest.semver}.` : ""}
+      </Text>
+      {newest ? <Button label={`Open v${newest.semver}`} tone="secondary" onPress={() => router.setParams({ version: newest.semver })} style={styles.left} /> : null}
+    </Card>
+  );
+}
+
+/**
+ * A dataset's public page: what it is, its data dictionary, versions, downloads, licence and citation. `version`
+ * (from ?version=, where each version's DOI lands) picks the version shown; choosing another rewrites the URL, so a
+ * copied link opens the same version.
+ */
+export function DatasetPage({ slug, version }: { slug: string; version?: string }) {
   const detail = useDatasetDetail(slug);
   const published = detail.data?.versions.filter((v) => v.state === "published") ?? [];
-  const [chosen, setChosen] = useState<string | null>(null);
-  const semver = chosen ?? published[0]?.semver ?? null;
+  const asked = version ? detail.data?.versions.find((v) => v.semver === version) : undefined;
+  const semver = asked?.semver ?? published[0]?.semver ?? null;
   const schema = useVersionSchema(slug, semver);
 
   if (detail.isPending) return <Screen title="Dataset"><LoadingState label="Loading the dataset…" /></Screen>;
@@ -62,10 +82,22 @@ export function DatasetPage({ slug }: { slug: string }) {
           onPress={() => router.push(shareUrl("", { ...defaultEvidenceState, filters: { dataset: slug } }) as never)}
         />
       </Card>
-      {published.length > 1 ? (
-        <ChoiceChips label="Version" testID="version-picker" choices={published.map((v) => ({ value: v.semver, label: `v${v.semver}` }))} selected={semver ? [semver] : []} onToggle={setChosen} />
+      {version && !asked ? (
+        <Card testID="version-not-found">
+          <Text>This dataset has no version {version}{published[0] ? `; showing the newest, v${published[0].semver}` : ""}.</Text>
+        </Card>
       ) : null}
-      {current && downloads ? (
+      {published.length > 1 ? (
+        <ChoiceChips
+          label="Version"
+          testID="version-picker"
+          choices={published.map((v) => ({ value: v.semver, label: `v${v.semver}` }))}
+          selected={semver ? [semver] : []}
+          onToggle={(v) => router.setParams({ version: v })}
+        />
+      ) : null}
+      {current?.state === "withdrawn" ? <Tombstone v={current} newest={published[0]} /> : null}
+      {current && current.state === "published" && downloads ? (
         <Card testID="downloads">
           <Text variant="heading">Download v{current.semver}</Text>
           <DownloadLink href={downloads.dataPackage} label="Data Package (datapackage.json + CSV, zip)" testID="download-datapackage" />
@@ -95,4 +127,5 @@ export function DatasetPage({ slug }: { slug: string }) {
 const styles = StyleSheet.create({
   version: { gap: 2, paddingVertical: space.sm, borderTopWidth: 1, borderTopColor: colors.line },
   withdrawn: { backgroundColor: colors.dangerTint, paddingHorizontal: space.sm, borderRadius: 8 },
+  left: { alignSelf: "flex-start" },
 });
