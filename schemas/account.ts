@@ -103,7 +103,13 @@ export const invitationBody = z.object({ email: emailAddress, role: invitableRol
 export const invitationEntry = z
   .object({ id: z.string(), email: z.string(), role, createdAt: z.string(), expiresAt: z.string() })
   .meta({ id: "InvitationEntry" });
-export const invitationList = z.object({ items: z.array(invitationEntry) }).meta({ id: "InvitationList" });
+export const invitationList = z
+  .object({
+    items: z.array(invitationEntry),
+    /** Whether this server keeps mail in an outbox admins can read (development, or production without SMTP by choice). */
+    outboxAvailable: z.boolean(),
+  })
+  .meta({ id: "InvitationList" });
 
 export const outboxSummary = z
   .object({ id: z.string(), kind: z.string(), to: z.string(), subject: z.string(), transport: z.string(), createdAt: z.string() })

@@ -5,7 +5,7 @@ import path from "node:path";
 import { migrateDatabase, openDatabase } from "@/db/client";
 import { createApp } from "./app";
 import { mountDevProxy, proxyUpgrades } from "./dev-proxy";
-import { loadConfig } from "./config";
+import { loadConfig, refuseUndeliverableMail } from "./config";
 import { closeServer, listen, localUrl } from "./listen";
 import { startLocalDataCiteUnlessConfigured } from "./doi/local-datacite";
 import { startDoiRetryLoop } from "./services/citation/doi-queue";
@@ -14,6 +14,7 @@ import { seedDemo } from "@/datasets";
 
 async function main() {
   const config = loadConfig();
+  refuseUndeliverableMail(config);
   const devProxy = process.env.PLOTBANK_WEB_PROXY;
   if (!devProxy && !existsSync(path.join(webDistDir, "index.html"))) {
     console.log("Building the web app (first start only, about a minute)…");

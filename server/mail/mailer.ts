@@ -1,6 +1,7 @@
 import { eq } from "drizzle-orm";
 import nodemailer, { type Transporter } from "nodemailer";
 import { outbox } from "@/db/schema";
+import { sendsMailBySmtp } from "@/server/config";
 import type { AppContext } from "@/server/context";
 
 export interface MailMessage {
@@ -26,13 +27,14 @@ const mailers = new WeakMap<AppContext, Mailer>();
 
 /**
  * The app's mailer. In development and tests nodemailer's JSON transport renders each message and nothing leaves the
- * machine; the outbox table is where it can be read. In production with SMTP_URL, messages go out over SMTP and are
+ * machine; the outbox table is where it can be read (also in production with PLOTBANK_MAIL_OUTBOX_ONLY). In production
+ * with SMTP_URL, messages go out over SMTP and are
  * recorded in the outbox too, so an admin can tell what was sent when someone says a link never came.
  */
 export function createMailer(ctx: AppContext): Mailer {
   const existing = mailers.get(ctx);
   if (existing) return existing;
-  const useSmtp = !!ctx.config.smtpUrl && !ctx.config.development;
+  const useSmtp = sendsMailBySmtp(ctx.config);
   const transporter: Transporter = useSmtp
     ? nodemailer.createTransport(ctx.config.smtpUrl!)
     : nodemailer.createTransport({ jsonTransport: true });

@@ -1,8 +1,14 @@
+import { spawnSync } from "node:child_process";
+import { existsSync } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import { and, asc, eq, sql } from "drizzle-orm";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { apiTokens, datasets, follows, outbox, versions } from "@/db/schema";
+import { invitationList } from "@/schemas/account";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
+import { loadConfig, refuseUndeliverableMail } from "@/server/config";
 import type { AppContext } from "@/server/context";
 import { runPublishHooks } from "@/server/services/publish-hooks";
 import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
@@ -156,16 +162,60 @@ describe("outbox screen", () => {
     await (await signedInAgent(t.app, member.email)).get("/api/v1/admin/outbox").expect(403);
     await agent.get("/api/v1/admin/outbox/not-a-uuid").expect(404);
 
-    const prod = await testApp({ development: false });
+    expect(invitationList.parse((await agent.get("/api/v1/admin/invitations").expect(200)).body).outboxAvailable).toBe(true);
+
+    const prod = await testApp({ development: false, smtpUrl: "smtp://127.0.0.1:9" });
     try {
       const prodAdmin = await makeUser(prod.ctx, "admin");
       const prodAgent = await signedInAgent(prod.app, prodAdmin.email);
       await prodAgent.get("/api/v1/admin/outbox").expect(404);
       await request(prod.app).get("/api/v1/admin/outbox").expect(404);
+      // The admin screen hides its Outbox link on this answer.
+      expect(invitationList.parse((await prodAgent.get("/api/v1/admin/invitations").expect(200)).body).outboxAvailable).toBe(false);
     } finally {
       await prod.close();
     }
   });
+
+  it("is there in production only when the operator chose outbox-only mail, which then keeps every link", async () => {
+    const env = { NODE_ENV: "production", PLOTBANK_MAIL_OUTBOX_ONLY: "1", SMTP_URL: "smtp://127.0.0.1:9" } as NodeJS.ProcessEnv;
+    const chosen = loadConfig(env);
+    expect(() => refuseUndeliverableMail(chosen)).not.toThrow();
+    const prod = await testApp({ development: false, mailOutboxOnly: chosen.mailOutboxOnly, smtpUrl: chosen.smtpUrl });
+    try {
+      const admin = await makeUser(prod.ctx, "admin");
+      const member = await makeUser(prod.ctx, "member");
+      const agent = await signedInAgent(prod.app, admin.email);
+      expect((await agent.get("/api/v1/admin/invitations").expect(200)).body.outboxAvailable).toBe(true);
+      await request(prod.app).post("/api/v1/password-reset").send({ email: member.email }).expect(202);
+      const [sent] = await prod.ctx.db.select().from(outbox).where(eq(outbox.to, member.email));
+      expect(sent?.transport).toBe("outbox");
+      const one = await agent.get(`/api/v1/admin/outbox/${sent!.id}`).expect(200);
+      expect(one.body.links[0]).toMatch(/reset-password\?token=pbr_/);
+    } finally {
+      await prod.close();
+    }
+  });
+});
+
+describe("mail configuration at start-up", () => {
+  it("refuses to start in production without SMTP_URL unless outbox-only mail is chosen, and says how to fix it", () => {
+    const { SMTP_URL: _smtp, PLOTBANK_MAIL_OUTBOX_ONLY: _only, ...env } = process.env;
+    const started = spawnSync(process.execPath, ["--import", "tsx", "server/main.ts"], {
+      cwd: path.resolve(__dirname, "../.."),
+      env: { ...env, NODE_ENV: "production", PLOTBANK_DEMO: "off", PLOTBANK_DATA_DIR: path.join(tmpdir(), "plotbank-never-created"), PORT: "0" },
+      encoding: "utf8",
+      timeout: 60_000,
+    });
+    expect(started.status).toBe(1);
+    expect(started.stderr).toContain("NODE_ENV is production but SMTP_URL is not set");
+    expect(started.stderr).toContain("PLOTBANK_MAIL_OUTBOX_ONLY=1");
+    expect(existsSync(path.join(tmpdir(), "plotbank-never-created"))).toBe(false);
+
+    expect(() => refuseUndeliverableMail(loadConfig({ NODE_ENV: "production", SMTP_URL: "smtp://mail.tallgrass.test:587" } as NodeJS.ProcessEnv))).not.toThrow();
+    expect(() => refuseUndeliverableMail(loadConfig({ NODE_ENV: "development" } as NodeJS.ProcessEnv))).not.toThrow();
+    expect(() => loadConfig({ NODE_ENV: "production", PLOTBANK_MAIL_OUTBOX_ONLY: "maybe" } as NodeJS.ProcessEnv)).toThrow();
+  }, 90_000);
 });
 
 describe("real mail in production", () => {

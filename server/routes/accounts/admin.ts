@@ -12,6 +12,7 @@ import {
   roleChangeList,
 } from "@/schemas/account";
 import { currentUser, requireRole, requireWriteScope } from "@/server/auth/guards";
+import { outboxScreenAvailable } from "@/server/config";
 import type { AppContext } from "@/server/context";
 import { notFound } from "@/server/errors";
 import { problemResponses } from "@/server/openapi/registry";
@@ -24,7 +25,7 @@ const idParams = z.object({ id: z.uuid() });
 const adminOnly = requireRole("admin");
 const security: Record<string, string[]>[] = [{ sessionCookie: [] }, { bearerToken: [] }];
 
-/** People & roles, invitations and (in development) the outbox. Admins only. */
+/** People & roles, invitations and (where mail is kept rather than sent) the outbox. Admins only. */
 export function adminRoutes(ctx: AppContext): Router {
   const router = Router();
   const { registry } = ctx;
@@ -77,7 +78,7 @@ export function adminRoutes(ctx: AppContext): Router {
     responses: { 200: { description: "Open invitations", content: { "application/json": { schema: invitationList } } }, ...problemResponses(401, 403) },
   });
   router.get("/admin/invitations", adminOnly, async (_req, res) => {
-    res.set("Cache-Control", "private, no-store").json({ items: await listOpenInvitations(ctx) });
+    res.set("Cache-Control", "private, no-store").json({ items: await listOpenInvitations(ctx), outboxAvailable: outboxScreenAvailable(ctx.config) });
   });
 
   registry.registerPath({
@@ -93,14 +94,15 @@ export function adminRoutes(ctx: AppContext): Router {
     res.status(201).json(await inviteUser(ctx, currentUser(req), parseBody(invitationBody, req)));
   });
 
-  // The outbox exists only in development: in production mail goes out by SMTP and the route is simply absent.
-  const devOnly: RequestHandler = (_req, _res, next) => next(ctx.config.development ? undefined : notFound());
+  // The outbox screen exists only where mail is kept rather than sent (development, or production that opted into
+  // PLOTBANK_MAIL_OUTBOX_ONLY); where mail goes out by SMTP the route is simply absent.
+  const devOnly: RequestHandler = (_req, _res, next) => next(outboxScreenAvailable(ctx.config) ? undefined : notFound());
 
   registry.registerPath({
     method: "get",
     path: "/api/v1/admin/outbox",
     tags: ["Admin"],
-    summary: "Development only: every message the app has sent",
+    summary: "Where mail is not sent (development, outbox-only): every message the app has recorded",
     security,
     responses: { 200: { description: "Messages, newest first", content: { "application/json": { schema: outboxList } } }, ...problemResponses(401, 403, 404) },
   });
@@ -112,7 +114,7 @@ export function adminRoutes(ctx: AppContext): Router {
     method: "get",
     path: "/api/v1/admin/outbox/{id}",
     tags: ["Admin"],
-    summary: "Development only: one message, with its links",
+    summary: "Where mail is not sent (development, outbox-only): one message, with its links",
     security,
     request: { params: idParams },
     responses: { 200: { description: "The message", content: { "application/json": { schema: outboxMessage } } }, ...problemResponses(401, 403, 404) },
