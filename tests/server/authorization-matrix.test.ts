@@ -5,19 +5,27 @@
  * Adding a route: add a row under its "METHOD /api/v1/path" (Express path syntax) with one of the policy helpers
  * below, and `params`/`body`/`query` builders if the defaults (the fixture dataset's slug, version 1.0.0, …) do not
  * fit. Each cell gets a fresh fixture dataset and a fresh session, so a cell that changes state never affects another.
+ * Give a "pass" row a body that can succeed where one can be built: a 2xx proves access, a 409 only proves the door.
+ *
+ * No route can hide from the enumeration: `router.all()`, a route or mount whose path is not a plain string, and
+ * middleware mounted at its own path under /api (listed as "USE /path", exercised with GET) all need a decision.
  */
-import { and, eq } from "drizzle-orm";
-import type { Express } from "express";
+import { and, eq, inArray } from "drizzle-orm";
+import express, { type Express } from "express";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
-import { apiTokens, datasetEditors, datasets, emailTokens, outbox, sessions, users, validationReports, versions } from "@/db/schema";
+import { apiTokens, datasetEditors, datasets, emailTokens, outbox, sessions, siteYears, sites, users, validationReports, versions } from "@/db/schema";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
 import { createSession, sessionCookieName } from "@/server/auth/sessions";
 import { issueEmailToken } from "@/server/services/accounts/email-tokens";
+import { sitesCsv } from "@/tests/server/curation-fixtures";
 import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
+import { binary, unzip } from "@/tests/support/zip";
 
-const actors = ["anonymous", "member", "curatorOwner", "curatorOther", "reviewer", "admin", "readToken", "writeToken", "revokedToken"] as const;
+const actors = [
+  "anonymous", "member", "curatorOwner", "curatorEditor", "curatorOther", "reviewer", "admin", "readToken", "writeToken", "revokedToken", "expiredToken",
+] as const;
 type Actor = (typeof actors)[number];
 
 /**
@@ -28,7 +36,8 @@ type Actor = (typeof actors)[number];
  * - "hidden": refused as 403 or 404 (404 where a route hides that the resource exists).
  */
 type Expectation = number | "ok" | "pass" | "hidden";
-type Cells = Record<Exclude<Actor, "revokedToken">, Expectation> & { revokedToken?: Expectation };
+/** A revoked or expired token is refused with 401 wherever authentication runs, unless a row says otherwise. */
+type Cells = Record<Exclude<Actor, "revokedToken" | "expiredToken">, Expectation> & { revokedToken?: Expectation; expiredToken?: Expectation };
 
 interface Fixture {
   slug: string;
@@ -50,26 +59,42 @@ interface Cell {
 
 interface Row {
   expect: Cells;
+  /** The path to request, when it is not the key's own (a mount's file, a trailing slash). */
+  path?: string;
+  /** Extra request headers (a CORS preflight's Origin and Access-Control-Request-Method). */
+  headers?: Record<string, string>;
+  /** A multipart file to attach instead of a JSON body. */
+  file?: { field: string; name: string; content: string };
+  /** Checks beyond the status; returns what is wrong, or null. */
+  check?: (res: request.Response, text: string) => string | null;
   params?: (c: Cell) => Promise<Record<string, string>> | Record<string, string>;
   body?: (c: Cell) => Promise<unknown> | unknown;
   query?: (c: Cell) => Record<string, string>;
 }
 
 // Policy helpers: read them as sentences ("signed in, write scope: 200").
-const everyone = (e: Expectation): Cells => ({ anonymous: e, member: e, curatorOwner: e, curatorOther: e, reviewer: e, admin: e, readToken: e, writeToken: e });
+const everyone = (e: Expectation): Cells => ({ anonymous: e, member: e, curatorOwner: e, curatorEditor: e, curatorOther: e, reviewer: e, admin: e, readToken: e, writeToken: e });
+/** Served before authentication runs: even a bad token gets the answer. */
+const beforeAuthentication = (e: Expectation): Cells => ({ ...everyone(e), revokedToken: e, expiredToken: e });
 const signedIn = (e: Expectation): Cells => ({ ...everyone(e), anonymous: 401 });
 const signedInWrite = (e: Expectation): Cells => ({ ...signedIn(e), readToken: 403 });
 const sessionOnly = (e: Expectation): Cells => ({ ...signedIn(e), readToken: 403, writeToken: 403 });
-const adminOnly = (e: Expectation): Cells => ({ anonymous: 401, member: 403, curatorOwner: 403, curatorOther: 403, reviewer: 403, admin: e, readToken: 403, writeToken: 403 });
-const reviewerWrite = (e: Expectation): Cells => ({ ...adminOnly(e), reviewer: e });
-/** Changing a dataset: its owner (and editors) and admins; another curator is refused. Tokens belong to the owner. */
-const ownerWrite = (e: Expectation, other: Expectation = 403): Cells => ({
-  anonymous: 401, member: 403, curatorOwner: e, curatorOther: other, reviewer: 403, admin: e, readToken: 403, writeToken: e,
+const adminOnly = (e: Expectation): Cells => ({
+  anonymous: 401, member: 403, curatorOwner: 403, curatorEditor: 403, curatorOther: 403, reviewer: 403, admin: e, readToken: 403, writeToken: 403,
 });
+const reviewerWrite = (e: Expectation): Cells => ({ ...adminOnly(e), reviewer: e });
+/** Changing a dataset: its owner, its editors and admins; another curator is refused. Tokens belong to the owner. */
+const ownerWrite = (e: Expectation, other: Expectation = 403): Cells => ({
+  anonymous: 401, member: 403, curatorOwner: e, curatorEditor: e, curatorOther: other, reviewer: 403, admin: e, readToken: 403, writeToken: e,
+});
+/** Choosing a dataset's editors: its owner and admins only; an editor does not pick co-editors. */
+const ownerOnly = (e: Expectation): Cells => ({ ...ownerWrite(e), curatorEditor: 403 });
 /** Seeing a draft: its editors, reviewers and admins; everyone else is told it does not exist. */
 const draftView = (e: Expectation, anonymous: Expectation = 404): Cells => ({
-  anonymous, member: 404, curatorOwner: e, curatorOther: 404, reviewer: e, admin: e, readToken: e, writeToken: e,
+  anonymous, member: 404, curatorOwner: e, curatorEditor: e, curatorOther: 404, reviewer: e, admin: e, readToken: e, writeToken: e,
 });
+/** A browser's CORS preflight from another origin, asking to send `method`. */
+const preflight = (method: string) => ({ Origin: "https://field-notes.example", "Access-Control-Request-Method": method, "Access-Control-Request-Headers": "content-type" });
 
 const fresh = (prefix: string) => `${prefix}-${Math.random().toString(36).slice(2, 10)}`;
 const emailToken = async (c: Cell, purpose: "verify" | "reset" | "invite") => {
@@ -84,25 +109,42 @@ const table: Record<string, Row> = {
   // Health, documents, public catalogue and data: open to all; a revoked token is still refused (401).
   "GET /api/v1/health": { expect: everyone(200) },
   "GET /api/v1/openapi.json": { expect: everyone(200) },
+  // The docs page and its files are served outside the API router, before authentication; the rest of /api is a 404.
+  "GET /api/docs": { expect: beforeAuthentication(200), path: "/api/docs/", check: (_res, text) => (/swagger-ui/.test(text) ? null : "not the docs page") },
+  "USE /api/docs": { expect: beforeAuthentication(200), path: "/api/docs/swagger-ui.css" },
+  "USE /api": { expect: beforeAuthentication(404), path: "/api/v2/datasets" },
+
+  // CORS preflights (answered for any path, before authentication): a read's is granted to every origin, a write's
+  // gets no CORS headers at all, so a browser on another origin never sends the write.
+  "OPTIONS /api/v1/datasets": {
+    expect: beforeAuthentication(204),
+    headers: preflight("GET"),
+    check: (res) => (res.headers["access-control-allow-origin"] === "*" ? null : "a read's preflight lacks Access-Control-Allow-Origin: *"),
+  },
+  "OPTIONS /api/v1/datasets/:slug": {
+    expect: beforeAuthentication(204),
+    headers: preflight("PATCH"),
+    check: (res) => (Object.keys(res.headers).some((h) => h.startsWith("access-control-")) ? "a write's preflight got CORS headers" : null),
+  },
   "GET /api/v1/catalog": { expect: everyone(200) },
   "GET /api/v1/datasets": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions/:semver": { expect: everyone(200) },
-  "GET /api/v1/datasets/:slug/versions/:semver/schema": { expect: everyone("pass") },
+  "GET /api/v1/datasets/:slug/versions/:semver/schema": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions/:semver/sites": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions/:semver/site-years": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions/:semver/treatments": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions/:semver/observations": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions/:semver/responses": { expect: everyone(200) },
-  "GET /api/v1/datasets/:slug/versions/:semver/citation": { expect: everyone("pass") },
-  "GET /api/v1/datasets/:slug/versions/:semver/datapackage.zip": { expect: everyone("pass") },
-  "GET /api/v1/datasets/:slug/versions/:semver/datapackage.json": { expect: everyone("pass") },
-  "GET /api/v1/datasets/:slug/versions/:semver/resources/:resource.csv": { expect: everyone("pass"), params: () => ({ resource: "sites" }) },
+  "GET /api/v1/datasets/:slug/versions/:semver/citation": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/datapackage.zip": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/datapackage.json": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/resources/:resource.csv": { expect: everyone(200), params: () => ({ resource: "sites" }) },
   "GET /api/v1/responses": { expect: everyone(200) },
   "GET /api/v1/observations": { expect: everyone(200) },
   "GET /api/v1/site-years": { expect: everyone(200) },
-  "GET /api/v1/analyses/meta": { expect: everyone("pass") },
+  "GET /api/v1/analyses/meta": { expect: everyone(200), query: (c) => ({ dataset: c.fx.slug }) },
 
   // Session: anyone may try to sign in or out; "who am I" needs a caller.
   "POST /api/v1/session": {
@@ -170,48 +212,67 @@ const table: Record<string, Row> = {
   "GET /api/v1/curation/datasets": { expect: { ...signedIn(200), member: 403 } },
   "GET /api/v1/curation/datasets/:slug": { expect: { ...draftView(200, 401) } },
   "POST /api/v1/curation/datasets/:slug/editors": {
-    expect: ownerWrite("pass"),
+    expect: ownerOnly(200),
     body: async (c) => ({ email: (await makeUser(c.t.ctx, "curator")).email }),
   },
   "DELETE /api/v1/curation/datasets/:slug/editors/:userId": {
-    expect: ownerWrite("ok"),
+    expect: ownerOnly("ok"),
     params: async (c) => {
       const editor = await makeUser(c.t.ctx, "curator");
       await c.t.ctx.db.insert(datasetEditors).values({ datasetId: c.fx.datasetId, userId: editor.id });
       return { slug: c.fx.slug, userId: editor.id };
     },
   },
-  "POST /api/v1/datasets/:slug/versions": { expect: ownerWrite("pass", "hidden"), body: () => ({ semver: "2.0.0" }) },
+  "POST /api/v1/datasets/:slug/versions": {
+    expect: ownerWrite(201, "hidden"),
+    // One open version at a time: clear the fixture's draft and review so a new one can be made.
+    params: async (c) => {
+      await c.t.ctx.db.delete(versions).where(inArray(versions.id, [c.fx.draftId, c.fx.inReviewId]));
+      return {};
+    },
+    body: () => ({ semver: "2.0.0" }),
+  },
   "GET /api/v1/curation/versions/:id": { expect: draftView(200), params: (c) => ({ id: c.fx.draftId }) },
   "PATCH /api/v1/curation/versions/:id": { expect: ownerWrite("ok", "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => ({ changelog: "More site-years." }) },
-  "PUT /api/v1/curation/versions/:id/table-schema": { expect: ownerWrite("pass", "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => defaultTableSchema() },
+  "PUT /api/v1/curation/versions/:id/table-schema": { expect: ownerWrite(200, "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => defaultTableSchema() },
   "GET /api/v1/curation/versions/:id/reports/:report": { expect: draftView(200, 401), params: (c) => ({ id: c.fx.draftId, report: c.fx.reportId }) },
-  "POST /api/v1/curation/versions/:id/submit": { expect: ownerWrite("pass", "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => ({ changelog: "First release of the basin trials." }) },
-  "POST /api/v1/curation/versions/:id/approve": { expect: reviewerWrite("pass"), params: (c) => ({ id: c.fx.inReviewId }), body: () => ({ comment: "Looks right." }) },
-  "POST /api/v1/curation/versions/:id/return": { expect: reviewerWrite("pass"), params: (c) => ({ id: c.fx.inReviewId }), body: () => ({ comment: "Site 2 lacks soil tests." }) },
+  "POST /api/v1/curation/versions/:id/submit": { expect: ownerWrite(200, "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => ({ changelog: "First release of the basin trials." }) },
+  "POST /api/v1/curation/versions/:id/approve": { expect: reviewerWrite(200), params: (c) => ({ id: c.fx.inReviewId }), body: () => ({ comment: "Looks right." }) },
+  "POST /api/v1/curation/versions/:id/return": { expect: reviewerWrite(200), params: (c) => ({ id: c.fx.inReviewId }), body: () => ({ comment: "Site 2 lacks soil tests." }) },
   "POST /api/v1/curation/versions/:id/withdraw": {
-    expect: { ...ownerWrite("pass"), reviewer: "pass" },
+    expect: { ...ownerWrite(200), reviewer: 200 },
     params: (c) => ({ id: c.fx.publishedId }),
     body: () => ({ reason: "A unit error in site 4." }),
   },
   "POST /api/v1/curation/versions/:id/doi/requeue": { expect: { ...ownerWrite("pass"), reviewer: "pass" }, params: (c) => ({ id: c.fx.publishedId }) },
-  "GET /api/v1/curation/diff": { expect: draftView("pass"), query: (c) => ({ from: c.fx.publishedId, to: c.fx.draftId }) },
+  "GET /api/v1/curation/diff": { expect: draftView(200), query: (c) => ({ from: c.fx.publishedId, to: c.fx.draftId }) },
   "GET /api/v1/curation/review-queue": { expect: { ...adminOnly(200), reviewer: 200 } },
-  "POST /api/v1/curation/versions/:id/uploads/:resource": { expect: ownerWrite("pass", "hidden"), params: (c) => ({ id: c.fx.draftId, resource: "sites" }) },
+  "POST /api/v1/curation/versions/:id/uploads/:resource": {
+    expect: ownerWrite(201, "hidden"),
+    params: (c) => ({ id: c.fx.draftId, resource: "sites" }),
+    file: { field: "file", name: "sites.csv", content: sitesCsv },
+  },
 };
 
+type TokenActor = "readToken" | "writeToken" | "revokedToken" | "expiredToken";
 interface World {
-  users: Record<Exclude<Actor, "anonymous" | "readToken" | "writeToken" | "revokedToken">, typeof users.$inferSelect>;
+  users: Record<Exclude<Actor, "anonymous" | TokenActor>, typeof users.$inferSelect>;
   curatorOwner: typeof users.$inferSelect;
-  tokens: Record<"readToken" | "writeToken" | "revokedToken", string>;
+  /** A second editor of every fixture dataset, never a caller: whose address only the owner (and admins) may see. */
+  coEditor: typeof users.$inferSelect;
+  tokens: Record<TokenActor, string>;
 }
 let world: World;
 
-async function tokenOf(t: TestApp, userId: string, scope: "read" | "write", revoked = false) {
+async function tokenOf(t: TestApp, userId: string, scope: "read" | "write", state: "live" | "revoked" | "expired" = "live") {
   const secret = newSecret("pb_");
+  const past = new Date(Date.now() - 60_000);
   const [row] = await t.ctx.db
     .insert(apiTokens)
-    .values({ userId, name: "matrix", prefix: secret.slice(0, 8), tokenHash: sha256Hex(secret), scope, revokedAt: revoked ? new Date() : null })
+    .values({
+      userId, name: "matrix", prefix: secret.slice(0, 8), tokenHash: sha256Hex(secret), scope,
+      revokedAt: state === "revoked" ? past : null, expiresAt: state === "expired" ? past : null,
+    })
     .returning();
   return { secret, id: row!.id };
 }
@@ -231,6 +292,10 @@ async function newFixture(t: TestApp): Promise<Fixture> {
   await db.update(versions).set({ state: "published", publishedAt: new Date(), submittedBy: world.curatorOwner.id }).where(eq(versions.id, published.id));
   await db.update(versions).set({ state: "in_review", submittedAt: new Date(), submittedBy: world.curatorOwner.id }).where(eq(versions.id, inReview.id));
   const [report] = await db.insert(validationReports).values({ versionId: draft.id, resource: "sites", filename: "sites.csv", accepted: true, problems: [] }).returning();
+  await db.insert(datasetEditors).values([world.users.curatorEditor, world.coEditor].map((u) => ({ datasetId: dataset!.id, userId: u.id })));
+  // One site-year in the draft, so submitting it can succeed.
+  const [site] = await db.insert(sites).values({ versionId: draft.id, code: "TB-01", location: "Wren County" }).returning();
+  await db.insert(siteYears).values({ versionId: draft.id, siteId: site!.id, code: "TB-01-2021", crop: "corn", year: 2021, blocks: 4 });
   return { slug, datasetId: dataset!.id, publishedId: published.id, draftId: draft.id, inReviewId: inReview.id, reportId: report!.id };
 }
 
@@ -241,23 +306,60 @@ function matches(e: Expectation, status: number) {
   return ![401, 403, 404].includes(status) && status < 500;
 }
 
-/** Every route registered on the app, as "METHOD /path" with Express's parameter syntax. */
-function registeredRoutes(app: Express): string[] {
+type Layer = { route?: { path: unknown; methods: Record<string, boolean> }; handle?: { stack?: Layer[] }; rawPath?: unknown };
+
+/**
+ * Every route registered on the app, as "METHOD /path" with Express's parameter syntax, and every middleware mounted
+ * at a path of its own under /api as "USE /path". Whatever the walk cannot name exactly is a problem, not skipped:
+ * `router.all()` (which methods does it answer?) and paths that are not plain strings (arrays, regular expressions).
+ */
+function enumerateRoutes(app: Express): { routes: string[]; problems: string[] } {
   const out: string[] = [];
-  type Layer = { route?: { path: string; methods: Record<string, boolean> }; handle?: { stack?: Layer[] }; rawPath?: unknown };
+  const problems: string[] = [];
   const walk = (stack: Layer[], prefix: string) => {
     for (const layer of stack) {
       if (layer.route) {
-        for (const m of Object.keys(layer.route.methods)) if (m !== "_all") out.push(`${m.toUpperCase()} ${prefix}${layer.route.path}`);
-      } else if (layer.handle?.stack) {
-        const mount = typeof layer.rawPath === "string" && layer.rawPath !== "/" ? layer.rawPath : "";
-        walk(layer.handle.stack, prefix + mount);
+        const path = layer.route.path;
+        if (typeof path !== "string") {
+          problems.push(`a route under "${prefix || "/"}" has a path that is not a plain string: ${String(path)}`);
+          continue;
+        }
+        for (const m of Object.keys(layer.route.methods)) {
+          if (m === "_all") problems.push(`${prefix}${path} is registered with router.all(); register each method it answers`);
+          else out.push(`${m.toUpperCase()} ${prefix}${path}`);
+        }
+        continue;
       }
+      if (typeof layer.rawPath !== "string") {
+        problems.push(`middleware under "${prefix || "/"}" is mounted at a path that is not a plain string: ${String(layer.rawPath)}`);
+        continue;
+      }
+      const mount = layer.rawPath === "/" ? "" : layer.rawPath;
+      if (layer.handle?.stack) walk(layer.handle.stack, prefix + mount);
+      else if (mount) out.push(`USE ${prefix}${mount}`);
     }
   };
   walk((app as unknown as { router: { stack: Layer[] } }).router.stack, "");
-  return [...new Set(out)].filter((r) => r.includes(" /api/")).sort();
+  return { routes: [...new Set(out)].filter((r) => / \/api(\/|$)/.test(r)).sort(), problems };
 }
+
+const registeredRoutes = (app: Express) => enumerateRoutes(app).routes;
+/** CORS preflights are answered for any path by the CORS layer, so their rows name a path rather than a route. */
+const isPreflightRow = (key: string) => key.startsWith("OPTIONS ");
+
+/**
+ * What a response says, as text: zip archives (the data package) are opened and every entry read, so nothing in them
+ * escapes the leak checks below; other binary bodies are read as UTF-8, which keeps any address in them findable.
+ */
+function bodyText(res: request.Response): string {
+  const raw = Buffer.isBuffer(res.body) ? res.body : Buffer.from(res.text ?? "");
+  if (/^application\/zip/.test(String(res.headers["content-type"]))) {
+    return [...unzip(raw)].map(([name, data]) => `${name}\n${data.toString("utf8")}`).join("\n");
+  }
+  return raw.toString("utf8");
+}
+
+const ownerSide = new Set<Actor>(["curatorOwner", "admin", "readToken", "writeToken"]);
 
 let t: TestApp;
 const results: { key: string; actor: Actor; status: number; text: string; allowedEmails: Set<string> }[] = [];
@@ -267,6 +369,7 @@ beforeAll(async () => {
   const u = {
     member: await makeUser(t.ctx, "member"),
     curatorOwner: await makeUser(t.ctx, "curator"),
+    curatorEditor: await makeUser(t.ctx, "curator"),
     curatorOther: await makeUser(t.ctx, "curator"),
     reviewer: await makeUser(t.ctx, "reviewer"),
     admin: await makeUser(t.ctx, "admin"),
@@ -274,10 +377,12 @@ beforeAll(async () => {
   world = {
     users: u,
     curatorOwner: u.curatorOwner,
+    coEditor: await makeUser(t.ctx, "curator"),
     tokens: {
       readToken: (await tokenOf(t, u.curatorOwner.id, "read")).secret,
       writeToken: (await tokenOf(t, u.curatorOwner.id, "write")).secret,
-      revokedToken: (await tokenOf(t, u.curatorOwner.id, "write", true)).secret,
+      revokedToken: (await tokenOf(t, u.curatorOwner.id, "write", "revoked")).secret,
+      expiredToken: (await tokenOf(t, u.curatorOwner.id, "write", "expired")).secret,
     },
   };
 });
@@ -285,10 +390,28 @@ afterAll(() => t.close());
 
 describe("authorization matrix", () => {
   it("has a row for every registered route, and no row for a route that is gone", () => {
-    const routes = registeredRoutes(t.app);
+    const { routes, problems } = enumerateRoutes(t.app);
+    expect(problems, "routes the enumeration cannot name exactly").toEqual([]);
     expect(routes.length).toBeGreaterThan(20);
     expect(routes.filter((r) => !(r in table)), "routes without a row in the matrix").toEqual([]);
-    expect(Object.keys(table).filter((k) => !routes.includes(k)), "rows for routes that do not exist").toEqual([]);
+    expect(Object.keys(table).filter((k) => !isPreflightRow(k) && !routes.includes(k)), "rows for routes that do not exist").toEqual([]);
+  });
+
+  it("refuses to enumerate router.all() and mounts whose path is not a plain string", () => {
+    const sneaky = express();
+    const inner = express.Router();
+    inner.all("/anything", (_req, res) => res.end());
+    inner.get(/^\/regex-route$/, (_req, res) => res.end());
+    sneaky.use("/api/v1", inner);
+    sneaky.use(["/api/a", "/api/b"], express.Router().get("/x", (_req, res) => res.end()));
+    sneaky.use(/^\/api\/hidden/, (_req, res) => res.end());
+    const { problems } = enumerateRoutes(sneaky);
+    expect(problems).toEqual([
+      expect.stringMatching(/^\/api\/v1\/anything is registered with router\.all\(\)/),
+      expect.stringMatching(/a route under "\/api\/v1" has a path that is not a plain string/),
+      expect.stringMatching(/mounted at a path that is not a plain string: \/api\/a,\/api\/b/),
+      expect.stringMatching(/mounted at a path that is not a plain string: \/\^\\\/api\\\/hidden\//),
+    ]);
   });
 
   it("documents every route in the OpenAPI document", async () => {
@@ -296,7 +419,9 @@ describe("authorization matrix", () => {
     // Compared by shape: parameter names may differ, and a documented `{resource}.csv` is the route's `:resource`.
     const shape = (route: string) => route.replace(/\{\w+\}/g, ":p").replace(/:\w+/g, ":p");
     const documented = new Set(Object.entries(doc.paths).flatMap(([path, ops]) => Object.keys(ops).map((m) => shape(`${m.toUpperCase()} ${path}`))));
-    const undocumented = registeredRoutes(t.app).filter((r) => r !== "GET /api/v1/openapi.json" && !documented.has(shape(r)));
+    // The document itself, the docs page and path mounts are not API operations.
+    const notOperations = (r: string) => r === "GET /api/v1/openapi.json" || r === "GET /api/docs" || r.startsWith("USE ");
+    const undocumented = registeredRoutes(t.app).filter((r) => !notOperations(r) && !documented.has(shape(r)));
     expect(undocumented, "routes missing from the OpenAPI document").toEqual([]);
   });
 
@@ -309,23 +434,29 @@ describe("authorization matrix", () => {
         const user = actor in world.users ? world.users[actor as keyof World["users"]] : actor.endsWith("Token") ? world.curatorOwner : null;
         const cell: Cell = { actor, user, fx, t, revealed: [] };
         const params = { slug: fx.slug, semver: "1.0.0", resource: "sites", ...(await row.params?.(cell)) };
-        const path = pathPattern.replace(/:(\w+)/g, (_m, name: string) => {
+        const path = row.path ?? pathPattern.replace(/:(\w+)/g, (_m, name: string) => {
           const value = (params as Record<string, string>)[name];
           if (value === undefined) throw new Error(`${key}: no value for :${name}; give the row a params builder`);
           return encodeURIComponent(value);
         });
         const body = await row.body?.(cell);
-        let req = request(t.app)[method.toLowerCase() as "get"](path);
+        // A path mount answers whatever reaches it; GET is what a browser or script sends it.
+        let req = request(t.app)[(method === "USE" ? "get" : method.toLowerCase()) as "get"](path).set(row.headers ?? {}).buffer(true).parse(binary);
         if (row.query) req = req.query(row.query(cell));
-        if (actor.endsWith("Token")) req = req.set("Authorization", `Bearer ${world.tokens[actor as keyof World["tokens"]]}`);
+        if (actor.endsWith("Token")) req = req.set("Authorization", `Bearer ${world.tokens[actor as TokenActor]}`);
         else if (user) req = req.set("Cookie", `${sessionCookieName}=${(await createSession(t.ctx.db, user.id)).secret}`);
-        if (body !== undefined) req = req.send(body as object);
+        if (row.file) req = req.attach(row.file.field, Buffer.from(row.file.content, "utf8"), row.file.name);
+        else if (body !== undefined) req = req.send(body as object);
         const res = await req;
-        const expected = row.expect[actor] ?? (actor === "revokedToken" ? 401 : undefined);
+        const text = bodyText(res);
+        const expected = row.expect[actor] ?? (actor === "revokedToken" || actor === "expiredToken" ? 401 : undefined);
         if (expected === undefined) throw new Error(`${key}: no expectation for ${actor}`);
-        if (!matches(expected, res.status)) failures.push(`${key} as ${actor}: expected ${expected}, got ${res.status} ${res.text.slice(0, 160)}`);
+        if (!matches(expected, res.status)) failures.push(`${key} as ${actor}: expected ${expected}, got ${res.status} ${text.slice(0, 160)}`);
+        else if (matches("ok", res.status) && row.check?.(res, text)) failures.push(`${key} as ${actor}: ${row.check(res, text)}`);
         const allowedEmails = new Set<string>([...(user ? [user.email] : []), ...JSON.stringify(body ?? "").match(/[\w.+-]+@[\w.-]+/g) ?? [], ...cell.revealed]);
-        results.push({ key, actor, status: res.status, text: res.text ?? "", allowedEmails });
+        // The owner (and its tokens) and admins choose a dataset's editors by address, so they may see the editors'.
+        if (ownerSide.has(actor)) allowedEmails.add(world.users.curatorEditor.email).add(world.coEditor.email);
+        results.push({ key, actor, status: res.status, text, allowedEmails });
       }
     }
     expect(failures).toEqual([]);
@@ -350,6 +481,33 @@ describe("authorization matrix", () => {
       for (const e of emails) if (!r.allowedEmails.has(e) && r.text.includes(e)) leaks.push(`${r.key} as ${r.actor}: shows ${e}`);
     }
     expect(leaks).toEqual([]);
+    // Zipped answers were opened and read, not skipped.
+    const zipped = results.filter((r) => r.key.endsWith("/datapackage.zip") && r.status === 200);
+    expect(zipped.length).toBeGreaterThan(0);
+    for (const r of zipped) expect(r.text).toContain("datapackage.json");
+  });
+
+  it("shows a dataset's editors' addresses to its owner and admins only", async () => {
+    const fx = await newFixture(t);
+    const editorEmails = [world.users.curatorEditor.email, world.coEditor.email];
+    const seen: Record<string, string[]> = {};
+    for (const actor of actors) {
+      const user = actor in world.users ? world.users[actor as keyof World["users"]] : actor.endsWith("Token") ? world.curatorOwner : null;
+      const cookie = user && !actor.endsWith("Token") ? `${sessionCookieName}=${(await createSession(t.ctx.db, user.id)).secret}` : null;
+      const auth = (req: request.Test) =>
+        actor.endsWith("Token") ? req.set("Authorization", `Bearer ${world.tokens[actor as TokenActor]}`) : cookie ? req.set("Cookie", cookie) : req;
+      const one = await auth(request(t.app).get(`/api/v1/curation/datasets/${fx.slug}`));
+      const list = await auth(request(t.app).get("/api/v1/curation/datasets"));
+      seen[actor] = editorEmails.filter((e) => one.text.includes(e) || list.text.includes(e));
+      if (one.status === 200) {
+        // Everyone who may see the dataset's desk sees who edits it, by name.
+        expect(one.body.editors.map((e: { id: string }) => e.id).sort(), actor).toEqual([world.users.curatorEditor.id, world.coEditor.id].sort());
+      }
+    }
+    expect(seen).toEqual({
+      anonymous: [], member: [], curatorOwner: editorEmails, curatorEditor: [world.users.curatorEditor.email], curatorOther: [], reviewer: [],
+      admin: editorEmails, readToken: editorEmails, writeToken: editorEmails, revokedToken: [], expiredToken: [],
+    });
   });
 });
 

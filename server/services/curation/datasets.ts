@@ -34,8 +34,8 @@ async function describe(db: Db, user: User | undefined, d: Dataset): Promise<Cur
       .orderBy(users.displayName),
     canEditDataset(db, user, d),
   ]);
-  // Reviewers see who edits, but addresses are for the people who work on the dataset.
-  const seesAddresses = canEdit || user?.role === "admin";
+  // Reviewers and co-editors see who edits, by name; addresses are for whoever chooses the editors (owner, admins).
+  const seesAddresses = !!user && (user.role === "admin" || user.id === d.ownerId);
   vs.sort((a, b) => compareSemver(b.semver, a.semver));
   return {
     ...datasetDescription(d),
@@ -43,7 +43,7 @@ async function describe(db: Db, user: User | undefined, d: Dataset): Promise<Cur
     methods: d.methods,
     ownerId: d.ownerId,
     editorIds: editors.map((e) => e.userId),
-    editors: editors.map((e) => ({ id: e.userId, displayName: e.displayName, email: seesAddresses ? e.email : "" })),
+    editors: editors.map((e) => ({ id: e.userId, displayName: e.displayName, email: seesAddresses || e.userId === user?.id ? e.email : "" })),
     canShare: !!user && (user.role === "admin" || user.id === d.ownerId),
     canEdit,
     versions: vs.map(versionBrief),
