@@ -11,12 +11,12 @@ import { ApiError } from "@/lib/api-error";
 export default function OutboxScreen() {
   const outbox = useOutboxQuery();
   return (
-    <AdminGate title="Outbox" subtitle="Development only: every message Plotbank has sent, newest first. Nothing left this machine.">
+    <AdminGate title="Outbox" subtitle="Every message Plotbank has recorded, newest first. None of them left this machine.">
       {outbox.isPending ? (
         <LoadingState label="Loading messages…" />
       ) : outbox.isError ? (
         outbox.error instanceof ApiError && outbox.error.status === 404 ? (
-          <EmptyState title="No outbox here" hint="The outbox exists only in development; in production mail goes out by SMTP." />
+          <EmptyState title="No outbox here" hint="This server sends its mail by SMTP, so there is no outbox to read." />
         ) : (
           <ErrorState error={outbox.error} onRetry={() => outbox.refetch()} />
         )

@@ -5,13 +5,14 @@ import { InviteForm } from "@/components/account/invite-form";
 import { PeopleList } from "@/components/account/people-list";
 import { RoleChangeLog } from "@/components/account/role-change-log";
 import { space } from "@/constants/theme";
+import { useInvitationsQuery } from "@/hooks/use-account";
 import { useLayout } from "@/hooks/use-layout";
 
 export default function PeopleAndRolesScreen() {
   const { wide } = useLayout();
   return (
     <AdminGate title="People & roles" subtitle="Who can curate, review and administer Plotbank.">
-      <TextLink href="/admin/outbox" label="Outbox (development)" />
+      <OutboxLink />
       <View style={{ flexDirection: wide ? "row" : "column", gap: space.lg, alignItems: wide ? "flex-start" : "stretch" }}>
         <View style={wide ? { flex: 3, gap: space.lg } : { gap: space.lg, alignSelf: "stretch" }}>
           <PeopleList />
@@ -23,4 +24,10 @@ export default function PeopleAndRolesScreen() {
       </View>
     </AdminGate>
   );
+}
+
+/** Where mail goes out by SMTP there is no outbox to read, so no link to one (the invitations payload says which). */
+function OutboxLink() {
+  const available = useInvitationsQuery().data?.outboxAvailable === true;
+  return available ? <TextLink href="/admin/outbox" label="Outbox (mail kept here, not sent)" /> : null;
 }

@@ -2,6 +2,7 @@ import { and, desc, eq } from "drizzle-orm";
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { outbox, roleChanges, users } from "@/db/schema";
+import { acceptInvitation, inviteUser } from "@/server/services/accounts/invitations";
 import { createUser } from "@/server/services/users";
 import { desktop, launchBrowser, newContext, phone, screenshot, startServer, watchPage, type RunningServer } from "./harness";
 
@@ -78,8 +79,13 @@ describe("accounts on a phone (390x844)", () => {
 
   it("lets an admin change a role, see it in the log, and open an e-mailed link from the outbox", async () => {
     const password = "admin-basin-plots-7";
-    await createUser(server.ctx.db, { email: "mara.admin@tallgrass.test", displayName: "Mara Quill", password, role: "admin", verified: true });
+    const admin = await createUser(server.ctx.db, { email: "mara.admin@tallgrass.test", displayName: "Mara Quill", password, role: "admin", verified: true });
     const member = await createUser(server.ctx.db, { email: "tobin.member@tallgrass.test", displayName: "Tobin Reed", password, verified: true });
+    // An invitation accepted earlier: the grant is in the log, made by the inviter.
+    await inviteUser(server.ctx, admin, { email: "pia.lowe@tallgrass.test", role: "curator" });
+    const [invitation] = await server.ctx.db.select().from(outbox).where(eq(outbox.to, "pia.lowe@tallgrass.test"));
+    const token = new URL(invitation!.text.match(/https?:\/\/\S+/)![0]).searchParams.get("token")!;
+    await acceptInvitation(server.ctx, { token, displayName: "Pia Lowe", password: "loam-furrow-sieve-31" });
     const context = await newContext(browser, phone);
     const page = await context.newPage();
     const problems = watchPage(page);
@@ -93,6 +99,7 @@ describe("accounts on a phone (390x844)", () => {
 
     await page.getByRole("radio", { name: "Role of Tobin Reed: Curator" }).click();
     await page.getByText("Tobin Reed: member → curator").waitFor();
+    await page.getByText("Pia Lowe: joined as curator by invitation").waitFor();
     const [change] = await server.ctx.db.select().from(roleChanges).where(eq(roleChanges.userId, member.id));
     expect(change?.toRole).toBe("curator");
     await screenshot(page, "accounts-admin-people-phone");
@@ -102,13 +109,23 @@ describe("accounts on a phone (390x844)", () => {
     await page.getByRole("button", { name: "Send invitation" }).click();
     await page.getByText("Invitation sent to new.reviewer@tallgrass.test.").waitFor();
 
-    await page.getByRole("link", { name: "Outbox (development)" }).click();
+    await page.getByRole("link", { name: "Outbox (mail kept here, not sent)" }).click();
     await page.getByRole("link", { name: /You are invited to Plotbank as a reviewer/ }).click();
     await page.getByRole("heading", { name: "You are invited to Plotbank as a reviewer" }).waitFor();
     await page.getByRole("link", { name: /^Open http.*\/invite\?token=/ }).click();
     await page.getByText("You are invited as a reviewer.").waitFor();
     await page.getByRole("button", { name: "Accept and sign in" }).waitFor();
     expect(new URL(page.url()).pathname).toBe("/invite");
+
+    // Where mail goes out by SMTP there is no outbox, and no link to one.
+    server.ctx.config.development = false;
+    try {
+      await page.goto(`${server.url}/admin`);
+      await page.getByText("Waiting to be accepted").waitFor();
+      expect(await page.getByRole("link", { name: /Outbox/ }).count()).toBe(0);
+    } finally {
+      server.ctx.config.development = true;
+    }
     expect(problems).toEqual([]);
     await context.close();
   });
