@@ -91,6 +91,13 @@ describe("the Developers screen", () => {
     const href = await page.getByRole("link", { name: "OpenAPI document" }).getAttribute("href");
     const doc = (await (await fetch(`${server.url}${href}`)).json()) as { openapi: string };
     expect(doc.openapi).toMatch(/^3\.1/);
+    // The reference is a server page, not an app route: following the link leaves the app for it.
+    await page.getByRole("link", { name: "Interactive API reference" }).click();
+    await page.waitForURL(`${server.url}/api/docs/`);
+    await page.getByText("Plotbank open-data API").first().waitFor();
+    await screenshot(page, "developers-api-reference");
+    await page.goBack();
+    await page.getByRole("link", { name: "OpenAPI document" }).waitFor();
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(desktop.width);
     await screenshot(page, "developers-desktop");
     expect(problems).toEqual([]);
