@@ -7,6 +7,7 @@ import { createApp } from "./app";
 import { mountDevProxy, proxyUpgrades } from "./dev-proxy";
 import { loadConfig, refuseUndeliverableMail } from "./config";
 import { closeServer, listen, localUrl } from "./listen";
+import { mailDeliveriesEnded } from "./mail/mailer";
 import { startLocalDataCiteUnlessConfigured } from "./doi/local-datacite";
 import { startDoiRetryLoop } from "./services/citation/doi-queue";
 import { webDistDir } from "./web";
@@ -52,6 +53,7 @@ async function main() {
       await closeServer(server, 10_000);
       await seeding.catch(() => undefined);
       stopDoiRetries();
+      await mailDeliveriesEnded(ctx);
       await dataCite.stop();
       await database.close();
     } catch (error) {

@@ -16,10 +16,18 @@ export interface MailMessage {
 }
 
 export interface Mailer {
-  /** Record the message in the outbox, then hand it to the transport. Returns the outbox id. */
+  /**
+   * Record the message in the outbox and start its delivery. Returns the outbox id once the record is stored; the
+   * transport works in the background, so a slow or unreachable mail server never holds a request.
+   */
   send(message: MailMessage): Promise<string>;
+  /** Resolves when every delivery started so far has ended (sent, or failed with the failure recorded). */
+  idle(): Promise<void>;
   transport: "outbox" | "smtp";
 }
+
+/** Bounds on one SMTP conversation: a server that accepts and then says nothing is given up on, not waited for. */
+const smtpTimeouts = { connectionTimeout: 10_000, greetingTimeout: 10_000, socketTimeout: 30_000 };
 
 export const redactLinkTokens = (body: string) => body.replace(/([?&](?:amp;)?token=)[^\s&"<]+/g, "$1[redacted]");
 
@@ -36,8 +44,9 @@ export function createMailer(ctx: AppContext): Mailer {
   if (existing) return existing;
   const useSmtp = sendsMailBySmtp(ctx.config);
   const transporter: Transporter = useSmtp
-    ? nodemailer.createTransport(ctx.config.smtpUrl!)
+    ? nodemailer.createTransport({ url: ctx.config.smtpUrl!, ...smtpTimeouts })
     : nodemailer.createTransport({ jsonTransport: true });
+  const inFlight = new Set<Promise<void>>();
   const transport = useSmtp ? "smtp" : "outbox";
 
   const mailer: Mailer = {
@@ -49,19 +58,33 @@ export function createMailer(ctx: AppContext): Mailer {
         .insert(outbox)
         .values({ kind: message.kind, to: message.to, subject: message.subject, text: keep(message.text), html: message.html ? keep(message.html) : null, meta: message.meta ?? {}, transport })
         .returning({ id: outbox.id });
-      try {
-        await transporter.sendMail({ from: ctx.config.mailFrom, to: message.to, subject: message.subject, text: message.text, html: message.html });
-      } catch (error) {
-        // The request that caused the message still succeeds; the failure is kept beside the message for the admin.
-        console.error(`mail to ${message.to} (${message.kind}) failed:`, error);
-        await ctx.db
-          .update(outbox)
-          .set({ meta: { ...message.meta, deliveryError: (error as Error).message } })
-          .where(eq(outbox.id, row!.id));
-      }
+      const delivery = transporter
+        .sendMail({ from: ctx.config.mailFrom, to: message.to, subject: message.subject, text: message.text, html: message.html })
+        .then(
+          () => undefined,
+          async (error: unknown) => {
+            // The request that caused the message has its answer already; the failure is kept beside the message.
+            console.error(`mail to ${message.to} (${message.kind}) failed:`, error);
+            await ctx.db
+              .update(outbox)
+              .set({ meta: { ...message.meta, deliveryError: (error as Error).message } })
+              .where(eq(outbox.id, row!.id));
+          },
+        )
+        .catch((error: unknown) => console.error(`recording the failed delivery of outbox message ${row!.id} failed:`, error))
+        .finally(() => inFlight.delete(delivery));
+      inFlight.add(delivery);
       return row!.id;
+    },
+    async idle() {
+      while (inFlight.size > 0) await Promise.all([...inFlight]);
     },
   };
   mailers.set(ctx, mailer);
   return mailer;
+}
+
+/** Wait for the app's mail deliveries in flight (before closing its database, in tests and at shutdown). */
+export async function mailDeliveriesEnded(ctx: AppContext): Promise<void> {
+  await mailers.get(ctx)?.idle();
 }

@@ -1,5 +1,6 @@
 import { spawnSync } from "node:child_process";
 import { existsSync } from "node:fs";
+import { createServer, type Socket } from "node:net";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { and, asc, eq, sql } from "drizzle-orm";
@@ -10,6 +11,7 @@ import { invitationList } from "@/schemas/account";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
 import { loadConfig, refuseUndeliverableMail } from "@/server/config";
 import type { AppContext } from "@/server/context";
+import { mailDeliveriesEnded } from "@/server/mail/mailer";
 import { runPublishHooks } from "@/server/services/publish-hooks";
 import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
 import { signedInAgent } from "@/tests/support/sign-in";
@@ -219,6 +221,32 @@ describe("mail configuration at start-up", () => {
 });
 
 describe("real mail in production", () => {
+  it("answers at once when the mail server accepts the connection and then says nothing; the failure is recorded when it hangs up", async () => {
+    const sockets: Socket[] = [];
+    const silent = createServer((socket) => sockets.push(socket)); // never sends the SMTP greeting
+    await new Promise<void>((resolve) => silent.listen(0, "127.0.0.1", resolve));
+    const port = (silent.address() as { port: number }).port;
+    const prod = await testApp({ development: false, smtpUrl: `smtp://127.0.0.1:${port}` });
+    const original = console.error;
+    console.error = () => undefined;
+    try {
+      const user = await makeUser(prod.ctx, "member");
+      await request(prod.app).post("/api/v1/password-reset").send({ email: user.email }).expect(202);
+      const [waiting] = await prod.ctx.db.select().from(outbox).where(eq(outbox.to, user.email));
+      expect(waiting?.kind).toBe("password-reset");
+      expect((waiting?.meta as { deliveryError?: string }).deliveryError).toBeUndefined();
+      await expect.poll(() => sockets.length).toBe(1);
+      for (const socket of sockets) socket.destroy();
+      await mailDeliveriesEnded(prod.ctx);
+      const [failed] = await prod.ctx.db.select().from(outbox).where(eq(outbox.to, user.email));
+      expect((failed?.meta as { deliveryError?: string }).deliveryError).toBeTruthy();
+    } finally {
+      console.error = original;
+      await prod.close();
+      await new Promise<void>((resolve) => silent.close(() => resolve()));
+    }
+  });
+
   it("records SMTP mail without its link secret, and keeps a delivery failure beside the message", async () => {
     const prod = await testApp({ development: false, smtpUrl: "smtp://127.0.0.1:9" });
     try {
@@ -228,6 +256,7 @@ describe("real mail in production", () => {
       console.error = (...args: unknown[]) => errors.push(args);
       try {
         await request(prod.app).post("/api/v1/password-reset").send({ email: user.email }).expect(202);
+        await mailDeliveriesEnded(prod.ctx);
       } finally {
         console.error = original;
       }
@@ -328,6 +357,7 @@ describe("review e-mails", () => {
       await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
       const approve = await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({ comment: "Fine." }).expect(200);
       expect(approve.body.state).toBe("published");
+      await mailDeliveriesEnded(prod.ctx);
       const [asked] = await mails(prod.ctx, "review-requested");
       const [approved] = await mails(prod.ctx, "review-approved");
       expect(asked?.meta.deliveryError).toBeTruthy();

@@ -4,6 +4,7 @@ import { migrateDatabase, openDatabase, type Database } from "@/db/client";
 import { createApp } from "@/server/app";
 import { loadConfig, type AppConfig } from "@/server/config";
 import type { AppContext } from "@/server/context";
+import { mailDeliveriesEnded } from "@/server/mail/mailer";
 import { drainDoiQueue } from "@/server/services/citation/doi-queue";
 import { createUser } from "@/server/services/users";
 import type { Role } from "@/schemas/account";
@@ -58,6 +59,7 @@ export async function testApp(overrides: Partial<AppConfig> = {}, options: { web
     async close() {
       // A DOI pass still running would write to a closed database.
       await drainDoiQueue(ctx);
+      await mailDeliveriesEnded(ctx);
       await database.close();
       await dropDatabase?.();
     },
