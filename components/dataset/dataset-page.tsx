@@ -13,6 +13,7 @@ import { shareUrl, defaultEvidenceState } from "@/lib/share-link";
 import type { VersionSummary } from "@/schemas/public";
 import { DataDictionary } from "./data-dictionary";
 import { DownloadLink } from "./download-link";
+import { FollowButton } from "./follow-button";
 
 function VersionEntry({ v }: { v: VersionSummary }) {
   const withdrawn = v.state === "withdrawn";
@@ -81,6 +82,7 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
           testID="analyse-dataset"
           onPress={() => router.push(shareUrl("", { ...defaultEvidenceState, filters: { dataset: slug } }) as never)}
         />
+        {published.length > 0 ? <FollowButton slug={slug} title={d.title} /> : null}
       </Card>
       {version && !asked ? (
         <Card testID="version-not-found">
