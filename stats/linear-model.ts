@@ -42,6 +42,19 @@ export function anovaRow(term: string, df: number, sumOfSquares: number, residua
   return { term, df, sumOfSquares, meanSquare, fStatistic, pValue: fStatistic === null ? null : fSurvival(fStatistic, df, residualDf) };
 }
 
+/**
+ * Exact fit: a residual sum of squares no larger than floating-point round-off of the response is zero. Data that the
+ * model fits exactly (every plot the same value, say) leave residuals of a few ulps whose size depends on the order
+ * of the arithmetic, and an F ratio built on them is noise; R's summary.lm warns of an "essentially perfect fit" in
+ * the same case. The bound is n · (64 · ε · max|y|)², far below any real plot-to-plot variation.
+ */
+export function exactFitResidualSs(residualSs: number, response: ArrayLike<number>): number {
+  let largest = 0;
+  for (let i = 0; i < response.length; i++) largest = Math.max(largest, Math.abs(response[i]!));
+  const roundOff = 64 * Number.EPSILON * largest;
+  return residualSs <= response.length * roundOff * roundOff ? 0 : residualSs;
+}
+
 export interface LinearModelFit {
   n: number;
   rows: AnovaTableRow[];
@@ -130,6 +143,7 @@ export function fitLinearModel(input: LinearModelInput): LinearModelFit {
   const residualDf = n - rank;
   let residualSs = 0;
   for (let i = rank; i < n; i++) residualSs += (effects[i] ?? 0) ** 2;
+  residualSs = exactFitResidualSs(residualSs, input.response);
   const residualMs = residualDf > 0 ? residualSs / residualDf : null;
 
   const termDf = new Array<number>(input.terms.length).fill(0);

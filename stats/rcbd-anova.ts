@@ -1,7 +1,7 @@
 /**
  * Analysis of variance of one site-year laid out as a randomized complete block design (RCBD).
  */
-import { anovaRow, fitLinearModel, factorLevels, type AnovaTableRow } from "@/stats/linear-model";
+import { anovaRow, exactFitResidualSs, fitLinearModel, factorLevels, type AnovaTableRow } from "@/stats/linear-model";
 import { coefficientOfVariationPercent, meanSeparation, type MeanSeparation } from "@/stats/mean-separation";
 
 /** One plot of a site-year: its block (replicate), treatment and measured response (e.g. yield). */
@@ -206,6 +206,7 @@ function balancedFit(plots: readonly RcbdPlot[], blocks: string[], treatments: s
   plots.forEach((plot, i) => {
     errorSs += (plot.y - blockMean[bi[i]!]! - treatmentMean[ti[i]!]! + grandMean) ** 2;
   });
+  errorSs = exactFitResidualSs(errorSs, plots.map((plot) => plot.y));
   const errorDf = plots.length - 1 - (b - 1) - (t - 1);
   const mse = errorDf > 0 ? errorSs / errorDf : null;
   const variance = mse === null ? null : mse / (b * perCell);

@@ -119,6 +119,20 @@ describe("rcbdAnova — one missing plot (Yates 1933 missing-plot formula; R lm(
 });
 
 describe("rcbdAnova — the balanced closed form agrees with the least-squares fit (R anova(lm(y ~ block + treatment)))", () => {
+  // Found by the property below: yields equal up to one ulp left residuals of ~1e-26 whose F ratio (0 in one fit,
+  // 1.6 in the other) was round-off. An exact fit has no residual variation, so neither fit gives an F test.
+  it("an exact fit up to round-off has MSE 0 and no F test in either fit", () => {
+    const ys = [1000, 1000, 1000, 1000.0000000000001];
+    const plots: RcbdPlot[] = ys.map((y, i) => ({ treatment: i < 2 ? "T0" : "T1", block: "1", y }));
+    const ls = fitLinearModel({ response: ys, factors: { block: { values: plots.map((p) => p.block) }, treatment: { values: plots.map((p) => p.treatment) } }, terms: [["block"], ["treatment"]] });
+    const result = rcbdAnova(plots);
+    expect(result.balanced).toBe(true);
+    expect(result.mse).toBe(0);
+    expect(ls.residual.meanSquare).toBe(0);
+    expect(result.treatment.fStatistic).toBeNull();
+    expect(ls.rows.find((r) => r.term === "treatment")?.fStatistic).toBeNull();
+  });
+
   // The least-squares fit is the reference: fitLinearModel is checked against R's aov on Yates' npk and NIST StRD.
   it("on random balanced layouts (t 2–6, b 1–6, 1–3 plots per cell): SS, df, MSE, F, p and mean covariance", () => {
     fc.assert(
