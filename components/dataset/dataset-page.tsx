@@ -5,6 +5,7 @@ import { ChoiceChips } from "@/components/evidence/choice-chips";
 import { Screen } from "@/components/screen";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
+import { ServerLink } from "@/components/ui/server-link";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
@@ -12,7 +13,6 @@ import { useDatasetDetail, useVersionSchema, versionDownloads } from "@/hooks/us
 import { shareUrl, defaultEvidenceState } from "@/lib/share-link";
 import type { VersionSummary } from "@/schemas/public";
 import { DataDictionary } from "./data-dictionary";
-import { DownloadLink } from "./download-link";
 import { FollowButton } from "./follow-button";
 
 function VersionEntry({ v }: { v: VersionSummary }) {
@@ -102,9 +102,9 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
       {current && current.state === "published" && downloads ? (
         <Card testID="downloads">
           <Text variant="heading">Download v{current.semver}</Text>
-          <DownloadLink href={downloads.dataPackage} label="Data Package (datapackage.json + CSV, zip)" testID="download-datapackage" />
+          <ServerLink href={downloads.dataPackage} label="Data Package (datapackage.json + CSV, zip)" testID="download-datapackage" />
           {downloads.resources.map((r) => (
-            <DownloadLink key={r.resource} href={r.url} label={`${r.resource}.csv`} testID={`download-${r.resource}`} />
+            <ServerLink key={r.resource} href={r.url} label={`${r.resource}.csv`} testID={`download-${r.resource}`} />
           ))}
           <Text variant="caption">Licence {current.licence}: reuse with attribution to the citation below.</Text>
         </Card>

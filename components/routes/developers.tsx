@@ -3,10 +3,10 @@ import { Link, useLocalSearchParams } from "expo-router";
 import { useMemo, useState } from "react";
 import { Platform, Pressable, StyleSheet, View } from "react-native";
 import { TextField } from "@/components/curation/form-fields";
-import { DownloadLink } from "@/components/dataset/download-link";
 import { Screen } from "@/components/screen";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
+import { ServerLink } from "@/components/ui/server-link";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, radius, space } from "@/constants/theme";
@@ -197,9 +197,8 @@ export default function DevelopersScreen() {
   return (
     <Screen title="Developers" subtitle="Pull the same numbers the app shows: typed filters, JSON or streamed CSV, cursor paging, OpenAPI 3.1.">
       <View style={styles.row}>
-        {/* Server pages, not app routes: plain links, so the browser leaves the app for them. */}
-        <DownloadLink href="/api/docs/" label="Interactive API reference" testID="api-docs-link" />
-        <DownloadLink href="/api/v1/openapi.json" label="OpenAPI document" testID="openapi-link" />
+        <ServerLink href="/api/docs/" label="Interactive API reference" testID="api-docs-link" />
+        <ServerLink href="/api/v1/openapi.json" label="OpenAPI document" testID="openapi-link" />
       </View>
       <Text variant="heading">API tokens</Text>
       {session.isPending ? (

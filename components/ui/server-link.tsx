@@ -4,8 +4,11 @@ import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap } from "@/constants/theme";
 import { apiUrl } from "@/lib/api-client";
 
-/** A plain link to an API file: an <a href> on the web (so it downloads and can be copied), the browser elsewhere. */
-export function DownloadLink({ href, label, testID }: { href: string; label: string; testID?: string }) {
+/**
+ * A plain link to something the server answers (a download, the API docs): an <a href> on the web, so the browser
+ * leaves the app for it (it downloads, opens, and can be copied), and the system browser elsewhere.
+ */
+export function ServerLink({ href, label, testID }: { href: string; label: string; testID?: string }) {
   const url = apiUrl(href);
   const web = Platform.OS === "web" ? ({ href: url } as object) : {};
   return (

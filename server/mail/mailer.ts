@@ -36,8 +36,8 @@ const mailers = new WeakMap<AppContext, Mailer>();
 /**
  * The app's mailer. In development and tests nodemailer's JSON transport renders each message and nothing leaves the
  * machine; the outbox table is where it can be read (also in production with PLOTBANK_MAIL_OUTBOX_ONLY). In production
- * with SMTP_URL, messages go out over SMTP and are
- * recorded in the outbox too, so an admin can tell what was sent when someone says a link never came.
+ * with SMTP_URL, messages go out over SMTP and are recorded in the outbox too, so an admin can tell what was sent when
+ * someone says a link never came.
  */
 export function createMailer(ctx: AppContext): Mailer {
   const existing = mailers.get(ctx);

@@ -96,7 +96,7 @@ export function adminRoutes(ctx: AppContext): Router {
 
   // The outbox screen exists only where mail is kept rather than sent (development, or production that opted into
   // PLOTBANK_MAIL_OUTBOX_ONLY); where mail goes out by SMTP the route is simply absent.
-  const devOnly: RequestHandler = (_req, _res, next) => next(outboxScreenAvailable(ctx.config) ? undefined : notFound());
+  const outboxOnly: RequestHandler = (_req, _res, next) => next(outboxScreenAvailable(ctx.config) ? undefined : notFound());
 
   registry.registerPath({
     method: "get",
@@ -106,7 +106,7 @@ export function adminRoutes(ctx: AppContext): Router {
     security,
     responses: { 200: { description: "Messages, newest first", content: { "application/json": { schema: outboxList } } }, ...problemResponses(401, 403, 404) },
   });
-  router.get("/admin/outbox", devOnly, adminOnly, async (_req, res) => {
+  router.get("/admin/outbox", outboxOnly, adminOnly, async (_req, res) => {
     res.set("Cache-Control", "private, no-store").json({ items: await listOutbox(ctx) });
   });
 
@@ -119,7 +119,7 @@ export function adminRoutes(ctx: AppContext): Router {
     request: { params: idParams },
     responses: { 200: { description: "The message", content: { "application/json": { schema: outboxMessage } } }, ...problemResponses(401, 403, 404) },
   });
-  router.get("/admin/outbox/:id", devOnly, adminOnly, async (req, res) => {
+  router.get("/admin/outbox/:id", outboxOnly, adminOnly, async (req, res) => {
     const { id } = parseParams(idParams, req);
     res.set("Cache-Control", "private, no-store").json(await outboxMessageById(ctx, id));
   });

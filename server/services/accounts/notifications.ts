@@ -3,7 +3,6 @@ import { datasets, follows, outbox, users, versions } from "@/db/schema";
 import type { AppContext } from "@/server/context";
 import { createMailer } from "@/server/mail/mailer";
 import { templates } from "@/server/mail/templates";
-import { onVersionPublished } from "@/server/services/publish-hooks";
 
 async function versionWithDataset(ctx: AppContext, versionId: string) {
   const [row] = await ctx.db
@@ -114,7 +113,3 @@ export async function notifyFollowers(ctx: AppContext, versionId: string): Promi
   }
   return sent;
 }
-
-onVersionPublished("notify-followers", async (ctx, versionId) => {
-  await notifyFollowers(ctx, versionId);
-});

@@ -142,7 +142,7 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
     latestPublishedSemver: latest?.semver ?? null,
     suggestedBump,
     suggestedSemver,
-    doiRegistration: await doiRegistrationOf(ctx, user, dataset, v),
+    doiRegistration: doiRegistrationOf(ctx, user, dataset, v, canEdit),
   };
 }
 
