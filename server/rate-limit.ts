@@ -4,7 +4,7 @@ import type { AppConfig } from "./config";
 import { HttpProblem } from "./errors";
 
 /** Health checks and the OpenAPI document are never limited: monitors and code generators poll them. */
-const exempt = new Set(["/health", "/openapi.json"]);
+export const rateLimitExempt = new Set(["/health", "/openapi.json"]);
 
 const windowMs = 60_000;
 const readMethods = new Set(["GET", "HEAD", "OPTIONS"]);
@@ -41,7 +41,7 @@ export function apiRateLimits(config: Pick<AppConfig, "anonRatePerMinute" | "tok
       limit: config.anonRatePerMinute,
       // Anonymous writes are sign-in, sign-up and resets, which have their own tighter limits; a spent read quota
       // must not stop someone from signing in to get the higher one.
-      skip: (req) => exempt.has(req.path) || !!req.user || !readMethods.has(req.method),
+      skip: (req) => rateLimitExempt.has(req.path) || !!req.user || !readMethods.has(req.method),
       keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}`,
       handler: tooMany("anonymous"),
     }),
@@ -49,7 +49,7 @@ export function apiRateLimits(config: Pick<AppConfig, "anonRatePerMinute" | "tok
       ...common,
       identifier: "client",
       limit: config.tokenRatePerMinute,
-      skip: (req) => exempt.has(req.path) || !req.user,
+      skip: (req) => rateLimitExempt.has(req.path) || !req.user,
       keyGenerator: (req) => (req.auth?.via === "token" && req.auth.tokenId ? `token:${req.auth.tokenId}` : `user:${req.user!.id}`),
       handler: tooMany("per-client"),
     }),
