@@ -10,7 +10,7 @@ import { securityOf } from "./security";
 export const apiBase = "/api/v1";
 
 type Method = "get" | "post" | "put" | "patch" | "delete";
-type Responses = Record<number, ResponseConfig>;
+export type Responses = Record<number, ResponseConfig>;
 type Infer<T> = T extends z.ZodType ? z.output<T> : undefined;
 
 /** The request as parsed: handlers take these and never read req.params, req.query or req.body themselves. */

@@ -1,17 +1,18 @@
-import { Router } from "express";
+import type { Router } from "express";
 import { metaAnalysisResult, metaQuery } from "@/schemas/analysis";
 import type { AppContext } from "@/server/context";
+import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { forestRowsCsv } from "@/server/services/analysis/forest-csv";
 import { runMetaAnalysis } from "@/server/services/analysis/run-meta-analysis";
-import { parseQuery } from "@/server/validate";
 
 export function analysisRoutes({ db, registry }: AppContext): Router {
-  const router = Router();
+  const { router, defineRoute } = routeModule(registry);
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/analyses/meta",
+    operationId: "runMetaAnalysis",
     tags: ["Analyses"],
     summary: "Random-effects meta-analysis of yield response over the filtered site-years",
     description:
@@ -22,7 +23,7 @@ export function analysisRoutes({ db, registry }: AppContext): Router {
       "decision block gives the break-even response and the chance a new site-year exceeds it. `format=csv` returns " +
       "the per-site-year rows (reproduce in R: `rma(yi = estimate, sei = se, data = d, method = \"REML\", test = \"knha\")`). " +
       "k = 0 is an answer (200), not an error. Results summarise these trials; a field can differ.",
-    request: { query: metaQuery },
+    query: metaQuery,
     responses: {
       200: {
         description: "The analysis with its provenance",
@@ -30,9 +31,7 @@ export function analysisRoutes({ db, registry }: AppContext): Router {
       },
       ...problemResponses(400, 404, 429),
     },
-  });
-  router.get("/analyses/meta", async (req, res) => {
-    const query = parseQuery(metaQuery, req);
+  }, async ({ query }, _req, res) => {
     const result = await runMetaAnalysis(db, query);
     res.set("Cache-Control", "public, max-age=60");
     if (query.format === "csv") {

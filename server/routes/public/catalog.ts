@@ -1,15 +1,17 @@
-import { Router } from "express";
+import type { Router } from "express";
 import { z } from "zod";
 import type { AppContext } from "@/server/context";
+import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { dcatCatalog } from "@/server/services/linked-data/dcat-catalog";
 
 export function catalogRoutes(ctx: AppContext): Router {
-  const router = Router();
+  const { router, defineRoute } = routeModule(ctx.registry);
 
-  ctx.registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/catalog",
+    operationId: "getCatalog",
     tags: ["Datasets"],
     summary: "The catalogue as W3C DCAT 3 (JSON-LD)",
     description:
@@ -20,8 +22,7 @@ export function catalogRoutes(ctx: AppContext): Router {
       200: { description: "A dcat:Catalog", content: { "application/ld+json": { schema: z.record(z.string(), z.unknown()) } } },
       ...problemResponses(429),
     },
-  });
-  router.get("/catalog", async (_req, res) => {
+  }, async (_input, _req, res) => {
     const catalog = await dcatCatalog(ctx);
     res.set("Cache-Control", "public, max-age=60").type("application/ld+json; charset=utf-8").send(JSON.stringify(catalog));
   });

@@ -1,12 +1,12 @@
-import { Router } from "express";
+import type { Router } from "express";
 import { z } from "zod";
 import type { AppContext } from "@/server/context";
 import { notFound } from "@/server/errors";
+import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { findVersion, loadCitableDataset } from "@/server/services/citation/citable-version";
 import { citationExtensions, citationFormats, citationMediaTypes, renderCitation } from "@/server/services/citation/citation-formats";
 import { cslItem } from "@/server/services/citation/csl-item";
-import { parseParams, parseQuery } from "@/server/validate";
 
 const citationParams = z.object({
   slug: z.string().regex(/^[a-z0-9]+(-[a-z0-9]+)*$/),
@@ -18,17 +18,19 @@ const citationQuery = z
 
 export function citationRoutes(ctx: AppContext): Router {
   const { db, config, registry } = ctx;
-  const router = Router();
+  const { router, defineRoute } = routeModule(registry);
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/datasets/{slug}/versions/{semver}/citation",
+    operationId: "getCitation",
     tags: ["Citations"],
     summary: "How to cite a published version: plain text (APA style), BibTeX, RIS or CSL-JSON",
     description:
       "Every format renders from the same CSL-JSON record. The DOI appears once the DOI service has registered it; " +
       "until then the citation points at the version's stable page. `latest` names the newest published version.",
-    request: { params: citationParams, query: citationQuery },
+    params: citationParams,
+    query: citationQuery,
     responses: {
       200: {
         description: "The citation",
@@ -41,10 +43,7 @@ export function citationRoutes(ctx: AppContext): Router {
       },
       ...problemResponses(400, 404, 429),
     },
-  });
-  router.get("/datasets/:slug/versions/:semver/citation", async (req, res) => {
-    const { slug, semver } = parseParams(citationParams, req);
-    const { format } = parseQuery(citationQuery, req);
+  }, async ({ params: { slug, semver }, query: { format } }, _req, res) => {
     const dataset = await loadCitableDataset(db, config, slug);
     if (!dataset) throw notFound(`No published dataset is called "${slug}".`);
     const version = findVersion(dataset, semver);

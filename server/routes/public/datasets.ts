@@ -1,76 +1,73 @@
-import { Router } from "express";
+import type { Router } from "express";
 import { datasetList } from "@/schemas/dataset";
 import { tableSchemaDescriptor } from "@/schemas/table-schema";
 import { datasetDetail, noQuery, versionDetail, versionList } from "@/schemas/public";
 import { cacheable, strongEtag } from "@/server/caching";
 import type { AppContext } from "@/server/context";
+import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { listPublishedDatasets } from "@/server/services/catalogue";
 import * as publicVersions from "@/server/services/public/versions";
-import { parseParams, parseQuery } from "@/server/validate";
 import { datasetPathParams, metadataHeaders, readResponses, versionPathParams } from "./rows-doc";
 
 /** The catalogue and each dataset's public versions (withdrawn ones as tombstones), metadata only. */
 export function datasetRoutes({ db, registry }: AppContext): Router {
-  const router = Router();
+  const { router, defineRoute } = routeModule(registry);
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/datasets",
+    operationId: "listDatasets",
     tags: ["Datasets"],
     summary: "Published datasets, each with its latest published version",
+    query: noQuery,
     responses: { 200: { description: "The catalogue", content: { "application/json": { schema: datasetList } } }, ...problemResponses(400, 429) },
-  });
-  router.get("/datasets", async (req, res) => {
-    parseQuery(noQuery, req);
+  }, async (_input, _req, res) => {
     res.set("Cache-Control", "public, max-age=60");
     res.json({ items: await listPublishedDatasets(db) });
   });
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/datasets/{slug}",
+    operationId: "getDataset",
     tags: ["Datasets"],
     summary: "A dataset's metadata and its versions, withdrawn ones included as tombstones with their reason",
-    request: { params: datasetPathParams },
+    params: datasetPathParams,
+    query: noQuery,
     responses: { 200: { description: "The dataset", content: { "application/json": { schema: datasetDetail } } }, ...problemResponses(404, 429) },
-  });
-  router.get("/datasets/:slug", async (req, res) => {
-    const { slug } = parseParams(datasetPathParams, req);
-    parseQuery(noQuery, req);
+  }, async ({ params: { slug } }, _req, res) => {
     res.set("Cache-Control", "public, max-age=60");
     res.json(await publicVersions.datasetDetail(db, slug));
   });
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/datasets/{slug}/versions",
+    operationId: "listVersions",
     tags: ["Datasets"],
     summary: "A dataset's published and withdrawn versions, newest first",
-    request: { params: datasetPathParams },
+    params: datasetPathParams,
+    query: noQuery,
     responses: { 200: { description: "The versions", content: { "application/json": { schema: versionList } } }, ...problemResponses(404, 429) },
-  });
-  router.get("/datasets/:slug/versions", async (req, res) => {
-    const { slug } = parseParams(datasetPathParams, req);
-    parseQuery(noQuery, req);
+  }, async ({ params: { slug } }, _req, res) => {
     res.set("Cache-Control", "public, max-age=60");
     res.json({ items: await publicVersions.versionSummaries(db, slug) });
   });
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/datasets/{slug}/versions/{semver}",
+    operationId: "getVersion",
     tags: ["Datasets"],
     summary: "One version: metadata, row counts and links; a withdrawn version answers with its reason and no rows",
-    request: { params: versionPathParams },
+    params: versionPathParams,
+    query: noQuery,
     responses: {
       200: { description: "The version", headers: metadataHeaders, content: { "application/json": { schema: versionDetail } } },
       ...readResponses,
     },
-  });
-  router.get("/datasets/:slug/versions/:semver", async (req, res) => {
-    const { slug, semver } = parseParams(versionPathParams, req);
-    parseQuery(noQuery, req);
+  }, async ({ params: { slug, semver } }, req, res) => {
     const v = await publicVersions.pathVersion(db, slug, semver);
     // Unlike its rows, a published version's metadata may still gain a DOI or a withdrawal: cached briefly, and
     // those fields are part of its validator.
@@ -78,12 +75,14 @@ export function datasetRoutes({ db, registry }: AppContext): Router {
     res.json(await publicVersions.versionDetail(db, v));
   });
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/datasets/{slug}/versions/{semver}/schema",
+    operationId: "getVersionSchema",
     tags: ["Datasets"],
     summary: "The version's data dictionary: a Frictionless Table Schema per resource",
-    request: { params: versionPathParams },
+    params: versionPathParams,
+    query: noQuery,
     responses: {
       200: {
         description: "Table Schemas by resource",
@@ -92,10 +91,7 @@ export function datasetRoutes({ db, registry }: AppContext): Router {
       },
       ...readResponses,
     },
-  });
-  router.get("/datasets/:slug/versions/:semver/schema", async (req, res) => {
-    const { slug, semver } = parseParams(versionPathParams, req);
-    parseQuery(noQuery, req);
+  }, async ({ params: { slug, semver } }, req, res) => {
     const v = await publicVersions.pathVersion(db, slug, semver);
     if (cacheable(req, res, strongEtag(["schema", v.versionId]), v.pinned ? "pinned" : "moving")) return;
     res.json(v.row.tableSchema);

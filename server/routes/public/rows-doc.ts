@@ -1,5 +1,5 @@
-import type { RouteConfig } from "@asteasolutions/zod-to-openapi";
 import { z } from "zod";
+import type { Responses } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 
 export const datasetPathParams = z.object({ slug: z.string().min(1).max(120).describe("Dataset slug") });
@@ -29,11 +29,22 @@ export const readResponses = {
   ...problemResponses(400, 404, 429),
 };
 
-/** The OpenAPI description of a rows endpoint: a JSON page (cursor paging) or the whole CSV stream. */
-export function rowsRoute(o: { path: string; summary: string; description?: string; tag: string; query: z.ZodObject; params?: z.ZodObject; page: z.ZodType; gone?: boolean }): RouteConfig {
+/** The definition of a rows endpoint (for defineRoute): a JSON page (cursor paging) or the whole CSV stream. */
+export function rowsRoute<Q extends z.ZodObject, P extends z.ZodObject | undefined = undefined>(o: {
+  path: `/api/v1/${string}`;
+  operationId: string;
+  summary: string;
+  description?: string;
+  tag: string;
+  query: Q;
+  params?: P;
+  page: z.ZodType;
+  gone?: boolean;
+}) {
   return {
-    method: "get",
+    method: "get" as const,
     path: o.path,
+    operationId: o.operationId,
     tags: [o.tag],
     summary: o.summary,
     description:
@@ -41,11 +52,12 @@ export function rowsRoute(o: { path: string; summary: string; description?: stri
       "JSON pages of `limit` rows (cursor paging: follow `nextPageToken` or the Link rel=next header). " +
       "CSV (`format=csv` or `Accept: text/csv`) streams every matching row in one answer, with " +
       '`Link: <…/schema>; rel="describedby"`; text cells that start with = + - @ are prefixed with \' so spreadsheets read them as text.',
-    request: { query: o.query, ...(o.params ? { params: o.params } : {}) },
-    responses: {
+    query: o.query,
+    params: o.params,
+    responses: <Responses>{
       200: {
         description: "One page of rows (JSON) or all rows (CSV)",
-        headers: { ...cachingHeaders, Link: { description: 'rel="next" (JSON) or rel="describedby" (CSV)', schema: { type: "string" } } },
+        headers: { ...cachingHeaders, Link: { description: 'rel="next" (JSON) or rel="describedby" (CSV)', schema: { type: "string" as const } } },
         content: { "application/json": { schema: o.page }, "text/csv": { schema: z.string() } },
       },
       ...readResponses,
