@@ -1,22 +1,23 @@
 import { sql } from "drizzle-orm";
-import { Router } from "express";
+import type { Router } from "express";
 import { health, type Health } from "@/schemas/dataset";
 import type { AppContext } from "@/server/context";
+import { routeModule } from "@/server/openapi/define-route";
 
 export function healthRoutes({ db, database, registry, config }: AppContext): Router {
-  const router = Router();
+  const { router, defineRoute } = routeModule(registry);
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/health",
+    operationId: "getHealth",
     tags: ["Service"],
     summary: "Database connectivity and the application version",
     responses: {
       200: { description: "Healthy", content: { "application/json": { schema: health } } },
       503: { description: "The database does not answer", content: { "application/json": { schema: health } } },
     },
-  });
-  router.get("/health", async (_req, res) => {
+  }, async (_input, _req, res) => {
     const started = performance.now();
     let connected = true;
     try {

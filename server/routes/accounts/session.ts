@@ -1,29 +1,29 @@
-import { Router } from "express";
+import type { Router } from "express";
 import { me, signInBody } from "@/schemas/account";
 import type { AppContext } from "@/server/context";
 import { unauthorized } from "@/server/errors";
+import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { verifyPassword } from "@/server/auth/passwords";
 import { createSession, endSession, sessionCookieName, sessionLifetimeMs } from "@/server/auth/sessions";
-import { currentUser } from "@/server/auth/guards";
+import { currentUser, requireUser } from "@/server/auth/guards";
 import type { AuthLimiters } from "@/server/auth/rate-limits";
 import { findUserByEmail, meOf } from "@/server/services/users";
-import { parseBody } from "@/server/validate";
 
 /** Sign-in, sign-out and "who am I" for the web app's cookie session. */
 export function sessionRoutes({ db, registry, config }: AppContext, limiters: AuthLimiters): Router {
-  const router = Router();
+  const { router, defineRoute } = routeModule(registry);
 
-  registry.registerPath({
+  defineRoute({
     method: "post",
     path: "/api/v1/session",
+    operationId: "signIn",
     tags: ["Accounts"],
     summary: "Sign in with e-mail and password; sets the httpOnly session cookie",
-    request: { body: { content: { "application/json": { schema: signInBody } } } },
+    guards: limiters.signIn,
+    body: { json: signInBody },
     responses: { 200: { description: "Signed in", content: { "application/json": { schema: me } } }, ...problemResponses(400, 401, 429) },
-  });
-  router.post("/session", ...limiters.signIn, async (req, res) => {
-    const body = parseBody(signInBody, req);
+  }, async ({ body }, _req, res) => {
     const user = await findUserByEmail(db, body.email);
     const ok = await verifyPassword(body.password, user?.passwordHash);
     if (!user || !ok || user.disabledAt) throw unauthorized("The e-mail or the password is wrong.");
@@ -39,28 +39,28 @@ export function sessionRoutes({ db, registry, config }: AppContext, limiters: Au
     res.json(await meOf(db, user.id));
   });
 
-  registry.registerPath({
+  defineRoute({
     method: "get",
     path: "/api/v1/session",
+    operationId: "getSession",
     tags: ["Accounts"],
     summary: "The signed-in user",
-    security: [{ sessionCookie: [] }, { bearerToken: [] }],
+    guards: [requireUser],
     responses: { 200: { description: "The signed-in user", content: { "application/json": { schema: me } } }, ...problemResponses(401) },
-  });
-  router.get("/session", async (req, res) => {
+  }, async (_input, req, res) => {
     res.set("Cache-Control", "private, no-store");
     const user = currentUser(req);
     res.json(await meOf(db, user.id));
   });
 
-  registry.registerPath({
+  defineRoute({
     method: "delete",
     path: "/api/v1/session",
+    operationId: "signOut",
     tags: ["Accounts"],
     summary: "Sign out",
     responses: { 204: { description: "Signed out" } },
-  });
-  router.delete("/session", async (req, res) => {
+  }, async (_input, req, res) => {
     const secret = (req.cookies as Record<string, string> | undefined)?.[sessionCookieName];
     if (secret) await endSession(db, secret);
     res.clearCookie(sessionCookieName, { path: "/" });
