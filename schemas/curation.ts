@@ -2,6 +2,7 @@ import { z } from "zod";
 import { contributor } from "./dataset-metadata";
 import { datasetSummary, versionState } from "./dataset";
 import { crops } from "./filters";
+import { problemLocation } from "./problem";
 import { resourceName, tableSchemaDescriptor } from "./table-schema";
 
 /** Contracts of the curation side: datasets, draft versions, uploads and their reports, review, diffs. */
@@ -250,6 +251,25 @@ export const uploadResult = z
   })
   .meta({ id: "UploadResult" });
 export type UploadResult = z.infer<typeof uploadResult>;
+
+/**
+ * A rejected upload (422, application/problem+json): `errors` lists the located problems (file, row, column, value),
+ * the counts are `errorCount` and `warningCount`, and the rest is the upload result. Nothing was stored.
+ */
+export const uploadRejection = z
+  .object({
+    type: z.string(),
+    title: z.string(),
+    status: z.literal(422),
+    detail: z.string(),
+    instance: z.string(),
+    errors: z.array(problemLocation).describe("The errors among the first 200 problems, located by file, row, column and value"),
+    errorCount: z.number().int(),
+    warningCount: z.number().int(),
+    ...uploadResult.omit({ errors: true, warnings: true }).shape,
+  })
+  .meta({ id: "UploadRejection" });
+export type UploadRejection = z.infer<typeof uploadRejection>;
 
 export const submitBody = z.object({ changelog: z.string().trim().min(3).max(20_000) }).strict().meta({ id: "SubmitVersion" });
 export const returnBody = z.object({ comment: z.string().trim().min(3).max(5000) }).strict().meta({ id: "ReturnVersion" });

@@ -1,30 +1,28 @@
-import { Router } from "express";
+import type { Router } from "express";
 import { z } from "zod";
 import { semver } from "@/schemas/curation";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
+import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { buildResource, dataPackageDescriptor, dataPackageZip, publishedVersion } from "@/server/services/curation/data-package";
 import { resourceOrder } from "@/server/services/curation/resource-csv";
-import { parseParams } from "@/server/validate";
 
 const versionParams = z.object({ slug: z.string().min(1).max(120), semver: z.union([semver, z.literal("latest")]) });
-const resourceParams = versionParams.extend({ resource: z.string().regex(/^[a-z_]+$/, "a resource name") });
+const resourceParams = versionParams.extend({ resource: resourceName });
 const immutable = "public, max-age=31536000, immutable";
 
 export function curationExportRoutes(ctx: AppContext): Router {
   const { db, registry, config } = ctx;
-  const router = Router();
+  const { router, defineRoute } = routeModule(registry);
   const base = (slug: string, v: string) => `/api/v1/datasets/${slug}/versions/${v}`;
 
-  registry.registerPath({
-    method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.zip", tags: ["Downloads"],
+  defineRoute({
+    method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.zip", operationId: "getDataPackageZip", tags: ["Downloads"],
     summary: "A published version as a Frictionless Data Package (datapackage.json + one CSV per resource); `latest` works as semver",
-    request: { params: versionParams },
+    params: versionParams,
     responses: { 200: { description: "The zip", content: { "application/zip": { schema: z.string() } } }, 410: { description: "Withdrawn (tombstone)" }, ...problemResponses(404) },
-  });
-  router.get("/datasets/:slug/versions/:semver/datapackage.zip", async (req, res) => {
-    const { slug, semver: v } = parseParams(versionParams, req);
+  }, async ({ params: { slug, semver: v } }, req, res) => {
     const { dataset, version } = await publishedVersion(db, slug, v);
     const etag = `"${version.checksum?.replace("sha256:", "") ?? version.id}-zip"`;
     res.set({ ETag: etag, "Cache-Control": v === "latest" ? "public, max-age=60" : immutable });
@@ -34,29 +32,24 @@ export function curationExportRoutes(ctx: AppContext): Router {
     stream.pipe(res);
   });
 
-  registry.registerPath({
-    method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.json", tags: ["Downloads"],
+  defineRoute({
+    method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.json", operationId: "getDataPackageDescriptor", tags: ["Downloads"],
     summary: "The Data Package descriptor of a published version (schemas, hashes, sizes)",
-    request: { params: versionParams },
+    params: versionParams,
     responses: { 200: { description: "datapackage.json", content: { "application/json": { schema: z.record(z.string(), z.unknown()) } } }, ...problemResponses(404) },
-  });
-  router.get("/datasets/:slug/versions/:semver/datapackage.json", async (req, res) => {
-    const { slug, semver: v } = parseParams(versionParams, req);
+  }, async ({ params: { slug, semver: v } }, _req, res) => {
     const { dataset, version } = await publishedVersion(db, slug, v);
     const built = [];
     for (const r of resourceOrder) built.push(await buildResource(db, version, r));
     res.set("Cache-Control", v === "latest" ? "public, max-age=60" : immutable).json(dataPackageDescriptor(config.publicUrl, dataset, version, built));
   });
 
-  registry.registerPath({
-    method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/resources/{resource}.csv", tags: ["Downloads"],
+  defineRoute({
+    method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/resources/{resource}.csv", operationId: "getResourceCsv", tags: ["Downloads"],
     summary: "One resource of a published version as CSV, with `Digest: sha-256=…`, a strong ETag and a describedby link to datapackage.json",
-    request: { params: versionParams.extend({ resource: resourceName }) },
+    params: resourceParams,
     responses: { 200: { description: "The CSV", content: { "text/csv": { schema: z.string() } } }, 304: { description: "Not modified" }, 410: { description: "Withdrawn" }, ...problemResponses(404) },
-  });
-  router.get("/datasets/:slug/versions/:semver/resources/:resource.csv", async (req, res) => {
-    const { slug, semver: v, resource: file } = parseParams(resourceParams, req);
-    const resource = parseParams(z.object({ resource: resourceName }), { params: { resource: file } } as never).resource;
+  }, async ({ params: { slug, semver: v, resource } }, req, res) => {
     const { dataset, version } = await publishedVersion(db, slug, v);
     const built = await buildResource(db, version, resource);
     const etag = `"${built.sha256}"`;

@@ -1,19 +1,18 @@
 import busboy from "busboy";
-import type { Request } from "express";
-import { Router } from "express";
+import type { Request, Router } from "express";
 import type { Readable } from "node:stream";
 import { z } from "zod";
-import { uploadOptions, uploadResult, type UploadOptions } from "@/schemas/curation";
+import { uploadOptions, uploadRejection, uploadResult, type UploadOptions } from "@/schemas/curation";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
 import { currentUser, requireWriteScope } from "@/server/auth/guards";
 import { HttpProblem, zodProblems } from "@/server/errors";
+import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { assertCanEdit, versionById } from "@/server/services/curation/access";
 import { tooLarge } from "@/server/services/ingest/csv-stream";
 import { ingestUpload } from "@/server/services/ingest/ingest-upload";
-import { parseParams } from "@/server/validate";
-import { json, security } from "./docs";
+import { json } from "./docs";
 
 const params = z.object({ id: z.uuid(), resource: resourceName });
 const optionQuery = z
@@ -66,11 +65,12 @@ function multipartFile(req: Request, limitBytes: number): Promise<{ stream: Read
 
 export function curationUploadRoutes(ctx: AppContext): Router {
   const { db, registry, config } = ctx;
-  const router = Router();
+  const { router, defineRoute } = routeModule(registry);
 
-  registry.registerPath({
+  defineRoute({
     method: "post",
     path: "/api/v1/curation/versions/{id}/uploads/{resource}",
+    operationId: "uploadResource",
     tags: ["Curation"],
     summary: "Upload one resource's CSV into a draft; stored only if the whole file validates",
     description:
@@ -79,22 +79,16 @@ export function curationUploadRoutes(ctx: AppContext): Router {
       "Problems name the file, the row (1-based data row; the header is not counted, so a spreadsheet's line is row + 1), " +
       "the column and the value. A rejected file is answered 422 with the same problems and changes nothing in the draft. " +
       `Files over the upload limit (PLOTBANK_UPLOAD_LIMIT_MB, default 200 MB) get 413.`,
-    security,
-    request: {
-      params,
-      query: optionQuery,
-      body: { content: { "text/csv": { schema: z.string() }, "multipart/form-data": { schema: z.object({ mapping: z.string().optional(), units: z.string().optional(), mode: z.string().optional(), file: z.string() }) } } },
-    },
+    guards: [requireWriteScope],
+    params,
+    query: optionQuery,
+    body: { stream: { "text/csv": { schema: z.string() }, "multipart/form-data": { schema: z.object({ mapping: z.string().optional(), units: z.string().optional(), mode: z.string().optional(), file: z.string() }) } } },
     responses: {
       201: json(uploadResult, "Accepted and stored; responses recomputed"),
-      422: { description: "Rejected: problem+json with `errors` (located problems), `problems`, `reportId` and the file's sha256", content: { "application/problem+json": { schema: uploadResult } } },
+      422: { description: "Rejected: problem+json with `errors` (located problems), `problems`, `reportId` and the file's sha256", content: { "application/problem+json": { schema: uploadRejection } } },
       ...problemResponses(400, 401, 403, 404, 409, 413),
     },
-  });
-  router.post("/curation/versions/:id/uploads/:resource", requireWriteScope, async (req, res) => {
-    const { id, resource } = parseParams(params, req);
-    const query = optionQuery.safeParse(req.query);
-    if (!query.success) throw new HttpProblem(400, "Bad request", "A query parameter is not valid.", { errors: zodProblems(query.error, "query") });
+  }, async ({ params: { id, resource }, query }, req, res) => {
     const user = currentUser(req);
     const { dataset } = await versionById(db, id);
     await assertCanEdit(db, user, dataset);
@@ -106,19 +100,19 @@ export function curationUploadRoutes(ctx: AppContext): Router {
       throw tooLarge(config.uploadLimitBytes);
     }
     let source: Readable = req;
-    let filename = query.data.filename ?? `${resource}.csv`;
+    let filename = query.filename ?? `${resource}.csv`;
     let options: UploadOptions;
     if (multipart) {
       const part = await multipartFile(req, config.uploadLimitBytes);
       source = part.stream;
       filename = part.filename;
-      options = parseOptions({ ...query.data, ...part.fields }, "body");
+      options = parseOptions({ ...query, ...part.fields }, "body");
     } else {
       if (!req.is(["text/csv", "text/plain", "application/octet-stream"])) {
         req.resume();
         throw new HttpProblem(415, "Unsupported media type", "Send the CSV as multipart/form-data (field `file`) or as a text/csv body.");
       }
-      options = parseOptions(query.data, "query");
+      options = parseOptions(query, "query");
     }
     let result;
     try {
@@ -136,12 +130,7 @@ export function curationUploadRoutes(ctx: AppContext): Router {
     const located = result.problems.filter((p) => p.severity === "error").map((p) => ({
       file: p.file, row: p.row ?? undefined, column: p.column ?? undefined, value: p.value ?? undefined, message: p.message,
     }));
-    res.status(422).type("application/problem+json").json({
-      type: "about:blank",
-      title: "Unprocessable content",
-      status: 422,
-      detail: `${filename}: ${errors} error(s) and ${warnings} warning(s); nothing was stored. See report ${result.reportId}.`,
-      instance: req.originalUrl,
+    throw new HttpProblem(422, "Unprocessable content", `${filename}: ${errors} error(s) and ${warnings} warning(s); nothing was stored. See report ${result.reportId}.`, {
       errors: located,
       errorCount: errors,
       warningCount: warnings,

@@ -1,10 +1,11 @@
-import { Router } from "express";
+import type { Router } from "express";
 import { z } from "zod";
 import {
   approveBody, diffQuery, reportQuery, returnBody, reviewQueue, submitBody, tableSchemaUpdate, validationReport, versionDetail, versionDiff, versionPatch, withdrawBody,
 } from "@/schemas/curation";
 import type { AppContext } from "@/server/context";
 import { currentUser, requireRole, requireUser, requireWriteScope } from "@/server/auth/guards";
+import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { assertCanView, versionById } from "@/server/services/curation/access";
 import { diffVersions } from "@/server/services/curation/diff";
@@ -12,64 +13,58 @@ import { getReport, reportCsv } from "@/server/services/curation/reports";
 import { approveVersion, returnVersion, reviewQueue as listQueue, submitVersion, withdrawVersion } from "@/server/services/curation/review";
 import { requeueVersionDoi } from "@/server/services/curation/version-doi";
 import { patchVersion, putTableSchema, versionDetail as describe } from "@/server/services/curation/versions";
-import { parseBody, parseParams, parseQuery } from "@/server/validate";
-import { json, security } from "./docs";
+import { json } from "./docs";
 
 const idParams = z.object({ id: z.uuid() });
-const reportParams = z.object({ id: z.uuid(), report: z.string().regex(/^[0-9a-f-]{36}(\.csv)?$/i) });
+const reportParams = z.object({ id: z.uuid(), report: z.string().regex(/^[0-9a-f-]{36}(\.csv)?$/i).describe("The report id; end it with .csv for CSV") });
 
 export function curationVersionRoutes(ctx: AppContext): Router {
   const { db, registry } = ctx;
-  const router = Router();
+  const { router, defineRoute } = routeModule(registry);
 
-  registry.registerPath({
-    method: "get", path: "/api/v1/curation/versions/{id}", tags: ["Curation"],
-    summary: "A version with counts, uploads, reports and the suggested bump; drafts only for their editors and reviewers", security,
-    request: { params: idParams },
+  defineRoute({
+    method: "get", path: "/api/v1/curation/versions/{id}", operationId: "getCurationVersion", tags: ["Curation"],
+    summary: "A version with counts, uploads, reports and the suggested bump; drafts only for their editors and reviewers",
+    params: idParams,
     responses: { 200: json(versionDetail, "The version"), ...problemResponses(404) },
-  });
-  router.get("/curation/versions/:id", async (req, res) => {
-    const { id } = parseParams(idParams, req);
+  }, async ({ params: { id } }, req, res) => {
     const { version, dataset } = await versionById(db, id);
     await assertCanView(db, req.user, dataset, version);
     res.json(await describe(ctx, req.user, id));
   });
 
-  registry.registerPath({
-    method: "patch", path: "/api/v1/curation/versions/{id}", tags: ["Curation"], summary: "Change a draft's semantic version or changelog", security,
-    request: { params: idParams, body: { content: { "application/json": { schema: versionPatch } } } },
+  defineRoute({
+    method: "patch", path: "/api/v1/curation/versions/{id}", operationId: "updateVersion", tags: ["Curation"], summary: "Change a draft's semantic version or changelog",
+    guards: [requireWriteScope],
+    params: idParams,
+    body: { json: versionPatch },
     responses: { 200: json(versionDetail, "The draft"), ...problemResponses(400, 401, 403, 404, 409) },
-  });
-  router.patch("/curation/versions/:id", requireWriteScope, async (req, res) => {
-    const { id } = parseParams(idParams, req);
-    const body = parseBody(versionPatch, req);
+  }, async ({ params: { id }, body }, req, res) => {
     await patchVersion(db, currentUser(req), id, body);
     res.json(await describe(ctx, req.user, id));
   });
 
-  registry.registerPath({
-    method: "put", path: "/api/v1/curation/versions/{id}/table-schema", tags: ["Curation"], summary: "Replace a draft's data dictionary (Table Schema per resource)", security,
-    request: { params: idParams, body: { content: { "application/json": { schema: tableSchemaUpdate } } } },
+  defineRoute({
+    method: "put", path: "/api/v1/curation/versions/{id}/table-schema", operationId: "replaceTableSchema", tags: ["Curation"], summary: "Replace a draft's data dictionary (Table Schema per resource)",
+    guards: [requireWriteScope],
+    params: idParams,
+    body: { json: tableSchemaUpdate },
     responses: { 200: json(versionDetail, "The draft"), ...problemResponses(400, 401, 403, 404, 409) },
-  });
-  router.put("/curation/versions/:id/table-schema", requireWriteScope, async (req, res) => {
-    const { id } = parseParams(idParams, req);
-    const body = parseBody(tableSchemaUpdate, req);
+  }, async ({ params: { id }, body }, req, res) => {
     await putTableSchema(db, currentUser(req), id, body);
     res.json(await describe(ctx, req.user, id));
   });
 
-  registry.registerPath({
-    method: "get", path: "/api/v1/curation/versions/{id}/reports/{report}", tags: ["Curation"],
-    summary: "A validation report, filterable; end the id with .csv for the whole (filtered) report as CSV", security,
-    request: { params: z.object({ id: z.uuid(), report: z.string().describe("The report id; end it with .csv for CSV") }), query: reportQuery },
+  defineRoute({
+    method: "get", path: "/api/v1/curation/versions/{id}/reports/{report}", operationId: "getValidationReport", tags: ["Curation"],
+    summary: "A validation report, filterable; end the id with .csv for the whole (filtered) report as CSV",
+    guards: [requireUser],
+    params: reportParams,
+    query: reportQuery,
     responses: { 200: { description: "The report", content: { "application/json": { schema: validationReport }, "text/csv": { schema: z.string() } } }, ...problemResponses(400, 404) },
-  });
-  router.get("/curation/versions/:id/reports/:report", requireUser, async (req, res) => {
-    const { id, report } = parseParams(reportParams, req);
+  }, async ({ params: { id, report }, query: filter }, req, res) => {
     const { version, dataset } = await versionById(db, id);
     await assertCanView(db, req.user, dataset, version);
-    const filter = parseQuery(reportQuery, req);
     if (report.endsWith(".csv")) {
       const reportId = report.slice(0, -4);
       res.type("text/csv; charset=utf-8").attachment(`validation-report-${reportId}.csv`).send(await reportCsv(db, id, reportId, filter));
@@ -78,75 +73,68 @@ export function curationVersionRoutes(ctx: AppContext): Router {
     res.json(await getReport(db, id, report, filter));
   });
 
-  registry.registerPath({
-    method: "post", path: "/api/v1/curation/versions/{id}/submit", tags: ["Review"], summary: "Submit a draft for review (changelog entry required)", security,
-    request: { params: idParams, body: { content: { "application/json": { schema: submitBody } } } },
+  defineRoute({
+    method: "post", path: "/api/v1/curation/versions/{id}/submit", operationId: "submitVersion", tags: ["Review"], summary: "Submit a draft for review (changelog entry required)",
+    guards: [requireWriteScope],
+    params: idParams,
+    body: { json: submitBody },
     responses: { 200: json(versionDetail, "The version, now in review"), ...problemResponses(400, 401, 403, 404, 409) },
-  });
-  router.post("/curation/versions/:id/submit", requireWriteScope, async (req, res) => {
-    const { id } = parseParams(idParams, req);
-    const { changelog } = parseBody(submitBody, req);
+  }, async ({ params: { id }, body: { changelog } }, req, res) => {
     await submitVersion(ctx, currentUser(req), id, changelog);
     res.json(await describe(ctx, req.user, id));
   });
 
-  registry.registerPath({
-    method: "post", path: "/api/v1/curation/versions/{id}/approve", tags: ["Review"],
-    summary: "Publish a version in review (reviewer; not one you created or submitted)", security,
-    request: { params: idParams, body: { content: { "application/json": { schema: approveBody } } } },
+  defineRoute({
+    method: "post", path: "/api/v1/curation/versions/{id}/approve", operationId: "approveVersion", tags: ["Review"],
+    summary: "Publish a version in review (reviewer; not one you created or submitted)",
+    guards: [requireWriteScope, requireRole("reviewer")],
+    params: idParams,
+    body: { json: approveBody },
     responses: { 200: json(versionDetail, "The published version"), ...problemResponses(400, 401, 403, 404, 409) },
-  });
-  router.post("/curation/versions/:id/approve", requireWriteScope, requireRole("reviewer"), async (req, res) => {
-    const { id } = parseParams(idParams, req);
-    const { comment } = parseBody(approveBody, req);
+  }, async ({ params: { id }, body: { comment } }, req, res) => {
     await approveVersion(ctx, currentUser(req), id, comment);
     res.json(await describe(ctx, req.user, id));
   });
 
-  registry.registerPath({
-    method: "post", path: "/api/v1/curation/versions/{id}/return", tags: ["Review"], summary: "Return a version in review to draft, with a comment (reviewer)", security,
-    request: { params: idParams, body: { content: { "application/json": { schema: returnBody } } } },
+  defineRoute({
+    method: "post", path: "/api/v1/curation/versions/{id}/return", operationId: "returnVersion", tags: ["Review"], summary: "Return a version in review to draft, with a comment (reviewer)",
+    guards: [requireWriteScope, requireRole("reviewer")],
+    params: idParams,
+    body: { json: returnBody },
     responses: { 200: json(versionDetail, "The version, a draft again"), ...problemResponses(400, 401, 403, 404, 409) },
-  });
-  router.post("/curation/versions/:id/return", requireWriteScope, requireRole("reviewer"), async (req, res) => {
-    const { id } = parseParams(idParams, req);
-    const { comment } = parseBody(returnBody, req);
+  }, async ({ params: { id }, body: { comment } }, req, res) => {
     await returnVersion(ctx, currentUser(req), id, comment);
     res.json(await describe(ctx, req.user, id));
   });
 
-  registry.registerPath({
-    method: "post", path: "/api/v1/curation/versions/{id}/withdraw", tags: ["Review"],
-    summary: "Withdraw a published version, with a reason; a tombstone keeps its metadata (reviewer, dataset editors)", security,
-    request: { params: idParams, body: { content: { "application/json": { schema: withdrawBody } } } },
+  defineRoute({
+    method: "post", path: "/api/v1/curation/versions/{id}/withdraw", operationId: "withdrawVersion", tags: ["Review"],
+    summary: "Withdraw a published version, with a reason; a tombstone keeps its metadata (reviewer, dataset editors)",
+    guards: [requireWriteScope],
+    params: idParams,
+    body: { json: withdrawBody },
     responses: { 200: json(versionDetail, "The withdrawn version (tombstone)"), ...problemResponses(400, 401, 403, 404, 409) },
-  });
-  router.post("/curation/versions/:id/withdraw", requireWriteScope, async (req, res) => {
-    const { id } = parseParams(idParams, req);
-    const { reason } = parseBody(withdrawBody, req);
+  }, async ({ params: { id }, body: { reason } }, req, res) => {
     await withdrawVersion(ctx, currentUser(req), id, reason);
     res.json(await describe(ctx, req.user, id));
   });
 
-  registry.registerPath({
-    method: "post", path: "/api/v1/curation/versions/{id}/doi/requeue", tags: ["Review"],
-    summary: "Send a failed or pending DOI registration again now (reviewer, dataset editors); it runs in the background", security,
-    request: { params: idParams },
+  defineRoute({
+    method: "post", path: "/api/v1/curation/versions/{id}/doi/requeue", operationId: "requeueVersionDoi", tags: ["Review"],
+    summary: "Send a failed or pending DOI registration again now (reviewer, dataset editors); it runs in the background",
+    guards: [requireWriteScope],
+    params: idParams,
     responses: { 202: json(versionDetail, "The version; its DOI registration is pending again"), ...problemResponses(401, 403, 404, 409) },
-  });
-  router.post("/curation/versions/:id/doi/requeue", requireWriteScope, async (req, res) => {
-    const { id } = parseParams(idParams, req);
+  }, async ({ params: { id } }, req, res) => {
     await requeueVersionDoi(ctx, currentUser(req), id);
     res.status(202).json(await describe(ctx, req.user, id));
   });
 
-  registry.registerPath({
-    method: "get", path: "/api/v1/curation/diff", tags: ["Curation"], summary: "What changed between two versions of a dataset, and the suggested semantic-version bump", security,
-    request: { query: diffQuery },
+  defineRoute({
+    method: "get", path: "/api/v1/curation/diff", operationId: "diffVersions", tags: ["Curation"], summary: "What changed between two versions of a dataset, and the suggested semantic-version bump",
+    query: diffQuery,
     responses: { 200: json(versionDiff, "The diff"), ...problemResponses(400, 404) },
-  });
-  router.get("/curation/diff", async (req, res) => {
-    const { from, to } = parseQuery(diffQuery, req);
+  }, async ({ query: { from, to } }, req, res) => {
     for (const id of [from, to]) {
       const { version, dataset } = await versionById(db, id);
       await assertCanView(db, req.user, dataset, version);
@@ -154,11 +142,11 @@ export function curationVersionRoutes(ctx: AppContext): Router {
     res.json(await diffVersions(db, from, to));
   });
 
-  registry.registerPath({
-    method: "get", path: "/api/v1/curation/review-queue", tags: ["Review"], summary: "Versions waiting for review (reviewer)", security,
+  defineRoute({
+    method: "get", path: "/api/v1/curation/review-queue", operationId: "listReviewQueue", tags: ["Review"], summary: "Versions waiting for review (reviewer)",
+    guards: [requireRole("reviewer")],
     responses: { 200: json(reviewQueue, "Oldest submission first"), ...problemResponses(401, 403) },
-  });
-  router.get("/curation/review-queue", requireRole("reviewer"), async (req, res) => {
+  }, async (_input, req, res) => {
     res.json({ items: await listQueue(ctx, currentUser(req)) });
   });
 
