@@ -50,14 +50,10 @@ const definedRoute = Symbol("plotbank.definedRoute");
 /** Whether an Express route handler was made by defineRoute (the authorization matrix refuses any that was not). */
 export const isDefinedRoute = (handle: unknown): boolean => typeof handle === "function" && definedRoute in handle;
 
-const header = (description: string, type: "string" | "integer" = "string") => ({ description, schema: { type } });
-
-/** Set by express-rate-limit on every answer of a limited route (IETF RateLimit header fields). */
-export const rateLimitHeaders = {
-  RateLimit: header('What is left of the caller\'s quota in this window, e.g. `"anonymous";r=59;t=60` (remaining requests, seconds to reset)'),
-  "RateLimit-Policy": header('The quota that applies to the caller, e.g. `"anonymous";q=60;w=60` (requests per window of seconds)'),
-};
-export const retryAfterHeader = { "Retry-After": header("Seconds to wait before trying again", "integer") };
+const headerRef = (name: string) => ({ $ref: `#/components/headers/${name}` });
+/** Set by express-rate-limit on every answer of a limited route; the components are registered with the registry. */
+const rateLimitHeaders = { RateLimit: headerRef("RateLimit"), "RateLimit-Policy": headerRef("RateLimit-Policy") };
+const retryAfterHeader = { "Retry-After": headerRef("Retry-After") };
 
 /** Every response of a rate-limited operation carries the RateLimit headers; its 429 also Retry-After. */
 function withRateLimitHeaders(responses: Responses): Responses {

@@ -16,6 +16,16 @@ export function createRegistry(): OpenAPIRegistry {
     name: "pb_session",
     description: "The web app's sign-in session.",
   });
+  // Rate-limited operations name these on every response (defineRoute adds them); Retry-After comes with a 429.
+  registry.registerComponent("headers", "RateLimit", {
+    description: 'What is left of the caller\'s quota in this window (IETF RateLimit header fields), e.g. `"anonymous"; r=59; t=60`: remaining requests and seconds to the reset',
+    schema: { type: "string" },
+  });
+  registry.registerComponent("headers", "RateLimit-Policy", {
+    description: 'The quota that applies to the caller, e.g. `"anonymous"; q=60; w=60`: requests per window of seconds',
+    schema: { type: "string" },
+  });
+  registry.registerComponent("headers", "Retry-After", { description: "Seconds to wait before trying again", schema: { type: "integer", minimum: 0 } });
   return registry;
 }
 
