@@ -117,6 +117,7 @@ export const doiRegistration = z
   .meta({ id: "DoiRegistration" });
 export type DoiRegistration = z.infer<typeof doiRegistration>;
 
+/** A version as the curation desk sees it (any state, with uploads, reports and rights); public readers get VersionDetail. */
 export const versionDetail = z
   .object({
     id: z.string(),
@@ -153,7 +154,7 @@ export const versionDetail = z
     suggestedSemver: semver.nullable(),
     doiRegistration: doiRegistration.nullable().describe("For the dataset's editors and reviewers once the version is released; null otherwise"),
   })
-  .meta({ id: "VersionDetail" });
+  .meta({ id: "CurationVersionDetail" });
 export type VersionDetail = z.infer<typeof versionDetail>;
 
 export const tableSchemaUpdate = tableSchemaDescriptor;

@@ -33,12 +33,16 @@ export const soilTestClassLabels: Record<(typeof soilTestClasses)[number], strin
 };
 export const tillages = ["no-till", "strip-till", "reduced", "conventional"] as const;
 
-/** A comma-separated or repeated query parameter, parsed into a list of allowed values. */
+/**
+ * A comma-separated or repeated query parameter, parsed into a list of allowed values. OpenAPI cannot see through the
+ * transform, so the list and its allowed values are declared beside it.
+ */
 const listOf = <T extends readonly [string, ...string[]]>(values: T) =>
   z
     .union([z.string(), z.array(z.string())])
     .transform((v) => (Array.isArray(v) ? v : v.split(",")).map((s) => s.trim()).filter(Boolean))
-    .pipe(z.array(z.enum(values)).min(1));
+    .pipe(z.array(z.enum(values)).min(1))
+    .meta({ type: "array", items: { type: "string", enum: [...values] }, param: { style: "form", explode: false } });
 
 const numberParam = z.coerce.number().finite();
 const yearParam = z.coerce.number().int().min(1900).max(2100);
