@@ -17,6 +17,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
 import { apiTokens, datasetEditors, datasets, emailTokens, outbox, sessions, siteYears, sites, users, validationReports, versions } from "@/db/schema";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
+import { isDefinedRoute } from "@/server/openapi/define-route";
 import { createSession, sessionCookieName } from "@/server/auth/sessions";
 import { issueEmailToken } from "@/server/services/accounts/email-tokens";
 import { sitesCsv } from "@/tests/server/curation-fixtures";
@@ -306,12 +307,16 @@ function matches(e: Expectation, status: number) {
   return ![401, 403, 404].includes(status) && status < 500;
 }
 
-type Layer = { route?: { path: unknown; methods: Record<string, boolean> }; handle?: { stack?: Layer[] }; rawPath?: unknown };
+type Layer = { route?: { path: unknown; methods: Record<string, boolean>; stack?: { handle?: unknown }[] }; handle?: { stack?: Layer[] }; rawPath?: unknown };
+
+/** Served by the app itself rather than by an API operation: the document and the page that renders it. */
+const notOperations = new Set(["GET /api/v1/openapi.json", "GET /api/docs"]);
 
 /**
  * Every route registered on the app, as "METHOD /path" with Express's parameter syntax, and every middleware mounted
  * at a path of its own under /api as "USE /path". Whatever the walk cannot name exactly is a problem, not skipped:
  * `router.all()` (which methods does it answer?) and paths that are not plain strings (arrays, regular expressions).
+ * So is an API route that was not made by defineRoute: its security, parsing and documentation would be its own.
  */
 function enumerateRoutes(app: Express): { routes: string[]; problems: string[] } {
   const out: string[] = [];
@@ -327,6 +332,10 @@ function enumerateRoutes(app: Express): { routes: string[]; problems: string[] }
         for (const m of Object.keys(layer.route.methods)) {
           if (m === "_all") problems.push(`${prefix}${path} is registered with router.all(); register each method it answers`);
           else out.push(`${m.toUpperCase()} ${prefix}${path}`);
+          const key = `${m.toUpperCase()} ${prefix}${path}`;
+          if (m !== "_all" && key.includes(" /api/") && !notOperations.has(key) && !layer.route.stack?.some((l) => isDefinedRoute(l.handle))) {
+            problems.push(`${key} is not defined with defineRoute`);
+          }
         }
         continue;
       }
@@ -397,11 +406,12 @@ describe("authorization matrix", () => {
     expect(Object.keys(table).filter((k) => !isPreflightRow(k) && !routes.includes(k)), "rows for routes that do not exist").toEqual([]);
   });
 
-  it("refuses to enumerate router.all() and mounts whose path is not a plain string", () => {
+  it("refuses to enumerate router.all(), mounts whose path is not a plain string, and routes made without defineRoute", () => {
     const sneaky = express();
     const inner = express.Router();
     inner.all("/anything", (_req, res) => res.end());
     inner.get(/^\/regex-route$/, (_req, res) => res.end());
+    inner.get("/by-hand", (_req, res) => res.end());
     sneaky.use("/api/v1", inner);
     sneaky.use(["/api/a", "/api/b"], express.Router().get("/x", (_req, res) => res.end()));
     sneaky.use(/^\/api\/hidden/, (_req, res) => res.end());
@@ -409,6 +419,7 @@ describe("authorization matrix", () => {
     expect(problems).toEqual([
       expect.stringMatching(/^\/api\/v1\/anything is registered with router\.all\(\)/),
       expect.stringMatching(/a route under "\/api\/v1" has a path that is not a plain string/),
+      "GET /api/v1/by-hand is not defined with defineRoute",
       expect.stringMatching(/mounted at a path that is not a plain string: \/api\/a,\/api\/b/),
       expect.stringMatching(/mounted at a path that is not a plain string: \/\^\\\/api\\\/hidden\//),
     ]);
@@ -420,8 +431,7 @@ describe("authorization matrix", () => {
     const shape = (route: string) => route.replace(/\{\w+\}/g, ":p").replace(/:\w+/g, ":p");
     const documented = new Set(Object.entries(doc.paths).flatMap(([path, ops]) => Object.keys(ops).map((m) => shape(`${m.toUpperCase()} ${path}`))));
     // The document itself, the docs page and path mounts are not API operations.
-    const notOperations = (r: string) => r === "GET /api/v1/openapi.json" || r === "GET /api/docs" || r.startsWith("USE ");
-    const undocumented = registeredRoutes(t.app).filter((r) => !notOperations(r) && !documented.has(shape(r)));
+    const undocumented = registeredRoutes(t.app).filter((r) => !notOperations.has(r) && !r.startsWith("USE ") && !documented.has(shape(r)));
     expect(undocumented, "routes missing from the OpenAPI document").toEqual([]);
   });
 
