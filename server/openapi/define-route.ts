@@ -73,7 +73,7 @@ export const expressPath = (openApiPath: string) => openApiPath.slice(apiBase.le
  * One API operation, written once: its OpenAPI description (path, operationId, security from its guards, request
  * parts, responses with their rate-limit headers) is registered, and the same request schemas parse the request
  * before the handler runs, in the order path (404), query (400), body (400). Whatever the handler or a guard throws
- * goes to the problem middleware. Returns the routers' builder: `const { router, defineRoute } = routeModule(registry)`.
+ * goes to the problem middleware. A route file takes `const { router, defineRoute } = routeModule(registry)` and returns the router.
  */
 export function routeModule(registry: Registry) {
   const router = Router();

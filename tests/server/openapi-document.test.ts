@@ -12,7 +12,7 @@ import { z } from "zod";
 import { placements, soilTestClasses } from "@/schemas/filters";
 import { uploadRejection } from "@/schemas/curation";
 import { testApp, type TestApp } from "@/tests/support/test-app";
-import { draftWithData, plotsCsv, upload, type Fixture } from "./curation-fixtures";
+import { draftWithData, plotsCsv, upload } from "./curation-fixtures";
 
 interface Operation {
   operationId?: string;
@@ -27,11 +27,9 @@ interface Document {
 
 let t: TestApp;
 let doc: Document;
-let fixture: Fixture;
 beforeAll(async () => {
   t = await testApp();
   doc = (await request(t.app).get("/api/v1/openapi.json").expect(200)).body as Document;
-  fixture = await draftWithData(t.app, t.ctx, { plots: false });
 });
 afterAll(() => t.close());
 
@@ -164,6 +162,7 @@ describe("the OpenAPI document", () => {
     expect(schema.properties!.errors).toMatchObject({ type: "array", items: { $ref: "#/components/schemas/ProblemLocation" } });
     expect(schema.properties!.errorCount).toMatchObject({ type: "integer" });
 
+    const fixture = await draftWithData(t.app, t.ctx, { plots: false });
     const res = await upload(fixture.curatorAgent, fixture.versionId, "plots", plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,1,CHK,lots,13.1" } }));
     expect(res.status).toBe(422);
     expect(res.headers["content-type"]).toMatch(/^application\/problem\+json/);
@@ -171,5 +170,5 @@ describe("the OpenAPI document", () => {
     expect(body.errors.length).toBeGreaterThan(0);
     expect(body.errors).toContainEqual(expect.objectContaining({ file: "plots.csv", row: 1, column: "yield_kg_ha", value: "lots" }));
     expect(body.errorCount).toBe(body.errors.length);
-  });
+  }, 180_000);
 });
