@@ -8,6 +8,7 @@ import type { AppContext } from "@/server/context";
 import { badRequest, conflict } from "@/server/errors";
 import { compareSemver } from "@/server/services/catalogue";
 import { computeResponses } from "@/server/services/ingest/recompute-responses";
+import { latestPublishedOf } from "@/server/services/latest-version";
 import { assertCanEdit, canEditDataset, isReviewer, versionById, type Dataset, type User, type Version } from "./access";
 import { copyVersionRows } from "./copy-version";
 import { iso } from "./datasets";
@@ -17,7 +18,7 @@ import { doiRegistrationOf } from "./version-doi";
 
 export async function latestPublished(db: Db, datasetId: string): Promise<Version | null> {
   const rows = await db.select().from(versions).where(and(eq(versions.datasetId, datasetId), eq(versions.state, "published")));
-  return rows.sort((a, b) => compareSemver(b.semver, a.semver))[0] ?? null;
+  return latestPublishedOf(rows) ?? null;
 }
 
 /** Any version ever published (withdrawn ones too) blocks its number and every lower one. */
