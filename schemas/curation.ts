@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { doiStatuses } from "@/constants/vocabulary";
 import { contributor } from "./dataset-metadata";
 import { datasetSummary, versionState } from "./dataset";
 import { crops } from "./filters";
@@ -103,7 +104,7 @@ export const reportBrief = z
 
 export const doiRegistration = z
   .object({
-    status: z.enum(["none", "pending", "registered", "failed"]).describe(
+    status: z.enum(doiStatuses).describe(
       "none: nothing to register (no DOI service); pending: waiting for the service (first registration or a metadata update); " +
         "registered; failed: the service refused the metadata",
     ),

@@ -8,12 +8,10 @@ import { useInvitationsQuery, useInviteMutation } from "@/hooks/use-account";
 import { useAccountForm } from "@/hooks/use-account-form";
 import { emailOnlyBody } from "@/schemas/account";
 
-type InvitedRole = "curator" | "reviewer" | "admin";
-const roles: { value: InvitedRole; label: string }[] = [
-  { value: "curator", label: "Curator" },
-  { value: "reviewer", label: "Reviewer" },
-  { value: "admin", label: "Admin" },
-];
+import { roleLabels, staffRoles } from "@/constants/vocabulary";
+
+type InvitedRole = (typeof staffRoles)[number];
+const roles = staffRoles.map((value) => ({ value, label: roleLabels[value] }));
 
 export function InviteForm() {
   const form = useAccountForm(emailOnlyBody, { email: "" });

@@ -6,14 +6,9 @@ import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
 import { useAdminUsersQuery, useChangeRoleMutation } from "@/hooks/use-account";
-import type { Role } from "@/schemas/account";
+import { roleLabels, roles } from "@/constants/vocabulary";
 
-const roleOptions: { value: Role; label: string }[] = [
-  { value: "member", label: "Member" },
-  { value: "curator", label: "Curator" },
-  { value: "reviewer", label: "Reviewer" },
-  { value: "admin", label: "Admin" },
-];
+const roleOptions = roles.map((value) => ({ value, label: roleLabels[value] }));
 
 export function PeopleList() {
   const users = useAdminUsersQuery();

@@ -12,11 +12,11 @@ import { resourceName, type ResourceName } from "@/schemas/table-schema";
 import { CsvFilePicker } from "./csv-file-picker";
 import { readCsvHeader } from "./csv-header";
 import { ChoiceChips } from "./form-fields";
-import { resourceLabels } from "./format";
+import { resourceTitles } from "@/constants/vocabulary";
 import { ProgressBar } from "./progress-bar";
 import { ReportView } from "./report-view";
 
-const resourceOptions = resourceName.options.map((value) => ({ value, label: resourceLabels[value] }));
+const resourceOptions = resourceName.options.map((value) => ({ value, label: resourceTitles[value] }));
 const yieldUnits = [
   { value: "kg/ha", label: "kg/ha" },
   { value: "bu/ac", label: "bu/ac" },
@@ -91,7 +91,7 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
         {header.length ? (
           <Text variant="caption">
             Columns found: {header.join(", ")}
-            {unmatched.length ? ` — ${unmatched.length} not in the ${resourceLabels[resource].toLowerCase()} dictionary` : " — all match the dictionary"}
+            {unmatched.length ? ` — ${unmatched.length} not in the ${resourceTitles[resource].toLowerCase()} dictionary` : " — all match the dictionary"}
           </Text>
         ) : null}
 
@@ -141,7 +141,7 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
           </View>
         ) : null}
 
-        <Button label={`Upload ${resourceLabels[resource].toLowerCase()}`} disabled={!file || upload.isPending} busy={upload.isPending} onPress={start} style={styles.left} />
+        <Button label={`Upload ${resourceTitles[resource].toLowerCase()}`} disabled={!file || upload.isPending} busy={upload.isPending} onPress={start} style={styles.left} />
         {upload.isPending ? <ProgressBar fraction={progress} label={`Uploading ${file?.name ?? "the file"}`} /> : null}
         {upload.isError ? <ErrorState error={upload.error} onRetry={start} /> : null}
       </Card>

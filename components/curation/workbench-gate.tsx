@@ -3,9 +3,10 @@ import { Pressable, StyleSheet } from "react-native";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap } from "@/constants/theme";
+import { staffRoles } from "@/constants/vocabulary";
 import { useSession, type SessionUser } from "@/hooks/use-session";
 
-const workbenchRoles = new Set(["curator", "reviewer", "admin"]);
+const workbenchRoles = new Set<string>(staffRoles);
 
 /** The workbench is for curators, reviewers and admins; everyone else is told why and where to sign in. */
 export function WorkbenchGate({ children }: { children: (user: SessionUser) => React.ReactNode }) {

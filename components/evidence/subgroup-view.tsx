@@ -3,7 +3,7 @@ import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, soilClassColors, space } from "@/constants/theme";
 import { groupings, type Grouping, type MetaAnalysisResponse } from "@/schemas/analysis";
-import { placementLabels, soilTestClassLabels } from "@/schemas/filters";
+import { placementLabels, soilTestClassLabels } from "@/constants/vocabulary";
 import { ChoiceChips } from "./choice-chips";
 import { formatInterval, formatPValue, formatResponse, levelLabel, unitLabel } from "./format";
 

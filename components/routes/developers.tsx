@@ -14,9 +14,10 @@ import { useSession } from "@/hooks/use-session";
 import { useTokenCreateMutation, useTokenList, useTokenRevokeMutation } from "@/hooks/use-tokens";
 import { ApiError } from "@/lib/api-error";
 import { filtersToQuery, trialFilterShape, trialFilters } from "@/schemas/filters";
+import { staffRoles } from "@/constants/vocabulary";
 import type { ApiToken, CreatedToken, TokenScope } from "@/schemas/tokens";
 
-const writeRoles = ["curator", "reviewer", "admin"];
+const writeRoles: readonly string[] = staffRoles;
 
 /** The filters in this page's URL (as the evidence screen links them), keeping only the valid ones. */
 function filtersFromParams(params: Record<string, string | string[] | undefined>): Record<string, string> {
