@@ -9,7 +9,7 @@ import { badRequest, conflict } from "@/server/errors";
 import { compareSemver } from "@/server/services/catalogue";
 import { computeResponses } from "@/server/services/ingest/recompute-responses";
 import { latestPublishedOf } from "@/server/services/latest-version";
-import { assertCanEdit, canEditDataset, isReviewer, versionById, type Dataset, type User, type Version } from "./access";
+import { assertCanEdit, canApprove, canEditDataset, canReturn, canWithdraw, versionById, type Dataset, type User, type Version } from "./access";
 import { copyVersionRows } from "./copy-version";
 import { iso } from "./datasets";
 import { bumpSemver, diffVersions } from "./diff";
@@ -139,7 +139,9 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
       createdAt: r.createdAt.toISOString(),
     })),
     canEdit: canEdit && v.state === "draft",
-    canReview: v.state === "in_review" && isReviewer(user) && user!.id !== v.createdBy && user!.id !== v.submittedBy,
+    canReview: canApprove(user, v),
+    canReturn: canReturn(user, v),
+    canWithdraw: canWithdraw(user, v, canEdit),
     latestPublishedSemver: latest?.semver ?? null,
     suggestedBump,
     suggestedSemver,
