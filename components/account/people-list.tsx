@@ -1,6 +1,6 @@
 import { StyleSheet, View } from "react-native";
 import { Notice } from "@/components/account/notice";
-import { ChoiceChips } from "@/components/curation/form-fields";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
@@ -32,8 +32,7 @@ export function PeopleList() {
             </Text>
             <ChoiceChips
               label={`Role of ${u.displayName}`}
-              compact
-              options={roleOptions}
+              choices={roleOptions}
               selected={[u.role]}
               onToggle={(role) => {
                 if (role !== u.role) change.mutate({ userId: u.id, role });

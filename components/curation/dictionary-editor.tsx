@@ -11,7 +11,8 @@ import { resourceName, tableSchemaDescriptor, tableSchemaFieldType, type Resourc
 import { DataGrid } from "./data-grid";
 import { blankRow, rowsOf, withResourceFields, type DictionaryRow } from "./dictionary-rows";
 import { issuesUnder, serverFieldIssues, zodFieldIssues, type FieldIssues } from "./field-issues";
-import { ChoiceChips, FieldError } from "./form-fields";
+import { ChoiceChips } from "@/components/ui/choice-chips";
+import { FieldError } from "@/components/ui/text-field";
 import { resourceTitles } from "@/constants/vocabulary";
 
 const features = tableFeatures({});
@@ -159,7 +160,7 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
         Each resource is a Frictionless Table Schema: field names, types, units and constraints. Uploads are checked against it before anything is stored.
         {readOnly ? " This version is not an editable draft, so the dictionary is read-only." : ""}
       </Text>
-      <ChoiceChips label="Resource" options={resourceOptions} selected={[resource]} onToggle={setResource} />
+      <ChoiceChips label="Resource" choices={resourceOptions} selected={[resource]} onToggle={setResource} />
       <Text variant="caption">Types: {typeHint}. Allowed values are separated by commas.</Text>
       <DataGrid table={table} widths={widths} label={`${resourceTitles[resource]} data dictionary`} />
       {readOnly ? null : (

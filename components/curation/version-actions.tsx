@@ -8,7 +8,7 @@ import { useUpdateVersionMutation, useVersionActionMutation } from "@/hooks/use-
 import { approveBody, returnBody, semver as semverSchema, submitBody, withdrawBody, type VersionDetail } from "@/schemas/curation";
 import { versionActions, type WorkbenchAction } from "./action-policy";
 import { serverFieldIssues, zodFieldIssues, type FieldIssues } from "./field-issues";
-import { FieldError, TextField } from "./form-fields";
+import { FieldError, TextField } from "@/components/ui/text-field";
 
 const titles: Record<WorkbenchAction, string> = {
   submit: "Submit for review",

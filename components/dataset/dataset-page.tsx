@@ -1,7 +1,7 @@
 import { router } from "expo-router";
 import { StyleSheet, View } from "react-native";
 import { CitationPanel } from "@/components/citation-panel";
-import { ChoiceChips } from "@/components/evidence/choice-chips";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 import { Screen } from "@/components/screen";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";

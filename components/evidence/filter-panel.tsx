@@ -5,7 +5,7 @@ import { space } from "@/constants/theme";
 import { toggleListValue } from "@/lib/share-link";
 import { cropLabels, nutrientLabels, placementLabels, soilTestClassLabels, tillageLabels } from "@/constants/vocabulary";
 import { crops, nutrients, placements, soilTestClasses, tillages, type TrialFilters } from "@/schemas/filters";
-import { ChoiceChips } from "./choice-chips";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 
 type Filters = Partial<TrialFilters>;
 

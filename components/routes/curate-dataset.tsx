@@ -2,7 +2,7 @@ import { useLocalSearchParams, useRouter } from "expo-router";
 import { StyleSheet, View } from "react-native";
 import { canStartVersion } from "@/components/curation/action-policy";
 import { EditorsPanel } from "@/components/curation/editors-panel";
-import { FieldError } from "@/components/curation/form-fields";
+import { FieldError } from "@/components/ui/text-field";
 import { LinkButton } from "@/components/curation/link-button";
 import { VersionTimeline } from "@/components/curation/version-timeline";
 import { WorkbenchGate } from "@/components/curation/workbench-gate";

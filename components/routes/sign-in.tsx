@@ -1,7 +1,7 @@
 import { useLocalSearchParams, useRouter } from "expo-router";
 import { AuthPanel, TextLink } from "@/components/account/auth-panel";
 import { Notice } from "@/components/account/notice";
-import { TextField } from "@/components/curation/form-fields";
+import { TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { useSignInMutation } from "@/hooks/use-account";
 import { useAccountForm } from "@/hooks/use-account-form";
