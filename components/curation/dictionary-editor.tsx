@@ -5,7 +5,7 @@ import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, radius, space } from "@/constants/theme";
-import { useSaveTableSchemaMutation } from "@/hooks/use-curation";
+import { useSaveTableSchemaMutation } from "@/hooks/use-curation-versions";
 import type { VersionDetail } from "@/schemas/curation";
 import { resourceName, tableSchemaDescriptor, tableSchemaFieldType, type ResourceName } from "@/schemas/table-schema";
 import { DataGrid } from "./data-grid";

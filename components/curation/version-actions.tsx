@@ -4,7 +4,7 @@ import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
-import { useUpdateVersionMutation, useVersionActionMutation } from "@/hooks/use-curation";
+import { useUpdateVersionMutation, useVersionActionMutation } from "@/hooks/use-curation-versions";
 import { approveBody, returnBody, semver as semverSchema, submitBody, withdrawBody, type VersionDetail } from "@/schemas/curation";
 import { versionActions, type WorkbenchAction } from "./action-policy";
 import { serverFieldIssues, zodFieldIssues, type FieldIssues } from "./field-issues";

@@ -3,7 +3,7 @@ import { Card } from "@/components/ui/card";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, space } from "@/constants/theme";
-import { useVersionDiff } from "@/hooks/use-curation";
+import { useVersionDiff } from "@/hooks/use-curation-versions";
 import type { VersionDiff } from "@/schemas/curation";
 import type { ResourceName } from "@/schemas/table-schema";
 import { resourceTitles } from "@/constants/vocabulary";

@@ -7,7 +7,7 @@ import { Screen } from "@/components/screen";
 import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { space } from "@/constants/theme";
-import { useCurationDataset } from "@/hooks/use-curation";
+import { useCurationDataset } from "@/hooks/use-curation-datasets";
 
 function Compare({ slug, from, to }: { slug: string; from?: string; to?: string }) {
   const router = useRouter();

@@ -3,7 +3,7 @@ import { DatasetForm } from "@/components/curation/dataset-form";
 import { WorkbenchGate } from "@/components/curation/workbench-gate";
 import { Screen } from "@/components/screen";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
-import { useCurationDataset, useUpdateDatasetMutation } from "@/hooks/use-curation";
+import { useCurationDataset, useUpdateDatasetMutation } from "@/hooks/use-curation-datasets";
 
 export default function DatasetDetailsScreen() {
   const { slug } = useLocalSearchParams<{ slug: string }>();

@@ -12,7 +12,8 @@ import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
-import { useCreateVersionMutation, useCurationDataset } from "@/hooks/use-curation";
+import { useCurationDataset } from "@/hooks/use-curation-datasets";
+import { useCreateVersionMutation } from "@/hooks/use-curation-versions";
 import type { SessionUser } from "@/hooks/use-session";
 
 function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {

@@ -16,7 +16,7 @@ import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
-import { useVersion } from "@/hooks/use-curation";
+import { useVersion } from "@/hooks/use-curation-versions";
 
 type Panel = "overview" | "upload" | "dictionary" | "changes";
 
