@@ -1,8 +1,9 @@
+import type { Href } from "expo-router";
 import type { Role } from "@/schemas/account";
 import { roles, staffRoles } from "./vocabulary";
 
 export interface NavItem {
-  href: string;
+  href: Extract<Href, string>;
   label: string;
   /** Short label for the phone's bottom bar. */
   short: string;

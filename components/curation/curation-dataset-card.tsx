@@ -11,7 +11,7 @@ import { StateBadge } from "./state-badge";
 export function CurationDatasetCard({ dataset }: { dataset: CurationDataset }) {
   const [newest, ...older] = dataset.versions;
   return (
-    <Link href={`/curate/datasets/${dataset.slug}` as never} asChild>
+    <Link href={`/curate/datasets/${dataset.slug}`} asChild>
       <Pressable
         role="link"
         accessibilityLabel={`${dataset.title}${newest ? `, version ${newest.semver} ${versionStateLabels[newest.state]}` : ", no versions yet"}`}

@@ -16,7 +16,7 @@ export function VersionTimeline({ versions }: { versions: VersionBrief[] }) {
       {versions.map((v) => (
         <View key={v.id} role="listitem" style={styles.item}>
           <View style={[styles.dot, v.state === "published" && styles.dotOn, v.state === "withdrawn" && styles.dotOff]} />
-          <Link href={`/curate/versions/${v.id}` as never} asChild>
+          <Link href={`/curate/versions/${v.id}`} asChild>
             <Pressable role="link" accessibilityLabel={`Version ${v.semver}, ${versionStateLabels[v.state]}`} style={styles.body}>
               <View style={styles.head}>
                 <Text variant="subheading">v{v.semver}</Text>

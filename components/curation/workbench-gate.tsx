@@ -21,7 +21,7 @@ export function WorkbenchGate({ children }: { children: (user: SessionUser) => R
         title="Sign in to use the workbench"
         hint="Curators prepare and submit dataset versions here; reviewers approve them."
         action={
-          <Link href={`/sign-in?next=${encodeURIComponent(pathname)}` as never} asChild>
+          <Link href={`/sign-in?next=${encodeURIComponent(pathname)}`} asChild>
             <Pressable role="link" accessibilityLabel="Sign in" style={styles.link}>
               <Text style={styles.linkText}>Sign in</Text>
             </Pressable>

@@ -25,7 +25,7 @@ export default function DatasetDetailsScreen() {
               busy={update.isPending}
               onSubmit={async ({ slug: _slug, ...patch }) => {
                 await update.mutateAsync(patch);
-                router.replace(`/curate/datasets/${slug}` as never);
+                router.replace(`/curate/datasets/${slug}`);
               }}
             />
           )

@@ -51,7 +51,7 @@ function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
             busy={start.isPending}
             onPress={async () => {
               const v = await start.mutateAsync({}).catch(() => null);
-              if (v) router.push(`/curate/versions/${v.id}` as never);
+              if (v) router.push(`/curate/versions/${v.id}`);
             }}
           />
         ) : null}

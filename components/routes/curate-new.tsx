@@ -17,7 +17,7 @@ export default function NewDatasetScreen() {
             busy={create.isPending}
             onSubmit={async (body) => {
               const dataset = await create.mutateAsync(body);
-              router.replace(`/curate/datasets/${dataset.slug}` as never);
+              router.replace(`/curate/datasets/${dataset.slug}`);
             }}
           />
         )}
