@@ -4,19 +4,20 @@ import { colors, fonts, minTap, space } from "@/constants/theme";
 import { navItems, type NavItem } from "@/constants/navigation";
 import { useLayout } from "@/hooks/use-layout";
 import { useSession } from "@/hooks/use-session";
+import type { Role } from "@/schemas/account";
 import { Text } from "./ui/text";
 
-function visibleItems(role: string | undefined, signedIn: boolean): NavItem[] {
+function visibleItems(role: Role | undefined, signedIn: boolean): NavItem[] {
   return navItems.filter((item) => {
     if (item.visitorsOnly && signedIn) return false;
     if (!item.roles) return true;
-    return role === "admin" || (role !== undefined && item.roles.includes(role as never));
+    return role === "admin" || (role !== undefined && item.roles.includes(role));
   });
 }
 
 function NavLink({ item, active, compact }: { item: NavItem; active: boolean; compact: boolean }) {
   return (
-    <Link href={item.href as never} asChild>
+    <Link href={item.href} asChild>
       <Pressable
         role="link"
         accessibilityLabel={item.label}

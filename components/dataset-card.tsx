@@ -8,7 +8,7 @@ import { Text } from "./ui/text";
 export function DatasetCard({ dataset }: { dataset: DatasetSummary }) {
   const years = dataset.yearFrom && dataset.yearTo ? `${dataset.yearFrom}–${dataset.yearTo}` : "no seasons yet";
   return (
-    <Link href={`/datasets/${dataset.slug}` as never} asChild>
+    <Link href={`/datasets/${dataset.slug}`} asChild>
       <Pressable role="link" accessibilityLabel={`${dataset.title}, version ${dataset.latestVersion}`}>
         <Card>
           <Text variant="heading">{dataset.title}</Text>

@@ -1,7 +1,9 @@
+import type { Href } from "expo-router";
 import type { Role } from "@/schemas/account";
+import { roles, staffRoles } from "./vocabulary";
 
 export interface NavItem {
-  href: string;
+  href: Extract<Href, string>;
   label: string;
   /** Short label for the phone's bottom bar. */
   short: string;
@@ -16,9 +18,9 @@ export interface NavItem {
 export const navItems: NavItem[] = [
   { href: "/", label: "Evidence", short: "Evidence", match: (p) => p === "/" },
   { href: "/datasets", label: "Datasets", short: "Datasets", match: (p) => p.startsWith("/datasets") },
-  { href: "/curate", label: "Workbench", short: "Workbench", roles: ["curator", "reviewer", "admin"], match: (p) => p.startsWith("/curate") },
+  { href: "/curate", label: "Workbench", short: "Workbench", roles: [...staffRoles], match: (p) => p.startsWith("/curate") },
   { href: "/admin", label: "Admin", short: "Admin", roles: ["admin"], match: (p) => p.startsWith("/admin") },
-  { href: "/account", label: "Account", short: "Account", roles: ["member", "curator", "reviewer", "admin"], match: (p) => p.startsWith("/account") },
+  { href: "/account", label: "Account", short: "Account", roles: [...roles], match: (p) => p.startsWith("/account") },
   { href: "/developers", label: "Developers", short: "API", match: (p) => p.startsWith("/developers") },
   {
     href: "/sign-in",

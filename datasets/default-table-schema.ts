@@ -1,5 +1,5 @@
 import type { TableSchemaDescriptor, TableSchemaResource } from "@/schemas/table-schema";
-import { crops, placements, soilTestClassLabels, soilTestClasses, tillages, placementLabels } from "@/schemas/filters";
+import { crops, placementLabels, placements, soilTestClassLabels, soilTestClasses, tillages } from "@/constants/vocabulary";
 
 /**
  * The data dictionary a new dataset starts with: one Frictionless Table Schema (v2) per resource, describing the

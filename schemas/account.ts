@@ -1,6 +1,7 @@
 import { z } from "zod";
+import { roles, staffRoles } from "@/constants/vocabulary";
 
-export const role = z.enum(["member", "curator", "reviewer", "admin"]).meta({ id: "Role" });
+export const role = z.enum(roles).meta({ id: "Role" });
 export type Role = z.infer<typeof role>;
 
 /** What the app knows about the signed-in user. Never carries a hash. */
@@ -98,7 +99,7 @@ export type RoleChangeEntry = z.infer<typeof roleChangeEntry>;
 export const roleChangeList = z.object({ items: z.array(roleChangeEntry) }).meta({ id: "RoleChangeList" });
 
 /** Invitations are for the working roles; anyone can become a member by signing up. */
-export const invitableRole = z.enum(["curator", "reviewer", "admin"]).meta({ id: "InvitableRole" });
+export const invitableRole = z.enum(staffRoles).meta({ id: "InvitableRole" });
 export const invitationBody = z.object({ email: emailAddress, role: invitableRole }).strict().meta({ id: "Invitation" });
 export const invitationEntry = z
   .object({ id: z.string(), email: z.string(), role, createdAt: z.string(), expiresAt: z.string() })

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { doiStatuses } from "@/constants/vocabulary";
 import { contributor } from "./dataset-metadata";
 import { datasetSummary, versionState } from "./dataset";
 import { crops } from "./filters";
@@ -104,7 +105,7 @@ export const reportBrief = z
 
 export const doiRegistration = z
   .object({
-    status: z.enum(["none", "pending", "registered", "failed"]).describe(
+    status: z.enum(doiStatuses).describe(
       "none: nothing to register (no DOI service); pending: waiting for the service (first registration or a metadata update); " +
         "registered; failed: the service refused the metadata",
     ),
@@ -148,7 +149,9 @@ export const versionDetail = z
     uploads: z.array(uploadBrief),
     reports: z.array(reportBrief),
     canEdit: z.boolean(),
-    canReview: z.boolean(),
+    canReview: z.boolean().describe("You may approve (publish) this version: it is in review and you neither created nor submitted it"),
+    canReturn: z.boolean().describe("You may return this version to its curators"),
+    canWithdraw: z.boolean().describe("You may withdraw this published version"),
     latestPublishedSemver: z.string().nullable(),
     suggestedBump: z.enum(["major", "minor", "patch"]).nullable().describe("From the diff against the version it is based on"),
     suggestedSemver: semver.nullable(),

@@ -1,7 +1,8 @@
 import { z } from "zod";
+import { versionStates } from "@/constants/vocabulary";
 import { contributor } from "./dataset-metadata";
 
-export const versionState = z.enum(["draft", "in_review", "published", "withdrawn"]).meta({ id: "VersionState" });
+export const versionState = z.enum(versionStates).meta({ id: "VersionState" });
 export type VersionState = z.infer<typeof versionState>;
 
 /** A dataset as the catalogue lists it. */

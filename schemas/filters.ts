@@ -1,37 +1,9 @@
 import { z } from "zod";
 
-export const crops = ["soybean", "corn", "wheat"] as const;
-export const nutrients = ["N", "P", "K", "S"] as const;
-/** Placement terms of the trade, as stored. */
-export const placements = [
-  "in-furrow",
-  "2x2-band",
-  "broadcast",
-  "broadcast-incorporated",
-  "surface-band",
-  "side-dress",
-  "foliar",
-  "deep-band",
-] as const;
-export const placementLabels: Record<(typeof placements)[number], string> = {
-  "in-furrow": "In-furrow (seed-placed)",
-  "2x2-band": "2x2 band",
-  broadcast: "Broadcast",
-  "broadcast-incorporated": "Broadcast, incorporated",
-  "surface-band": "Surface band",
-  "side-dress": "Side-dress",
-  foliar: "Foliar",
-  "deep-band": "Deep band",
-};
-export const soilTestClasses = ["very_low", "low", "optimum", "high", "very_high"] as const;
-export const soilTestClassLabels: Record<(typeof soilTestClasses)[number], string> = {
-  very_low: "Very low",
-  low: "Low",
-  optimum: "Optimum",
-  high: "High",
-  very_high: "Very high",
-};
-export const tillages = ["no-till", "strip-till", "reduced", "conventional"] as const;
+import { crops, nutrients, placements, soilTestClasses, tillages } from "@/constants/vocabulary";
+
+// The filter values are the vocabulary's; their labels live there too.
+export { crops, nutrients, placements, soilTestClasses, tillages };
 
 /**
  * A comma-separated or repeated query parameter, parsed into a list of allowed values. OpenAPI cannot see through the

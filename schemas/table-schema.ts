@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { resourceNames } from "@/constants/vocabulary";
 
 /**
  * Frictionless Table Schema (v2) as Plotbank stores it: each version carries one descriptor per resource, and the
@@ -48,7 +49,7 @@ export const tableSchemaResource = z
   })
   .meta({ id: "TableSchema" });
 
-export const resourceName = z.enum(["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"]);
+export const resourceName = z.enum(resourceNames);
 
 export const tableSchemaDescriptor = z
   .object({

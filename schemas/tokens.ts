@@ -1,6 +1,7 @@
 import { z } from "zod";
+import { tokenScopes } from "@/constants/vocabulary";
 
-export const tokenScope = z.enum(["read", "write"]).meta({ id: "TokenScope" });
+export const tokenScope = z.enum(tokenScopes).meta({ id: "TokenScope" });
 export type TokenScope = z.infer<typeof tokenScope>;
 
 export const maxTokenDays = 365;

@@ -1,8 +1,9 @@
 #!/usr/bin/env bash
-# Every check Plotbank has, in order: types, lint, unit + API tests on PGlite, the web export, browser tests in
+# Every check Plotbank has, in order: the system packages the tests need (installed when missing and allowed), types, lint, unit + API tests on PGlite, the web export, browser tests in
 # Chromium, and the API tests again on a real PostgreSQL server. Ends with one "N passed, N failed" line.
 set -uo pipefail
 cd "$(dirname "$0")/.."
+bash scripts/setup-test-deps.sh || { echo "check: stopped before any test, the packages above are missing"; exit 1; }
 mkdir -p tests/artifacts
 results=tests/artifacts/results
 rm -rf "$results" && mkdir -p "$results"

@@ -5,7 +5,7 @@
  * the probabilities themselves come from the double-precision special functions in
  * `special-functions.ts`, and every quantile is refined by Newton steps on those, so each value
  * agrees with a 50-digit reference (mpmath) to about 1e-13 relative
- * (see tests/stats/distributions.test.ts and /work/shared/checks/distribution_check_values.json).
+ * (see tests/stats/distributions.test.ts and tests/fixtures/reference/distribution_check_values.json).
  */
 import jstat from "jstat";
 import { logBeta, logGamma, regularizedIncompleteBeta, regularizedIncompleteGamma } from "@/stats/special-functions";

@@ -10,7 +10,7 @@ export function AdminGate({ title, subtitle, children }: { title: string; subtit
   const session = useSession();
   if (session.isPending) return <Screen title={title}><LoadingState /></Screen>;
   if (session.isError) return <Screen title={title}><ErrorState error={session.error} onRetry={() => session.refetch()} /></Screen>;
-  if (!session.data) return <Redirect href={"/sign-in?next=/admin" as never} />;
+  if (!session.data) return <Redirect href={"/sign-in?next=/admin"} />;
   if (session.data.role !== "admin") {
     return (
       <Screen title={title}>

@@ -1,4 +1,4 @@
-import { Link } from "expo-router";
+import { Link, type Href } from "expo-router";
 import { Pressable, StyleSheet, View } from "react-native";
 import { Screen } from "@/components/screen";
 import { Card } from "@/components/ui/card";
@@ -16,9 +16,9 @@ export function AuthPanel({ title, subtitle, children, footer }: { title: string
 }
 
 /** A text link with a 44 px target. */
-export function TextLink({ href, label }: { href: string; label: string }) {
+export function TextLink({ href, label }: { href: Href; label: string }) {
   return (
-    <Link href={href as never} asChild>
+    <Link href={href} asChild>
       <Pressable role="link" accessibilityLabel={label} style={styles.link}>
         <Text style={styles.linkText}>{label}</Text>
       </Pressable>

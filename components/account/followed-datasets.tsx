@@ -23,7 +23,7 @@ export function FollowedDatasets() {
       ) : (
         follows.data.items.map((d) => (
           <View key={d.slug} style={styles.row}>
-            <Link href={`/datasets/${d.slug}` as never} asChild>
+            <Link href={`/datasets/${d.slug}`} asChild>
               <Pressable role="link" accessibilityLabel={`${d.title}, version ${d.latestVersion ?? "none"}`} style={styles.title}>
                 <Text variant="subheading" style={{ color: colors.fieldDark }}>{d.title}</Text>
                 <Text variant="caption">{d.latestVersion ? `Latest version ${d.latestVersion}` : "No published version"}</Text>

@@ -1,6 +1,7 @@
 import { useState } from "react";
 import { Notice } from "@/components/account/notice";
-import { ChoiceChips, TextField } from "@/components/curation/form-fields";
+import { ChoiceChips } from "@/components/ui/choice-chips";
+import { TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
@@ -8,12 +9,10 @@ import { useInvitationsQuery, useInviteMutation } from "@/hooks/use-account";
 import { useAccountForm } from "@/hooks/use-account-form";
 import { emailOnlyBody } from "@/schemas/account";
 
-type InvitedRole = "curator" | "reviewer" | "admin";
-const roles: { value: InvitedRole; label: string }[] = [
-  { value: "curator", label: "Curator" },
-  { value: "reviewer", label: "Reviewer" },
-  { value: "admin", label: "Admin" },
-];
+import { roleLabels, staffRoles } from "@/constants/vocabulary";
+
+type InvitedRole = (typeof staffRoles)[number];
+const roles = staffRoles.map((value) => ({ value, label: roleLabels[value] }));
 
 export function InviteForm() {
   const form = useAccountForm(emailOnlyBody, { email: "" });
@@ -31,7 +30,7 @@ export function InviteForm() {
       {invite.isSuccess ? <Notice tone="success">{`Invitation sent to ${invite.data.email}.`}</Notice> : null}
       {form.formError ? <Notice tone="error">{form.formError}</Notice> : null}
       <TextField label="E-mail" value={form.values.email} onChangeText={form.set("email")} error={form.errors.email} autoCapitalize="none" keyboardType="email-address" inputMode="email" />
-      <ChoiceChips label="Role" options={roles} selected={[role]} onToggle={setRole} />
+      <ChoiceChips label="Role" choices={roles} selected={[role]} onToggle={setRole} />
       <Button label="Send invitation" onPress={submit} busy={invite.isPending} />
       {open.data && open.data.items.length > 0 ? (
         <>

@@ -1,19 +1,14 @@
 import { StyleSheet, View } from "react-native";
 import { Notice } from "@/components/account/notice";
-import { ChoiceChips } from "@/components/curation/form-fields";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
 import { useAdminUsersQuery, useChangeRoleMutation } from "@/hooks/use-account";
-import type { Role } from "@/schemas/account";
+import { roleLabels, roles } from "@/constants/vocabulary";
 
-const roleOptions: { value: Role; label: string }[] = [
-  { value: "member", label: "Member" },
-  { value: "curator", label: "Curator" },
-  { value: "reviewer", label: "Reviewer" },
-  { value: "admin", label: "Admin" },
-];
+const roleOptions = roles.map((value) => ({ value, label: roleLabels[value] }));
 
 export function PeopleList() {
   const users = useAdminUsersQuery();
@@ -37,8 +32,7 @@ export function PeopleList() {
             </Text>
             <ChoiceChips
               label={`Role of ${u.displayName}`}
-              compact
-              options={roleOptions}
+              choices={roleOptions}
               selected={[u.role]}
               onToggle={(role) => {
                 if (role !== u.role) change.mutate({ userId: u.id, role });

@@ -1,7 +1,7 @@
 import { useState } from "react";
 import { z } from "zod";
 import { Notice } from "@/components/account/notice";
-import { TextField } from "@/components/curation/form-fields";
+import { TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";

@@ -1,5 +1,5 @@
 import { Notice } from "@/components/account/notice";
-import { TextField } from "@/components/curation/form-fields";
+import { TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { useAccountForm } from "@/hooks/use-account-form";
 import { emailOnlyBody, type CheckEmail } from "@/schemas/account";

@@ -4,7 +4,7 @@ import Svg, { G, Line, Text as SvgText } from "react-native-svg";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, soilClassColors, space } from "@/constants/theme";
 import type { ForestRow } from "@/schemas/analysis";
-import { soilTestClasses, soilTestClassLabels } from "@/schemas/filters";
+import { soilTestClasses, soilTestClassLabels } from "@/constants/vocabulary";
 import { classShapes, Marker } from "./marker";
 import { linearScale, niceDomain } from "./scale";
 

@@ -1,4 +1,5 @@
 import type { Role } from "@/schemas/account";
+import type { VersionDetail } from "@/schemas/curation";
 import type { VersionState } from "@/schemas/dataset";
 
 export type WorkbenchAction = "submit" | "approve" | "return" | "withdraw";
@@ -8,31 +9,19 @@ export interface PolicyUser {
   role: Role;
 }
 
-export interface PolicyVersion {
-  state: VersionState;
-  /** The server's answer: the user may edit this draft. */
-  canEdit: boolean;
-  createdBy: string;
-  submittedBy: string | null;
-}
-
-const reviews = (role: Role) => role === "reviewer" || role === "admin";
+/** The server's answers about what the signed-in user may do with a version. */
+export type PolicyVersion = Pick<VersionDetail, "canEdit" | "canReview" | "canReturn" | "canWithdraw">;
 
 /**
- * Which review-flow buttons a user sees for a version. The server checks every one of these again; this only keeps
- * people from being offered what they may not do. Approving publishes, and nobody approves a version they created
- * or submitted, so a reviewer who curated it does not see the button at all.
+ * Which review-flow buttons a user sees for a version: exactly what the server's answer permits (it decides again on
+ * every request). The client recomputes no rights, so a rule changed on the server changes the buttons too.
  */
-export function versionActions(user: PolicyUser | null | undefined, version: PolicyVersion, datasetCanEdit: boolean): Set<WorkbenchAction> {
+export function versionActions(version: PolicyVersion): Set<WorkbenchAction> {
   const out = new Set<WorkbenchAction>();
-  if (!user) return out;
-  const own = version.createdBy === user.id || version.submittedBy === user.id;
-  if (version.state === "draft" && version.canEdit) out.add("submit");
-  if (version.state === "in_review" && reviews(user.role)) {
-    if (!own) out.add("approve");
-    out.add("return");
-  }
-  if (version.state === "published" && (reviews(user.role) || datasetCanEdit)) out.add("withdraw");
+  if (version.canEdit) out.add("submit");
+  if (version.canReview) out.add("approve");
+  if (version.canReturn) out.add("return");
+  if (version.canWithdraw) out.add("withdraw");
   return out;
 }
 

@@ -3,7 +3,7 @@ import { StyleSheet, View } from "react-native";
 import { Button } from "@/components/ui/button";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
-import type { PickedFile } from "@/hooks/use-curation-upload";
+import type { PickedFile } from "@/lib/upload-client";
 
 /** On a phone, the system document picker; the file is streamed from its local URI when uploaded. */
 export function CsvFilePicker({ file, onPick, label = "Choose CSV file" }: { file: PickedFile | null; onPick: (file: PickedFile | null) => void; label?: string }) {

@@ -3,7 +3,7 @@ import { StyleSheet, View } from "react-native";
 import { Button } from "@/components/ui/button";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
-import type { PickedFile } from "@/hooks/use-curation-upload";
+import type { PickedFile } from "@/lib/upload-client";
 import { formatBytes } from "./format";
 
 /** The browser's own file chooser behind a button of our style; the input stays in the page for keyboard and tests. */

@@ -1,5 +1,5 @@
 import Papa from "papaparse";
-import type { PickedFile } from "@/hooks/use-curation-upload";
+import type { PickedFile } from "@/lib/upload-client";
 
 /** The first 64 KB is plenty for a header line, and keeps a 50 MB file from being read just to map columns. */
 const headBytes = 64 * 1024;

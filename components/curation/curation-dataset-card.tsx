@@ -4,17 +4,17 @@ import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
 import type { CurationDataset } from "@/schemas/curation";
-import { stateLabels } from "./format";
+import { versionStateLabels } from "@/constants/vocabulary";
 import { StateBadge } from "./state-badge";
 
 /** A dataset on the workbench: its newest version's state first, then the rest of its history in one line. */
 export function CurationDatasetCard({ dataset }: { dataset: CurationDataset }) {
   const [newest, ...older] = dataset.versions;
   return (
-    <Link href={`/curate/datasets/${dataset.slug}` as never} asChild>
+    <Link href={`/curate/datasets/${dataset.slug}`} asChild>
       <Pressable
         role="link"
-        accessibilityLabel={`${dataset.title}${newest ? `, version ${newest.semver} ${stateLabels[newest.state]}` : ", no versions yet"}`}
+        accessibilityLabel={`${dataset.title}${newest ? `, version ${newest.semver} ${versionStateLabels[newest.state]}` : ", no versions yet"}`}
       >
         <Card>
           <View style={styles.head}>
@@ -25,8 +25,8 @@ export function CurationDatasetCard({ dataset }: { dataset: CurationDataset }) {
             {dataset.slug} · {dataset.crops.join(", ")} · {dataset.region}
           </Text>
           <Text variant="caption">
-            {newest ? `v${newest.semver} ${stateLabels[newest.state].toLowerCase()}` : "No versions yet"}
-            {older.length ? ` · earlier: ${older.map((v) => `v${v.semver} ${stateLabels[v.state].toLowerCase()}`).join(", ")}` : ""}
+            {newest ? `v${newest.semver} ${versionStateLabels[newest.state].toLowerCase()}` : "No versions yet"}
+            {older.length ? ` · earlier: ${older.map((v) => `v${v.semver} ${versionStateLabels[v.state].toLowerCase()}`).join(", ")}` : ""}
             {dataset.canEdit ? "" : " · view only"}
           </Text>
         </Card>

@@ -9,7 +9,8 @@ import { initialValues, toDatasetBody, type ContributorDraft, type DatasetFormVa
 import { contributor as contributorSchema } from "@/schemas/dataset-metadata";
 import { crops } from "@/schemas/filters";
 import { issuesUnder, serverFieldIssues, zodFieldIssues, type FieldIssues } from "./field-issues";
-import { ChoiceChips, FieldError, TextField } from "./form-fields";
+import { ChoiceChips } from "@/components/ui/choice-chips";
+import { FieldError, TextField } from "@/components/ui/text-field";
 
 const cropOptions = crops.map((value) => ({ value, label: value[0]!.toUpperCase() + value.slice(1) }));
 const roleOptions = contributorSchema.shape.role.options.map((value) => ({ value, label: value.replace(/_/g, " ") }));
@@ -67,7 +68,7 @@ export function DatasetForm({
           autoCapitalize="none"
           hint={editing ? "The address stays fixed once the dataset exists." : "Lower-case words joined by hyphens, e.g. soybean-starter-placement."}
         />
-        <ChoiceChips label="Crops" multiple options={cropOptions} selected={values.crops} error={issues.crops}
+        <ChoiceChips label="Crops" multiple choices={cropOptions} selected={values.crops} error={issues.crops}
           onToggle={(c) => set("crops", values.crops.includes(c) ? values.crops.filter((x) => x !== c) : [...values.crops, c])} />
         <TextField label="Region" value={values.region} onChangeText={(t) => set("region", t)} error={issues.region} hint="Coarse only: a basin, county or region, never a farm." />
         <TextField label="Description" multiline value={values.description} onChangeText={(t) => set("description", t)} error={issues.description} />
@@ -83,7 +84,7 @@ export function DatasetForm({
           return (
             <View key={i} style={styles.contributor} accessibilityLabel={`Contributor ${i + 1}`}>
               <TextField label={`Contributor ${i + 1} name`} value={c.name} onChangeText={(t) => setContributor(i, { name: t })} error={ci.name} />
-              <ChoiceChips label={`Contributor ${i + 1} role`} options={roleOptions} selected={[c.role]} onToggle={(r) => setContributor(i, { role: r })} error={ci.role} />
+              <ChoiceChips label={`Contributor ${i + 1} role`} choices={roleOptions} selected={[c.role]} onToggle={(r) => setContributor(i, { role: r })} error={ci.role} />
               <TextField label={`Contributor ${i + 1} ORCID iD (optional)`} value={c.orcid} placeholder="0000-0000-0000-0000" autoCapitalize="characters" onChangeText={(t) => setContributor(i, { orcid: t })} error={ci.orcid} />
               <TextField label={`Contributor ${i + 1} affiliation (optional)`} value={c.affiliation} onChangeText={(t) => setContributor(i, { affiliation: t })} error={ci.affiliation} />
               <Button label={`Remove contributor ${i + 1}`} tone="quiet" style={styles.left}

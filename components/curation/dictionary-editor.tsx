@@ -5,14 +5,15 @@ import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, radius, space } from "@/constants/theme";
-import { useSaveTableSchemaMutation } from "@/hooks/use-curation";
+import { useSaveTableSchemaMutation } from "@/hooks/use-curation-versions";
 import type { VersionDetail } from "@/schemas/curation";
 import { resourceName, tableSchemaDescriptor, tableSchemaFieldType, type ResourceName } from "@/schemas/table-schema";
 import { DataGrid } from "./data-grid";
 import { blankRow, rowsOf, withResourceFields, type DictionaryRow } from "./dictionary-rows";
 import { issuesUnder, serverFieldIssues, zodFieldIssues, type FieldIssues } from "./field-issues";
-import { ChoiceChips, FieldError } from "./form-fields";
-import { resourceLabels } from "./format";
+import { ChoiceChips } from "@/components/ui/choice-chips";
+import { FieldError } from "@/components/ui/text-field";
+import { resourceTitles } from "@/constants/vocabulary";
 
 const features = tableFeatures({});
 const helper = createColumnHelper<typeof features, DictionaryRow>();
@@ -22,7 +23,7 @@ const issueKey: Record<TextKey, string> = {
   minimum: "constraints.minimum", maximum: "constraints.maximum", enumText: "constraints.enum",
 };
 const widths = { name: 170, type: 110, unit: 100, description: 280, required: 100, minimum: 100, maximum: 100, enumText: 220, remove: 110 };
-const resourceOptions = resourceName.options.map((value) => ({ value, label: resourceLabels[value] }));
+const resourceOptions = resourceName.options.map((value) => ({ value, label: resourceTitles[value] }));
 const typeHint = tableSchemaFieldType.options.join(", ");
 
 function Cell({ value, label, error, readOnly, onChange }: { value: string; label: string; error?: string; readOnly: boolean; onChange: (v: string) => void }) {
@@ -86,7 +87,7 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
         cell: (c) => (
           <Cell
             value={c.getValue()}
-            label={`${resourceLabels[resource]} field ${c.row.original.name || c.row.index + 1}: ${header}`}
+            label={`${resourceTitles[resource]} field ${c.row.original.name || c.row.index + 1}: ${header}`}
             error={rowIssues(c.row.index)[issueKey[key]]}
             readOnly={readOnly}
             onChange={(v) => update(c.row.index, { [key]: v })}
@@ -105,7 +106,7 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
             role="checkbox"
             aria-checked={c.getValue()}
             aria-disabled={readOnly}
-            accessibilityLabel={`${resourceLabels[resource]} field ${c.row.original.name || c.row.index + 1}: required`}
+            accessibilityLabel={`${resourceTitles[resource]} field ${c.row.original.name || c.row.index + 1}: required`}
             disabled={readOnly}
             onPress={() => update(c.row.index, { required: !c.getValue() })}
             style={styles.check}
@@ -159,9 +160,9 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
         Each resource is a Frictionless Table Schema: field names, types, units and constraints. Uploads are checked against it before anything is stored.
         {readOnly ? " This version is not an editable draft, so the dictionary is read-only." : ""}
       </Text>
-      <ChoiceChips label="Resource" options={resourceOptions} selected={[resource]} onToggle={setResource} />
+      <ChoiceChips label="Resource" choices={resourceOptions} selected={[resource]} onToggle={setResource} />
       <Text variant="caption">Types: {typeHint}. Allowed values are separated by commas.</Text>
-      <DataGrid table={table} widths={widths} label={`${resourceLabels[resource]} data dictionary`} />
+      <DataGrid table={table} widths={widths} label={`${resourceTitles[resource]} data dictionary`} />
       {readOnly ? null : (
         <View style={styles.actions}>
           <Button label="Add field" tone="secondary" onPress={() => setRowsByResource((all) => ({ ...all, [resource]: [...rows, blankRow()] }))} />

@@ -4,7 +4,7 @@ import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, space } from "@/constants/theme";
-import { useRequeueDoiMutation, versionQuery } from "@/hooks/use-curation";
+import { useRequeueDoiMutation, versionQuery } from "@/hooks/use-curation-versions";
 import type { DoiRegistration, VersionDetail } from "@/schemas/curation";
 import { serverFieldIssues } from "./field-issues";
 

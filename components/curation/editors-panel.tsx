@@ -1,11 +1,11 @@
 import { useState } from "react";
 import { StyleSheet, View } from "react-native";
-import { FieldError, TextField } from "@/components/curation/form-fields";
+import { FieldError, TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
-import { useAddEditorMutation, useRemoveEditorMutation } from "@/hooks/use-curation";
+import { useAddEditorMutation, useRemoveEditorMutation } from "@/hooks/use-curation-datasets";
 import { ApiError } from "@/lib/api-error";
 import type { CurationDataset } from "@/schemas/curation";
 

@@ -12,13 +12,3 @@ export function formatDay(iso: string | null | undefined): string {
   return d.toLocaleDateString("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
 }
 
-export const stateLabels = { draft: "Draft", in_review: "In review", published: "Published", withdrawn: "Withdrawn" } as const;
-
-export const resourceLabels = {
-  sites: "Sites",
-  site_years: "Site-years",
-  soil_tests: "Soil tests",
-  treatments: "Treatments",
-  plots: "Plots",
-  summaries: "Summaries",
-} as const;

@@ -1,12 +1,12 @@
-import { Link } from "expo-router";
+import { Link, type Href } from "expo-router";
 import { Pressable, StyleSheet } from "react-native";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, radius, space } from "@/constants/theme";
 
 /** A navigation link that looks like a button (a link, for screen readers and middle-click). */
-export function LinkButton({ href, label, tone = "secondary", accessibilityLabel }: { href: string; label: string; tone?: "primary" | "secondary" | "quiet"; accessibilityLabel?: string }) {
+export function LinkButton({ href, label, tone = "secondary", accessibilityLabel }: { href: Href; label: string; tone?: "primary" | "secondary" | "quiet"; accessibilityLabel?: string }) {
   return (
-    <Link href={href as never} asChild>
+    <Link href={href} asChild>
       <Pressable
         role="link"
         accessibilityLabel={accessibilityLabel ?? label}

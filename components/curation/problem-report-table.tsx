@@ -19,7 +19,8 @@ import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
 import type { ValidationProblem } from "@/schemas/curation";
 import { DataGrid } from "./data-grid";
-import { ChoiceChips, FieldError, TextField } from "./form-fields";
+import { ChoiceChips } from "@/components/ui/choice-chips";
+import { FieldError, TextField } from "@/components/ui/text-field";
 
 const features = tableFeatures({
   columnFilteringFeature,
@@ -89,9 +90,9 @@ export function ProblemReportTable({ problems, filename, onDownload }: { problem
   return (
     <View style={styles.box}>
       <View style={styles.filters}>
-        <ChoiceChips label="Severity" options={severityOptions} selected={[severity]} onToggle={(v) => { setSeverity(v); setPagination((p) => ({ ...p, pageIndex: 0 })); }} />
+        <ChoiceChips label="Severity" choices={severityOptions} selected={[severity]} onToggle={(v) => { setSeverity(v); setPagination((p) => ({ ...p, pageIndex: 0 })); }} />
         {columnOptions.length > 2 ? (
-          <ChoiceChips label="Column" options={columnOptions} selected={[column]} onToggle={(v) => { setColumn(v); setPagination((p) => ({ ...p, pageIndex: 0 })); }} />
+          <ChoiceChips label="Column" choices={columnOptions} selected={[column]} onToggle={(v) => { setColumn(v); setPagination((p) => ({ ...p, pageIndex: 0 })); }} />
         ) : null}
         <TextField label="Search problems" placeholder="Text in the message or value" value={text} onChangeText={(t) => { setText(t); setPagination((p) => ({ ...p, pageIndex: 0 })); }} />
       </View>

@@ -3,9 +3,10 @@ import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
-import { curationPaths, useReport } from "@/hooks/use-curation";
+import { curationPaths } from "@/hooks/curation-keys";
+import { useReport } from "@/hooks/use-validation-reports";
 import { send } from "@/lib/api-client";
-import { resourceLabels } from "./format";
+import { resourceTitles } from "@/constants/vocabulary";
 import { ProblemReportTable } from "@/components/lazy-tables";
 import { saveTextFile } from "./save-text-file";
 
@@ -25,7 +26,7 @@ export function ReportView({ versionId, reportId }: { versionId: string; reportI
           {r.accepted ? `${r.filename} was accepted` : `${r.filename} was not stored`}
         </Text>
         <Text>
-          {resourceLabels[r.resource]} · {r.errors} error{r.errors === 1 ? "" : "s"} · {r.warnings} warning{r.warnings === 1 ? "" : "s"}
+          {resourceTitles[r.resource]} · {r.errors} error{r.errors === 1 ? "" : "s"} · {r.warnings} warning{r.warnings === 1 ? "" : "s"}
           {r.accepted ? "" : ". Nothing from this file was saved: fix the rows below and upload it again."}
         </Text>
       </View>

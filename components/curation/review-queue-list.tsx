@@ -3,7 +3,7 @@ import { Card } from "@/components/ui/card";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
-import { useReviewQueue } from "@/hooks/use-curation";
+import { useReviewQueue } from "@/hooks/use-review-queue";
 import { formatDay } from "./format";
 import { LinkButton } from "./link-button";
 

@@ -2,7 +2,7 @@ import { StyleSheet, View } from "react-native";
 import { Text } from "@/components/ui/text";
 import { colors, fonts } from "@/constants/theme";
 import type { VersionState } from "@/schemas/dataset";
-import { stateLabels } from "./format";
+import { versionStateLabels } from "@/constants/vocabulary";
 
 const tones: Record<VersionState, { bg: string; fg: string }> = {
   draft: { bg: colors.wheatTint, fg: "#6b4a00" },
@@ -15,7 +15,7 @@ export function StateBadge({ state }: { state: VersionState }) {
   const t = tones[state];
   return (
     <View style={[styles.badge, { backgroundColor: t.bg }]}>
-      <Text style={[styles.text, { color: t.fg }]}>{stateLabels[state]}</Text>
+      <Text style={[styles.text, { color: t.fg }]}>{versionStateLabels[state]}</Text>
     </View>
   );
 }

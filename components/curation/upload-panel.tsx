@@ -5,18 +5,18 @@ import { Card } from "@/components/ui/card";
 import { ErrorState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
-import { useUploadMutation } from "@/hooks/use-curation";
-import type { PickedFile } from "@/hooks/use-curation-upload";
+import { useUploadMutation } from "@/hooks/use-uploads";
+import type { PickedFile } from "@/lib/upload-client";
 import type { UploadOptions, UploadUnits, VersionDetail } from "@/schemas/curation";
 import { resourceName, type ResourceName } from "@/schemas/table-schema";
 import { CsvFilePicker } from "./csv-file-picker";
 import { readCsvHeader } from "./csv-header";
-import { ChoiceChips } from "./form-fields";
-import { resourceLabels } from "./format";
+import { ChoiceChips } from "@/components/ui/choice-chips";
+import { resourceTitles } from "@/constants/vocabulary";
 import { ProgressBar } from "./progress-bar";
 import { ReportView } from "./report-view";
 
-const resourceOptions = resourceName.options.map((value) => ({ value, label: resourceLabels[value] }));
+const resourceOptions = resourceName.options.map((value) => ({ value, label: resourceTitles[value] }));
 const yieldUnits = [
   { value: "kg/ha", label: "kg/ha" },
   { value: "bu/ac", label: "bu/ac" },
@@ -86,12 +86,12 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
     <View style={styles.box}>
       <Card>
         <Text variant="heading">Add data from a CSV</Text>
-        <ChoiceChips label="Resource" options={resourceOptions} selected={[resource]} onToggle={(r) => { setResource(r); setMapping({}); }} />
+        <ChoiceChips label="Resource" choices={resourceOptions} selected={[resource]} onToggle={(r) => { setResource(r); setMapping({}); }} />
         <CsvFilePicker file={file} onPick={(f) => { setFile(f); setReportId(null); upload.reset(); }} />
         {header.length ? (
           <Text variant="caption">
             Columns found: {header.join(", ")}
-            {unmatched.length ? ` — ${unmatched.length} not in the ${resourceLabels[resource].toLowerCase()} dictionary` : " — all match the dictionary"}
+            {unmatched.length ? ` — ${unmatched.length} not in the ${resourceTitles[resource].toLowerCase()} dictionary` : " — all match the dictionary"}
           </Text>
         ) : null}
 
@@ -111,7 +111,7 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
                   <ChoiceChips
                     key={h}
                     label={`Column "${h}" holds`}
-                    options={[{ value: "", label: "(ignore)" }, ...fields.map((f) => ({ value: f, label: f }))]}
+                    choices={[{ value: "", label: "(ignore)" }, ...fields.map((f) => ({ value: f, label: f }))]}
                     selected={[mapping[h] ?? ""]}
                     onToggle={(f) => setMapping((m) => {
                       const next = { ...m };
@@ -127,21 +127,21 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
             )}
             {resource === "plots" || resource === "summaries" ? (
               <>
-                <ChoiceChips label="Yield unit" options={yieldUnits} selected={[units.yield]} onToggle={(v) => setUnits((u) => ({ ...u, yield: v }))} />
-                <ChoiceChips label="Yield moisture basis" options={moistureBases} selected={[units.yieldMoisture]} onToggle={(v) => setUnits((u) => ({ ...u, yieldMoisture: v }))} />
+                <ChoiceChips label="Yield unit" choices={yieldUnits} selected={[units.yield]} onToggle={(v) => setUnits((u) => ({ ...u, yield: v }))} />
+                <ChoiceChips label="Yield moisture basis" choices={moistureBases} selected={[units.yieldMoisture]} onToggle={(v) => setUnits((u) => ({ ...u, yieldMoisture: v }))} />
               </>
             ) : null}
             {resource === "soil_tests" ? (
-              <ChoiceChips label="Soil-test unit" options={soilUnits} selected={[units.soilTest]} onToggle={(v) => setUnits((u) => ({ ...u, soilTest: v }))} />
+              <ChoiceChips label="Soil-test unit" choices={soilUnits} selected={[units.soilTest]} onToggle={(v) => setUnits((u) => ({ ...u, soilTest: v }))} />
             ) : null}
             {resource === "treatments" ? (
-              <ChoiceChips label="Fertilizer grade basis" options={gradeBases} selected={[units.gradeBasis]} onToggle={(v) => setUnits((u) => ({ ...u, gradeBasis: v }))} />
+              <ChoiceChips label="Fertilizer grade basis" choices={gradeBases} selected={[units.gradeBasis]} onToggle={(v) => setUnits((u) => ({ ...u, gradeBasis: v }))} />
             ) : null}
-            <ChoiceChips label="How to combine" options={modes} selected={[mode]} onToggle={setMode} />
+            <ChoiceChips label="How to combine" choices={modes} selected={[mode]} onToggle={setMode} />
           </View>
         ) : null}
 
-        <Button label={`Upload ${resourceLabels[resource].toLowerCase()}`} disabled={!file || upload.isPending} busy={upload.isPending} onPress={start} style={styles.left} />
+        <Button label={`Upload ${resourceTitles[resource].toLowerCase()}`} disabled={!file || upload.isPending} busy={upload.isPending} onPress={start} style={styles.left} />
         {upload.isPending ? <ProgressBar fraction={progress} label={`Uploading ${file?.name ?? "the file"}`} /> : null}
         {upload.isError ? <ErrorState error={upload.error} onRetry={start} /> : null}
       </Card>

@@ -4,12 +4,11 @@ import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
-import { useUpdateVersionMutation, useVersionActionMutation } from "@/hooks/use-curation";
-import type { SessionUser } from "@/hooks/use-session";
+import { useUpdateVersionMutation, useVersionActionMutation } from "@/hooks/use-curation-versions";
 import { approveBody, returnBody, semver as semverSchema, submitBody, withdrawBody, type VersionDetail } from "@/schemas/curation";
 import { versionActions, type WorkbenchAction } from "./action-policy";
 import { serverFieldIssues, zodFieldIssues, type FieldIssues } from "./field-issues";
-import { FieldError, TextField } from "./form-fields";
+import { FieldError, TextField } from "@/components/ui/text-field";
 
 const titles: Record<WorkbenchAction, string> = {
   submit: "Submit for review",
@@ -22,8 +21,8 @@ const titles: Record<WorkbenchAction, string> = {
  * The review-flow steps this user may take on this version, each opening its short form. Only permitted steps are
  * offered; the server decides again and its refusal is shown in place.
  */
-export function VersionActions({ version, user, datasetCanEdit }: { version: VersionDetail; user: SessionUser | null | undefined; datasetCanEdit: boolean }) {
-  const allowed = versionActions(user, version, datasetCanEdit);
+export function VersionActions({ version }: { version: VersionDetail }) {
+  const allowed = versionActions(version);
   const [open, setOpen] = useState<WorkbenchAction | null>(null);
   const [text, setText] = useState("");
   const [semver, setSemver] = useState(version.semver);

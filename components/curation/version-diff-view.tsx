@@ -3,10 +3,10 @@ import { Card } from "@/components/ui/card";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, space } from "@/constants/theme";
-import { useVersionDiff } from "@/hooks/use-curation";
+import { useVersionDiff } from "@/hooks/use-curation-versions";
 import type { VersionDiff } from "@/schemas/curation";
 import type { ResourceName } from "@/schemas/table-schema";
-import { resourceLabels } from "./format";
+import { resourceTitles } from "@/constants/vocabulary";
 
 const bumpWords = { major: "MAJOR", minor: "MINOR", patch: "PATCH" } as const;
 
@@ -52,7 +52,7 @@ export function DiffSummary({ diff }: { diff: VersionDiff }) {
           </View>
           {rowEntries.map(([res, r]) => (
             <View key={res} role="row" style={styles.tr}>
-              <Text role="cell" style={styles.td}>{resourceLabels[res]}</Text>
+              <Text role="cell" style={styles.td}>{resourceTitles[res]}</Text>
               <Text role="cell" style={[styles.td, styles.num]}>{r?.added ?? 0}</Text>
               <Text role="cell" style={[styles.td, styles.num]}>{r?.removed ?? 0}</Text>
               <Text role="cell" style={[styles.td, styles.num]}>{r?.changed ?? 0}</Text>
@@ -60,7 +60,7 @@ export function DiffSummary({ diff }: { diff: VersionDiff }) {
           ))}
         </View>
         {changedRows.flatMap(([res, r]) => (r?.sample ?? []).slice(0, 5).map((s) => (
-          <Text key={`${res}-${s.key}-${s.change}`} variant="caption">{resourceLabels[res]} {s.key}: {s.change}{s.fields.length ? ` (${s.fields.join(", ")})` : ""}</Text>
+          <Text key={`${res}-${s.key}-${s.change}`} variant="caption">{resourceTitles[res]} {s.key}: {s.change}{s.fields.length ? ` (${s.fields.join(", ")})` : ""}</Text>
         )))}
       </Card>
       <Card>

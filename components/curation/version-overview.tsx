@@ -6,7 +6,8 @@ import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, space } from "@/constants/theme";
 import type { VersionDetail } from "@/schemas/curation";
 import { resourceName } from "@/schemas/table-schema";
-import { formatBytes, formatDay, resourceLabels } from "./format";
+import { resourceTitles } from "@/constants/vocabulary";
+import { formatBytes, formatDay } from "./format";
 import { ReportView } from "./report-view";
 
 /** What the version holds: rows per resource, site-years without responses, uploads and their reports. */
@@ -21,9 +22,9 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
         ) : (
           <View style={styles.counts} role="list" accessibilityLabel="Rows per resource">
             {resourceName.options.map((r) => (
-              <View key={r} role="listitem" style={styles.count} accessibilityLabel={`${resourceLabels[r]}: ${version.counts?.[r] ?? 0}`}>
+              <View key={r} role="listitem" style={styles.count} accessibilityLabel={`${resourceTitles[r]}: ${version.counts?.[r] ?? 0}`}>
                 <Text style={styles.countNum}>{version.counts?.[r] ?? 0}</Text>
-                <Text variant="caption">{resourceLabels[r]}</Text>
+                <Text variant="caption">{resourceTitles[r]}</Text>
               </View>
             ))}
             <View role="listitem" style={styles.count} accessibilityLabel={`Responses: ${version.responses ?? 0}`}>
@@ -57,7 +58,7 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
                 style={StyleSheet.flatten([styles.report, reportId === r.id && styles.reportOn])}
               >
                 <Text style={{ color: r.accepted ? colors.fieldDark : colors.danger, fontFamily: fonts.semibold }}>{r.accepted ? "Accepted" : "Rejected"}</Text>
-                <Text style={styles.grow}>{resourceLabels[r.resource]} · {r.filename}</Text>
+                <Text style={styles.grow}>{resourceTitles[r.resource]} · {r.filename}</Text>
                 <Text variant="caption">{r.errors} errors · {r.warnings} warnings · {formatDay(r.createdAt)}</Text>
               </Pressable>
             ))}
@@ -65,7 +66,7 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
         )}
         {version.uploads.length ? (
           <Text variant="caption">
-            Stored files: {version.uploads.map((u) => `${u.filename} (${resourceLabels[u.resource]}, ${u.rowCount} rows, ${formatBytes(u.byteSize)})`).join("; ")}
+            Stored files: {version.uploads.map((u) => `${u.filename} (${resourceTitles[u.resource]}, ${u.rowCount} rows, ${formatBytes(u.byteSize)})`).join("; ")}
           </Text>
         ) : null}
       </Card>

@@ -3,9 +3,10 @@ import { Pressable, StyleSheet } from "react-native";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap } from "@/constants/theme";
+import { staffRoles } from "@/constants/vocabulary";
 import { useSession, type SessionUser } from "@/hooks/use-session";
 
-const workbenchRoles = new Set(["curator", "reviewer", "admin"]);
+const workbenchRoles = new Set<string>(staffRoles);
 
 /** The workbench is for curators, reviewers and admins; everyone else is told why and where to sign in. */
 export function WorkbenchGate({ children }: { children: (user: SessionUser) => React.ReactNode }) {
@@ -20,7 +21,7 @@ export function WorkbenchGate({ children }: { children: (user: SessionUser) => R
         title="Sign in to use the workbench"
         hint="Curators prepare and submit dataset versions here; reviewers approve them."
         action={
-          <Link href={`/sign-in?next=${encodeURIComponent(pathname)}` as never} asChild>
+          <Link href={`/sign-in?next=${encodeURIComponent(pathname)}`} asChild>
             <Pressable role="link" accessibilityLabel="Sign in" style={styles.link}>
               <Text style={styles.linkText}>Sign in</Text>
             </Pressable>

@@ -3,15 +3,7 @@ import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
 import type { TableSchemaDescriptor, TableSchemaField } from "@/schemas/table-schema";
 import { Disclosure } from "@/components/evidence/disclosure";
-
-const resourceTitles: Record<string, string> = {
-  sites: "Sites",
-  site_years: "Site-years",
-  soil_tests: "Soil tests",
-  treatments: "Treatments",
-  plots: "Plots",
-  summaries: "Summary means",
-};
+import { resourceTitles, type ResourceName } from "@/constants/vocabulary";
 
 function constraintsOf(f: TableSchemaField): string {
   const c = f.constraints ?? {};
@@ -32,7 +24,7 @@ export function DataDictionary({ schema }: { schema: TableSchemaDescriptor }) {
   return (
     <View style={styles.stack} testID="data-dictionary">
       {entries.map(([name, resource]) => (
-        <Disclosure key={name} title={resourceTitles[name] ?? name} hint={`${resource!.fields.length} fields${resource!.primaryKey ? ` · key ${resource!.primaryKey.join(", ")}` : ""}`} testID={`dictionary-${name}`}>
+        <Disclosure key={name} title={resourceTitles[name as ResourceName] ?? name} hint={`${resource!.fields.length} fields${resource!.primaryKey ? ` · key ${resource!.primaryKey.join(", ")}` : ""}`} testID={`dictionary-${name}`}>
           <View style={styles.fields}>
             {resource!.fields.map((f) => (
               <View key={f.name} style={styles.field}>

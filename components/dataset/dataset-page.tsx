@@ -1,7 +1,7 @@
 import { router } from "expo-router";
 import { StyleSheet, View } from "react-native";
 import { CitationPanel } from "@/components/citation-panel";
-import { ChoiceChips } from "@/components/evidence/choice-chips";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 import { Screen } from "@/components/screen";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
@@ -10,7 +10,7 @@ import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
 import { useDatasetDetail, useVersionSchema, versionDownloads } from "@/hooks/use-dataset-page";
-import { shareUrl, defaultEvidenceState } from "@/lib/share-link";
+import { defaultEvidenceState, routerParams } from "@/lib/share-link";
 import type { VersionSummary } from "@/schemas/public";
 import { DataDictionary } from "./data-dictionary";
 import { FollowButton } from "./follow-button";
@@ -80,7 +80,7 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
         <Button
           label="Analyse this dataset"
           testID="analyse-dataset"
-          onPress={() => router.push(shareUrl("", { ...defaultEvidenceState, filters: { dataset: slug } }) as never)}
+          onPress={() => router.push({ pathname: "/", params: routerParams({ ...defaultEvidenceState, filters: { dataset: slug } }) })}
         />
         {published.length > 0 ? <FollowButton slug={slug} title={d.title} /> : null}
       </Card>

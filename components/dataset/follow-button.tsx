@@ -18,7 +18,7 @@ export function FollowButton({ slug, title }: { slug: string; title: string }) {
   if (session.isPending) return null;
   if (!signedIn) {
     return (
-      <Link href={`/sign-in?next=${encodeURIComponent(`/datasets/${slug}`)}` as never} style={styles.link} accessibilityLabel={`Sign in to follow ${title}`}>
+      <Link href={`/sign-in?next=${encodeURIComponent(`/datasets/${slug}`)}`} style={styles.link} accessibilityLabel={`Sign in to follow ${title}`}>
         Sign in to follow new versions
       </Link>
     );

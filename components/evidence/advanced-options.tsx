@@ -2,7 +2,7 @@ import { View } from "react-native";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
 import type { CiMethod, EffectMeasure, TauMethod } from "@/schemas/analysis";
-import { ChoiceChips } from "./choice-chips";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 import { Disclosure } from "./disclosure";
 
 export interface MethodOptions {

@@ -3,14 +3,12 @@ import { Button } from "@/components/ui/button";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
 import { toggleListValue } from "@/lib/share-link";
-import { crops, nutrients, placementLabels, placements, soilTestClasses, soilTestClassLabels, tillages, type TrialFilters } from "@/schemas/filters";
-import { ChoiceChips } from "./choice-chips";
+import { cropLabels, nutrientLabels, placementLabels, soilTestClassLabels, tillageLabels } from "@/constants/vocabulary";
+import { crops, nutrients, placements, soilTestClasses, tillages, type TrialFilters } from "@/schemas/filters";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 
 type Filters = Partial<TrialFilters>;
 
-const nutrientLabels: Record<string, string> = { N: "N", P: "P", K: "K", S: "S" };
-const tillageLabels: Record<string, string> = { "no-till": "No-till", "strip-till": "Strip-till", reduced: "Reduced", conventional: "Conventional" };
-const cropLabels: Record<string, string> = { soybean: "Soybean", corn: "Corn", wheat: "Wheat" };
 
 /** Row spacing bands, inches: narrow drilled/15-in rows and wide 30-in rows. */
 const spacingBands = {

@@ -53,8 +53,6 @@ export function parseMoneyInput(text: string): number | undefined {
   return /^\d+(\.\d*)?$|^\.\d+$/.test(cleaned) ? Number(cleaned) : Number.NaN;
 }
 
-export const soilClassShort: Record<string, string> = { very_low: "VL", low: "L", optimum: "O", high: "H", very_high: "VH" };
-
 export function levelLabel(level: string, labels: Record<string, string> = {}): string {
   return labels[level] ?? level.replace(/_/g, " ").replace(/^./, (c) => c.toUpperCase());
 }

@@ -13,7 +13,7 @@ import { Pressable, ScrollView, StyleSheet, View } from "react-native";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, space } from "@/constants/theme";
 import type { ForestRow } from "@/schemas/analysis";
-import { soilTestClassLabels } from "@/schemas/filters";
+import { soilTestClassLabels } from "@/constants/vocabulary";
 import { formatInterval, formatResponse, formatPValue } from "./format";
 
 const features = tableFeatures({ rowSortingFeature, sortedRowModel: createSortedRowModel(), sortFns: { alphanumeric: sortFn_alphanumeric, basic: sortFn_basic } });

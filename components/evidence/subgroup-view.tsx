@@ -3,8 +3,8 @@ import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, soilClassColors, space } from "@/constants/theme";
 import { groupings, type Grouping, type MetaAnalysisResponse } from "@/schemas/analysis";
-import { placementLabels, soilTestClassLabels } from "@/schemas/filters";
-import { ChoiceChips } from "./choice-chips";
+import { placementLabels, soilTestClassLabels } from "@/constants/vocabulary";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 import { formatInterval, formatPValue, formatResponse, levelLabel, unitLabel } from "./format";
 
 export const groupingLabels: Record<Grouping, string> = {

@@ -3,7 +3,7 @@ import { Card } from "@/components/ui/card";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
 import type { MetaAnalysisResponse, YieldUnit } from "@/schemas/analysis";
-import { ChoiceChips } from "./choice-chips";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 import { formatInterval, formatPercent, formatResponse, lnrrAsPercent, unitLabel } from "./format";
 
 /** The headline: mean response with its CI, the range for a new field, k, heterogeneity and own-trial significance. */

@@ -19,7 +19,7 @@ export default function AccountScreen() {
 
   if (session.isPending) return <Screen title="Account"><LoadingState /></Screen>;
   if (session.isError) return <Screen title="Account"><ErrorState error={session.error} onRetry={() => session.refetch()} /></Screen>;
-  if (!session.data) return <Redirect href={"/sign-in?next=/account" as never} />;
+  if (!session.data) return <Redirect href={"/sign-in?next=/account"} />;
 
   return (
     <Screen title="Account" subtitle={`Signed in as ${session.data.displayName}`}>

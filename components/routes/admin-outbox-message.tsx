@@ -1,4 +1,4 @@
-import { Link, useLocalSearchParams } from "expo-router";
+import { Link, useLocalSearchParams, type Href } from "expo-router";
 import { Pressable, StyleSheet } from "react-native";
 import { AdminGate } from "@/components/account/admin-gate";
 import { TextLink } from "@/components/account/auth-panel";
@@ -9,10 +9,11 @@ import { colors, fonts, minTap } from "@/constants/theme";
 import { useOutboxMessageQuery } from "@/hooks/use-account";
 
 /** A link to this app opens in place (client-side); any other address is a plain external link. */
-function hrefOf(link: string): string {
-  if (typeof window === "undefined") return link;
+/** A link from a message body: our own pages open in the app, anything else leaves it. Only known at run time. */
+function hrefOf(link: string): Href {
+  if (typeof window === "undefined") return link as Href;
   const url = new URL(link);
-  return url.origin === window.location.origin ? `${url.pathname}${url.search}` : link;
+  return (url.origin === window.location.origin ? `${url.pathname}${url.search}` : link) as Href;
 }
 
 export default function OutboxMessageScreen() {
@@ -32,7 +33,7 @@ export default function OutboxMessageScreen() {
           <Text style={styles.body} selectable>{message.data.text}</Text>
           {message.data.links.length ? <Text variant="subheading">Links</Text> : null}
           {message.data.links.map((link) => (
-            <Link key={link} href={hrefOf(link) as never} asChild>
+            <Link key={link} href={hrefOf(link)} asChild>
               <Pressable role="link" accessibilityLabel={`Open ${link}`} style={styles.link}>
                 <Text style={styles.linkText}>{link}</Text>
               </Pressable>

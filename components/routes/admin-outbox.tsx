@@ -25,7 +25,7 @@ export default function OutboxScreen() {
       ) : (
         <Card>
           {outbox.data.items.map((m) => (
-            <Link key={m.id} href={`/admin/outbox/${m.id}` as never} asChild>
+            <Link key={m.id} href={`/admin/outbox/${m.id}`} asChild>
               <Pressable role="link" accessibilityLabel={`${m.subject}, to ${m.to}`} style={styles.row}>
                 <Text variant="subheading">{m.subject}</Text>
                 <Text variant="caption">{`${m.to} · ${m.kind} · ${new Date(m.createdAt).toLocaleString()}`}</Text>

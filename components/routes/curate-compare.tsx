@@ -1,13 +1,13 @@
 import { useLocalSearchParams, useRouter } from "expo-router";
 import { View } from "react-native";
-import { ChoiceChips } from "@/components/curation/form-fields";
+import { ChoiceChips } from "@/components/ui/choice-chips";
 import { VersionDiffView } from "@/components/curation/version-diff-view";
 import { WorkbenchGate } from "@/components/curation/workbench-gate";
 import { Screen } from "@/components/screen";
 import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { space } from "@/constants/theme";
-import { useCurationDataset } from "@/hooks/use-curation";
+import { useCurationDataset } from "@/hooks/use-curation-datasets";
 
 function Compare({ slug, from, to }: { slug: string; from?: string; to?: string }) {
   const router = useRouter();
@@ -23,8 +23,8 @@ function Compare({ slug, from, to }: { slug: string; from?: string; to?: string 
   return (
     <View style={{ gap: space.lg }}>
       <Card>
-        <ChoiceChips label="Compare from" options={options} selected={fromId ? [fromId] : []} onToggle={(id) => pick("from", id)} />
-        <ChoiceChips label="To" options={options} selected={toId ? [toId] : []} onToggle={(id) => pick("to", id)} />
+        <ChoiceChips label="Compare from" choices={options} selected={fromId ? [fromId] : []} onToggle={(id) => pick("from", id)} />
+        <ChoiceChips label="To" choices={options} selected={toId ? [toId] : []} onToggle={(id) => pick("to", id)} />
       </Card>
       <VersionDiffView from={fromId} to={toId} />
     </View>

@@ -3,7 +3,7 @@ import { DatasetForm } from "@/components/curation/dataset-form";
 import { WorkbenchGate } from "@/components/curation/workbench-gate";
 import { Screen } from "@/components/screen";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
-import { useCurationDataset, useUpdateDatasetMutation } from "@/hooks/use-curation";
+import { useCurationDataset, useUpdateDatasetMutation } from "@/hooks/use-curation-datasets";
 
 export default function DatasetDetailsScreen() {
   const { slug } = useLocalSearchParams<{ slug: string }>();
@@ -25,7 +25,7 @@ export default function DatasetDetailsScreen() {
               busy={update.isPending}
               onSubmit={async ({ slug: _slug, ...patch }) => {
                 await update.mutateAsync(patch);
-                router.replace(`/curate/datasets/${slug}` as never);
+                router.replace(`/curate/datasets/${slug}`);
               }}
             />
           )

@@ -2,7 +2,7 @@ import { useLocalSearchParams, useRouter } from "expo-router";
 import { StyleSheet, View } from "react-native";
 import { canStartVersion } from "@/components/curation/action-policy";
 import { EditorsPanel } from "@/components/curation/editors-panel";
-import { FieldError } from "@/components/curation/form-fields";
+import { FieldError } from "@/components/ui/text-field";
 import { LinkButton } from "@/components/curation/link-button";
 import { VersionTimeline } from "@/components/curation/version-timeline";
 import { WorkbenchGate } from "@/components/curation/workbench-gate";
@@ -12,7 +12,8 @@ import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
-import { useCreateVersionMutation, useCurationDataset } from "@/hooks/use-curation";
+import { useCurationDataset } from "@/hooks/use-curation-datasets";
+import { useCreateVersionMutation } from "@/hooks/use-curation-versions";
 import type { SessionUser } from "@/hooks/use-session";
 
 function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
@@ -50,7 +51,7 @@ function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
             busy={start.isPending}
             onPress={async () => {
               const v = await start.mutateAsync({}).catch(() => null);
-              if (v) router.push(`/curate/versions/${v.id}` as never);
+              if (v) router.push(`/curate/versions/${v.id}`);
             }}
           />
         ) : null}

@@ -2,7 +2,7 @@ import { useRouter } from "expo-router";
 import { DatasetForm } from "@/components/curation/dataset-form";
 import { WorkbenchGate } from "@/components/curation/workbench-gate";
 import { Screen } from "@/components/screen";
-import { useCreateDatasetMutation } from "@/hooks/use-curation";
+import { useCreateDatasetMutation } from "@/hooks/use-curation-datasets";
 
 export default function NewDatasetScreen() {
   const router = useRouter();
@@ -17,7 +17,7 @@ export default function NewDatasetScreen() {
             busy={create.isPending}
             onSubmit={async (body) => {
               const dataset = await create.mutateAsync(body);
-              router.replace(`/curate/datasets/${dataset.slug}` as never);
+              router.replace(`/curate/datasets/${dataset.slug}`);
             }}
           />
         )}

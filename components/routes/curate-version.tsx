@@ -16,14 +16,12 @@ import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
-import { useCurationDataset, useVersion } from "@/hooks/use-curation";
-import type { SessionUser } from "@/hooks/use-session";
+import { useVersion } from "@/hooks/use-curation-versions";
 
 type Panel = "overview" | "upload" | "dictionary" | "changes";
 
-function VersionDesk({ id, user }: { id: string; user: SessionUser }) {
+function VersionDesk({ id }: { id: string }) {
   const version = useVersion(id);
-  const dataset = useCurationDataset(version.data?.datasetSlug ?? "");
   const [panel, setPanel] = useState<Panel>("overview");
   if (version.isPending) return <LoadingState label="Loading the version…" />;
   if (version.isError) return <ErrorState error={version.error} onRetry={() => version.refetch()} />;
@@ -58,7 +56,7 @@ function VersionDesk({ id, user }: { id: string; user: SessionUser }) {
         {v.withdrawnReason ? <Text style={{ color: colors.danger }}>Withdrawn: {v.withdrawnReason}</Text> : null}
         <LinkButton href={`/curate/datasets/${v.datasetSlug}`} label="All versions of this dataset" tone="quiet" />
       </Card>
-      <VersionActions version={v} user={user} datasetCanEdit={dataset.data?.canEdit ?? false} />
+      <VersionActions version={v} />
       <DoiStatusCard version={v} />
       <SegmentTabs label="Version panels" tabs={tabs} value={current} onChange={setPanel} />
       {current === "overview" ? <VersionOverview version={v} /> : null}
@@ -73,7 +71,7 @@ export default function VersionScreen() {
   const { id } = useLocalSearchParams<{ id: string }>();
   return (
     <Screen title="Version" subtitle="Upload, check, document and submit; reviewers approve or return it.">
-      <WorkbenchGate>{(user) => <VersionDesk id={id} user={user} />}</WorkbenchGate>
+      <WorkbenchGate>{() => <VersionDesk id={id} />}</WorkbenchGate>
     </Screen>
   );
 }

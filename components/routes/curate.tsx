@@ -7,7 +7,7 @@ import { Screen } from "@/components/screen";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
-import { useMyDatasets } from "@/hooks/use-curation";
+import { useMyDatasets } from "@/hooks/use-curation-datasets";
 import type { SessionUser } from "@/hooks/use-session";
 
 function MyDatasets({ user }: { user: SessionUser }) {

@@ -2,7 +2,7 @@ import * as Clipboard from "expo-clipboard";
 import { Link, useLocalSearchParams } from "expo-router";
 import { useMemo, useState } from "react";
 import { Platform, Pressable, StyleSheet, View } from "react-native";
-import { TextField } from "@/components/curation/form-fields";
+import { TextField } from "@/components/ui/text-field";
 import { Screen } from "@/components/screen";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
@@ -14,9 +14,10 @@ import { useSession } from "@/hooks/use-session";
 import { useTokenCreateMutation, useTokenList, useTokenRevokeMutation } from "@/hooks/use-tokens";
 import { ApiError } from "@/lib/api-error";
 import { filtersToQuery, trialFilterShape, trialFilters } from "@/schemas/filters";
+import { staffRoles } from "@/constants/vocabulary";
 import type { ApiToken, CreatedToken, TokenScope } from "@/schemas/tokens";
 
-const writeRoles = ["curator", "reviewer", "admin"];
+const writeRoles: readonly string[] = staffRoles;
 
 /** The filters in this page's URL (as the evidence screen links them), keeping only the valid ones. */
 function filtersFromParams(params: Record<string, string | string[] | undefined>): Record<string, string> {

@@ -2,7 +2,7 @@ import { useLocalSearchParams, useRouter } from "expo-router";
 import { z } from "zod";
 import { AuthPanel, TextLink } from "@/components/account/auth-panel";
 import { Notice } from "@/components/account/notice";
-import { TextField } from "@/components/curation/form-fields";
+import { TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";

@@ -2,7 +2,7 @@ import { useLocalSearchParams } from "expo-router";
 import { z } from "zod";
 import { AuthPanel, TextLink } from "@/components/account/auth-panel";
 import { Notice } from "@/components/account/notice";
-import { TextField } from "@/components/curation/form-fields";
+import { TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { useResetPasswordMutation } from "@/hooks/use-account";
 import { useAccountForm } from "@/hooks/use-account-form";

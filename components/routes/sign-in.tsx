@@ -1,14 +1,15 @@
-import { useLocalSearchParams, useRouter } from "expo-router";
+import { useLocalSearchParams, useRouter, type Href } from "expo-router";
 import { AuthPanel, TextLink } from "@/components/account/auth-panel";
 import { Notice } from "@/components/account/notice";
-import { TextField } from "@/components/curation/form-fields";
+import { TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { useSignInMutation } from "@/hooks/use-account";
 import { useAccountForm } from "@/hooks/use-account-form";
 import { signInBody } from "@/schemas/account";
 
 /** Only paths inside the app may be returned to after signing in (never another site). */
-const safeNext = (next: unknown) => (typeof next === "string" && next.startsWith("/") && !next.startsWith("//") ? next : "/account");
+/** Where to go after signing in: a path of ours from `?next=` (checked here, so only known at run time), else the account. */
+const safeNext = (next: unknown): Href => (typeof next === "string" && next.startsWith("/") && !next.startsWith("//") ? (next as Href) : "/account");
 
 export default function SignInScreen() {
   const params = useLocalSearchParams<{ next?: string; email?: string }>();
@@ -19,7 +20,7 @@ export default function SignInScreen() {
   const submit = () => {
     const body = form.validate();
     if (!body) return;
-    signIn.mutate(body, { onSuccess: () => router.replace(safeNext(params.next) as never), onError: form.showServerError });
+    signIn.mutate(body, { onSuccess: () => router.replace(safeNext(params.next)), onError: form.showServerError });
   };
 
   return (

@@ -1,6 +1,6 @@
 import { AuthPanel, TextLink } from "@/components/account/auth-panel";
 import { Notice } from "@/components/account/notice";
-import { TextField } from "@/components/curation/form-fields";
+import { TextField } from "@/components/ui/text-field";
 import { Button } from "@/components/ui/button";
 import { Text } from "@/components/ui/text";
 import { useSignUpMutation } from "@/hooks/use-account";

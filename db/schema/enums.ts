@@ -1,7 +1,9 @@
 import { pgEnum } from "drizzle-orm/pg-core";
+// A relative import: drizzle-kit loads db/schema without the @/ alias.
+import { doiStatuses, emailTokenPurposes, roles, tokenScopes, versionStates } from "../../constants/vocabulary";
 
-export const roleEnum = pgEnum("role", ["member", "curator", "reviewer", "admin"]);
-export const versionStateEnum = pgEnum("version_state", ["draft", "in_review", "published", "withdrawn"]);
-export const tokenScopeEnum = pgEnum("token_scope", ["read", "write"]);
-export const emailTokenPurposeEnum = pgEnum("email_token_purpose", ["verify", "reset", "invite"]);
-export const doiStatusEnum = pgEnum("doi_status", ["none", "pending", "registered", "failed"]);
+export const roleEnum = pgEnum("role", roles);
+export const versionStateEnum = pgEnum("version_state", versionStates);
+export const tokenScopeEnum = pgEnum("token_scope", tokenScopes);
+export const emailTokenPurposeEnum = pgEnum("email_token_purpose", emailTokenPurposes);
+export const doiStatusEnum = pgEnum("doi_status", doiStatuses);

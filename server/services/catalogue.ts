@@ -2,6 +2,7 @@ import { and, desc, eq, inArray, sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { datasets, siteYears, versions } from "@/db/schema";
 import type { DatasetSummary } from "@/schemas/dataset";
+import { latestPublishedByDataset } from "./latest-version";
 
 /**
  * Datasets that have at least one published version, each with its latest published version's figures.
@@ -9,15 +10,11 @@ import type { DatasetSummary } from "@/schemas/dataset";
  */
 export async function listPublishedDatasets(db: Db): Promise<DatasetSummary[]> {
   const published = await db
-    .select({ id: versions.id, datasetId: versions.datasetId, semver: versions.semver, publishedAt: versions.publishedAt })
+    .select({ id: versions.id, datasetId: versions.datasetId, semver: versions.semver, state: versions.state, publishedAt: versions.publishedAt })
     .from(versions)
     .where(eq(versions.state, "published"))
     .orderBy(desc(versions.publishedAt));
-  const latestByDataset = new Map<string, (typeof published)[number]>();
-  for (const v of published) {
-    const current = latestByDataset.get(v.datasetId);
-    if (!current || compareSemver(v.semver, current.semver) > 0) latestByDataset.set(v.datasetId, v);
-  }
+  const latestByDataset = latestPublishedByDataset(published);
   if (latestByDataset.size === 0) return [];
   const latestIds = [...latestByDataset.values()].map((v) => v.id);
   const [rows, counts] = await Promise.all([

@@ -4,12 +4,13 @@ import { apiTokens } from "@/db/schema";
 import type { Role } from "@/schemas/account";
 import type { ApiToken, CreatedToken, TokenScope } from "@/schemas/tokens";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
+import { staffRoles } from "@/constants/vocabulary";
 import { forbidden, notFound } from "@/server/errors";
 
 const dayMs = 24 * 60 * 60 * 1000;
 /** Enough of the secret to recognise it in a list, far too little to guess the rest (32 random bytes follow). */
 const prefixLength = 10;
-const writeRoles: Role[] = ["curator", "reviewer", "admin"];
+const writeRoles: readonly Role[] = staffRoles;
 
 type TokenRow = typeof apiTokens.$inferSelect;
 

@@ -3,8 +3,8 @@ import type { AnyPgColumn } from "drizzle-orm/pg-core";
 import type { Db } from "@/db/client";
 import { datasets, plots, responses, siteYears, soilTests, treatments, versions } from "@/db/schema";
 import type { TrialFilters } from "@/schemas/filters";
-import { HttpProblem, notFound } from "@/server/errors";
-import { compareSemver } from "./catalogue";
+import { notFound } from "@/server/errors";
+import { latestAlias, latestPublishedByDataset, versionGone } from "./latest-version";
 
 export interface ResolvedVersion {
   versionId: string;
@@ -14,13 +14,6 @@ export interface ResolvedVersion {
   semver: string;
   licence: string;
   state: "published" | "withdrawn" | "draft" | "in_review";
-}
-
-/** A withdrawn version keeps its metadata (a tombstone), but its rows are gone for good: 410, with the reason. */
-export function versionGone(slug: string, semver: string, reason: string | null): HttpProblem {
-  return new HttpProblem(410, "Gone", `Version ${semver} of "${slug}" was withdrawn${reason ? `: ${reason}` : "."} Its rows are no longer served.`, {
-    withdrawnReason: reason,
-  });
 }
 
 /**
@@ -42,25 +35,20 @@ export async function resolveVersions(db: Db, filters: Pick<TrialFilters, "datas
     .innerJoin(datasets, eq(datasets.id, versions.datasetId))
     .where(and(eq(versions.state, "published"), filters.dataset ? eq(datasets.slug, filters.dataset) : undefined));
   if (filters.dataset && rows.length === 0) throw notFound(`No published dataset is called "${filters.dataset}".`);
-  if (filters.version && filters.version !== "latest") {
+  if (filters.version && filters.version !== latestAlias) {
     const match = rows.find((r) => r.semver === filters.version);
     if (!match) {
       const [withdrawn] = await db
-        .select({ reason: versions.withdrawnReason })
+        .select({ reason: versions.withdrawnReason, at: versions.withdrawnAt })
         .from(versions)
         .innerJoin(datasets, eq(datasets.id, versions.datasetId))
         .where(and(eq(datasets.slug, filters.dataset!), eq(versions.semver, filters.version), eq(versions.state, "withdrawn")));
-      if (withdrawn) throw versionGone(filters.dataset!, filters.version, withdrawn.reason);
+      if (withdrawn) throw versionGone(filters.dataset!, filters.version, withdrawn.reason, withdrawn.at);
       throw notFound(`Dataset "${filters.dataset}" has no published version ${filters.version}.`);
     }
     return [match];
   }
-  const latest = new Map<string, ResolvedVersion>();
-  for (const r of rows) {
-    const current = latest.get(r.datasetId);
-    if (!current || compareSemver(r.semver, current.semver) > 0) latest.set(r.datasetId, r);
-  }
-  return [...latest.values()].sort((a, b) => a.datasetSlug.localeCompare(b.datasetSlug));
+  return [...latestPublishedByDataset(rows).values()].sort((a, b) => a.datasetSlug.localeCompare(b.datasetSlug));
 }
 
 /** Anything that can stand in a WHERE clause as a column: a real column or a correlated sub-select. */

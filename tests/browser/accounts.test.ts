@@ -19,7 +19,7 @@ afterAll(async () => {
 
 describe("accounts on a phone (390x844)", () => {
   it("creates an account, confirms it through the e-mailed link and signs in", async () => {
-    const email = "wren.headland@tallgrass.test";
+    const email = "newcomer@tallgrass.test";
     const password = "strip-trial-basin-42";
     const context = await newContext(browser, phone);
     const page = await context.newPage();
@@ -27,7 +27,7 @@ describe("accounts on a phone (390x844)", () => {
 
     await page.goto(`${server.url}/sign-up`);
     await page.getByRole("heading", { name: "Create account" }).first().waitFor();
-    await page.getByLabel("Your name").fill("Wren Headland");
+    await page.getByLabel("Your name").fill("Basin Newcomer");
     await page.getByLabel("E-mail").fill(email);
     await page.getByLabel("Password", { exact: true }).fill("too-short");
     await page.getByRole("button", { name: "Create account" }).click();
@@ -63,7 +63,7 @@ describe("accounts on a phone (390x844)", () => {
     await page.getByLabel("Password", { exact: true }).fill(password);
     await page.getByRole("button", { name: "Sign in" }).click();
 
-    await page.getByText("Signed in as Wren Headland").waitFor();
+    await page.getByText("Signed in as Basin Newcomer").waitFor();
     expect(new URL(page.url()).pathname).toBe("/account");
     await page.getByRole("link", { name: "Account" }).first().waitFor();
     expect(await page.getByRole("link", { name: "Sign in" }).count()).toBe(0);
@@ -79,27 +79,27 @@ describe("accounts on a phone (390x844)", () => {
 
   it("lets an admin change a role, see it in the log, and open an e-mailed link from the outbox", async () => {
     const password = "admin-basin-plots-7";
-    const admin = await createUser(server.ctx.db, { email: "mara.admin@tallgrass.test", displayName: "Mara Quill", password, role: "admin", verified: true });
-    const member = await createUser(server.ctx.db, { email: "tobin.member@tallgrass.test", displayName: "Tobin Reed", password, verified: true });
+    const admin = await createUser(server.ctx.db, { email: "basin.admin@tallgrass.test", displayName: "Basin Admin", password, role: "admin", verified: true });
+    const member = await createUser(server.ctx.db, { email: "basin.member@tallgrass.test", displayName: "Basin Member", password, verified: true });
     // An invitation accepted earlier: the grant is in the log, made by the inviter.
-    await inviteUser(server.ctx, admin, { email: "pia.lowe@tallgrass.test", role: "curator" });
-    const [invitation] = await server.ctx.db.select().from(outbox).where(eq(outbox.to, "pia.lowe@tallgrass.test"));
+    await inviteUser(server.ctx, admin, { email: "basin.invitee@tallgrass.test", role: "curator" });
+    const [invitation] = await server.ctx.db.select().from(outbox).where(eq(outbox.to, "basin.invitee@tallgrass.test"));
     const token = new URL(invitation!.text.match(/https?:\/\/\S+/)![0]).searchParams.get("token")!;
-    await acceptInvitation(server.ctx, { token, displayName: "Pia Lowe", password: "loam-furrow-sieve-31" });
+    await acceptInvitation(server.ctx, { token, displayName: "Basin Invitee", password: "loam-furrow-sieve-31" });
     const context = await newContext(browser, phone);
     const page = await context.newPage();
     const problems = watchPage(page);
 
     await page.goto(`${server.url}/sign-in?next=/admin`);
-    await page.getByLabel("E-mail").fill("mara.admin@tallgrass.test");
+    await page.getByLabel("E-mail").fill("basin.admin@tallgrass.test");
     await page.getByLabel("Password", { exact: true }).fill(password);
     await page.getByRole("button", { name: "Sign in" }).click();
     await page.getByRole("heading", { name: "People & roles" }).waitFor();
     await page.getByRole("link", { name: "Admin" }).first().waitFor();
 
-    await page.getByRole("radio", { name: "Role of Tobin Reed: Curator" }).click();
-    await page.getByText("Tobin Reed: member → curator").waitFor();
-    await page.getByText("Pia Lowe: joined as curator by invitation").waitFor();
+    await page.getByRole("radio", { name: "Role of Basin Member: Curator" }).click();
+    await page.getByText("Basin Member: member → curator").waitFor();
+    await page.getByText("Basin Invitee: joined as curator by invitation").waitFor();
     const [change] = await server.ctx.db.select().from(roleChanges).where(eq(roleChanges.userId, member.id));
     expect(change?.toRole).toBe("curator");
     await screenshot(page, "accounts-admin-people-phone");
@@ -136,10 +136,10 @@ describe("accounts on a phone (390x844)", () => {
     const problems = watchPage(page);
     await page.goto(`${server.url}/sign-in`);
 
-    await page.getByLabel("E-mail").fill("mara.admin@tallgrass.test");
+    await page.getByLabel("E-mail").fill("basin.admin@tallgrass.test");
     await page.getByLabel("Password", { exact: true }).fill("admin-basin-plots-7");
     await page.getByRole("button", { name: "Sign in" }).click();
-    await page.getByText("Signed in as Mara Quill").waitFor();
+    await page.getByText("Signed in as Basin Admin").waitFor();
     const profile = await page.getByRole("heading", { name: "Profile" }).boundingBox();
     const follows = await page.getByRole("heading", { name: "Datasets you follow" }).boundingBox();
     expect(follows!.x).toBeGreaterThan(profile!.x + 200);

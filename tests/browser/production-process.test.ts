@@ -1,4 +1,4 @@
-import { spawn, type ChildProcess } from "node:child_process";
+import { execFileSync, spawn, type ChildProcess } from "node:child_process";
 import { mkdtempSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
@@ -18,9 +18,11 @@ interface MainProcess {
   stop(signal?: NodeJS.Signals): Promise<{ code: number | null; signal: NodeJS.Signals | null }>;
 }
 
-async function startMain(env: Record<string, string>): Promise<MainProcess> {
+/** Starts server/main.ts directly, or (`command: "npm start"`) through npm as the README's run command does. */
+async function startMain(env: Record<string, string>, command: "node" | "npm start" = "node"): Promise<MainProcess> {
   const { DATABASE_URL: _url, PLOTBANK_WEB_PROXY: _proxy, ...inherited } = process.env;
-  const child = spawn(process.execPath, ["--import", "tsx", "server/main.ts"], {
+  const [file, args] = command === "node" ? [process.execPath, ["--import", "tsx", "server/main.ts"]] : ["npm", ["start"]];
+  const child = spawn(file, args, {
     cwd: root,
     env: { ...inherited, HOST: "127.0.0.1", PORT: "0", NODE_ENV: "production", PLOTBANK_MAIL_OUTBOX_ONLY: "1", PLOTBANK_DEMO: "off", ...env },
     stdio: ["ignore", "pipe", "pipe"],
@@ -67,11 +69,34 @@ async function signInDetail(url: string) {
 
 let work: string;
 let running: MainProcess | undefined;
+/** Processes started under npm, killed too should the test fail before npm stops them. */
+const underNpm: number[] = [];
+
+function childProcesses(pid: number): { pid: number; name: string }[] {
+  let listing = "";
+  try {
+    listing = execFileSync("ps", ["-o", "pid=,comm=", "--ppid", String(pid)], { encoding: "utf8" });
+  } catch {
+    return []; // ps exits 1 when there are none
+  }
+  return listing
+    .trim()
+    .split("\n")
+    .map((line) => line.trim().split(/\s+/))
+    .map(([child, name]) => ({ pid: Number(child), name: name ?? "" }));
+}
 beforeAll(() => {
   work = mkdtempSync(path.join(tmpdir(), "plotbank-main-"));
 });
 afterAll(async () => {
   await running?.stop("SIGKILL");
+  for (const pid of underNpm) {
+    try {
+      process.kill(pid, "SIGKILL");
+    } catch {
+      // already gone, as it should be
+    }
+  }
   rmSync(work, { recursive: true, force: true });
 });
 
@@ -106,6 +131,24 @@ describe("the production process (server/main.ts)", () => {
     const page = await fetch(`${second.url}/datasets`);
     expect(page.headers.get("content-type")).toMatch(/^text\/html/);
     expect(await second.stop("SIGTERM")).toEqual({ code: 0, signal: null });
+    running = undefined;
+  }, 120_000);
+
+  it("stops when SIGTERM is sent to the npm start process itself: npm's shell execs the server, which closes and exits 0", async () => {
+    running = await startMain({ PLOTBANK_DATA_DIR: path.join(work, "npm-start") }, "npm start");
+    const npm = running;
+    expect((await fetch(`${npm.url}/api/v1/health`)).status).toBe(200);
+    // npm runs the script with `sh -c`; with `exec` the shell becomes the server, so npm's only child is node itself.
+    const children = childProcesses(npm.child.pid!);
+    underNpm.push(...children.flatMap((child) => [child.pid, ...childProcesses(child.pid).map((grandchild) => grandchild.pid)]));
+    expect(children.map((child) => child.name)).toEqual(["node"]);
+    const serverPid = children[0]!.pid;
+
+    expect(await npm.stop("SIGTERM")).toEqual({ code: 0, signal: null });
+    expect(npm.output()).toContain("SIGTERM: finishing the requests in flight and closing the database");
+    // Nothing is left listening: the port refuses, and the server's process is gone.
+    await expect(fetch(`${npm.url}/api/v1/health`)).rejects.toThrow();
+    expect(() => process.kill(serverPid, 0)).toThrow(/ESRCH/);
     running = undefined;
   }, 120_000);
 });

@@ -1,4 +1,3 @@
-import { readFileSync } from "node:fs";
 import Papa from "papaparse";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -15,6 +14,7 @@ import {
   probabilityNewResponseAbove,
   tTwoSidedP,
 } from "@/stats";
+import { loadJsonFixture } from "@/tests/stats/fixtures";
 import { insertAnalysisFixture, type FixtureResponse } from "@/tests/support/analysis-fixture";
 import { testApp, type TestApp } from "@/tests/support/test-app";
 
@@ -26,7 +26,7 @@ const get = async (query: string) => metaAnalysisResult.parse((await request(t.a
 const problem = async (query: string, status: number) => (await request(t.app).get(`/api/v1/analyses/meta${query}`).expect(status)).body;
 
 // Normand (1999), Stat Med 18:321–359, dat.normand1999 (metafor 3.8-1): yi and vi as responses of nine site-years.
-const normand = JSON.parse(readFileSync("/work/shared/checks/meta_normand1999_md_results.json", "utf8"));
+const normand = loadJsonFixture("meta_normand1999_md_results.json");
 const normandYi: number[] = normand.yi;
 const normandVi: number[] = normand.vi;
 
@@ -72,7 +72,7 @@ afterAll(() => t.close());
 describe("GET /api/v1/analyses/meta against published check values", () => {
   it("REML + HKSJ on the Normand (1999) responses equals metafor's rma(yi, vi, method = 'REML', test = 'knha')", async () => {
     const body = await get("?dataset=normand-check&units=kg/ha");
-    const ref = normand.models.REML_knha; // metafor 3.8-1, /work/shared/checks/meta_normand1999_md_results.json
+    const ref = normand.models.REML_knha; // metafor 3.8-1, tests/fixtures/reference/meta_normand1999_md_results.json
     const close = (a: number, b: number) => expect(Math.abs(a - b)).toBeLessThanOrEqual(1e-7 * Math.max(1, Math.abs(b)));
     expect(body.k).toBe(9);
     close(body.pooled!.estimate, ref.estimate);

@@ -52,9 +52,8 @@ describe("responses computed from a large plots file", () => {
 
     // The read-back path: plots queried from the database and fitted on this thread.
     const again = await computeResponses(t.ctx.db, f.versionId, "all");
-    const col = { sy: 1, trt: 2, md: 26, se: 27, lnrr: 29, p: 31, balanced: 35 };
     const expected = again.rows
-      .map((r) => [Number(r[col.sy]), Number(r[col.trt]), r[col.md], r[col.se], r[col.lnrr], r[col.p], r[col.balanced]])
+      .map((r) => [Number(r.siteYearId), Number(r.treatmentId), r.mdKgHa, r.seKgHa, r.lnrr, r.pValue, r.balanced])
       .sort((a, b) => (a[0] as number) - (b[0] as number) || (a[1] as number) - (b[1] as number));
     expect(stored).toEqual(expected);
 

@@ -1,6 +1,6 @@
 /**
  * Distribution functions against a 50-digit mpmath reference (also matching R 4.2.2 and scipy 1.17.1):
- * /work/shared/checks/distribution_check_values.json. Each case carries its R expression (`r_expr`).
+ * tests/fixtures/reference/distribution_check_values.json. Each case carries its R expression (`r_expr`).
  */
 import { describe, expect, it } from "vitest";
 import {

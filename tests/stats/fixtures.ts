@@ -1,21 +1,23 @@
 /**
- * Loading the reference fixtures in /work/shared/checks and comparing numbers relatively.
+ * Loading the reference fixtures in tests/fixtures/reference (sources in its README.md) and comparing numbers
+ * relatively.
  */
 import { readFileSync } from "node:fs";
 import path from "node:path";
 import Papa from "papaparse";
 import { expect } from "vitest";
 
-export const checksDirectory = process.env.PLOTBANK_CHECKS_DIR ?? "/work/shared/checks";
+/** The repository's own copy of the published reference values, guarded by its SHA256SUMS. */
+export const referenceDirectory = path.resolve(__dirname, "../fixtures/reference");
 
 /** Reads a JSON fixture (e.g. "meta_normand1999_md_results.json"). */
 export function loadJsonFixture<T = any>(name: string): T {
-  return JSON.parse(readFileSync(path.join(checksDirectory, name), "utf8")) as T;
+  return JSON.parse(readFileSync(path.join(referenceDirectory, name), "utf8")) as T;
 }
 
 /** Reads a raw text fixture (e.g. a NIST .dat file). */
 export function loadTextFixture(name: string): string {
-  return readFileSync(path.join(checksDirectory, name), "utf8");
+  return readFileSync(path.join(referenceDirectory, name), "utf8");
 }
 
 /** Reads a CSV fixture: drops the leading `#` comment lines, then parses header + rows with papaparse. */

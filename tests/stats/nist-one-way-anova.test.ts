@@ -1,6 +1,6 @@
 /**
  * One-way ANOVA against the 11 NIST/ITL Statistical Reference Datasets (StRD) for ANOVA.
- * Certified values: /work/shared/checks/nist_anova/nist_anova_certified.json (parsed from the .dat headers).
+ * Certified values: tests/fixtures/reference/nist_anova/nist_anova_certified.json (parsed from the .dat headers).
  * Reference call: R `anova(lm(y ~ factor(group)))`; NIST certifies 15 significant digits.
  *
  * Log relative errors (LRE, digits correct) achieved, worst over SS/MS/F/R²/residual SD:

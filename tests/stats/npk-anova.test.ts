@@ -2,7 +2,7 @@
  * Sequential ANOVA, LSD, CV and means against R 4.2.2 `aov()` on the npk data:
  * Yates, F. (1935) Complex experiments, J R Stat Soc Suppl 2:181–247; R datasets::npk as analysed in
  * Venables & Ripley (2002) Modern Applied Statistics with S, 4th ed., §6.7.
- * Fixture: /work/shared/checks/anova_npk_results.json.
+ * Fixture: tests/fixtures/reference/anova_npk_results.json.
  */
 import { describe, expect, it } from "vitest";
 import { fitLinearModel, type LinearModelFit } from "@/stats/linear-model";

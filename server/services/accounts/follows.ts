@@ -3,7 +3,7 @@ import { datasets, follows, versions } from "@/db/schema";
 import type { FollowList } from "@/schemas/account";
 import type { AppContext } from "@/server/context";
 import { notFound } from "@/server/errors";
-import { compareSemver } from "@/server/services/catalogue";
+import { latestPublishedByDataset } from "@/server/services/latest-version";
 
 /** A dataset can be followed once it is public, i.e. has a published version; drafts stay invisible (404). */
 async function publicDatasetId(ctx: AppContext, slug: string): Promise<string> {
@@ -38,16 +38,12 @@ export async function listFollows(ctx: AppContext, userId: string): Promise<Foll
     .orderBy(desc(follows.createdAt));
   const published = rows.length
     ? await ctx.db
-        .select({ datasetId: versions.datasetId, semver: versions.semver })
+        .select({ datasetId: versions.datasetId, semver: versions.semver, state: versions.state })
         .from(versions)
         .where(and(inArray(versions.datasetId, rows.map((r) => r.id)), eq(versions.state, "published")))
     : [];
-  const latest = new Map<string, string>();
-  for (const v of published) {
-    const current = latest.get(v.datasetId);
-    if (!current || compareSemver(v.semver, current) > 0) latest.set(v.datasetId, v.semver);
-  }
+  const latest = latestPublishedByDataset(published);
   return {
-    items: rows.map((r) => ({ slug: r.slug, title: r.title, followedAt: r.followedAt.toISOString(), latestVersion: latest.get(r.id) ?? null })),
+    items: rows.map((r) => ({ slug: r.slug, title: r.title, followedAt: r.followedAt.toISOString(), latestVersion: latest.get(r.id)?.semver ?? null })),
   };
 }

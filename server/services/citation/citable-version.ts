@@ -6,6 +6,7 @@ import { contributor } from "@/schemas/dataset-metadata";
 import type { TableSchemaDescriptor } from "@/schemas/table-schema";
 import type { AppConfig } from "@/server/config";
 import { compareSemver } from "@/server/services/catalogue";
+import { latestPublishedOf, pickVersion } from "@/server/services/latest-version";
 import { citationCreators, type Creator } from "./creators";
 import { licenceInfo, type LicenceInfo } from "./licences";
 
@@ -103,8 +104,7 @@ export async function loadCitableDatasetOfVersion(db: Db, config: AppConfig, ver
 
 /** Resolve a semantic version or the `latest` alias among a dataset's released versions. */
 export function findVersion(dataset: CitableDataset, semver: string): CitableVersion | undefined {
-  if (semver === "latest") return dataset.current;
-  return dataset.versions.find((v) => v.semver === semver);
+  return pickVersion(dataset.versions, semver);
 }
 
 async function buildCitable(db: Db, config: AppConfig, rows: DatasetRow[]): Promise<CitableDataset[]> {
@@ -121,7 +121,7 @@ async function buildCitable(db: Db, config: AppConfig, rows: DatasetRow[]): Prom
     if (mine.length === 0) continue;
     const owner = owners.get(d.ownerId) ?? publisherName;
     const list = mine.map((v) => toCitableVersion(config, d, v, owner));
-    const current = [...list].reverse().find((v) => v.state === "published");
+    const current = latestPublishedOf(list);
     const head = current ?? list[list.length - 1]!;
     out.push({
       datasetId: d.id,

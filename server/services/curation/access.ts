@@ -19,6 +19,17 @@ export async function canEditDataset(db: Db, user: User | undefined, dataset: Da
 
 export const isReviewer = (user: User | undefined) => user?.role === "reviewer" || user?.role === "admin";
 
+/** Approving publishes, so it needs a second person: a reviewer approves a version in review they neither created nor submitted. */
+export const canApprove = (user: User | undefined, version: Pick<Version, "state" | "createdBy" | "submittedBy">) =>
+  version.state === "in_review" && isReviewer(user) && user!.id !== version.createdBy && user!.id !== version.submittedBy;
+
+/** Any reviewer may send a version in review back to its curators, their own included. */
+export const canReturn = (user: User | undefined, version: Pick<Version, "state">) => version.state === "in_review" && isReviewer(user);
+
+/** Reviewers and the dataset's editors withdraw published versions. */
+export const canWithdraw = (user: User | undefined, version: Pick<Version, "state">, datasetEditable: boolean) =>
+  version.state === "published" && (isReviewer(user) || datasetEditable);
+
 export async function datasetBySlug(db: Db, slug: string): Promise<Dataset> {
   const [d] = await db.select().from(datasets).where(eq(datasets.slug, slug));
   if (!d) throw notFound(`No dataset is called "${slug}".`);

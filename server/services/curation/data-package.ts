@@ -5,8 +5,8 @@ import type { Db } from "@/db/client";
 import { versions } from "@/db/schema";
 import type { Contributor } from "@/schemas/dataset-metadata";
 import { resourceName, type ResourceName, type TableSchemaResource } from "@/schemas/table-schema";
-import { HttpProblem, notFound } from "@/server/errors";
-import { compareSemver } from "@/server/services/catalogue";
+import { notFound } from "@/server/errors";
+import { pickVersion, versionGone } from "@/server/services/latest-version";
 import { datasetBySlug, type Dataset, type Version } from "./access";
 import { fieldsOf, resourceCsv, resourceOrder } from "./resource-csv";
 
@@ -20,14 +20,9 @@ const licences: Record<string, { path: string; title: string }> = {
 export async function publishedVersion(db: Db, slug: string, semver: string): Promise<{ dataset: Dataset; version: Version }> {
   const dataset = await datasetBySlug(db, slug);
   const rows = await db.select().from(versions).where(and(eq(versions.datasetId, dataset.id), inArray(versions.state, ["published", "withdrawn"])));
-  const version = semver === "latest" ? rows.filter((v) => v.state === "published").sort((a, b) => compareSemver(b.semver, a.semver))[0] : rows.find((v) => v.semver === semver);
+  const version = pickVersion(rows, semver);
   if (!version) throw notFound(`Dataset "${slug}" has no published version ${semver}.`);
-  if (version.state === "withdrawn") {
-    throw new HttpProblem(410, "Gone", `Version ${version.semver} of "${slug}" was withdrawn: ${version.withdrawnReason ?? "no reason given"}. Its metadata stays available; its rows are no longer served.`, {
-      withdrawnReason: version.withdrawnReason,
-      withdrawnAt: version.withdrawnAt?.toISOString(),
-    });
-  }
+  if (version.state === "withdrawn") throw versionGone(slug, version.semver, version.withdrawnReason, version.withdrawnAt);
   return { dataset, version };
 }
 

@@ -5,7 +5,7 @@ import { conflict, forbidden } from "@/server/errors";
 import { notifyReviewDecision, notifyReviewRequested, sendReviewMail } from "@/server/services/accounts/notifications";
 import { queueDoiWork } from "@/server/services/citation/doi-queue";
 import { runPublishHooks } from "@/server/services/publish-hooks";
-import { assertCanEdit, canEditDataset, isReviewer, versionById, type User } from "./access";
+import { assertCanEdit, canApprove, canEditDataset, isReviewer, versionById, type User } from "./access";
 import { versionChecksum } from "./resource-csv";
 import { assertSemverIncreases } from "./versions";
 
@@ -36,9 +36,7 @@ async function reviewable(ctx: AppContext, user: User, versionId: string, verb: 
  */
 export async function approveVersion(ctx: AppContext, user: User, versionId: string, comment?: string) {
   const { version, dataset } = await reviewable(ctx, user, versionId, "approve");
-  if (user.id === version.createdBy || user.id === version.submittedBy) {
-    throw forbidden("You created or submitted this version, so another reviewer must approve it.");
-  }
+  if (!canApprove(user, version)) throw forbidden("You created or submitted this version, so another reviewer must approve it.");
   await assertSemverIncreases(ctx.db, dataset.id, version.semver, "semver");
   await ctx.db.transaction(async (tx) => {
     const checksum = await versionChecksum(tx, versionId, version.tableSchema);

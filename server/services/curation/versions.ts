@@ -8,7 +8,8 @@ import type { AppContext } from "@/server/context";
 import { badRequest, conflict } from "@/server/errors";
 import { compareSemver } from "@/server/services/catalogue";
 import { computeResponses } from "@/server/services/ingest/recompute-responses";
-import { assertCanEdit, canEditDataset, isReviewer, versionById, type Dataset, type User, type Version } from "./access";
+import { latestPublishedOf } from "@/server/services/latest-version";
+import { assertCanEdit, canApprove, canEditDataset, canReturn, canWithdraw, versionById, type Dataset, type User, type Version } from "./access";
 import { copyVersionRows } from "./copy-version";
 import { iso } from "./datasets";
 import { bumpSemver, diffVersions } from "./diff";
@@ -17,7 +18,7 @@ import { doiRegistrationOf } from "./version-doi";
 
 export async function latestPublished(db: Db, datasetId: string): Promise<Version | null> {
   const rows = await db.select().from(versions).where(and(eq(versions.datasetId, datasetId), eq(versions.state, "published")));
-  return rows.sort((a, b) => compareSemver(b.semver, a.semver))[0] ?? null;
+  return latestPublishedOf(rows) ?? null;
 }
 
 /** Any version ever published (withdrawn ones too) blocks its number and every lower one. */
@@ -138,7 +139,9 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
       createdAt: r.createdAt.toISOString(),
     })),
     canEdit: canEdit && v.state === "draft",
-    canReview: v.state === "in_review" && isReviewer(user) && user!.id !== v.createdBy && user!.id !== v.submittedBy,
+    canReview: canApprove(user, v),
+    canReturn: canReturn(user, v),
+    canWithdraw: canWithdraw(user, v, canEdit),
     latestPublishedSemver: latest?.semver ?? null,
     suggestedBump,
     suggestedSemver,

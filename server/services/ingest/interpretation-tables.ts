@@ -1,6 +1,4 @@
-import type { soilTestClasses } from "@/schemas/filters";
-
-type SoilTestClass = (typeof soilTestClasses)[number];
+import { soilTestClasses, type SoilTestClass } from "@/constants/vocabulary";
 
 /**
  * Soil-test interpretation tables the validator knows by name. A soil-test row that names one of them in its
@@ -29,7 +27,7 @@ export const interpretationTables: Record<string, InterpretationTable> = {
   },
 };
 
-const order: SoilTestClass[] = ["very_low", "low", "optimum", "high", "very_high"];
+const order: readonly SoilTestClass[] = soilTestClasses;
 
 /** The class of a value under a named table, or null when the table does not cover the analyte and extractant. */
 export function interpretSoilTest(tableName: string, analyte: string, extractant: string | null, ppm: number): SoilTestClass | null {

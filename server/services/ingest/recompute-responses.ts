@@ -5,6 +5,7 @@ import type { Cell } from "./field-values";
 import type { Affected } from "./resource-ingest";
 import { responsesFromPlots, responsesFromSummaries, type SiteYearOutcome } from "./site-year-responses";
 import { insertRows, type Tx } from "./write-rows";
+import { writableKeys, type FullRow } from "@/db/columns";
 
 export interface RecomputeResult {
   siteYears: number;
@@ -12,13 +13,11 @@ export interface RecomputeResult {
   uncomputed: { siteYear: string; reason: string }[];
 }
 
-const RESPONSE_COLUMNS = [
-  "version_id", "site_year_id", "treatment_id", "check_treatment_id", "site_code", "site_year_code", "treatment_code", "crop", "year",
-  "tillage", "row_spacing_in", "planting_date", "nutrients", "placements", "n_lb_ac", "p2o5_lb_ac", "k2o_lb_ac", "s_lb_ac",
-  "soil_p_class", "soil_p_value", "soil_k_class", "soil_k_value", "soil_s_class", "soil_s_value", "check_mean_kg_ha",
-  "treated_mean_kg_ha", "md_kg_ha", "se_kg_ha", "df_error", "lnrr", "lnrr_var", "p_value", "lsd05_kg_ha", "cv_pct",
-  "replicates", "balanced", "from_summary",
-] as const;
+/** One response row with a value for every column of `responses` (adding a column fails to compile until it is filled). */
+export type ResponseRow = FullRow<typeof responses, Cell>;
+
+/** The columns of `responses` in db/schema's order, the order the rows are written in. */
+const responseKeys = writableKeys(responses);
 
 /** A PostgreSQL array literal, for COPY and for INSERT alike. */
 const pgArray = (values: string[]) => `{${values.map((v) => `"${v.replaceAll('"', '\\"')}"`).join(",")}}`;
@@ -33,7 +32,7 @@ export async function recomputeResponses(database: Database, tx: Tx, versionId: 
   const computed = await computeResponses(tx, versionId, affected, fromFile);
   if (affected === "all") await tx.delete(responses).where(eq(responses.versionId, versionId));
   else if (computed.siteYearIds.length) await tx.delete(responses).where(and(eq(responses.versionId, versionId), inArray(responses.siteYearId, computed.siteYearIds)));
-  await insertRows(database, tx, "responses", RESPONSE_COLUMNS, computed.rows);
+  await insertRows(database, tx, responses, responseKeys, computed.rows.map((row) => responseKeys.map((key) => row[key])));
   return { siteYears: computed.siteYearIds.length, rows: computed.rows.length, uncomputed: computed.uncomputed };
 }
 
@@ -47,7 +46,7 @@ export type FilePlotOutcomes = Map<number, SiteYearOutcome>;
  * The response rows of a draft's site-years (read only), and the site-years that have none, with the reason.
  * With `fromFile`, plots come from that file alone: a site-year it has no yields for has no plots with yields now.
  */
-export async function computeResponses(tx: Tx, versionId: string, affected: Affected, fromFile?: FilePlotOutcomes, codeListLimit = 1000): Promise<{ siteYearIds: number[]; rows: Cell[][]; uncomputed: RecomputeResult["uncomputed"] }> {
+export async function computeResponses(tx: Tx, versionId: string, affected: Affected, fromFile?: FilePlotOutcomes, codeListLimit = 1000): Promise<{ siteYearIds: number[]; rows: ResponseRow[]; uncomputed: RecomputeResult["uncomputed"] }> {
   // A file of thousands of site-years would send thousands of codes as parameters; reading the version's site-years
   // and keeping the named ones is cheaper then.
   const byList = affected !== "all" && affected.siteYearCodes.length <= codeListLimit;
@@ -63,7 +62,7 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
   const named = affected === "all" || byList ? null : new Set(affected.siteYearCodes);
   const syRows = named ? fetched.filter((s) => named.has(s.code)) : fetched;
   const siteYearIds = syRows.map((s) => s.id);
-  const rows: Cell[][] = [];
+  const rows: ResponseRow[] = [];
 
   const trtRows = await tx.select().from(treatments).where(eq(treatments.versionId, versionId));
   const trtById = new Map(trtRows.map((t) => [t.id, t]));
@@ -124,13 +123,15 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
       const p = soil?.get("P"), k = soil?.get("K"), s = soil?.get("S");
       for (const r of outcome.rows) {
         const t = trtById.get(r.treatmentId)!;
-        out.push([
-          versionId, sy.id, r.treatmentId, r.checkTreatmentId, sy.siteCode, sy.code, t.code, sy.crop, sy.year,
-          sy.tillage, sy.rowSpacingIn, sy.plantingDate, pgArray(t.nutrients), pgArray(t.placements), t.nLbAc, t.p2o5LbAc, t.k2oLbAc, t.sLbAc,
-          p?.cls ?? null, p?.value ?? null, k?.cls ?? null, k?.value ?? null, s?.cls ?? null, s?.value ?? null, r.checkMean,
-          r.treatedMean, r.md, r.se, r.dfError, r.lnrr, r.lnrrVar, r.pValue, r.lsd05, r.cvPct,
-          r.replicates, r.balanced, r.fromSummary,
-        ]);
+        out.push({
+          versionId, siteYearId: sy.id, treatmentId: r.treatmentId, checkTreatmentId: r.checkTreatmentId, siteCode: sy.siteCode, siteYearCode: sy.code,
+          treatmentCode: t.code, crop: sy.crop, year: sy.year, tillage: sy.tillage, rowSpacingIn: sy.rowSpacingIn, plantingDate: sy.plantingDate,
+          nutrients: pgArray(t.nutrients), placements: pgArray(t.placements), nLbAc: t.nLbAc, p2o5LbAc: t.p2o5LbAc, k2oLbAc: t.k2oLbAc, sLbAc: t.sLbAc,
+          soilPClass: p?.cls ?? null, soilPValue: p?.value ?? null, soilKClass: k?.cls ?? null, soilKValue: k?.value ?? null,
+          soilSClass: s?.cls ?? null, soilSValue: s?.value ?? null, checkMeanKgHa: r.checkMean, treatedMeanKgHa: r.treatedMean,
+          mdKgHa: r.md, seKgHa: r.se, dfError: r.dfError, lnrr: r.lnrr, lnrrVar: r.lnrrVar, pValue: r.pValue, lsd05KgHa: r.lsd05,
+          cvPct: r.cvPct, replicates: r.replicates, balanced: r.balanced, fromSummary: r.fromSummary,
+        });
       }
     }
   }

@@ -1,5 +1,7 @@
 import { sql } from "drizzle-orm";
+import type { PgTable } from "drizzle-orm/pg-core";
 import type { Database, Db } from "@/db/client";
+import { columnNames, tableName, type ColumnKey } from "@/db/columns";
 import type { Cell } from "./field-values";
 
 /** A drizzle transaction (or the db itself) as the ingest passes it around. */
@@ -75,10 +77,13 @@ export class RowBuffer {
 
 /**
  * Inserts rows into a table: PGlite's COPY FROM a blob in large batches (several times faster than INSERT there),
- * multi-row INSERTs on PostgreSQL. Column names are our own constants, never user input.
+ * multi-row INSERTs on PostgreSQL. `keys` names the row's columns in order by their db/schema property names; the SQL
+ * names come from the Drizzle table, never from user input.
  */
-export async function insertRows(database: Database, tx: Tx, table: string, columns: readonly string[], input: readonly Cell[][] | RowBuffer): Promise<void> {
+export async function insertRows<T extends PgTable>(database: Database, tx: Tx, into: T, keys: readonly ColumnKey<T>[], input: readonly Cell[][] | RowBuffer): Promise<void> {
   if (input.length === 0) return;
+  const table = tableName(into);
+  const columns = columnNames(into, keys);
   const client = database.kind === "pglite" ? pgliteClient(tx) : null;
   if (client) {
     let buffer = input instanceof RowBuffer ? input : null;

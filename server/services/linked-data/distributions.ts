@@ -6,6 +6,7 @@ import type { CitableVersion } from "@/server/services/citation/citable-version"
 import { versionById } from "@/server/services/curation/access";
 import { dataPackageZip } from "@/server/services/curation/data-package";
 import { resourceCsvChunks, resourceOrder } from "@/server/services/curation/resource-csv";
+import { resourceTitles } from "@/constants/vocabulary";
 
 export interface Distribution {
   title: string;
@@ -18,14 +19,6 @@ export interface Distribution {
   conformsTo: string;
 }
 
-const resourceTitles: Record<ResourceName, string> = {
-  sites: "Sites",
-  site_years: "Site-years",
-  soil_tests: "Soil tests",
-  treatments: "Treatments",
-  plots: "Plot observations",
-  summaries: "Treatment means (site-years without plots)",
-};
 
 /** Published versions never change, so the size and digest of a download, once computed, hold for good. */
 const factsCache = new Map<string, { byteSize: number; sha256: string }>();

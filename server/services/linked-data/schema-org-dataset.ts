@@ -4,6 +4,7 @@ import type { Creator } from "@/server/services/citation/creators";
 import type { TableSchemaDescriptor } from "@/schemas/table-schema";
 import { seasonsByVersion } from "./coverage";
 import { versionDistributions } from "./distributions";
+import { latestAlias } from "@/server/services/latest-version";
 
 type Node = Record<string, unknown>;
 
@@ -23,7 +24,7 @@ export async function schemaOrgDataset(
   const asked = semver ? findVersion(dataset, semver) : undefined;
   const version = asked ?? dataset.current;
   if (!version) return undefined;
-  const pinned = !!asked && semver !== "latest";
+  const pinned = !!asked && semver !== latestAlias;
   const withdrawn = version.state === "withdrawn";
   const [seasons, distributions] = await Promise.all([
     seasonsByVersion(ctx.db, [version.versionId]),

@@ -4,7 +4,8 @@ import { datasets, plots, responses, sites, siteYears, treatments, versions } fr
 import type { DatasetDetail, VersionDetail, VersionSummary } from "@/schemas/public";
 import { notFound } from "@/server/errors";
 import { compareSemver, listPublishedDatasets } from "@/server/services/catalogue";
-import { versionGone, type ResolvedVersion } from "@/server/services/trial-filter";
+import { latestAlias, pickVersion, versionGone } from "@/server/services/latest-version";
+import type { ResolvedVersion } from "@/server/services/trial-filter";
 
 const publicStates = ["published", "withdrawn"] as const;
 type VersionRow = typeof versions.$inferSelect;
@@ -79,8 +80,8 @@ export interface PathVersion extends ResolvedVersion {
 
 export async function pathVersion(db: Db, slug: string, semver: string): Promise<PathVersion> {
   const { dataset, versions: vs } = await publicVersionsOf(db, slug);
-  const v = semver === "latest" ? vs.find((x) => x.state === "published") : vs.find((x) => x.semver === semver);
-  if (!v) throw notFound(semver === "latest" ? `Dataset "${slug}" has no published version.` : `Dataset "${slug}" has no version ${semver}.`);
+  const v = pickVersion(vs, semver);
+  if (!v) throw notFound(semver === latestAlias ? `Dataset "${slug}" has no published version.` : `Dataset "${slug}" has no version ${semver}.`);
   return {
     versionId: v.id,
     datasetId: dataset.id,
@@ -89,7 +90,7 @@ export async function pathVersion(db: Db, slug: string, semver: string): Promise
     semver: v.semver,
     licence: licenceOf(v, dataset),
     state: v.state,
-    pinned: semver !== "latest",
+    pinned: semver !== latestAlias,
     withdrawnReason: v.withdrawnReason,
     row: v,
     dataset,
@@ -98,7 +99,7 @@ export async function pathVersion(db: Db, slug: string, semver: string): Promise
 
 /** Rows of a withdrawn version are gone: 410 with the reason (its metadata stays readable). */
 export function assertRowsServed(v: PathVersion): void {
-  if (v.state === "withdrawn") throw versionGone(v.datasetSlug, v.semver, v.withdrawnReason);
+  if (v.state === "withdrawn") throw versionGone(v.datasetSlug, v.semver, v.withdrawnReason, v.row.withdrawnAt);
 }
 
 export async function versionDetail(db: Db, v: PathVersion): Promise<VersionDetail> {

@@ -101,7 +101,7 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy }: Ing
         const ids = [...tallies.values()].filter((t) => state.siteYears.get(t.code)?.hasPlots).map((t) => t.id);
         if (ids.length) await tx.delete(plots).where(and(eq(plots.versionId, versionId), inArray(plots.siteYearId, ids)));
       }
-      await insertRows(database, tx, "plots", ["version_id", "site_year_id", "treatment_id", "plot", "block", "yield_kg_ha", "harvest_moisture_pct", "stand_count", "vigour", "test_weight"], out);
+      await insertRows(database, tx, plots, ["versionId", "siteYearId", "treatmentId", "plot", "block", "yieldKgHa", "harvestMoisturePct", "standCount", "vigour", "testWeight"], out);
       return options.mode === "replace" ? "all" : { siteYearCodes: [...tallies.keys()] };
     },
   };

@@ -85,8 +85,8 @@ export function siteYearsIngest({ state, options, report, versionId }: IngestCon
       await insertRows(
         database,
         tx,
-        "site_years",
-        ["version_id", "site_id", "code", "crop", "year", "design", "blocks", "tillage", "previous_crop", "planting_date", "row_spacing_in", "variety", "maturity_group"],
+        siteYears,
+        ["versionId", "siteId", "code", "crop", "year", "design", "blocks", "tillage", "previousCrop", "plantingDate", "rowSpacingIn", "variety", "maturityGroup"],
         fresh.map((r) => [versionId, state.sites.get(r.siteCode)!.id, r.code, r.crop, r.year, r.design, r.blocks, r.tillage, r.previousCrop, r.plantingDate, r.rowSpacingIn, r.variety, r.maturityGroup]),
       );
       if (options.mode === "replace") {

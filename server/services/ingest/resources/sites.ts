@@ -34,7 +34,7 @@ export function sitesIngest({ state, options, report, versionId }: IngestContext
           await tx.update(sites).set({ location: r.location, soilSeries: r.soilSeries, soilTexture: r.soilTexture }).where(and(eq(sites.versionId, versionId), eq(sites.code, r.code)));
         } else fresh.push(r);
       }
-      await insertRows(database, tx, "sites", ["version_id", "code", "location", "soil_series", "soil_texture"], fresh.map((r) => [versionId, r.code, r.location, r.soilSeries, r.soilTexture]));
+      await insertRows(database, tx, sites, ["versionId", "code", "location", "soilSeries", "soilTexture"], fresh.map((r) => [versionId, r.code, r.location, r.soilSeries, r.soilTexture]));
       if (options.mode === "replace") {
         const gone = [...state.sites.keys()].filter((c) => !rows.has(c));
         if (gone.length) await tx.delete(sites).where(and(eq(sites.versionId, versionId), inArray(sites.code, gone)));

@@ -63,7 +63,7 @@ export function soilTestsIngest({ state, options, report, versionId }: IngestCon
         const ids = [...siteYearCodes].map((c) => state.siteYears.get(c)!.id);
         if (ids.length) await tx.delete(soilTests).where(and(eq(soilTests.versionId, versionId), inArray(soilTests.siteYearId, ids)));
       }
-      await insertRows(database, tx, "soil_tests", ["version_id", "site_year_id", "analyte", "value", "unit", "extractant", "depth_in", "class", "interpretation"], out);
+      await insertRows(database, tx, soilTests, ["versionId", "siteYearId", "analyte", "value", "unit", "extractant", "depthIn", "class", "interpretation"], out);
       return options.mode === "replace" ? "all" : { siteYearCodes: [...siteYearCodes] };
     },
   };

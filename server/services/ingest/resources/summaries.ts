@@ -53,7 +53,7 @@ export function summariesIngest({ state, options, report, versionId }: IngestCon
         const ids = [...tallies.values()].map((t) => t.id);
         if (ids.length) await tx.delete(summaryMeans).where(and(eq(summaryMeans.versionId, versionId), inArray(summaryMeans.siteYearId, ids)));
       }
-      await insertRows(database, tx, "summary_means", ["version_id", "site_year_id", "treatment_id", "mean_kg_ha", "replicates", "mse", "df_error"], out);
+      await insertRows(database, tx, summaryMeans, ["versionId", "siteYearId", "treatmentId", "meanKgHa", "replicates", "mse", "dfError"], out);
       return options.mode === "replace" ? "all" : { siteYearCodes: [...tallies.keys()] };
     },
   };

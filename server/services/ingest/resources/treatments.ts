@@ -139,7 +139,7 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
           appRows.push([versionId, ids.get(t.code)!, a.product, a.grade, a.productRate, a.rateUnit, a.densityLbGal, a.placement, a.timing, a.n, a.p2o5, a.k2o, a.s]);
         }
       }
-      await insertRows(database, tx, "applications", ["version_id", "treatment_id", "product", "grade", "product_rate", "rate_unit", "density_lb_gal", "placement", "timing", "n_lb_ac", "p2o5_lb_ac", "k2o_lb_ac", "s_lb_ac"], appRows);
+      await insertRows(database, tx, applications, ["versionId", "treatmentId", "product", "grade", "productRate", "rateUnit", "densityLbGal", "placement", "timing", "nLbAc", "p2o5LbAc", "k2oLbAc", "sLbAc"], appRows);
       if (options.mode === "replace") {
         const gone = [...state.treatments.entries()].filter(([c]) => !rows.has(c)).map(([, t]) => t.id);
         if (gone.length) await tx.delete(treatments).where(inArray(treatments.id, gone));

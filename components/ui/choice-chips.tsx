@@ -1,4 +1,5 @@
 import { Pressable, StyleSheet, View } from "react-native";
+import { FieldError } from "@/components/ui/text-field";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, radius, space } from "@/constants/theme";
 
@@ -8,8 +9,10 @@ export interface Choice<T extends string> {
 }
 
 /**
- * A row of touch-friendly chips. `multiple` chips toggle (checkboxes to assistive tech); otherwise they form a
- * segmented control (radio buttons). Each is a focusable Pressable, so Tab moves through them in reading order.
+ * A row of touch-friendly chips, the app's one choice control. `multiple` chips toggle (checkboxes to assistive
+ * tech); otherwise they form a segmented control (radio buttons). Each is a focusable Pressable, so Tab moves through
+ * them in reading order, and each is named "label: choice", so chips repeated down a list stay unambiguous. A form's
+ * `error` sits under the chips.
  */
 export function ChoiceChips<T extends string>({
   label,
@@ -18,6 +21,7 @@ export function ChoiceChips<T extends string>({
   onToggle,
   multiple = false,
   testID,
+  error,
 }: {
   label: string;
   choices: readonly Choice<T>[];
@@ -25,6 +29,7 @@ export function ChoiceChips<T extends string>({
   onToggle: (value: T) => void;
   multiple?: boolean;
   testID?: string;
+  error?: string;
 }) {
   return (
     <View style={styles.group} role={multiple ? "group" : "radiogroup"} aria-label={label} testID={testID}>
@@ -47,6 +52,7 @@ export function ChoiceChips<T extends string>({
           );
         })}
       </View>
+      {error ? <FieldError message={error} /> : null}
     </View>
   );
 }

@@ -1,5 +1,4 @@
 import { StyleSheet, TextInput, View, type TextInputProps } from "react-native";
-import { ChoiceChips as EvidenceChoiceChips, type Choice } from "@/components/evidence/choice-chips";
 import { colors, fonts, minTap, radius, space } from "@/constants/theme";
 import { Text } from "@/components/ui/text";
 
@@ -37,34 +36,6 @@ export function FieldError({ message }: { message: string }) {
     <Text variant="caption" role="alert" style={styles.error}>
       {message}
     </Text>
-  );
-}
-
-export type ChoiceOption<T extends string> = Choice<T>;
-
-/**
- * The app's chips (one choice or several) with the field's error under them. Every chip is named "label: option", so
- * `compact` (a row inside a list) needs nothing extra to stay unambiguous.
- */
-export function ChoiceChips<T extends string>({
-  options,
-  error,
-  compact: _compact,
-  ...props
-}: {
-  label: string;
-  options: readonly ChoiceOption<T>[];
-  selected: readonly T[];
-  onToggle: (value: T) => void;
-  multiple?: boolean;
-  error?: string;
-  compact?: boolean;
-}) {
-  return (
-    <View style={styles.field}>
-      <EvidenceChoiceChips choices={options} {...props} />
-      {error ? <FieldError message={error} /> : null}
-    </View>
   );
 }
 
