@@ -21,7 +21,7 @@ const helper = createColumnHelper<typeof features, ForestRow>();
 
 /** Column widths of the table layout; the treatment column takes what is left. */
 const widths: Record<string, number> = { siteYearCode: 96, soil: 88, estimate: 116, pooledWeight: 72, pValue: 84 };
-const minTreatmentWidth = 150;
+const minTreatmentWidth = 280;
 /** Narrower than this the rows become a list, so nothing is clipped or scrolls sideways. */
 const tableMinWidth = Object.values(widths).reduce((a, b) => a + b, 0) + minTreatmentWidth;
 
@@ -67,6 +67,7 @@ export function SiteYearTable({ rows, units, groupLabels = {} }: { rows: ForestR
       <Text variant="caption">
         Weight: each site-year's share of the mean above{grouped ? "; in a grouped view each row also shows its weight within its group's subtotal" : ""}.
       </Text>
+      {list ? <Text variant="label">Sort by (tap again to reverse)</Text> : null}
       <View role="table" aria-label="Site-years in this analysis" aria-rowcount={rows.length + 1} testID="site-year-table" style={styles.table}>
         <View role="row" style={[styles.row, styles.headRow, list && styles.sortRow]}>
           {table.getHeaderGroups()[0]!.headers.map((header) => {
