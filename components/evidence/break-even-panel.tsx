@@ -112,6 +112,9 @@ export function BreakEvenPanel({ result, prices, onPrices }: { result: MetaAnaly
           {missing && d.breakEvenUnitsPerBushel !== null ? <Text variant="caption">Give a grain price and a cost for the break-even and the chance it pays.</Text> : null}
         </View>
       )}
+      {d.observedResponses === null && local.breakEven !== null ? (
+        <Text variant="caption">• Too many site-years to send each response to this device, so the observed share at your break-even is not shown; the API gives it with price= and cost=.</Text>
+      ) : null}
       <Text variant="caption" testID="chance-explained">{chanceExplanation}</Text>
       {d.breakEvenUnitsPerBushel === null ? <Text variant="caption">• No break-even here: it needs a yield response in bu/ac, or in kg/ha for one crop.</Text> : null}
       {d.notes

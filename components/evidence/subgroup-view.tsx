@@ -80,7 +80,10 @@ export function SubgroupView({ result, groupBy, onGroupBy, prices }: { result: M
               : "Only one group: nothing to compare."}
           </Text>
           <Text variant="caption">{s.model}</Text>
-          <Text variant="caption">Each group's chance uses its own mean with the spread between site-years shared by all groups (t with k − p df, p the number of groups).</Text>
+          <Text variant="caption">
+            Each group's chance uses its own mean with the spread between site-years shared by all groups (
+            {s.levels.some((l) => l.predictive?.df === null) ? "normal, as the Wald option asks" : "t with k − p df, p the number of groups"}).
+          </Text>
           {s.notes.map((n) => (
             <Text key={n} variant="caption">• {n}</Text>
           ))}
