@@ -88,7 +88,7 @@ function plotSummary(result: MetaAnalysisResponse): string {
   const hi = Math.max(...result.rows.map((r) => r.estimate));
   const pi = result.pooled.predictionInterval;
   return (
-    `Forest plot of ${result.forest.truncated ? `the ${result.rows.length} most precise of ${result.forest.total}` : result.rows.length} site-year responses, from ${formatResponse(lo, result.units)} to ${formatResponse(hi, result.units)} ${u}. ` +
+    `Forest plot of ${result.forest.truncated ? `the ${result.rows.length} most precise of ${result.forest.total}` : result.rows.length} site-year responses${result.subgroups && result.subgroups.levels.length > 1 ? " (a site-year once in each group it has a treatment in)" : ""}, from ${formatResponse(lo, result.units)} to ${formatResponse(hi, result.units)} ${u}. ` +
     `Mean ${formatResponse(result.pooled.estimate, result.units)} ${u}, 95 % CI ${formatInterval(result.pooled.ciLower, result.pooled.ciUpper, result.units)}` +
     (pi ? `; a new field ${formatInterval(pi.lower, pi.upper, result.units)}.` : ".")
   );
