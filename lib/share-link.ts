@@ -1,7 +1,11 @@
 import { metaOptionShape, type CiMethod, type EffectMeasure, type Grouping, type TauMethod, type YieldUnit } from "@/schemas/analysis";
 import { filtersToQuery, trialFilterShape, type TrialFilters } from "@/schemas/filters";
 
-/** What the Evidence screen shows, all of it held in the URL so a shared link reproduces the screen. */
+/**
+ * What the Evidence screen shows, held in the URL so a shared link reproduces the screen. Prices are the exception:
+ * they are read from a link that carries them, but the screen's own URL and its API requests never do; only a share
+ * link the user asks to include them in has them (see `shareUrl`).
+ */
 export interface EvidenceState {
   filters: Partial<TrialFilters>;
   effect: EffectMeasure;
@@ -16,7 +20,7 @@ export interface EvidenceState {
 
 export const defaultEvidenceState: EvidenceState = { filters: {}, effect: "md", method: "REML", ci: "hksj", groupBy: "soilTestClass", units: "bu/ac" };
 
-const priceKeys = ["price", "productCost", "applicationCost"] as const;
+export const priceKeys = ["price", "productCost", "applicationCost"] as const;
 export type PriceKey = (typeof priceKeys)[number];
 export type Prices = Partial<Record<PriceKey, number>>;
 
@@ -58,17 +62,23 @@ export function evidenceStateFromParams(params: Params): EvidenceState {
   return state;
 }
 
-/** The screen's URL parameters: canonical filters, options only where they differ from the defaults, and prices. */
-export function paramsFromEvidenceState(state: EvidenceState): Record<string, string> {
+/**
+ * The screen's URL parameters: canonical filters and options only where they differ from the defaults. Prices only
+ * with `withPrices` (a share link the user chose to include them in).
+ */
+export function paramsFromEvidenceState(state: EvidenceState, options: { withPrices?: boolean } = {}): Record<string, string> {
   const out: Record<string, string> = { ...filtersToQuery(state.filters) };
   for (const key of ["effect", "method", "ci", "groupBy", "units"] as const) {
     if (state[key] !== defaultEvidenceState[key]) out[key] = state[key];
   }
-  for (const key of priceKeys) if (state[key] !== undefined) out[key] = String(state[key]);
+  if (options.withPrices) for (const key of priceKeys) if (state[key] !== undefined) out[key] = String(state[key]);
   return out;
 }
 
-/** The API query that gives the screen's numbers (the API's own default is no grouping, so groupBy is always named). */
+/**
+ * The API query that gives the screen's numbers, without prices: the device computes the break-even and its chances
+ * from the predictive distribution in the answer. (The API's own default is no grouping, so groupBy is always named.)
+ */
 export function apiParamsFromEvidenceState(state: EvidenceState): Record<string, string> {
   const out: Record<string, string> = { ...paramsFromEvidenceState(state), groupBy: state.groupBy };
   return Object.fromEntries(Object.entries(out).sort(([a], [b]) => a.localeCompare(b)));
@@ -81,11 +91,13 @@ export function toQueryString(params: Record<string, string>): string {
 }
 
 export const metaApiPath = (state: EvidenceState) => `/api/v1/analyses/meta${toQueryString(apiParamsFromEvidenceState(state))}`;
-export const shareUrl = (origin: string, state: EvidenceState) => `${origin.replace(/\/$/, "")}/${toQueryString(paramsFromEvidenceState(state))}`;
+/** A link to the screen; the prices go in only when the user asks for them. */
+export const shareUrl = (origin: string, state: EvidenceState, options: { withPrices?: boolean } = {}) =>
+  `${origin.replace(/\/$/, "")}/${toQueryString(paramsFromEvidenceState(state, options))}`;
 /** A copy-paste curl line; the URL is single-quoted so a shell does not read & or ?. */
 export const curlCommand = (url: string) => `curl -H 'Accept: application/json' '${url.replace(/'/g, "'\\''")}'`;
 
-/** The params object for router.setParams: every evidence key, unset ones as undefined so they leave the URL. */
+/** The params object for router.setParams: every evidence key, unset ones (and the prices) as undefined so they leave the URL. */
 export function routerParams(state: EvidenceState): Record<string, string | undefined> {
   const set = paramsFromEvidenceState(state);
   return Object.fromEntries(evidenceParamKeys.map((key) => [key, set[key]]));

@@ -81,6 +81,11 @@ export const forestRow = z
     pValue: z.number().nullable().describe("Two-sided t test of the site-year's own contrast"),
     significant: z.boolean().nullable().describe("p < 0.05 in the site-year's own analysis"),
     weightPercent: z.number().describe("Weight in the pooled estimate (within its group when grouped)"),
+    pooledWeightPercent: z
+      .number()
+      .nullable()
+      .describe("Weight of this row's site-year in the headline pooled estimate (every group row of one site-year has the same); null when it is not in it"),
+    treatmentLabels: z.array(z.string()).describe("Each treatment in words: product and grade, nutrient rates, placement (same order as `treatments`)"),
     soilTestAnalyte: z.string().nullable(),
     soilTestClass: z.string().nullable(),
     soilTestValue: z.number().nullable(),
@@ -99,6 +104,30 @@ export const forestExtent = z
   })
   .meta({ id: "ForestExtent" });
 export type ForestExtent = z.infer<typeof forestExtent>;
+
+export const predictiveDistribution = z
+  .object({
+    estimate: z.number().describe("Centre: the estimated mean response"),
+    se: z.number().describe("SE of the estimated mean"),
+    tau2: z.number().describe("τ² between site-years"),
+    df: z.number().int().nullable().describe("t degrees of freedom of the predictive distribution; null for the normal"),
+    lower: z.number().describe("2.5 % point: estimate − t(0.975, df)·√(τ² + SE²)"),
+    upper: z.number().describe("97.5 % point"),
+  })
+  .describe(
+    "Random-effects predictive distribution of the response on a new site-year: estimate + √(τ² + SE²)·T with T ~ t(df). " +
+      "P(response > B) = 1 − T_df((B − estimate)/√(τ² + SE²)) gives the chance of beating any break-even B, so a client can compute it without sending prices.",
+  )
+  .meta({ id: "PredictiveDistribution" });
+export type PredictiveDistributionShape = z.infer<typeof predictiveDistribution>;
+
+/** Above this many site-years an answer does not list every observed response (the shares then come from the API). */
+export const observedResponsesLimit = 2000;
+
+const observedResponses = z
+  .array(z.number())
+  .nullable()
+  .describe(`Every site-year's observed response, ascending, for the share above any break-even; null above ${observedResponsesLimit} site-years`);
 
 export const pooledEstimate = z
   .object({
@@ -139,6 +168,14 @@ export const subgroupLevel = z
     ciLower: z.number(),
     ciUpper: z.number(),
     pValue: z.number(),
+    predictive: predictiveDistribution
+      .nullable()
+      .describe("This level's predictive distribution with the common τ², as metafor's predict() on the ~ 0 + group model gives it: t(k − p) under HKSJ, normal under Wald; null for FE or too few site-years"),
+    probabilityAboveZero: z.number().nullable().describe("P(response > 0) on a new site-year of this level"),
+    probabilityAboveBreakEven: z.number().nullable().describe("P(response > break-even) on a new site-year of this level, when price and cost are given"),
+    shareAboveZero: z.number().nullable().describe("Share of this level's site-years with an observed response > 0"),
+    shareAboveBreakEven: z.number().nullable(),
+    observedResponses,
   })
   .meta({ id: "SubgroupLevel" });
 
@@ -173,6 +210,12 @@ export const decisionNumbers = z
     shareAboveBreakEven: z.number().nullable(),
     shareSignificant: z.number().nullable().describe("Share of site-years whose own analysis found the response significant (p < 0.05)"),
     significantCount: z.number().int(),
+    predictive: predictiveDistribution.nullable().describe("The pooled predictive distribution, t(k − 2) (Higgins, Thompson & Spiegelhalter 2009); null for k < 3 or no spread"),
+    breakEvenUnitsPerBushel: z
+      .number()
+      .nullable()
+      .describe("Response units per bu/ac, to turn cost ÷ price into a break-even: 1 in bu/ac, the crop's kg/ha per bu/ac in kg/ha; null when no break-even applies (lnrr, or several crops in kg/ha)"),
+    observedResponses,
     notes: z.array(z.string()),
   })
   .meta({ id: "DecisionNumbers" });

@@ -9,6 +9,10 @@
  */
 import jstat from "jstat";
 import { logBeta, logGamma, regularizedIncompleteBeta, regularizedIncompleteGamma } from "@/stats/special-functions";
+import { normalUpperTail, tUpperTail } from "@/stats/tail-probabilities";
+
+// The t and normal tails need no jStat, so they live apart and the Evidence screen can bundle them alone.
+export { normalCdf, tCdf, tUpperTail } from "@/stats/tail-probabilities";
 
 function assertProbability(p: number, name: string): void {
   if (!(p > 0 && p < 1)) throw new RangeError(`${name}: probability must be in (0, 1), got ${p}`);
@@ -56,26 +60,6 @@ export function tDensity(x: number, df: number): number {
   return Math.exp(
     logGamma((df + 1) / 2) - logGamma(df / 2) - 0.5 * Math.log(df * Math.PI) - ((df + 1) / 2) * Math.log1p((x * x) / df),
   );
-}
-
-/** Upper tail P(T >= x) of Student t with df degrees of freedom. @example tUpperTail(1, 1) // 0.25 */
-export function tUpperTail(x: number, df: number): number {
-  assertDegreesOfFreedom(df, "tUpperTail");
-  if (x === 0) return 0.5;
-  const squared = x * x;
-  // P(|T| >= |x|) = I_{ν/(ν+x²)}(ν/2, 1/2); pass both arguments to avoid forming 1 − x.
-  const { lower: twoSided } = regularizedIncompleteBeta(df / (df + squared), squared / (df + squared), df / 2, 0.5);
-  return x > 0 ? twoSided / 2 : 1 - twoSided / 2;
-}
-
-/**
- * Cumulative distribution function of Student's t, P(T <= x).
- *
- * Reference: Abramowitz & Stegun (1964) 26.7.1 via the incomplete beta function; R `pt(x, df)`.
- * @example tCdf(1.5, 10) // 0.9177463367772799 (R: pt(1.5, 10))
- */
-export function tCdf(x: number, df: number): number {
-  return tUpperTail(-x, df);
 }
 
 /**
@@ -199,20 +183,6 @@ export function chiSquareQuantile(p: number, df: number): number {
 /** Standard normal density φ(x). @example normalDensity(0) // 0.3989422804014327 */
 export function normalDensity(x: number): number {
   return Math.exp(-0.5 * x * x) / Math.sqrt(2 * Math.PI);
-}
-
-/** Upper tail P(Z >= x) = ½·erfc(x/√2) = ½·Q(½, x²/2) for x >= 0. */
-function normalUpperTail(x: number): number {
-  if (x < 0) return 1 - normalUpperTail(-x);
-  return 0.5 * regularizedIncompleteGamma(0.5, (x * x) / 2).upper;
-}
-
-/**
- * Standard normal cumulative distribution function Φ(x). R `pnorm(x)`.
- * @example normalCdf(-1.96) // 0.024997895148220435
- */
-export function normalCdf(x: number): number {
-  return normalUpperTail(-x);
 }
 
 /**

@@ -34,6 +34,7 @@ export function ApiLinkPanel({ apiUrl }: { apiUrl: string }) {
       <CopyRow label="URL" text={apiUrl} testID="api-url" />
       <CopyRow label="curl line" text={curlCommand(apiUrl)} testID="api-curl" />
       <CopyRow label="CSV URL" text={`${apiUrl}${apiUrl.includes("?") ? "&" : "?"}format=csv`} testID="api-csv" />
+      <Text variant="caption">Your prices are not in these links. A script can add price= ($/bu) and cost= ($/ac) to get the break-even numbers in the answer.</Text>
     </Disclosure>
   );
 }

@@ -1,21 +1,21 @@
 import * as Clipboard from "expo-clipboard";
 import { router, useLocalSearchParams } from "expo-router";
 import { useCallback, useEffect, useMemo, useRef, useState } from "react";
-import { Platform, ScrollView, StyleSheet, View } from "react-native";
-import { ForestPlot } from "@/components/charts/forest-plot";
+import { Platform, Pressable, ScrollView, StyleSheet, View } from "react-native";
+import { ForestPlot, type ForestGroup } from "@/components/charts/forest-plot";
 import { SoilTestScatter } from "@/components/charts/scatter-plot";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
-import { colors, space } from "@/constants/theme";
+import { colors, minTap, radius, space } from "@/constants/theme";
 import { useMetaAnalysis } from "@/hooks/use-analysis";
 import { useDatasetList } from "@/hooks/use-datasets";
 import { useLayout } from "@/hooks/use-layout";
 import { apiUrl } from "@/lib/api-client";
 import { ApiError } from "@/lib/api-error";
 import { loadPrices, savePrices } from "@/lib/device-storage";
-import { countActiveFilters, evidenceStateFromParams, metaApiPath, routerParams, shareUrl, type EvidenceState, type Prices } from "@/lib/share-link";
+import { countActiveFilters, evidenceStateFromParams, metaApiPath, priceKeys, routerParams, shareUrl, type EvidenceState, type Prices } from "@/lib/share-link";
 import type { MetaAnalysisResponse } from "@/schemas/analysis";
 import { AdvancedOptions } from "./advanced-options";
 import { ApiLinkPanel, CopyRow } from "./api-link-panel";
@@ -23,10 +23,11 @@ import { BreakEvenPanel } from "./break-even-panel";
 import { Cautions } from "./cautions";
 import { Disclosure } from "./disclosure";
 import { FilterPanel } from "./filter-panel";
-import { formatInterval, formatResponse, unitLabel } from "./format";
+import { formatInterval, formatResponse, levelLabel, unitLabel } from "./format";
+import { groupStyles } from "./group-style";
 import { ProvenancePanel } from "./provenance-panel";
 import { SiteYearTable } from "@/components/lazy-tables";
-import { SubgroupView } from "./subgroup-view";
+import { levelLabels, SubgroupView } from "./subgroup-view";
 import { SummaryCard } from "./summary-card";
 
 function origin(): string {
@@ -44,29 +45,39 @@ function useEvidenceState(): [EvidenceState, (next: EvidenceState) => void] {
   return [state, update];
 }
 
-/** Prices come from the link when it has them, else from this device; edits go to both. */
-function usePrices(state: EvidenceState, update: (next: EvidenceState) => void): [Prices, (p: Prices) => void] {
+/**
+ * The grower's prices live on this device: loaded from its storage, or taken from a link that carries them, and
+ * then kept out of the screen's URL, so neither an API request nor a reload sends them. Edits are saved on the device
+ * only; the break-even and its chances are computed here from the answer's predictive distribution.
+ */
+function usePrices(state: EvidenceState, update: (next: EvidenceState) => void, routerReady: boolean): [Prices, (p: Prices) => void] {
+  const linkPrices = useRef<Prices | null>(null);
+  if (linkPrices.current === null) {
+    linkPrices.current = Object.fromEntries(priceKeys.flatMap((k) => (state[k] === undefined ? [] : [[k, state[k]]])));
+  }
+  const [prices, setPricesState] = useState<Prices>(linkPrices.current);
   const stateRef = useRef(state);
   stateRef.current = state;
-  const hasLinkPrices = state.price !== undefined || state.productCost !== undefined || state.applicationCost !== undefined;
-  const arrived = useRef(false);
+  const inLink = priceKeys.some((k) => state[k] !== undefined);
   useEffect(() => {
-    // Only on arrival: once the user edits, the device copy follows them, not the other way round.
-    if (arrived.current) return;
-    arrived.current = true;
-    if (hasLinkPrices) return;
+    // A link's prices are used, then taken out of the address bar (routerParams never writes prices). The router
+    // ignores setParams until it is mounted, so this waits for the first answer.
+    if (inLink && routerReady) update({ ...stateRef.current });
+  }, [inLink, routerReady, update]);
+  useEffect(() => {
+    if (Object.keys(linkPrices.current ?? {}).length) return;
+    let live = true;
     void loadPrices().then((stored) => {
-      if (Object.keys(stored).length) update({ ...stateRef.current, ...stored });
+      if (live && Object.keys(stored).length) setPricesState((current) => (Object.keys(current).length ? current : stored));
     });
-  }, [hasLinkPrices, update]);
-  const prices = { price: state.price, productCost: state.productCost, applicationCost: state.applicationCost };
-  const setPrices = useCallback(
-    (p: Prices) => {
-      void savePrices(p);
-      update({ ...stateRef.current, price: p.price, productCost: p.productCost, applicationCost: p.applicationCost });
-    },
-    [update],
-  );
+    return () => {
+      live = false;
+    };
+  }, []);
+  const setPrices = useCallback((p: Prices) => {
+    setPricesState(p);
+    void savePrices(p);
+  }, []);
   return [prices, setPrices];
 }
 
@@ -77,7 +88,7 @@ function plotSummary(result: MetaAnalysisResponse): string {
   const hi = Math.max(...result.rows.map((r) => r.estimate));
   const pi = result.pooled.predictionInterval;
   return (
-    `Forest plot of ${result.forest.truncated ? `the ${result.rows.length} most precise of ${result.forest.total}` : result.rows.length} site-year responses, from ${formatResponse(lo, result.units)} to ${formatResponse(hi, result.units)} ${u}. ` +
+    `Forest plot of ${result.forest.truncated ? `the ${result.rows.length} most precise of ${result.forest.total}` : result.rows.length} site-year responses${result.subgroups && result.subgroups.levels.length > 1 ? " (a site-year once in each group it has a treatment in)" : ""}, from ${formatResponse(lo, result.units)} to ${formatResponse(hi, result.units)} ${u}. ` +
     `Mean ${formatResponse(result.pooled.estimate, result.units)} ${u}, 95 % CI ${formatInterval(result.pooled.ciLower, result.pooled.ciUpper, result.units)}` +
     (pi ? `; a new field ${formatInterval(pi.lower, pi.upper, result.units)}.` : ".")
   );
@@ -90,20 +101,38 @@ function scatterSummary(result: MetaAnalysisResponse): string {
   return `Scatter of response against soil-test value. ${parts.join("; ")}.`;
 }
 
+/** The forest's groups: one per subgroup level, in the answer's order, with the level's colour and shape. */
+function forestGroups(result: MetaAnalysisResponse, groupBy: EvidenceState["groupBy"]): ForestGroup[] {
+  const levels = result.subgroups?.levels ?? [];
+  if (levels.length === 0) return [];
+  const styleOf = groupStyles(groupBy, levels.map((l) => l.level));
+  return levels.map((l) => ({ level: l.level, label: levelLabel(l.level, levelLabels), k: l.k, estimate: l.estimate, ciLower: l.ciLower, ciUpper: l.ciUpper, ...styleOf.get(l.level)! }));
+}
+
+function groupedSummary(groups: ForestGroup[], units: string): string {
+  if (groups.length === 0) return "";
+  return ` Grouped: ${groups.map((g) => `${g.label}, k = ${g.k}, subtotal ${formatResponse(g.estimate, units)} (${formatInterval(g.ciLower, g.ciUpper, units)})`).join("; ")}.`;
+}
+
 function Results({ result, state, update, prices, setPrices }: { result: MetaAnalysisResponse; state: EvidenceState; update: (s: EvidenceState) => void; prices: Prices; setPrices: (p: Prices) => void }) {
   const fmt = (v: number) => formatResponse(v, result.units).replace("+", "");
   const pooled = result.pooled
     ? { estimate: result.pooled.estimate, ciLower: result.pooled.ciLower, ciUpper: result.pooled.ciUpper, prediction: result.pooled.predictionInterval }
     : null;
+  const groups = forestGroups(result, state.groupBy);
   return (
     <View style={styles.stack}>
       <SummaryCard result={result} units={state.units} onUnits={(units) => update({ ...state, units })} />
       <Cautions cautions={result.cautions} />
       <BreakEvenPanel result={result} prices={prices} onPrices={setPrices} />
-      <SubgroupView result={result} groupBy={state.groupBy} onGroupBy={(groupBy) => update({ ...state, groupBy })} />
+      <SubgroupView result={result} groupBy={state.groupBy} onGroupBy={(groupBy) => update({ ...state, groupBy })} prices={prices} />
       <Card>
-        <Disclosure title="Forest plot" hint={`${result.rows.length} rows, the mean and the range for a new field`} testID="open-forest-plot">
-          <ForestPlot rows={result.rows} pooled={pooled} format={fmt} unitLabel={unitLabel(result.units)} summary={plotSummary(result)} />
+        <Disclosure
+          title="Forest plot"
+          hint={groups.length > 1 ? `${result.rows.length} rows in ${groups.length} groups, each with its subtotal, then the mean and the range for a new field` : `${result.rows.length} rows, the mean and the range for a new field`}
+          testID="open-forest-plot"
+        >
+          <ForestPlot rows={result.rows} pooled={pooled} groups={groups.length > 1 ? groups : undefined} format={fmt} unitLabel={unitLabel(result.units)} summary={plotSummary(result) + (groups.length > 1 ? groupedSummary(groups, result.units) : "")} />
         </Disclosure>
       </Card>
       <Card>
@@ -112,8 +141,8 @@ function Results({ result, state, update, prices, setPrices }: { result: MetaAna
         </Disclosure>
       </Card>
       <Card>
-        <Disclosure title="Site-years" hint="Sortable table" testID="open-table">
-          <SiteYearTable rows={result.rows} units={result.units} />
+        <Disclosure title="Site-years" hint="Sortable list, with each site-year's weight in the mean" testID="open-table">
+          <SiteYearTable rows={result.rows} units={result.units} groupLabels={Object.fromEntries(groups.map((g) => [g.level, g.label]))} />
         </Disclosure>
       </Card>
       <Card>
@@ -127,9 +156,15 @@ function Results({ result, state, update, prices, setPrices }: { result: MetaAna
   );
 }
 
-function ShareButton({ state }: { state: EvidenceState }) {
+function ShareButton({ state, prices }: { state: EvidenceState; prices: Prices }) {
   const [shown, setShown] = useState<string | null>(null);
-  const url = shareUrl(origin(), state);
+  const [withPrices, setWithPrices] = useState(false);
+  const hasPrices = priceKeys.some((k) => prices[k] !== undefined);
+  const url = shareUrl(origin(), { ...state, ...prices }, { withPrices: withPrices && hasPrices });
+  useEffect(() => {
+    // A link already shown follows the choice, so what is on screen is what was copied last.
+    setShown((current) => (current === null ? null : url));
+  }, [url]);
   return (
     <View style={styles.share}>
       <Button
@@ -142,6 +177,21 @@ function ShareButton({ state }: { state: EvidenceState }) {
           setShown(url);
         }}
       />
+      {hasPrices ? (
+        <Pressable
+          role="checkbox"
+          aria-checked={withPrices}
+          accessibilityLabel="Include my prices in the link"
+          testID="share-with-prices"
+          onPress={() => setWithPrices((v) => !v)}
+          style={({ focused }: { pressed: boolean; focused?: boolean }) => [styles.check, focused && styles.checkFocused]}
+        >
+          <View style={[styles.box, withPrices && styles.boxOn]} aria-hidden>
+            {withPrices ? <Text style={styles.tick}>✓</Text> : null}
+          </View>
+          <Text>Include my prices in the link</Text>
+        </Pressable>
+      ) : null}
       {shown ? <CopyRow label="link" text={shown} testID="share-url" /> : null}
     </View>
   );
@@ -151,8 +201,8 @@ function ShareButton({ state }: { state: EvidenceState }) {
 export function EvidenceScreen() {
   const { wide } = useLayout();
   const [state, update] = useEvidenceState();
-  const [prices, setPrices] = usePrices(state, update);
   const analysis = useMetaAnalysis(state);
+  const [prices, setPrices] = usePrices(state, update, analysis.data !== undefined);
   const datasets = useDatasetList();
   const years = useMemo(() => {
     const items = datasets.data?.items ?? [];
@@ -197,7 +247,7 @@ export function EvidenceScreen() {
         </ScrollView>
         <ScrollView style={styles.main} contentContainerStyle={styles.mainInner}>
           {header}
-          <ShareButton state={state} />
+          <ShareButton state={state} prices={prices} />
           {body}
         </ScrollView>
       </View>
@@ -211,7 +261,7 @@ export function EvidenceScreen() {
           {filters}
         </Disclosure>
       </Card>
-      <ShareButton state={state} />
+      <ShareButton state={state} prices={prices} />
       {body}
     </ScrollView>
   );
@@ -221,6 +271,11 @@ const styles = StyleSheet.create({
   stack: { gap: space.lg },
   header: { gap: space.xs },
   share: { gap: space.sm, alignItems: "stretch" },
+  check: { minHeight: minTap, flexDirection: "row", alignItems: "center", gap: space.sm, alignSelf: "flex-start", paddingRight: space.sm, borderWidth: 2, borderColor: "transparent", borderRadius: radius.sm },
+  checkFocused: { borderColor: colors.focus },
+  box: { width: 22, height: 22, borderRadius: 4, borderWidth: 2, borderColor: colors.muted, alignItems: "center", justifyContent: "center", backgroundColor: colors.card },
+  boxOn: { backgroundColor: colors.field, borderColor: colors.field },
+  tick: { color: "#ffffff", fontSize: 14, lineHeight: 16 },
   wideRoot: { flex: 1, flexDirection: "row" },
   side: { width: 340, flexGrow: 0, borderRightWidth: 1, borderRightColor: colors.line, backgroundColor: colors.card },
   sideInner: { padding: space.lg, gap: space.md },

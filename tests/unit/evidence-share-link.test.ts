@@ -25,13 +25,14 @@ const state: EvidenceState = {
 };
 
 describe("share links", () => {
-  it("round-trip: decode(encode(state)) is the state", () => {
-    const params = paramsFromEvidenceState(state);
-    expect(evidenceStateFromParams(params)).toEqual(state);
+  it("round-trip: decode(encode(state)) is the state, prices included when asked for", () => {
+    expect(evidenceStateFromParams(paramsFromEvidenceState(state, { withPrices: true }))).toEqual(state);
+    const { price: _p, productCost: _c, applicationCost: _a, ...withoutPrices } = state;
+    expect(evidenceStateFromParams(paramsFromEvidenceState(state))).toEqual(withoutPrices);
   });
 
   it("are canonical: lists sorted, defaults left out, keys in order", () => {
-    expect(paramsFromEvidenceState(state)).toEqual({
+    expect(paramsFromEvidenceState(state, { withPrices: true })).toEqual({
       applicationCost: "6",
       method: "DL",
       nutrient: "P",
@@ -64,6 +65,15 @@ describe("share links", () => {
     expect(metaApiPath(defaultEvidenceState)).toBe("/api/v1/analyses/meta?groupBy=soilTestClass");
     expect(metaApiPath(state)).toContain("placement=2x2-band,in-furrow");
     expect(metaApiPath(state)).toContain("units=kg/ha");
+  });
+
+  it("keep prices out of the screen's API query and its own URL; a share link has them only when chosen", () => {
+    for (const text of [metaApiPath(state), JSON.stringify(routerParams(state)), shareUrl("http://h", state)]) {
+      expect(text).not.toMatch(/price|Cost|11\.5/);
+    }
+    expect(routerParams(state).price).toBeUndefined();
+    const shared = new URL(shareUrl("http://h", state, { withPrices: true })).searchParams;
+    expect([shared.get("price"), shared.get("productCost"), shared.get("applicationCost")]).toEqual(["11.5", "18", "6"]);
   });
 
   it("build the share URL and a shell-safe curl line", () => {

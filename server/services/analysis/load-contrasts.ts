@@ -5,6 +5,7 @@ import type { Grouping } from "@/schemas/analysis";
 import type { TrialFilters } from "@/schemas/filters";
 import { conflict } from "@/server/errors";
 import { resolveVersions, responseConditions, type ResolvedVersion } from "@/server/services/trial-filter";
+import { treatmentLabels } from "./treatment-labels";
 
 type Response = typeof responses.$inferSelect;
 
@@ -45,6 +46,7 @@ const labelColumns = {
   siteCode: responses.siteCode,
   siteYearCode: responses.siteYearCode,
   treatmentCode: responses.treatmentCode,
+  treatmentId: responses.treatmentId,
   year: responses.year,
   nutrients: responses.nutrients,
   soilPClass: responses.soilPClass,
@@ -60,8 +62,8 @@ type LabelKey = keyof typeof labelColumns;
 export type EstimationContrast = Pick<Response, EstimationKey> & Partial<Pick<Response, GroupingKey>>;
 /** What a forest row or an exclusion names of a response. */
 export type ContrastLabels = Pick<Response, LabelKey>;
-/** A response with its labels. */
-export type Contrast = EstimationContrast & ContrastLabels;
+/** A response with its labels, its treatment in words among them. */
+export type Contrast = EstimationContrast & ContrastLabels & { treatmentLabel: string };
 
 const numeric = new Set<string>(["checkMeanKgHa", "treatedMeanKgHa", "mdKgHa", "seKgHa", "lnrr", "lnrrVar", "soilPValue", "soilKValue", "soilSValue"]);
 
@@ -112,11 +114,16 @@ export async function withLabels(db: Db, where: SQL | undefined, rows: Estimatio
   const result = await db.execute(sql`SELECT ${jsonArrays(labelColumns)} AS rows FROM ${responses} WHERE ${condition}`);
   const labels = toObjects<ContrastLabels>((result as unknown as { rows: { rows: string | null }[] }).rows[0]?.rows, keys);
   const labelOf = new Map(labels.map((l) => [l.id, l]));
+  const named = rows.flatMap((row) => {
+    const label = labelOf.get(row.id);
+    return label ? [label.treatmentId] : [];
+  });
+  const words = await treatmentLabels(db, named);
   for (const row of rows) {
     const label = labelOf.get(row.id);
     // Published rows do not change, but a dataset can be withdrawn between the two reads.
     if (!label) throw conflict("The data changed while the analysis was being computed (a version was withdrawn); ask again.");
-    byId.set(row.id, { ...row, ...label });
+    byId.set(row.id, { ...row, ...label, treatmentLabel: words.get(label.treatmentId) ?? label.treatmentCode });
   }
   return byId;
 }

@@ -1,5 +1,13 @@
 import type { Db } from "@/db/client";
-import { defaultForestLimit, type ForestExtent, type Grouping, type MetaAnalysisResponse, type MetaQuery } from "@/schemas/analysis";
+import {
+  defaultForestLimit,
+  observedResponsesLimit,
+  type ForestExtent,
+  type Grouping,
+  type MetaAnalysisResponse,
+  type MetaQuery,
+  type PredictiveDistributionShape,
+} from "@/schemas/analysis";
 import { filtersToQuery, trialFilterShape, type TrialFilters } from "@/schemas/filters";
 import {
   breakEvenResponse,
@@ -7,9 +15,12 @@ import {
   empiricalShares,
   kilogramsPerHectarePerBushelPerAcre,
   metaAnalysis,
+  normalQuantile,
+  predictiveProbabilityAbove,
   probabilityNewResponseAbove,
   shareSignificant,
   cropStandards,
+  tQuantile,
   type StandardCrop,
 } from "@/stats";
 import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
@@ -67,7 +78,8 @@ export async function analyseContrasts(
   const fit = k > 0 ? metaAnalysis({ yi: overall.units.map((u) => u.yi), vi: overall.units.map((u) => u.vi), method, ci, heterogeneityInterval: false }) : null;
   if (fit) for (const n of fit.notes) if (!notes.includes(n) && !/^(Only|Two site-years)/.test(n)) notes.push(n);
 
-  const subgroups = grouped && groupBy ? subgroupBlock(grouped.units, groupBy, options) : null;
+  const decision = decisionBlock(overall.units, fit, options, crops);
+  const subgroups = grouped && groupBy ? subgroupBlock(grouped.units, groupBy, options, decision) : null;
   const forestUnits = grouped ?? overall;
   const forestTau2 = (grouped ? subgroups?.tau2 : fit?.tau2) ?? 0;
   const weights = forestUnits === overall ? fit?.weightsPercent ?? [] : withinGroupWeights(grouped!.units, forestTau2);
@@ -76,10 +88,15 @@ export async function analyseContrasts(
   // Only now are labels read, for the rows the answer names.
   const labelled = await labelsOf([...shown.flatMap((i) => forestUnits.units[i]!.contrasts), ...overall.excluded.map((e) => e.contrast)]);
   const labelOf = (c: EstimationContrast) => labelled.get(c.id)!;
+  // The headline mean's weight of each site-year, shown beside the within-group weight of a grouped row.
+  const pooledWeightOf = new Map(overall.units.map((u, i) => [u.siteYearId, fit?.weightsPercent[i] ?? null]));
+  // Grouped rows come level by level (in the levels' agronomic order), so each group reads as one block.
+  const levelRank = new Map((subgroups?.levels ?? []).map((l, i) => [l.level, i]));
+  const rankOf = (unit: AnalysisUnit) => levelRank.get(unit.group ?? "") ?? levelRank.size;
   const forestRows = shown
     .map((i) => ({ unit: forestUnits.units[i]!, weight: weights[i] ?? 0, contrasts: forestUnits.units[i]!.contrasts.map(labelOf).sort(byForestOrder) }))
-    .sort((a, b) => byForestOrder(a.contrasts[0]!, b.contrasts[0]!))
-    .map(({ unit, weight, contrasts }) => forestRow(unit, contrasts, weight, filters, versionOf));
+    .sort((a, b) => rankOf(a.unit) - rankOf(b.unit) || byForestOrder(a.contrasts[0]!, b.contrasts[0]!))
+    .map(({ unit, weight, contrasts }) => forestRow(unit, contrasts, weight, pooledWeightOf.get(unit.siteYearId) ?? null, filters, versionOf));
   const forest = forestExtent(forestUnits.units.length, forestRows.length, limit, grouped !== null);
   if (forest.note) notes.push(forest.note);
 
@@ -121,7 +138,7 @@ export async function analyseContrasts(
     pooled,
     heterogeneity,
     subgroups,
-    decision: decisionBlock(overall.units, fit, options, crops),
+    decision,
     provenance: {
       versions: versions.map((v) => ({
         dataset: v.datasetSlug,
@@ -148,7 +165,7 @@ export async function analyseContrasts(
   };
 }
 
-function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: number, filters: TrialFilters, versionOf: Map<string, ResolvedVersion>) {
+function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: number, pooledWeightPercent: number | null, filters: TrialFilters, versionOf: Map<string, ResolvedVersion>) {
   const first = contrasts[0]!;
   const version = versionOf.get(first.versionId);
   const soil = relevantSoilTest(first, filters.nutrient);
@@ -162,6 +179,7 @@ function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: num
     year: first.year,
     crop: first.crop,
     treatments: contrasts.map((c) => c.treatmentCode),
+    treatmentLabels: contrasts.map((c) => c.treatmentLabel),
     responseIds: contrasts.map((c) => c.id),
     group: unit.group,
     estimate: unit.yi,
@@ -172,6 +190,7 @@ function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: num
     pValue: test.pValue,
     significant: test.significant,
     weightPercent,
+    pooledWeightPercent,
     soilTestAnalyte: soil.analyte,
     soilTestClass: soil.class,
     soilTestValue: soil.value,
@@ -212,11 +231,40 @@ function withinGroupWeights(units: AnalysisUnit[], tau2: number): number[] {
   return units.map((u) => (100 * (1 / (u.vi + tau2))) / (totals.get(u.group ?? "") ?? 1));
 }
 
+/** Ascending observed responses for the share above any break-even, unless there are too many to send. */
+function observedList(ys: number[]): number[] | null {
+  return ys.length <= observedResponsesLimit ? [...ys].sort((x, y) => x - y) : null;
+}
+
+/** A predictive distribution with its 95 % points; null when it has no spread. */
+function predictiveOf(estimate: number, se: number, tau2: number, df: number | null): PredictiveDistributionShape | null {
+  const spread = Math.sqrt(tau2 + se * se);
+  if (!(spread > 0)) return null;
+  const critical = df === null ? normalQuantile(0.975) : tQuantile(0.975, df);
+  return { estimate, se, tau2, df, lower: estimate - critical * spread, upper: estimate + critical * spread };
+}
+
+/** Per level: the chances on a new site-year of that level and the observed shares, at the answer's break-even. */
+function levelDecision(units: AnalysisUnit[], level: string, predictive: PredictiveDistributionShape | null, breakEven: number | null) {
+  const ys = units.filter((u) => u.group === level).map((u) => u.yi);
+  const shares = ys.length ? empiricalShares(ys, breakEven ?? Number.POSITIVE_INFINITY) : null;
+  return {
+    predictive,
+    probabilityAboveZero: predictive ? predictiveProbabilityAbove(predictive, 0) : null,
+    probabilityAboveBreakEven: predictive && breakEven !== null ? predictiveProbabilityAbove(predictive, breakEven) : null,
+    shareAboveZero: shares?.aboveZero ?? null,
+    shareAboveBreakEven: breakEven !== null ? (shares?.aboveBreakEven ?? null) : null,
+    observedResponses: observedList(ys),
+  };
+}
+
 /**
  * Subgroups as a mixed-effects model with the grouping as a categorical moderator (one residual τ² for all levels),
- * as `rma(yi, vi, mods = ~ group)` computes QM; per-level estimates from `mods = ~ 0 + group`.
+ * as `rma(yi, vi, mods = ~ group)` computes QM; per-level estimates from `mods = ~ 0 + group`. Each level's
+ * predictive distribution is what `predict()` gives on that model: its estimate and SE with the common τ², t(k − p)
+ * under HKSJ and normal under Wald.
  */
-function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQuery, "method" | "ci">): Result["subgroups"] {
+function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQuery, "method" | "ci">, decision: Result["decision"]): Result["subgroups"] {
   const levels = orderLevels(by, units.map((u) => u.group ?? ""));
   const model = `Mixed-effects model with ${by} as a categorical moderator and one residual τ² (${options.method}, ${options.ci === "hksj" ? "HKSJ F/t tests" : "Wald χ²/z tests"}).`;
   const notes: string[] = [];
@@ -226,10 +274,12 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
   if (levels.length < 2) {
     const only = metaAnalysis({ yi: units.map((u) => u.yi), vi: units.map((u) => u.vi), method: options.method, ci: options.ci, heterogeneityInterval: false });
     notes.push("Only one level matches: there is nothing to compare between groups.");
+    // One level is the pooled question: its predictive distribution is the pooled t(k − 2) one.
+    const predictive = options.method === "FE" || units.length < 3 ? null : predictiveOf(only.estimate, only.se, only.tau2, units.length - 2);
     return {
       by,
       model,
-      levels: [{ level: levels[0]!, k: units.length, estimate: only.estimate, se: only.se, ciLower: only.ciLower, ciUpper: only.ciUpper, pValue: only.pValue }],
+      levels: [{ level: levels[0]!, k: units.length, estimate: only.estimate, se: only.se, ciLower: only.ciLower, ciUpper: only.ciUpper, pValue: only.pValue, ...levelDecision(units, levels[0]!, predictive, decision.breakEven) }],
       qm: null,
       tau2: only.tau2,
       notes,
@@ -247,10 +297,20 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
   });
   notes.push(...fit.differences.notes.filter((n) => !notes.includes(n)));
   const qm = fit.differences.qm;
+  const df = fit.perLevel.ci === "hksj" ? fit.perLevel.residualDf : null;
   return {
     by,
     model,
-    levels: fit.perLevel.coefficients.map((c) => ({ level: c.name, k: count(c.name), estimate: c.estimate, se: c.se, ciLower: c.ciLower, ciUpper: c.ciUpper, pValue: c.pValue })),
+    levels: fit.perLevel.coefficients.map((c) => ({
+      level: c.name,
+      k: count(c.name),
+      estimate: c.estimate,
+      se: c.se,
+      ciLower: c.ciLower,
+      ciUpper: c.ciUpper,
+      pValue: c.pValue,
+      ...levelDecision(units, c.name, options.method === "FE" ? null : predictiveOf(c.estimate, c.se, fit.perLevel.tau2, df), decision.breakEven),
+    })),
     qm: qm
       ? {
           statistic: qm.statistic,
@@ -265,22 +325,26 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
   };
 }
 
+/** Response units per bu/ac of a break-even, or why there is none. */
+function breakEvenScale(options: Omit<MetaQuery, keyof TrialFilters>, crops: string[]): { unitsPerBushel: number | null; note: string | null } {
+  if (options.effect === "lnrr") return { unitsPerBushel: null, note: "A break-even yield needs a yield response: ask for effect=md to compare with the cost." };
+  if (options.units === "kg/ha") {
+    if (crops.length > 1) return { unitsPerBushel: null, note: "Several crops: a price per bushel has no single kg/ha break-even; choose one crop or bu/ac." };
+    return { unitsPerBushel: crops.length ? kilogramsPerHectarePerBushelPerAcre(cropStandards[crops[0] as StandardCrop]?.poundsPerBushel ?? Number.NaN) : null, note: null };
+  }
+  return { unitsPerBushel: 1, note: crops.length > 1 ? "Several crops: one price per bushel is applied to all of them." : null };
+}
+
 function decisionBlock(units: AnalysisUnit[], fit: ReturnType<typeof metaAnalysis> | null, options: Omit<MetaQuery, keyof TrialFilters>, crops: string[]): Result["decision"] {
   const notes: string[] = [];
   const price = options.price ?? null;
   const cost = options.cost ?? (options.productCost !== undefined || options.applicationCost !== undefined ? (options.productCost ?? 0) + (options.applicationCost ?? 0) : null);
+  const scale = breakEvenScale(options, crops);
   let breakEven: number | null = null;
   if (price !== null && cost !== null) {
-    const perBushel = breakEvenResponse(cost, price);
-    if (options.effect === "lnrr") notes.push("A break-even yield needs a yield response: ask for effect=md to compare with the cost.");
-    else if (options.units === "kg/ha") {
-      if (crops.length === 1) breakEven = perBushel * kilogramsPerHectarePerBushelPerAcre(cropStandards[crops[0] as StandardCrop]?.poundsPerBushel ?? Number.NaN);
-      else notes.push("Several crops: a price per bushel has no single kg/ha break-even; choose one crop or bu/ac.");
-    } else {
-      breakEven = perBushel;
-      if (crops.length > 1) notes.push("Several crops: one price per bushel is applied to all of them.");
-    }
-  } else if (price === null || cost === null) {
+    if (scale.note) notes.push(scale.note);
+    if (scale.unitsPerBushel !== null) breakEven = breakEvenResponse(cost, price) * scale.unitsPerBushel;
+  } else {
     notes.push("Give a grain price ($/bu) and the cost ($/ac) for the break-even response and the chance it pays.");
   }
   const k = units.length;
@@ -301,6 +365,9 @@ function decisionBlock(units: AnalysisUnit[], fit: ReturnType<typeof metaAnalysi
     shareAboveBreakEven: breakEven !== null ? (shares?.aboveBreakEven ?? null) : null,
     shareSignificant: significance.share,
     significantCount: significance.significant,
+    predictive: fit && k >= 3 && aboveZero?.probability !== null ? predictiveOf(fit.estimate, fit.se, fit.tau2, k - 2) : null,
+    breakEvenUnitsPerBushel: scale.unitsPerBushel,
+    observedResponses: observedList(ys),
     notes,
   };
 }
