@@ -18,11 +18,13 @@ export function createRegistry(): OpenAPIRegistry {
   });
   // Rate-limited operations name these on every response (defineRoute adds them); Retry-After comes with a 429.
   registry.registerComponent("headers", "RateLimit", {
-    description: 'What is left of the caller\'s quota in this window (IETF RateLimit header fields), e.g. `"anonymous"; r=59; t=60`: remaining requests and seconds to the reset',
+    description:
+      'What is left of the caller\'s quota in this window (IETF RateLimit header fields): `"anonymous"; r=59; t=60` (remaining ' +
+      "requests, seconds to the reset) for the API quotas; `limit=5, remaining=4, reset=60` (draft 7) on sign-in and e-mailed-link requests",
     schema: { type: "string" },
   });
   registry.registerComponent("headers", "RateLimit-Policy", {
-    description: 'The quota that applies to the caller, e.g. `"anonymous"; q=60; w=60`: requests per window of seconds',
+    description: 'The quota that applies to the caller: `"anonymous"; q=60; w=60` (requests per window of seconds), or `5;w=60` on sign-in and e-mailed-link requests',
     schema: { type: "string" },
   });
   registry.registerComponent("headers", "Retry-After", { description: "Seconds to wait before trying again", schema: { type: "integer", minimum: 0 } });
