@@ -23,7 +23,6 @@ export function Disclosure({
       <Pressable
         role="button"
         aria-expanded={open}
-        accessibilityLabel={`${title}${hint ? `, ${hint}` : ""}`}
         testID={testID}
         onPress={() => setOpen((o) => !o)}
         style={({ focused }: { pressed: boolean; focused?: boolean }) => [styles.head, focused && styles.focused]}

@@ -136,7 +136,6 @@ function ShareButton({ state }: { state: EvidenceState }) {
         label="Share this view"
         tone="secondary"
         testID="share-link"
-        accessibilityLabel="Copy a link to this view"
         onPress={async () => {
           await Clipboard.setStringAsync(url);
           setShown(url);
