@@ -26,7 +26,9 @@ export function mountWebApp(
     });
     return;
   }
-  const indexHtml = readFileSync(indexPath, "utf8");
+  // data-rh marks the description as expo-router/head's (as its server rendering does), so each screen's own replaces
+  // it in the browser instead of adding a second one.
+  const indexHtml = readFileSync(indexPath, "utf8").replace('<meta name="description"', '<meta data-rh="true" name="description"');
   app.use(
     express.static(distDir, {
       index: false,

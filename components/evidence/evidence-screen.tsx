@@ -26,6 +26,7 @@ import { FilterPanel } from "./filter-panel";
 import { formatInterval, formatResponse, unitLabel } from "./format";
 import { ProvenancePanel } from "./provenance-panel";
 import { SiteYearTable } from "@/components/lazy-tables";
+import { PageHead } from "@/components/page-head";
 import { SubgroupView } from "./subgroup-view";
 import { SummaryCard } from "./summary-card";
 
@@ -127,6 +128,8 @@ function Results({ result, state, update, prices, setPrices }: { result: MetaAna
   );
 }
 
+const evidenceDescription = "A random-effects meta-analysis of the yield response across the site-years you filter to.";
+
 function ShareButton({ state }: { state: EvidenceState }) {
   const [shown, setShown] = useState<string | null>(null);
   const url = shareUrl(origin(), state);
@@ -181,8 +184,9 @@ export function EvidenceScreen() {
 
   const header = (
     <View style={styles.header}>
+      <PageHead title="Evidence" description={evidenceDescription} />
       <Text variant="title" aria-level={1}>Evidence</Text>
-      <Text variant="caption">A random-effects meta-analysis of the yield response across the site-years you filter to.</Text>
+      <Text variant="caption">{evidenceDescription}</Text>
       {analysis.isFetching && analysis.data ? <Text variant="caption" role="status" aria-live="polite" testID="updating">Updating…</Text> : null}
     </View>
   );
