@@ -23,6 +23,8 @@ export function Disclosure({
       <Pressable
         role="button"
         aria-expanded={open}
+        // The words on the button, in order, so the spoken name matches what is seen.
+        accessibilityLabel={hint ? `${title} ${hint}` : title}
         testID={testID}
         onPress={() => setOpen((o) => !o)}
         style={({ focused }: { pressed: boolean; focused?: boolean }) => [styles.head, focused && styles.focused]}
