@@ -55,7 +55,7 @@ export async function startServer(options: { demo?: boolean; config?: Partial<Ap
 }
 
 /** Debian's Chromium, headless, with the flags that keep it off the network (it has none here). */
-export async function launchBrowser(): Promise<Browser> {
+export async function launchBrowser(extraArgs: string[] = []): Promise<Browser> {
   return chromium.launch({
     executablePath: process.env.CHROMIUM_PATH ?? "/usr/bin/chromium",
     headless: true,
@@ -68,6 +68,7 @@ export async function launchBrowser(): Promise<Browser> {
       "--disable-component-update",
       "--disable-sync",
       "--disable-dev-shm-usage",
+      ...extraArgs,
     ],
   });
 }
