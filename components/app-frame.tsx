@@ -20,7 +20,8 @@ function NavLink({ item, active, compact }: { item: NavItem; active: boolean; co
     <Link href={item.href} asChild>
       <Pressable
         role="link"
-        accessibilityLabel={item.label}
+        // The name a screen reader speaks starts with the words on screen (WCAG 2.5.3), then says the rest.
+        accessibilityLabel={compact && item.short !== item.label ? `${item.short} (${item.label})` : undefined}
         aria-current={active ? "page" : undefined}
         // Link asChild merges styles through a Slot that needs a flat object, not an array.
         style={StyleSheet.flatten([compact ? styles.tab : styles.sideLink, active && (compact ? styles.tabActive : styles.sideLinkActive)])}
@@ -48,7 +49,7 @@ export function AppFrame({ children }: { children: React.ReactNode }) {
       <View style={styles.wideRoot}>
         <View style={styles.side} role="navigation" accessibilityLabel="Main">
           <Link href="/" asChild>
-            <Pressable role="link" accessibilityLabel="Plotbank home" style={styles.brandBox}>
+            <Pressable role="link" style={styles.brandBox}>
               <Text style={styles.brand}>Plotbank</Text>
               <Text variant="caption">Fertilizer trial evidence</Text>
             </Pressable>
@@ -64,7 +65,7 @@ export function AppFrame({ children }: { children: React.ReactNode }) {
   }
   return (
     <View style={styles.phoneRoot}>
-      <View style={styles.topBar}>
+      <View style={styles.topBar} role="banner">
         <Text style={styles.brand}>Plotbank</Text>
         {session.data ? <Text variant="caption">{session.data.displayName}</Text> : null}
       </View>

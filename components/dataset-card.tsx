@@ -9,7 +9,7 @@ export function DatasetCard({ dataset }: { dataset: DatasetSummary }) {
   const years = dataset.yearFrom && dataset.yearTo ? `${dataset.yearFrom}–${dataset.yearTo}` : "no seasons yet";
   return (
     <Link href={`/datasets/${dataset.slug}`} asChild>
-      <Pressable role="link" accessibilityLabel={`${dataset.title}, version ${dataset.latestVersion}`}>
+      <Pressable role="link">
         <Card>
           <Text variant="heading">{dataset.title}</Text>
           <View style={styles.meta}>

@@ -16,6 +16,10 @@ export const me = z
   .meta({ id: "Me" });
 export type Me = z.infer<typeof me>;
 
+/** "Who am I": the signed-in user, or null for a visitor (an answer, not an error, so a browser logs nothing). */
+export const sessionState = z.object({ user: me.nullable() }).meta({ id: "SessionState" });
+export type SessionState = z.infer<typeof sessionState>;
+
 export const signInBody = z
   .object({ email: z.email().max(254), password: z.string().min(1).max(256) })
   .meta({ id: "SignIn" });

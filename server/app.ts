@@ -5,6 +5,7 @@ import helmet from "helmet";
 import type { Database } from "@/db/client";
 import { authenticate } from "./auth/authenticate";
 import { csrfGuard } from "./auth/csrf";
+import { crawlerRoutes } from "./crawlers";
 import { publicReadCors } from "./cors";
 import type { AppConfig } from "./config";
 import type { AppContext } from "./context";
@@ -76,6 +77,7 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   mountApiDocs(app, "/api/v1/openapi.json");
   app.use("/api", notFoundHandler);
 
+  app.use(crawlerRoutes(ctx));
   if (webDistDir !== false) mountWebApp(app, webDistDir, datasetPageHead(ctx));
   app.use(problemMiddleware);
   return { app, ctx };

@@ -1,14 +1,21 @@
 import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
 import express, { type Express } from "express";
+import { appRouteMatcher } from "./app-routes";
 
 export const webDistDir = path.resolve(__dirname, "../dist");
 
 /**
  * Serve the exported Expo web app. Hashed bundles are cached for a year; every other path that is not a file gets
- * index.html, so a deep link (a shared analysis, a dataset page) works on reload.
+ * index.html, so a deep link (a shared analysis, a dataset page) works on reload. A path that no route file in app/
+ * matches still gets the app, which draws its not-found screen, but with status 404.
  */
-export function mountWebApp(app: Express, distDir = webDistDir, transformIndex?: (html: string, url: string) => Promise<string> | string) {
+export function mountWebApp(
+  app: Express,
+  distDir = webDistDir,
+  transformIndex?: (html: string, url: string) => Promise<string> | string,
+  isScreen: (pathname: string) => boolean = appRouteMatcher(),
+) {
   const indexPath = path.join(distDir, "index.html");
   if (!existsSync(indexPath)) {
     app.get("/", (_req, res) => {
@@ -19,7 +26,9 @@ export function mountWebApp(app: Express, distDir = webDistDir, transformIndex?:
     });
     return;
   }
-  const indexHtml = readFileSync(indexPath, "utf8");
+  // data-rh marks the description as expo-router/head's (as its server rendering does), so each screen's own replaces
+  // it in the browser instead of adding a second one.
+  const indexHtml = readFileSync(indexPath, "utf8").replace('<meta name="description"', '<meta data-rh="true" name="description"');
   app.use(
     express.static(distDir, {
       index: false,
@@ -36,7 +45,7 @@ export function mountWebApp(app: Express, distDir = webDistDir, transformIndex?:
       // The whole URL: a page may depend on its query (a dataset page on ?version=).
       const html = transformIndex ? await transformIndex(indexHtml, req.originalUrl) : indexHtml;
       res.setHeader("Cache-Control", "no-cache");
-      res.type("html").send(html);
+      res.status(isScreen(req.path) ? 200 : 404).type("html").send(html);
     } catch (error) {
       next(error);
     }

@@ -24,13 +24,13 @@ export function FollowedDatasets() {
         follows.data.items.map((d) => (
           <View key={d.slug} style={styles.row}>
             <Link href={`/datasets/${d.slug}`} asChild>
-              <Pressable role="link" accessibilityLabel={`${d.title}, version ${d.latestVersion ?? "none"}`} style={styles.title}>
+              <Pressable role="link" style={styles.title}>
                 <Text variant="subheading" style={{ color: colors.fieldDark }}>{d.title}</Text>
                 <Text variant="caption">{d.latestVersion ? `Latest version ${d.latestVersion}` : "No published version"}</Text>
               </Pressable>
             </Link>
             <Button
-              label="Unfollow"
+              label="Stop following"
               accessibilityLabel={`Stop following ${d.title}`}
               tone="quiet"
               busy={toggle.isPending && toggle.variables?.slug === d.slug}

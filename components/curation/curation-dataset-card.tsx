@@ -12,13 +12,10 @@ export function CurationDatasetCard({ dataset }: { dataset: CurationDataset }) {
   const [newest, ...older] = dataset.versions;
   return (
     <Link href={`/curate/datasets/${dataset.slug}`} asChild>
-      <Pressable
-        role="link"
-        accessibilityLabel={`${dataset.title}${newest ? `, version ${newest.semver} ${versionStateLabels[newest.state]}` : ", no versions yet"}`}
-      >
+      <Pressable role="link">
         <Card>
           <View style={styles.head}>
-            <Text variant="heading" style={styles.title}>{dataset.title}</Text>
+            <Text variant="heading" aria-level={3} style={styles.title}>{dataset.title}</Text>
             {newest ? <StateBadge state={newest.state} /> : null}
           </View>
           <Text variant="label">

@@ -49,18 +49,18 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
         ) : (
           <View role="list" accessibilityLabel="Validation reports">
             {version.reports.map((r) => (
-              <Pressable
-                key={r.id}
-                role="button"
-                accessibilityLabel={`Report for ${r.filename}: ${r.accepted ? "accepted" : "rejected"}, ${r.errors} errors, ${r.warnings} warnings`}
-                aria-expanded={reportId === r.id}
-                onPress={() => setReportId(reportId === r.id ? null : r.id)}
-                style={StyleSheet.flatten([styles.report, reportId === r.id && styles.reportOn])}
-              >
-                <Text style={{ color: r.accepted ? colors.fieldDark : colors.danger, fontFamily: fonts.semibold }}>{r.accepted ? "Accepted" : "Rejected"}</Text>
-                <Text style={styles.grow}>{resourceTitles[r.resource]} · {r.filename}</Text>
-                <Text variant="caption">{r.errors} errors · {r.warnings} warnings · {formatDay(r.createdAt)}</Text>
-              </Pressable>
+              <View key={r.id} role="listitem">
+                <Pressable
+                  role="button"
+                  aria-expanded={reportId === r.id}
+                  onPress={() => setReportId(reportId === r.id ? null : r.id)}
+                  style={StyleSheet.flatten([styles.report, reportId === r.id && styles.reportOn])}
+                >
+                  <Text style={{ color: r.accepted ? colors.fieldDark : colors.danger, fontFamily: fonts.semibold }}>{r.accepted ? "Accepted" : "Rejected"}</Text>
+                  <Text style={styles.grow}>{resourceTitles[r.resource]} · {r.filename}</Text>
+                  <Text variant="caption">{r.errors} errors · {r.warnings} warnings · {formatDay(r.createdAt)}</Text>
+                </Pressable>
+              </View>
             ))}
           </View>
         )}

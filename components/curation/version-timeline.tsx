@@ -4,7 +4,6 @@ import { EmptyState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, minTap, space } from "@/constants/theme";
 import type { VersionBrief } from "@/schemas/curation";
-import { versionStateLabels } from "@/constants/vocabulary";
 import { formatDay } from "./format";
 import { StateBadge } from "./state-badge";
 
@@ -17,7 +16,7 @@ export function VersionTimeline({ versions }: { versions: VersionBrief[] }) {
         <View key={v.id} role="listitem" style={styles.item}>
           <View style={[styles.dot, v.state === "published" && styles.dotOn, v.state === "withdrawn" && styles.dotOff]} />
           <Link href={`/curate/versions/${v.id}`} asChild>
-            <Pressable role="link" accessibilityLabel={`Version ${v.semver}, ${versionStateLabels[v.state]}`} style={styles.body}>
+            <Pressable role="link" style={styles.body}>
               <View style={styles.head}>
                 <Text variant="subheading">v{v.semver}</Text>
                 <StateBadge state={v.state} />

@@ -69,7 +69,12 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
   const downloads = semver ? versionDownloads(slug, semver, resources) : null;
   const years = d.yearFrom && d.yearTo ? `${d.yearFrom}–${d.yearTo}` : "no seasons yet";
   return (
-    <Screen title={d.title} subtitle={`${d.crops.join(", ")} · ${d.region} · ${d.siteYears} site-years · ${years}`}>
+    <Screen
+      title={d.title}
+      subtitle={`${d.crops.join(", ")} · ${d.region} · ${d.siteYears} site-years · ${years}`}
+      documentTitle={current ? `${d.title} (version ${current.semver}${current.state === "withdrawn" ? ", withdrawn" : ""})` : d.title}
+      description={d.description}
+    >
       <Card testID="dataset-metadata">
         <Text>{d.description}</Text>
         {d.methods ? <Text variant="caption">Methods: {d.methods}</Text> : null}

@@ -18,7 +18,7 @@ export function FollowButton({ slug, title }: { slug: string; title: string }) {
   if (session.isPending) return null;
   if (!signedIn) {
     return (
-      <Link href={`/sign-in?next=${encodeURIComponent(`/datasets/${slug}`)}`} style={styles.link} accessibilityLabel={`Sign in to follow ${title}`}>
+      <Link href={`/sign-in?next=${encodeURIComponent(`/datasets/${slug}`)}`} style={styles.link} accessibilityLabel={`Sign in to follow new versions of ${title}`}>
         Sign in to follow new versions
       </Link>
     );
@@ -27,7 +27,7 @@ export function FollowButton({ slug, title }: { slug: string; title: string }) {
   return (
     <View style={styles.row}>
       <Button
-        label={following ? "Unfollow" : "Follow"}
+        label={following ? "Stop following" : "Follow"}
         accessibilityLabel={following ? `Stop following ${title}` : `Follow ${title}`}
         tone={following ? "quiet" : "secondary"}
         busy={toggle.isPending || follows.isPending}

@@ -23,7 +23,8 @@ export function Disclosure({
       <Pressable
         role="button"
         aria-expanded={open}
-        accessibilityLabel={`${title}${hint ? `, ${hint}` : ""}`}
+        // Named by its own words (title, then hint): an aria-label would have to repeat them exactly as axe reads
+        // them across the two lines, which it joins without a space.
         testID={testID}
         onPress={() => setOpen((o) => !o)}
         style={({ focused }: { pressed: boolean; focused?: boolean }) => [styles.head, focused && styles.focused]}

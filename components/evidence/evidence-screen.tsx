@@ -27,6 +27,7 @@ import { formatInterval, formatResponse, levelLabel, unitLabel } from "./format"
 import { groupStyles } from "./group-style";
 import { ProvenancePanel } from "./provenance-panel";
 import { SiteYearTable } from "@/components/lazy-tables";
+import { PageHead } from "@/components/page-head";
 import { levelLabels, SubgroupView } from "./subgroup-view";
 import { SummaryCard } from "./summary-card";
 
@@ -156,6 +157,8 @@ function Results({ result, state, update, prices, setPrices }: { result: MetaAna
   );
 }
 
+const evidenceDescription = "A random-effects meta-analysis of the yield response across the site-years you filter to.";
+
 function ShareButton({ state, prices }: { state: EvidenceState; prices: Prices }) {
   const [shown, setShown] = useState<string | null>(null);
   const [withPrices, setWithPrices] = useState(false);
@@ -171,7 +174,6 @@ function ShareButton({ state, prices }: { state: EvidenceState; prices: Prices }
         label="Share this view"
         tone="secondary"
         testID="share-link"
-        accessibilityLabel="Copy a link to this view"
         onPress={async () => {
           await Clipboard.setStringAsync(url);
           setShown(url);
@@ -232,8 +234,9 @@ export function EvidenceScreen() {
 
   const header = (
     <View style={styles.header}>
+      <PageHead title="Evidence" description={evidenceDescription} />
       <Text variant="title" aria-level={1}>Evidence</Text>
-      <Text variant="caption">A random-effects meta-analysis of the yield response across the site-years you filter to.</Text>
+      <Text variant="caption">{evidenceDescription}</Text>
       {analysis.isFetching && analysis.data ? <Text variant="caption" role="status" aria-live="polite" testID="updating">Updating…</Text> : null}
     </View>
   );

@@ -11,18 +11,20 @@ import { useSignOutMutation } from "@/hooks/use-account";
 import { useLayout } from "@/hooks/use-layout";
 import { useSession } from "@/hooks/use-session";
 
+const accountDescription = "Your Plotbank account: your name and password, and the datasets you follow.";
+
 export default function AccountScreen() {
   const session = useSession();
   const signOut = useSignOutMutation();
   const router = useRouter();
   const { wide } = useLayout();
 
-  if (session.isPending) return <Screen title="Account"><LoadingState /></Screen>;
-  if (session.isError) return <Screen title="Account"><ErrorState error={session.error} onRetry={() => session.refetch()} /></Screen>;
+  if (session.isPending) return <Screen title="Account" description={accountDescription}><LoadingState /></Screen>;
+  if (session.isError) return <Screen title="Account" description={accountDescription}><ErrorState error={session.error} onRetry={() => session.refetch()} /></Screen>;
   if (!session.data) return <Redirect href={"/sign-in?next=/account"} />;
 
   return (
-    <Screen title="Account" subtitle={`Signed in as ${session.data.displayName}`}>
+    <Screen title="Account" subtitle={`Signed in as ${session.data.displayName}`} description={accountDescription}>
       <View style={{ flexDirection: wide ? "row" : "column", gap: space.lg, alignItems: wide ? "flex-start" : "stretch" }}>
         <View style={wide ? { flex: 1, gap: space.lg } : { gap: space.lg, alignSelf: "stretch" }}>
           <ProfileForm me={session.data} />

@@ -26,7 +26,7 @@ export default function OutboxScreen() {
         <Card>
           {outbox.data.items.map((m) => (
             <Link key={m.id} href={`/admin/outbox/${m.id}`} asChild>
-              <Pressable role="link" accessibilityLabel={`${m.subject}, to ${m.to}`} style={styles.row}>
+              <Pressable role="link" style={styles.row}>
                 <Text variant="subheading">{m.subject}</Text>
                 <Text variant="caption">{`${m.to} · ${m.kind} · ${new Date(m.createdAt).toLocaleString()}`}</Text>
               </Pressable>

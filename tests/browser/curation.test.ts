@@ -230,8 +230,8 @@ describe("the curator's workbench at desktop size", () => {
 
     // The timeline shows both publications, newest first.
     await page.goto(`${server.url}/curate/datasets/${slug}`);
-    await page.getByRole("link", { name: "Version 1.1.0, Published" }).waitFor();
-    await page.getByRole("link", { name: "Version 1.0.0, Published" }).waitFor();
+    await page.getByRole("link", { name: /^v1\.1\.0 Published/ }).waitFor();
+    await page.getByRole("link", { name: /^v1\.0\.0 Published/ }).waitFor();
     await screenshot(page, "curation-timeline-desktop");
 
     // The one rejected file is answered 422 by design; Chromium logs every 4xx. Anything else is a failure.
@@ -249,7 +249,7 @@ describe("the workbench at phone size", () => {
     const page = await signIn(context, curatorEmail);
     const problems = watchPage(page);
     await page.goto(`${server.url}/curate/datasets/${slug}`);
-    await page.getByRole("link", { name: "Version 1.1.0, Published" }).click();
+    await page.getByRole("link", { name: /^v1\.1\.0 Published/ }).click();
     await versionOf(page);
     await page.getByRole("tab", { name: "Data dictionary" }).click();
     await page.getByRole("table", { name: "Plots data dictionary" }).waitFor();

@@ -197,7 +197,8 @@ describe("states of the Evidence screen", () => {
     const controls = await page.evaluate(() =>
       [...document.querySelectorAll('[role="button"], [role="checkbox"], [role="radio"], input, [role="columnheader"]')].map((el) => {
         const r = el.getBoundingClientRect();
-        return { label: el.getAttribute("aria-label") ?? "", h: r.height, w: r.width, visible: r.width > 0 && r.height > 0, tab: (el as HTMLElement).tabIndex };
+        // Labelled: an aria-label, or (a button named by its own words) its text.
+        return { label: el.getAttribute("aria-label") ?? el.textContent?.trim() ?? "", h: r.height, w: r.width, visible: r.width > 0 && r.height > 0, tab: (el as HTMLElement).tabIndex };
       }),
     );
     const visible = controls.filter((c) => c.visible);

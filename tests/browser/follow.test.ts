@@ -50,7 +50,7 @@ describe("following a dataset on a phone", () => {
 
     await page.getByRole("link", { name: "Account" }).first().click();
     await page.getByText("Datasets you follow").waitFor();
-    await page.getByRole("link", { name: /, version 1\.0\.0$/ }).waitFor();
+    await page.getByRole("link", { name: /Latest version 1\.0\.0$/ }).waitFor();
 
     await dataset.publish("1.1.0", { years: [2020, 2022] });
     const notices = await server.ctx.db.select().from(outbox).where(and(eq(outbox.to, email), eq(outbox.kind, "new-version")));

@@ -170,7 +170,7 @@ describe("invitation → accept → sign-in", () => {
     expect(accepted.body).toMatchObject({ role: "curator", emailVerified: true, displayName: "Ada Furrow" });
 
     const agent = await signedInAgent(t.app, "new.curator@tallgrass.test", newPassword);
-    expect((await agent.get("/api/v1/session").expect(200)).body.role).toBe("curator");
+    expect((await agent.get("/api/v1/session").expect(200)).body.user.role).toBe("curator");
     const again = await request(t.app).post("/api/v1/invitations/accept").send({ token, displayName: "X", password: newPassword }).expect(410);
     expect(again.body.detail).toMatch(/invitation has already been used/);
 

@@ -43,7 +43,7 @@ describe("API tokens", () => {
     const { secret, token } = createdToken.parse((await agent.post("/api/v1/tokens").send({ name: "reads" }).expect(201)).body);
     expect(token.lastUsedAt).toBeNull();
     const me = await request(t.app).get("/api/v1/session").set("Authorization", `Bearer ${secret}`).expect(200);
-    expect(me.body.email).toBeDefined();
+    expect(me.body.user.email).toBeDefined();
     await request(t.app).get("/api/v1/responses").set("Authorization", `Bearer ${secret}`).expect(200);
     const listed = tokenList.parse((await agent.get("/api/v1/tokens").expect(200)).body);
     expect(listed.items[0]!.lastUsedAt).not.toBeNull();

@@ -67,7 +67,7 @@ interface Row {
   /** A multipart file to attach instead of a JSON body. */
   file?: { field: string; name: string; content: string };
   /** Checks beyond the status; returns what is wrong, or null. */
-  check?: (res: request.Response, text: string) => string | null;
+  check?: (res: request.Response, text: string, c: Cell) => string | null;
   params?: (c: Cell) => Promise<Record<string, string>> | Record<string, string>;
   body?: (c: Cell) => Promise<unknown> | unknown;
   query?: (c: Cell) => Record<string, string>;
@@ -147,12 +147,18 @@ const table: Record<string, Row> = {
   "GET /api/v1/site-years": { expect: everyone(200) },
   "GET /api/v1/analyses/meta": { expect: everyone(200), query: (c) => ({ dataset: c.fx.slug }) },
 
-  // Session: anyone may try to sign in or out; "who am I" needs a caller.
+  // Session: anyone may try to sign in or out; "who am I" answers everyone, and names only the caller (a visitor: no one).
   "POST /api/v1/session": {
     expect: everyone(200),
     body: async (c) => ({ email: (await makeUser(c.t.ctx, "member")).email, password: testPassword }),
   },
-  "GET /api/v1/session": { expect: signedIn(200) },
+  "GET /api/v1/session": {
+    expect: everyone(200),
+    check: (_res, text, c) => {
+      const answered = (JSON.parse(text) as { user: { id: string } | null }).user?.id ?? null;
+      return answered === (c.user?.id ?? null) ? null : `answered user ${answered}, not the caller ${c.user?.id ?? "(none)"}`;
+    },
+  },
   "DELETE /api/v1/session": { expect: everyone(204) },
 
   // Sign-up and e-mailed links: anonymous by nature. Bodies are fresh per cell.
@@ -462,7 +468,7 @@ describe("authorization matrix", () => {
         const expected = row.expect[actor] ?? (actor === "revokedToken" || actor === "expiredToken" ? 401 : undefined);
         if (expected === undefined) throw new Error(`${key}: no expectation for ${actor}`);
         if (!matches(expected, res.status)) failures.push(`${key} as ${actor}: expected ${expected}, got ${res.status} ${text.slice(0, 160)}`);
-        else if (matches("ok", res.status) && row.check?.(res, text)) failures.push(`${key} as ${actor}: ${row.check(res, text)}`);
+        else if (matches("ok", res.status) && row.check?.(res, text, cell)) failures.push(`${key} as ${actor}: ${row.check(res, text, cell)}`);
         const allowedEmails = new Set<string>([...(user ? [user.email] : []), ...JSON.stringify(body ?? "").match(/[\w.+-]+@[\w.-]+/g) ?? [], ...cell.revealed]);
         // The owner (and its tokens) and admins choose a dataset's editors by address, so they may see the editors'.
         if (ownerSide.has(actor)) allowedEmails.add(world.users.curatorEditor.email).add(world.coEditor.email);

@@ -59,7 +59,7 @@ beforeAll(async () => {
   webDir = mkdtempSync(path.join(os.tmpdir(), "plotbank-web-"));
   writeFileSync(
     path.join(webDir, "index.html"),
-    '<!DOCTYPE html>\n<html lang="en">\n  <head>\n    <meta charset="utf-8" />\n    <title>Plotbank</title>\n</head>\n  <body><div id="root"></div></body>\n</html>\n',
+    '<!DOCTYPE html>\n<html lang="en">\n  <head>\n    <meta charset="utf-8" />\n    <title>Plotbank</title>\n<meta name="description" content="The site description.">\n</head>\n  <body><div id="root"></div></body>\n</html>\n',
   );
   web = createApp({ database: t.database, config: t.ctx.config, webDistDir: webDir }).app;
 });
@@ -147,7 +147,8 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     expect(res.headers["content-type"]).toMatch(/^text\/html/);
     const head = res.text.slice(0, res.text.indexOf("</head>"));
     expect(head).toContain("<title>Soybean starter phosphorus placement in the Tallgrass Basin (version 1.1.0) · Plotbank</title>");
-    expect(head).toMatch(/<meta name="description" content="Invented demonstration trials: starter P placement/);
+    expect(head).toMatch(/<meta [^>]*name="description" content="Invented demonstration trials: starter P placement/);
+    expect(head.match(/name="description"/g), "one description: the dataset's replaces the site's").toHaveLength(1);
     expect(head.match(/<title>/g)).toHaveLength(1);
     expect(head).toContain('<script type="application/ld+json">');
   });

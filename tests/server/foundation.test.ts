@@ -65,10 +65,15 @@ describe("session", () => {
     const user = await makeUser(t.ctx, "member");
     const agent = await signedInAgent(t.app, user.email);
     const me = await agent.get("/api/v1/session").expect(200);
-    expect(me.body).toMatchObject({ email: user.email, role: "member" });
+    expect(me.body.user).toMatchObject({ email: user.email, role: "member" });
     expect(JSON.stringify(me.body)).not.toContain("scrypt");
     await agent.delete("/api/v1/session").expect(204);
-    await agent.get("/api/v1/session").expect(401);
+    expect((await agent.get("/api/v1/session").expect(200)).body).toEqual({ user: null });
+  });
+  it("answers a visitor's \"who am I\" with 200 and no user (a 401 would be logged as an error by every browser)", async () => {
+    const res = await request(t.app).get("/api/v1/session").expect(200);
+    expect(res.body).toEqual({ user: null });
+    expect(res.headers["cache-control"]).toBe("private, no-store");
   });
   it("refuses a wrong password with 401", async () => {
     const user = await makeUser(t.ctx, "member");

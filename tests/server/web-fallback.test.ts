@@ -4,6 +4,7 @@ import path from "node:path";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { problemSchema } from "@/schemas/problem";
+import { appRoutes } from "@/server/app-routes";
 import { testApp, type TestApp } from "@/tests/support/test-app";
 
 // The web app answers every path it does not know with index.html (deep links); that must never swallow an API error.
@@ -52,9 +53,30 @@ describe("with the web app mounted, API errors stay problem+json", () => {
 });
 
 describe("non-API paths get the web app", () => {
-  it.each(["/", "/datasets", "/datasets/some-slug", "/evidence/deep/link", "/apiary"])("GET %s serves index.html", async (url) => {
-    const res = await request(t.app).get(url).expect(200);
-    expect(res.headers["content-type"]).toMatch(/^text\/html/);
-    expect(res.text).toContain(marker);
+  it.each(["/", "/datasets", "/datasets/some-slug", "/datasets/some-slug/", "/datasets/some-slug?version=1.0.0", "/curate/datasets/x/details"])(
+    "GET %s, a screen's address, serves index.html with 200",
+    async (url) => {
+      const res = await request(t.app).get(url).expect(200);
+      expect(res.headers["content-type"]).toMatch(/^text\/html/);
+      expect(res.text).toContain(marker);
+    },
+  );
+
+  it("every route file in app/ is answered 200 (the server reads the same files the app is built from)", async () => {
+    const routes = appRoutes();
+    expect(routes.map((r) => r.file)).toEqual(expect.arrayContaining(["index", "datasets/index", "datasets/[slug]", "curate/versions/[id]"]));
+    for (const r of routes) {
+      const url = r.pattern.replace(/\[\.{3}[^\]]+\]/g, "a/b").replace(/\[[^\]]+\]/g, "some-id");
+      expect((await request(t.app).get(url)).status, url).toBe(200);
+    }
   });
+
+  it.each(["/evidence/deep/link", "/apiary", "/datasets/some-slug/extra", "/no-such-page", "/robots", "/sitemap"])(
+    "GET %s, which no screen has, is a 404 that still carries the app (its not-found screen)",
+    async (url) => {
+      const res = await request(t.app).get(url).expect(404);
+      expect(res.headers["content-type"]).toMatch(/^text\/html/);
+      expect(res.text).toContain(marker);
+    },
+  );
 });

@@ -1,12 +1,11 @@
 import type { Router } from "express";
-import { me, signInBody } from "@/schemas/account";
+import { me, sessionState, signInBody, type SessionState } from "@/schemas/account";
 import type { AppContext } from "@/server/context";
 import { unauthorized } from "@/server/errors";
 import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { verifyPassword } from "@/server/auth/passwords";
 import { createSession, endSession, sessionCookieName, sessionLifetimeMs } from "@/server/auth/sessions";
-import { currentUser, requireUser } from "@/server/auth/guards";
 import type { AuthLimiters } from "@/server/auth/rate-limits";
 import { findUserByEmail, meOf } from "@/server/services/users";
 
@@ -44,13 +43,18 @@ export function sessionRoutes({ db, registry, config }: AppContext, limiters: Au
     path: "/api/v1/session",
     operationId: "getSession",
     tags: ["Accounts"],
-    summary: "The signed-in user",
-    guards: [requireUser],
-    responses: { 200: { description: "The signed-in user", content: { "application/json": { schema: me } } }, ...problemResponses(401) },
+    summary: "Who am I: the signed-in user, or null",
+    description:
+      "Answers 200 to everyone: `user` is the caller's account, or null for a caller without a session or token. " +
+      "A token that is revoked or expired is still refused with 401.",
+    responses: {
+      200: { description: "The signed-in user, or `user: null`", content: { "application/json": { schema: sessionState } } },
+      ...problemResponses(401),
+    },
   }, async (_input, req, res) => {
     res.set("Cache-Control", "private, no-store");
-    const user = currentUser(req);
-    res.json(await meOf(db, user.id));
+    const answer: SessionState = { user: req.user ? await meOf(db, req.user.id) : null };
+    res.json(answer);
   });
 
   defineRoute({

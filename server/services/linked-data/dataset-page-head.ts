@@ -40,9 +40,11 @@ export function datasetPageHead(ctx: AppContext) {
     const title = `${version.title} (version ${version.semver}${version.state === "withdrawn" ? ", withdrawn" : ""}) · Plotbank`;
     const head =
       `<title>${escapeHtml(title)}</title>\n` +
-      `    <meta name="description" content="${escapeHtml(shorten(version.description))}" />\n` +
+      `    <meta data-rh="true" name="description" content="${escapeHtml(shorten(version.description))}" />\n` +
       `    <link rel="canonical" href="${escapeHtml(pinned ? version.landingUrl : found.dataset.landingUrl)}" />\n` +
       `    <script type="application/ld+json">${scriptSafeJson(found.jsonLd)}</script>`;
-    return /<title>[\s\S]*?<\/title>/.test(html) ? html.replace(/<title>[\s\S]*?<\/title>/, () => head) : html.replace("</head>", () => `${head}\n</head>`);
+    // The dataset's description takes the place of the site's.
+    const page = html.replace(/<meta [^>]*name="description"[^>]*>\s*/, "");
+    return /<title>[\s\S]*?<\/title>/.test(page) ? page.replace(/<title>[\s\S]*?<\/title>/, () => head) : page.replace("</head>", () => `${head}\n</head>`);
   };
 }
