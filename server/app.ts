@@ -31,7 +31,8 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   registerPublishHooks();
   const app = express();
   app.disable("x-powered-by");
-  app.set("trust proxy", "loopback");
+  // X-Forwarded-For is believed only from the proxies PLOTBANK_TRUST_PROXY names; by default from nobody.
+  app.set("trust proxy", config.trustProxy);
   app.set("etag", "strong");
 
   app.use(

@@ -28,13 +28,13 @@ export function passwordResetRoutes(ctx: AppContext, limiters: AuthLimiters): Ro
     method: "post",
     path: "/api/v1/password-reset/confirm",
     tags: ["Accounts"],
-    summary: "Set a new password with the e-mailed link; every session of the account ends",
+    summary: "Set a new password with the e-mailed link; every session of the account ends and its API tokens are revoked",
     request: { body: { content: { "application/json": { schema: resetPasswordBody } } } },
     responses: { 204: { description: "Password changed; sign in with it" }, ...problemResponses(400), 410: { description: "The link is unknown, used or expired" } },
   });
   router.post("/password-reset/confirm", async (req, res) => {
     const body = parseBody(resetPasswordBody, req);
-    await resetPassword(ctx, body.token, body.password);
+    await resetPassword(ctx, body.token, body.password, body.revokeApiTokens !== false);
     res.status(204).end();
   });
 

@@ -1,7 +1,8 @@
-import { Router } from "express";
+import { Router, type RequestHandler } from "express";
 import { z } from "zod";
 import { followList, followState, me, profilePatch } from "@/schemas/account";
 import { currentUser, requireUser, requireWriteScope } from "@/server/auth/guards";
+import type { AuthLimiters } from "@/server/auth/rate-limits";
 import { sessionCookieName } from "@/server/auth/sessions";
 import type { AppContext } from "@/server/context";
 import { problemResponses } from "@/server/openapi/registry";
@@ -14,7 +15,7 @@ const slugParams = z.object({ slug: z.string().min(1).max(120) });
 const signedIn: Record<string, string[]>[] = [{ sessionCookie: [] }, { bearerToken: [] }];
 
 /** The signed-in user's own account: profile, password and the datasets they follow. */
-export function profileRoutes(ctx: AppContext): Router {
+export function profileRoutes(ctx: AppContext, limiters: AuthLimiters): Router {
   const router = Router();
   const { registry, db } = ctx;
 
@@ -34,13 +35,17 @@ export function profileRoutes(ctx: AppContext): Router {
     method: "patch",
     path: "/api/v1/account",
     tags: ["Accounts"],
-    summary: "Change your name, or your password (with the current one; other sessions end)",
+    summary: "Change your name, or your password (with the current one; other sessions end and API tokens are revoked)",
     description: "Role and e-mail confirmation cannot be changed here; such fields are ignored.",
     security: signedIn,
     request: { body: { content: { "application/json": { schema: profilePatch } } } },
-    responses: { 200: { description: "The updated profile", content: { "application/json": { schema: me } } }, ...problemResponses(400, 401, 403) },
+    responses: { 200: { description: "The updated profile", content: { "application/json": { schema: me } } }, ...problemResponses(400, 401, 403, 429) },
   });
-  router.patch("/account", requireWriteScope, async (req, res) => {
+  // Only a request with a password in it can guess one; only a refused one counts.
+  const passwordGuard = limiters.currentPassword.map((limit): RequestHandler => (req, res, next) =>
+    (req.body as { currentPassword?: unknown } | undefined)?.currentPassword === undefined ? next() : limit(req, res, next),
+  );
+  router.patch("/account", requireWriteScope, ...passwordGuard, async (req, res) => {
     const patch = parseBody(profilePatch, req);
     const secret = (req.cookies as Record<string, string> | undefined)?.[sessionCookieName];
     res.json(await updateProfile(ctx, currentUser(req).id, patch, req.auth?.via === "session" ? secret : undefined));
