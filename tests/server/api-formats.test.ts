@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { datasetDetail, observationPage, responsePage, versionDetail } from "@/schemas/public";
 import { problemSchema } from "@/schemas/problem";
 import { tableSchemaDescriptor } from "@/schemas/table-schema";
-import { csvCell } from "@/server/csv";
+import { CsvWriter } from "@/server/csv";
 import { blocks, insertPublicFixture, isLatestPublished, modelCells } from "@/tests/support/public-fixture";
 import { testApp, type TestApp } from "@/tests/support/test-app";
 
@@ -212,9 +212,10 @@ describe("CSV", () => {
     expect(json.items.map((s: { location: string }) => s.location)).toContain("=Prairie County");
   });
   it("neutralises tab and carriage-return starts as well", () => {
-    expect(csvCell("\tcmd")).toBe("'\tcmd");
-    expect(csvCell("\rx")).toBe("\"'\rx\"");
-    expect(csvCell(-3.5)).toBe("-3.5");
+    const line = (value: string | number) => new CsvWriter(["x"]).rows([[value]]);
+    expect(line("\tcmd")).toBe("'\tcmd\r\n");
+    expect(line("\rx")).toBe("\"'\rx\"\r\n");
+    expect(line(-3.5)).toBe("-3.5\r\n");
   });
 });
 

@@ -3,6 +3,7 @@ import type { Db } from "@/db/client";
 import { validationReports } from "@/db/schema";
 import type { ValidationProblem, ValidationReport } from "@/schemas/curation";
 import type { ResourceName } from "@/schemas/table-schema";
+import { csvFile } from "@/server/csv";
 import { notFound } from "@/server/errors";
 
 export interface ReportFilter {
@@ -46,18 +47,10 @@ export async function getReport(db: Db, versionId: string, reportId: string, fil
   };
 }
 
-const cell = (v: string | number | null) => {
-  if (v === null) return "";
-  const s = String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replaceAll('"', '""')}"` : s;
-};
-
 /** The report as CSV: severity, file, row (1-based data row, header not counted), column, value, message. */
 export async function reportCsv(db: Db, versionId: string, reportId: string, filter: Omit<ReportFilter, "limit" | "offset">): Promise<string> {
   const r = await load(db, versionId, reportId);
-  const lines = ["severity,file,row,column,value,message"];
-  for (const p of r.problems as unknown as ValidationProblem[]) {
-    if (matches(p, filter)) lines.push([p.severity, p.file, p.row, p.column, p.value, p.message].map(cell).join(","));
-  }
-  return lines.join("\n") + "\n";
+  const rows = (r.problems as unknown as ValidationProblem[]).filter((p) => matches(p, filter)).map((p) => [p.severity, p.file, p.row, p.column, p.value, p.message]);
+  // The values are what an uploader sent, the text most likely to be hostile: the writer's formula guard applies.
+  return csvFile(["severity", "file", "row", "column", "value", "message"], rows);
 }
