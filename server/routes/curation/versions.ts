@@ -6,7 +6,7 @@ import {
 import type { AppContext } from "@/server/context";
 import { currentUser, requireRole, requireUser, requireWriteScope } from "@/server/auth/guards";
 import { problemResponses } from "@/server/openapi/registry";
-import { assertCanView, versionById } from "@/server/services/curation/access";
+import { assertCanView, canEditDataset, isReviewer, versionById } from "@/server/services/curation/access";
 import { diffVersions } from "@/server/services/curation/diff";
 import { getReport, reportCsv } from "@/server/services/curation/reports";
 import { approveVersion, returnVersion, reviewQueue as listQueue, submitVersion, withdrawVersion } from "@/server/services/curation/review";
@@ -70,12 +70,13 @@ export function curationVersionRoutes(ctx: AppContext): Router {
     const { version, dataset } = await versionById(db, id);
     await assertCanView(db, req.user, dataset, version);
     const filter = parseQuery(reportQuery, req);
+    const acceptedOnly = !isReviewer(req.user) && !(await canEditDataset(db, req.user, dataset));
     if (report.endsWith(".csv")) {
       const reportId = report.slice(0, -4);
-      res.type("text/csv; charset=utf-8").attachment(`validation-report-${reportId}.csv`).send(await reportCsv(db, id, reportId, filter));
+      res.type("text/csv; charset=utf-8").attachment(`validation-report-${reportId}.csv`).send(await reportCsv(db, id, reportId, filter, acceptedOnly));
       return;
     }
-    res.json(await getReport(db, id, report, filter));
+    res.json(await getReport(db, id, report, filter, acceptedOnly));
   });
 
   registry.registerPath({
