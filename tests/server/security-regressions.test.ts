@@ -2,14 +2,19 @@
  * Regressions of a security review: each test names what it proves. They run the real app on a real in-memory
  * database over HTTP.
  */
-import { and, eq, isNull } from "drizzle-orm";
+import { and, eq, isNull, sql } from "drizzle-orm";
+import { createHash } from "node:crypto";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import http from "node:http";
 import type { AddressInfo } from "node:net";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { apiTokens, datasets, outbox, users } from "@/db/schema";
 import { issueEmailToken } from "@/server/services/accounts/email-tokens";
-import { draftWithData, sitesCsv } from "@/tests/server/curation-fixtures";
+import { renderCitation } from "@/server/services/citation/citation-formats";
+import { draftWithData, plotsCsv, sitesCsv, upload } from "@/tests/server/curation-fixtures";
 import { signedInAgent } from "@/tests/support/sign-in";
 import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
 
@@ -231,5 +236,156 @@ describe("accounts", () => {
     } finally {
       await fresh.close();
     }
+  });
+});
+
+describe("four eyes", () => {
+  it("an admin who uploaded data into a version may not approve it; a reviewer who only read it may", async () => {
+    const f = await draftWithData(t.app, t.ctx, { plots: false });
+    const admin = await makeUser(t.ctx, "admin");
+    const adminAgent = await signedInAgent(t.app, admin.email);
+    await upload(adminAgent, f.versionId, "plots", plotsCsv()).expect(201);
+    await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
+    const desk = await adminAgent.get(`/api/v1/curation/versions/${f.versionId}`).expect(200);
+    expect(desk.body.canReview).toBe(false);
+    const queue = await adminAgent.get("/api/v1/curation/review-queue").expect(200);
+    expect(queue.body.items.find((i: { versionId: string }) => i.versionId === f.versionId).canApprove).toBe(false);
+    const refused = await adminAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({});
+    expect(refused.status).toBe(403);
+    await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
+  });
+
+  it("an admin who edited a draft's changelog or data dictionary may not approve it", async () => {
+    const f = await draftWithData(t.app, t.ctx);
+    const admin = await makeUser(t.ctx, "admin");
+    const adminAgent = await signedInAgent(t.app, admin.email);
+    await adminAgent.patch(`/api/v1/curation/versions/${f.versionId}`).send({ changelog: "Tidied by an admin." }).expect(200);
+    await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
+    expect((await adminAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({})).status).toBe(403);
+  });
+});
+
+describe("what others may not learn", () => {
+  it("a dataset with no published version is a 404, not a 403, to a curator who may not see it", async () => {
+    const f = await draftWithData(t.app, t.ctx, { plots: false });
+    const other = await makeUser(t.ctx, "curator");
+    const agent = await signedInAgent(t.app, other.email);
+    const patch = await agent.patch(`/api/v1/datasets/${f.slug}`).send({ title: "Taken over" });
+    expect(patch.status).toBe(404);
+    const missing = await agent.patch(`/api/v1/datasets/no-such-dataset-here`).send({ title: "Taken over" });
+    expect(patch.body.detail).toBe(missing.body.detail.replace("no-such-dataset-here", f.slug));
+    expect((await agent.post(`/api/v1/datasets/${f.slug}/versions`).send({})).status).toBe(404);
+  });
+
+  it("sharing a dataset answers alike for an address without an account and for a member's address", async () => {
+    const curator = await makeUser(t.ctx, "curator");
+    const agent = await signedInAgent(t.app, curator.email);
+    const slug = `share-probe-${Date.now().toString(36)}`;
+    await agent.post("/api/v1/datasets").send({ slug, title: "Share probe", crops: ["corn"], region: "Tallgrass Basin", description: "Test." }).expect(201);
+    const member = await makeUser(t.ctx, "member");
+    const nobody = await agent.post(`/api/v1/curation/datasets/${slug}/editors`).send({ email: "nobody-here@plotbank.test" });
+    const someone = await agent.post(`/api/v1/curation/datasets/${slug}/editors`).send({ email: member.email });
+    expect(someone.status).toBe(nobody.status);
+    expect(someone.body.errors).toEqual([{ field: "body.email", message: nobody.body.errors[0].message }]);
+    expect(someone.body.detail).toBe(nobody.body.detail.replace("nobody-here@plotbank.test", member.email));
+  });
+
+  it("the validation report of a rejected upload stays with editors and reviewers, even on a published version", async () => {
+    const f = await draftWithData(t.app, t.ctx);
+    const rejected = await upload(f.curatorAgent, f.versionId, "plots", plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,x,CHK,3700,13.1" } }));
+    expect(rejected.status).toBe(422);
+    await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
+    await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
+    const member = await signedInAgent(t.app, (await makeUser(t.ctx, "member")).email);
+    await member.get(`/api/v1/curation/versions/${f.versionId}/reports/${rejected.body.reportId}`).expect(404);
+    await member.get(`/api/v1/curation/versions/${f.versionId}/reports/${rejected.body.reportId}.csv`).expect(404);
+    const desk = await member.get(`/api/v1/curation/versions/${f.versionId}`).expect(200);
+    expect(desk.body.reports.every((r: { accepted: boolean }) => r.accepted)).toBe(true);
+    await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${rejected.body.reportId}`).expect(200);
+    await f.reviewerAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${rejected.body.reportId}`).expect(200);
+  });
+});
+
+describe("database guards", () => {
+  const refusal = async (statement: ReturnType<typeof sql>) => {
+    const error = await t.ctx.db.execute(statement).then(() => null, (e: unknown) => e as { cause?: { hint?: string } });
+    expect(error, "the statement should have been refused").not.toBeNull();
+    expect(error!.cause?.hint).toBe("plotbank:immutable");
+  };
+
+  it("TRUNCATE of version content (even CASCADE), rewriting a published version's review history and renaming a dataset with a DOI are refused", async () => {
+    const f = await draftWithData(t.app, t.ctx);
+    await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
+    await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({ comment: "Checked." }).expect(200);
+    await refusal(sql`truncate plots cascade`);
+    await refusal(sql`truncate sites cascade`);
+    await refusal(sql`truncate versions cascade`);
+    await refusal(sql`update versions set review_comment = 'rubber-stamped' where id = ${f.versionId}`);
+    await refusal(sql`update versions set submitted_by = ${f.reviewer.id} where id = ${f.versionId}`);
+    await refusal(sql`update versions set submitted_at = now() - interval '1 year' where id = ${f.versionId}`);
+    await t.ctx.db.execute(sql`update versions set doi = '10.80555/plotbank.test' where id = ${f.versionId}`);
+    await refusal(sql`update datasets set slug = 'renamed-under-a-doi' where slug = ${f.slug}`);
+    const counted = (await t.ctx.db.execute(sql`select count(*)::int as n from plots where version_id = ${f.versionId}`)) as unknown as { rows: { n: number }[] };
+    const [plots] = counted.rows;
+    expect(plots!.n).toBe(32);
+  });
+});
+
+describe("caching of errors", () => {
+  it("an error answer is never publicly cacheable, even from a route that set public caching first", async () => {
+    const res = await request(t.app).get("/api/v1/datasets/no-such-dataset/versions/1.0.0/resources/sites.csv");
+    expect(res.status).toBe(404);
+    expect(res.headers["cache-control"]).toBe("no-store");
+    const bad = await request(t.app).get("/api/v1/responses?yearFrom=abc");
+    expect(bad.headers["cache-control"]).toBe("no-store");
+  });
+});
+
+describe("citations", () => {
+  it("a line break stored in a title cannot forge a second RIS record, nor break a BibTeX entry's line", () => {
+    const item = {
+      id: "forged-v1.0.0", type: "dataset" as const, title: "Starter trial\r\nER  - \r\nTY  - DATA\r\nTI  - Forged", author: [{ literal: "Tallgrass Basin Agronomy Network" }],
+      publisher: "Plotbank", issued: { "date-parts": [[2026, 5, 1]] as [[number, number, number]] }, version: "1.0.0", URL: "http://plotbank.test/datasets/forged?version=1.0.0",
+    };
+    const ris = renderCitation(item, "ris");
+    expect(ris.match(/^TY {2}- /gm)).toHaveLength(1);
+    expect(ris.match(/^ER {2}-/gm)).toHaveLength(1);
+    const titles = ris.split("\n").filter((l) => l.startsWith("TI  - "));
+    expect(titles).toHaveLength(1);
+    expect(titles[0]).toMatch(/^TI {2}- Starter trial ER {2}- +TY {2}- DATA TI {2}- Forged$/);
+    const bib = renderCitation(item, "bibtex");
+    expect(bib).not.toMatch(/Starter trial\r?\n/);
+  });
+});
+
+describe("web pages", () => {
+  let dist: string;
+  let web: TestApp;
+  const inline = "window.__plotbankBoot = 1;";
+  beforeAll(async () => {
+    dist = mkdtempSync(path.join(tmpdir(), "plotbank-csp-"));
+    writeFileSync(path.join(dist, "index.html"), `<!doctype html><html><head><title>Plotbank</title><script>${inline}</script></head><body><div id="root"></div><script src="/_expo/entry.js" defer></script></body></html>`);
+    web = await testApp({ anonRatePerMinute: 3 }, { webDistDir: dist });
+  });
+  afterAll(async () => {
+    await web.close();
+    rmSync(dist, { recursive: true, force: true });
+  });
+
+  it("the CSP allows no inline script but the web export's own, by its SHA-256 hash; 'unsafe-inline' is gone from script-src", async () => {
+    const res = await request(web.app).get("/").expect(200);
+    const scriptSrc = /script-src ([^;]*)/.exec(res.headers["content-security-policy"]!)![1]!;
+    expect(scriptSrc).not.toContain("unsafe-inline");
+    expect(scriptSrc).toContain(`'sha256-${createHash("sha256").update(inline).digest("base64")}'`);
+    const api = await request(web.app).get("/api/v1/health").expect(200);
+    expect(/script-src ([^;]*)/.exec(api.headers["content-security-policy"]!)![1]).not.toContain("unsafe-inline");
+  });
+
+  it("the server-rendered dataset pages are rate-limited per address", async () => {
+    const statuses: number[] = [];
+    for (let i = 0; i < 4; i++) statuses.push((await request(web.app).get(`/datasets/no-such-dataset-${i}`)).status);
+    expect(statuses).toEqual([200, 200, 200, 429]);
+    // Other pages of the app do not read the database and are not counted.
+    await request(web.app).get("/evidence").expect(200);
   });
 });
