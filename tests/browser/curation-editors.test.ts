@@ -42,7 +42,7 @@ describe.each([
     const field = panel.getByLabel("Share with a curator (e-mail)");
     await field.fill("field.member@tallgrass.test");
     await panel.getByRole("button", { name: "Add editor" }).click();
-    await panel.getByText("a member, not a curator").waitFor();
+    await panel.getByText("no curator has this address").waitFor();
 
     await field.fill(colleague.email);
     await panel.getByRole("button", { name: "Add editor" }).click();
