@@ -181,8 +181,14 @@ describe("CSV", () => {
     expect(byAccept.text).toBe(byParam.text);
     const rows = parseCsv(byAccept.text).data;
     expect(rows).toHaveLength(latestPlots);
-    expect(byAccept.headers.link).toContain(`<${v110}/schema>; rel="describedby"`);
-    expect(byAccept.headers.link).toContain('</api/v1/datasets/tb-corn-nk/versions/1.0.0/schema>; rel="describedby"');
+    // describedby names what describes these columns: the row's OpenAPI component, not a dataset's data dictionary.
+    const described = /<([^>]+)>; rel="describedby"/.exec(byAccept.headers.link!)![1]!;
+    expect(described).toBe("/api/v1/openapi.json#/components/schemas/ObservationRow");
+    const doc = (await get("/api/v1/openapi.json").expect(200)).body;
+    const header = byAccept.text.split("\r\n")[0]!.split(",");
+    expect(Object.keys(doc.components.schemas.ObservationRow.properties)).toEqual(header);
+    expect(byAccept.headers.link).toContain(`<${v110}/schema>; rel="related"`);
+    expect(byAccept.headers.link).toContain('</api/v1/datasets/tb-corn-nk/versions/1.0.0/schema>; rel="related"');
   });
   it("has the JSON rows' columns and values; lines end in CRLF", async () => {
     const csv = await get("/api/v1/responses?format=csv&crop=corn").expect(200);
