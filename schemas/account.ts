@@ -1,6 +1,8 @@
 import { z } from "zod";
 import { roles, staffRoles } from "@/constants/vocabulary";
 
+import { line } from "./safe-text";
+
 export const role = z.enum(roles).meta({ id: "Role" });
 export type Role = z.infer<typeof role>;
 
@@ -28,8 +30,8 @@ export const signInBody = z
  * Passwords: this is the part a form can check. The server also refuses common and easily guessed ones with a strength
  * estimator whose dictionaries stay on the server (server/auth/password-strength.ts).
  */
-export const newPassword = z.string().min(12, "Use at least 12 characters.").max(256, "Use at most 256 characters.");
-export const displayName = z.string().trim().min(1, "Enter a name.").max(120, "Use at most 120 characters.");
+export const newPassword = line().min(12, "Use at least 12 characters.").max(256, "Use at most 256 characters.");
+export const displayName = line().trim().min(1, "Enter a name.").max(120, "Use at most 120 characters.");
 export const emailAddress = z.email("Enter an e-mail address like name@example.org.").max(254);
 
 /**
@@ -46,14 +48,18 @@ export const checkEmail = z.object({ status: z.literal("check-email"), message: 
 export type CheckEmail = z.infer<typeof checkEmail>;
 
 export const emailOnlyBody = z.object({ email: emailAddress }).strip().meta({ id: "EmailOnly" });
-export const tokenBody = z.object({ token: z.string().min(10).max(200) }).strip().meta({ id: "EmailLinkToken" });
+export const tokenBody = z.object({ token: line().min(10).max(200) }).strip().meta({ id: "EmailLinkToken" });
 
 export const resetPasswordBody = z
-  .object({ token: z.string().min(10).max(200), password: newPassword })
+  .object({
+    token: line().min(10).max(200),
+    password: newPassword,
+    revokeApiTokens: z.boolean().optional().describe("Also revoke every API token of the account (default true)"),
+  })
   .meta({ id: "ResetPassword" });
 
 export const acceptInvitationBody = z
-  .object({ token: z.string().min(10).max(200), displayName, password: newPassword })
+  .object({ token: line().min(10).max(200), displayName, password: newPassword })
   .meta({ id: "AcceptInvitation" });
 
 export const invitationPreview = z
@@ -65,8 +71,12 @@ export type InvitationPreview = z.infer<typeof invitationPreview>;
 export const profilePatch = z
   .object({
     displayName: displayName.optional(),
-    currentPassword: z.string().min(1, "Enter your current password.").max(256).optional(),
+    currentPassword: line().min(1, "Enter your current password.").max(256).optional(),
     newPassword: newPassword.optional(),
+    revokeApiTokens: z
+      .boolean()
+      .optional()
+      .describe("With a new password: also revoke every API token of the account (default true; false keeps them)"),
   })
   .refine((p) => !p.newPassword || !!p.currentPassword, { path: ["currentPassword"], message: "Enter your current password to set a new one." })
   .meta({ id: "ProfilePatch" });

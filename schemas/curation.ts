@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { doiStatuses } from "@/constants/vocabulary";
 import { contributor } from "./dataset-metadata";
+import { line, paragraph } from "./safe-text";
 import { datasetSummary, versionState } from "./dataset";
 import { crops } from "./filters";
 import { problemLocation } from "./problem";
@@ -8,26 +9,34 @@ import { resourceName, tableSchemaDescriptor } from "./table-schema";
 
 /** Contracts of the curation side: datasets, draft versions, uploads and their reports, review, diffs. */
 
-export const semver = z.string().regex(/^\d+\.\d+\.\d+$/, "a semantic version such as 1.2.0");
+export const semver = line().regex(/^\d+\.\d+\.\d+$/, "a semantic version such as 1.2.0");
 
-export const datasetCreate = z
-  .object({
-    slug: z.string().min(3).max(80).regex(/^[a-z0-9]+(-[a-z0-9]+)*$/, "lower-case words joined by hyphens"),
-    title: z.string().min(3).max(200),
-    crops: z.array(z.enum(crops)).min(1),
-    region: z.string().min(2).max(200),
-    description: z.string().min(1).max(10_000),
-    licence: z.string().min(2).max(40).default("CC-BY-4.0").describe("SPDX identifier; default CC-BY-4.0"),
-    keywords: z.array(z.string().min(1).max(60)).max(40).default([]),
-    contributors: z.array(contributor).max(100).default([]),
-    funding: z.string().max(2000).nullable().optional(),
-    methods: z.string().max(20_000).nullable().optional().describe("Methods and protocol"),
+/** The dataset's fields as the curator writes them, without defaults: a default inside `.partial()` would fill in (and so overwrite) every field a patch leaves out. */
+const datasetFields = z.object({
+  slug: line().min(3).max(80).regex(/^[a-z0-9]+(-[a-z0-9]+)*$/, "lower-case words joined by hyphens"),
+  title: line().min(3).max(200),
+  crops: z.array(z.enum(crops)).min(1),
+  region: line().min(2).max(200),
+  description: paragraph().min(1).max(10_000),
+  licence: line().min(2).max(40).describe("SPDX identifier; default CC-BY-4.0"),
+  keywords: z.array(line().min(1).max(60)).max(40),
+  contributors: z.array(contributor).max(100),
+  funding: paragraph().max(2000).nullable().optional(),
+  methods: paragraph().max(20_000).nullable().optional().describe("Methods and protocol"),
+});
+
+export const datasetCreate = datasetFields
+  .extend({
+    licence: datasetFields.shape.licence.default("CC-BY-4.0"),
+    keywords: datasetFields.shape.keywords.default([]),
+    contributors: datasetFields.shape.contributors.default([]),
   })
   .strict()
   .meta({ id: "DatasetCreate" });
 export type DatasetCreate = z.input<typeof datasetCreate>;
 
-export const datasetPatch = datasetCreate.omit({ slug: true }).partial().strict().meta({ id: "DatasetPatch" });
+/** Only the fields sent are changed; the others keep their values. */
+export const datasetPatch = datasetFields.omit({ slug: true }).partial().strict().meta({ id: "DatasetPatch" });
 export type DatasetPatch = z.input<typeof datasetPatch>;
 
 export const versionBrief = z
@@ -165,7 +174,7 @@ export const tableSchemaUpdate = tableSchemaDescriptor;
 export const versionPatch = z
   .object({
     semver: semver.optional(),
-    changelog: z.string().max(20_000).optional(),
+    changelog: paragraph().max(20_000).optional(),
   })
   .strict()
   .meta({ id: "VersionPatch" });
@@ -202,9 +211,9 @@ export type ValidationReport = z.infer<typeof validationReport>;
 export const reportQuery = z
   .object({
     severity: severity.optional(),
-    column: z.string().max(64).optional(),
+    column: line().max(64).optional(),
     row: z.coerce.number().int().min(1).optional(),
-    q: z.string().max(200).optional().describe("Text the message must contain"),
+    q: line().max(200).optional().describe("Text the message must contain"),
     limit: z.coerce.number().int().min(1).max(10_000).default(500),
     offset: z.coerce.number().int().min(0).default(0),
   })
@@ -226,7 +235,7 @@ export type UploadUnits = z.infer<typeof uploadUnits>;
 
 export const uploadOptions = z
   .object({
-    mapping: z.record(z.string(), z.string()).default({}).describe("CSV header → data-dictionary field; unmapped headers match fields by name"),
+    mapping: z.record(line(), line()).default({}).describe("CSV header → data-dictionary field; unmapped headers match fields by name"),
     units: uploadUnits.default({ yield: "kg/ha", yieldMoisture: "standard", soilTest: "ppm", gradeBasis: "oxide" }),
     mode: z
       .enum(["merge", "replace"])
@@ -275,12 +284,12 @@ export const uploadRejection = z
   .meta({ id: "UploadRejection" });
 export type UploadRejection = z.infer<typeof uploadRejection>;
 
-export const submitBody = z.object({ changelog: z.string().trim().min(3).max(20_000) }).strict().meta({ id: "SubmitVersion" });
-export const returnBody = z.object({ comment: z.string().trim().min(3).max(5000) }).strict().meta({ id: "ReturnVersion" });
-export const approveBody = z.object({ comment: z.string().max(5000).optional() }).strict().meta({ id: "ApproveVersion" });
-export const withdrawBody = z.object({ reason: z.string().trim().min(3).max(5000) }).strict().meta({ id: "WithdrawVersion" });
+export const submitBody = z.object({ changelog: paragraph().trim().min(3).max(20_000) }).strict().meta({ id: "SubmitVersion" });
+export const returnBody = z.object({ comment: paragraph().trim().min(3).max(5000) }).strict().meta({ id: "ReturnVersion" });
+export const approveBody = z.object({ comment: paragraph().max(5000).optional() }).strict().meta({ id: "ApproveVersion" });
+export const withdrawBody = z.object({ reason: paragraph().trim().min(3).max(5000) }).strict().meta({ id: "WithdrawVersion" });
 export const editorsBody = z.object({ email: z.email("an e-mail address") }).strict().meta({ id: "DatasetEditor" });
-export const editorParams = z.object({ slug: z.string(), userId: z.uuid() });
+export const editorParams = z.object({ slug: line(), userId: z.uuid() });
 
 export const bump = z.enum(["major", "minor", "patch"]);
 export const siteYearChange = z.object({ siteYear: z.string(), fields: z.array(z.string()) });

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { line } from "./safe-text";
 
 import { crops, nutrients, placements, soilTestClasses, tillages } from "@/constants/vocabulary";
 
@@ -11,14 +12,14 @@ export { crops, nutrients, placements, soilTestClasses, tillages };
  */
 const listOf = <T extends readonly [string, ...string[]]>(values: T) =>
   z
-    .union([z.string(), z.array(z.string())])
+    .union([line(), z.array(line())])
     .transform((v) => (Array.isArray(v) ? v : v.split(",")).map((s) => s.trim()).filter(Boolean))
     .pipe(z.array(z.enum(values)).min(1))
     .meta({ type: "array", items: { type: "string", enum: [...values] }, param: { style: "form", explode: false } });
 
 const numberParam = z.coerce.number().finite();
 const yearParam = z.coerce.number().int().min(1900).max(2100);
-const monthDay = z.string().regex(/^\d{2}-\d{2}$/, "use MM-DD, e.g. 05-10");
+const monthDay = line().regex(/^\d{2}-\d{2}$/, "use MM-DD, e.g. 05-10");
 
 /**
  * The one set of filters shared by observations, responses and analyses, so a screen's numbers can be fetched with
@@ -33,9 +34,8 @@ export const trialFilterShape = {
     .describe("Soil-test class of the nutrient's own soil test (P class for P, K class for K, S class for S); with several nutrients or none, the treatment's primary nutrient"),
   yearFrom: yearParam.optional(),
   yearTo: yearParam.optional(),
-  dataset: z.string().max(120).optional().describe("Dataset slug; default all datasets"),
-  version: z
-    .string()
+  dataset: line().max(120).optional().describe("Dataset slug; default all datasets"),
+  version: line()
     .regex(/^(latest|\d+\.\d+\.\d+)$/, "a semantic version such as 1.2.0, or latest")
     .optional()
     .describe("Version of `dataset` (needs dataset); default the latest published version of each dataset"),

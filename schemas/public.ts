@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { datasetSummary } from "./dataset";
 import { contributor } from "./dataset-metadata";
+import { line } from "./safe-text";
 import { crops, nutrients, placements, soilTestClasses, tillages, trialFilters, trialFilterShape } from "./filters";
 
 /**
@@ -28,7 +29,7 @@ export const limitParam = z.coerce
   .max(maxPageSize)
   .default(100)
   .describe(`Rows per JSON page, 1–${maxPageSize} (default 100)`);
-export const pageTokenParam = z.string().min(1).max(400).optional().describe("Opaque token from the previous page's `nextPageToken` (or its Link rel=next)");
+export const pageTokenParam = line().min(1).max(400).optional().describe("Opaque token from the previous page's `nextPageToken` (or its Link rel=next)");
 
 const pagingShape = { format: formatParam, limit: limitParam, pageToken: pageTokenParam };
 

@@ -1,6 +1,8 @@
 import { z } from "zod";
 import { resourceNames } from "@/constants/vocabulary";
 
+import { line, paragraph } from "./safe-text";
+
 /**
  * Frictionless Table Schema (v2) as Plotbank stores it: each version carries one descriptor per resource, and the
  * same descriptors drive upload validation, the data-dictionary page and the OpenAPI row schemas.
@@ -9,12 +11,12 @@ export const tableSchemaFieldType = z.enum(["string", "number", "integer", "bool
 
 export const tableSchemaField = z
   .object({
-    name: z.string().min(1).max(64).regex(/^[a-z][a-zA-Z0-9_]*$/, "lower camelCase or snake_case, starting with a letter"),
-    title: z.string().max(200).optional(),
-    description: z.string().max(2000).optional(),
+    name: line().min(1).max(64).regex(/^[a-z][a-zA-Z0-9_]*$/, "lower camelCase or snake_case, starting with a letter"),
+    title: line().max(200).optional(),
+    description: paragraph().max(2000).optional(),
     type: tableSchemaFieldType,
     /** Unit of measure, e.g. "bu/ac", "kg/ha", "%", "ppm", "in". */
-    unit: z.string().max(40).optional(),
+    unit: line().max(40).optional(),
     constraints: z
       .object({
         required: z.boolean().optional(),
@@ -23,29 +25,29 @@ export const tableSchemaField = z
         maximum: z.number().optional(),
         minLength: z.number().int().optional(),
         maxLength: z.number().int().optional(),
-        pattern: z.string().optional(),
-        enum: z.array(z.string()).optional(),
+        pattern: line().optional(),
+        enum: z.array(line()).optional(),
       })
       .optional(),
     /** Enum categories with labels, as Table Schema v2's `categories`. */
-    categories: z.array(z.object({ value: z.string(), label: z.string() })).optional(),
+    categories: z.array(z.object({ value: line(), label: line() })).optional(),
   })
   .meta({ id: "TableSchemaField" });
 
 export const tableSchemaResource = z
   .object({
     fields: z.array(tableSchemaField).min(1),
-    primaryKey: z.array(z.string()).optional(),
+    primaryKey: z.array(line()).optional(),
     foreignKeys: z
       .array(
         z.object({
-          fields: z.array(z.string()),
-          reference: z.object({ resource: z.string(), fields: z.array(z.string()) }),
+          fields: z.array(line()),
+          reference: z.object({ resource: line(), fields: z.array(line()) }),
         }),
       )
       .optional(),
     /** Missing-value codes with their labels, e.g. { value: "NA", label: "not measured" }. */
-    missingValues: z.array(z.object({ value: z.string(), label: z.string() })).optional(),
+    missingValues: z.array(z.object({ value: line(), label: line() })).optional(),
   })
   .meta({ id: "TableSchema" });
 

@@ -1,6 +1,8 @@
 import { z } from "zod";
 import { tokenScopes } from "@/constants/vocabulary";
 
+import { line } from "./safe-text";
+
 export const tokenScope = z.enum(tokenScopes).meta({ id: "TokenScope" });
 export type TokenScope = z.infer<typeof tokenScope>;
 
@@ -8,7 +10,7 @@ export const maxTokenDays = 365;
 
 export const createTokenBody = z
   .object({
-    name: z.string().trim().min(1, "give the token a name").max(100).describe("What the token is for, e.g. “nightly pull”"),
+    name: line().trim().min(1, "give the token a name").max(100).describe("What the token is for, e.g. “nightly pull”"),
     scope: tokenScope.default("read").describe("read for data pulls; write only for curators, reviewers and admins"),
     expiresInDays: z.coerce.number().int("a whole number of days").min(1, "at least 1 day").max(maxTokenDays, `at most ${maxTokenDays} days`).default(90).describe(`Lifetime in days, 1–${maxTokenDays}`),
   })

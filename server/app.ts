@@ -12,7 +12,7 @@ import type { AppContext } from "./context";
 import { notFoundHandler, problemMiddleware } from "./errors";
 import { mountApiDocs } from "./openapi/docs";
 import { createRegistry, generateOpenApiDocument } from "./openapi/registry";
-import { apiRateLimits } from "./rate-limit";
+import { apiRateLimits, pageRateLimit } from "./rate-limit";
 import { apiRoutes } from "./routes";
 import { datasetPageHead } from "./services/linked-data/dataset-page-head";
 import { registerPublishHooks } from "./services/publish-hook-setup";
@@ -32,16 +32,20 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   registerPublishHooks();
   const app = express();
   app.disable("x-powered-by");
-  app.set("trust proxy", "loopback");
+  // X-Forwarded-For is believed only from the proxies PLOTBANK_TRUST_PROXY names; by default from nobody.
+  app.set("trust proxy", config.trustProxy);
   app.set("etag", "strong");
 
+  // Hashes of the inline scripts of the web export's index.html, known once it is mounted (below).
+  let webInlineScripts: string[] = [];
   app.use(
     helmet({
       contentSecurityPolicy: {
         directives: {
           defaultSrc: ["'self'"],
-          // Swagger UI and the Expo web export both start from a small inline script.
-          scriptSrc: ["'self'", "'unsafe-inline'"],
+          // No inline script runs but one whose hash is listed: the JSON-LD in dataset pages is a data block
+          // (application/ld+json), which browsers never execute, and Swagger UI starts from a file.
+          scriptSrc: ["'self'", () => webInlineScripts.join(" ")],
           styleSrc: ["'self'", "'unsafe-inline'"],
           imgSrc: ["'self'", "data:", "blob:"],
           fontSrc: ["'self'", "data:"],
@@ -78,7 +82,10 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   app.use("/api", notFoundHandler);
 
   app.use(crawlerRoutes(ctx));
-  if (webDistDir !== false) mountWebApp(app, webDistDir, datasetPageHead(ctx));
+  if (webDistDir !== false) {
+    app.use("/datasets", pageRateLimit(config));
+    webInlineScripts = mountWebApp(app, webDistDir, datasetPageHead(ctx));
+  }
   app.use(problemMiddleware);
   return { app, ctx };
 }

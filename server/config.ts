@@ -17,6 +17,15 @@ const env = z.object({
   PLOTBANK_AUTH_PER_IP: z.coerce.number().int().positive().default(20),
   PLOTBANK_AUTH_PER_ACCOUNT: z.coerce.number().int().positive().default(5),
   PLOTBANK_AUTH_WINDOW_MIN: z.coerce.number().positive().default(15),
+  /**
+   * Proxies whose X-Forwarded-For is believed: a hop count ("1": the one proxy in front) or a comma-separated list of
+   * addresses, CIDR ranges or Express's names (loopback, linklocal, uniquelocal). Unset: none, so the client address
+   * is the TCP peer's and nobody can pick their own address for the per-IP limits.
+   */
+  PLOTBANK_TRUST_PROXY: z
+    .string()
+    .regex(/^(\d+|[\w.:/]+(\s*,\s*[\w.:/]+)*)$/, "a hop count, or a comma-separated list of addresses, CIDR ranges or loopback/linklocal/uniquelocal")
+    .optional(),
   SMTP_URL: z.string().optional(),
   /** Production without SMTP: keep every message in the outbox table only (admins read it on the Outbox screen). */
   PLOTBANK_MAIL_OUTBOX_ONLY: z.stringbool().default(false),
@@ -40,6 +49,8 @@ export interface AppConfig {
   tokenRatePerMinute: number;
   /** Abuse limits on sign-in, sign-up and reset requests. */
   authLimits: { windowMs: number; perIp: number; perAccount: number };
+  /** Express's "trust proxy" setting: false (no proxy), a hop count, or the trusted addresses/ranges. */
+  trustProxy: false | number | string[];
   smtpUrl?: string;
   /** Mail is only recorded in the outbox, never sent, even in production (an explicit choice of the operator). */
   mailOutboxOnly: boolean;
@@ -63,6 +74,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env, overrides: P
     anonRatePerMinute: e.PLOTBANK_ANON_RATE_PER_MIN,
     tokenRatePerMinute: e.PLOTBANK_TOKEN_RATE_PER_MIN,
     authLimits: { windowMs: e.PLOTBANK_AUTH_WINDOW_MIN * 60_000, perIp: e.PLOTBANK_AUTH_PER_IP, perAccount: e.PLOTBANK_AUTH_PER_ACCOUNT },
+    trustProxy: parseTrustProxy(e.PLOTBANK_TRUST_PROXY),
     smtpUrl: e.SMTP_URL,
     mailOutboxOnly: e.PLOTBANK_MAIL_OUTBOX_ONLY,
     mailFrom: e.MAIL_FROM,
@@ -93,4 +105,10 @@ export function refuseUndeliverableMail(config: AppConfig): void {
 
 function appVersion(): string {
   return (require("../package.json") as { version: string }).version;
+}
+
+function parseTrustProxy(value: string | undefined): AppConfig["trustProxy"] {
+  if (!value) return false;
+  if (/^\d+$/.test(value)) return Number(value) || false;
+  return value.split(",").map((part) => part.trim()).filter(Boolean);
 }

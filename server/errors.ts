@@ -46,6 +46,14 @@ export function zodProblems(error: z.ZodError, where: string): ProblemLocation[]
   });
 }
 
+/** A PostgreSQL unique violation (23505), as PGlite or pg raise it, possibly wrapped by drizzle as the cause. */
+export function isUniqueViolation(error: unknown): boolean {
+  for (let e = error as { code?: string; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++) {
+    if (e.code === "23505") return true;
+  }
+  return false;
+}
+
 const statusTitles: Record<number, string> = {
   400: "Bad request",
   401: "Unauthorized",
@@ -65,8 +73,11 @@ export function sendProblem(
   status: number,
   body: { title?: string; detail?: string; type?: string; instance?: string } & Record<string, unknown>,
 ) {
+  // A route may have set a public Cache-Control before it failed; an error must never be kept by a shared cache.
+  res.removeHeader("ETag");
   res
     .status(status)
+    .set("Cache-Control", "no-store")
     .type("application/problem+json")
     .json({ type: body.type ?? "about:blank", title: body.title ?? statusTitles[status] ?? "Error", status, ...body });
 }
@@ -103,6 +114,10 @@ export const problemMiddleware: ErrorRequestHandler = (err: unknown, req, res, n
   }
   if (e.type === "entity.parse.failed") {
     return sendProblem(res, 400, { detail: "The request body is not valid JSON.", errors: [{ field: "body", message: "malformed JSON" }] });
+  }
+  // Text PostgreSQL cannot hold (U+0000) that got past the contract: still the client's input, never a 500.
+  if (e.code === "22021" || e.code === "22P05" || (err as { cause?: HttpLikeError })?.cause?.code === "22021") {
+    return sendProblem(res, 400, { detail: "The request holds a character the database cannot store (U+0000).", instance: req.originalUrl });
   }
   // A write that hit the database's own immutability guard.
   if (e.hint === "plotbank:immutable") {

@@ -22,6 +22,22 @@ function tooMany(who: string): RequestHandler {
 }
 
 /**
+ * The web app's dataset pages read the database to put the dataset's title and JSON-LD into the HTML: they share the
+ * anonymous per-address quota's size, with counters of their own.
+ */
+export function pageRateLimit(config: Pick<AppConfig, "anonRatePerMinute">): RequestHandler {
+  return rateLimit({
+    windowMs,
+    limit: config.anonRatePerMinute,
+    standardHeaders: "draft-8",
+    legacyHeaders: false,
+    identifier: "pages",
+    keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}`,
+    handler: tooMany("page"),
+  });
+}
+
+/**
  * Per-client API quotas: a low one per address for anonymous callers, a higher one per token (or per signed-in
  * user for the web app's session). Headers follow the IETF RateLimit draft 8 on every answer. A 304 does not count:
  * `skipSuccessfulRequests` with "success" meaning exactly a 304 gives back the hit once the answer is sent.

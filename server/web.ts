@@ -1,3 +1,4 @@
+import { createHash } from "node:crypto";
 import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
 import express, { type Express } from "express";
@@ -6,16 +7,33 @@ import { appRouteMatcher } from "./app-routes";
 export const webDistDir = path.resolve(__dirname, "../dist");
 
 /**
+ * CSP source expressions ('sha256-…') for the inline scripts of a page: every <script> without src whose type is
+ * JavaScript (none, text/javascript or module). Data blocks such as application/ld+json are not scripts to a browser.
+ */
+export function inlineScriptHashes(html: string): string[] {
+  const hashes: string[] = [];
+  for (const m of html.matchAll(/<script\b([^>]*)>([\s\S]*?)<\/script>/gi)) {
+    const attributes = m[1] ?? "";
+    if (/\bsrc\s*=/i.test(attributes)) continue;
+    const type = /\btype\s*=\s*["']?([^"'\s>]+)/i.exec(attributes)?.[1]?.toLowerCase();
+    if (type && type !== "text/javascript" && type !== "module" && type !== "application/javascript") continue;
+    hashes.push(`'sha256-${createHash("sha256").update(m[2] ?? "", "utf8").digest("base64")}'`);
+  }
+  return hashes;
+}
+
+/**
  * Serve the exported Expo web app. Hashed bundles are cached for a year; every other path that is not a file gets
  * index.html, so a deep link (a shared analysis, a dataset page) works on reload. A path that no route file in app/
  * matches still gets the app, which draws its not-found screen, but with status 404.
+ * Returns the CSP hashes of index.html's inline scripts, for the script-src directive.
  */
 export function mountWebApp(
   app: Express,
   distDir = webDistDir,
   transformIndex?: (html: string, url: string) => Promise<string> | string,
   isScreen: (pathname: string) => boolean = appRouteMatcher(),
-) {
+): string[] {
   const indexPath = path.join(distDir, "index.html");
   if (!existsSync(indexPath)) {
     app.get("/", (_req, res) => {
@@ -24,7 +42,7 @@ export function mountWebApp(
         .type("text/plain")
         .send("The web app has not been built yet. Run `npm run build:web`, or start with `npm start`, which builds it.");
     });
-    return;
+    return [];
   }
   // data-rh marks the description as expo-router/head's (as its server rendering does), so each screen's own replaces
   // it in the browser instead of adding a second one.
@@ -50,4 +68,5 @@ export function mountWebApp(
       next(error);
     }
   });
+  return inlineScriptHashes(indexHtml);
 }

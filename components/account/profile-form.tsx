@@ -39,7 +39,7 @@ export function ProfileForm({ me }: { me: Me }) {
       </Card>
       <Card>
         <Text variant="heading">Password</Text>
-        <Text variant="caption">Changing it signs you out on every other device.</Text>
+        <Text variant="caption">Changing it signs you out on every other device and revokes your API tokens; you are e-mailed about it.</Text>
         {passwordChanged ? <Notice tone="success">Password changed.</Notice> : null}
         {password.formError ? <Notice tone="error">{password.formError}</Notice> : null}
         <TextField label="Current password" value={password.values.currentPassword} onChangeText={password.set("currentPassword")} error={password.errors.currentPassword} secureTextEntry autoComplete="current-password" />

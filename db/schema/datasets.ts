@@ -77,6 +77,20 @@ export const versions = pgTable(
   ],
 );
 
+/**
+ * Who changed a draft's content other than by an upload (the data dictionary, its semver or changelog). With the
+ * version's creator, its submitter and its uploaders, these people may not approve it (four eyes).
+ */
+export const versionEdits = pgTable(
+  "version_edits",
+  {
+    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
+    userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    lastAt: timestamp("last_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.versionId, t.userId] })],
+);
+
 /** Accepted upload files, kept byte for byte with their checksum. */
 export const uploads = pgTable(
   "uploads",

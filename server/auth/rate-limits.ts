@@ -48,8 +48,24 @@ export interface AuthLimiters {
   signIn: RequestHandler[];
   /** Requests that send an e-mail (sign-up, new verification link, password reset): every request counts. */
   emailLinks: RequestHandler[];
+  /** Checks of a signed-in account's current password (changing it): failures count, per account and per IP. */
+  currentPassword: RequestHandler[];
 }
 
 export function authLimiters(limits: Limits): AuthLimiters {
-  return { signIn: pair(limits, "sign-in attempts", true), emailLinks: pair(limits, "requests for e-mailed links", false) };
+  const common = {
+    windowMs: limits.windowMs,
+    standardHeaders: "draft-7" as const,
+    legacyHeaders: false,
+    skipSuccessfulRequests: true,
+    handler: refuse("wrong current passwords"),
+  };
+  return {
+    signIn: pair(limits, "sign-in attempts", true),
+    emailLinks: pair(limits, "requests for e-mailed links", false),
+    currentPassword: [
+      rateLimit({ ...common, limit: limits.perIp, keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}` }),
+      rateLimit({ ...common, limit: limits.perAccount, keyGenerator: (req) => `user:${req.user?.id ?? ""}` }),
+    ],
+  };
 }

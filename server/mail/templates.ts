@@ -65,6 +65,22 @@ export const templates = {
       footer: notYou,
     }),
 
+  passwordChanged: (p: { publicUrl: string; displayName: string; how: "changed" | "reset"; revokedTokens: number; keptTokens: number }) =>
+    render("Your Plotbank password was changed", `Hello ${p.displayName},`, {
+      paragraphs: [
+        p.how === "reset"
+          ? "The password of your Plotbank account was just reset with an e-mailed link, and every session of the account was signed out."
+          : "The password of your Plotbank account was just changed, and every other session of the account was signed out.",
+        p.revokedTokens > 0
+          ? `${p.revokedTokens} API token${p.revokedTokens === 1 ? " was" : "s were"} revoked with it: scripts that used ${p.revokedTokens === 1 ? "it" : "them"} need a new token from the Developers screen.`
+          : p.keptTokens > 0
+            ? `Your ${p.keptTokens} API token${p.keptTokens === 1 ? " was" : "s were"} kept, as you chose. Revoke any you do not recognise on the Developers screen.`
+            : "The account has no API tokens.",
+        "If you did not do this, reset your password now and tell an administrator.",
+      ],
+      action: { label: "Open your account", url: p.publicUrl + mailPaths.account() },
+    }),
+
   passwordReset: (p: { publicUrl: string; displayName: string; token: string }) =>
     render("Set a new Plotbank password", `Hello ${p.displayName},`, {
       paragraphs: [

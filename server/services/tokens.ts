@@ -1,4 +1,4 @@
-import { and, desc, eq, isNull } from "drizzle-orm";
+import { and, desc, eq, gt, isNull, or } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { apiTokens } from "@/db/schema";
 import type { Role } from "@/schemas/account";
@@ -6,6 +6,7 @@ import type { ApiToken, CreatedToken, TokenScope } from "@/schemas/tokens";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
 import { staffRoles } from "@/constants/vocabulary";
 import { forbidden, notFound } from "@/server/errors";
+import type { Tx } from "@/server/services/ingest/write-rows";
 
 const dayMs = 24 * 60 * 60 * 1000;
 /** Enough of the secret to recognise it in a list, far too little to guess the rest (32 random bytes follow). */
@@ -57,6 +58,17 @@ export async function listTokens(db: Db, userId: string): Promise<ApiToken[]> {
   const rows = await db.select().from(apiTokens).where(eq(apiTokens.userId, userId)).orderBy(desc(apiTokens.createdAt));
   const now = Date.now();
   return rows.map((t) => toApiToken(t, now));
+}
+
+/**
+ * Revoke every live token of an account (a new password ends whatever the old one let anybody create). Returns how many
+ * were revoked and how many live ones are left.
+ */
+export async function revokeAllTokens(db: Db | Tx, userId: string, revoke = true): Promise<{ revoked: number; kept: number }> {
+  const live = and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt), or(isNull(apiTokens.expiresAt), gt(apiTokens.expiresAt, new Date())));
+  if (!revoke) return { revoked: 0, kept: (await db.select({ id: apiTokens.id }).from(apiTokens).where(live)).length };
+  const rows = await db.update(apiTokens).set({ revokedAt: new Date() }).where(live).returning({ id: apiTokens.id });
+  return { revoked: rows.length, kept: 0 };
 }
 
 /**

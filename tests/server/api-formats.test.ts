@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { datasetDetail, observationPage, responsePage, versionDetail } from "@/schemas/public";
 import { problemSchema } from "@/schemas/problem";
 import { tableSchemaDescriptor } from "@/schemas/table-schema";
-import { csvCell } from "@/server/csv";
+import { CsvWriter } from "@/server/csv";
 import { blocks, insertPublicFixture, isLatestPublished, modelCells } from "@/tests/support/public-fixture";
 import { testApp, type TestApp } from "@/tests/support/test-app";
 
@@ -181,8 +181,14 @@ describe("CSV", () => {
     expect(byAccept.text).toBe(byParam.text);
     const rows = parseCsv(byAccept.text).data;
     expect(rows).toHaveLength(latestPlots);
-    expect(byAccept.headers.link).toContain(`<${v110}/schema>; rel="describedby"`);
-    expect(byAccept.headers.link).toContain('</api/v1/datasets/tb-corn-nk/versions/1.0.0/schema>; rel="describedby"');
+    // describedby names what describes these columns: the row's OpenAPI component, not a dataset's data dictionary.
+    const described = /<([^>]+)>; rel="describedby"/.exec(byAccept.headers.link!)![1]!;
+    expect(described).toBe("/api/v1/openapi.json#/components/schemas/ObservationRow");
+    const doc = (await get("/api/v1/openapi.json").expect(200)).body;
+    const header = byAccept.text.split("\r\n")[0]!.split(",");
+    expect(Object.keys(doc.components.schemas.ObservationRow.properties)).toEqual(header);
+    expect(byAccept.headers.link).toContain(`<${v110}/schema>; rel="related"`);
+    expect(byAccept.headers.link).toContain('</api/v1/datasets/tb-corn-nk/versions/1.0.0/schema>; rel="related"');
   });
   it("has the JSON rows' columns and values; lines end in CRLF", async () => {
     const csv = await get("/api/v1/responses?format=csv&crop=corn").expect(200);
@@ -212,9 +218,10 @@ describe("CSV", () => {
     expect(json.items.map((s: { location: string }) => s.location)).toContain("=Prairie County");
   });
   it("neutralises tab and carriage-return starts as well", () => {
-    expect(csvCell("\tcmd")).toBe("'\tcmd");
-    expect(csvCell("\rx")).toBe("\"'\rx\"");
-    expect(csvCell(-3.5)).toBe("-3.5");
+    const line = (value: string | number) => new CsvWriter(["x"]).rows([[value]]);
+    expect(line("\tcmd")).toBe("'\tcmd\r\n");
+    expect(line("\rx")).toBe("\"'\rx\"\r\n");
+    expect(line(-3.5)).toBe("-3.5\r\n");
   });
 });
 

@@ -30,9 +30,9 @@ describe("exports of a published version", () => {
       const csv = files.get(r.path)!;
       expect(r.hash).toBe(`sha256:${createHash("sha256").update(csv).digest("hex")}`);
       expect(r.bytes).toBe(csv.length);
-      expect(r.schema.fields.map((x: { name: string }) => x.name)).toEqual(csv.toString("utf8").split("\n")[0]!.split(","));
+      expect(r.schema.fields.map((x: { name: string }) => x.name)).toEqual(csv.toString("utf8").split("\r\n")[0]!.split(","));
     }
-    const plots = files.get("data/plots.csv")!.toString("utf8").trim().split("\n");
+    const plots = files.get("data/plots.csv")!.toString("utf8").trim().split("\r\n");
     expect(plots).toHaveLength(33);
     expect(plots[0]).toBe("site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct,stand_count,vigour,test_weight");
     const treatments = files.get("data/treatments.csv")!.toString("utf8");

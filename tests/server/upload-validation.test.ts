@@ -267,7 +267,7 @@ describe("summaries and reports", () => {
     expect(byColumn.problems[0]).toMatchObject({ row: 3, value: "ZZ" });
     const csv = await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${body.reportId}.csv`).expect(200);
     expect(csv.headers["content-type"]).toMatch(/text\/csv/);
-    const lines = csv.text.trim().split("\n");
+    const lines = csv.text.trim().split("\r\n");
     expect(lines[0]).toBe("severity,file,row,column,value,message");
     expect(lines.slice(1).some((l) => l.startsWith("error,plots.csv,2,block,x,"))).toBe(true);
     await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${body.reportId}?severity=fatal`).expect(400);

@@ -18,7 +18,7 @@ export function accountRoutes(ctx: AppContext): Router {
   router.use(signUpRoutes(ctx, limiters));
   router.use(passwordResetRoutes(ctx, limiters));
   router.use(invitationRoutes(ctx));
-  router.use(profileRoutes(ctx));
+  router.use(profileRoutes(ctx, limiters));
   router.use(adminRoutes(ctx));
   return router;
 }

@@ -28,11 +28,11 @@ export function passwordResetRoutes(ctx: AppContext, limiters: AuthLimiters): Ro
     path: "/api/v1/password-reset/confirm",
     operationId: "confirmPasswordReset",
     tags: ["Accounts"],
-    summary: "Set a new password with the e-mailed link; every session of the account ends",
+    summary: "Set a new password with the e-mailed link; every session of the account ends and its API tokens are revoked",
     body: { json: resetPasswordBody },
     responses: { 204: { description: "Password changed; sign in with it" }, ...problemResponses(400), 410: { description: "The link is unknown, used or expired" } },
   }, async ({ body }, _req, res) => {
-    await resetPassword(ctx, body.token, body.password);
+    await resetPassword(ctx, body.token, body.password, body.revokeApiTokens !== false);
     res.status(204).end();
   });
 

@@ -1,7 +1,8 @@
-import type { Router } from "express";
+import type { Router, RequestHandler } from "express";
 import { z } from "zod";
 import { followList, followState, me, profilePatch } from "@/schemas/account";
 import { currentUser, requireUser, requireWriteScope } from "@/server/auth/guards";
+import type { AuthLimiters } from "@/server/auth/rate-limits";
 import { sessionCookieName } from "@/server/auth/sessions";
 import type { AppContext } from "@/server/context";
 import { routeModule } from "@/server/openapi/define-route";
@@ -13,9 +14,13 @@ import { meOf } from "@/server/services/users";
 const slugParams = z.object({ slug: z.string().min(1).max(120) });
 
 /** The signed-in user's own account: profile, password and the datasets they follow. */
-export function profileRoutes(ctx: AppContext): Router {
+export function profileRoutes(ctx: AppContext, limiters: AuthLimiters): Router {
   const { db } = ctx;
   const { router, defineRoute } = routeModule(ctx.registry);
+  // Only a request with a password in it can guess one; only a refused one counts.
+  const passwordGuard = limiters.currentPassword.map((limit): RequestHandler => (req, res, next) =>
+    (req.body as { currentPassword?: unknown } | undefined)?.currentPassword === undefined ? next() : limit(req, res, next),
+  );
 
   defineRoute({
     method: "get",
@@ -34,11 +39,11 @@ export function profileRoutes(ctx: AppContext): Router {
     path: "/api/v1/account",
     operationId: "updateAccount",
     tags: ["Accounts"],
-    summary: "Change your name, or your password (with the current one; other sessions end)",
+    summary: "Change your name, or your password (with the current one; other sessions end and API tokens are revoked)",
     description: "Role and e-mail confirmation cannot be changed here; such fields are ignored.",
-    guards: [requireWriteScope],
+    guards: [requireWriteScope, ...passwordGuard],
     body: { json: profilePatch },
-    responses: { 200: { description: "The updated profile", content: { "application/json": { schema: me } } }, ...problemResponses(400, 401, 403) },
+    responses: { 200: { description: "The updated profile", content: { "application/json": { schema: me } } }, ...problemResponses(400, 401, 403, 429) },
   }, async ({ body: patch }, req, res) => {
     const secret = (req.cookies as Record<string, string> | undefined)?.[sessionCookieName];
     res.json(await updateProfile(ctx, currentUser(req).id, patch, req.auth?.via === "session" ? secret : undefined));

@@ -3,6 +3,7 @@ import type { Request, Router } from "express";
 import type { Readable } from "node:stream";
 import { z } from "zod";
 import { uploadOptions, uploadRejection, uploadResult, type UploadOptions } from "@/schemas/curation";
+import { hasControlCharacter, line } from "@/schemas/safe-text";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
 import { currentUser, requireWriteScope } from "@/server/auth/guards";
@@ -20,7 +21,7 @@ const optionQuery = z
     mapping: z.string().max(20_000).optional().describe('JSON object, CSV header → field, e.g. {"Yield (bu/ac)":"yield_kg_ha"}'),
     units: z.string().max(2_000).optional().describe('JSON object, e.g. {"yield":"bu/ac","yieldMoisture":"harvest"}'),
     mode: z.enum(["merge", "replace"]).optional(),
-    filename: z.string().max(200).optional(),
+    filename: line().max(200).optional(),
   })
   .strict();
 
@@ -41,21 +42,52 @@ function parseOptions(raw: { mapping?: string; units?: string; mode?: string }, 
   return result.data;
 }
 
-/** The file part of a multipart body; fields sent before the file are its options. */
-function multipartFile(req: Request, limitBytes: number): Promise<{ stream: Readable; filename: string; fields: Record<string, string> }> {
+const cutOff = () =>
+  new HttpProblem(400, "Bad request", "The multipart body ended before its closing boundary: the upload was cut off. Nothing was stored.", {
+    errors: [{ field: "body", message: "incomplete multipart body" }],
+  });
+
+/**
+ * The file part of a multipart body; fields sent before the file are its options. Every parser error becomes a 400:
+ * busboy throws on a missing boundary and emits "Unexpected end of form" on the file stream when the body is cut off,
+ * and an error event nobody listens to would end the whole process. `failed()` tells the caller the stream broke.
+ */
+function multipartFile(req: Request, limitBytes: number): Promise<{ stream: Readable; filename: string; fields: Record<string, string>; failed: () => boolean }> {
   return new Promise((resolve, reject) => {
     const fields: Record<string, string> = {};
     let found = false;
-    // One byte over the limit lets the reader see the file is too large (busboy would cut it silently).
-    const bb = busboy({ headers: req.headers, limits: { fileSize: limitBytes + 1, files: 1, fields: 10, fieldSize: 64 * 1024 } });
+    let broken = false;
+    let bb: ReturnType<typeof busboy>;
+    try {
+      // One byte over the limit lets the reader see the file is too large (busboy would cut it silently).
+      bb = busboy({ headers: req.headers, limits: { fileSize: limitBytes + 1, files: 1, fields: 10, fieldSize: 64 * 1024 } });
+    } catch (error) {
+      req.resume();
+      reject(new HttpProblem(400, "Bad request", `The multipart body cannot be read: ${(error as Error).message}.`, { errors: [{ field: "body", message: "no multipart boundary" }] }));
+      return;
+    }
     bb.on("field", (name, value) => {
       fields[name] = value;
     });
     bb.on("file", (_name, stream, info) => {
       found = true;
-      resolve({ stream, filename: info.filename || "upload.csv", fields });
+      stream.on("error", () => {
+        broken = true;
+      });
+      const filename = info.filename || "upload.csv";
+      if (hasControlCharacter(filename)) {
+        stream.resume();
+        reject(new HttpProblem(400, "Bad request", "The file name holds a control character.", { errors: [{ field: "body.file", message: "the file name contains a control character" }] }));
+        return;
+      }
+      resolve({ stream, filename, fields, failed: () => broken });
     });
-    bb.on("error", reject);
+    bb.on("error", () => {
+      broken = true;
+      req.unpipe(bb);
+      req.resume();
+      reject(cutOff());
+    });
     bb.on("close", () => {
       if (!found) reject(new HttpProblem(400, "Bad request", "The multipart body has no file part.", { errors: [{ field: "body.file", message: "missing" }] }));
     });
@@ -102,9 +134,11 @@ export function curationUploadRoutes(ctx: AppContext): Router {
     let source: Readable = req;
     let filename = query.filename ?? `${resource}.csv`;
     let options: UploadOptions;
+    let partFailed = () => false;
     if (multipart) {
       const part = await multipartFile(req, config.uploadLimitBytes);
       source = part.stream;
+      partFailed = part.failed;
       filename = part.filename;
       options = parseOptions({ ...query, ...part.fields }, "body");
     } else {
@@ -120,7 +154,7 @@ export function curationUploadRoutes(ctx: AppContext): Router {
     } catch (error) {
       source.resume();
       req.resume();
-      throw error;
+      throw partFailed() ? cutOff() : error;
     }
     if (result.accepted) {
       res.status(201).json(result);

@@ -7,7 +7,7 @@ import type { AppContext } from "@/server/context";
 import { currentUser, requireRole, requireUser, requireWriteScope } from "@/server/auth/guards";
 import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
-import { assertCanView, versionById } from "@/server/services/curation/access";
+import { assertCanView, canEditDataset, isReviewer, versionById } from "@/server/services/curation/access";
 import { diffVersions } from "@/server/services/curation/diff";
 import { getReport, reportCsv } from "@/server/services/curation/reports";
 import { approveVersion, returnVersion, reviewQueue as listQueue, submitVersion, withdrawVersion } from "@/server/services/curation/review";
@@ -65,12 +65,13 @@ export function curationVersionRoutes(ctx: AppContext): Router {
   }, async ({ params: { id, report }, query: filter }, req, res) => {
     const { version, dataset } = await versionById(db, id);
     await assertCanView(db, req.user, dataset, version);
+    const acceptedOnly = !isReviewer(req.user) && !(await canEditDataset(db, req.user, dataset));
     if (report.endsWith(".csv")) {
       const reportId = report.slice(0, -4);
-      res.type("text/csv; charset=utf-8").attachment(`validation-report-${reportId}.csv`).send(await reportCsv(db, id, reportId, filter));
+      res.type("text/csv; charset=utf-8").attachment(`validation-report-${reportId}.csv`).send(await reportCsv(db, id, reportId, filter, acceptedOnly));
       return;
     }
-    res.json(await getReport(db, id, report, filter));
+    res.json(await getReport(db, id, report, filter, acceptedOnly));
   });
 
   defineRoute({

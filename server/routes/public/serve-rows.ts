@@ -66,9 +66,11 @@ export async function serveRows<Row extends { id: number }, F>(req: Request, res
   if (csv) {
     res.setHeader("Content-Type", "text/csv; charset=utf-8; header=present");
     res.setHeader("Content-Disposition", `inline; filename="${o.resource.name}.csv"`);
-    if (o.versions.length) {
-      res.setHeader("Link", o.versions.map((v) => `<${versionPath(v.datasetSlug, v.semver)}/schema>; rel="describedby"`).join(", "));
-    }
+    // The columns are the view's, not the dataset's: the OpenAPI component of the row describes them. The data
+    // dictionaries of the versions read are linked as related.
+    const links = [`</api/v1/openapi.json#/components/schemas/${o.resource.rowSchema}>; rel="describedby"; type="application/vnd.oai.openapi+json"`];
+    for (const v of o.versions) links.push(`<${versionPath(v.datasetSlug, v.semver)}/schema>; rel="related"; title="data dictionary"`);
+    res.setHeader("Link", links.join(", "));
     try {
       await streamCsv(res, o.resource.csvColumns, batchesOf(read));
     } catch (error) {

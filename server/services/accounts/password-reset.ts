@@ -6,6 +6,7 @@ import { endAllSessions } from "@/server/auth/sessions";
 import type { AppContext } from "@/server/context";
 import { createMailer } from "@/server/mail/mailer";
 import { templates } from "@/server/mail/templates";
+import { revokeAllTokens } from "@/server/services/tokens";
 import { findUserByEmail } from "@/server/services/users";
 import { consumeEmailToken, issueEmailToken, retireEmailTokens } from "./email-tokens";
 import { checkYourEmail, refuseWeakPassword } from "./sign-up";
@@ -23,11 +24,12 @@ export async function requestPasswordReset(ctx: AppContext, email: string): Prom
 
 /**
  * Set a new password from a reset link. The link is used up, every other open reset link for the address is retired,
- * and every session ends: whoever knew the old password is signed out. Opening the link also proves the address.
+ * every session ends and every API token is revoked (unless the caller keeps them): whoever knew the old password is
+ * locked out. Opening the link also proves the address.
  */
-export async function resetPassword(ctx: AppContext, token: string, password: string): Promise<void> {
+export async function resetPassword(ctx: AppContext, token: string, password: string, revokeApiTokens = true): Promise<void> {
   // A refused password rolls the transaction back, so the link stays usable for a second try.
-  await ctx.db.transaction(async (tx) => {
+  const changed = await ctx.db.transaction(async (tx) => {
     const row = await consumeEmailToken(tx, "reset", token);
     const [user] = await tx.select().from(users).where(eq(users.id, row.userId!));
     if (!user) return;
@@ -38,5 +40,18 @@ export async function resetPassword(ctx: AppContext, token: string, password: st
       .where(eq(users.id, user.id));
     await retireEmailTokens(tx, "reset", user.email);
     await endAllSessions(tx, user.id);
+    return { user, tokens: await revokeAllTokens(tx, user.id, revokeApiTokens) };
   });
+  if (changed) await notifyPasswordChanged(ctx, changed.user, "reset", changed.tokens);
+}
+
+/** Tell the account its password changed and what became of its API tokens. */
+export async function notifyPasswordChanged(
+  ctx: AppContext,
+  user: { id: string; email: string; displayName: string },
+  how: "changed" | "reset",
+  tokens: { revoked: number; kept: number },
+) {
+  const mail = templates.passwordChanged({ publicUrl: ctx.config.publicUrl, displayName: user.displayName, how, revokedTokens: tokens.revoked, keptTokens: tokens.kept });
+  await createMailer(ctx).send({ kind: "password-changed", to: user.email, ...mail, meta: { userId: user.id, ...tokens } });
 }

@@ -6,11 +6,14 @@ import { sha256Hex } from "@/server/auth/secrets";
 import type { AppContext } from "@/server/context";
 import { badRequest, notFound } from "@/server/errors";
 import { meOf } from "@/server/services/users";
+import { revokeAllTokens } from "@/server/services/tokens";
+import { notifyPasswordChanged } from "./password-reset";
 import { refuseWeakPassword } from "./sign-up";
 
 /**
  * Change one's own name or password. Only the named fields are written; a new password needs the current one and
- * signs out every other session (the one making the change stays signed in).
+ * signs out every other session (the one making the change stays signed in) and revokes the API tokens unless
+ * `revokeApiTokens` is false; the account is told by e-mail.
  */
 export async function updateProfile(ctx: AppContext, userId: string, patch: ProfilePatch, currentSessionSecret?: string): Promise<Me> {
   const [user] = await ctx.db.select().from(users).where(eq(users.id, userId));
@@ -28,6 +31,9 @@ export async function updateProfile(ctx: AppContext, userId: string, patch: Prof
   if (changes.passwordHash) {
     const keep = currentSessionSecret ? sha256Hex(currentSessionSecret) : "";
     await ctx.db.delete(sessions).where(and(eq(sessions.userId, userId), ne(sessions.tokenHash, keep)));
+    // Tokens made with the old password end with it unless the owner asked to keep them.
+    const tokens = await revokeAllTokens(ctx.db, userId, patch.revokeApiTokens !== false);
+    await notifyPasswordChanged(ctx, user, "changed", tokens);
   }
   return (await meOf(ctx.db, userId))!;
 }

@@ -1,7 +1,9 @@
 import { and, eq, isNull } from "drizzle-orm";
 import { users } from "@/db/schema";
 import type { CheckEmail, SignUpBody } from "@/schemas/account";
+import { hashPassword } from "@/server/auth/passwords";
 import { passwordWeakness } from "@/server/auth/password-strength";
+import { isUniqueViolation } from "@/server/errors";
 import type { AppContext } from "@/server/context";
 import { badRequest } from "@/server/errors";
 import { createMailer } from "@/server/mail/mailer";
@@ -33,17 +35,32 @@ export async function sendVerification(ctx: AppContext, user: { id: string; emai
 export async function signUp(ctx: AppContext, body: SignUpBody): Promise<CheckEmail> {
   refuseWeakPassword(body.password, body.email);
   const existing = await findUserByEmail(ctx.db, body.email);
-  if (existing) {
-    if (!existing.emailVerifiedAt && !existing.disabledAt) await sendVerification(ctx, existing);
-    else if (!existing.disabledAt) {
-      const mail = templates.alreadyRegistered({ publicUrl: ctx.config.publicUrl, displayName: existing.displayName });
-      await createMailer(ctx).send({ kind: "already-registered", to: existing.email, ...mail, meta: { userId: existing.id } });
+  if (!existing) {
+    try {
+      const user = await createUser(ctx.db, { email: body.email, displayName: body.displayName, password: body.password, role: "member", verified: false });
+      await sendVerification(ctx, user);
+      return checkYourEmail;
+    } catch (error) {
+      // Two sign-ups of one new address at once: the second loses the race on the unique address and is answered
+      // like any sign-up of an address that has an account.
+      if (!isUniqueViolation(error)) throw error;
     }
-    return checkYourEmail;
+  } else {
+    // The same scrypt run a new account costs, so the answer's timing does not tell which addresses have accounts.
+    await hashPassword(body.password);
   }
-  const user = await createUser(ctx.db, { email: body.email, displayName: body.displayName, password: body.password, role: "member", verified: false });
-  await sendVerification(ctx, user);
+  const known = existing ?? (await findUserByEmail(ctx.db, body.email));
+  if (known) await tellExisting(ctx, known);
   return checkYourEmail;
+}
+
+/** An address that has an account gets a new confirmation link (not yet confirmed) or a note that it is registered. */
+async function tellExisting(ctx: AppContext, existing: NonNullable<Awaited<ReturnType<typeof findUserByEmail>>>) {
+  if (!existing.emailVerifiedAt && !existing.disabledAt) await sendVerification(ctx, existing);
+  else if (!existing.disabledAt) {
+    const mail = templates.alreadyRegistered({ publicUrl: ctx.config.publicUrl, displayName: existing.displayName });
+    await createMailer(ctx).send({ kind: "already-registered", to: existing.email, ...mail, meta: { userId: existing.id } });
+  }
 }
 
 export async function resendVerification(ctx: AppContext, email: string): Promise<CheckEmail> {

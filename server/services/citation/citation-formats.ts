@@ -14,6 +14,17 @@ export const citationMediaTypes: Record<CitationFormat, string> = {
   "csl-json": "application/vnd.citationstyles.csl+json",
 };
 
+// eslint-disable-next-line no-control-regex -- matching control characters is the point
+const controlCharacters = /[\u0000-\u001f\u007f-\u009f\u2028\u2029]+/g;
+
+/** Every string of the item with its control characters (line breaks included) turned into one space. */
+function oneLine<T>(value: T): T {
+  if (typeof value === "string") return value.replace(controlCharacters, " ") as T;
+  if (Array.isArray(value)) return value.map(oneLine) as T;
+  if (value && typeof value === "object") return Object.fromEntries(Object.entries(value).map(([k, v]) => [k, oneLine(v)])) as T;
+  return value;
+}
+
 export const citationExtensions: Record<CitationFormat, string> = { text: "txt", bibtex: "bib", ris: "ris", "csl-json": "json" };
 
 /**
@@ -22,7 +33,10 @@ export const citationExtensions: Record<CitationFormat, string> = { text: "txt",
  * (a day in `month` would not be valid BibTeX).
  * The abstract stays in CSL-JSON only: a reference list does not carry it.
  */
-export function renderCitation(item: CslItem, format: CitationFormat): string {
+export function renderCitation(original: CslItem, format: CitationFormat): string {
+  // RIS and BibTeX are line- and brace-framed: a line break in a title would start a forged record. The contract
+  // refuses control characters in one-line fields; metadata stored before that still reaches the writers as one line.
+  const item = format === "csl-json" ? original : oneLine(original);
   switch (format) {
     case "csl-json":
       return `${JSON.stringify([item], null, 2)}\n`;

@@ -1,6 +1,6 @@
-import { and, eq } from "drizzle-orm";
+import { and, eq, inArray } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { datasetEditors, datasets, versions } from "@/db/schema";
+import { datasetEditors, datasets, uploads, versionEdits, versions } from "@/db/schema";
 import { forbidden, notFound } from "@/server/errors";
 
 export type Dataset = typeof datasets.$inferSelect;
@@ -17,11 +17,17 @@ export async function canEditDataset(db: Db, user: User | undefined, dataset: Da
   return !!row;
 }
 
-export const isReviewer = (user: User | undefined) => user?.role === "reviewer" || user?.role === "admin";
+/** The dataset has a version the public can see (published, or withdrawn with its tombstone). */
+async function isPublic(db: Db, dataset: Dataset): Promise<boolean> {
+  const [row] = await db
+    .select({ id: versions.id })
+    .from(versions)
+    .where(and(eq(versions.datasetId, dataset.id), inArray(versions.state, ["published", "withdrawn"])))
+    .limit(1);
+  return !!row;
+}
 
-/** Approving publishes, so it needs a second person: a reviewer approves a version in review they neither created nor submitted. */
-export const canApprove = (user: User | undefined, version: Pick<Version, "state" | "createdBy" | "submittedBy">) =>
-  version.state === "in_review" && isReviewer(user) && user!.id !== version.createdBy && user!.id !== version.submittedBy;
+export const isReviewer = (user: User | undefined) => user?.role === "reviewer" || user?.role === "admin";
 
 /** Any reviewer may send a version in review back to its curators, their own included. */
 export const canReturn = (user: User | undefined, version: Pick<Version, "state">) => version.state === "in_review" && isReviewer(user);
@@ -54,6 +60,32 @@ export async function assertCanView(db: Db, user: User | undefined, dataset: Dat
 
 export async function assertCanEdit(db: Db, user: User | undefined, dataset: Dataset) {
   if (!(await canEditDataset(db, user, dataset))) {
+    // A dataset nobody published is known only to its editors and reviewers: to anyone else it does not exist.
+    if (!isReviewer(user) && !(await isPublic(db, dataset))) throw notFound(`No dataset is called "${dataset.slug}".`);
     throw forbidden(`Only the owner and editors of dataset "${dataset.slug}" (or an admin) may change it.`);
   }
+}
+
+/**
+ * Four eyes: the people who made a version's content (its creator, its submitter, whoever uploaded a file into it or
+ * edited its data dictionary, semver or changelog) may not approve it, whatever their role.
+ */
+export async function contentAuthors(db: Db, version: Pick<Version, "id" | "createdBy" | "submittedBy">): Promise<Set<string>> {
+  const [uploaders, editors] = await Promise.all([
+    db.selectDistinct({ id: uploads.uploadedBy }).from(uploads).where(eq(uploads.versionId, version.id)),
+    db.select({ id: versionEdits.userId }).from(versionEdits).where(eq(versionEdits.versionId, version.id)),
+  ]);
+  const ids = [version.createdBy, version.submittedBy, ...uploaders.map((u) => u.id), ...editors.map((e) => e.id)];
+  return new Set(ids.filter((id): id is string => !!id));
+}
+
+/** Approving publishes, so it needs a second person: a reviewer who made none of the version's content. */
+export async function canApprove(db: Db, user: User | undefined, version: Pick<Version, "id" | "state" | "createdBy" | "submittedBy">): Promise<boolean> {
+  if (!user || !isReviewer(user) || version.state !== "in_review") return false;
+  return !(await contentAuthors(db, version)).has(user.id);
+}
+
+/** Note that a user changed a draft's content other than by an upload. */
+export async function recordContentEdit(db: Db, versionId: string, userId: string) {
+  await db.insert(versionEdits).values({ versionId, userId }).onConflictDoUpdate({ target: [versionEdits.versionId, versionEdits.userId], set: { lastAt: new Date() } });
 }

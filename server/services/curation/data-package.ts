@@ -5,6 +5,7 @@ import type { Db } from "@/db/client";
 import { versions } from "@/db/schema";
 import type { Contributor } from "@/schemas/dataset-metadata";
 import { resourceName, type ResourceName, type TableSchemaResource } from "@/schemas/table-schema";
+import { formulaGuardNote } from "@/server/csv";
 import { notFound } from "@/server/errors";
 import { pickVersion, versionGone } from "@/server/services/latest-version";
 import { datasetBySlug, type Dataset, type Version } from "./access";
@@ -36,11 +37,23 @@ export interface BuiltResource {
   name: ResourceName;
   csv: Buffer;
   sha256: string;
+  /** Fields in which the CSV writer's formula guard changed at least one cell. */
+  guarded: Set<string>;
 }
 
 export async function buildResource(db: Db, version: Version, resource: ResourceName): Promise<BuiltResource> {
-  const csv = await resourceCsv(db, version.id, version.tableSchema, resource);
-  return { name: resource, csv, sha256: createHash("sha256").update(csv).digest("hex") };
+  const guarded = new Set<string>();
+  const csv = await resourceCsv(db, version.id, version.tableSchema, resource, guarded);
+  return { name: resource, csv, sha256: createHash("sha256").update(csv).digest("hex"), guarded };
+}
+
+/** The resource's schema, with the formula guard's note on each field whose published cells it changed. */
+function servedSchema(version: Version, built: BuiltResource): TableSchemaResource {
+  const schema = resourceSchema(version, built.name);
+  return {
+    ...schema,
+    fields: schema.fields.map((f) => (built.guarded.has(f.name) ? { ...f, description: [f.description, formulaGuardNote].filter(Boolean).join(" ") } : f)),
+  };
 }
 
 /** datapackage.json (Frictionless Data Package v2, with the v1 profile names for older readers). */
@@ -68,7 +81,13 @@ export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, versi
       ...(c.orcid ? { path: `https://orcid.org/${c.orcid}` } : {}),
       ...(c.affiliation ? { organization: c.affiliation } : {}),
     })),
-    plotbank: { checksum: version.checksum, changelog: version.changelog, units: "yields kg/ha at the crop's standard moisture; nutrient rates lb/ac of N, P2O5, K2O and S" },
+    plotbank: {
+      checksum: version.checksum,
+      checksumOf: "SHA-256 over, for each resource in the order sites, site_years, soil_tests, treatments, plots, summaries, its name, a line feed and its CSV file as served",
+      csv: `CRLF line ends, UTF-8 without a byte-order mark. ${formulaGuardNote}`,
+      changelog: version.changelog,
+      units: "yields kg/ha at the crop's standard moisture; nutrient rates lb/ac of N, P2O5, K2O and S",
+    },
     resources: built.map((r) => ({
       name: r.name.replace("_", "-"),
       type: "table",
@@ -79,7 +98,7 @@ export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, versi
       encoding: "utf-8",
       bytes: r.csv.length,
       hash: `sha256:${r.sha256}`,
-      schema: resourceSchema(version, r.name),
+      schema: servedSchema(version, r),
     })),
   };
 }

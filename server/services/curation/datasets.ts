@@ -98,10 +98,11 @@ function assertCanShare(user: User, dataset: Dataset) {
 export async function addEditor(db: Db, user: User, dataset: Dataset, email: string): Promise<CurationDataset> {
   assertCanShare(user, dataset);
   const editor = await findUserByEmail(db, email);
-  if (!editor) throw new HttpProblem(404, "Not found", `No user has the e-mail ${email}.`, { errors: [{ field: "body.email", message: "no account has this address" }] });
-  if (editor.id === dataset.ownerId) throw conflict(`${email} owns this dataset already.`, [{ field: "body.email", message: "this is the owner" }]);
-  if (editor.role !== "curator" && editor.role !== "admin") {
-    throw conflict(`${email} is a ${editor.role}; only curators can be editors.`, [{ field: "body.email", message: `a ${editor.role}, not a curator` }]);
+  if (editor && editor.id === dataset.ownerId) throw conflict(`${email} owns this dataset already.`, [{ field: "body.email", message: "this is the owner" }]);
+  // One answer for "no account" and "an account that cannot be an editor": sharing must not tell a curator who has
+  // an account here, or with which role.
+  if (!editor || (editor.role !== "curator" && editor.role !== "admin") || editor.disabledAt) {
+    throw new HttpProblem(404, "Not found", `No curator has the e-mail ${email}.`, { errors: [{ field: "body.email", message: "no curator has this address" }] });
   }
   await db.insert(datasetEditors).values({ datasetId: dataset.id, userId: editor.id }).onConflictDoNothing();
   return describe(db, user, dataset);

@@ -3,6 +3,7 @@ import type { Db } from "@/db/client";
 import { validationReports } from "@/db/schema";
 import type { ValidationProblem, ValidationReport } from "@/schemas/curation";
 import type { ResourceName } from "@/schemas/table-schema";
+import { csvFile } from "@/server/csv";
 import { notFound } from "@/server/errors";
 
 export interface ReportFilter {
@@ -14,9 +15,13 @@ export interface ReportFilter {
   offset: number;
 }
 
-async function load(db: Db, versionId: string, reportId: string) {
+/**
+ * A report of a version. A rejected file never became part of the version, so its report (what someone tried to
+ * upload) stays with the dataset's editors and reviewers: `acceptedOnly` callers get 404 for it.
+ */
+async function load(db: Db, versionId: string, reportId: string, acceptedOnly = false) {
   const [r] = await db.select().from(validationReports).where(and(eq(validationReports.id, reportId), eq(validationReports.versionId, versionId)));
-  if (!r) throw notFound("No such validation report for this version.");
+  if (!r || (acceptedOnly && !r.accepted)) throw notFound("No such validation report for this version.");
   return r;
 }
 
@@ -28,8 +33,8 @@ function matches(p: ValidationProblem, f: Omit<ReportFilter, "limit" | "offset">
   return true;
 }
 
-export async function getReport(db: Db, versionId: string, reportId: string, filter: ReportFilter): Promise<ValidationReport> {
-  const r = await load(db, versionId, reportId);
+export async function getReport(db: Db, versionId: string, reportId: string, filter: ReportFilter, acceptedOnly = false): Promise<ValidationReport> {
+  const r = await load(db, versionId, reportId, acceptedOnly);
   const problems = r.problems as unknown as ValidationProblem[];
   const selected = problems.filter((p) => matches(p, filter));
   return {
@@ -46,18 +51,10 @@ export async function getReport(db: Db, versionId: string, reportId: string, fil
   };
 }
 
-const cell = (v: string | number | null) => {
-  if (v === null) return "";
-  const s = String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replaceAll('"', '""')}"` : s;
-};
-
 /** The report as CSV: severity, file, row (1-based data row, header not counted), column, value, message. */
-export async function reportCsv(db: Db, versionId: string, reportId: string, filter: Omit<ReportFilter, "limit" | "offset">): Promise<string> {
-  const r = await load(db, versionId, reportId);
-  const lines = ["severity,file,row,column,value,message"];
-  for (const p of r.problems as unknown as ValidationProblem[]) {
-    if (matches(p, filter)) lines.push([p.severity, p.file, p.row, p.column, p.value, p.message].map(cell).join(","));
-  }
-  return lines.join("\n") + "\n";
+export async function reportCsv(db: Db, versionId: string, reportId: string, filter: Omit<ReportFilter, "limit" | "offset">, acceptedOnly = false): Promise<string> {
+  const r = await load(db, versionId, reportId, acceptedOnly);
+  const rows = (r.problems as unknown as ValidationProblem[]).filter((p) => matches(p, filter)).map((p) => [p.severity, p.file, p.row, p.column, p.value, p.message]);
+  // The values are what an uploader sent, the text most likely to be hostile: the writer's formula guard applies.
+  return csvFile(["severity", "file", "row", "column", "value", "message"], rows);
 }

@@ -2,6 +2,7 @@ import { createHash } from "node:crypto";
 import { sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
+import { CsvWriter } from "@/server/csv";
 import type { Tx } from "@/server/services/ingest/write-rows";
 
 /** Resources in the fixed order of exports and of the version checksum. */
@@ -66,11 +67,6 @@ export const resourceQueries: Record<ResourceName, ResourceQuery> = {
 
 const firstAlias: Record<ResourceName, string> = { sites: "s", site_years: "sy", soil_tests: "st", treatments: "t", plots: "p", summaries: "m" };
 
-function csvCell(v: string | null): string {
-  if (v === null) return "";
-  return /[",\r\n]|^\s|\s$/.test(v) ? `"${v.replaceAll('"', '""')}"` : v;
-}
-
 /** The fields of a resource in the version's data dictionary order. */
 export function fieldsOf(schema: TableSchemaDescriptor, resource: ResourceName): string[] {
   return (schema.resources[resource]?.fields ?? []).map((f) => f.name).filter((f) => f in resourceQueries[resource].columns);
@@ -79,13 +75,11 @@ export function fieldsOf(schema: TableSchemaDescriptor, resource: ResourceName):
 const PAGE = 100_000;
 
 /**
- * The canonical CSV of one resource of a version, in pages: header = the data dictionary's fields, values as
- * PostgreSQL prints them (so PGlite and PostgreSQL give the same bytes), empty for missing.
+ * The rows of one resource of a version, in pages, as PostgreSQL prints each value (so PGlite and PostgreSQL give the
+ * same text), null for missing, in the data dictionary's field order and a stable row order.
  */
-export async function* resourceCsvChunks(db: Db | Tx, versionId: string, schema: TableSchemaDescriptor, resource: ResourceName): AsyncGenerator<string> {
+async function* resourcePages(db: Db | Tx, versionId: string, fields: string[], resource: ResourceName): AsyncGenerator<(string | null)[][]> {
   const q = resourceQueries[resource];
-  const fields = fieldsOf(schema, resource);
-  yield fields.join(",") + "\n";
   const select = fields.map((f, i) => `(${q.columns[f]})::text AS c${i}`).join(", ");
   for (let offset = 0; ; offset += PAGE) {
     const result = await db.execute(
@@ -93,26 +87,40 @@ export async function* resourceCsvChunks(db: Db | Tx, versionId: string, schema:
     );
     const rows = (result as unknown as { rows: Record<string, string | null>[] }).rows;
     if (rows.length === 0) return;
-    let out = "";
-    for (const row of rows) {
-      let line = "";
-      for (let i = 0; i < fields.length; i++) line += (i ? "," : "") + csvCell(row[`c${i}`] ?? null);
-      out += line + "\n";
-    }
-    yield out;
+    yield rows.map((row) => fields.map((_, i) => row[`c${i}`] ?? null));
     if (rows.length < PAGE) return;
   }
 }
 
-export async function resourceCsv(db: Db | Tx, versionId: string, schema: TableSchemaDescriptor, resource: ResourceName): Promise<Buffer> {
+/**
+ * The CSV of one resource of a version as it is served (resource downloads, the files in datapackage.zip, the sizes
+ * and hashes in DCAT): the one CSV writer, with the formula guard on the data dictionary's string fields. The names
+ * of fields in which the guard changed a cell are added to `guarded`, for the Data Package's note.
+ */
+export async function* resourceCsvChunks(
+  db: Db | Tx,
+  versionId: string,
+  schema: TableSchemaDescriptor,
+  resource: ResourceName,
+  guarded?: Set<string>,
+): AsyncGenerator<string> {
+  const fields = fieldsOf(schema, resource);
+  const types = new Map((schema.resources[resource]?.fields ?? []).map((f) => [f.name, f.type]));
+  const writer = new CsvWriter(fields, fields.map((f) => types.get(f) === "string"));
+  yield writer.headerLine();
+  for await (const page of resourcePages(db, versionId, fields, resource)) yield writer.rows(page);
+  for (const name of writer.guardedColumns) guarded?.add(name);
+}
+
+export async function resourceCsv(db: Db | Tx, versionId: string, schema: TableSchemaDescriptor, resource: ResourceName, guarded?: Set<string>): Promise<Buffer> {
   const parts: Buffer[] = [];
-  for await (const chunk of resourceCsvChunks(db, versionId, schema, resource)) parts.push(Buffer.from(chunk, "utf8"));
+  for await (const chunk of resourceCsvChunks(db, versionId, schema, resource, guarded)) parts.push(Buffer.from(chunk, "utf8"));
   return Buffer.concat(parts);
 }
 
 /**
- * The version checksum: SHA-256 over, for each resource in `resourceOrder`, its name, a newline and its canonical
- * CSV. Written as "sha256:<hex>".
+ * The version checksum: SHA-256 over, for each resource in `resourceOrder`, its name, a newline and its CSV exactly
+ * as served (so anyone can re-derive it from the downloaded files). Written as "sha256:<hex>".
  */
 export async function versionChecksum(db: Db | Tx, versionId: string, schema: TableSchemaDescriptor): Promise<string> {
   const hash = createHash("sha256");

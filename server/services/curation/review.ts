@@ -5,7 +5,7 @@ import { conflict, forbidden } from "@/server/errors";
 import { notifyReviewDecision, notifyReviewRequested, sendReviewMail } from "@/server/services/accounts/notifications";
 import { queueDoiWork } from "@/server/services/citation/doi-queue";
 import { runPublishHooks } from "@/server/services/publish-hooks";
-import { assertCanEdit, canApprove, canEditDataset, isReviewer, versionById, type User } from "./access";
+import { assertCanEdit, canApprove, canEditDataset, contentAuthors, isReviewer, versionById, type User } from "./access";
 import { versionChecksum } from "./resource-csv";
 import { assertSemverIncreases } from "./versions";
 
@@ -36,7 +36,9 @@ async function reviewable(ctx: AppContext, user: User, versionId: string, verb: 
  */
 export async function approveVersion(ctx: AppContext, user: User, versionId: string, comment?: string) {
   const { version, dataset } = await reviewable(ctx, user, versionId, "approve");
-  if (!canApprove(user, version)) throw forbidden("You created or submitted this version, so another reviewer must approve it.");
+  if ((await contentAuthors(ctx.db, version)).has(user.id)) {
+    throw forbidden("You created, changed or submitted this version, so another reviewer must approve it.");
+  }
   await assertSemverIncreases(ctx.db, dataset.id, version.semver, "semver");
   await ctx.db.transaction(async (tx) => {
     const checksum = await versionChecksum(tx, versionId, version.tableSchema);
@@ -93,7 +95,7 @@ export async function reviewQueue(ctx: AppContext, user: User) {
     .leftJoin(users, eq(users.id, versions.submittedBy))
     .where(eq(versions.state, "in_review"))
     .orderBy(asc(versions.submittedAt));
-  return rows.map((r) => ({
+  return Promise.all(rows.map(async (r) => ({
     versionId: r.v.id,
     datasetSlug: r.slug,
     datasetTitle: r.title,
@@ -102,6 +104,6 @@ export async function reviewQueue(ctx: AppContext, user: User) {
     submittedAt: r.v.submittedAt?.toISOString() ?? null,
     submittedBy: r.v.submittedBy,
     submittedByName: r.submitter,
-    canApprove: user.id !== r.v.createdBy && user.id !== r.v.submittedBy,
-  }));
+    canApprove: await canApprove(ctx.db, user, r.v),
+  })));
 }

@@ -9,7 +9,7 @@ import { badRequest, conflict } from "@/server/errors";
 import { compareSemver } from "@/server/services/catalogue";
 import { computeResponses } from "@/server/services/ingest/recompute-responses";
 import { latestPublishedOf } from "@/server/services/latest-version";
-import { assertCanEdit, canApprove, canEditDataset, canReturn, canWithdraw, versionById, type Dataset, type User, type Version } from "./access";
+import { assertCanEdit, canApprove, canEditDataset, canReturn, canWithdraw, isReviewer, recordContentEdit, versionById, type Dataset, type User, type Version } from "./access";
 import { copyVersionRows } from "./copy-version";
 import { iso } from "./datasets";
 import { bumpSemver, diffVersions } from "./diff";
@@ -93,6 +93,8 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
     v.basedOnVersionId ? db.select({ semver: versions.semver }).from(versions).where(eq(versions.id, v.basedOnVersionId)) : [],
     canEditDataset(db, user, dataset),
   ]);
+  // Reports of rejected files (what someone tried to upload) are for the dataset's editors and reviewers only.
+  const visibleReports = canEdit || isReviewer(user) ? reps : reps.filter((r) => r.accepted);
   const editable = v.state === "draft" || v.state === "in_review";
   let suggestedBump: VersionDetail["suggestedBump"] = null;
   let suggestedSemver: string | null = null;
@@ -129,7 +131,7 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
     responses: responseCount ?? null,
     uncomputedSiteYears: tombstone || !editable ? [] : await uncomputedSiteYears(db, v.id),
     uploads: ups.map((u) => ({ id: u.id, resource: u.resource as ResourceName, filename: u.filename, byteSize: u.byteSize, sha256: u.sha256, rowCount: u.rowCount, options: u.options, createdAt: u.createdAt.toISOString() })),
-    reports: reps.map((r) => ({
+    reports: visibleReports.map((r) => ({
       id: r.id,
       resource: r.resource as ResourceName,
       filename: r.filename,
@@ -139,7 +141,7 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
       createdAt: r.createdAt.toISOString(),
     })),
     canEdit: canEdit && v.state === "draft",
-    canReview: canApprove(user, v),
+    canReview: await canApprove(ctx.db, user, v),
     canReturn: canReturn(user, v),
     canWithdraw: canWithdraw(user, v, canEdit),
     latestPublishedSemver: latest?.semver ?? null,
@@ -163,6 +165,7 @@ export async function patchVersion(db: Db, user: User, versionId: string, patch:
     if (clash) throw conflict(`Dataset "${dataset.slug}" already has a version ${patch.semver}.`, [{ field: "body.semver", message: "taken" }]);
   }
   await db.update(versions).set({ ...patch, updatedAt: new Date() }).where(eq(versions.id, versionId));
+  await recordContentEdit(db, versionId, user.id);
 }
 
 export async function putTableSchema(db: Db, user: User, versionId: string, schema: TableSchemaDescriptor) {
@@ -172,6 +175,7 @@ export async function putTableSchema(db: Db, user: User, versionId: string, sche
   const problems = checkTableSchemaEdit(schema);
   if (problems.length) throw badRequest("The data dictionary cannot be changed so.", problems);
   await db.update(versions).set({ tableSchema: schema, updatedAt: new Date() }).where(eq(versions.id, versionId));
+  await recordContentEdit(db, versionId, user.id);
 }
 
 export async function datasetOfVersion(db: Db, versionId: string) {

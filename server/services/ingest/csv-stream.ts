@@ -83,6 +83,9 @@ export async function readCsvStream(
   let delimiter = ",";
   let parseError: HttpProblem | undefined;
   await new Promise<void>((resolve, reject) => {
+    // A source that failed before reading began (a multipart body cut off while the draft was loading) fires no
+    // second error event: look at its state, or the read would wait forever.
+    if (source.errored) return reject(source.errored);
     source.on("error", reject);
     text.on("error", reject);
     source.pipe(text);

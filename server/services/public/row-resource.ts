@@ -17,6 +17,8 @@ export interface RowScope<F> {
  */
 export interface RowResource<Row extends { id: number }, F> {
   name: string;
+  /** The OpenAPI component that describes one row (the CSV has the same columns, lists joined by ";"). */
+  rowSchema: string;
   readBatch(db: Db, scope: RowScope<F>, afterId: number, limit: number): Promise<Row[]>;
   csvColumns: readonly CsvColumn<Row>[];
 }

@@ -23,6 +23,7 @@ const soilColumns: CsvColumn<SiteYearRow>[] = (["P", "K", "S"] as const).flatMap
 
 export const siteYearResource: RowResource<SiteYearRow, Partial<TrialFilters>> = {
   name: "site-years",
+  rowSchema: "SiteYearRow",
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
     const rows = await db
