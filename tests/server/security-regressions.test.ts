@@ -386,6 +386,6 @@ describe("web pages", () => {
     for (let i = 0; i < 4; i++) statuses.push((await request(web.app).get(`/datasets/no-such-dataset-${i}`)).status);
     expect(statuses).toEqual([200, 200, 200, 429]);
     // Other pages of the app do not read the database and are not counted.
-    await request(web.app).get("/evidence").expect(200);
+    await request(web.app).get("/developers").expect(200);
   });
 });
