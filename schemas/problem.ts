@@ -25,4 +25,3 @@ export const problemSchema = z
   .meta({ id: "Problem" });
 
 export type Problem = z.infer<typeof problemSchema>;
-export type ProblemLocationT = z.infer<typeof problemLocation>;

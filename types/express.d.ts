@@ -9,6 +9,8 @@ declare global {
       role: Role;
     }
     interface Request {
+      /** The signed-in user (session cookie or API token); absent for anonymous requests. */
+      user?: User;
       /** How the request authenticated; absent for anonymous requests. */
       auth?: { via: "session" | "token"; scope: "read" | "write"; tokenId?: string };
     }

@@ -85,11 +85,3 @@ export const roleChanges = pgTable("role_changes", {
   toRole: roleEnum("to_role").notNull(),
   at: timestamp("at", { withTimezone: true }).notNull().defaultNow(),
 });
-
-export const savedQueries = pgTable("saved_queries", {
-  id: uuid("id").primaryKey().defaultRandom(),
-  userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
-  name: text("name").notNull(),
-  query: jsonb("query").$type<Record<string, string>>().notNull(),
-  createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
-});

@@ -1,12 +1,10 @@
-import { sql } from "drizzle-orm";
+import { getTableName, is, sql } from "drizzle-orm";
+import { PgTable } from "drizzle-orm/pg-core";
 import type { Db } from "@/db/client";
+import * as schema from "@/db/schema";
 
-/** Every application table, for whole-database comparisons. */
-export const applicationTables = [
-  "users", "sessions", "email_tokens", "api_tokens", "outbox", "role_changes", "saved_queries",
-  "datasets", "dataset_editors", "follows", "versions", "uploads", "validation_reports",
-  "sites", "site_years", "soil_tests", "treatments", "applications", "plots", "summary_means", "responses",
-] as const;
+/** Every application table, for whole-database comparisons: the tables db/schema declares. */
+export const applicationTables: readonly string[] = (Object.values(schema) as unknown[]).filter((value): value is PgTable => is(value, PgTable)).map((table) => getTableName(table));
 
 /** An order-independent checksum of each table's rows (md5 over the rows' text, sorted). */
 export async function tableChecksums(db: Db, tables: readonly string[] = applicationTables): Promise<Record<string, string>> {

@@ -4,7 +4,7 @@ import yazl from "yazl";
 import type { Db } from "@/db/client";
 import { versions } from "@/db/schema";
 import type { Contributor } from "@/schemas/dataset-metadata";
-import { resourceName, type ResourceName, type TableSchemaResource } from "@/schemas/table-schema";
+import type { ResourceName, TableSchemaResource } from "@/schemas/table-schema";
 import { formulaGuardNote } from "@/server/csv";
 import { notFound } from "@/server/errors";
 import { pickVersion, versionGone } from "@/server/services/latest-version";
@@ -114,5 +114,3 @@ export async function dataPackageZip(db: Db, publicUrl: string, dataset: Dataset
   zip.end();
   return zip.outputStream;
 }
-
-export const resourceParam = resourceName;

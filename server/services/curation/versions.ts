@@ -1,6 +1,6 @@
 import { and, count, desc, eq, inArray, ne } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { datasets, plots, responses, siteYears, sites, soilTests, summaryMeans, treatments, uploads, validationReports, versions } from "@/db/schema";
+import { plots, responses, siteYears, sites, soilTests, summaryMeans, treatments, uploads, validationReports, versions } from "@/db/schema";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
 import type { VersionDetail } from "@/schemas/curation";
 import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
@@ -176,9 +176,4 @@ export async function putTableSchema(db: Db, user: User, versionId: string, sche
   if (problems.length) throw badRequest("The data dictionary cannot be changed so.", problems);
   await db.update(versions).set({ tableSchema: schema, updatedAt: new Date() }).where(eq(versions.id, versionId));
   await recordContentEdit(db, versionId, user.id);
-}
-
-export async function datasetOfVersion(db: Db, versionId: string) {
-  const [row] = await db.select({ dataset: datasets }).from(versions).innerJoin(datasets, eq(datasets.id, versions.datasetId)).where(eq(versions.id, versionId));
-  return row?.dataset ?? null;
 }
