@@ -89,6 +89,13 @@ export const treatmentsSchema: TableSchemaResource = {
     code("treatment", "Treatment", "Treatment code, shared by every site-year of the version."),
     { name: "name", title: "Name", type: "string", constraints: { required: true, maxLength: 120 } },
     { name: "is_check", title: "Untreated check", description: "The control every response is measured against; one per site-year.", type: "boolean", constraints: { required: true } },
+    {
+      name: "tested_nutrients", title: "Tested nutrients",
+      description:
+        "The nutrients this treatment tests against the check, e.g. P or N;S (N, P, K, S separated by ;). Blank: derived from the products, " +
+        "leaving out a carrier amount (a nutrient at less than half the treatment's largest nutrient rate, such as the N in MAP). Give it on one application row or on all of them alike.",
+      type: "string", constraints: { maxLength: 20, pattern: "^\\s*[NPKS](\\s*[;,]\\s*[NPKS])*\\s*$" },
+    },
     { name: "application", title: "Application number", description: "1, 2 … for each application of the treatment; a check has one row with no product.", type: "integer", constraints: { required: true, minimum: 1, maximum: 9 } },
     { name: "product", title: "Product", type: "string", constraints: { maxLength: 80 } },
     { name: "grade", title: "Grade", description: "N-P2O5-K2O or N-P2O5-K2O-S, e.g. 11-52-0 or 21-0-0-24S.", type: "string", constraints: { pattern: "^\\d+(\\.\\d+)?-\\d+(\\.\\d+)?-\\d+(\\.\\d+)?(-\\d+(\\.\\d+)?S?)?$" } },

@@ -187,6 +187,12 @@ export const analysisProvenance = z
       z.object({ dataset: z.string(), title: z.string(), version: z.string(), licence: z.string(), siteYearsUsed: z.number().int() }),
     ),
     filters: z.record(z.string(), z.string()).describe("The normalised filters"),
+    nutrientRule: z
+      .object({
+        mode: z.enum(["tested", "supplied", "both", "none"]).describe("tested: nutrient= (tested nutrients); supplied: nutrientSupplied= (any amount); both; none: no nutrient filter"),
+        text: z.string().describe("The rule in force, in words"),
+      })
+      .describe("Which nutrient rule selected the treatments"),
     effect: z.enum(effectMeasures),
     method: z.enum(tauMethods),
     ci: z.enum(ciMethods),

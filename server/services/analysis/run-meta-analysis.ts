@@ -12,6 +12,7 @@ import {
   cropStandards,
   type StandardCrop,
 } from "@/stats";
+import { nutrientRuleInForce } from "@/server/services/tested-nutrients";
 import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
 import { byForestOrder, loadContrasts, withLabels, type Contrast, type EstimationContrast, type ResolvedVersion } from "./load-contrasts";
 import { buildUnits, ownTest, type AnalysisUnit } from "./site-year-effects";
@@ -131,6 +132,7 @@ export async function analyseContrasts(
         siteYearsUsed: overall.units.filter((u) => u.contrasts[0]!.versionId === v.versionId).length,
       })),
       filters: filtersToQuery(filters),
+      nutrientRule: nutrientRuleInForce(filters),
       effect,
       method,
       ci,
@@ -151,7 +153,7 @@ export async function analyseContrasts(
 function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: number, filters: TrialFilters, versionOf: Map<string, ResolvedVersion>) {
   const first = contrasts[0]!;
   const version = versionOf.get(first.versionId);
-  const soil = relevantSoilTest(first, filters.nutrient);
+  const soil = relevantSoilTest(first, filters);
   const test = ownTest(unit);
   return {
     id: unit.key,

@@ -17,7 +17,8 @@ const RESPONSE_COLUMNS = [
   "tillage", "row_spacing_in", "planting_date", "nutrients", "placements", "n_lb_ac", "p2o5_lb_ac", "k2o_lb_ac", "s_lb_ac",
   "soil_p_class", "soil_p_value", "soil_k_class", "soil_k_value", "soil_s_class", "soil_s_value", "check_mean_kg_ha",
   "treated_mean_kg_ha", "md_kg_ha", "se_kg_ha", "df_error", "lnrr", "lnrr_var", "p_value", "lsd05_kg_ha", "cv_pct",
-  "replicates", "balanced", "from_summary",
+  "replicates", "balanced", "from_summary", "tested_nutrients_stated", "soil_p_reported_class", "soil_p_scheme", "soil_k_reported_class",
+  "soil_k_scheme", "soil_s_reported_class", "soil_s_scheme",
 ] as const;
 
 /** A PostgreSQL array literal, for COPY and for INSERT alike. */
@@ -96,10 +97,10 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
       list.push(m);
       meansBySy.set(m.siteYearId, list);
     }
-    const soilBySy = new Map<number, Map<string, { cls: string | null; value: number }>>();
+    const soilBySy = new Map<number, Map<string, { cls: string | null; value: number; reported: string | null; scheme: string | null }>>();
     for (const s of soilRows) {
       const m = soilBySy.get(s.siteYearId) ?? new Map();
-      m.set(s.analyte, { cls: s.class, value: s.value });
+      m.set(s.analyte, { cls: s.class, value: s.value, reported: s.reportedClass, scheme: s.interpretation });
       soilBySy.set(s.siteYearId, m);
     }
     const out = rows;
@@ -129,7 +130,8 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
           sy.tillage, sy.rowSpacingIn, sy.plantingDate, pgArray(t.nutrients), pgArray(t.placements), t.nLbAc, t.p2o5LbAc, t.k2oLbAc, t.sLbAc,
           p?.cls ?? null, p?.value ?? null, k?.cls ?? null, k?.value ?? null, s?.cls ?? null, s?.value ?? null, r.checkMean,
           r.treatedMean, r.md, r.se, r.dfError, r.lnrr, r.lnrrVar, r.pValue, r.lsd05, r.cvPct,
-          r.replicates, r.balanced, r.fromSummary,
+          r.replicates, r.balanced, r.fromSummary, t.testedNutrientsStated ? pgArray(t.testedNutrientsStated) : null,
+          p?.reported ?? null, p?.scheme ?? null, k?.reported ?? null, k?.scheme ?? null, s?.reported ?? null, s?.scheme ?? null,
         ]);
       }
     }
