@@ -1,5 +1,5 @@
 import type { TableSchemaDescriptor, TableSchemaResource } from "@/schemas/table-schema";
-import { crops, placements, soilTestClassLabels, soilTestClasses, tillages, placementLabels } from "@/schemas/filters";
+import { crops, placements, tillages, placementLabels } from "@/schemas/filters";
 
 /**
  * The data dictionary a new dataset starts with: one Frictionless Table Schema (v2) per resource, describing the
@@ -73,11 +73,17 @@ export const soilTestsSchema: TableSchemaResource = {
     { name: "extractant", title: "Extractant", type: "string", constraints: { enum: ["Bray-P1", "Olsen", "Mehlich-3", "ammonium-acetate", "calcium-phosphate", "water", "loss-on-ignition", "DTPA"] } },
     { name: "depth_in", title: "Sample depth", type: "number", unit: "in", constraints: { minimum: 1, maximum: 48 } },
     {
-      name: "class", title: "Soil-test class", description: "Derived from the value, extractant and crop with the named interpretation table, or as published.",
-      type: "string", constraints: { enum: [...soilTestClasses] },
-      categories: soilTestClasses.map((value) => ({ value, label: soilTestClassLabels[value] })),
+      name: "class", title: "Soil-test class",
+      description:
+        "As the trial reported it: one of very_low, low, optimum, high, very_high, or a label of the scheme named in interpretation (e.g. low, medium, high). " +
+        "Blank: derived from the value with the scheme's thresholds. Stored beside the class of the ordinal scale the scheme maps it to.",
+      type: "string", constraints: { maxLength: 40 },
     },
-    { name: "interpretation", title: "Interpretation table", description: "Name of the regional interpretation table the class comes from.", type: "string", constraints: { maxLength: 80 } },
+    {
+      name: "interpretation", title: "Interpretation scheme",
+      description: "Name of the soil-test interpretation scheme the class comes from: one registered in this version's soilTestSchemes, or a built-in one (tallgrass-illustrative, isu-pm1688-2013).",
+      type: "string", constraints: { maxLength: 80 },
+    },
   ],
   primaryKey: ["site_year", "analyte"],
   foreignKeys: [{ fields: ["site_year"], reference: { resource: "site_years", fields: ["site_year"] } }],

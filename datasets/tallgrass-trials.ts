@@ -1,4 +1,4 @@
-import { interpretSoilTest } from "@/server/services/ingest/interpretation-tables";
+import { interpretSoilTest } from "@/server/services/soil-test-schemes";
 import { mulberry32, type Random } from "./prng";
 import { siteByCode, type DemoSite } from "./tallgrass-sites";
 

@@ -84,6 +84,8 @@ export const forestRow = z
     soilTestAnalyte: z.string().nullable(),
     soilTestClass: z.string().nullable(),
     soilTestValue: z.number().nullable(),
+    soilTestReportedClass: z.string().nullable().describe("The class label as the trial reported it (soilTestClass is its place on the ordinal scale)"),
+    soilTestScheme: z.string().nullable().describe("The interpretation scheme the label was read with"),
     checkMean: z.number().describe("Check yield in `units` (kg/ha when effect=lnrr and units=kg/ha)"),
   })
   .meta({ id: "ForestRow" });

@@ -81,10 +81,16 @@ export function nutrientRuleInForce(filters: Partial<Pick<TrialFilters, "nutrien
 export interface SoilTestsByAnalyte {
   soilPClass?: string | null;
   soilPValue?: number | null;
+  soilPReportedClass?: string | null;
+  soilPScheme?: string | null;
   soilKClass?: string | null;
   soilKValue?: number | null;
+  soilKReportedClass?: string | null;
+  soilKScheme?: string | null;
   soilSClass?: string | null;
   soilSValue?: number | null;
+  soilSReportedClass?: string | null;
+  soilSScheme?: string | null;
 }
 
 /** The nutrients that say which soil test is meant: those asked for by nutrient= and nutrientSupplied=. */
@@ -103,12 +109,12 @@ export function countedSoilTest(tested: readonly string[], soil: SoilTestsByAnal
   const candidates = narrowed.length ? narrowed : testedAnalytes;
   const pick = (a: Analyte) =>
     a === "P"
-      ? { analyte: a, class: soil.soilPClass ?? null, value: soil.soilPValue ?? null }
+      ? { analyte: a, class: soil.soilPClass ?? null, value: soil.soilPValue ?? null, reportedClass: soil.soilPReportedClass ?? null, scheme: soil.soilPScheme ?? null }
       : a === "K"
-        ? { analyte: a, class: soil.soilKClass ?? null, value: soil.soilKValue ?? null }
-        : { analyte: a, class: soil.soilSClass ?? null, value: soil.soilSValue ?? null };
+        ? { analyte: a, class: soil.soilKClass ?? null, value: soil.soilKValue ?? null, reportedClass: soil.soilKReportedClass ?? null, scheme: soil.soilKScheme ?? null }
+        : { analyte: a, class: soil.soilSClass ?? null, value: soil.soilSValue ?? null, reportedClass: soil.soilSReportedClass ?? null, scheme: soil.soilSScheme ?? null };
   const withClass = candidates.map(pick).find((t) => t.class !== null);
-  return withClass ?? (candidates[0] ? pick(candidates[0]) : { analyte: null, class: null, value: null });
+  return withClass ?? (candidates[0] ? pick(candidates[0]) : { analyte: null, class: null, value: null, reportedClass: null, scheme: null });
 }
 
 /** Anything that stands in SQL as a column: a real column or a correlated sub-select. */

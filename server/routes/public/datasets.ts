@@ -1,4 +1,7 @@
 import { Router } from "express";
+import { z } from "zod";
+import { soilTestScheme } from "@/schemas/soil-test-schemes";
+import { builtInSchemes } from "@/server/services/soil-test-schemes";
 import { datasetList } from "@/schemas/dataset";
 import { tableSchemaDescriptor } from "@/schemas/table-schema";
 import { datasetDetail, noQuery, versionDetail, versionList } from "@/schemas/public";
@@ -25,6 +28,19 @@ export function datasetRoutes({ db, registry }: AppContext): Router {
     parseQuery(noQuery, req);
     res.set("Cache-Control", "public, max-age=60");
     res.json({ items: await listPublishedDatasets(db) });
+  });
+
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/soil-test-schemes",
+    tags: ["Datasets"],
+    summary: "The built-in soil-test interpretation schemes a soil_tests row can name in `interpretation` (a version's data dictionary may add its own)",
+    responses: { 200: { description: "The built-in schemes", content: { "application/json": { schema: z.object({ items: z.array(soilTestScheme) }) } } }, ...problemResponses(400, 429) },
+  });
+  router.get("/soil-test-schemes", (req, res) => {
+    parseQuery(noQuery, req);
+    res.set("Cache-Control", "public, max-age=3600");
+    res.json({ items: builtInSchemes });
   });
 
   registry.registerPath({

@@ -1,11 +1,9 @@
 import { placements, soilTestClasses, tillages, crops, nutrients, type TrialFilters } from "@/schemas/filters";
 import type { Grouping } from "@/schemas/analysis";
-import { countedSoilTest, filterNutrientsOf, testedNutrients } from "@/server/services/tested-nutrients";
+import { countedSoilTest, filterNutrientsOf, testedNutrients, type SoilTestsByAnalyte } from "@/server/services/tested-nutrients";
 import type { Contrast, EstimationContrast } from "./load-contrasts";
 
-type SoilTestFields = Partial<
-  Pick<Contrast, "testedNutrientsStated" | "nLbAc" | "p2o5LbAc" | "k2oLbAc" | "sLbAc" | "soilPClass" | "soilPValue" | "soilKClass" | "soilKValue" | "soilSClass" | "soilSValue">
->;
+type SoilTestFields = Partial<Pick<Contrast, "testedNutrientsStated" | "nLbAc" | "p2o5LbAc" | "k2oLbAc" | "sLbAc">> & SoilTestsByAnalyte;
 
 /** The nutrients a contrast tests (the one rule in tested-nutrients.ts); rates missing from a partial row count as 0. */
 export function contrastTestedNutrients(row: SoilTestFields) {

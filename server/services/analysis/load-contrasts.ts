@@ -63,6 +63,12 @@ const labelColumns = {
   soilKValue: responses.soilKValue,
   soilSClass: responses.soilSClass,
   soilSValue: responses.soilSValue,
+  soilPReportedClass: responses.soilPReportedClass,
+  soilPScheme: responses.soilPScheme,
+  soilKReportedClass: responses.soilKReportedClass,
+  soilKScheme: responses.soilKScheme,
+  soilSReportedClass: responses.soilSReportedClass,
+  soilSScheme: responses.soilSScheme,
 };
 type LabelKey = keyof typeof labelColumns;
 

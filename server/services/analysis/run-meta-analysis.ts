@@ -177,6 +177,8 @@ function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: num
     soilTestAnalyte: soil.analyte,
     soilTestClass: soil.class,
     soilTestValue: soil.value,
+    soilTestReportedClass: soil.reportedClass,
+    soilTestScheme: soil.scheme,
     checkMean: unit.checkMean,
   };
 }

@@ -73,7 +73,13 @@ export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, versi
       ...(c.orcid ? { path: `https://orcid.org/${c.orcid}` } : {}),
       ...(c.affiliation ? { organization: c.affiliation } : {}),
     })),
-    plotbank: { checksum: version.checksum, changelog: version.changelog, units: "yields kg/ha at the crop's standard moisture; nutrient rates lb/ac of N, P2O5, K2O and S" },
+    plotbank: {
+      checksum: version.checksum,
+      changelog: version.changelog,
+      units: "yields kg/ha at the crop's standard moisture; nutrient rates lb/ac of N, P2O5, K2O and S",
+      // The schemes soil_tests rows name in `interpretation` (the built-in ones are listed in the API's OpenAPI document).
+      ...(version.tableSchema.soilTestSchemes?.length ? { soilTestSchemes: version.tableSchema.soilTestSchemes } : {}),
+    },
     resources: built.map((r) => ({
       name: r.name.replace("_", "-"),
       type: "table",
