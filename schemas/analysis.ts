@@ -209,6 +209,20 @@ export const analysisProvenance = z
   })
   .meta({ id: "AnalysisProvenance" });
 
+export const caution = z
+  .object({
+    code: z.string().describe("Stable code of the rule, e.g. band-n-k2o-rate (the README lists them)"),
+    text: z.string(),
+    source: z.string().describe("Where the rule comes from, or \"common practice, no source\""),
+    standing: z.boolean().describe("true: a caution every result carries; false: a rule tested against the included treatments"),
+    matches: z.boolean().describe("An included treatment trips this rule (listed first)"),
+    treatments: z
+      .array(z.object({ dataset: z.string(), treatment: z.string().describe("Treatment code"), detail: z.string().describe("How it trips the rule") }))
+      .describe("The included treatments that trip the rule"),
+  })
+  .meta({ id: "Caution" });
+export type Caution = z.infer<typeof caution>;
+
 export const metaAnalysisResult = z
   .object({
     k: z.number().int(),
@@ -222,7 +236,7 @@ export const metaAnalysisResult = z
     decision: decisionNumbers,
     provenance: analysisProvenance,
     notes: z.array(z.string()),
-    cautions: z.array(z.string()),
+    cautions: z.array(caution).describe("Every caution rule, those tripped by the included treatments first, naming them"),
   })
   .meta({ id: "MetaAnalysis" });
 export type MetaAnalysisResponse = z.infer<typeof metaAnalysisResult>;

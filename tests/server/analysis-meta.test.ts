@@ -309,12 +309,13 @@ describe("filters, units and formats", () => {
 
   it("every result carries the cautions", async () => {
     const body = await get("?dataset=p-starter");
-    const text = body.cautions.join(" ");
+    const text = body.cautions.map((c) => `${c.text} (${c.source})`).join(" ");
     expect(text).toMatch(/summarise the trials/);
     expect(text).toMatch(/field can differ/);
     expect(text).toMatch(/injure a stand/);
-    expect(text).toMatch(/potassium should stay out of the seed furrow \(common practice, no source\)/);
+    expect(text).toMatch(/Keep potassium out of the seed furrow for soybean.*\(common practice, no source\)/);
     expect(text).toMatch(/licensed advisers have the last word/);
+    for (const c of body.cautions) expect(c.code).toMatch(/^[a-z0-9-]+$/);
   });
 });
 

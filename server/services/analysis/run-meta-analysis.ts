@@ -16,7 +16,9 @@ import { nutrientRuleInForce } from "@/server/services/tested-nutrients";
 import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
 import { byForestOrder, loadContrasts, withLabels, type Contrast, type EstimationContrast, type ResolvedVersion } from "./load-contrasts";
 import { buildUnits, ownTest, type AnalysisUnit } from "./site-year-effects";
-import { analysisCautions, combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
+import { evaluateCautions } from "@/server/services/cautions";
+import { includedTreatments } from "./included-treatments";
+import { combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
 
 type Result = MetaAnalysisResponse;
 
@@ -35,7 +37,8 @@ export function splitQuery(query: MetaQuery): { filters: TrialFilters; options: 
 export async function runMetaAnalysis(db: Db, query: MetaQuery): Promise<Result> {
   const { filters, options } = splitQuery(query);
   const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null);
-  return analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named));
+  const [result, included] = await Promise.all([analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named)), includedTreatments(db, where, versions)]);
+  return { ...result, cautions: evaluateCautions(included) };
 }
 
 /** Reads the labels (codes, year, soil tests) of the responses an answer names. */
@@ -146,7 +149,8 @@ export async function analyseContrasts(
       combination: combinationNote,
     },
     notes,
-    cautions: analysisCautions,
+    // The standing cautions; runMetaAnalysis evaluates the rules against the included treatments.
+    cautions: evaluateCautions([]),
   };
 }
 

@@ -1,10 +1,4 @@
-/** The words an analysis result carries: cautions, notes and heterogeneity in plain language. */
-
-export const analysisCautions = [
-  "These results summarise the trials in these datasets; a grower's field can differ.",
-  "Seed-placed (in-furrow) fertilizer can injure a stand. Soybean is more sensitive to fertilizer salt than corn, and potassium should stay out of the seed furrow (common practice, no source).",
-  "Local recommendations and licensed advisers have the last word.",
-];
+/** The words an analysis result carries: notes and heterogeneity in plain language (the cautions are in cautions.ts). */
 
 export const combinationNote =
   "When several treatments of one site-year match the filters, they share that site-year's check: their responses are " +

@@ -5,6 +5,7 @@ import { gradeAsOxides, isFluidUnit, productPoundsPerAcre, typicalDensity } from
 import type { Cell } from "../field-values";
 import { num, str, type IngestContext, type ResourceIngest } from "../resource-ingest";
 import { insertRows } from "../write-rows";
+import { trippedRules } from "@/server/services/cautions";
 import { parseTestedNutrients, type Nutrient } from "@/server/services/tested-nutrients";
 
 interface Application {
@@ -47,6 +48,28 @@ function totals(t: TreatmentRow) {
 export function treatmentsIngest({ state, options, report, versionId }: IngestContext): ResourceIngest {
   const rows = new Map<string, TreatmentRow>();
   let count = 0;
+  /**
+   * The caution rules (cautions.ts), tested against each treatment as the draft grows it: every crop and row spacing
+   * of its site-years. A treatment uploaded before any site-year is tested at 30-in rows with no crop.
+   */
+  const warnCautions = () => {
+    const grown = new Map<string, { crop: string; rowSpacingIn: number | null }>();
+    for (const sy of state.siteYears.values()) grown.set(`${sy.crop}/${sy.rowSpacingIn}`, { crop: sy.crop, rowSpacingIn: sy.rowSpacingIn });
+    if (grown.size === 0) grown.set("", { crop: "", rowSpacingIn: null });
+    for (const t of rows.values()) {
+      if (t.isCheck || t.applications.size === 0) continue;
+      const apps = [...t.applications.values()].map((a) => ({ placement: a.placement, nLbAc: a.n, k2oLbAc: a.k2o }));
+      const said = new Set<string>();
+      for (const { crop, rowSpacingIn } of grown.values()) {
+        for (const { rule, detail } of trippedRules({ dataset: "", treatment: t.code, crop, rowSpacingIn, applications: apps })) {
+          const message = `treatment "${t.code}" trips caution ${rule.code}${crop ? ` on ${crop}` : ""}: ${detail}. ${rule.text} (${rule.source})`;
+          if (said.has(message)) continue;
+          said.add(message);
+          report.warn(t.firstRow, "treatment", t.code, message);
+        }
+      }
+    }
+  };
   return {
     resource: "treatments",
     row(v, row) {
@@ -135,6 +158,7 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
           }
         }
       }
+      warnCautions();
       if (options.mode === "replace") {
         for (const [code, t] of state.treatments) {
           if (!rows.has(code) && t.used) report.error(null, "treatment", code, `treatment "${code}" is missing from the file but plots or summaries still use it; remove those first`);
