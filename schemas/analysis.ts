@@ -24,7 +24,7 @@ export const metaOptionShape = {
   effect: z.enum(effectMeasures).default("md").describe("md: yield response (treated − check); lnrr: log response ratio ln(treated/check)"),
   method: z.enum(tauMethods).default("REML").describe("τ² estimator: REML (default), DL (DerSimonian–Laird), PM (Paule–Mandel); FE is the fixed-effect model"),
   ci: z.enum(ciMethods).default("hksj").describe("hksj: Hartung–Knapp–Sidik–Jonkman, t(k − 1) (default); wald: normal"),
-  groupBy: z.enum(groupings).optional().describe("Subgroups: one estimate per level and the between-group test QM"),
+  groupBy: z.enum(groupings).optional().describe("Subgroups: one estimate per level and the between-group test (do the level means differ?)"),
   price: z.coerce.number().finite().positive().max(1000).optional().describe("Grain price, $/bu"),
   cost: money.optional().describe("Total cost of the practice, $/ac (product + application)"),
   productCost: money.optional().describe("Product cost, $/ac (instead of cost)"),
@@ -144,21 +144,25 @@ export const subgroupLevel = z
   })
   .meta({ id: "SubgroupLevel" });
 
+const betweenGroupTest = z.object({
+  statistic: z.number().describe("F under HKSJ, χ² under Wald"),
+  df: z.number().int(),
+  df2: z.number().int().nullable().describe("Denominator df of the F test under HKSJ"),
+  distribution: z.enum(["chi-square", "F"]),
+  pValue: z.number(),
+  text: z.string().describe('In words, e.g. "Between-group test: F = 15.1 on 1 and 40 df, p < 0.001"'),
+});
+
 export const subgroups = z
   .object({
     by: z.enum(groupings),
-    model: z.string().describe("How levels and QM were estimated"),
+    model: z.string().describe("How the levels and the between-group test were estimated"),
     levels: z.array(subgroupLevel),
-    qm: z
-      .object({
-        statistic: z.number(),
-        df: z.number().int(),
-        df2: z.number().int().nullable().describe("Denominator df of the F test under HKSJ"),
-        distribution: z.enum(["chi-square", "F"]),
-        pValue: z.number(),
-      })
+    betweenGroupTest: betweenGroupTest.nullable().describe("Test that all levels have the same mean; null with fewer than two levels"),
+    qm: betweenGroupTest
+      .omit({ text: true })
       .nullable()
-      .describe("Test that all levels have the same mean; null with fewer than two levels"),
+      .describe("Deprecated: the same test as betweenGroupTest without its text, kept under its old name for existing scripts"),
     tau2: z.number().nullable().describe("Residual τ² shared by the levels"),
     notes: z.array(z.string()),
   })

@@ -5,7 +5,7 @@ import { colors, soilClassColors, space } from "@/constants/theme";
 import { groupings, type Grouping, type MetaAnalysisResponse } from "@/schemas/analysis";
 import { placementLabels, soilTestClassLabels } from "@/schemas/filters";
 import { ChoiceChips } from "./choice-chips";
-import { formatInterval, formatPValue, formatResponse, levelLabel, unitLabel } from "./format";
+import { formatInterval, formatResponse, levelLabel, unitLabel } from "./format";
 
 export const groupingLabels: Record<Grouping, string> = {
   soilTestClass: "Soil-test class",
@@ -40,9 +40,9 @@ export function SubgroupView({ result, groupBy, onGroupBy }: { result: MetaAnaly
               </View>
             </View>
           ))}
-          <Text testID="subgroup-qm">
-            {s.qm
-              ? `Do the groups differ? QM = ${s.qm.statistic.toFixed(2)} on ${s.qm.df}${s.qm.df2 !== null ? ` and ${s.qm.df2}` : ""} df (${s.qm.distribution}), ${formatPValue(s.qm.pValue)}${s.qm.pValue < 0.05 ? ": yes, beyond chance." : ": not clearly."}`
+          <Text testID="subgroup-test">
+            {s.betweenGroupTest
+              ? `Do the groups differ? ${s.betweenGroupTest.text}${s.betweenGroupTest.pValue < 0.05 ? ": yes, beyond chance." : ": not clearly."}`
               : "Only one group: nothing to compare."}
           </Text>
           <Text variant="caption">{s.model}</Text>

@@ -18,7 +18,7 @@ import { byForestOrder, loadContrasts, withLabels, type Contrast, type Estimatio
 import { buildUnits, ownTest, type AnalysisUnit } from "./site-year-effects";
 import { evaluateCautions } from "@/server/services/cautions";
 import { includedTreatments } from "./included-treatments";
-import { combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
+import { describeBetweenGroupTest, combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
 
 type Result = MetaAnalysisResponse;
 
@@ -221,16 +221,16 @@ function withinGroupWeights(units: AnalysisUnit[], tau2: number): number[] {
 }
 
 /**
- * Subgroups as a mixed-effects model with the grouping as a categorical moderator (one residual τ² for all levels),
- * as `rma(yi, vi, mods = ~ group)` computes QM; per-level estimates from `mods = ~ 0 + group`.
+ * Subgroups as one model in which each level has its own mean and all levels share one residual τ²; the between-group
+ * test is what R's metafor gives for `rma(yi, vi, mods = ~ group)`, the per-level estimates `mods = ~ 0 + group`.
  */
 function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQuery, "method" | "ci">): Result["subgroups"] {
   const levels = orderLevels(by, units.map((u) => u.group ?? ""));
-  const model = `Mixed-effects model with ${by} as a categorical moderator and one residual τ² (${options.method}, ${options.ci === "hksj" ? "HKSJ F/t tests" : "Wald χ²/z tests"}).`;
+  const model = `One model for all groups: each ${by} level has its own mean, and the levels share one between-site-year variance τ² (${options.method}, ${options.ci === "hksj" ? "HKSJ F/t tests" : "Wald χ²/z tests"}).`;
   const notes: string[] = [];
   const count = (level: string) => units.filter((u) => u.group === level).length;
   for (const level of levels) if (count(level) < 5) notes.push(`${level}: only ${count(level)} site-year(s); its estimate is imprecise.`);
-  if (units.length === 0) return { by, model, levels: [], qm: null, tau2: null, notes };
+  if (units.length === 0) return { by, model, levels: [], betweenGroupTest: null, qm: null, tau2: null, notes };
   if (levels.length < 2) {
     const only = metaAnalysis({ yi: units.map((u) => u.yi), vi: units.map((u) => u.vi), method: options.method, ci: options.ci, heterogeneityInterval: false });
     notes.push("Only one level matches: there is nothing to compare between groups.");
@@ -238,6 +238,7 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
       by,
       model,
       levels: [{ level: levels[0]!, k: units.length, estimate: only.estimate, se: only.se, ciLower: only.ciLower, ciUpper: only.ciUpper, pValue: only.pValue }],
+      betweenGroupTest: null,
       qm: null,
       tau2: only.tau2,
       notes,
@@ -254,20 +255,16 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
     r2: false,
   });
   notes.push(...fit.differences.notes.filter((n) => !notes.includes(n)));
-  const qm = fit.differences.qm;
+  const differ = fit.differences.qm;
+  const test = differ
+    ? { statistic: differ.statistic, df: Array.isArray(differ.df) ? differ.df[0] : differ.df, df2: Array.isArray(differ.df) ? differ.df[1] : null, distribution: differ.distribution, pValue: differ.pValue }
+    : null;
   return {
     by,
     model,
     levels: fit.perLevel.coefficients.map((c) => ({ level: c.name, k: count(c.name), estimate: c.estimate, se: c.se, ciLower: c.ciLower, ciUpper: c.ciUpper, pValue: c.pValue })),
-    qm: qm
-      ? {
-          statistic: qm.statistic,
-          df: Array.isArray(qm.df) ? qm.df[0] : qm.df,
-          df2: Array.isArray(qm.df) ? qm.df[1] : null,
-          distribution: qm.distribution,
-          pValue: qm.pValue,
-        }
-      : null,
+    betweenGroupTest: test ? { ...test, text: describeBetweenGroupTest(test) } : null,
+    qm: test,
     tau2: fit.differences.tau2,
     notes,
   };
