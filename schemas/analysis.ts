@@ -213,9 +213,27 @@ export const analysisProvenance = z
   })
   .meta({ id: "AnalysisProvenance" });
 
+/** The codes of the caution rules (their wording and tests live in server/services/cautions.ts). */
+export const cautionCodes = [
+  "soybean-k-in-furrow",
+  "seed-placed-n-k2o",
+  "band-n-k2o-rate",
+  "salt-sensitive-crop",
+  "trials-not-your-field",
+  "seed-placement-injury",
+  "local-advice",
+] as const;
+export type CautionCode = (typeof cautionCodes)[number];
+
 export const caution = z
   .object({
-    code: z.string().describe("Stable code of the rule, e.g. band-n-k2o-rate (the README lists them)"),
+    code: z
+      .enum(cautionCodes)
+      .describe(
+        "soybean-k-in-furrow: K2O in the furrow on soybean; seed-placed-n-k2o: N or N + K2O with the seed; band-n-k2o-rate: N + K2O in a 2x2 band above " +
+          "about 90 lb/ac at 30-in rows (scaled to the row spacing; less on sandy or dry soils); salt-sensitive-crop: fertilizer in the furrow of a " +
+          "salt-sensitive crop (soybean); trials-not-your-field, seed-placement-injury, local-advice: standing cautions",
+      ),
     text: z.string(),
     source: z.string().describe("Where the rule comes from, or \"common practice, no source\""),
     standing: z.boolean().describe("true: a caution every result carries; false: a rule tested against the included treatments"),

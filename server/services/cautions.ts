@@ -1,4 +1,4 @@
-import type { Caution } from "@/schemas/analysis";
+import type { Caution, CautionCode } from "@/schemas/analysis";
 
 /**
  * Cautions as data: each rule has a code, its wording and its source, and (unless it is a standing caution) a test of
@@ -22,7 +22,7 @@ export interface CautionTreatment {
 }
 
 export interface CautionRule {
-  code: string;
+  code: CautionCode;
   text: string;
   source: string;
   /** What trips the rule for one treatment, in words, or null. Standing cautions have no test: they always apply. */

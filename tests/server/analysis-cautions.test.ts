@@ -1,6 +1,6 @@
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { metaAnalysisResult } from "@/schemas/analysis";
+import { cautionCodes, metaAnalysisResult } from "@/schemas/analysis";
 import { uploadResult } from "@/schemas/curation";
 import { cautionRules } from "@/server/services/cautions";
 import { testApp, type TestApp } from "@/tests/support/test-app";
@@ -45,6 +45,7 @@ describe("cautions that follow the question", () => {
     expect(body.cautions[0]).toMatchObject({ code: "band-n-k2o-rate", matches: true, standing: false, source: "common practice, no source" });
     expect(body.cautions[0]!.treatments).toEqual([{ dataset: f.slug, treatment: "BAND", detail: expect.stringMatching(/119\.8 lb\/ac N \+ K2O/) }]);
     expect(body.cautions.map((c) => c.code).sort()).toEqual(cautionRules.map((r) => r.code).sort());
+    expect(cautionRules.map((r) => r.code).sort()).toEqual([...cautionCodes].sort());
     // Nothing in the furrow here: the seed-placement rules are listed but not tripped, after the standing cautions.
     const furrow = body.cautions.find((c) => c.code === "seed-placed-n-k2o")!;
     expect(furrow).toMatchObject({ matches: false, treatments: [] });
