@@ -1,4 +1,5 @@
-import { interpretSoilTest } from "@/server/services/soil-test-schemes";
+import type { SoilTestScheme } from "@/schemas/soil-test-schemes";
+import { classifyByThresholds, interpretSoilTest } from "@/server/services/soil-test-schemes";
 import { mulberry32, type Random } from "./prng";
 import { siteByCode, type DemoSite } from "./tallgrass-sites";
 
@@ -37,7 +38,26 @@ export interface DemoTrial {
   lostPlots?: Set<string>;
   /** A keying error in an early release, corrected in a later one: site-year/plot → multiplier. */
   typo?: { plot: string; factor: number };
+  /** A soil-test scheme the trial's lab reports sulfate-S under, registered in the dataset's data dictionary. */
+  sulfurScheme?: SoilTestScheme;
 }
+
+/** Invented: the demo network's lab reports sulfate-S in three classes; its "medium" is our optimum. */
+export const tallgrassLabSulfur: SoilTestScheme = {
+  name: "tallgrass-lab-sulfate-s",
+  title: "Tallgrass Basin network lab, sulfate-S in three classes (invented)",
+  analyte: "S",
+  extractant: "calcium-phosphate",
+  unit: "ppm",
+  classes: [
+    { label: "low", scale: "low" },
+    { label: "medium", scale: "optimum" },
+    { label: "high", scale: "high" },
+  ],
+  thresholds: [6, 11],
+  source: "Invented for the fictional demo network's lab reports; not a recommendation for any real field.",
+  sourceStatus: "invented for the demo",
+};
 
 const CV = 0.07;
 const pad = (n: number) => String(n).padStart(2, "0");
@@ -76,13 +96,15 @@ export function siteYearsCsv(sys: DemoSiteYear[]): string {
   return lines.join("\n") + "\n";
 }
 
-export function soilTestsCsv(sys: DemoSiteYear[]): string {
+export function soilTestsCsv(sys: DemoSiteYear[], sulfurScheme?: SoilTestScheme): string {
   const lines = ["site_year,analyte,value,unit,extractant,depth_in,class,interpretation"];
   for (const sy of sys) {
     const t = soil(sy.site, sy.code.replace(/-[EN]$/, ""));
     lines.push(`${sy.code},P,${t.p},ppm,Bray-P1,6,${t.pClass},tallgrass-illustrative`);
     lines.push(`${sy.code},K,${t.k},ppm,ammonium-acetate,6,${t.kClass},tallgrass-illustrative`);
-    lines.push(`${sy.code},S,${t.s},ppm,,6,,`);
+    // Reported under the lab's own labels where the trial's dictionary registers its scheme.
+    if (sulfurScheme) lines.push(`${sy.code},S,${t.s},ppm,${sulfurScheme.extractant},6,${classifyByThresholds(sulfurScheme, t.s)!.label},${sulfurScheme.name}`);
+    else lines.push(`${sy.code},S,${t.s},ppm,,6,,`);
     lines.push(`${sy.code},OM,${t.om},%,loss-on-ignition,6,,`);
   }
   return lines.join("\n") + "\n";
@@ -154,6 +176,7 @@ export const starterTrial: DemoTrial = {
 export const nitrogenSulfurTrial: DemoTrial = {
   key: "soy-n-s",
   crop: "soybean",
+  sulfurScheme: tallgrassLabSulfur,
   treatments: [
     { code: "CHK", name: "Untreated check", applications: [], response: () => 0 },
     { code: "UREA", name: "Urea, 30 lb N/ac broadcast", applications: ["Urea,46-0-0,65,lb/ac,broadcast,at-planting"], response: ({ early }) => (early ? 55 : 15) },

@@ -98,6 +98,17 @@ describe("the Tallgrass Basin demo", () => {
     expect(n.find((r) => r.treatmentCode === "UREA")).toMatchObject({ testedNutrients: ["N"], testedNutrientsStated: false });
   });
 
+  it("the N and S dataset reports sulfate-S under its lab's own low/medium/high scheme, filtered on the ordinal scale", async () => {
+    type Row = { siteYearCode: string; treatmentCode: string; soilTestAnalyte: string | null; soilTestClass: string | null; soilSClass: string | null; soilSReportedClass: string | null; soilSScheme: string | null };
+    const read = async (q: string) => (await request(t.app).get(`/api/v1/responses?dataset=soybean-n-s-planting-date&${q}&limit=1000`).expect(200)).body.items as Row[];
+    const optimum = await read("nutrient=S&soilTestClass=optimum");
+    expect(optimum.length).toBeGreaterThan(0);
+    for (const r of optimum) expect(r).toMatchObject({ soilTestAnalyte: "S", soilTestClass: "optimum", soilSClass: "optimum", soilSReportedClass: "medium", soilSScheme: "tallgrass-lab-sulfate-s" });
+    const all = await read("nutrient=S");
+    expect(new Set(all.map((r) => r.soilSReportedClass))).toEqual(new Set(["low", "medium", "high"].filter((l) => all.some((r) => r.soilSReportedClass === l))));
+    expect(all.filter((r) => r.soilSClass === "optimum").length).toBe(optimum.length);
+  });
+
   it("is idempotent", async () => {
     expect(await seedDemo(t.ctx)).toEqual({ seeded: false, datasets: 0, versions: 0 });
   });
