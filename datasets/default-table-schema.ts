@@ -1,5 +1,5 @@
 import type { TableSchemaDescriptor, TableSchemaResource } from "@/schemas/table-schema";
-import { crops, placementLabels, placements, soilTestClassLabels, soilTestClasses, tillages } from "@/constants/vocabulary";
+import { crops, placementLabels, placements, tillages } from "@/constants/vocabulary";
 
 /**
  * The data dictionary a new dataset starts with: one Frictionless Table Schema (v2) per resource, describing the
@@ -73,11 +73,17 @@ export const soilTestsSchema: TableSchemaResource = {
     { name: "extractant", title: "Extractant", type: "string", constraints: { enum: ["Bray-P1", "Olsen", "Mehlich-3", "ammonium-acetate", "calcium-phosphate", "water", "loss-on-ignition", "DTPA"] } },
     { name: "depth_in", title: "Sample depth", type: "number", unit: "in", constraints: { minimum: 1, maximum: 48 } },
     {
-      name: "class", title: "Soil-test class", description: "Derived from the value, extractant and crop with the named interpretation table, or as published.",
-      type: "string", constraints: { enum: [...soilTestClasses] },
-      categories: soilTestClasses.map((value) => ({ value, label: soilTestClassLabels[value] })),
+      name: "class", title: "Soil-test class",
+      description:
+        "As the trial reported it: one of very_low, low, optimum, high, very_high, or a label of the scheme named in interpretation (e.g. low, medium, high). " +
+        "Blank: derived from the value with the scheme's thresholds. Stored beside the class of the ordinal scale the scheme maps it to.",
+      type: "string", constraints: { maxLength: 40 },
     },
-    { name: "interpretation", title: "Interpretation table", description: "Name of the regional interpretation table the class comes from.", type: "string", constraints: { maxLength: 80 } },
+    {
+      name: "interpretation", title: "Interpretation scheme",
+      description: "Name of the soil-test interpretation scheme the class comes from: one registered in this version's soilTestSchemes, or a built-in one (tallgrass-illustrative, isu-pm1688-2013).",
+      type: "string", constraints: { maxLength: 80 },
+    },
   ],
   primaryKey: ["site_year", "analyte"],
   foreignKeys: [{ fields: ["site_year"], reference: { resource: "site_years", fields: ["site_year"] } }],
@@ -89,6 +95,13 @@ export const treatmentsSchema: TableSchemaResource = {
     code("treatment", "Treatment", "Treatment code, shared by every site-year of the version."),
     { name: "name", title: "Name", type: "string", constraints: { required: true, maxLength: 120 } },
     { name: "is_check", title: "Untreated check", description: "The control every response is measured against; one per site-year.", type: "boolean", constraints: { required: true } },
+    {
+      name: "tested_nutrients", title: "Tested nutrients",
+      description:
+        "The nutrients this treatment tests against the check, e.g. P or N;S (N, P, K, S separated by ;). Blank: derived from the products, " +
+        "leaving out a carrier amount (a nutrient at less than half the treatment's largest nutrient rate, such as the N in MAP). Give it on one application row or on all of them alike.",
+      type: "string", constraints: { maxLength: 20, pattern: "^\\s*[NPKS](\\s*[;,]\\s*[NPKS])*\\s*$" },
+    },
     { name: "application", title: "Application number", description: "1, 2 … for each application of the treatment; a check has one row with no product.", type: "integer", constraints: { required: true, minimum: 1, maximum: 9 } },
     { name: "product", title: "Product", type: "string", constraints: { maxLength: 80 } },
     { name: "grade", title: "Grade", description: "N-P2O5-K2O or N-P2O5-K2O-S, e.g. 11-52-0 or 21-0-0-24S.", type: "string", constraints: { pattern: "^\\d+(\\.\\d+)?-\\d+(\\.\\d+)?-\\d+(\\.\\d+)?(-\\d+(\\.\\d+)?S?)?$" } },

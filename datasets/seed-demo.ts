@@ -1,12 +1,12 @@
 import { count } from "drizzle-orm";
 import { datasets } from "@/db/schema";
 import type { DatasetCreate, UploadOptions } from "@/schemas/curation";
-import type { ResourceName } from "@/schemas/table-schema";
+import { tableSchemaDescriptor, type ResourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
 import { datasetBySlug } from "@/server/services/curation/access";
 import { createDataset } from "@/server/services/curation/datasets";
 import { approveVersion, submitVersion } from "@/server/services/curation/review";
-import { createVersion } from "@/server/services/curation/versions";
+import { createVersion, putTableSchema } from "@/server/services/curation/versions";
 import { textStream } from "@/server/services/ingest/csv-stream";
 import { ingestUpload } from "@/server/services/ingest/ingest-upload";
 import { createUser, findUserByEmail } from "@/server/services/users";
@@ -47,7 +47,7 @@ function season(trial: DemoTrial, years: number[], opts: { withTypo?: boolean; w
   return [
     { resource: "sites", csv: sitesCsv(sys.map((s) => s.site.code)), filename: `sites-${span}.csv` },
     { resource: "site_years", csv: siteYearsCsv(sys), filename: `site-years-${span}.csv` },
-    { resource: "soil_tests", csv: soilTestsCsv(sys), filename: `soil-tests-${span}.csv` },
+    { resource: "soil_tests", csv: soilTestsCsv(sys, trial.sulfurScheme), filename: `soil-tests-${span}.csv` },
     ...(opts.withTreatments ? [{ resource: "treatments" as const, csv: treatmentsCsv(trial), filename: "treatments.csv" }] : []),
     { resource: "plots", csv: plotsCsv(trial, sys, { withTypo: opts.withTypo }), filename: `plots-${span}.csv` },
   ];
@@ -159,6 +159,11 @@ export async function seedDemo(ctx: AppContext): Promise<{ seeded: boolean; data
     for (const release of d.releases) {
       const version = await createVersion(ctx, curator!, dataset, release.semver);
       versionCount += 1;
+      // The trial's own soil-test scheme goes into the first version's dictionary; later versions copy it.
+      if (d.trial.sulfurScheme && !version.tableSchema.soilTestSchemes?.length) {
+        // Parsed as the API would parse a curator's PUT (the stored JSON has its keys in another order).
+        await putTableSchema(ctx.db, curator!, version.id, { ...tableSchemaDescriptor.parse(version.tableSchema), soilTestSchemes: [d.trial.sulfurScheme] });
+      }
       for (const step of release.steps) {
         const result = await ingestUpload(ctx, { versionId: version.id, resource: step.resource, filename: step.filename, source: textStream(step.csv), options, userId: curator!.id });
         if (!result.accepted) {

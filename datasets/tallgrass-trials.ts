@@ -1,4 +1,5 @@
-import { interpretSoilTest } from "@/server/services/ingest/interpretation-tables";
+import type { SoilTestScheme } from "@/schemas/soil-test-schemes";
+import { classifyByThresholds, interpretSoilTest } from "@/server/services/soil-test-schemes";
 import { mulberry32, type Random } from "./prng";
 import { siteByCode, type DemoSite } from "./tallgrass-sites";
 
@@ -10,8 +11,10 @@ import { siteByCode, type DemoSite } from "./tallgrass-sites";
 export interface DemoTreatment {
   code: string;
   name: string;
-  /** CSV rows after treatment,name,is_check: application,product,grade,product_rate,rate_unit,placement,timing. */
+  /** CSV rows after treatment,name,is_check,tested_nutrients: application,product,grade,product_rate,rate_unit,placement,timing. */
   applications: string[];
+  /** The nutrients the curator states the treatment tests ("P", "N;S"); blank leaves them to the products. */
+  tested?: string;
   /** Expected yield response (kg/ha) on this site-year. */
   response(ctx: { site: DemoSite; pClass: string; kClass: string; early: boolean; rng: Random }): number;
 }
@@ -35,7 +38,26 @@ export interface DemoTrial {
   lostPlots?: Set<string>;
   /** A keying error in an early release, corrected in a later one: site-year/plot → multiplier. */
   typo?: { plot: string; factor: number };
+  /** A soil-test scheme the trial's lab reports sulfate-S under, registered in the dataset's data dictionary. */
+  sulfurScheme?: SoilTestScheme;
 }
+
+/** Invented: the demo network's lab reports sulfate-S in three classes; its "medium" is our optimum. */
+export const tallgrassLabSulfur: SoilTestScheme = {
+  name: "tallgrass-lab-sulfate-s",
+  title: "Tallgrass Basin network lab, sulfate-S in three classes (invented)",
+  analyte: "S",
+  extractant: "calcium-phosphate",
+  unit: "ppm",
+  classes: [
+    { label: "low", scale: "low" },
+    { label: "medium", scale: "optimum" },
+    { label: "high", scale: "high" },
+  ],
+  thresholds: [6, 11],
+  source: "Invented for the fictional demo network's lab reports; not a recommendation for any real field.",
+  sourceStatus: "invented for the demo",
+};
 
 const CV = 0.07;
 const pad = (n: number) => String(n).padStart(2, "0");
@@ -74,24 +96,26 @@ export function siteYearsCsv(sys: DemoSiteYear[]): string {
   return lines.join("\n") + "\n";
 }
 
-export function soilTestsCsv(sys: DemoSiteYear[]): string {
+export function soilTestsCsv(sys: DemoSiteYear[], sulfurScheme?: SoilTestScheme): string {
   const lines = ["site_year,analyte,value,unit,extractant,depth_in,class,interpretation"];
   for (const sy of sys) {
     const t = soil(sy.site, sy.code.replace(/-[EN]$/, ""));
     lines.push(`${sy.code},P,${t.p},ppm,Bray-P1,6,${t.pClass},tallgrass-illustrative`);
     lines.push(`${sy.code},K,${t.k},ppm,ammonium-acetate,6,${t.kClass},tallgrass-illustrative`);
-    lines.push(`${sy.code},S,${t.s},ppm,,6,,`);
+    // Reported under the lab's own labels where the trial's dictionary registers its scheme.
+    if (sulfurScheme) lines.push(`${sy.code},S,${t.s},ppm,${sulfurScheme.extractant},6,${classifyByThresholds(sulfurScheme, t.s)!.label},${sulfurScheme.name}`);
+    else lines.push(`${sy.code},S,${t.s},ppm,,6,,`);
     lines.push(`${sy.code},OM,${t.om},%,loss-on-ignition,6,,`);
   }
   return lines.join("\n") + "\n";
 }
 
 export function treatmentsCsv(trial: DemoTrial): string {
-  const lines = ["treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing"];
+  const lines = ["treatment,name,is_check,tested_nutrients,application,product,grade,product_rate,rate_unit,placement,timing"];
   for (const t of trial.treatments) {
     const name = t.name.includes(",") ? `"${t.name}"` : t.name;
-    if (t.applications.length === 0) lines.push(`${t.code},${name},true,1,,,,,,`);
-    t.applications.forEach((a, i) => lines.push(`${t.code},${name},false,${i + 1},${a}`));
+    if (t.applications.length === 0) lines.push(`${t.code},${name},true,,1,,,,,,`);
+    t.applications.forEach((a, i) => lines.push(`${t.code},${name},false,${t.tested ?? ""},${i + 1},${a}`));
   }
   return lines.join("\n") + "\n";
 }
@@ -132,10 +156,10 @@ export const starterTrial: DemoTrial = {
   crop: "soybean",
   treatments: [
     { code: "CHK", name: "Untreated check", applications: [], response: () => 0 },
-    { code: "IF-APP", name: "In-furrow 10-34-0, 3 gal/ac", applications: ["APP 10-34-0,10-34-0,3,gal/ac,in-furrow,at-planting"], response: ({ pClass }) => 0.45 * pResponse[pClass]! - 25 },
-    { code: "IF-MAP", name: "In-furrow MAP, 40 lb/ac", applications: ["MAP,11-52-0,40,lb/ac,in-furrow,at-planting"], response: ({ pClass }) => 0.55 * pResponse[pClass]! - 40 },
-    { code: "BAND-MAP", name: "2x2 band MAP, 100 lb/ac", applications: ["MAP,11-52-0,100,lb/ac,2x2-band,at-planting"], response: ({ pClass }) => pResponse[pClass]! },
-    { code: "BC-MAP", name: "Broadcast MAP, 100 lb/ac", applications: ["MAP,11-52-0,100,lb/ac,broadcast,pre-plant"], response: ({ pClass }) => 0.8 * pResponse[pClass]! },
+    { code: "IF-APP", tested: "P", name: "In-furrow 10-34-0, 3 gal/ac", applications: ["APP 10-34-0,10-34-0,3,gal/ac,in-furrow,at-planting"], response: ({ pClass }) => 0.45 * pResponse[pClass]! - 25 },
+    { code: "IF-MAP", tested: "P", name: "In-furrow MAP, 40 lb/ac", applications: ["MAP,11-52-0,40,lb/ac,in-furrow,at-planting"], response: ({ pClass }) => 0.55 * pResponse[pClass]! - 40 },
+    { code: "BAND-MAP", tested: "P", name: "2x2 band MAP, 100 lb/ac", applications: ["MAP,11-52-0,100,lb/ac,2x2-band,at-planting"], response: ({ pClass }) => pResponse[pClass]! },
+    { code: "BC-MAP", tested: "P", name: "Broadcast MAP, 100 lb/ac", applications: ["MAP,11-52-0,100,lb/ac,broadcast,pre-plant"], response: ({ pClass }) => 0.8 * pResponse[pClass]! },
   ],
   siteYears(year) {
     const rotation = [["TB-01", "TB-03", "TB-06", "TB-07", "TB-09", "TB-12"], ["TB-02", "TB-03", "TB-04", "TB-06", "TB-10", "TB-12"]][year % 2]!;
@@ -152,11 +176,12 @@ export const starterTrial: DemoTrial = {
 export const nitrogenSulfurTrial: DemoTrial = {
   key: "soy-n-s",
   crop: "soybean",
+  sulfurScheme: tallgrassLabSulfur,
   treatments: [
     { code: "CHK", name: "Untreated check", applications: [], response: () => 0 },
     { code: "UREA", name: "Urea, 30 lb N/ac broadcast", applications: ["Urea,46-0-0,65,lb/ac,broadcast,at-planting"], response: ({ early }) => (early ? 55 : 15) },
-    { code: "AMS", name: "Ammonium sulfate, 100 lb/ac broadcast", applications: ["AMS,21-0-0-24S,100,lb/ac,broadcast,at-planting"], response: ({ site, early }) => (site.s <= 5 ? 190 : 60) * (early ? 1.3 : 1) },
-    { code: "ATS", name: "ATS 12-0-0-26S, 5 gal/ac in a 2x2 band", applications: ["ATS,12-0-0-26S,5,gal/ac,2x2-band,at-planting"], response: ({ site, early }) => (site.s <= 5 ? 150 : 45) * (early ? 1.25 : 1) },
+    { code: "AMS", tested: "N;S", name: "Ammonium sulfate, 100 lb/ac broadcast", applications: ["AMS,21-0-0-24S,100,lb/ac,broadcast,at-planting"], response: ({ site, early }) => (site.s <= 5 ? 190 : 60) * (early ? 1.3 : 1) },
+    { code: "ATS", tested: "N;S", name: "ATS 12-0-0-26S, 5 gal/ac in a 2x2 band", applications: ["ATS,12-0-0-26S,5,gal/ac,2x2-band,at-planting"], response: ({ site, early }) => (site.s <= 5 ? 150 : 45) * (early ? 1.25 : 1) },
   ],
   siteYears(year) {
     const codes = ["TB-04", "TB-05", "TB-08", "TB-11"];
@@ -176,9 +201,9 @@ export const cornStarterTrial: DemoTrial = {
   crop: "corn",
   treatments: [
     { code: "CHK", name: "Untreated check", applications: [], response: () => 0 },
-    { code: "NK-15", name: "2x2 band 15 N + 15 K2O", applications: ["UAN 28,28-0-0,5,gal/ac,2x2-band,at-planting", "Potash,0-0-60,25,lb/ac,2x2-band,at-planting"], response: ({ kClass }) => 0.5 * kResponse[kClass]! + 60 },
-    { code: "NK-30", name: "2x2 band 30 N + 30 K2O", applications: ["UAN 28,28-0-0,10,gal/ac,2x2-band,at-planting", "Potash,0-0-60,50,lb/ac,2x2-band,at-planting"], response: ({ kClass }) => 0.85 * kResponse[kClass]! + 110 },
-    { code: "NK-45", name: "2x2 band 45 N + 45 K2O", applications: ["UAN 28,28-0-0,15,gal/ac,2x2-band,at-planting", "Potash,0-0-60,75,lb/ac,2x2-band,at-planting"], response: ({ kClass, site }) => kResponse[kClass]! + 130 - (site.texture.includes("sand") ? 180 : 0) },
+    { code: "NK-15", tested: "N;K", name: "2x2 band 15 N + 15 K2O", applications: ["UAN 28,28-0-0,5,gal/ac,2x2-band,at-planting", "Potash,0-0-60,25,lb/ac,2x2-band,at-planting"], response: ({ kClass }) => 0.5 * kResponse[kClass]! + 60 },
+    { code: "NK-30", tested: "N;K", name: "2x2 band 30 N + 30 K2O", applications: ["UAN 28,28-0-0,10,gal/ac,2x2-band,at-planting", "Potash,0-0-60,50,lb/ac,2x2-band,at-planting"], response: ({ kClass }) => 0.85 * kResponse[kClass]! + 110 },
+    { code: "NK-45", tested: "N;K", name: "2x2 band 45 N + 45 K2O", applications: ["UAN 28,28-0-0,15,gal/ac,2x2-band,at-planting", "Potash,0-0-60,75,lb/ac,2x2-band,at-planting"], response: ({ kClass, site }) => kResponse[kClass]! + 130 - (site.texture.includes("sand") ? 180 : 0) },
   ],
   siteYears(year) {
     const codes = ["TB-01", "TB-02", "TB-07", "TB-10", "TB-11"];

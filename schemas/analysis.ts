@@ -24,7 +24,7 @@ export const metaOptionShape = {
   effect: z.enum(effectMeasures).default("md").describe("md: yield response (treated − check); lnrr: log response ratio ln(treated/check)"),
   method: z.enum(tauMethods).default("REML").describe("τ² estimator: REML (default), DL (DerSimonian–Laird), PM (Paule–Mandel); FE is the fixed-effect model"),
   ci: z.enum(ciMethods).default("hksj").describe("hksj: Hartung–Knapp–Sidik–Jonkman, t(k − 1) (default); wald: normal"),
-  groupBy: z.enum(groupings).optional().describe("Subgroups: one estimate per level and the between-group test QM"),
+  groupBy: z.enum(groupings).optional().describe("Subgroups: one estimate per level and the between-group test (do the level means differ?)"),
   price: z.coerce.number().finite().positive().max(1000).optional().describe("Grain price, $/bu"),
   cost: money.optional().describe("Total cost of the practice, $/ac (product + application)"),
   productCost: money.optional().describe("Product cost, $/ac (instead of cost)"),
@@ -89,6 +89,8 @@ export const forestRow = z
     soilTestAnalyte: z.string().nullable(),
     soilTestClass: z.string().nullable(),
     soilTestValue: z.number().nullable(),
+    soilTestReportedClass: z.string().nullable().describe("The class label as the trial reported it (soilTestClass is its place on the ordinal scale)"),
+    soilTestScheme: z.string().nullable().describe("The interpretation scheme the label was read with"),
     checkMean: z.number().describe("Check yield in `units` (kg/ha when effect=lnrr and units=kg/ha)"),
   })
   .meta({ id: "ForestRow" });
@@ -179,21 +181,25 @@ export const subgroupLevel = z
   })
   .meta({ id: "SubgroupLevel" });
 
+const betweenGroupTest = z.object({
+  statistic: z.number().describe("F under HKSJ, χ² under Wald"),
+  df: z.number().int(),
+  df2: z.number().int().nullable().describe("Denominator df of the F test under HKSJ"),
+  distribution: z.enum(["chi-square", "F"]),
+  pValue: z.number(),
+  text: z.string().describe('In words, e.g. "Between-group test: F = 15.1 on 1 and 40 df, p < 0.001"'),
+});
+
 export const subgroups = z
   .object({
     by: z.enum(groupings),
-    model: z.string().describe("How levels and QM were estimated"),
+    model: z.string().describe("How the levels and the between-group test were estimated"),
     levels: z.array(subgroupLevel),
-    qm: z
-      .object({
-        statistic: z.number(),
-        df: z.number().int(),
-        df2: z.number().int().nullable().describe("Denominator df of the F test under HKSJ"),
-        distribution: z.enum(["chi-square", "F"]),
-        pValue: z.number(),
-      })
+    betweenGroupTest: betweenGroupTest.nullable().describe("Test that all levels have the same mean; null with fewer than two levels"),
+    qm: betweenGroupTest
+      .omit({ text: true })
       .nullable()
-      .describe("Test that all levels have the same mean; null with fewer than two levels"),
+      .describe("Deprecated: the same test as betweenGroupTest without its text, kept under its old name for existing scripts"),
     tau2: z.number().nullable().describe("Residual τ² shared by the levels"),
     notes: z.array(z.string()),
   })
@@ -230,6 +236,12 @@ export const analysisProvenance = z
       z.object({ dataset: z.string(), title: z.string(), version: z.string(), licence: z.string(), siteYearsUsed: z.number().int() }),
     ),
     filters: z.record(z.string(), z.string()).describe("The normalised filters"),
+    nutrientRule: z
+      .object({
+        mode: z.enum(["tested", "supplied", "both", "none"]).describe("tested: nutrient= (tested nutrients); supplied: nutrientSupplied= (any amount); both; none: no nutrient filter"),
+        text: z.string().describe("The rule in force, in words"),
+      })
+      .describe("Which nutrient rule selected the treatments"),
     effect: z.enum(effectMeasures),
     method: z.enum(tauMethods),
     ci: z.enum(ciMethods),
@@ -244,6 +256,38 @@ export const analysisProvenance = z
   })
   .meta({ id: "AnalysisProvenance" });
 
+/** The codes of the caution rules (their wording and tests live in server/services/cautions.ts). */
+export const cautionCodes = [
+  "soybean-k-in-furrow",
+  "seed-placed-n-k2o",
+  "band-n-k2o-rate",
+  "salt-sensitive-crop",
+  "trials-not-your-field",
+  "seed-placement-injury",
+  "local-advice",
+] as const;
+export type CautionCode = (typeof cautionCodes)[number];
+
+export const caution = z
+  .object({
+    code: z
+      .enum(cautionCodes)
+      .describe(
+        "soybean-k-in-furrow: K2O in the furrow on soybean; seed-placed-n-k2o: N or N + K2O with the seed; band-n-k2o-rate: N + K2O in a 2x2 band above " +
+          "about 90 lb/ac at 30-in rows (scaled to the row spacing; less on sandy or dry soils); salt-sensitive-crop: fertilizer in the furrow of a " +
+          "salt-sensitive crop (soybean); trials-not-your-field, seed-placement-injury, local-advice: standing cautions",
+      ),
+    text: z.string(),
+    source: z.string().describe("Where the rule comes from, or \"common practice, no source\""),
+    standing: z.boolean().describe("true: a caution every result carries; false: a rule tested against the included treatments"),
+    matches: z.boolean().describe("An included treatment trips this rule (listed first)"),
+    treatments: z
+      .array(z.object({ dataset: z.string(), treatment: z.string().describe("Treatment code"), detail: z.string().describe("How it trips the rule") }))
+      .describe("The included treatments that trip the rule"),
+  })
+  .meta({ id: "Caution" });
+export type Caution = z.infer<typeof caution>;
+
 export const metaAnalysisResult = z
   .object({
     k: z.number().int(),
@@ -257,7 +301,7 @@ export const metaAnalysisResult = z
     decision: decisionNumbers,
     provenance: analysisProvenance,
     notes: z.array(z.string()),
-    cautions: z.array(z.string()),
+    cautions: z.array(caution).describe("Every caution rule, those tripped by the included treatments first, naming them"),
   })
   .meta({ id: "MetaAnalysis" });
 export type MetaAnalysisResponse = z.infer<typeof metaAnalysisResult>;

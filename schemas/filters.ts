@@ -27,11 +27,22 @@ const monthDay = line().regex(/^\d{2}-\d{2}$/, "use MM-DD, e.g. 05-10");
  */
 export const trialFilterShape = {
   crop: listOf(crops).optional().describe("Crop(s): soybean, corn, wheat"),
-  nutrient: listOf(nutrients).optional().describe("Treatments that supply any of these nutrients: N, P, K, S"),
+  nutrient: listOf(nutrients)
+    .optional()
+    .describe(
+      "Responses that test any of these nutrients (N, P, K, S): the nutrients a treatment adds over its check beyond a carrier amount " +
+        "(less than half its largest nutrient rate, e.g. the N in MAP), or as the curator stated them",
+    ),
+  nutrientSupplied: listOf(nutrients)
+    .optional()
+    .describe("Treatments that supply any amount of these nutrients, carriers included (the N in MAP or 10-34-0 counts)"),
   placement: listOf(placements).optional().describe("Treatments with an application placed so"),
   soilTestClass: listOf(soilTestClasses)
     .optional()
-    .describe("Soil-test class of the nutrient's own soil test (P class for P, K class for K, S class for S); with several nutrients or none, the treatment's primary nutrient"),
+    .describe(
+      "Soil-test class (on the ordinal scale) of the soil test that counts: of the tested nutrients (P before K before S), narrowed " +
+        "to the filtered nutrients when the response tests one of them, the first with a class recorded",
+    ),
   yearFrom: yearParam.optional(),
   yearTo: yearParam.optional(),
   dataset: line().max(120).optional().describe("Dataset slug; default all datasets"),

@@ -172,8 +172,9 @@ export const soilTestRow = z
     unit: z.string(),
     extractant: z.string().nullable(),
     depthIn: z.number().nullable(),
-    class: z.string().nullable(),
-    interpretation: z.string().nullable(),
+    class: z.string().nullable().describe("On the ordinal scale very_low … very_high, mapped from the reported label by the scheme"),
+    reportedClass: z.string().nullable().describe("The class label as the trial reported it, e.g. medium"),
+    interpretation: z.string().nullable().describe("Name of the interpretation scheme the label was read with"),
   })
   .meta({ id: "SoilTest" });
 
@@ -225,7 +226,11 @@ export const treatmentRow = z
     p2o5LbAc: z.number(),
     k2oLbAc: z.number(),
     sLbAc: z.number(),
-    nutrients: z.array(z.string()),
+    nutrients: z.array(z.string()).describe("Nutrients supplied in any amount"),
+    testedNutrients: z
+      .array(z.string())
+      .describe("Nutrients the treatment tests against its check: as the curator stated them, else those added at ≥ half its largest nutrient rate (carriers such as the N in MAP left out)"),
+    testedNutrientsStated: z.boolean().describe("true: the curator stated testedNutrients; false: derived from the products"),
     placements: z.array(z.string()),
     applications: z.array(applicationRow).describe("In CSV: one text cell, applications separated by ' | '"),
   })
@@ -265,18 +270,30 @@ export const responseRow = z
     tillage: z.string().nullable(),
     rowSpacingIn: z.number().nullable(),
     plantingDate: z.string().nullable(),
-    nutrients: z.array(z.string()),
+    nutrients: z.array(z.string()).describe("Nutrients supplied in any amount (nutrientSupplied= filters on these)"),
+    testedNutrients: z
+      .array(z.string())
+      .describe("Nutrients the treatment tests against its check: as the curator stated them, else those added at ≥ half its largest nutrient rate (carriers such as the N in MAP left out)"),
+    testedNutrientsStated: z.boolean().describe("true: the curator stated testedNutrients; false: derived from the products"),
     placements: z.array(z.string()),
     nLbAc: z.number(),
     p2o5LbAc: z.number(),
     k2oLbAc: z.number(),
     sLbAc: z.number(),
-    soilPClass: z.string().nullable(),
+    soilTestAnalyte: z.string().nullable().describe("The soil test that counts for this response (soilTestClass= filters on it): of its tested nutrients, P before K before S, the first with a class"),
+    soilTestClass: z.string().nullable(),
+    soilPClass: z.string().nullable().describe("On the ordinal scale very_low … very_high"),
     soilPValue: z.number().nullable(),
+    soilPReportedClass: z.string().nullable().describe("The P class label as the trial reported it"),
+    soilPScheme: z.string().nullable().describe("The interpretation scheme the P label was read with"),
     soilKClass: z.string().nullable(),
     soilKValue: z.number().nullable(),
+    soilKReportedClass: z.string().nullable(),
+    soilKScheme: z.string().nullable(),
     soilSClass: z.string().nullable(),
     soilSValue: z.number().nullable(),
+    soilSReportedClass: z.string().nullable(),
+    soilSScheme: z.string().nullable(),
     ...yieldUnitShape,
     checkMean: z.number().describe("Mean yield of the check"),
     treatedMean: z.number(),

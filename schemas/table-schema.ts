@@ -1,7 +1,7 @@
 import { z } from "zod";
 import { resourceNames } from "@/constants/vocabulary";
-
 import { line, paragraph } from "./safe-text";
+import { soilTestScheme } from "./soil-test-schemes";
 
 /**
  * Frictionless Table Schema (v2) as Plotbank stores it: each version carries one descriptor per resource, and the
@@ -56,6 +56,11 @@ export const resourceName = z.enum(resourceNames);
 export const tableSchemaDescriptor = z
   .object({
     resources: z.record(resourceName, tableSchemaResource),
+    soilTestSchemes: z
+      .array(soilTestScheme)
+      .max(50)
+      .optional()
+      .describe("Soil-test interpretation schemes of this version, beside the built-in ones; soil_tests rows name one in `interpretation`"),
   })
   .meta({ id: "VersionTableSchemas" });
 

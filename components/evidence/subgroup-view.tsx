@@ -74,9 +74,9 @@ export function SubgroupView({ result, groupBy, onGroupBy, prices }: { result: M
               </View>
             );
           })}
-          <Text testID="subgroup-qm">
-            {s.qm
-              ? `Do the groups differ? QM = ${s.qm.statistic.toFixed(2)} on ${s.qm.df}${s.qm.df2 !== null ? ` and ${s.qm.df2}` : ""} df (${s.qm.distribution}), ${formatPValue(s.qm.pValue)}${s.qm.pValue < 0.05 ? ": yes, beyond chance." : ": not clearly."}`
+          <Text testID="subgroup-test">
+            {s.betweenGroupTest
+              ? `Do the groups differ? ${s.betweenGroupTest.text}${s.betweenGroupTest.pValue < 0.05 ? ": yes, beyond chance." : ": not clearly."}`
               : "Only one group: nothing to compare."}
           </Text>
           <Text variant="caption">{s.model}</Text>

@@ -58,9 +58,12 @@ export const soilTests = pgTable(
     unit: text("unit").notNull(),
     extractant: text("extractant"),
     depthIn: real("depth_in"),
-    /** very_low | low | optimum | high | very_high */
+    /** On our ordinal scale: very_low | low | optimum | high | very_high (mapped from the reported label by the scheme). */
     class: text("class"),
+    /** The interpretation scheme's name (built-in or from the version's data dictionary). */
     interpretation: text("interpretation"),
+    /** The class label as the trial reported it (e.g. "medium"), before mapping onto the ordinal scale. */
+    reportedClass: text("reported_class"),
   },
   (t) => [uniqueIndex("soil_tests_site_year_analyte_uq").on(t.siteYearId, t.analyte)],
 );
@@ -81,6 +84,8 @@ export const treatments = pgTable(
     /** Nutrients supplied (N, P, K, S) and placements used, for filtering. */
     nutrients: text("nutrients").array().notNull().default(sql`'{}'::text[]`),
     placements: text("placements").array().notNull().default(sql`'{}'::text[]`),
+    /** The nutrients the curator states the treatment tests; null: derived from the rates (server/services/tested-nutrients.ts). */
+    testedNutrientsStated: text("tested_nutrients_stated").array(),
   },
   (t) => [uniqueIndex("treatments_version_code_uq").on(t.versionId, t.code)],
 );
@@ -171,6 +176,8 @@ export const responses = pgTable(
     plantingDate: date("planting_date", { mode: "string" }),
     nutrients: text("nutrients").array().notNull(),
     placements: text("placements").array().notNull(),
+    /** The treatment's stated tested nutrients, copied in; null: derived from the rates below. */
+    testedNutrientsStated: text("tested_nutrients_stated").array(),
     nLbAc: doublePrecision("n_lb_ac").notNull(),
     p2o5LbAc: doublePrecision("p2o5_lb_ac").notNull(),
     k2oLbAc: doublePrecision("k2o_lb_ac").notNull(),
@@ -182,6 +189,13 @@ export const responses = pgTable(
     soilKValue: doublePrecision("soil_k_value"),
     soilSClass: text("soil_s_class"),
     soilSValue: doublePrecision("soil_s_value"),
+    /** The class labels as reported and the interpretation schemes they were read with, by analyte. */
+    soilPReportedClass: text("soil_p_reported_class"),
+    soilPScheme: text("soil_p_scheme"),
+    soilKReportedClass: text("soil_k_reported_class"),
+    soilKScheme: text("soil_k_scheme"),
+    soilSReportedClass: text("soil_s_reported_class"),
+    soilSScheme: text("soil_s_scheme"),
     checkMeanKgHa: doublePrecision("check_mean_kg_ha").notNull(),
     treatedMeanKgHa: doublePrecision("treated_mean_kg_ha").notNull(),
     /** Mean difference (treated − check), kg/ha, its SE and the site-year's error df. */

@@ -1,10 +1,11 @@
-import { and, arrayOverlaps, eq, inArray, or, sql, type SQL } from "drizzle-orm";
+import { and, arrayOverlaps, eq, inArray, sql, type SQL } from "drizzle-orm";
 import type { AnyPgColumn } from "drizzle-orm/pg-core";
 import type { Db } from "@/db/client";
 import { datasets, plots, responses, siteYears, soilTests, treatments, versions } from "@/db/schema";
 import type { TrialFilters } from "@/schemas/filters";
 import { notFound } from "@/server/errors";
 import { latestAlias, latestPublishedByDataset, versionGone } from "./latest-version";
+import { countedSoilClassSql, filterNutrientsOf, testsAnyOf } from "./tested-nutrients";
 
 export interface ResolvedVersion {
   versionId: string;
@@ -61,8 +62,16 @@ type ColumnLike = AnyPgColumn | SQL;
 export interface FilterColumns {
   versionId: AnyPgColumn;
   siteYear?: { crop: ColumnLike; year: ColumnLike; tillage: ColumnLike; rowSpacingIn: ColumnLike; plantingDate: ColumnLike };
-  treatment?: { nutrients: AnyPgColumn; placements: AnyPgColumn; nLbAc: ColumnLike; p2o5LbAc: ColumnLike; k2oLbAc: ColumnLike; sLbAc: ColumnLike };
-  /** Soil-test class by analyte; needs `treatment` too, whose nutrients say which test is meant. */
+  treatment?: {
+    nutrients: AnyPgColumn;
+    placements: AnyPgColumn;
+    testedNutrientsStated: ColumnLike;
+    nLbAc: ColumnLike;
+    p2o5LbAc: ColumnLike;
+    k2oLbAc: ColumnLike;
+    sLbAc: ColumnLike;
+  };
+  /** Soil-test class by analyte; needs `treatment` too, whose tested nutrients say which test is meant. */
   soilClass?: { P: ColumnLike; K: ColumnLike; S: ColumnLike };
 }
 
@@ -72,6 +81,7 @@ const responseColumns: FilterColumns = {
   treatment: {
     nutrients: responses.nutrients,
     placements: responses.placements,
+    testedNutrientsStated: responses.testedNutrientsStated,
     nLbAc: responses.nLbAc,
     p2o5LbAc: responses.p2o5LbAc,
     k2oLbAc: responses.k2oLbAc,
@@ -102,7 +112,9 @@ export function filterConditions(filters: Partial<TrialFilters>, versionIds: str
   }
   const tr = columns.treatment;
   if (tr) {
-    if (filters.nutrient) c.push(arrayOverlaps(tr.nutrients, filters.nutrient));
+    const tested = { stated: tr.testedNutrientsStated, nLbAc: tr.nLbAc, p2o5LbAc: tr.p2o5LbAc, k2oLbAc: tr.k2oLbAc, sLbAc: tr.sLbAc };
+    if (filters.nutrient) c.push(testsAnyOf(tested, filters.nutrient));
+    if (filters.nutrientSupplied) c.push(arrayOverlaps(tr.nutrients, filters.nutrientSupplied));
     if (filters.placement) c.push(arrayOverlaps(tr.placements, filters.placement));
     const ranges: [number | undefined, number | undefined, ColumnLike][] = [
       [filters.nRateMin, filters.nRateMax, tr.nLbAc],
@@ -115,22 +127,7 @@ export function filterConditions(filters: Partial<TrialFilters>, versionIds: str
       if (max !== undefined) c.push(sql`${column} <= ${max}`);
     }
     const soil = columns.soilClass;
-    if (soil && filters.soilTestClass) {
-      const tested = (filters.nutrient ?? []).filter((n): n is "P" | "K" | "S" => n in soil);
-      if (tested.length) {
-        c.push(or(...tested.map((n) => inList(soil[n], filters.soilTestClass!))));
-      } else {
-        // The treatment's primary nutrient decides which soil test is meant: P before K before S.
-        c.push(
-          inList(
-            sql`(CASE WHEN 'P' = ANY(${tr.nutrients}) THEN ${soil.P}
-                      WHEN 'K' = ANY(${tr.nutrients}) THEN ${soil.K}
-                      WHEN 'S' = ANY(${tr.nutrients}) THEN ${soil.S} END)`,
-            filters.soilTestClass,
-          ),
-        );
-      }
-    }
+    if (soil && filters.soilTestClass) c.push(inList(countedSoilClassSql(tested, soil, filterNutrientsOf(filters)), filters.soilTestClass));
   }
   return and(...c);
 }
@@ -143,6 +140,7 @@ export function responseConditions(filters: TrialFilters, versionIds: string[]):
 const treatmentColumns: FilterColumns["treatment"] = {
   nutrients: treatments.nutrients,
   placements: treatments.placements,
+  testedNutrientsStated: treatments.testedNutrientsStated,
   nLbAc: treatments.nLbAc,
   p2o5LbAc: treatments.p2o5LbAc,
   k2oLbAc: treatments.k2oLbAc,
@@ -170,7 +168,7 @@ export function observationConditions(filters: Partial<TrialFilters>, versionIds
   });
 }
 
-const treatmentFilterKeys = ["nutrient", "placement", "soilTestClass", "nRateMin", "nRateMax", "p2o5RateMin", "p2o5RateMax", "k2oRateMin", "k2oRateMax", "sRateMin", "sRateMax"] as const;
+const treatmentFilterKeys = ["nutrient", "nutrientSupplied", "placement", "soilTestClass", "nRateMin", "nRateMax", "p2o5RateMin", "p2o5RateMax", "k2oRateMin", "k2oRateMax", "sRateMin", "sRateMax"] as const;
 
 /**
  * WHERE conditions on site-years. Site-year filters apply directly; treatment filters (and the soil-test class,

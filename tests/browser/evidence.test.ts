@@ -102,7 +102,7 @@ describe.each([
     expect(api.decision.costPerAcre).toBe(24);
     expect(api.decision.breakEven).toBeCloseTo(24 / 11.5, 9);
     expect(await text(page, "cautions")).toMatch(/injure a stand/);
-    expect(await text(page, "subgroup-qm")).toMatch(/QM|Only one group/);
+    expect(await text(page, "subgroup-test")).toMatch(/Between-group test: (F|χ²) = [\d.]+ on \d+( and \d+)? df, p [<=] [\d.]+|Only one group/);
 
     await page.getByTestId("open-forest-plot").click();
     const plot = page.getByTestId("forest-plot");

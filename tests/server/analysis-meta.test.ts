@@ -175,7 +175,7 @@ describe("the endpoint gives exactly what the stats functions give for the same 
 });
 
 describe("subgroups", () => {
-  it("groupBy=soilTestClass: per-class estimates and QM from the mixed-effects model with class as moderator", async () => {
+  it("groupBy=soilTestClass: per-class estimates and the between-group test from one model with a mean per class and a shared τ²", async () => {
     const body = await get("?dataset=p-starter&groupBy=soilTestClass");
     const expected = starterEffects();
     const groups = expected.map((e) => e.rows[0]!.soilPClass as string);
@@ -189,6 +189,9 @@ describe("subgroups", () => {
     expect(s.qm!.statistic).toBeCloseTo(fit.differences.qm!.statistic, 10);
     expect(s.qm!.pValue).toBeCloseTo(fit.differences.qm!.pValue, 10);
     expect(s.qm).toMatchObject({ distribution: "F", df: 3, df2: 4 });
+    // The same test under its own name, in words; the old field stays for existing scripts.
+    expect(s.betweenGroupTest).toEqual({ ...s.qm, text: expect.stringMatching(/^Between-group test: F = \d+\.\d on 3 and 4 df, p (< 0\.001|= \d\.\d+)$/) });
+    expect(`${s.model} ${s.betweenGroupTest!.text}`).not.toMatch(/QM|moderator/);
     // The pooled estimate is unchanged by grouping.
     const plain = await get("?dataset=p-starter");
     expect(body.pooled!.estimate).toBeCloseTo(plain.pooled!.estimate, 12);
@@ -309,12 +312,13 @@ describe("filters, units and formats", () => {
 
   it("every result carries the cautions", async () => {
     const body = await get("?dataset=p-starter");
-    const text = body.cautions.join(" ");
+    const text = body.cautions.map((c) => `${c.text} (${c.source})`).join(" ");
     expect(text).toMatch(/summarise the trials/);
     expect(text).toMatch(/field can differ/);
     expect(text).toMatch(/injure a stand/);
-    expect(text).toMatch(/potassium should stay out of the seed furrow \(common practice, no source\)/);
+    expect(text).toMatch(/Keep potassium out of the seed furrow for soybean.*\(common practice, no source\)/);
     expect(text).toMatch(/licensed advisers have the last word/);
+    for (const c of body.cautions) expect(c.code).toMatch(/^[a-z0-9-]+$/);
   });
 });
 

@@ -5,6 +5,7 @@ import { observationPage, responsePage, siteYearPage } from "@/schemas/public";
 import { blocks, isLatestPublished, modelCells, type ModelCell } from "@/tests/support/public-fixture";
 import { insertPublicFixture } from "@/tests/support/public-fixture";
 import { testApp, type TestApp } from "@/tests/support/test-app";
+import { countedSoilTest, testedNutrients, type Nutrient } from "@/server/services/tested-nutrients";
 
 /**
  * Every shared filter on the three cross-dataset reads, checked against what the fixture put in: the expected rows
@@ -49,14 +50,16 @@ function treatmentMatches(q: Query, c: ModelCell): boolean {
     if (q[`${name}Min`] !== undefined && value < Number(q[`${name}Min`])) return false;
     if (q[`${name}Max`] !== undefined && value > Number(q[`${name}Max`])) return false;
   }
-  if (q.nutrient && !list(q.nutrient)!.some((n) => c.nutrients.includes(n))) return false;
+  // The tested nutrients and the soil test that counts come from the one rule (tested-nutrients.ts); its SQL twin is
+  // what these reads run, and tests/server/tested-nutrients-sql.test.ts checks the two on random rows.
+  const tested = testedNutrients({ nLbAc: c.n, p2o5LbAc: c.p2o5, k2oLbAc: c.k2o, sLbAc: c.s, testedNutrientsStated: null });
+  if (q.nutrient && !list(q.nutrient)!.some((n) => tested.includes(n as Nutrient))) return false;
+  if (q.nutrientSupplied && !list(q.nutrientSupplied)!.some((n) => c.nutrients.includes(n))) return false;
   if (q.placement && !list(q.placement)!.some((p) => c.placements.includes(p))) return false;
   if (q.soilTestClass) {
-    const classes = list(q.soilTestClass)!;
-    const tested = (list(q.nutrient) ?? []).filter((n): n is "P" | "K" | "S" => ["P", "K", "S"].includes(n));
-    // With no tested nutrient named, the treatment's primary nutrient (P, then K, then S) decides.
-    const analytes = tested.length ? tested : (["P", "K", "S"] as const).filter((n) => c.nutrients.includes(n)).slice(0, 1);
-    if (!analytes.some((a) => classes.includes(c.soilClass[a] ?? ""))) return false;
+    const soil = { soilPClass: c.soilClass.P, soilKClass: c.soilClass.K, soilSClass: c.soilClass.S };
+    const counted = countedSoilTest(tested, soil, [...(list(q.nutrient) ?? []), ...(list(q.nutrientSupplied) ?? [])]);
+    if (!list(q.soilTestClass)!.includes(counted.class ?? "")) return false;
   }
   return true;
 }
@@ -104,6 +107,8 @@ async function readAll(endpoint: Endpoint, q: Query, limit = 1000): Promise<stri
 const cases: [string, Query][] = [
   ["crop", { crop: "corn" }],
   ["nutrient", { nutrient: "K" }],
+  ["nutrient N (tested, carriers left out)", { nutrient: "N" }],
+  ["nutrientSupplied (carriers count)", { nutrientSupplied: "N", placement: "in-furrow" }],
   ["placement", { placement: "in-furrow,broadcast" }],
   ["soilTestClass", { soilTestClass: "low" }],
   ["soilTestClass with nutrient", { nutrient: "P", soilTestClass: "optimum,very_low" }],

@@ -129,6 +129,7 @@ const table: Record<string, Row> = {
   },
   "GET /api/v1/catalog": { expect: everyone(200) },
   "GET /api/v1/datasets": { expect: everyone(200) },
+  "GET /api/v1/soil-test-schemes": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug/versions/:semver": { expect: everyone(200) },

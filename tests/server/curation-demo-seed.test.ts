@@ -1,4 +1,5 @@
 import { sql } from "drizzle-orm";
+import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { seedDemo } from "@/datasets";
 import { testApp, type TestApp } from "@/tests/support/test-app";
@@ -73,6 +74,39 @@ describe("the Tallgrass Basin demo", () => {
     const minor = await agent.get(`/api/v1/curation/diff?from=${id("1.0.0")}&to=${id("1.1.0")}`).expect(200);
     expect(minor.body.suggestedBump).toBe("minor");
     expect(minor.body.siteYears.added).toHaveLength(12);
+  });
+
+  it("nutrient=N keeps only treatments that test N: the P starters' carrier N (10-34-0, MAP) does not count", async () => {
+    type Row = { treatmentCode: string; dataset: string; nutrients: string[]; testedNutrients: string[]; testedNutrientsStated: boolean };
+    const read = async (q: string) => (await request(t.app).get(`/api/v1/responses?${q}&limit=1000`).expect(200)).body.items as Row[];
+    // Soybean, N, in the furrow: the demo has no such trial, so nothing (36 P-starter site-years before this rule).
+    expect(await read("crop=soybean&nutrient=N&placement=in-furrow")).toEqual([]);
+    const meta = (await request(t.app).get("/api/v1/analyses/meta?crop=soybean&nutrient=N&placement=in-furrow").expect(200)).body;
+    expect(meta.k).toBe(0);
+    expect(meta.provenance.nutrientRule.mode).toBe("tested");
+    expect(meta.provenance.nutrientRule.text).toMatch(/carrier/);
+    // "Supplies any N" is still there, under its own name: exactly the in-furrow P starters, which test P.
+    const supplied = await read("crop=soybean&nutrientSupplied=N&placement=in-furrow");
+    expect(supplied.length).toBeGreaterThan(0);
+    expect(new Set(supplied.map((r) => r.treatmentCode))).toEqual(new Set(["IF-APP", "IF-MAP"]));
+    for (const r of supplied) expect(r).toMatchObject({ dataset: "soybean-starter-p-placement", testedNutrients: ["P"], testedNutrientsStated: true });
+    expect((await request(t.app).get("/api/v1/analyses/meta?crop=soybean&nutrientSupplied=N&placement=in-furrow").expect(200)).body.provenance.nutrientRule.mode).toBe("supplied");
+    // Soybean N without a placement: urea (derived from its product) and the two sulfur sources the curator states as N;S.
+    const n = await read("crop=soybean&nutrient=N");
+    expect(new Set(n.map((r) => r.treatmentCode))).toEqual(new Set(["UREA", "AMS", "ATS"]));
+    for (const r of n) expect(r.testedNutrients).toContain("N");
+    expect(n.find((r) => r.treatmentCode === "UREA")).toMatchObject({ testedNutrients: ["N"], testedNutrientsStated: false });
+  });
+
+  it("the N and S dataset reports sulfate-S under its lab's own low/medium/high scheme, filtered on the ordinal scale", async () => {
+    type Row = { siteYearCode: string; treatmentCode: string; soilTestAnalyte: string | null; soilTestClass: string | null; soilSClass: string | null; soilSReportedClass: string | null; soilSScheme: string | null };
+    const read = async (q: string) => (await request(t.app).get(`/api/v1/responses?dataset=soybean-n-s-planting-date&${q}&limit=1000`).expect(200)).body.items as Row[];
+    const optimum = await read("nutrient=S&soilTestClass=optimum");
+    expect(optimum.length).toBeGreaterThan(0);
+    for (const r of optimum) expect(r).toMatchObject({ soilTestAnalyte: "S", soilTestClass: "optimum", soilSClass: "optimum", soilSReportedClass: "medium", soilSScheme: "tallgrass-lab-sulfate-s" });
+    const all = await read("nutrient=S");
+    expect(new Set(all.map((r) => r.soilSReportedClass))).toEqual(new Set(["low", "medium", "high"].filter((l) => all.some((r) => r.soilSReportedClass === l))));
+    expect(all.filter((r) => r.soilSClass === "optimum").length).toBe(optimum.length);
   });
 
   it("is idempotent", async () => {

@@ -36,7 +36,7 @@ describe("exports of a published version", () => {
     expect(plots).toHaveLength(33);
     expect(plots[0]).toBe("site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct,stand_count,vigour,test_weight");
     const treatments = files.get("data/treatments.csv")!.toString("utf8");
-    expect(treatments).toContain("CHK,Untreated check,true,1,,,,,,,,0,0,0,0");
+    expect(treatments).toContain("CHK,Untreated check,true,,1,,,,,,,,0,0,0,0");
     // The version checksum is SHA-256 over "<resource>\n" + CSV, in the fixed resource order.
     const h = createHash("sha256");
     for (const name of ["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"]) h.update(`${name}\n`).update(files.get(`data/${name}.csv`)!);

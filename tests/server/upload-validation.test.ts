@@ -175,9 +175,33 @@ describe("domain rules", () => {
     expect(body.errors).toContainEqual(expect.objectContaining({ row: 3, column: "harvest_moisture_pct", value: "55", message: expect.stringMatching(/not plausible/) }));
   });
 
-  it("a soil-test class that disagrees with its value under the named table", async () => {
-    const body = await rejected("soil_tests", "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,high,tallgrass-illustrative\n");
-    expect(body.errors[0]).toMatchObject({ row: 1, column: "class", value: "high", message: expect.stringMatching(/gives "low"/) });
+  it("a soil-test class that contradicts its scheme's thresholds is kept as reported, with a warning naming row and column", async () => {
+    const res = await upload(f.curatorAgent, f.versionId, "soil_tests", "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,high,tallgrass-illustrative\n").expect(201);
+    const body = uploadResult.parse(res.body);
+    expect(body.errors).toBe(0);
+    expect(body.problems).toContainEqual(expect.objectContaining({ severity: "warning", row: 1, column: "class", value: "high", message: expect.stringMatching(/contradicts scheme "tallgrass-illustrative".*falls in "low"/) }));
+    const [p] = await rows<{ class: string; reported_class: string; interpretation: string }>(sql`select st.class, st.reported_class, st.interpretation from soil_tests st join site_years sy on sy.id = st.site_year_id where st.version_id = ${f.versionId} and sy.code = 'TB-01-2021' and st.analyte = 'P'`);
+    expect(p).toEqual({ class: "high", reported_class: "high", interpretation: "tallgrass-illustrative" });
+  });
+
+  it("a class label the named scheme does not have, and one off the ordinal scale with no scheme", async () => {
+    const unknownLabel = await rejected("soil_tests", "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,medium,tallgrass-illustrative\n");
+    expect(unknownLabel.errors[0]).toMatchObject({ row: 1, column: "class", value: "medium", message: expect.stringMatching(/not a label of scheme "tallgrass-illustrative"/) });
+    const noScheme = await rejected("soil_tests", "site_year,analyte,value,unit,extractant,class\nTB-01-2021,P,7,ppm,Bray-P1,medium\n");
+    expect(noScheme.errors[0]).toMatchObject({ row: 1, column: "class", value: "medium", message: expect.stringMatching(/not on the ordinal scale.*interpretation/) });
+    const unknownScheme = await rejected("soil_tests", "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,medium,lab-xyz\n");
+    expect(unknownScheme.errors[0]).toMatchObject({ row: 1, column: "interpretation", value: "lab-xyz", message: expect.stringMatching(/neither in this version's data dictionary/) });
+  });
+
+  it("tested_nutrients: an unknown nutrient, a check that tests something, and a nutrient the products do not add", async () => {
+    const header = "treatment,name,is_check,tested_nutrients,application,product,grade,product_rate,rate_unit,placement,timing";
+    const body = await rejected(
+      "treatments",
+      `${header}\nCHK,Check,true,P,1,,,,,,\nBAND,Band MAP,false,Q,1,MAP,11-52-0,100,lb/ac,2x2-band,at-planting\nBC,Broadcast MAP,false,K,1,MAP,11-52-0,100,lb/ac,broadcast,pre-plant\n`,
+    );
+    expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "tested_nutrients", message: expect.stringMatching(/untreated check/) }));
+    expect(body.errors).toContainEqual(expect.objectContaining({ row: 2, column: "tested_nutrients", value: "Q" }));
+    expect(body.errors).toContainEqual(expect.objectContaining({ row: 3, column: "tested_nutrients", value: "K", message: expect.stringMatching(/tests K, but its products add no K/) }));
   });
 
   it("derives a blank class from the table, converts lb/ac to ppm", async () => {

@@ -1,4 +1,7 @@
 import type { Router } from "express";
+import { z } from "zod";
+import { soilTestScheme } from "@/schemas/soil-test-schemes";
+import { builtInSchemes } from "@/server/services/soil-test-schemes";
 import { datasetList } from "@/schemas/dataset";
 import { tableSchemaDescriptor } from "@/schemas/table-schema";
 import { datasetDetail, noQuery, versionDetail, versionList } from "@/schemas/public";
@@ -25,6 +28,19 @@ export function datasetRoutes({ db, registry }: AppContext): Router {
   }, async (_input, _req, res) => {
     res.set("Cache-Control", "public, max-age=60");
     res.json({ items: await listPublishedDatasets(db) });
+  });
+
+  defineRoute({
+    method: "get",
+    path: "/api/v1/soil-test-schemes",
+    operationId: "listSoilTestSchemes",
+    tags: ["Datasets"],
+    summary: "The built-in soil-test interpretation schemes a soil_tests row can name in `interpretation` (a version's data dictionary may add its own)",
+    query: noQuery,
+    responses: { 200: { description: "The built-in schemes", content: { "application/json": { schema: z.object({ items: z.array(soilTestScheme) }) } } }, ...problemResponses(400, 429) },
+  }, async (_input, _req, res) => {
+    res.set("Cache-Control", "public, max-age=3600");
+    res.json({ items: builtInSchemes });
   });
 
   defineRoute({

@@ -1,26 +1,21 @@
 import { placements, soilTestClasses, tillages, crops, nutrients, type TrialFilters } from "@/schemas/filters";
 import type { Grouping } from "@/schemas/analysis";
+import { countedSoilTest, filterNutrientsOf, testedNutrients, type SoilTestsByAnalyte } from "@/server/services/tested-nutrients";
 import type { Contrast, EstimationContrast } from "./load-contrasts";
 
-type SoilTestFields = Partial<Pick<Contrast, "nutrients" | "soilPClass" | "soilPValue" | "soilKClass" | "soilKValue" | "soilSClass" | "soilSValue">>;
+type SoilTestFields = Partial<Pick<Contrast, "testedNutrientsStated" | "nLbAc" | "p2o5LbAc" | "k2oLbAc" | "sLbAc">> & SoilTestsByAnalyte;
 
-type Analyte = "P" | "K" | "S";
+/** The nutrients a contrast tests (the one rule in tested-nutrients.ts); rates missing from a partial row count as 0. */
+export function contrastTestedNutrients(row: SoilTestFields) {
+  return testedNutrients({ testedNutrientsStated: row.testedNutrientsStated ?? null, nLbAc: row.nLbAc ?? 0, p2o5LbAc: row.p2o5LbAc ?? 0, k2oLbAc: row.k2oLbAc ?? 0, sLbAc: row.sLbAc ?? 0 });
+}
 
 /**
- * The soil test a contrast is judged by: the filtered nutrient's own test (P before K before S), else the treatment's
- * primary nutrient — the same rule the soil-test-class filter applies, so a class shown is the class filtered on.
+ * The soil test a contrast is judged by, under the same rule (tested-nutrients.ts) the soil-test-class filter applies
+ * in SQL, so a class shown is the class filtered on.
  */
-export function relevantSoilTest(row: SoilTestFields, filterNutrients: TrialFilters["nutrient"]) {
-  const tested = (["P", "K", "S"] as const).filter((n) => filterNutrients?.includes(n));
-  const candidates: readonly Analyte[] = tested.length ? tested : (["P", "K", "S"] as const).filter((n) => row.nutrients?.includes(n));
-  const pick = (n: Analyte) =>
-    n === "P"
-      ? { analyte: n, class: row.soilPClass ?? null, value: row.soilPValue ?? null }
-      : n === "K"
-        ? { analyte: n, class: row.soilKClass ?? null, value: row.soilKValue ?? null }
-        : { analyte: n, class: row.soilSClass ?? null, value: row.soilSValue ?? null };
-  const withClass = candidates.map(pick).find((t) => t.class !== null);
-  return withClass ?? (candidates[0] ? pick(candidates[0]) : { analyte: null, class: null, value: null });
+export function relevantSoilTest(row: SoilTestFields, filters: Partial<Pick<TrialFilters, "nutrient" | "nutrientSupplied">>) {
+  return countedSoilTest(contrastTestedNutrients(row), row, filterNutrientsOf(filters));
 }
 
 /**
@@ -41,11 +36,11 @@ export const notRecorded = "not recorded";
 export function groupLevel(row: EstimationContrast, by: Grouping, filters: TrialFilters, datasetSlug: string): string {
   switch (by) {
     case "soilTestClass":
-      return relevantSoilTest(row, filters.nutrient).class ?? notRecorded;
+      return relevantSoilTest(row, filters).class ?? notRecorded;
     case "placement":
       return row.placements?.length ? [...row.placements].sort(byOrder(placements)).join(" + ") : notRecorded;
     case "nutrient":
-      return row.nutrients?.length ? [...row.nutrients].sort(byOrder(nutrients)).join(" + ") : notRecorded;
+      return contrastTestedNutrients(row).join(" + ") || notRecorded;
     case "crop":
       return row.crop;
     case "tillage":

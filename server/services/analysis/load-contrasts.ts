@@ -30,10 +30,19 @@ const estimationColumns = {
 };
 type EstimationKey = keyof typeof estimationColumns | "versionId";
 
+/** The columns the tested-nutrient rule reads (tested-nutrients.ts). */
+const testedColumns = {
+  testedNutrientsStated: responses.testedNutrientsStated,
+  nLbAc: responses.nLbAc,
+  p2o5LbAc: responses.p2o5LbAc,
+  k2oLbAc: responses.k2oLbAc,
+  sLbAc: responses.sLbAc,
+};
+
 const groupingColumnsOf = {
-  soilTestClass: { nutrients: responses.nutrients, soilPClass: responses.soilPClass, soilKClass: responses.soilKClass, soilSClass: responses.soilSClass },
+  soilTestClass: { ...testedColumns, soilPClass: responses.soilPClass, soilKClass: responses.soilKClass, soilSClass: responses.soilSClass },
   placement: { placements: responses.placements },
-  nutrient: { nutrients: responses.nutrients },
+  nutrient: testedColumns,
   crop: {},
   tillage: { tillage: responses.tillage },
   plantingWindow: { plantingDate: responses.plantingDate },
@@ -49,12 +58,19 @@ const labelColumns = {
   treatmentId: responses.treatmentId,
   year: responses.year,
   nutrients: responses.nutrients,
+  ...testedColumns,
   soilPClass: responses.soilPClass,
   soilPValue: responses.soilPValue,
   soilKClass: responses.soilKClass,
   soilKValue: responses.soilKValue,
   soilSClass: responses.soilSClass,
   soilSValue: responses.soilSValue,
+  soilPReportedClass: responses.soilPReportedClass,
+  soilPScheme: responses.soilPScheme,
+  soilKReportedClass: responses.soilKReportedClass,
+  soilKScheme: responses.soilKScheme,
+  soilSReportedClass: responses.soilSReportedClass,
+  soilSScheme: responses.soilSScheme,
 };
 type LabelKey = keyof typeof labelColumns;
 
@@ -65,7 +81,7 @@ export type ContrastLabels = Pick<Response, LabelKey>;
 /** A response with its labels, its treatment in words among them. */
 export type Contrast = EstimationContrast & ContrastLabels & { treatmentLabel: string };
 
-const numeric = new Set<string>(["checkMeanKgHa", "treatedMeanKgHa", "mdKgHa", "seKgHa", "lnrr", "lnrrVar", "soilPValue", "soilKValue", "soilSValue"]);
+const numeric = new Set<string>(["nLbAc", "p2o5LbAc", "k2oLbAc", "sLbAc", "checkMeanKgHa", "treatedMeanKgHa", "mdKgHa", "seKgHa", "lnrr", "lnrrVar", "soilPValue", "soilKValue", "soilSValue"]);
 
 /** The columns as positional JSON arrays in one json_agg value: at 20,000 rows far cheaper than row-by-row results. */
 function jsonArrays(columns: Record<string, unknown>) {

@@ -23,10 +23,13 @@ import {
   tQuantile,
   type StandardCrop,
 } from "@/stats";
+import { nutrientRuleInForce } from "@/server/services/tested-nutrients";
 import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
 import { byForestOrder, loadContrasts, withLabels, type Contrast, type EstimationContrast, type ResolvedVersion } from "./load-contrasts";
 import { buildUnits, ownTest, type AnalysisUnit } from "./site-year-effects";
-import { analysisCautions, combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
+import { evaluateCautions } from "@/server/services/cautions";
+import { includedTreatments } from "./included-treatments";
+import { describeBetweenGroupTest, combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
 
 type Result = MetaAnalysisResponse;
 
@@ -45,7 +48,8 @@ export function splitQuery(query: MetaQuery): { filters: TrialFilters; options: 
 export async function runMetaAnalysis(db: Db, query: MetaQuery): Promise<Result> {
   const { filters, options } = splitQuery(query);
   const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null);
-  return analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named));
+  const [result, included] = await Promise.all([analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named)), includedTreatments(db, where, versions)]);
+  return { ...result, cautions: evaluateCautions(included) };
 }
 
 /** Reads the labels (codes, year, soil tests) of the responses an answer names. */
@@ -148,6 +152,7 @@ export async function analyseContrasts(
         siteYearsUsed: overall.units.filter((u) => u.contrasts[0]!.versionId === v.versionId).length,
       })),
       filters: filtersToQuery(filters),
+      nutrientRule: nutrientRuleInForce(filters),
       effect,
       method,
       ci,
@@ -161,14 +166,15 @@ export async function analyseContrasts(
       combination: combinationNote,
     },
     notes,
-    cautions: analysisCautions,
+    // The standing cautions; runMetaAnalysis evaluates the rules against the included treatments.
+    cautions: evaluateCautions([]),
   };
 }
 
 function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: number, pooledWeightPercent: number | null, filters: TrialFilters, versionOf: Map<string, ResolvedVersion>) {
   const first = contrasts[0]!;
   const version = versionOf.get(first.versionId);
-  const soil = relevantSoilTest(first, filters.nutrient);
+  const soil = relevantSoilTest(first, filters);
   const test = ownTest(unit);
   return {
     id: unit.key,
@@ -194,6 +200,8 @@ function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: num
     soilTestAnalyte: soil.analyte,
     soilTestClass: soil.class,
     soilTestValue: soil.value,
+    soilTestReportedClass: soil.reportedClass,
+    soilTestScheme: soil.scheme,
     checkMean: unit.checkMean,
   };
 }
@@ -259,18 +267,18 @@ function levelDecision(units: AnalysisUnit[], level: string, predictive: Predict
 }
 
 /**
- * Subgroups as a mixed-effects model with the grouping as a categorical moderator (one residual τ² for all levels),
- * as `rma(yi, vi, mods = ~ group)` computes QM; per-level estimates from `mods = ~ 0 + group`. Each level's
- * predictive distribution is what `predict()` gives on that model: its estimate and SE with the common τ², t(k − p)
- * under HKSJ and normal under Wald.
+ * Subgroups as one model in which each level has its own mean and all levels share one residual τ²; the between-group
+ * test is what R's metafor gives for `rma(yi, vi, mods = ~ group)`, the per-level estimates `mods = ~ 0 + group`. Each
+ * level's predictive distribution is what `predict()` gives on that model: its estimate and SE with the common τ²,
+ * t(k − p) under HKSJ and normal under Wald.
  */
 function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQuery, "method" | "ci">, decision: Result["decision"]): Result["subgroups"] {
   const levels = orderLevels(by, units.map((u) => u.group ?? ""));
-  const model = `Mixed-effects model with ${by} as a categorical moderator and one residual τ² (${options.method}, ${options.ci === "hksj" ? "HKSJ F/t tests" : "Wald χ²/z tests"}).`;
+  const model = `One model for all groups: each ${by} level has its own mean, and the levels share one between-site-year variance τ² (${options.method}, ${options.ci === "hksj" ? "HKSJ F/t tests" : "Wald χ²/z tests"}).`;
   const notes: string[] = [];
   const count = (level: string) => units.filter((u) => u.group === level).length;
   for (const level of levels) if (count(level) < 5) notes.push(`${level}: only ${count(level)} site-year(s); its estimate is imprecise.`);
-  if (units.length === 0) return { by, model, levels: [], qm: null, tau2: null, notes };
+  if (units.length === 0) return { by, model, levels: [], betweenGroupTest: null, qm: null, tau2: null, notes };
   if (levels.length < 2) {
     const only = metaAnalysis({ yi: units.map((u) => u.yi), vi: units.map((u) => u.vi), method: options.method, ci: options.ci, heterogeneityInterval: false });
     notes.push("Only one level matches: there is nothing to compare between groups.");
@@ -280,6 +288,7 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
       by,
       model,
       levels: [{ level: levels[0]!, k: units.length, estimate: only.estimate, se: only.se, ciLower: only.ciLower, ciUpper: only.ciUpper, pValue: only.pValue, ...levelDecision(units, levels[0]!, predictive, decision.breakEven) }],
+      betweenGroupTest: null,
       qm: null,
       tau2: only.tau2,
       notes,
@@ -296,7 +305,10 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
     r2: false,
   });
   notes.push(...fit.differences.notes.filter((n) => !notes.includes(n)));
-  const qm = fit.differences.qm;
+  const differ = fit.differences.qm;
+  const test = differ
+    ? { statistic: differ.statistic, df: Array.isArray(differ.df) ? differ.df[0] : differ.df, df2: Array.isArray(differ.df) ? differ.df[1] : null, distribution: differ.distribution, pValue: differ.pValue }
+    : null;
   const df = fit.perLevel.ci === "hksj" ? fit.perLevel.residualDf : null;
   return {
     by,
@@ -311,15 +323,8 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
       pValue: c.pValue,
       ...levelDecision(units, c.name, options.method === "FE" ? null : predictiveOf(c.estimate, c.se, fit.perLevel.tau2, df), decision.breakEven),
     })),
-    qm: qm
-      ? {
-          statistic: qm.statistic,
-          df: Array.isArray(qm.df) ? qm.df[0] : qm.df,
-          df2: Array.isArray(qm.df) ? qm.df[1] : null,
-          distribution: qm.distribution,
-          pValue: qm.pValue,
-        }
-      : null,
+    betweenGroupTest: test ? { ...test, text: describeBetweenGroupTest(test) } : null,
+    qm: test,
     tau2: fit.differences.tau2,
     notes,
   };

@@ -1,10 +1,6 @@
-/** The words an analysis result carries: cautions, notes and heterogeneity in plain language. */
+import { formatPValue } from "@/components/evidence/format";
 
-export const analysisCautions = [
-  "These results summarise the trials in these datasets; a grower's field can differ.",
-  "Seed-placed (in-furrow) fertilizer can injure a stand. Soybean is more sensitive to fertilizer salt than corn, and potassium should stay out of the seed furrow (common practice, no source).",
-  "Local recommendations and licensed advisers have the last word.",
-];
+/** The words an analysis result carries: notes and heterogeneity in plain language (the cautions are in cautions.ts). */
 
 export const combinationNote =
   "When several treatments of one site-year match the filters, they share that site-year's check: their responses are " +
@@ -43,4 +39,14 @@ export function sampleSizeNotes(k: number): string[] {
   if (k === 2) return ["Only two site-years: τ² is very imprecise and a prediction interval (t with k − 2 df) is not defined."];
   if (k < 5) return [`Only ${k} site-years: the estimate, τ² and the prediction interval are imprecise.`];
   return [];
+}
+
+/**
+ * The between-group test in plain words, e.g. "Between-group test: F = 15.1 on 1 and 40 df, p < 0.001" (HKSJ: an F
+ * test with k − p denominator df) or "Between-group test: χ² = 3.2 on 2 df, p = 0.20" (Wald).
+ */
+export function describeBetweenGroupTest(test: { statistic: number; df: number; df2: number | null; distribution: "chi-square" | "F"; pValue: number }): string {
+  const symbol = test.distribution === "F" ? "F" : "χ²";
+  const df = test.df2 !== null ? `${test.df} and ${test.df2} df` : `${test.df} df`;
+  return `Between-group test: ${symbol} = ${test.statistic.toFixed(1)} on ${df}, ${formatPValue(test.pValue)}`;
 }

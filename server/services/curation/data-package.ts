@@ -87,6 +87,8 @@ export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, versi
       csv: `CRLF line ends, UTF-8 without a byte-order mark. ${formulaGuardNote}`,
       changelog: version.changelog,
       units: "yields kg/ha at the crop's standard moisture; nutrient rates lb/ac of N, P2O5, K2O and S",
+      // The schemes soil_tests rows name in `interpretation` (the built-in ones are listed in the API's OpenAPI document).
+      ...(version.tableSchema.soilTestSchemes?.length ? { soilTestSchemes: version.tableSchema.soilTestSchemes } : {}),
     },
     resources: built.map((r) => ({
       name: r.name.replace("_", "-"),

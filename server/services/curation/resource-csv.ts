@@ -37,14 +37,14 @@ export const resourceQueries: Record<ResourceName, ResourceQuery> = {
     orderBy: `sy.code ${C}, st.analyte ${C}`,
     columns: {
       site_year: "sy.code", analyte: "st.analyte", value: "st.value", unit: "st.unit", extractant: "st.extractant", depth_in: "st.depth_in",
-      class: "st.class", interpretation: "st.interpretation",
+      class: "coalesce(st.reported_class, st.class)", interpretation: "st.interpretation",
     },
   },
   treatments: {
     from: "treatments t LEFT JOIN applications a ON a.treatment_id = t.id",
     orderBy: `t.code ${C}, a.id`,
     columns: {
-      treatment: "t.code", name: "t.name", is_check: "t.is_check", application: "row_number() OVER (PARTITION BY t.id ORDER BY a.id)",
+      treatment: "t.code", name: "t.name", is_check: "t.is_check", tested_nutrients: "array_to_string(t.tested_nutrients_stated, ';')", application: "row_number() OVER (PARTITION BY t.id ORDER BY a.id)",
       product: "a.product", grade: "a.grade", product_rate: "a.product_rate", rate_unit: "a.rate_unit", density_lb_gal: "a.density_lb_gal",
       placement: "a.placement", timing: "a.timing", n_lb_ac: "coalesce(a.n_lb_ac, 0)", p2o5_lb_ac: "coalesce(a.p2o5_lb_ac, 0)",
       k2o_lb_ac: "coalesce(a.k2o_lb_ac, 0)", s_lb_ac: "coalesce(a.s_lb_ac, 0)",

@@ -1,6 +1,7 @@
 import { defaultTableSchema } from "@/datasets/default-table-schema";
 import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
 import type { ProblemLocation } from "@/server/errors";
+import { builtInSchemeNames } from "@/server/services/soil-test-schemes";
 import { resourceOrder, resourceQueries } from "./resource-csv";
 
 /** Fields the tables cannot do without: keys, references and NOT NULL columns. */
@@ -59,5 +60,20 @@ export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocati
       problems.push({ field: `${where}.foreignKeys`, message: `the foreign keys of ${resource} cannot change` });
     }
   }
+  problems.push(...checkSoilTestSchemes(next));
+  return problems;
+}
+
+/** A version's own schemes: one per name, analyte and extractant, under names the built-in schemes do not use. */
+function checkSoilTestSchemes(next: TableSchemaDescriptor): ProblemLocation[] {
+  const problems: ProblemLocation[] = [];
+  const seen = new Set<string>();
+  (next.soilTestSchemes ?? []).forEach((scheme, i) => {
+    const where = `body.soilTestSchemes.${i}`;
+    if (builtInSchemeNames.has(scheme.name)) problems.push({ field: `${where}.name`, message: `"${scheme.name}" is a built-in scheme; name it in the interpretation column as it is, or give this one a name of its own` });
+    const key = `${scheme.name}\u0000${scheme.analyte}\u0000${scheme.extractant ?? ""}`;
+    if (seen.has(key)) problems.push({ field: `${where}.name`, message: `scheme "${scheme.name}" for ${scheme.analyte}${scheme.extractant ? ` by ${scheme.extractant}` : ""} appears twice` });
+    seen.add(key);
+  });
   return problems;
 }

@@ -90,7 +90,7 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
 
   const state = await loadDraftState(db, input.versionId);
   const report = new Reporter(input.filename);
-  const handler = ingestFor[input.resource]({ state, options: input.options, report, versionId: input.versionId, bulkCopy: database.kind === "pglite" });
+  const handler = ingestFor[input.resource]({ state, options: input.options, report, versionId: input.versionId, bulkCopy: database.kind === "pglite", soilTestSchemes: version.tableSchema.soilTestSchemes ?? [] });
   let columns: (CompiledField | null)[] = [];
   let header: string[] = [];
   const fieldNames = schema.fields.map((f) => f.name);

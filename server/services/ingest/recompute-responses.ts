@@ -95,10 +95,10 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
       list.push(m);
       meansBySy.set(m.siteYearId, list);
     }
-    const soilBySy = new Map<number, Map<string, { cls: string | null; value: number }>>();
+    const soilBySy = new Map<number, Map<string, { cls: string | null; value: number; reported: string | null; scheme: string | null }>>();
     for (const s of soilRows) {
       const m = soilBySy.get(s.siteYearId) ?? new Map();
-      m.set(s.analyte, { cls: s.class, value: s.value });
+      m.set(s.analyte, { cls: s.class, value: s.value, reported: s.reportedClass, scheme: s.interpretation });
       soilBySy.set(s.siteYearId, m);
     }
     const out = rows;
@@ -131,6 +131,9 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
           soilSClass: s?.cls ?? null, soilSValue: s?.value ?? null, checkMeanKgHa: r.checkMean, treatedMeanKgHa: r.treatedMean,
           mdKgHa: r.md, seKgHa: r.se, dfError: r.dfError, lnrr: r.lnrr, lnrrVar: r.lnrrVar, pValue: r.pValue, lsd05KgHa: r.lsd05,
           cvPct: r.cvPct, replicates: r.replicates, balanced: r.balanced, fromSummary: r.fromSummary,
+          testedNutrientsStated: t.testedNutrientsStated ? pgArray(t.testedNutrientsStated) : null,
+          soilPReportedClass: p?.reported ?? null, soilPScheme: p?.scheme ?? null, soilKReportedClass: k?.reported ?? null,
+          soilKScheme: k?.scheme ?? null, soilSReportedClass: s?.reported ?? null, soilSScheme: s?.scheme ?? null,
         });
       }
     }

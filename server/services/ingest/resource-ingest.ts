@@ -1,5 +1,6 @@
 import type { Database } from "@/db/client";
 import type { UploadOptions } from "@/schemas/curation";
+import type { SoilTestScheme } from "@/schemas/soil-test-schemes";
 import type { ResourceName } from "@/schemas/table-schema";
 import type { DraftState } from "./draft-state";
 import type { Cell } from "./field-values";
@@ -17,6 +18,8 @@ export interface IngestContext {
   versionId: string;
   /** Rows will go in by COPY (PGlite), so a resource may keep them as CSV text (RowBuffer). */
   bulkCopy: boolean;
+  /** Soil-test interpretation schemes registered in the version's data dictionary (beside the built-in ones). */
+  soilTestSchemes: SoilTestScheme[];
 }
 
 /** Which site-years' responses must be computed again after a write. */

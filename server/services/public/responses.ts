@@ -3,6 +3,7 @@ import { alias } from "drizzle-orm/pg-core";
 import { responses, treatments } from "@/db/schema";
 import type { TrialFilters } from "@/schemas/filters";
 import { responseRow, type ResponseRow } from "@/schemas/public";
+import { countedSoilTest, filterNutrientsOf, testedNutrients } from "@/server/services/tested-nutrients";
 import { responseConditions } from "@/server/services/trial-filter";
 import { columnsFromFields, moistureBasisOf, orNull, provenanceLookup, versionIdsOf, yieldConverter, type RowResource } from "./row-resource";
 
@@ -26,6 +27,8 @@ export const responseResource: RowResource<ResponseRow, TrialFilters> = {
       .limit(limit);
     return rows.map(({ r, checkTreatmentCode }) => {
       const { unit, convert: y } = yieldConverter(r.crop, scope.units);
+      const tested = testedNutrients(r);
+      const counted = countedSoilTest(tested, r, filterNutrientsOf(scope.filters));
       return {
         id: r.id,
         ...from(r.versionId),
@@ -39,17 +42,27 @@ export const responseResource: RowResource<ResponseRow, TrialFilters> = {
         rowSpacingIn: r.rowSpacingIn,
         plantingDate: r.plantingDate,
         nutrients: r.nutrients,
+        testedNutrients: tested,
+        testedNutrientsStated: r.testedNutrientsStated !== null,
         placements: r.placements,
         nLbAc: r.nLbAc,
         p2o5LbAc: r.p2o5LbAc,
         k2oLbAc: r.k2oLbAc,
         sLbAc: r.sLbAc,
+        soilTestAnalyte: counted.analyte,
+        soilTestClass: counted.class,
         soilPClass: r.soilPClass,
         soilPValue: r.soilPValue,
+        soilPReportedClass: r.soilPReportedClass,
+        soilPScheme: r.soilPScheme,
         soilKClass: r.soilKClass,
         soilKValue: r.soilKValue,
+        soilKReportedClass: r.soilKReportedClass,
+        soilKScheme: r.soilKScheme,
         soilSClass: r.soilSClass,
         soilSValue: r.soilSValue,
+        soilSReportedClass: r.soilSReportedClass,
+        soilSScheme: r.soilSScheme,
         yieldUnit: unit,
         moistureBasisPct: moistureBasisOf(r.crop),
         checkMean: y(r.checkMeanKgHa),

@@ -8,7 +8,7 @@ import { columnsFromFields, provenanceLookup, versionIdsOf, type RowResource } f
 
 type SoilTest = SiteYearRow["soilTests"][number];
 
-/** In CSV, the nutrient soil tests become columns of their own: value, unit, extractant and class for P, K and S. */
+/** In CSV, the nutrient soil tests become columns of their own: value, unit, extractant, class, reported class and scheme for P, K and S. */
 const soilColumns: CsvColumn<SiteYearRow>[] = (["P", "K", "S"] as const).flatMap((analyte) => {
   const test = (row: SiteYearRow) => row.soilTests.find((t) => t.analyte === analyte);
   const column = (suffix: string, pick: (t: SoilTest) => string | number | null) => ({
@@ -18,7 +18,7 @@ const soilColumns: CsvColumn<SiteYearRow>[] = (["P", "K", "S"] as const).flatMap
       return t ? pick(t) : null;
     },
   });
-  return [column("Value", (t) => t.value), column("Unit", (t) => t.unit), column("Extractant", (t) => t.extractant), column("Class", (t) => t.class)];
+  return [column("Value", (t) => t.value), column("Unit", (t) => t.unit), column("Extractant", (t) => t.extractant), column("Class", (t) => t.class), column("ReportedClass", (t) => t.reportedClass), column("Scheme", (t) => t.interpretation)];
 });
 
 export const siteYearResource: RowResource<SiteYearRow, Partial<TrialFilters>> = {
@@ -38,7 +38,7 @@ export const siteYearResource: RowResource<SiteYearRow, Partial<TrialFilters>> =
     const testsBySiteYear = new Map<number, SoilTest[]>();
     for (const t of tests) {
       const list = testsBySiteYear.get(t.siteYearId) ?? [];
-      list.push({ analyte: t.analyte, value: t.value, unit: t.unit, extractant: t.extractant, depthIn: t.depthIn, class: t.class, interpretation: t.interpretation });
+      list.push({ analyte: t.analyte, value: t.value, unit: t.unit, extractant: t.extractant, depthIn: t.depthIn, class: t.class, reportedClass: t.reportedClass, interpretation: t.interpretation });
       testsBySiteYear.set(t.siteYearId, list);
     }
     return rows.map(({ siteYear: sy, siteCode, location, soilTexture }) => ({

@@ -2,6 +2,7 @@ import { and, gt, inArray } from "drizzle-orm";
 import { applications, treatments } from "@/db/schema";
 import type { TrialFilters } from "@/schemas/filters";
 import { treatmentRow, type TreatmentRow } from "@/schemas/public";
+import { testedNutrients } from "@/server/services/tested-nutrients";
 import { treatmentConditions } from "@/server/services/trial-filter";
 import { columnsFromFields, provenanceLookup, versionIdsOf, type RowResource } from "./row-resource";
 
@@ -50,6 +51,8 @@ export const treatmentResource: RowResource<TreatmentRow, Partial<TrialFilters>>
       k2oLbAc: t.k2oLbAc,
       sLbAc: t.sLbAc,
       nutrients: t.nutrients,
+      testedNutrients: t.isCheck ? [] : testedNutrients(t),
+      testedNutrientsStated: t.testedNutrientsStated !== null,
       placements: t.placements,
       applications: byTreatment.get(t.id) ?? [],
     }));

@@ -1,13 +1,72 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { soilTests } from "@/db/schema";
-import { interpretSoilTest, interpretationTables } from "../interpretation-tables";
+import { soilTestClasses } from "@/schemas/filters";
+import type { SoilTestScheme } from "@/schemas/soil-test-schemes";
+import { builtInSchemeNames, classifyByThresholds, classOfLabel, findScheme } from "@/server/services/soil-test-schemes";
+import type { Reporter } from "../report";
 import { num, str, type IngestContext, type ResourceIngest } from "../resource-ingest";
 import { insertRows, type Tx } from "../write-rows";
 import type { Cell } from "../field-values";
 
 const unitOf: Record<string, string> = { P: "ppm", K: "ppm", S: "ppm", Zn: "ppm", OM: "%", pH: "pH" };
 
-export function soilTestsIngest({ state, options, report, versionId }: IngestContext): ResourceIngest {
+interface ClassInput {
+  analyte: string;
+  value: number;
+  unit: string;
+  extractant: string | null;
+  reported: string | null;
+  schemeName: string | null;
+  schemes: readonly SoilTestScheme[];
+  row: number;
+  report: Reporter;
+}
+
+/**
+ * A soil-test row's class: the label as the trial reported it, read with its interpretation scheme onto our ordinal
+ * scale. A blank class is derived from the scheme's thresholds. A label the thresholds contradict is kept as the trial
+ * reported it, with a warning; a label the scheme does not have, or one off our scale with no scheme, is an error.
+ * Returns null when the row is refused (the error is reported).
+ */
+function readClass(input: ClassInput): { scale: string | null; label: string | null; scheme: string | null } | null {
+  const { analyte, value, unit, extractant, reported, schemeName, row, report } = input;
+  const onScale = (label: string) => (soilTestClasses as readonly string[]).includes(label);
+  if (!schemeName) {
+    if (reported !== null && !onScale(reported)) {
+      report.error(row, "class", reported, `class "${reported}" is not on the ordinal scale (${soilTestClasses.join(", ")}); name the interpretation scheme that uses it in the interpretation column, registered in the data dictionary's soilTestSchemes or built in (${[...builtInSchemeNames].join(", ")})`);
+      return null;
+    }
+    return { scale: reported, label: reported, scheme: null };
+  }
+  const found = findScheme(schemeName, analyte, extractant, input.schemes);
+  if (!found.ok) {
+    if (reported !== null && !onScale(reported)) {
+      report.error(row, "interpretation", schemeName, `${found.message}, so class "${reported}" cannot be placed on the ordinal scale`);
+      return null;
+    }
+    report.warn(row, "interpretation", schemeName, `${found.message}; the class was not checked against the value`);
+    return { scale: reported, label: reported, scheme: schemeName };
+  }
+  const scheme = found.scheme;
+  const thresholdsApply = scheme.thresholds !== "as reported" && !found.extractantDiffers && scheme.unit === unit;
+  if (scheme.thresholds !== "as reported" && !thresholdsApply) {
+    const why = found.extractantDiffers ? `is for ${scheme.extractant}, not ${extractant ?? "no extractant"}` : `has thresholds in ${scheme.unit}, not ${unit}`;
+    report.warn(row, "interpretation", schemeName, `scheme "${scheme.name}" ${why}; its labels are used but the class was not checked against the value`);
+  }
+  const byValue = thresholdsApply ? classifyByThresholds(scheme, value) : null;
+  if (reported === null) return { scale: byValue?.scale ?? null, label: byValue?.label ?? null, scheme: scheme.name };
+  const cls = classOfLabel(scheme, reported);
+  if (!cls) {
+    report.error(row, "class", reported, `class "${reported}" is not a label of scheme "${scheme.name}" (${scheme.classes.map((c) => c.label).join(", ")})`);
+    return null;
+  }
+  if (byValue && byValue.label !== cls.label) {
+    report.warn(row, "class", reported, `class "${reported}" contradicts scheme "${scheme.name}": ${analyte} = ${value} ${unit}${extractant ? ` (${extractant})` : ""} falls in "${byValue.label}" by its thresholds; kept as the trial reported it`);
+  }
+  return { scale: cls.scale, label: cls.label, scheme: scheme.name };
+}
+
+export function soilTestsIngest({ state, options, report, versionId, soilTestSchemes }: IngestContext): ResourceIngest {
   const keys = new Set<string>();
   const siteYearCodes = new Set<string>();
   const out: Cell[][] = [];
@@ -35,25 +94,10 @@ export function soilTestsIngest({ state, options, report, versionId }: IngestCon
       }
       if (analyte === "pH" && (value < 3 || value > 11)) return report.error(row, "value", String(value), `a soil pH of ${value} is not plausible (3–11)`);
       const extractant = str(v.extractant);
-      let cls = str(v.class);
-      const interpretation = str(v.interpretation);
-      if (interpretation) {
-        const table = interpretationTables[interpretation];
-        if (!table) {
-          report.warn(row, "interpretation", interpretation, `interpretation table "${interpretation}" is not known here, so the class was not checked against the value`);
-        } else {
-          const derived = interpretSoilTest(interpretation, analyte, extractant, value);
-          if (derived === null) {
-            report.warn(row, "interpretation", interpretation, `table "${interpretation}" has no thresholds for ${analyte} by ${extractant ?? "no extractant"}; class not checked`);
-          } else if (cls === null) {
-            cls = derived;
-          } else if (cls !== derived) {
-            report.error(row, "class", cls, `class "${cls}" disagrees with ${analyte} = ${value} ppm (${extractant}); table "${interpretation}" gives "${derived}"`);
-          }
-        }
-      }
+      const reading = readClass({ analyte, value, unit, extractant, reported: str(v.class), schemeName: str(v.interpretation), schemes: soilTestSchemes, row, report });
+      if (!reading) return;
       siteYearCodes.add(code);
-      out.push([versionId, sy.id, analyte, value, unit, extractant, num(v.depth_in), cls, interpretation]);
+      out.push([versionId, sy.id, analyte, value, unit, extractant, num(v.depth_in), reading.scale, reading.scheme, reading.label]);
     },
     finish() {},
     count: () => out.length,
@@ -63,7 +107,7 @@ export function soilTestsIngest({ state, options, report, versionId }: IngestCon
         const ids = [...siteYearCodes].map((c) => state.siteYears.get(c)!.id);
         if (ids.length) await tx.delete(soilTests).where(and(eq(soilTests.versionId, versionId), inArray(soilTests.siteYearId, ids)));
       }
-      await insertRows(database, tx, soilTests, ["versionId", "siteYearId", "analyte", "value", "unit", "extractant", "depthIn", "class", "interpretation"], out);
+      await insertRows(database, tx, soilTests, ["versionId", "siteYearId", "analyte", "value", "unit", "extractant", "depthIn", "class", "interpretation", "reportedClass"], out);
       return options.mode === "replace" ? "all" : { siteYearCodes: [...siteYearCodes] };
     },
   };

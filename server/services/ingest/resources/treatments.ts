@@ -5,6 +5,8 @@ import { gradeAsOxides, isFluidUnit, productPoundsPerAcre, typicalDensity } from
 import type { Cell } from "../field-values";
 import { num, str, type IngestContext, type ResourceIngest } from "../resource-ingest";
 import { insertRows } from "../write-rows";
+import { trippedRules } from "@/server/services/cautions";
+import { parseTestedNutrients, type Nutrient } from "@/server/services/tested-nutrients";
 
 interface Application {
   product: string;
@@ -26,14 +28,48 @@ interface TreatmentRow {
   isCheck: boolean;
   firstRow: number;
   applications: Map<number, Application>;
+  /** As the curator stated it (the cell's text and its parsed nutrients), or null to derive it from the rates. */
+  tested: { cell: string; nutrients: Nutrient[]; row: number } | null;
 }
 
 const round = (x: number) => Math.round(x * 1000) / 1000;
 const required = ["product", "grade", "product_rate", "rate_unit", "placement", "timing"] as const;
 
+/** A treatment's totals over its applications, the nutrients it supplies and its placements, as stored. */
+function totals(t: TreatmentRow) {
+  const apps = [...t.applications.values()];
+  const sum = (k: "n" | "p2o5" | "k2o" | "s") => round(apps.reduce((a, x) => a + x[k], 0));
+  const n = sum("n"), p2o5 = sum("p2o5"), k2o = sum("k2o"), s = sum("s");
+  const nutrients = [n > 0 && "N", p2o5 > 0 && "P", k2o > 0 && "K", s > 0 && "S"].filter((x): x is string => !!x);
+  const placements = [...new Set(apps.map((a) => a.placement))].sort();
+  return { name: t.name, isCheck: t.isCheck, nLbAc: n, p2o5LbAc: p2o5, k2oLbAc: k2o, sLbAc: s, nutrients, placements, testedNutrientsStated: t.tested?.nutrients ?? null };
+}
+
 export function treatmentsIngest({ state, options, report, versionId }: IngestContext): ResourceIngest {
   const rows = new Map<string, TreatmentRow>();
   let count = 0;
+  /**
+   * The caution rules (cautions.ts), tested against each treatment as the draft grows it: every crop and row spacing
+   * of its site-years. A treatment uploaded before any site-year is tested at 30-in rows with no crop.
+   */
+  const warnCautions = () => {
+    const grown = new Map<string, { crop: string; rowSpacingIn: number | null }>();
+    for (const sy of state.siteYears.values()) grown.set(`${sy.crop}/${sy.rowSpacingIn}`, { crop: sy.crop, rowSpacingIn: sy.rowSpacingIn });
+    if (grown.size === 0) grown.set("", { crop: "", rowSpacingIn: null });
+    for (const t of rows.values()) {
+      if (t.isCheck || t.applications.size === 0) continue;
+      const apps = [...t.applications.values()].map((a) => ({ placement: a.placement, nLbAc: a.n, k2oLbAc: a.k2o }));
+      const said = new Set<string>();
+      for (const { crop, rowSpacingIn } of grown.values()) {
+        for (const { rule, detail } of trippedRules({ dataset: "", treatment: t.code, crop, rowSpacingIn, applications: apps })) {
+          const message = `treatment "${t.code}" trips caution ${rule.code}${crop ? ` on ${crop}` : ""}: ${detail}. ${rule.text} (${rule.source})`;
+          if (said.has(message)) continue;
+          said.add(message);
+          report.warn(t.firstRow, "treatment", t.code, message);
+        }
+      }
+    }
+  };
   return {
     resource: "treatments",
     row(v, row) {
@@ -42,13 +78,25 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
       if (code === null || name === null || v.is_check === null || v.application === null) return;
       const isCheck = v.is_check === true;
       const appNo = num(v.application)!;
+      const testedCell = str(v.tested_nutrients);
+      let tested: TreatmentRow["tested"] = null;
+      if (testedCell !== null) {
+        const parsed = parseTestedNutrients(testedCell);
+        if (!parsed.ok) return report.error(row, "tested_nutrients", testedCell, parsed.message);
+        if (isCheck) return report.error(row, "tested_nutrients", testedCell, `treatment "${code}" is the untreated check, so it tests nothing; leave tested_nutrients blank`);
+        tested = { cell: testedCell, nutrients: parsed.value, row };
+      }
       let t = rows.get(code);
       if (!t) {
-        t = { code, name, isCheck, firstRow: row, applications: new Map() };
+        t = { code, name, isCheck, firstRow: row, applications: new Map(), tested };
         rows.set(code, t);
       } else {
         if (t.name !== name) report.error(row, "name", name, `treatment "${code}" is called "${t.name}" in data row ${t.firstRow}`);
         if (t.isCheck !== isCheck) report.error(row, "is_check", String(v.is_check), `treatment "${code}" has is_check ${t.isCheck} in data row ${t.firstRow}`);
+        // The statement belongs to the treatment: a blank on a later application row repeats the first one.
+        if (tested && t.tested && tested.nutrients.join(";") !== t.tested.nutrients.join(";")) {
+          report.error(row, "tested_nutrients", testedCell, `treatment "${code}" states tested_nutrients "${t.tested.cell}" in data row ${t.tested.row}`);
+        } else if (tested && !t.tested) t.tested = tested;
       }
       if (t.applications.has(appNo) || (isCheck && t.firstRow !== row)) {
         return report.error(row, "application", String(appNo), `treatment "${code}" already has application ${appNo} (treatment + application is the primary key)`);
@@ -102,7 +150,15 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
     finish() {
       for (const t of rows.values()) {
         if (!t.isCheck && t.applications.size === 0) report.error(t.firstRow, "treatment", t.code, `treatment "${t.code}" is not the check but has no valid application`);
+        if (t.tested && t.applications.size > 0) {
+          const supplied = totals(t).nutrients;
+          const absent = t.tested.nutrients.filter((n) => !supplied.includes(n));
+          if (absent.length) {
+            report.error(t.tested.row, "tested_nutrients", t.tested.cell, `treatment "${t.code}" states it tests ${absent.join(", ")}, but its products add no ${absent.join(" or ")}`);
+          }
+        }
       }
+      warnCautions();
       if (options.mode === "replace") {
         for (const [code, t] of state.treatments) {
           if (!rows.has(code) && t.used) report.error(null, "treatment", code, `treatment "${code}" is missing from the file but plots or summaries still use it; remove those first`);
@@ -111,14 +167,6 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
     },
     count: () => count,
     async write(database, tx) {
-      const totals = (t: TreatmentRow) => {
-        const apps = [...t.applications.values()];
-        const sum = (k: "n" | "p2o5" | "k2o" | "s") => round(apps.reduce((a, x) => a + x[k], 0));
-        const n = sum("n"), p2o5 = sum("p2o5"), k2o = sum("k2o"), s = sum("s");
-        const nutrients = [n > 0 && "N", p2o5 > 0 && "P", k2o > 0 && "K", s > 0 && "S"].filter((x): x is string => !!x);
-        const placements = [...new Set(apps.map((a) => a.placement))].sort();
-        return { name: t.name, isCheck: t.isCheck, nLbAc: n, p2o5LbAc: p2o5, k2oLbAc: k2o, sLbAc: s, nutrients, placements };
-      };
       const ids = new Map<string, number>();
       for (const t of rows.values()) {
         const values = totals(t);
