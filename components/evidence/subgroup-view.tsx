@@ -9,7 +9,7 @@ import { groupings, type Grouping, type MetaAnalysisResponse } from "@/schemas/a
 import { placementLabels, soilTestClassLabels } from "@/constants/vocabulary";
 import { ChoiceChips } from "@/components/ui/choice-chips";
 import { pricedDecision } from "@/stats/decision";
-import { formatInterval, formatPercent, formatPValue, formatResponse, levelLabel, unitLabel } from "./format";
+import { formatInterval, formatPercent, formatResponse, levelLabel, unitLabel } from "./format";
 import { groupStyles, type GroupStyle } from "./group-style";
 
 export const groupingLabels: Record<Grouping, string> = {
