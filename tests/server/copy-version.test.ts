@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import * as schema from "@/db/schema";
 import { versionReferences, versionRowTables } from "@/server/services/curation/copy-version";
 import { testApp, type TestApp } from "@/tests/support/test-app";
-import { draftWithData, plotsCsv, upload, type Fixture } from "./curation-fixtures";
+import { draftWithData, plotsCsv, treatmentsCsv, upload, type Fixture } from "./curation-fixtures";
 
 /**
  * A new draft starts as a copy of the latest published version. Copied, every trial table must hold the same rows,
@@ -48,7 +48,13 @@ beforeAll(async () => {
     .split("\n")
     .map((line, i) => (i === 0 ? `${line},stand_count,vigour,test_weight` : `${line},${138000 + i * 100},${(i % 9) + 1},${54 + (i % 4)}`))
     .join("\n");
-  f = await draftWithData(t.app, t.ctx, { plots: `${plots}\n` });
+  // Treatments whose tested nutrients are stated, so that column is filled too.
+  const treatments = treatmentsCsv
+    .trim()
+    .split("\n")
+    .map((line, i) => (i === 0 ? `${line},tested_nutrients` : `${line},${line.startsWith("CHK") ? "" : "P"}`))
+    .join("\n");
+  f = await draftWithData(t.app, t.ctx, { plots: `${plots}\n`, treatments: `${treatments}\n` });
   // Potassium and sulfur tests too, so every soil column of the responses is filled.
   await upload(f.curatorAgent, f.versionId, "soil_tests", "site_year,analyte,value,unit,extractant,depth_in,class,interpretation\nTB-01-2021,K,110,ppm,ammonium-acetate,6,low,tallgrass-illustrative\nTB-01-2021,S,6,ppm,calcium-phosphate,6,low,tallgrass-illustrative\n").expect(201);
   // A site-year published as means (summary_means), with the variety columns filled.
@@ -64,7 +70,7 @@ afterAll(async () => t?.close());
 describe("a new draft copied from the published version", () => {
   it("copies every table that holds a version's trial rows", () => {
     // Version-scoped tables that are a version's own history, not its data, and stay with it.
-    const notCopied = new Set(["uploads", "validation_reports"]);
+    const notCopied = new Set(["uploads", "validation_reports", "version_edits"]);
     const versionScoped = (Object.values(schema) as unknown[])
       .filter((value): value is PgTable => is(value, PgTable))
       .filter((table) => getTableConfig(table).foreignKeys.some((key) => key.reference().foreignTable === schema.versions))

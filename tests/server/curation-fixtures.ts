@@ -62,7 +62,7 @@ export function upload(agent: Agent, versionId: string, resource: string, csv: s
 let counter = 0;
 
 /** A curator's dataset with a first draft holding the two-site-year starter trial above. */
-export async function draftWithData(app: Express, ctx: AppContext, opts: { plots?: string | false } = {}): Promise<Fixture> {
+export async function draftWithData(app: Express, ctx: AppContext, opts: { plots?: string | false; treatments?: string } = {}): Promise<Fixture> {
   const curator = await makeUser(ctx, "curator");
   const reviewer = await makeUser(ctx, "reviewer");
   const curatorAgent = await signedInAgent(app, curator.email);
@@ -74,7 +74,7 @@ export async function draftWithData(app: Express, ctx: AppContext, opts: { plots
     .expect(201);
   const v = await curatorAgent.post(`/api/v1/datasets/${slug}/versions`).send({}).expect(201);
   const versionId = v.body.id as string;
-  for (const [resource, csv] of [["sites", sitesCsv], ["site_years", siteYearsCsv], ["soil_tests", soilTestsCsv], ["treatments", treatmentsCsv]] as const) {
+  for (const [resource, csv] of [["sites", sitesCsv], ["site_years", siteYearsCsv], ["soil_tests", soilTestsCsv], ["treatments", opts.treatments ?? treatmentsCsv]] as const) {
     const res = await upload(curatorAgent, versionId, resource, csv);
     expect(res.status, JSON.stringify(res.body).slice(0, 2000)).toBe(201);
   }
