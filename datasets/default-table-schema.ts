@@ -24,7 +24,7 @@ const textures = [
   "clay loam", "silty clay loam", "sandy clay", "silty clay", "clay",
 ];
 
-export const sitesSchema: TableSchemaResource = {
+const sitesSchema: TableSchemaResource = {
   fields: [
     code("site", "Site", "Site code, stable across versions (e.g. TB-03)."),
     { name: "location", title: "Location", description: "Coarse location only: county or grid cell, never a farm's position.", type: "string", constraints: { required: true, maxLength: 120 } },
@@ -35,7 +35,7 @@ export const sitesSchema: TableSchemaResource = {
   missingValues,
 };
 
-export const siteYearsSchema: TableSchemaResource = {
+const siteYearsSchema: TableSchemaResource = {
   fields: [
     code("site_year", "Site-year", "Site-year code, stable across versions (e.g. TB-03-2022); diffs match site-years by it."),
     { ...code("site", "Site", "Site the site-year belongs to."), constraints: { required: true } },
@@ -64,7 +64,7 @@ export const siteYearsSchema: TableSchemaResource = {
   missingValues,
 };
 
-export const soilTestsSchema: TableSchemaResource = {
+const soilTestsSchema: TableSchemaResource = {
   fields: [
     { ...code("site_year", "Site-year", "Site-year the sample belongs to."), constraints: { required: true } },
     { name: "analyte", title: "Analyte", description: "Element or property tested (soil tests use elements: P, K, S).", type: "string", constraints: { required: true, enum: ["P", "K", "S", "OM", "pH", "Zn"] } },
@@ -90,7 +90,7 @@ export const soilTestsSchema: TableSchemaResource = {
   missingValues,
 };
 
-export const treatmentsSchema: TableSchemaResource = {
+const treatmentsSchema: TableSchemaResource = {
   fields: [
     code("treatment", "Treatment", "Treatment code, shared by every site-year of the version."),
     { name: "name", title: "Name", type: "string", constraints: { required: true, maxLength: 120 } },
@@ -122,7 +122,7 @@ export const treatmentsSchema: TableSchemaResource = {
   missingValues,
 };
 
-export const plotsSchema: TableSchemaResource = {
+const plotsSchema: TableSchemaResource = {
   fields: [
     { ...code("site_year", "Site-year", "Site-year the plot belongs to."), constraints: { required: true } },
     { ...code("plot", "Plot", "Plot number or label, unique within the site-year.") },
@@ -142,7 +142,7 @@ export const plotsSchema: TableSchemaResource = {
   missingValues,
 };
 
-export const summariesSchema: TableSchemaResource = {
+const summariesSchema: TableSchemaResource = {
   fields: [
     { ...code("site_year", "Site-year", "Site-year published as means only."), constraints: { required: true } },
     { ...code("treatment", "Treatment", "Treatment of the mean."), constraints: { required: true } },

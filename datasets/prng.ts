@@ -2,7 +2,7 @@
  * A small seeded generator so the demo data are the same on every machine: mulberry32 (a 32-bit mixing PRNG,
  * public domain), seeded from a string by FNV-1a. Normal deviates by Box–Muller.
  */
-export function hashSeed(text: string): number {
+function hashSeed(text: string): number {
   let h = 0x811c9dc5;
   for (let i = 0; i < text.length; i++) {
     h ^= text.charCodeAt(i);

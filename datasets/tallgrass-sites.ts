@@ -20,7 +20,7 @@ export interface DemoSite {
   plantingDay: number;
 }
 
-export const demoSites: DemoSite[] = [
+const demoSites: DemoSite[] = [
   { code: "TB-01", county: "Wren County", soilSeries: "Harlan", texture: "silt loam", tillage: "no-till", p: 6, k: 105, s: 6, om: 2.6, soyYield: 3700, cornYield: 11200, plantingDay: 8 },
   { code: "TB-02", county: "Wren County", soilSeries: "Marrow", texture: "clay loam", tillage: "conventional", p: 24, k: 190, s: 9, om: 4.1, soyYield: 4200, cornYield: 12400, plantingDay: 12 },
   { code: "TB-03", county: "Osage Bend County", soilSeries: "Quillen", texture: "loam", tillage: "strip-till", p: 9, k: 125, s: 7, om: 3.0, soyYield: 3900, cornYield: 11800, plantingDay: 10 },

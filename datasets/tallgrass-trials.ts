@@ -8,7 +8,7 @@ import { siteByCode, type DemoSite } from "./tallgrass-sites";
  * seed (dataset + site-year code), so adding a season never changes the seasons already published.
  */
 
-export interface DemoTreatment {
+interface DemoTreatment {
   code: string;
   name: string;
   /** CSV rows after treatment,name,is_check,tested_nutrients: application,product,grade,product_rate,rate_unit,placement,timing. */
@@ -43,7 +43,7 @@ export interface DemoTrial {
 }
 
 /** Invented: the demo network's lab reports sulfate-S in three classes; its "medium" is our optimum. */
-export const tallgrassLabSulfur: SoilTestScheme = {
+const tallgrassLabSulfur: SoilTestScheme = {
   name: "tallgrass-lab-sulfate-s",
   title: "Tallgrass Basin network lab, sulfate-S in three classes (invented)",
   analyte: "S",

@@ -20,7 +20,7 @@ import {
 import { sessionKeys } from "./use-session";
 
 /** Query keys for the account screens, general to specific. */
-export const accountKeys = {
+const accountKeys = {
   all: ["account"] as const,
   profile: () => [...accountKeys.all, "profile"] as const,
   follows: () => [...accountKeys.all, "follows"] as const,
@@ -36,23 +36,23 @@ export const accountKeys = {
 // Account data is private and changes by the user's own hand; mutations invalidate it, so no long stale time.
 const verified = z.object({ email: z.string(), verified: z.literal(true) });
 
-export const followsQuery = () =>
+const followsQuery = () =>
   queryOptions({ queryKey: accountKeys.follows(), queryFn: ({ signal }) => api("/api/v1/account/follows", followList, { signal }) });
-export const invitationQuery = (token: string) =>
+const invitationQuery = (token: string) =>
   queryOptions({
     queryKey: accountKeys.invitation(token),
     queryFn: ({ signal }) => api("/api/v1/invitations/preview", invitationPreview, { method: "POST", body: { token }, signal }),
     retry: false,
   });
-export const adminUsersQuery = () =>
+const adminUsersQuery = () =>
   queryOptions({ queryKey: accountKeys.users(), queryFn: ({ signal }) => api("/api/v1/admin/users", adminUserList, { signal }) });
-export const roleChangesQuery = () =>
+const roleChangesQuery = () =>
   queryOptions({ queryKey: accountKeys.roleChanges(), queryFn: ({ signal }) => api("/api/v1/admin/role-changes", roleChangeList, { signal }) });
-export const invitationsQuery = () =>
+const invitationsQuery = () =>
   queryOptions({ queryKey: accountKeys.invitations(), queryFn: ({ signal }) => api("/api/v1/admin/invitations", invitationList, { signal }) });
-export const outboxQuery = () =>
+const outboxQuery = () =>
   queryOptions({ queryKey: accountKeys.outbox(), queryFn: ({ signal }) => api("/api/v1/admin/outbox", outboxList, { signal }) });
-export const outboxMessageQuery = (id: string) =>
+const outboxMessageQuery = (id: string) =>
   queryOptions({ queryKey: accountKeys.outboxMessage(id), queryFn: ({ signal }) => api(`/api/v1/admin/outbox/${encodeURIComponent(id)}`, outboxMessage, { signal }) });
 
 export const useFollowsQuery = (enabled = true) => useQuery({ ...followsQuery(), enabled });

@@ -4,13 +4,13 @@ import { api } from "@/lib/api-client";
 import { metaApiPath, type EvidenceState } from "@/lib/share-link";
 import { metaAnalysisResult } from "@/schemas/analysis";
 
-export const analysisKeys = {
+const analysisKeys = {
   all: ["analyses"] as const,
   metas: () => [...analysisKeys.all, "meta"] as const,
   meta: (path: string) => [...analysisKeys.metas(), path] as const,
 };
 
-export const metaAnalysisQuery = (state: EvidenceState) => {
+const metaAnalysisQuery = (state: EvidenceState) => {
   const path = metaApiPath(state);
   return queryOptions({
     queryKey: analysisKeys.meta(path),

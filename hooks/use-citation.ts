@@ -11,17 +11,17 @@ export const citationFormatOptions = [
 ] as const;
 export type CitationFormat = (typeof citationFormatOptions)[number]["format"];
 
-export const citationKeys = {
+const citationKeys = {
   all: ["citations"] as const,
   version: (slug: string, semver: string) => [...citationKeys.all, slug, semver] as const,
   detail: (slug: string, semver: string, format: CitationFormat) => [...citationKeys.version(slug, semver), format] as const,
 };
 
-export const citationPath = (slug: string, semver: string, format: CitationFormat) =>
+const citationPath = (slug: string, semver: string, format: CitationFormat) =>
   `/api/v1/datasets/${encodeURIComponent(slug)}/versions/${encodeURIComponent(semver)}/citation?format=${format}`;
 
 /** A citation is text in its own media type (BibTeX, RIS…), so it is read as text rather than parsed as JSON. */
-export const citationQuery = (slug: string, semver: string, format: CitationFormat) =>
+const citationQuery = (slug: string, semver: string, format: CitationFormat) =>
   queryOptions({
     queryKey: citationKeys.detail(slug, semver, format),
     queryFn: async ({ signal }) => (await send(citationPath(slug, semver, format), { signal, headers: { Accept: "*/*" } })).text(),

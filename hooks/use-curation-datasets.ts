@@ -5,14 +5,14 @@ import { curationKeys, curationPaths, draftStaleMs } from "./curation-keys";
 
 /** A curator's datasets: the list they work on, one dataset with its versions and editors, and their edits. */
 
-export const myDatasetsQuery = () =>
+const myDatasetsQuery = () =>
   queryOptions({
     queryKey: curationKeys.myDatasets(),
     queryFn: ({ signal }) => api(curationPaths.myDatasets, curationDatasetList, { signal }),
     staleTime: draftStaleMs,
   });
 
-export const curationDatasetQuery = (slug: string) =>
+const curationDatasetQuery = (slug: string) =>
   queryOptions({
     queryKey: curationKeys.dataset(slug),
     queryFn: ({ signal }) => api(curationPaths.dataset(slug), curationDataset, { signal }),

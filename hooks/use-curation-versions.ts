@@ -15,7 +15,7 @@ export const versionQuery = (id: string) =>
     staleTime: draftStaleMs,
   });
 
-export const diffQuery = (from: string, to: string) =>
+const diffQuery = (from: string, to: string) =>
   queryOptions({
     queryKey: curationKeys.diff(from, to),
     queryFn: ({ signal }) => api(curationPaths.diff(from, to), versionDiff, { signal }),

@@ -5,21 +5,21 @@ import { datasetDetail } from "@/schemas/public";
 import { tableSchemaDescriptor } from "@/schemas/table-schema";
 import { datasetKeys } from "./use-datasets";
 
-export const datasetPageKeys = {
+const datasetPageKeys = {
   detail: (slug: string) => datasetKeys.detail(slug),
   schema: (slug: string, semver: string) => [...datasetKeys.detail(slug), "schema", semver] as const,
 };
 
 const path = (slug: string) => `/api/v1/datasets/${encodeURIComponent(slug)}`;
 
-export const datasetDetailQuery = (slug: string) =>
+const datasetDetailQuery = (slug: string) =>
   queryOptions({
     queryKey: datasetPageKeys.detail(slug),
     queryFn: ({ signal }) => api(path(slug), datasetDetail, { signal }),
     staleTime: staleTimeMs,
   });
 
-export const versionSchemaQuery = (slug: string, semver: string) =>
+const versionSchemaQuery = (slug: string, semver: string) =>
   queryOptions({
     queryKey: datasetPageKeys.schema(slug, semver),
     queryFn: ({ signal }) => api(`${path(slug)}/versions/${encodeURIComponent(semver)}/schema`, tableSchemaDescriptor, { signal }),

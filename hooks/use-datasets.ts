@@ -9,7 +9,7 @@ export const datasetKeys = {
   detail: (slug: string) => [...datasetKeys.all, "detail", slug] as const,
 };
 
-export const datasetListQuery = () =>
+const datasetListQuery = () =>
   queryOptions({
     queryKey: datasetKeys.lists(),
     queryFn: ({ signal }) => api("/api/v1/datasets", datasetList, { signal }),

@@ -5,7 +5,7 @@ import { curationKeys, curationPaths, draftStaleMs } from "./curation-keys";
 
 /** The versions waiting for a reviewer. */
 
-export const reviewQueueQuery = () =>
+const reviewQueueQuery = () =>
   queryOptions({
     queryKey: curationKeys.reviewQueue(),
     queryFn: ({ signal }) => api(curationPaths.reviewQueue, reviewQueue, { signal }),

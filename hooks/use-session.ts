@@ -6,7 +6,7 @@ import { me, sessionState } from "@/schemas/account";
 export const sessionKeys = { all: ["session"] as const, me: () => [...sessionKeys.all, "me"] as const };
 
 /** The signed-in user, or null for a visitor. */
-export const sessionQuery = () =>
+const sessionQuery = () =>
   queryOptions({
     queryKey: sessionKeys.me(),
     queryFn: async ({ signal }) => (await api("/api/v1/session", sessionState, { signal })).user,

@@ -2,13 +2,13 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/r
 import { api, apiNoContent } from "@/lib/api-client";
 import { createdToken, tokenList, type CreateTokenBody } from "@/schemas/tokens";
 
-export const tokenKeys = {
+const tokenKeys = {
   all: ["tokens"] as const,
   lists: () => [...tokenKeys.all, "list"] as const,
 };
 
 /** Token lists are private and change on every use (last used): never served stale. */
-export const tokenListQuery = () =>
+const tokenListQuery = () =>
   queryOptions({
     queryKey: tokenKeys.lists(),
     queryFn: ({ signal }) => api("/api/v1/tokens", tokenList, { signal }),

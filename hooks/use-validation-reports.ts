@@ -4,7 +4,7 @@ import { validationReport } from "@/schemas/curation";
 import { curationKeys, curationPaths } from "./curation-keys";
 
 /** A whole validation report (the server caps a page at 10,000 problems, which is also what it keeps). */
-export const reportQuery = (versionId: string, reportId: string) =>
+const reportQuery = (versionId: string, reportId: string) =>
   queryOptions({
     queryKey: curationKeys.report(reportId),
     queryFn: ({ signal }) => api(`${curationPaths.report(versionId, reportId)}?limit=10000`, validationReport, { signal }),

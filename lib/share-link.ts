@@ -28,7 +28,7 @@ type Params = Record<string, string | string[] | undefined>;
 
 const filterKeys = Object.keys(trialFilterShape) as (keyof TrialFilters)[];
 /** Every key the screen writes to its URL; the router gets `undefined` for the ones not set, to clear them. */
-export const evidenceParamKeys = [...filterKeys, "effect", "method", "ci", "groupBy", "units", ...priceKeys] as const;
+const evidenceParamKeys = [...filterKeys, "effect", "method", "ci", "groupBy", "units", ...priceKeys] as const;
 
 function parseField<T>(schema: { safeParse(v: unknown): { success: true; data: T } | { success: false } }, raw: string | string[] | undefined): T | undefined {
   if (raw === undefined || raw === "") return undefined;
@@ -85,7 +85,7 @@ export function apiParamsFromEvidenceState(state: EvidenceState): Record<string,
 }
 
 /** Query string with the readable separators kept (commas and slashes need no escaping in a query). */
-export function toQueryString(params: Record<string, string>): string {
+function toQueryString(params: Record<string, string>): string {
   const qs = new URLSearchParams(params).toString().replace(/%2C/gi, ",").replace(/%2F/gi, "/");
   return qs ? `?${qs}` : "";
 }

@@ -3,7 +3,7 @@ import { roles, staffRoles } from "@/constants/vocabulary";
 
 import { line } from "./safe-text";
 
-export const role = z.enum(roles).meta({ id: "Role" });
+const role = z.enum(roles).meta({ id: "Role" });
 export type Role = z.infer<typeof role>;
 
 /** What the app knows about the signed-in user. Never carries a hash. */
@@ -32,7 +32,7 @@ export const signInBody = z
  */
 export const newPassword = line().min(12, "Use at least 12 characters.").max(256, "Use at most 256 characters.");
 export const displayName = line().trim().min(1, "Enter a name.").max(120, "Use at most 120 characters.");
-export const emailAddress = z.email("Enter an e-mail address like name@example.org.").max(254);
+const emailAddress = z.email("Enter an e-mail address like name@example.org.").max(254);
 
 /**
  * Sign-up. Unknown keys (role, emailVerified, …) are stripped, never stored: a new account is always an unverified
@@ -82,7 +82,7 @@ export const profilePatch = z
   .meta({ id: "ProfilePatch" });
 export type ProfilePatch = z.infer<typeof profilePatch>;
 
-export const followedDataset = z
+const followedDataset = z
   .object({ slug: z.string(), title: z.string(), followedAt: z.string(), latestVersion: z.string().nullable() })
   .meta({ id: "FollowedDataset" });
 export const followList = z.object({ items: z.array(followedDataset) }).meta({ id: "FollowList" });
@@ -98,7 +98,7 @@ export const adminUserList = z.object({ items: z.array(adminUser) }).meta({ id: 
 
 export const roleChangeBody = z.object({ role }).strict().meta({ id: "RoleChange" });
 
-export const roleChangeEntry = z
+const roleChangeEntry = z
   .object({
     id: z.string(),
     at: z.string(),
@@ -113,7 +113,7 @@ export type RoleChangeEntry = z.infer<typeof roleChangeEntry>;
 export const roleChangeList = z.object({ items: z.array(roleChangeEntry) }).meta({ id: "RoleChangeList" });
 
 /** Invitations are for the working roles; anyone can become a member by signing up. */
-export const invitableRole = z.enum(staffRoles).meta({ id: "InvitableRole" });
+const invitableRole = z.enum(staffRoles).meta({ id: "InvitableRole" });
 export const invitationBody = z.object({ email: emailAddress, role: invitableRole }).strict().meta({ id: "Invitation" });
 export const invitationEntry = z
   .object({ id: z.string(), email: z.string(), role, createdAt: z.string(), expiresAt: z.string() })
@@ -126,7 +126,7 @@ export const invitationList = z
   })
   .meta({ id: "InvitationList" });
 
-export const outboxSummary = z
+const outboxSummary = z
   .object({ id: z.string(), kind: z.string(), to: z.string(), subject: z.string(), transport: z.string(), createdAt: z.string() })
   .meta({ id: "OutboxSummary" });
 export const outboxList = z.object({ items: z.array(outboxSummary) }).meta({ id: "OutboxList" });

@@ -2,11 +2,11 @@ import { z } from "zod";
 import { trialFilterShape, trialFilters } from "./filters";
 import { yieldUnits, type YieldUnit } from "./public";
 
-export { yieldUnits, type YieldUnit };
+export {  type YieldUnit };
 
-export const effectMeasures = ["md", "lnrr"] as const;
-export const tauMethods = ["REML", "DL", "PM", "FE"] as const;
-export const ciMethods = ["hksj", "wald"] as const;
+const effectMeasures = ["md", "lnrr"] as const;
+const tauMethods = ["REML", "DL", "PM", "FE"] as const;
+const ciMethods = ["hksj", "wald"] as const;
 export const groupings = ["soilTestClass", "placement", "nutrient", "crop", "tillage", "plantingWindow", "dataset"] as const;
 
 export type EffectMeasure = (typeof effectMeasures)[number];
@@ -61,7 +61,7 @@ export type MetaQuery = z.infer<typeof metaQuery>;
 
 const interval = z.object({ lower: z.number(), upper: z.number() });
 
-export const forestRow = z
+const forestRow = z
   .object({
     id: z.string().describe("Site-year id, with the group level when grouped"),
     siteYearCode: z.string(),
@@ -96,7 +96,7 @@ export const forestRow = z
   .meta({ id: "ForestRow" });
 export type ForestRow = z.infer<typeof forestRow>;
 
-export const forestExtent = z
+const forestExtent = z
   .object({
     total: z.number().int().describe("Forest rows the analysis has (site-years, or site-year × level when grouped)"),
     returned: z.number().int().describe("Rows in `rows`"),
@@ -107,7 +107,7 @@ export const forestExtent = z
   .meta({ id: "ForestExtent" });
 export type ForestExtent = z.infer<typeof forestExtent>;
 
-export const predictiveDistribution = z
+const predictiveDistribution = z
   .object({
     estimate: z.number().describe("Centre: the estimated mean response"),
     se: z.number().describe("SE of the estimated mean"),
@@ -131,7 +131,7 @@ const observedResponses = z
   .nullable()
   .describe(`Every site-year's observed response, ascending, for the share above any break-even; null above ${observedResponsesLimit} site-years`);
 
-export const pooledEstimate = z
+const pooledEstimate = z
   .object({
     estimate: z.number(),
     se: z.number(),
@@ -148,7 +148,7 @@ export const pooledEstimate = z
   })
   .meta({ id: "PooledEstimate" });
 
-export const heterogeneity = z
+const heterogeneity = z
   .object({
     q: z.number(),
     df: z.number().int(),
@@ -161,7 +161,7 @@ export const heterogeneity = z
   })
   .meta({ id: "Heterogeneity" });
 
-export const subgroupLevel = z
+const subgroupLevel = z
   .object({
     level: z.string(),
     k: z.number().int(),
@@ -190,7 +190,7 @@ const betweenGroupTest = z.object({
   text: z.string().describe('In words, e.g. "Between-group test: F = 15.1 on 1 and 40 df, p < 0.001"'),
 });
 
-export const subgroups = z
+const subgroups = z
   .object({
     by: z.enum(groupings),
     model: z.string().describe("How the levels and the between-group test were estimated"),
@@ -205,7 +205,7 @@ export const subgroups = z
   })
   .meta({ id: "Subgroups" });
 
-export const decisionNumbers = z
+const decisionNumbers = z
   .object({
     costPerAcre: z.number().nullable(),
     pricePerBushel: z.number().nullable(),
@@ -226,11 +226,11 @@ export const decisionNumbers = z
   })
   .meta({ id: "DecisionNumbers" });
 
-export const excludedSiteYear = z
+const excludedSiteYear = z
   .object({ siteYearCode: z.string(), dataset: z.string(), version: z.string(), treatments: z.array(z.string()), reason: z.string() })
   .meta({ id: "ExcludedSiteYear" });
 
-export const analysisProvenance = z
+const analysisProvenance = z
   .object({
     versions: z.array(
       z.object({ dataset: z.string(), title: z.string(), version: z.string(), licence: z.string(), siteYearsUsed: z.number().int() }),
@@ -268,7 +268,7 @@ export const cautionCodes = [
 ] as const;
 export type CautionCode = (typeof cautionCodes)[number];
 
-export const caution = z
+const caution = z
   .object({
     code: z
       .enum(cautionCodes)

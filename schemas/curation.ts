@@ -39,7 +39,7 @@ export type DatasetCreate = z.input<typeof datasetCreate>;
 export const datasetPatch = datasetFields.omit({ slug: true }).partial().strict().meta({ id: "DatasetPatch" });
 export type DatasetPatch = z.input<typeof datasetPatch>;
 
-export const versionBrief = z
+const versionBrief = z
   .object({
     id: z.string(),
     semver,
@@ -81,13 +81,13 @@ export const versionCreate = z
   .strict()
   .meta({ id: "VersionCreate" });
 
-export const resourceCounts = z.record(resourceName, z.number().int()).meta({ id: "ResourceCounts" });
+const resourceCounts = z.record(resourceName, z.number().int()).meta({ id: "ResourceCounts" });
 
-export const uncomputedSiteYear = z
+const uncomputedSiteYear = z
   .object({ siteYear: z.string(), reason: z.string() })
   .meta({ id: "UncomputedSiteYear" });
 
-export const uploadBrief = z
+const uploadBrief = z
   .object({
     id: z.string(),
     resource: resourceName,
@@ -100,7 +100,7 @@ export const uploadBrief = z
   })
   .meta({ id: "UploadBrief" });
 
-export const reportBrief = z
+const reportBrief = z
   .object({
     id: z.string(),
     resource: resourceName,
@@ -112,7 +112,7 @@ export const reportBrief = z
   })
   .meta({ id: "ValidationReportBrief" });
 
-export const doiRegistration = z
+const doiRegistration = z
   .object({
     status: z.enum(doiStatuses).describe(
       "none: nothing to register (no DOI service); pending: waiting for the service (first registration or a metadata update); " +
@@ -179,8 +179,8 @@ export const versionPatch = z
   .strict()
   .meta({ id: "VersionPatch" });
 
-export const severity = z.enum(["error", "warning"]);
-export const validationProblem = z
+const severity = z.enum(["error", "warning"]);
+const validationProblem = z
   .object({
     severity,
     file: z.string(),
@@ -219,7 +219,7 @@ export const reportQuery = z
   })
   .strict();
 
-export const uploadUnits = z
+const uploadUnits = z
   .object({
     yield: z.enum(["kg/ha", "bu/ac", "lb/ac"]).default("kg/ha").describe("Unit of yields in plots and summaries (MSE in its square)"),
     yieldMoisture: z
@@ -282,7 +282,6 @@ export const uploadRejection = z
     ...uploadResult.omit({ errors: true, warnings: true }).shape,
   })
   .meta({ id: "UploadRejection" });
-export type UploadRejection = z.infer<typeof uploadRejection>;
 
 export const submitBody = z.object({ changelog: paragraph().trim().min(3).max(20_000) }).strict().meta({ id: "SubmitVersion" });
 export const returnBody = z.object({ comment: paragraph().trim().min(3).max(5000) }).strict().meta({ id: "ReturnVersion" });
@@ -291,10 +290,10 @@ export const withdrawBody = z.object({ reason: paragraph().trim().min(3).max(500
 export const editorsBody = z.object({ email: z.email("an e-mail address") }).strict().meta({ id: "DatasetEditor" });
 export const editorParams = z.object({ slug: line(), userId: z.uuid() });
 
-export const bump = z.enum(["major", "minor", "patch"]);
-export const siteYearChange = z.object({ siteYear: z.string(), fields: z.array(z.string()) });
-export const rowChange = z.object({ key: z.string(), change: z.enum(["added", "removed", "changed"]), fields: z.array(z.string()) });
-export const rowDiff = z.object({ added: z.number().int(), removed: z.number().int(), changed: z.number().int(), sample: z.array(rowChange) });
+const bump = z.enum(["major", "minor", "patch"]);
+const siteYearChange = z.object({ siteYear: z.string(), fields: z.array(z.string()) });
+const rowChange = z.object({ key: z.string(), change: z.enum(["added", "removed", "changed"]), fields: z.array(z.string()) });
+const rowDiff = z.object({ added: z.number().int(), removed: z.number().int(), changed: z.number().int(), sample: z.array(rowChange) });
 export const versionDiff = z
   .object({
     from: z.object({ id: z.string(), semver, state: versionState }),
@@ -315,7 +314,7 @@ export type VersionDiff = z.infer<typeof versionDiff>;
 
 export const diffQuery = z.object({ from: z.uuid(), to: z.uuid() }).strict();
 
-export const reviewQueueItem = z
+const reviewQueueItem = z
   .object({
     versionId: z.string(),
     datasetSlug: z.string(),

@@ -27,7 +27,6 @@ export const datasetSummary = z
 export type DatasetSummary = z.infer<typeof datasetSummary>;
 
 export const datasetList = z.object({ items: z.array(datasetSummary) }).meta({ id: "DatasetList" });
-export type DatasetList = z.infer<typeof datasetList>;
 
 export const health = z
   .object({

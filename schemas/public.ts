@@ -16,20 +16,20 @@ export type YieldUnit = (typeof yieldUnits)[number];
 // ---------------------------------------------------------------- query parameters
 
 /** Bushels per acre by default: the unit the trials' users plan in. Canonical storage is kg/ha at standard moisture. */
-export const unitsParam = z
+const unitsParam = z
   .enum(yieldUnits)
   .default("bu/ac")
   .describe("Unit of yields, responses, SEs and LSDs: bu/ac (default; crop test weight) or kg/ha. Both at the crop's standard moisture.");
-export const formatParam = z.enum(["json", "csv"]).optional().describe("csv streams every matching row (no paging); the same as `Accept: text/csv`");
-export const maxPageSize = 1000;
-export const limitParam = z.coerce
+const formatParam = z.enum(["json", "csv"]).optional().describe("csv streams every matching row (no paging); the same as `Accept: text/csv`");
+const maxPageSize = 1000;
+const limitParam = z.coerce
   .number()
   .int()
   .min(1)
   .max(maxPageSize)
   .default(100)
   .describe(`Rows per JSON page, 1–${maxPageSize} (default 100)`);
-export const pageTokenParam = line().min(1).max(400).optional().describe("Opaque token from the previous page's `nextPageToken` (or its Link rel=next)");
+const pageTokenParam = line().min(1).max(400).optional().describe("Opaque token from the previous page's `nextPageToken` (or its Link rel=next)");
 
 const pagingShape = { format: formatParam, limit: limitParam, pageToken: pageTokenParam };
 
@@ -92,14 +92,12 @@ export const versionSiteQuery = z.object(pagingShape).strict().meta({ id: "Versi
 /** Metadata endpoints take no parameters; anything sent is a mistake worth naming. */
 export const noQuery = z.object({}).strict();
 
-export type CrossDatasetYieldQuery = z.infer<typeof crossDatasetYieldQuery>;
-export type VersionYieldQuery = z.infer<typeof versionYieldQuery>;
 
 // ---------------------------------------------------------------- dataset and version metadata
 
-export const publicVersionState = z.enum(["published", "withdrawn"]).meta({ id: "PublicVersionState" });
+const publicVersionState = z.enum(["published", "withdrawn"]).meta({ id: "PublicVersionState" });
 
-export const versionSummary = z
+const versionSummary = z
   .object({
     semver: z.string(),
     state: publicVersionState,
@@ -115,7 +113,7 @@ export const versionSummary = z
   .meta({ id: "VersionSummary" });
 export type VersionSummary = z.infer<typeof versionSummary>;
 
-export const versionCounts = z
+const versionCounts = z
   .object({ sites: z.number().int(), siteYears: z.number().int(), treatments: z.number().int(), plots: z.number().int(), responses: z.number().int() })
   .meta({ id: "VersionCounts" });
 
@@ -165,7 +163,7 @@ export const siteRow = z
   })
   .meta({ id: "SiteRow" });
 
-export const soilTestRow = z
+const soilTestRow = z
   .object({
     analyte: z.string(),
     value: z.number(),
@@ -200,7 +198,7 @@ export const siteYearRow = z
   })
   .meta({ id: "SiteYearRow" });
 
-export const applicationRow = z
+const applicationRow = z
   .object({
     product: z.string(),
     grade: z.string(),
@@ -317,7 +315,7 @@ export type TreatmentRow = z.infer<typeof treatmentRow>;
 export type ObservationRow = z.infer<typeof observationRow>;
 export type ResponseRow = z.infer<typeof responseRow>;
 
-export const versionRef = z
+const versionRef = z
   .object({ dataset: z.string(), version: z.string(), licence: z.string() })
   .meta({ id: "VersionRef" });
 

@@ -6,7 +6,7 @@ import { soilTestClasses } from "./filters";
  * where their limits lie (or that the classes are only as reported), and which class of our ordinal scale
  * (very_low … very_high) each label stands for, so that filters and groups work across datasets.
  */
-export const sourceStatuses = ["as published", "from memory", "common practice, no source", "invented for the demo"] as const;
+const sourceStatuses = ["as published", "from memory", "common practice, no source", "invented for the demo"] as const;
 
 export const soilTestScheme = z
   .object({

@@ -9,7 +9,7 @@ import { soilTestScheme } from "./soil-test-schemes";
  */
 export const tableSchemaFieldType = z.enum(["string", "number", "integer", "boolean", "date", "year"]);
 
-export const tableSchemaField = z
+const tableSchemaField = z
   .object({
     name: line().min(1).max(64).regex(/^[a-z][a-zA-Z0-9_]*$/, "lower camelCase or snake_case, starting with a letter"),
     title: line().max(200).optional(),
@@ -34,7 +34,7 @@ export const tableSchemaField = z
   })
   .meta({ id: "TableSchemaField" });
 
-export const tableSchemaResource = z
+const tableSchemaResource = z
   .object({
     fields: z.array(tableSchemaField).min(1),
     primaryKey: z.array(line()).optional(),

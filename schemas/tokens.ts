@@ -3,10 +3,10 @@ import { tokenScopes } from "@/constants/vocabulary";
 
 import { line } from "./safe-text";
 
-export const tokenScope = z.enum(tokenScopes).meta({ id: "TokenScope" });
+const tokenScope = z.enum(tokenScopes).meta({ id: "TokenScope" });
 export type TokenScope = z.infer<typeof tokenScope>;
 
-export const maxTokenDays = 365;
+const maxTokenDays = 365;
 
 export const createTokenBody = z
   .object({
@@ -18,10 +18,10 @@ export const createTokenBody = z
   .meta({ id: "CreateToken" });
 export type CreateTokenBody = z.input<typeof createTokenBody>;
 
-export const tokenStatus = z.enum(["active", "expired", "revoked"]);
+const tokenStatus = z.enum(["active", "expired", "revoked"]);
 
 /** A token as its owner sees it later: never the secret, only its first characters. */
-export const apiToken = z
+const apiToken = z
   .object({
     id: z.string(),
     name: z.string(),
@@ -43,4 +43,3 @@ export const createdToken = z
 export type CreatedToken = z.infer<typeof createdToken>;
 
 export const tokenList = z.object({ items: z.array(apiToken) }).meta({ id: "ApiTokenList" });
-export type TokenList = z.infer<typeof tokenList>;

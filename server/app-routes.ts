@@ -2,7 +2,7 @@ import { readdirSync, statSync } from "node:fs";
 import path from "node:path";
 import { isTypedRoute, matchDynamicName, stripInvisibleSegmentsFromPath, removeSupportedExtensions } from "expo-router/build/matchers";
 
-export const appRoutesDir = path.resolve(__dirname, "../app");
+const appRoutesDir = path.resolve(__dirname, "../app");
 
 export interface AppRoute {
   /** The route file, relative to app/ and without its extension ("datasets/[slug]"). */

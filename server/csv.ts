@@ -12,7 +12,7 @@ import Papa from "papaparse";
  * numbers stay numbers, so a negative response is still -3.2. Where the guard changes a published cell the Data
  * Package says so on the field (see `guardedColumns`), and its hashes and sizes describe the guarded bytes served.
  */
-export const formulaStart = /^[=+\-@\t\r]/;
+const formulaStart = /^[=+\-@\t\r]/;
 export const formulaGuardNote =
   "Cells that begin with =, +, -, @, a tab or a carriage return are written with a leading apostrophe (') so that " +
   "spreadsheets read them as text, not as formulas; the stored value is the cell without that first apostrophe.";

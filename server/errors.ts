@@ -68,7 +68,7 @@ const statusTitles: Record<number, string> = {
   500: "Internal server error",
 };
 
-export function sendProblem(
+function sendProblem(
   res: Parameters<RequestHandler>[1],
   status: number,
   body: { title?: string; detail?: string; type?: string; instance?: string } & Record<string, unknown>,

@@ -10,7 +10,7 @@ export const webDistDir = path.resolve(__dirname, "../dist");
  * CSP source expressions ('sha256-…') for the inline scripts of a page: every <script> without src whose type is
  * JavaScript (none, text/javascript or module). Data blocks such as application/ld+json are not scripts to a browser.
  */
-export function inlineScriptHashes(html: string): string[] {
+function inlineScriptHashes(html: string): string[] {
   const hashes: string[] = [];
   for (const m of html.matchAll(/<script\b([^>]*)>([\s\S]*?)<\/script>/gi)) {
     const attributes = m[1] ?? "";

@@ -79,7 +79,7 @@ export function factorLevels(factor: FactorColumn): string[] {
   return [...new Set(factor.values)].sort(naturalOrder);
 }
 
-export function termLabel(term: readonly string[]): string {
+function termLabel(term: readonly string[]): string {
   return term.join(":");
 }
 

@@ -4,7 +4,7 @@ import { ApiError } from "@/lib/api-error";
 /** Field path → first message, e.g. "contributors.0.orcid" → "an ORCID iD looks like …". */
 export type FieldIssues = Record<string, string>;
 
-export const issuePath = (path: readonly PropertyKey[]) => path.map(String).join(".");
+const issuePath = (path: readonly PropertyKey[]) => path.map(String).join(".");
 
 /** The shared schema's issues, keyed by the path the form uses for each input. */
 export function zodFieldIssues(error: z.ZodError): FieldIssues {

@@ -12,7 +12,7 @@ import { saveTextFile } from "./save-text-file";
 
 /** One stored validation report: the verdict, the counts, then every problem. */
 /** "plots-2024.csv" → "plots-2024-report.csv". */
-export const reportFilename = (file: string) => `${file.replace(/\.[^.]+$/, "") || "upload"}-report.csv`;
+const reportFilename = (file: string) => `${file.replace(/\.[^.]+$/, "") || "upload"}-report.csv`;
 
 export function ReportView({ versionId, reportId }: { versionId: string; reportId: string }) {
   const report = useReport(versionId, reportId);

@@ -21,7 +21,7 @@ function List({ title, items, tone }: { title: string; items: string[]; tone: "a
   );
 }
 
-export function DiffSummary({ diff }: { diff: VersionDiff }) {
+function DiffSummary({ diff }: { diff: VersionDiff }) {
   const rowEntries = Object.entries(diff.rows) as [ResourceName, VersionDiff["rows"][ResourceName]][];
   const changedRows = rowEntries.filter(([, r]) => r && (r.added || r.removed || r.changed));
   const nothing = !diff.siteYears.added.length && !diff.siteYears.removed.length && !diff.siteYears.changed.length && !changedRows.length

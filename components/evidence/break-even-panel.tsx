@@ -51,7 +51,7 @@ function MoneyField({ label, unit, value, onValue, testID }: { label: string; un
 }
 
 /** Why the two numbers differ, in one sentence (shown beside them). */
-export const chanceExplanation =
+const chanceExplanation =
   "The chance is read from the random-effects predictive distribution of a new site-year (the pooled mean, how sure we are of it, " +
   "and the true spread between site-years, t with k − 2 df); the observed share just counts these trials' site-years, whose " +
   "responses also carry each trial's own plot noise, so the two differ most with few site-years, noisy trials or a break-even near the mean.";

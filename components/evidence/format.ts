@@ -1,6 +1,6 @@
 /** Number formatting for the Evidence screen: responses in their units, intervals, probabilities and p values. */
 
-export function decimalsFor(units: string): number {
+function decimalsFor(units: string): number {
   if (units === "kg/ha") return 0;
   if (units === "ln(treated/check)") return 3;
   return 1;

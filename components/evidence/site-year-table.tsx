@@ -26,7 +26,7 @@ const minTreatmentWidth = 280;
 const tableMinWidth = Object.values(widths).reduce((a, b) => a + b, 0) + minTreatmentWidth;
 
 /** One line per treatment (several share the site-year's check when they were combined). */
-export const treatmentText = (r: ForestRow) => (r.treatmentLabels.length ? r.treatmentLabels : r.treatments).join("\n");
+const treatmentText = (r: ForestRow) => (r.treatmentLabels.length ? r.treatmentLabels : r.treatments).join("\n");
 const soilText = (r: ForestRow) =>
   r.soilTestClass === null && r.soilTestValue === null
     ? "–"

@@ -12,7 +12,7 @@ import { pricedDecision } from "@/stats/decision";
 import { formatInterval, formatPercent, formatResponse, levelLabel, unitLabel } from "./format";
 import { groupStyles, type GroupStyle } from "./group-style";
 
-export const groupingLabels: Record<Grouping, string> = {
+const groupingLabels: Record<Grouping, string> = {
   soilTestClass: "Soil-test class",
   placement: "Placement",
   nutrient: "Nutrient",
@@ -25,7 +25,7 @@ export const groupingLabels: Record<Grouping, string> = {
 export const levelLabels: Record<string, string> = { ...soilTestClassLabels, ...placementLabels };
 
 /** A level's marker, drawn as in the forest plot (the same colour and shape), for legends and lists. */
-export function GroupMarker({ style, level, size = 16 }: { style: GroupStyle; level: string; size?: number }) {
+function GroupMarker({ style, level, size = 16 }: { style: GroupStyle; level: string; size?: number }) {
   return (
     <View testID={`group-marker-${level}`} aria-hidden>
       <Svg width={size} height={size}>

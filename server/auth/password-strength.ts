@@ -2,12 +2,12 @@ import { ZxcvbnFactory, type ZxcvbnResult } from "@zxcvbn-ts/core";
 import * as common from "@zxcvbn-ts/language-common";
 import * as english from "@zxcvbn-ts/language-en";
 
-export const minimumPasswordLength = 12;
+const minimumPasswordLength = 12;
 /**
  * zxcvbn's scale runs 0–4; 3 means at least about 10^8 guesses, "modest protection from offline attacks: safely
  * unguessable, assuming a salted, slow hash function like ... scrypt" (zxcvbn-ts core, src/TimeEstimates.ts, guessesToScore).
  */
-export const minimumPasswordScore = 3;
+const minimumPasswordScore = 3;
 
 let estimator: ZxcvbnFactory | undefined;
 

@@ -3,7 +3,7 @@
  * Both the client and the local fake use these types, and the fake checks the mandatory properties with
  * `missingMandatoryProperties`, the way the real service refuses to make a DOI findable without them.
  */
-export interface DataCiteNameIdentifier {
+interface DataCiteNameIdentifier {
   nameIdentifier: string;
   nameIdentifierScheme: string;
   schemeUri?: string;
@@ -18,7 +18,7 @@ export interface DataCiteCreator {
   affiliation?: { name: string }[];
 }
 
-export type DataCiteRelationType = "IsNewVersionOf" | "IsPreviousVersionOf" | "HasVersion" | "IsVersionOf";
+type DataCiteRelationType = "IsNewVersionOf" | "IsPreviousVersionOf" | "HasVersion" | "IsVersionOf";
 
 export interface DataCiteRelatedIdentifier {
   relatedIdentifier: string;
@@ -90,14 +90,14 @@ export function missingMandatoryProperties(a: DataCiteAttributes): DataCiteError
  * DataCite Metadata Schema 4.6's controlled list for resourceTypeGeneral (from memory of the schema documentation;
  * 4.5 added Instrument and StudyRegistration, 4.6 Award and Project).
  */
-export const resourceTypesGeneral = [
+const resourceTypesGeneral = [
   "Audiovisual", "Award", "Book", "BookChapter", "Collection", "ComputationalNotebook", "ConferencePaper", "ConferenceProceeding",
   "DataPaper", "Dataset", "Dissertation", "Event", "Image", "Instrument", "InteractiveResource", "Journal", "JournalArticle", "Model",
   "OutputManagementPlan", "PeerReview", "PhysicalObject", "Preprint", "Project", "Report", "Service", "Software", "Sound", "Standard",
   "StudyRegistration", "Text", "Workflow", "Other",
 ] as const;
 
-export const creatorNameTypes = ["Personal", "Organizational"] as const;
+const creatorNameTypes = ["Personal", "Organizational"] as const;
 
 /**
  * Values outside the schema's controlled lists, which the service refuses when it validates a registered or findable

@@ -4,7 +4,7 @@ import { outbox } from "@/db/schema";
 import { sendsMailBySmtp } from "@/server/config";
 import type { AppContext } from "@/server/context";
 
-export interface MailMessage {
+interface MailMessage {
   /** What the message is for (verification, reset, invitation, …); the outbox screen groups by it. */
   kind: string;
   to: string;
@@ -29,7 +29,7 @@ export interface Mailer {
 /** Bounds on one SMTP conversation: a server that accepts and then says nothing is given up on, not waited for. */
 const smtpTimeouts = { connectionTimeout: 10_000, greetingTimeout: 10_000, socketTimeout: 30_000 };
 
-export const redactLinkTokens = (body: string) => body.replace(/([?&](?:amp;)?token=)[^\s&"<]+/g, "$1[redacted]");
+const redactLinkTokens = (body: string) => body.replace(/([?&](?:amp;)?token=)[^\s&"<]+/g, "$1[redacted]");
 
 const mailers = new WeakMap<AppContext, Mailer>();
 

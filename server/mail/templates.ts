@@ -12,7 +12,7 @@ const escapeHtml = (value: string) =>
   value.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 
 /** Screen paths the messages link to; the web app routes them. */
-export const mailPaths = {
+const mailPaths = {
   verify: (token: string) => `/verify?token=${encodeURIComponent(token)}`,
   reset: (token: string) => `/reset-password?token=${encodeURIComponent(token)}`,
   invite: (token: string) => `/invite?token=${encodeURIComponent(token)}`,

@@ -1,6 +1,5 @@
 import { spawnSync } from "node:child_process";
 import { existsSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
-import { PGlite } from "@electric-sql/pglite";
 import { openDatabase } from "@/db/client";
 
 /**
@@ -42,4 +41,3 @@ export async function restore(options: { dataDir?: string; url?: string; file: s
   await database.close();
 }
 
-export type { PGlite };

@@ -7,14 +7,14 @@ import { problemResponses, type Registry } from "./registry";
 import { securityOf } from "./security";
 
 /** Every API path starts here; the routers are mounted at it. */
-export const apiBase = "/api/v1";
+const apiBase = "/api/v1";
 
 type Method = "get" | "post" | "put" | "patch" | "delete";
 export type Responses = Record<number, ResponseConfig>;
 type Infer<T> = T extends z.ZodType ? z.output<T> : undefined;
 
 /** The request as parsed: handlers take these and never read req.params, req.query or req.body themselves. */
-export interface ParsedRequest<P, Q, B> {
+interface ParsedRequest<P, Q, B> {
   params: Infer<P>;
   query: Infer<Q>;
   body: Infer<B>;
@@ -67,7 +67,7 @@ function withRateLimitHeaders(responses: Responses): Responses {
 }
 
 /** `/api/v1/datasets/{slug}/resources/{resource}.csv` → `/datasets/:slug/resources/:resource.csv` */
-export const expressPath = (openApiPath: string) => openApiPath.slice(apiBase.length).replace(/\{(\w+)\}/g, ":$1");
+const expressPath = (openApiPath: string) => openApiPath.slice(apiBase.length).replace(/\{(\w+)\}/g, ":$1");
 
 /**
  * One API operation, written once: its OpenAPI description (path, operationId, security from its guards, request

@@ -11,7 +11,7 @@ export const sessionOnly: SecurityRequirement[] = [{ sessionCookie: [] }];
  * Anyone. The empty requirement says credentials are optional; a session or token, when sent, is still checked (a
  * revoked token is a 401) and moves the caller to the higher per-client rate limit.
  */
-export const optionalCredentials: SecurityRequirement[] = [{}, { sessionCookie: [] }, { bearerToken: [] }];
+const optionalCredentials: SecurityRequirement[] = [{}, { sessionCookie: [] }, { bearerToken: [] }];
 
 const admitted = new WeakMap<RequestHandler, SecurityRequirement[]>();
 

@@ -6,7 +6,7 @@ import type { Caution, CautionCode } from "@/schemas/analysis";
  * the upload report against a draft's treatments, so the same rules speak in both places.
  */
 
-export interface CautionApplication {
+interface CautionApplication {
   placement: string;
   nLbAc: number;
   k2oLbAc: number;
@@ -35,8 +35,8 @@ const sum = (apps: CautionApplication[], pick: (a: CautionApplication) => number
 const inFurrow = (t: CautionTreatment) => t.applications.filter((a) => a.placement === "in-furrow");
 
 /** N + K2O in a 2x2 band at 30-in rows (common practice, no source); other spacings keep the amount per foot of row. */
-export const bandNK2oLimitAt30In = 90;
-export const bandLimitAt = (rowSpacingIn: number | null) => (bandNK2oLimitAt30In * 30) / (rowSpacingIn ?? 30);
+const bandNK2oLimitAt30In = 90;
+const bandLimitAt = (rowSpacingIn: number | null) => (bandNK2oLimitAt30In * 30) / (rowSpacingIn ?? 30);
 
 /** Crops more sensitive to fertilizer salt near the seed than corn (common practice, no source). */
 const saltSensitiveCrops = new Set(["soybean"]);

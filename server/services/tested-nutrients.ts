@@ -19,7 +19,7 @@ export type Nutrient = (typeof nutrients)[number];
 export type Analyte = "P" | "K" | "S";
 
 /** Below this share of the largest nutrient's rate a nutrient is carried, not tested (common practice, no source). */
-export const carrierShare = 0.5;
+const carrierShare = 0.5;
 
 /** Nutrient → the rate column that measures it, in label units. */
 const rateOf = { N: "nLbAc", P: "p2o5LbAc", K: "k2oLbAc", S: "sLbAc" } as const;
@@ -33,12 +33,12 @@ export interface NutrientRates {
 }
 
 /** The rule in one sentence, as the API's provenance and the README state it. */
-export const testedNutrientRule =
+const testedNutrientRule =
   `A response tests the nutrients its treatment adds over its check, leaving out a carrier amount: a nutrient added at less than ` +
   `${carrierShare * 100} % of the treatment's largest nutrient rate (lb/ac of N, P2O5, K2O, S), such as the N in MAP or 10-34-0 ` +
   `(a threshold of common practice, no source). A curator's stated tested nutrients replace the derived ones.`;
 
-export const suppliedNutrientRule = "nutrientSupplied= keeps treatments that supply any amount of the nutrient, carriers included (the N in MAP counts).";
+const suppliedNutrientRule = "nutrientSupplied= keeps treatments that supply any amount of the nutrient, carriers included (the N in MAP counts).";
 
 /** The nutrients a treatment's own rates test, in N, P, K, S order. */
 export function derivedTestedNutrients(rates: NutrientRates): Nutrient[] {

@@ -8,11 +8,11 @@ import { signedInAgent } from "@/tests/support/sign-in";
 export type Agent = ReturnType<typeof request.agent>;
 
 export const sitesCsv = "site,location,soil_series,soil_texture\nTB-01,Wren County,Harlan,silt loam\nTB-02,Osage Bend County,Marrow,clay loam\n";
-export const siteYearsCsv =
+const siteYearsCsv =
   "site_year,site,crop,year,design,blocks,tillage,previous_crop,planting_date,row_spacing_in\n" +
   "TB-01-2021,TB-01,soybean,2021,RCBD,4,no-till,corn,2021-05-12,30\n" +
   "TB-02-2021,TB-02,soybean,2021,RCBD,4,conventional,corn,2021-05-20,30\n";
-export const soilTestsCsv =
+const soilTestsCsv =
   "site_year,analyte,value,unit,extractant,depth_in,class,interpretation\n" +
   "TB-01-2021,P,7,ppm,Bray-P1,6,low,tallgrass-illustrative\n" +
   "TB-02-2021,P,24,ppm,Bray-P1,6,very_high,tallgrass-illustrative\n";

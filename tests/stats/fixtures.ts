@@ -40,7 +40,7 @@ export function numericColumn(rows: Record<string, string>[], column: string): n
   });
 }
 
-export function relativeError(actual: number, expected: number): number {
+function relativeError(actual: number, expected: number): number {
   if (expected === 0) return Math.abs(actual);
   return Math.abs(actual - expected) / Math.abs(expected);
 }

@@ -7,7 +7,7 @@ import type { MetaRegressionResult } from "@/stats/meta/meta-regression";
 import type { TauSquaredMethod } from "@/stats/meta/types";
 import { CLOSED_FORM, ITERATIVE, expectClose } from "@/tests/stats/fixtures";
 
-export const iterativeMethods: readonly TauSquaredMethod[] = ["REML", "ML", "PM", "EB"];
+const iterativeMethods: readonly TauSquaredMethod[] = ["REML", "ML", "PM", "EB"];
 
 export function toleranceFor(method: string): number {
   return iterativeMethods.includes(method as TauSquaredMethod) ? ITERATIVE : CLOSED_FORM;
@@ -20,7 +20,7 @@ export function parseModelKey(key: string): { method: TauSquaredMethod; ci: "wal
 }
 
 /** metafor's uniroot tolerance in confint() (.Machine$double.eps^0.25), absolute on τ². */
-export const METAFOR_CONFINT_TOLERANCE = 2 ** -13;
+const METAFOR_CONFINT_TOLERANCE = 2 ** -13;
 
 export function expectModelMatches(result: MetaAnalysisResult, expected: any, label: string): void {
   const tolerance = toleranceFor(expected.method);
@@ -81,7 +81,7 @@ export function expectHeterogeneityIntervalMatches(result: MetaAnalysisResult, e
   expectClose(interval.tau2.estimate, expected.tau2.estimate, toleranceFor(result.method), `${label} tau2 estimate`);
 }
 
-export function expectCoefficientMatches(actual: MetaRegressionResult["coefficients"][number] | undefined, expected: any, tolerance: number, label: string) {
+function expectCoefficientMatches(actual: MetaRegressionResult["coefficients"][number] | undefined, expected: any, tolerance: number, label: string) {
   expect(actual, `${label} coefficient`).toBeDefined();
   expectClose(actual?.estimate, expected.estimate, tolerance, `${label} estimate`);
   expectClose(actual?.se, expected.se, tolerance, `${label} se`);

@@ -7,7 +7,7 @@ import { runPublishHooks } from "@/server/services/publish-hooks";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
 import { makeUser } from "./test-app";
 
-export const fixtureContributors: Contributor[] = [
+const fixtureContributors: Contributor[] = [
   { name: "Marta Quillon", role: "project_leader", orcid: "0000-0002-1825-0097", affiliation: "Tallgrass Basin Agronomy Network" },
   { name: "Tallgrass Basin Agronomy Network", role: "creator" },
   { name: "Basin Soil Fund", role: "funder" },

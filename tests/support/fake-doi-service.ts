@@ -1,7 +1,7 @@
 import type { AppConfig } from "@/server/config";
 import { createFakeDataCite, type FakeDataCite } from "@/server/doi/fake-datacite";
 
-export const fakeDoiCredentials = { user: "PLOTBANK.TEST", password: "fake-secret" };
+const fakeDoiCredentials = { user: "PLOTBANK.TEST", password: "fake-secret" };
 export const fakeDoiPrefix = "10.80555";
 
 /** The local DataCite fake on a loopback port, and the app configuration that points at it (or at `url`). */

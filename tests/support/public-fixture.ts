@@ -135,7 +135,7 @@ const cornTreatments: TreatmentSpec[] = [
   },
 ];
 
-export const fixtureVersions: VersionSpec[] = [
+const fixtureVersions: VersionSpec[] = [
   { slug: "tb-soy-starter-p", semver: "0.9.0", crop: "soybean", years: [2020], sites: soySites.slice(0, 1), treatments: soyTreatments, baseKgHa: 3800, withdraw: "A plot key error swapped two blocks at TB-01.", seed: 9 },
   { slug: "tb-soy-starter-p", semver: "1.0.0", crop: "soybean", years: [2020, 2021, 2022], sites: soySites.slice(0, 2), treatments: soyTreatments, baseKgHa: 3800, seed: 10 },
   { slug: "tb-soy-starter-p", semver: "1.1.0", crop: "soybean", years: [2020, 2021, 2022], sites: soySites, treatments: soyTreatments, baseKgHa: 3800, seed: 11 },

@@ -19,7 +19,7 @@ const cachingHeaders = {
 };
 
 /** A withdrawn version's rows: the problem carries `withdrawnReason`. */
-export const goneResponse = {
+const goneResponse = {
   410: { description: "The version was withdrawn; its metadata stays, its rows are not served", content: problemResponses(410)[410]!.content },
 };
 

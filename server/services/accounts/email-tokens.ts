@@ -7,7 +7,7 @@ import { HttpProblem } from "@/server/errors";
 
 export type EmailTokenPurpose = "verify" | "reset" | "invite";
 
-export const emailTokenLifetimeMs: Record<EmailTokenPurpose, number> = {
+const emailTokenLifetimeMs: Record<EmailTokenPurpose, number> = {
   verify: 48 * 60 * 60 * 1000,
   reset: 60 * 60 * 1000,
   invite: 7 * 24 * 60 * 60 * 1000,

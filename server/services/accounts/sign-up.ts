@@ -22,7 +22,7 @@ export function refuseWeakPassword(password: string, email?: string, field = "bo
   if (weakness) throw badRequest("Choose a stronger password.", [{ field, message: weakness }]);
 }
 
-export async function sendVerification(ctx: AppContext, user: { id: string; email: string; displayName: string }) {
+async function sendVerification(ctx: AppContext, user: { id: string; email: string; displayName: string }) {
   const { secret } = await issueEmailToken(ctx.db, { purpose: "verify", email: user.email, userId: user.id });
   const mail = templates.verification({ publicUrl: ctx.config.publicUrl, displayName: user.displayName, token: secret });
   await createMailer(ctx).send({ kind: "verification", to: user.email, ...mail, meta: { userId: user.id } });

@@ -6,7 +6,7 @@ import type { Contrast, EstimationContrast } from "./load-contrasts";
 type SoilTestFields = Partial<Pick<Contrast, "testedNutrientsStated" | "nLbAc" | "p2o5LbAc" | "k2oLbAc" | "sLbAc">> & SoilTestsByAnalyte;
 
 /** The nutrients a contrast tests (the one rule in tested-nutrients.ts); rates missing from a partial row count as 0. */
-export function contrastTestedNutrients(row: SoilTestFields) {
+function contrastTestedNutrients(row: SoilTestFields) {
   return testedNutrients({ testedNutrientsStated: row.testedNutrientsStated ?? null, nLbAc: row.nLbAc ?? 0, p2o5LbAc: row.p2o5LbAc ?? 0, k2oLbAc: row.k2oLbAc ?? 0, sLbAc: row.sLbAc ?? 0 });
 }
 
@@ -22,7 +22,7 @@ export function relevantSoilTest(row: SoilTestFields, filters: Partial<Pick<Tria
  * Planting windows by calendar day: early before 10 May, normal 10–31 May, late from 1 June. A temperate-region
  * convention (common practice, no source); local windows differ.
  */
-export function plantingWindow(plantingDate: string | null): string {
+function plantingWindow(plantingDate: string | null): string {
   if (!plantingDate) return "not recorded";
   const monthDay = plantingDate.slice(5, 10);
   if (monthDay < "05-10") return "early";
@@ -30,7 +30,7 @@ export function plantingWindow(plantingDate: string | null): string {
   return "late";
 }
 
-export const notRecorded = "not recorded";
+const notRecorded = "not recorded";
 
 /** The level of a contrast under a grouping; treatments with several placements or nutrients form their own level. */
 export function groupLevel(row: EstimationContrast, by: Grouping, filters: TrialFilters, datasetSlug: string): string {

@@ -33,7 +33,7 @@ import { describeBetweenGroupTest, combinationNote, describeHeterogeneity, sampl
 
 type Result = MetaAnalysisResponse;
 
-export function splitQuery(query: MetaQuery): { filters: TrialFilters; options: Omit<MetaQuery, keyof TrialFilters> } {
+function splitQuery(query: MetaQuery): { filters: TrialFilters; options: Omit<MetaQuery, keyof TrialFilters> } {
   const filters: Record<string, unknown> = {};
   const options: Record<string, unknown> = {};
   for (const [key, value] of Object.entries(query)) (key in trialFilterShape ? filters : options)[key] = value;
@@ -53,9 +53,9 @@ export async function runMetaAnalysis(db: Db, query: MetaQuery): Promise<Result>
 }
 
 /** Reads the labels (codes, year, soil tests) of the responses an answer names. */
-export type LabelReader = (rows: EstimationContrast[]) => Promise<Map<number, Contrast>>;
+type LabelReader = (rows: EstimationContrast[]) => Promise<Map<number, Contrast>>;
 
-export async function analyseContrasts(
+async function analyseContrasts(
   rows: EstimationContrast[],
   versions: ResolvedVersion[],
   filters: TrialFilters,

@@ -33,14 +33,14 @@ export interface ExcludedContrast {
 }
 
 /** kg/ha → the requested units for one crop (bu/ac with the crop's own bushel weight). */
-export function yieldFactor(crop: string, units: YieldUnit): number | null {
+function yieldFactor(crop: string, units: YieldUnit): number | null {
   if (units === "kg/ha") return 1;
   const standard = cropStandards[crop as StandardCrop];
   return standard ? 1 / kilogramsPerHectarePerBushelPerAcre(standard.poundsPerBushel) : null;
 }
 
 /** A contrast's effect in the requested scale, or why it cannot enter. */
-export function contrastEffect(row: EstimationContrast, effect: EffectMeasure, units: YieldUnit): SiteYearEffect | { reason: string } {
+function contrastEffect(row: EstimationContrast, effect: EffectMeasure, units: YieldUnit): SiteYearEffect | { reason: string } {
   if (!(Number.isFinite(row.seKgHa) && row.seKgHa > 0)) {
     return { reason: "No within-site-year error: the SE of the response is 0 or missing, so the site-year cannot be weighted." };
   }
@@ -60,7 +60,7 @@ export function contrastEffect(row: EstimationContrast, effect: EffectMeasure, u
  * the covariance MSE/r that the shared check induces (Borenstein et al. 2009, ch. 24). MSE/r is recovered as SE²/2,
  * exact for a balanced RCBD; for unbalanced site-years the smallest contrast's SE²/2 is used, a close approximation.
  */
-export function combineUnit(contrasts: EstimationContrast[], effects: SiteYearEffect[], effect: EffectMeasure, units: YieldUnit): SiteYearEffect {
+function combineUnit(contrasts: EstimationContrast[], effects: SiteYearEffect[], effect: EffectMeasure, units: YieldUnit): SiteYearEffect {
   if (effects.length === 1) return effects[0]!;
   const sems = contrasts.map((c) => c.seKgHa ** 2 / 2);
   const first = contrasts[0]!;

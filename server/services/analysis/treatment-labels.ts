@@ -19,7 +19,7 @@ const pounds = (value: number) => (value >= 10 ? value.toFixed(0) : Number(value
  * One application in words, e.g. "MAP 11-52-0, 52 lb P2O5 + 11 lb N/ac, 2x2 band": product and grade, the nutrients
  * it supplies (largest first, labels in oxides as the trade writes them) and its placement.
  */
-export function applicationLabel(a: Omit<Application, "treatmentId">): string {
+function applicationLabel(a: Omit<Application, "treatmentId">): string {
   const product = a.product.includes(a.grade) ? a.product : `${a.product} ${a.grade}`;
   const rates = nutrientNames
     .map(([key, name]) => ({ name, value: a[key] }))

@@ -69,13 +69,13 @@ const snapshot = z
   .partial();
 
 /** Deterministic, readable DOI names: the dataset's concept DOI and one per version. */
-export const conceptDoiName = (prefix: string, slug: string) => `${prefix}/plotbank.${slug}`.toLowerCase();
+const conceptDoiName = (prefix: string, slug: string) => `${prefix}/plotbank.${slug}`.toLowerCase();
 export const versionDoiName = (prefix: string, slug: string, semver: string) => `${prefix}/plotbank.${slug}.v${semver}`.toLowerCase();
 
 export const datasetLandingUrl = (config: AppConfig, slug: string) => `${config.publicUrl}/datasets/${encodeURIComponent(slug)}`;
 export const versionLandingUrl = (config: AppConfig, slug: string, semver: string) =>
   `${datasetLandingUrl(config, slug)}?version=${encodeURIComponent(semver)}`;
-export const versionApiUrl = (config: AppConfig, slug: string, semver: string) =>
+const versionApiUrl = (config: AppConfig, slug: string, semver: string) =>
   `${config.publicUrl}/api/v1/datasets/${encodeURIComponent(slug)}/versions/${encodeURIComponent(semver)}`;
 
 type DatasetRow = typeof datasets.$inferSelect;

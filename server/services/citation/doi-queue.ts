@@ -23,7 +23,7 @@ function workerOf(ctx: AppContext): Worker {
 }
 
 /** Start a background pass now, or one more after the pass that is running. */
-export function kickDoiQueue(ctx: AppContext): void {
+function kickDoiQueue(ctx: AppContext): void {
   if (!ctx.config.datacite.url) return;
   const w = workerOf(ctx);
   if (w.pass) {

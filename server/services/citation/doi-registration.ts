@@ -6,7 +6,7 @@ import type { DataCiteAttributes } from "@/server/doi/datacite-metadata";
 import { loadCitableDatasetOfVersion, neighbours } from "./citable-version";
 import { conceptDoiAttributes, versionDoiAttributes, withRegisteredDoi } from "./datacite-payload";
 
-export type DoiOutcome = "registered" | "pending" | "failed" | "skipped";
+type DoiOutcome = "registered" | "pending" | "failed" | "skipped";
 
 /** Waits between attempts: 30 s, 1, 2, 4 … minutes, never more than an hour. */
 export function retryDelayMs(attempts: number): number {
@@ -35,7 +35,7 @@ async function upsertDoi(client: DataCiteClient, attributes: DataCiteAttributes)
  * version stays published with doi_status pending (the service was unreachable or refused for now) or failed
  * (it rejected the metadata itself), and the error is kept for curators to read.
  */
-export async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<DoiOutcome> {
+async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<DoiOutcome> {
   const client = clientOf(ctx);
   if (!client) return "skipped";
   const dataset = await loadCitableDatasetOfVersion(ctx.db, ctx.config, versionId);

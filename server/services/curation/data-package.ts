@@ -27,7 +27,7 @@ export async function publishedVersion(db: Db, slug: string, semver: string): Pr
   return { dataset, version };
 }
 
-export function resourceSchema(version: Version, resource: ResourceName): TableSchemaResource {
+function resourceSchema(version: Version, resource: ResourceName): TableSchemaResource {
   const r = version.tableSchema.resources[resource]!;
   const keep = new Set(fieldsOf(version.tableSchema, resource));
   return { ...r, fields: r.fields.filter((f) => keep.has(f.name)) };

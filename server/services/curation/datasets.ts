@@ -10,7 +10,7 @@ import { assertCanEdit, canEditDataset, type Dataset, type User } from "./access
 
 export const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
-export function versionBrief(v: typeof versions.$inferSelect): VersionBrief {
+function versionBrief(v: typeof versions.$inferSelect): VersionBrief {
   return {
     id: v.id,
     semver: v.semver,

@@ -16,7 +16,7 @@ import { bumpSemver, diffVersions } from "./diff";
 import { checkTableSchemaEdit } from "./table-schema-rules";
 import { doiRegistrationOf } from "./version-doi";
 
-export async function latestPublished(db: Db, datasetId: string): Promise<Version | null> {
+async function latestPublished(db: Db, datasetId: string): Promise<Version | null> {
   const rows = await db.select().from(versions).where(and(eq(versions.datasetId, datasetId), eq(versions.state, "published")));
   return latestPublishedOf(rows) ?? null;
 }
@@ -62,7 +62,7 @@ async function resourceCounts(db: Db, versionId: string): Promise<Record<Resourc
 }
 
 /** Site-years without responses, with the reason, as the ingest found it. */
-export async function uncomputedSiteYears(db: Db, versionId: string) {
+async function uncomputedSiteYears(db: Db, versionId: string) {
   const [all, withResponses] = await Promise.all([
     db.select({ id: siteYears.id, code: siteYears.code }).from(siteYears).where(eq(siteYears.versionId, versionId)),
     db.selectDistinct({ id: responses.siteYearId }).from(responses).where(eq(responses.versionId, versionId)),
@@ -151,7 +151,7 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
   };
 }
 
-export async function assertDraft(v: Version) {
+async function assertDraft(v: Version) {
   if (v.state !== "draft") throw conflict(`Version ${v.semver} is ${v.state.replace("_", " ")}; only a draft can change.`);
 }
 

@@ -2,7 +2,7 @@ import { eq, sql } from "drizzle-orm";
 import { sites, summaryMeans, plots, treatments } from "@/db/schema";
 import type { Tx } from "./write-rows";
 
-export interface SiteYearState {
+interface SiteYearState {
   id: number;
   siteId: number;
   blocks: number;

@@ -13,7 +13,7 @@ import {
 
 /** Conversions applied as a file comes in, so everything is stored in canonical units. */
 
-export function standardsOf(crop: string) {
+function standardsOf(crop: string) {
   return cropStandards[crop as StandardCrop] ?? null;
 }
 

@@ -17,7 +17,7 @@ const isoDate = /^(\d{4})-(\d{2})-(\d{2})$/;
  * Turns a Table Schema field into a cell parser: missing-value codes, type, then constraints (required, enum,
  * minimum/maximum, length, pattern). `decimalComma` accepts 4,5 for 4.5 in semicolon-delimited files.
  */
-export function compileField(field: TableSchemaField, missingValues: ReadonlySet<string>, decimalComma: boolean): CompiledField {
+function compileField(field: TableSchemaField, missingValues: ReadonlySet<string>, decimalComma: boolean): CompiledField {
   const c = field.constraints ?? {};
   const required = c.required === true;
   const allowed = c.enum ?? field.categories?.map((cat) => cat.value);

@@ -1,7 +1,7 @@
 import { responsesFromPlots, type SiteYearOutcome } from "./site-year-responses";
 
 /** One site-year's plots with a yield, in parallel lists, as the plots file gave them. */
-export interface SiteYearPlots {
+interface SiteYearPlots {
   siteYearId: number;
   treatmentIds: readonly number[];
   blocks: readonly number[];

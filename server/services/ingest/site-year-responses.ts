@@ -1,7 +1,7 @@
 import { fSurvival, logResponseRatioEffect, meanSeparation, rcbdAnova, treatmentVersusCheckContrasts } from "@/stats";
 
 /** One treatment's response against its site-year's check, as the responses table keeps it (kg/ha). */
-export interface TreatmentResponse {
+interface TreatmentResponse {
   treatmentId: number;
   checkTreatmentId: number;
   checkMean: number;

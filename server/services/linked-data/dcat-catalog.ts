@@ -10,7 +10,7 @@ type Node = Record<string, unknown>;
  * Inline context with full IRIs: a consumer (or a test) can expand the catalogue without fetching any remote
  * context document.
  */
-export const dcatContext = {
+const dcatContext = {
   dcat: "http://www.w3.org/ns/dcat#",
   dct: "http://purl.org/dc/terms/",
   foaf: "http://xmlns.com/foaf/0.1/",
