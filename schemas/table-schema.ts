@@ -31,6 +31,12 @@ export const tableSchemaField = z
   })
   .meta({ id: "TableSchemaField" });
 
+/**
+ * The resources of a version. These names are the one home of a resource's name: the upload path, the Data Package
+ * resource and its file, the foreign keys that point at it and the keys of the /schema answer all use them as they are.
+ */
+export const resourceName = z.enum(["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"]);
+
 export const tableSchemaResource = z
   .object({
     fields: z.array(tableSchemaField).min(1),
@@ -39,7 +45,7 @@ export const tableSchemaResource = z
       .array(
         z.object({
           fields: z.array(z.string()),
-          reference: z.object({ resource: z.string(), fields: z.array(z.string()) }),
+          reference: z.object({ resource: resourceName, fields: z.array(z.string()) }),
         }),
       )
       .optional(),
@@ -47,8 +53,6 @@ export const tableSchemaResource = z
     missingValues: z.array(z.object({ value: z.string(), label: z.string() })).optional(),
   })
   .meta({ id: "TableSchema" });
-
-export const resourceName = z.enum(["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"]);
 
 export const tableSchemaDescriptor = z
   .object({

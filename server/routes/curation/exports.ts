@@ -36,7 +36,7 @@ export function curationExportRoutes(ctx: AppContext): Router {
 
   registry.registerPath({
     method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.json", tags: ["Downloads"],
-    summary: "The Data Package descriptor of a published version (schemas, hashes, sizes)",
+    summary: "The Data Package descriptor of a published version (schemas, hashes, sizes); each resource's path is the absolute URL of its CSV, so the descriptor works from its own address",
     request: { params: versionParams },
     responses: { 200: { description: "datapackage.json", content: { "application/json": { schema: z.record(z.string(), z.unknown()) } } }, ...problemResponses(404) },
   });
@@ -45,7 +45,7 @@ export function curationExportRoutes(ctx: AppContext): Router {
     const { dataset, version } = await publishedVersion(db, slug, v);
     const built = [];
     for (const r of resourceOrder) built.push(await buildResource(db, version, r));
-    res.set("Cache-Control", v === "latest" ? "public, max-age=60" : immutable).json(dataPackageDescriptor(config.publicUrl, dataset, version, built));
+    res.set("Cache-Control", v === "latest" ? "public, max-age=60" : immutable).json(dataPackageDescriptor(config.publicUrl, dataset, version, built, { paths: "absolute" }));
   });
 
   registry.registerPath({

@@ -48,12 +48,36 @@ export async function buildResource(db: Db, version: Version, resource: Resource
   return { name: resource, csv, sha256: createHash("sha256").update(csv).digest("hex") };
 }
 
-/** datapackage.json (Frictionless Data Package v2, with the v1 profile names for older readers). */
-export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, version: Version, built: BuiltResource[]) {
+/**
+ * A resource's Table Schema as the package publishes it: Table Schema v2, written so Table Schema v1 readers accept it
+ * too. Missing values are plain strings (v1 knows no `{ value, label }` objects; v2 accepts both), and their labels
+ * go into the schema's description. `categories` (v2) is an extra property v1 readers skip.
+ */
+export function packageResourceSchema(version: Version, resource: ResourceName) {
+  const { missingValues, ...schema } = resourceSchema(version, resource);
+  return {
+    $schema: "https://datapackage.org/profiles/2.0/tableschema.json",
+    ...schema,
+    ...(missingValues
+      ? {
+          missingValues: missingValues.map((m) => m.value),
+          description: `Missing values: ${missingValues.map((m) => `"${m.value}" = ${m.label}`).join("; ")}.`,
+        }
+      : {}),
+  };
+}
+
+/**
+ * datapackage.json as Frictionless Data Package v2 (`$schema`), with the v1 `profile` names that v1 readers use to
+ * recognise a tabular package. Inside the zip the paths are relative (`data/sites.csv`); the descriptor served on its
+ * own (`paths: "absolute"`) names each file by the URL that serves it, so it works from its address.
+ */
+export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, version: Version, built: BuiltResource[], { paths = "relative" }: { paths?: "relative" | "absolute" } = {}) {
   const meta = (version.metadataSnapshot ?? {}) as Partial<Dataset>;
   const licence = meta.licence ?? dataset.licence;
   const known = licences[licence];
   const contributors = (meta.contributors ?? dataset.contributors) as Contributor[];
+  const keywords = (meta.keywords ?? dataset.keywords) as string[];
   const base = `${publicUrl}/api/v1/datasets/${dataset.slug}/versions/${version.semver}`;
   return {
     $schema: "https://datapackage.org/profiles/2.0/datapackage.json",
@@ -65,26 +89,31 @@ export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, versi
     version: version.semver,
     created: version.publishedAt?.toISOString(),
     homepage: `${publicUrl}/datasets/${dataset.slug}`,
-    keywords: meta.keywords ?? dataset.keywords,
+    // Both profiles want at least one keyword and one contributor when the property is there at all.
+    ...(keywords.length ? { keywords } : {}),
     licenses: [{ name: licence, ...(known ?? {}) }],
-    contributors: contributors.map((c) => ({
-      title: c.name,
-      roles: [c.role],
-      ...(c.orcid ? { path: `https://orcid.org/${c.orcid}` } : {}),
-      ...(c.affiliation ? { organization: c.affiliation } : {}),
-    })),
+    ...(contributors.length
+      ? {
+          contributors: contributors.map((c) => ({
+            title: c.name,
+            roles: [c.role],
+            ...(c.orcid ? { path: `https://orcid.org/${c.orcid}` } : {}),
+            ...(c.affiliation ? { organization: c.affiliation } : {}),
+          })),
+        }
+      : {}),
     plotbank: { checksum: version.checksum, changelog: version.changelog, units: "yields kg/ha at the crop's standard moisture; nutrient rates lb/ac of N, P2O5, K2O and S" },
     resources: built.map((r) => ({
-      name: r.name.replace("_", "-"),
+      name: r.name,
       type: "table",
       profile: "tabular-data-resource",
-      path: `data/${r.name}.csv`,
+      path: paths === "absolute" ? `${base}/resources/${r.name}.csv` : `data/${r.name}.csv`,
       format: "csv",
       mediatype: "text/csv",
       encoding: "utf-8",
       bytes: r.csv.length,
       hash: `sha256:${r.sha256}`,
-      schema: resourceSchema(version, r.name),
+      schema: packageResourceSchema(version, r.name),
     })),
   };
 }
