@@ -19,15 +19,29 @@ import Papa from "papaparse";
 const profileDir = path.join(__dirname, "../fixtures/frictionless");
 const loadProfile = (version: "1.0" | "2.0") => JSON.parse(readFileSync(path.join(profileDir, version, "datapackage.json"), "utf8")) as object;
 
-let validators: Record<"1.0" | "2.0", ReturnType<Ajv["compile"]>> | undefined;
+let validators: Record<"1.0" | "2.0" | "tableschema-2.0", ReturnType<Ajv["compile"]>> | undefined;
 function profileValidators() {
   if (!validators) {
     // The profiles carry documentation keywords (propertyOrder, context, examples as strings) that strict mode rejects.
     const ajv = new Ajv({ strict: false, allErrors: true });
     addFormats(ajv);
-    validators = { "1.0": ajv.compile(loadProfile("1.0")), "2.0": ajv.compile(loadProfile("2.0")) };
+    const tableSchema = JSON.parse(readFileSync(path.join(profileDir, "2.0", "tableschema.json"), "utf8")) as object;
+    validators = { "1.0": ajv.compile(loadProfile("1.0")), "2.0": ajv.compile(loadProfile("2.0")), "tableschema-2.0": ajv.compile(tableSchema) };
   }
   return validators;
+}
+
+/**
+ * A CSV answer against a Table Schema served on its own: the schema against the published Table Schema 2.0 profile,
+ * then the table (header, types, constraints, missing values) as checkDataPackage checks each resource.
+ */
+export function checkCsvAgainstTableSchema(name: string, schema: unknown, csv: string): string[] {
+  const problems: string[] = [];
+  const validate = profileValidators()["tableschema-2.0"];
+  if (!validate(schema)) for (const e of validate.errors ?? []) problems.push(`Table Schema 2.0 profile: ${e.instancePath || "/"} ${e.message ?? ""}`);
+  const resource = { name, path: "", bytes: 0, hash: "", schema: schema as PackageResource["schema"] };
+  problems.push(...checkTable(resource, csv).problems);
+  return problems;
 }
 
 export interface PackageField {
@@ -54,7 +68,8 @@ export interface PackageDescriptor {
 /** Every problem found, as "where: what"; an empty list means the package is valid. */
 export async function checkDataPackage(descriptor: unknown, readPath: (resourcePath: string) => Promise<Buffer>): Promise<string[]> {
   const problems: string[] = [];
-  for (const [version, validate] of Object.entries(profileValidators())) {
+  const { "1.0": v1, "2.0": v2 } = profileValidators();
+  for (const [version, validate] of Object.entries({ "1.0": v1, "2.0": v2 })) {
     if (!validate(descriptor)) {
       for (const e of validate.errors ?? []) problems.push(`profile ${version}: ${e.instancePath || "/"} ${e.message ?? ""} ${JSON.stringify(e.params)}`);
     }

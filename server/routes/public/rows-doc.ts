@@ -40,7 +40,7 @@ export function rowsRoute(o: { path: string; summary: string; description?: stri
       (o.description ? `${o.description}\n\n` : "") +
       "JSON pages of `limit` rows (cursor paging: follow `nextPageToken` or the Link rel=next header). " +
       "CSV (`format=csv` or `Accept: text/csv`) streams every matching row in one answer, with " +
-      '`Link: <…/schema>; rel="describedby"`; text cells that start with = + - @ are prefixed with \' so spreadsheets read them as text.',
+      '`Link: </api/v1/schemas/{view}>; rel="describedby"` (the Table Schema of the CSV\'s columns); text cells that start with = + - @ are prefixed with \' so spreadsheets read them as text.',
     request: { query: o.query, ...(o.params ? { params: o.params } : {}) },
     responses: {
       200: {

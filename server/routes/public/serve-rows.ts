@@ -6,7 +6,7 @@ import { cacheable, strongEtag, type Freshness } from "@/server/caching";
 import { streamCsv } from "@/server/csv";
 import { decodePageToken, encodePageToken, nextPageUrl, queryHash } from "@/server/paging";
 import type { RowResource, RowScope } from "@/server/services/public/row-resource";
-import { versionPath } from "@/server/services/public/versions";
+import { viewSchemaPath } from "@/server/services/public/view-schema";
 import type { ResolvedVersion } from "@/server/services/trial-filter";
 
 /** Rows read per database round trip while streaming CSV: large enough to be fast, small enough to stay flat in memory. */
@@ -66,9 +66,8 @@ export async function serveRows<Row extends { id: number }, F>(req: Request, res
   if (csv) {
     res.setHeader("Content-Type", "text/csv; charset=utf-8; header=present");
     res.setHeader("Content-Disposition", `inline; filename="${o.resource.name}.csv"`);
-    if (o.versions.length) {
-      res.setHeader("Link", o.versions.map((v) => `<${versionPath(v.datasetSlug, v.semver)}/schema>; rel="describedby"`).join(", "));
-    }
+    // The CSV's own columns are described by its view's Table Schema, not by the versions' resource schemas.
+    res.setHeader("Link", `<${viewSchemaPath(o.resource.name)}>; rel="describedby"; type="application/json"`);
     try {
       await streamCsv(res, o.resource.csvColumns, batchesOf(read));
     } catch (error) {
