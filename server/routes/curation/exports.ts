@@ -11,6 +11,8 @@ import { parseParams } from "@/server/validate";
 const versionParams = z.object({ slug: z.string().min(1).max(120), semver: z.union([semver, z.literal("latest")]) });
 const resourceParams = versionParams.extend({ resource: z.string().regex(/^[a-z_]+$/, "a resource name") });
 const immutable = "public, max-age=31536000, immutable";
+/** A withdrawn version's files are gone: a problem that names the reason. */
+const withdrawn = { 410: { description: "Withdrawn (tombstone): the problem gives the reason", content: problemResponses(410)[410]!.content } };
 
 export function curationExportRoutes(ctx: AppContext): Router {
   const { db, registry, config } = ctx;
@@ -21,7 +23,7 @@ export function curationExportRoutes(ctx: AppContext): Router {
     method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.zip", tags: ["Downloads"],
     summary: "A published version as a Frictionless Data Package (datapackage.json + one CSV per resource); `latest` works as semver",
     request: { params: versionParams },
-    responses: { 200: { description: "The zip", content: { "application/zip": { schema: z.string() } } }, 410: { description: "Withdrawn (tombstone)" }, ...problemResponses(404) },
+    responses: { 200: { description: "The zip", content: { "application/zip": { schema: z.string() } } }, ...withdrawn, ...problemResponses(404) },
   });
   router.get("/datasets/:slug/versions/:semver/datapackage.zip", async (req, res) => {
     const { slug, semver: v } = parseParams(versionParams, req);
@@ -38,7 +40,7 @@ export function curationExportRoutes(ctx: AppContext): Router {
     method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.json", tags: ["Downloads"],
     summary: "The Data Package descriptor of a published version (schemas, hashes, sizes); each resource's path is the absolute URL of its CSV, so the descriptor works from its own address",
     request: { params: versionParams },
-    responses: { 200: { description: "datapackage.json", content: { "application/json": { schema: z.record(z.string(), z.unknown()) } } }, ...problemResponses(404) },
+    responses: { 200: { description: "datapackage.json", content: { "application/json": { schema: z.record(z.string(), z.unknown()) } } }, ...withdrawn, ...problemResponses(404) },
   });
   router.get("/datasets/:slug/versions/:semver/datapackage.json", async (req, res) => {
     const { slug, semver: v } = parseParams(versionParams, req);
@@ -52,7 +54,7 @@ export function curationExportRoutes(ctx: AppContext): Router {
     method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/resources/{resource}.csv", tags: ["Downloads"],
     summary: "One resource of a published version as CSV, with `Digest: sha-256=…`, a strong ETag and a describedby link to datapackage.json",
     request: { params: versionParams.extend({ resource: resourceName }) },
-    responses: { 200: { description: "The CSV", content: { "text/csv": { schema: z.string() } } }, 304: { description: "Not modified" }, 410: { description: "Withdrawn" }, ...problemResponses(404) },
+    responses: { 200: { description: "The CSV", content: { "text/csv": { schema: z.string() } } }, 304: { description: "Not modified" }, ...withdrawn, ...problemResponses(404) },
   });
   router.get("/datasets/:slug/versions/:semver/resources/:resource.csv", async (req, res) => {
     const { slug, semver: v, resource: file } = parseParams(resourceParams, req);
