@@ -1,10 +1,9 @@
 import { createHash } from "node:crypto";
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { eq } from "drizzle-orm";
 import type { Express } from "express";
-import jsonld from "jsonld";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { datasets as datasetsTable, versions as versionsTable } from "@/db/schema";
@@ -14,32 +13,8 @@ import { resourceCsv } from "@/server/services/curation/resource-csv";
 import { scriptSafeJson } from "@/server/services/linked-data/dataset-page-head";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
 import { citableFixture } from "@/tests/support/citable-fixture";
+import { DCAT, DCT, SDO, SPDX, expand, id, nodes, value, values, type Expanded } from "@/tests/support/linked-data-expand";
 import { testApp, type TestApp } from "@/tests/support/test-app";
-
-const DCAT = "http://www.w3.org/ns/dcat#";
-const DCT = "http://purl.org/dc/terms/";
-const SPDX = "http://spdx.org/rdf/terms#";
-// The schema.org context maps its terms onto the http: vocabulary, whichever scheme the page names it by.
-const SDO = "http://schema.org/";
-
-/**
- * Offline JSON-LD: the only remote context the pages use is schema.org's, served here from a stored subset of it
- * (tests/fixtures/schema-org-context.jsonld) under each name a page may give it. Any other fetch fails the test.
- */
-const schemaOrgContext = JSON.parse(readFileSync(path.resolve(__dirname, "../fixtures/schema-org-context.jsonld"), "utf8")) as object;
-const documentLoader = async (url: string) => {
-  if (["https://schema.org", "https://schema.org/", "http://schema.org", "http://schema.org/"].includes(url)) {
-    return { contextUrl: null, documentUrl: url, document: schemaOrgContext };
-  }
-  throw new Error(`the JSON-LD processor tried to fetch ${url}`);
-};
-const expand = (doc: unknown) => jsonld.expand(doc, { documentLoader });
-
-type Expanded = Record<string, unknown>;
-const values = (node: Expanded, iri: string) => ((node[iri] ?? []) as { "@value"?: unknown; "@id"?: string; "@type"?: string }[]);
-const value = (node: Expanded, iri: string) => values(node, iri)[0]?.["@value"];
-const id = (node: Expanded, iri: string) => values(node, iri)[0]?.["@id"];
-const nodes = (node: Expanded, iri: string) => (node[iri] ?? []) as Expanded[];
 
 let fake: FakeDataCite;
 let t: TestApp;

@@ -8,6 +8,9 @@ import { siteResource } from "./sites";
 import { siteYearResource } from "./site-years";
 import { treatmentResource } from "./treatments";
 
+/** What a view's Table Schema is derived from: the row contract and the CSV columns. */
+type ViewSource = Pick<RowResource<{ id: number }, unknown>, "row" | "csvFields"> & { csvColumns: readonly { name: string }[] };
+
 /** The row views the API serves as CSV, by the name in their paths (…/site-years, /api/v1/observations …). */
 export const rowViews = {
   sites: siteResource,
@@ -15,7 +18,7 @@ export const rowViews = {
   treatments: treatmentResource,
   observations: observationResource,
   responses: responseResource,
-} as const satisfies Record<string, RowResource<{ id: number }, never>>;
+} as const satisfies Record<string, ViewSource>;
 export type RowViewName = keyof typeof rowViews;
 export const rowViewNames = Object.keys(rowViews) as [RowViewName, ...RowViewName[]];
 
@@ -35,7 +38,7 @@ const tableType = (t: string | undefined): TableSchemaField["type"] => (t === "i
  * it names exactly the columns the CSV has, in their order. Lists become one cell joined by ";".
  */
 export function viewTableSchema(name: RowViewName): ViewTableSchema {
-  const resource = rowViews[name] as RowResource<{ id: number }, never>;
+  const resource: ViewSource = rowViews[name];
   const json = z.toJSONSchema(resource.row, { io: "output", unrepresentable: "any" }) as { properties?: Record<string, JsonProperty>; required?: string[] };
   const required = new Set(json.required ?? []);
   const fields = resource.csvColumns.map((column): TableSchemaField => {
