@@ -20,6 +20,8 @@ export default defineConfig({
           sequence: { groupOrder: 1 },
           include: ["tests/server/**/*.test.ts"],
           environment: "node",
+          // Every API answer in these tests is checked against the OpenAPI document.
+          setupFiles: ["tests/support/answer-check-setup.ts"],
           testTimeout: 60_000,
           hookTimeout: 60_000,
           // PGlite is single-threaded WASM; a few files at a time keeps 2 cores busy without thrashing.

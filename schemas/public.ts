@@ -3,6 +3,7 @@ import { datasetSummary } from "./dataset";
 import { contributor } from "./dataset-metadata";
 import { line } from "./safe-text";
 import { crops, nutrients, placements, soilTestClasses, tillages, trialFilters, trialFilterShape } from "./filters";
+import { tableSchemaField } from "./table-schema";
 
 /**
  * Contracts of the public read API: dataset and version metadata, the row shapes of every resource, and the query
@@ -309,6 +310,19 @@ export const responseRow = z
   })
   .meta({ id: "ResponseRow" });
 
+/** The Table Schema (v2) of one row view's CSV: its columns in order, with types and descriptions. */
+export const viewTableSchema = z
+  .object({
+    $schema: z.string(),
+    name: z.string(),
+    title: z.string(),
+    description: z.string(),
+    fields: z.array(tableSchemaField),
+    missingValues: z.array(z.string()),
+  })
+  .meta({ id: "ViewTableSchema" });
+
+export type ViewTableSchema = z.infer<typeof viewTableSchema>;
 export type SiteRow = z.infer<typeof siteRow>;
 export type SiteYearRow = z.infer<typeof siteYearRow>;
 export type TreatmentRow = z.infer<typeof treatmentRow>;

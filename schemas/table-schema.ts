@@ -9,7 +9,7 @@ import { soilTestScheme } from "./soil-test-schemes";
  */
 export const tableSchemaFieldType = z.enum(["string", "number", "integer", "boolean", "date", "year"]);
 
-const tableSchemaField = z
+export const tableSchemaField = z
   .object({
     name: line().min(1).max(64).regex(/^[a-z][a-zA-Z0-9_]*$/, "lower camelCase or snake_case, starting with a letter"),
     title: line().max(200).optional(),
@@ -34,6 +34,12 @@ const tableSchemaField = z
   })
   .meta({ id: "TableSchemaField" });
 
+/**
+ * The resources of a version. These names are the one home of a resource's name: the upload path, the Data Package
+ * resource and its file, the foreign keys that point at it and the keys of the /schema answer all use them as they are.
+ */
+export const resourceName = z.enum(resourceNames);
+
 const tableSchemaResource = z
   .object({
     fields: z.array(tableSchemaField).min(1),
@@ -42,7 +48,7 @@ const tableSchemaResource = z
       .array(
         z.object({
           fields: z.array(line()),
-          reference: z.object({ resource: line(), fields: z.array(line()) }),
+          reference: z.object({ resource: resourceName, fields: z.array(line()) }),
         }),
       )
       .optional(),
@@ -50,8 +56,6 @@ const tableSchemaResource = z
     missingValues: z.array(z.object({ value: line(), label: line() })).optional(),
   })
   .meta({ id: "TableSchema" });
-
-export const resourceName = z.enum(resourceNames);
 
 export const tableSchemaDescriptor = z
   .object({

@@ -1,6 +1,6 @@
 import compression from "compression";
 import cookieParser from "cookie-parser";
-import express, { type Express } from "express";
+import express, { type Express, type RequestHandler } from "express";
 import helmet from "helmet";
 import type { Database } from "@/db/client";
 import { authenticate } from "./auth/authenticate";
@@ -23,10 +23,12 @@ export interface CreateAppOptions {
   config: AppConfig;
   /** Serve the exported web app from this folder; false for API-only apps (tests). */
   webDistDir?: string | false;
+  /** Runs first on every API request (tests check each answer against the OpenAPI document here). */
+  apiObserver?: RequestHandler;
 }
 
 /** Build the Express app. It does not listen: server/main.ts does, and tests drive it through supertest. */
-export function createApp({ database, config, webDistDir }: CreateAppOptions): { app: Express; ctx: AppContext } {
+export function createApp({ database, config, webDistDir, apiObserver }: CreateAppOptions): { app: Express; ctx: AppContext } {
   const registry = createRegistry();
   const ctx: AppContext = { database, db: database.db, config, registry };
   registerPublishHooks();
@@ -62,6 +64,7 @@ export function createApp({ database, config, webDistDir }: CreateAppOptions): {
   app.use(cookieParser());
 
   const api = express.Router();
+  if (apiObserver) api.use(apiObserver);
   // The public read API is open to any origin; writes are same-origin only (no CORS for them).
   api.use(publicReadCors());
   api.use(express.json({ limit: "1mb" }));

@@ -18,6 +18,18 @@ export interface DataCiteCreator {
   affiliation?: { name: string }[];
 }
 
+/** DataCite 4 contributorType values Plotbank sends (the schema's list is longer). */
+export interface DataCiteContributor extends DataCiteCreator {
+  contributorType: string;
+}
+
+interface DataCiteFundingReference {
+  funderName: string;
+  funderIdentifier?: string;
+  funderIdentifierType?: string;
+  awardNumber?: string;
+}
+
 type DataCiteRelationType = "IsNewVersionOf" | "IsPreviousVersionOf" | "HasVersion" | "IsVersionOf";
 
 export interface DataCiteRelatedIdentifier {
@@ -32,6 +44,8 @@ export interface DataCiteAttributes {
   event?: "publish" | "register" | "hide";
   url?: string;
   creators?: DataCiteCreator[];
+  contributors?: DataCiteContributor[];
+  fundingReferences?: DataCiteFundingReference[];
   titles?: { title: string }[];
   publisher?: string;
   publicationYear?: number | string;
@@ -99,9 +113,17 @@ const resourceTypesGeneral = [
 
 const creatorNameTypes = ["Personal", "Organizational"] as const;
 
+/** DataCite Metadata Schema 4.6's controlled list for contributorType (from memory of the schema documentation). */
+const contributorTypes = [
+  "ContactPerson", "DataCollector", "DataCurator", "DataManager", "Distributor", "Editor", "HostingInstitution", "Producer",
+  "ProjectLeader", "ProjectManager", "ProjectMember", "RegistrationAgency", "RegistrationAuthority", "RelatedPerson", "Researcher",
+  "ResearchGroup", "RightsHolder", "Sponsor", "Supervisor", "Translator", "WorkPackageLeader", "Other",
+] as const;
+
 /**
  * Values outside the schema's controlled lists, which the service refuses when it validates a registered or findable
- * DOI: resourceTypeGeneral and a creator's nameType. The match is exact, as in the schema's XSD enumerations.
+ * DOI: resourceTypeGeneral, a creator's or contributor's nameType and a contributor's contributorType, and a funding
+ * reference needs a funderName. The match is exact, as in the schema's XSD enumerations.
  */
 export function controlledListProblems(a: DataCiteAttributes): DataCiteError[] {
   const errors: DataCiteError[] = [];
@@ -114,6 +136,18 @@ export function controlledListProblems(a: DataCiteAttributes): DataCiteError[] {
     if (nameType !== undefined && !(creatorNameTypes as readonly unknown[]).includes(nameType)) {
       errors.push({ source: `creators[${i}].nameType`, title: `nameType "${String(nameType)}" must be Personal or Organizational` });
     }
+  });
+  (Array.isArray(a.contributors) ? a.contributors : []).forEach((c, i) => {
+    if (blank(c?.name)) errors.push({ source: `contributors[${i}].name`, title: "Each contributor needs a name" });
+    if (!(contributorTypes as readonly unknown[]).includes(c?.contributorType)) {
+      errors.push({ source: `contributors[${i}].contributorType`, title: `contributorType "${String(c?.contributorType)}" is not one of ${contributorTypes.join(", ")}` });
+    }
+    if (c?.nameType !== undefined && !(creatorNameTypes as readonly unknown[]).includes(c.nameType)) {
+      errors.push({ source: `contributors[${i}].nameType`, title: `nameType "${String(c.nameType)}" must be Personal or Organizational` });
+    }
+  });
+  (Array.isArray(a.fundingReferences) ? a.fundingReferences : []).forEach((f, i) => {
+    if (blank(f?.funderName)) errors.push({ source: `fundingReferences[${i}].funderName`, title: "A funding reference needs a funderName" });
   });
   return errors;
 }

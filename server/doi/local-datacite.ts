@@ -4,7 +4,9 @@ import { createFakeDataCite } from "./fake-datacite";
 
 /**
  * Unless DATACITE_URL names a real DataCite-compatible service, run the local fake in this process on a free
- * loopback port and point the configuration at it. Its DOIs are kept beside the database, so they survive a restart.
+ * loopback port and point the configuration at it. Its DOIs are kept inside the database's folder (PostgreSQL leaves
+ * files it does not know alone), so they survive a restart, go with that folder, and never land in its parent, which
+ * may be shared with anything.
  */
 export async function startLocalDataCiteUnlessConfigured(config: AppConfig): Promise<{ stop(): Promise<void> }> {
   if (config.datacite.url) return { stop: async () => {} };
@@ -12,7 +14,7 @@ export async function startLocalDataCiteUnlessConfigured(config: AppConfig): Pro
     user: config.datacite.user,
     password: config.datacite.password,
     prefixes: [config.datacite.prefix],
-    storeFile: path.join(path.dirname(config.dataDir), "fake-datacite.json"),
+    storeFile: path.join(config.dataDir, "fake-datacite.json"),
   });
   config.datacite.url = await fake.start();
   console.log(`DOIs: the local DataCite fake is answering at ${config.datacite.url} (set DATACITE_URL for a real service)`);

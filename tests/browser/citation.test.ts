@@ -54,7 +54,7 @@ describe("citing a version on a phone", () => {
 
     await panel.getByRole("radio", { name: "BibTeX" }).click();
     const bibtex = await apiCitation("bibtex");
-    await panel.getByTestId("citation-text").getByText("@misc{", { exact: false }).waitFor();
+    await panel.getByTestId("citation-text").getByText("@dataset{", { exact: false }).waitFor();
     await panel.getByRole("button", { name: "Copy BibTeX citation" }).click();
     await expect.poll(() => page.evaluate(() => navigator.clipboard.readText())).toBe(bibtex);
 

@@ -6,6 +6,7 @@ import { problemSchema } from "@/schemas/problem";
 import { tableSchemaDescriptor } from "@/schemas/table-schema";
 import { CsvWriter } from "@/server/csv";
 import { blocks, insertPublicFixture, isLatestPublished, modelCells } from "@/tests/support/public-fixture";
+import { checkCsvAgainstTableSchema } from "@/tests/support/data-package-check";
 import { testApp, type TestApp } from "@/tests/support/test-app";
 
 let t: TestApp;
@@ -181,14 +182,28 @@ describe("CSV", () => {
     expect(byAccept.text).toBe(byParam.text);
     const rows = parseCsv(byAccept.text).data;
     expect(rows).toHaveLength(latestPlots);
-    // describedby names what describes these columns: the row's OpenAPI component, not a dataset's data dictionary.
-    const described = /<([^>]+)>; rel="describedby"/.exec(byAccept.headers.link!)![1]!;
-    expect(described).toBe("/api/v1/openapi.json#/components/schemas/ObservationRow");
-    const doc = (await get("/api/v1/openapi.json").expect(200)).body;
-    const header = byAccept.text.split("\r\n")[0]!.split(",");
-    expect(Object.keys(doc.components.schemas.ObservationRow.properties)).toEqual(header);
+    expect(byAccept.headers.link).toContain('</api/v1/schemas/observations>; rel="describedby"; type="application/json"');
     expect(byAccept.headers.link).toContain(`<${v110}/schema>; rel="related"`);
     expect(byAccept.headers.link).toContain('</api/v1/datasets/tb-corn-nk/versions/1.0.0/schema>; rel="related"');
+  });
+  it("each CSV view's describedby link names a Table Schema that describes that CSV: its columns, in order, with their types", async () => {
+    const views = [
+      ...["sites", "site-years", "treatments", "observations", "responses"].map((r) => `${v110}/${r}?format=csv`),
+      ...["site-years", "observations", "responses"].map((r) => `/api/v1/${r}?format=csv`),
+      "/api/v1/observations?format=csv&units=kg/ha",
+    ];
+    for (const url of views) {
+      const csv = await get(url).expect(200);
+      const link = /^<([^>]+)>; rel="describedby"/.exec(csv.headers.link ?? "");
+      expect(link, url).not.toBeNull();
+      const schema = (await get(link![1]!).expect(200)).body;
+      expect(checkCsvAgainstTableSchema(url, schema, csv.text), url).toEqual([]);
+      expect(parseCsv(csv.text).data.length, url).toBeGreaterThan(0);
+    }
+    // The version's resource schemas describe the Data Package files, whose columns differ from the views'.
+    const resourceSchema = (await get(`${v110}/schema`).expect(200)).body;
+    const observations = await get(`${v110}/observations?format=csv`).expect(200);
+    expect(checkCsvAgainstTableSchema("plots", resourceSchema.resources.plots, observations.text)).not.toEqual([]);
   });
   it("has the JSON rows' columns and values; lines end in CRLF", async () => {
     const csv = await get("/api/v1/responses?format=csv&crop=corn").expect(200);

@@ -128,6 +128,7 @@ const table: Record<string, Row> = {
     check: (res) => (Object.keys(res.headers).some((h) => h.startsWith("access-control-")) ? "a write's preflight got CORS headers" : null),
   },
   "GET /api/v1/catalog": { expect: everyone(200) },
+  "GET /api/v1/schemas/:view": { expect: everyone(200), params: () => ({ view: "observations" }) },
   "GET /api/v1/datasets": { expect: everyone(200) },
   "GET /api/v1/soil-test-schemes": { expect: everyone(200) },
   "GET /api/v1/datasets/:slug": { expect: everyone(200) },

@@ -42,20 +42,21 @@ describe("citation formats of a published version", () => {
     expect((await request(t.app).get(`${base}/1.1.0/citation`).expect(200)).text).toBe(res.text);
   });
 
-  it("BibTeX that a BibTeX parser reads back to the same record", async () => {
+  it("BibTeX as a biblatex @dataset that two independent parsers read back as a dataset, with the same fields", async () => {
     const res = await request(t.app).get(`${base}/1.1.0/citation?format=bibtex`).expect(200);
     expect(res.headers["content-type"]).toBe("application/x-bibtex; charset=utf-8");
     expect(res.headers["content-disposition"]).toBe('inline; filename="tb-starter-p-v1.1.0.bib"');
     expect(res.text).toBe(
       [
-        "@misc{Quillon2025Soybean,",
+        "@dataset{tb_starter_p_v1_1_0,",
         "\tauthor = {Quillon, Marta and {Tallgrass Basin Agronomy Network}},",
         `\tdoi = {${doi}},`,
-        "\tyear = {2025},",
-        "\tnote = {Version 1.1.0},",
+        "\tdate = {2025-03-14},",
+        "\tkeywords = {soybean,phosphorus,starter fertilizer},",
         "\tpublisher = {Plotbank},",
         "\ttitle = {Soybean starter phosphorus placement in the {Tallgrass} {Basin}},",
         "\turl = {http://plotbank.test/datasets/tb-starter-p?version=1.1.0},",
+        "\tversion = {1.1.0},",
         "}",
         "",
       ].join("\n"),
@@ -66,13 +67,13 @@ describe("citation formats of a published version", () => {
     expect(library.errors).toEqual([]);
     expect(library.entries).toHaveLength(1);
     expect(library.entries[0]).toMatchObject({
-      type: "misc",
-      key: "Quillon2025Soybean",
+      type: "dataset",
+      key: "tb_starter_p_v1_1_0",
       fields: {
         author: [{ lastName: "Quillon", firstName: "Marta" }, { name: "Tallgrass Basin Agronomy Network" }],
         doi,
-        year: "2025",
-        note: "Version 1.1.0",
+        date: "2025-03-14",
+        version: "1.1.0",
         publisher: ["Plotbank"],
         title: "Soybean starter phosphorus placement in the Tallgrass Basin",
         url: "http://plotbank.test/datasets/tb-starter-p?version=1.1.0",
@@ -80,15 +81,36 @@ describe("citation formats of a published version", () => {
     });
     const [parsed] = new Cite(res.text).data as Record<string, unknown>[];
     expect(parsed).toMatchObject({
-      "citation-key": "Quillon2025Soybean",
+      type: "dataset",
+      "citation-key": "tb_starter_p_v1_1_0",
       title: "Soybean starter phosphorus placement in the Tallgrass Basin",
       author: [{ family: "Quillon", given: "Marta" }, { family: "Tallgrass Basin Agronomy Network" }],
       DOI: doi,
       publisher: "Plotbank",
-      issued: { "date-parts": [[2025]] },
-      note: "Version 1.1.0",
+      issued: { "date-parts": [[2025, 3, 14]] },
+      version: "1.1.0",
       URL: "http://plotbank.test/datasets/tb-starter-p?version=1.1.0",
     });
+  });
+
+  it("BibTeX keys are unique per dataset and version, so citations of several share one .bib file", async () => {
+    const other = await citableFixture(t.ctx, "tb-starter-p-second");
+    await other.publish("1.1.0", { publishedAt: new Date(Date.UTC(2025, 2, 14, 9)) });
+    const entries = [];
+    for (const url of [`${base}/1.0.0/citation?format=bibtex`, `${base}/1.1.0/citation?format=bibtex`, "/api/v1/datasets/tb-starter-p-second/versions/1.1.0/citation?format=bibtex"]) {
+      entries.push((await request(t.app).get(url).expect(200)).text);
+    }
+    const library = parseBibtex(entries.join("\n"), { sentenceCase: false });
+    expect(library.errors).toEqual([]);
+    expect(library.entries.map((e) => e.key)).toEqual(["tb_starter_p_v1_0_0", "tb_starter_p_v1_1_0", "tb_starter_p_second_v1_1_0"]);
+    expect(library.entries.map((e) => e.type)).toEqual(["dataset", "dataset", "dataset"]);
+    // citation-js reads the same file as three datasets with three keys.
+    const parsed = new Cite(entries.join("\n")).data as Record<string, unknown>[];
+    expect(parsed.map((p) => [p.type, p["citation-key"], p.version])).toEqual([
+      ["dataset", "tb_starter_p_v1_0_0", "1.0.0"],
+      ["dataset", "tb_starter_p_v1_1_0", "1.1.0"],
+      ["dataset", "tb_starter_p_second_v1_1_0", "1.1.0"],
+    ]);
   });
 
   it("RIS with the dataset type, each author on a line, and an end-of-record tag", async () => {
@@ -117,6 +139,20 @@ describe("citation formats of a published version", () => {
     // Read back with citation-js's RIS input: the same record.
     const [parsed] = new Cite(res.text).data as Record<string, unknown>[];
     expect(parsed).toMatchObject({ type: "dataset", DOI: doi, version: "1.1.0", publisher: "Plotbank" });
+  });
+
+  it("RIS never wraps a value: a long URL and title stay on their line and read back whole", async () => {
+    const slug = "tallgrass-basin-soybean-starter-phosphorus-placement-long-term";
+    const long = await citableFixture(t.ctx, slug);
+    await long.publish("12.10.3");
+    const res = await request(t.app).get(`/api/v1/datasets/${slug}/versions/12.10.3/citation?format=ris`).expect(200);
+    const url = `http://plotbank.test/datasets/${slug}?version=12.10.3`;
+    expect(url.length).toBeGreaterThan(70);
+    // Every line of a RIS record is a tag line (RIS readers take any other line for a continuation).
+    for (const line of res.text.trimEnd().split("\n")) expect(line).toMatch(/^[A-Z][A-Z0-9] {2}-( |$)/);
+    expect(res.text).toContain(`UR  - ${url}\n`);
+    const [parsed] = new Cite(res.text).data as Record<string, unknown>[];
+    expect(parsed).toMatchObject({ type: "dataset", URL: url, version: "12.10.3", title: "Soybean starter phosphorus placement in the Tallgrass Basin" });
   });
 
   it("CSL-JSON, the record the other formats render from", async () => {

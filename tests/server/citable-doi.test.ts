@@ -1,4 +1,4 @@
-import { mkdtempSync, readFileSync, rmSync } from "node:fs";
+import { mkdtempSync, readdirSync, readFileSync, rmSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { eq } from "drizzle-orm";
@@ -88,6 +88,32 @@ describe("DOI registration on publication", () => {
     expect(concept.url).toBe("http://plotbank.test/datasets/tb-doi-chain");
     expect(concept.relatedIdentifiers!.filter((r) => r.relationType === "HasVersion").map((r) => r.relatedIdentifier)).toEqual([row1.doi, row2.doi]);
     expect(concept.publicationYear).toBe(2024);
+  });
+
+  it("carries the dataset's funding, methods and contributors: fundingReferences, a Methods description and typed contributors", async () => {
+    const f = await citableFixture(t.ctx, "tb-doi-credits", [
+      { name: "Marta Quillon", role: "project_leader", orcid: "0000-0002-1825-0097", affiliation: "Tallgrass Basin Agronomy Network" },
+      { name: "Tallgrass Basin Agronomy Network", role: "creator" },
+      { name: "Ines Varga", role: "curator", affiliation: "Tallgrass Basin Agronomy Network" },
+      { name: "Basin Field Team", role: "data_collector" },
+      { name: "Basin Soil Fund", role: "funder" },
+    ]);
+    await t.ctx.db
+      .update(datasets)
+      .set({ funding: "Tallgrass Basin Growers' Fund (invented)", methods: "RCBD with 4 blocks per site-year; yields at 13 % moisture; Bray-P1, 0-6 in." })
+      .where(eq(datasets.id, f.datasetId));
+    const id = await f.publish("1.0.0");
+    const record = fake.records.get((await versionRow(id)).doi!)!;
+    expect(record.fundingReferences).toEqual([{ funderName: "Basin Soil Fund" }, { funderName: "Tallgrass Basin Growers' Fund (invented)" }]);
+    expect(record.descriptions).toContainEqual({ description: "RCBD with 4 blocks per site-year; yields at 13 % moisture; Bray-P1, 0-6 in.", descriptionType: "Methods" });
+    expect(record.contributors).toEqual([
+      expect.objectContaining({ name: "Quillon, Marta", nameType: "Personal", contributorType: "ProjectLeader" }),
+      { name: "Varga, Ines", nameType: "Personal", givenName: "Ines", familyName: "Varga", affiliation: [{ name: "Tallgrass Basin Agronomy Network" }], contributorType: "DataCurator" },
+      { name: "Basin Field Team", nameType: "Organizational", contributorType: "DataCollector" },
+    ]);
+    // The concept DOI carries them too.
+    const [d] = await t.ctx.db.select().from(datasets).where(eq(datasets.id, f.datasetId));
+    expect(fake.records.get(d!.conceptDoi!)!.fundingReferences).toHaveLength(2);
   });
 
   it("publishes while the DOI service is down, keeps the DOI pending, and registers it when the service is back", async () => {
@@ -317,6 +343,8 @@ describe("the local DataCite fake", () => {
     ["types.resourceTypeGeneral", { types: { resourceTypeGeneral: "dataset" } }],
     ["creators[1].nameType", { creators: [{ name: "Quillon, Marta", nameType: "Personal" }, { name: "Tallgrass Basin Agronomy Network", nameType: "Organisation" }] }],
     ["creators[0].nameType", { creators: [{ name: "Quillon, Marta", nameType: "Person" }] }],
+    ["contributors[0].contributorType", { contributors: [{ name: "Varga, Ines", contributorType: "Curator" }] }],
+    ["fundingReferences[0].funderName", { fundingReferences: [{ funderName: "" }] }],
   ])("rejects a findable DOI whose %s is outside DataCite's controlled list", async (property, change) => {
     const res = await post({ data: { type: "dois", attributes: { ...valid(), ...change } } });
     expect(res.status).toBe(422);
@@ -381,7 +409,9 @@ describe("the fake DOI service as the server runs it", () => {
         types: { resourceTypeGeneral: "Dataset" },
       });
       await running.stop();
-      expect(Object.keys(JSON.parse(readFileSync(path.join(dir, "fake-datacite.json"), "utf8")))).toEqual([doi]);
+      // Its store is inside PLOTBANK_DATA_DIR, never in the folder above it.
+      expect(Object.keys(JSON.parse(readFileSync(path.join(dir, "pglite", "fake-datacite.json"), "utf8")))).toEqual([doi]);
+      expect(readdirSync(dir)).toEqual(["pglite"]);
 
       const again = loadConfig({ NODE_ENV: "test", PLOTBANK_DATA_DIR: path.join(dir, "pglite") } as NodeJS.ProcessEnv);
       const restarted = await startLocalDataCiteUnlessConfigured(again);

@@ -1,10 +1,9 @@
 import { createHash } from "node:crypto";
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { mkdtempSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { eq } from "drizzle-orm";
 import type { Express } from "express";
-import jsonld from "jsonld";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { datasets as datasetsTable, versions as versionsTable } from "@/db/schema";
@@ -14,32 +13,8 @@ import { resourceCsv } from "@/server/services/curation/resource-csv";
 import { scriptSafeJson } from "@/server/services/linked-data/dataset-page-head";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
 import { citableFixture } from "@/tests/support/citable-fixture";
+import { DCAT, DCT, SDO, SPDX, expand, id, nodes, value, values, type Expanded } from "@/tests/support/linked-data-expand";
 import { testApp, type TestApp } from "@/tests/support/test-app";
-
-const DCAT = "http://www.w3.org/ns/dcat#";
-const DCT = "http://purl.org/dc/terms/";
-const SPDX = "http://spdx.org/rdf/terms#";
-// The schema.org context maps its terms onto the http: vocabulary, whichever scheme the page names it by.
-const SDO = "http://schema.org/";
-
-/**
- * Offline JSON-LD: the only remote context the pages use is schema.org's, served here from a stored subset of it
- * (tests/fixtures/schema-org-context.jsonld) under each name a page may give it. Any other fetch fails the test.
- */
-const schemaOrgContext = JSON.parse(readFileSync(path.resolve(__dirname, "../fixtures/schema-org-context.jsonld"), "utf8")) as object;
-const documentLoader = async (url: string) => {
-  if (["https://schema.org", "https://schema.org/", "http://schema.org", "http://schema.org/"].includes(url)) {
-    return { contextUrl: null, documentUrl: url, document: schemaOrgContext };
-  }
-  throw new Error(`the JSON-LD processor tried to fetch ${url}`);
-};
-const expand = (doc: unknown) => jsonld.expand(doc, { documentLoader });
-
-type Expanded = Record<string, unknown>;
-const values = (node: Expanded, iri: string) => ((node[iri] ?? []) as { "@value"?: unknown; "@id"?: string; "@type"?: string }[]);
-const value = (node: Expanded, iri: string) => values(node, iri)[0]?.["@value"];
-const id = (node: Expanded, iri: string) => values(node, iri)[0]?.["@id"];
-const nodes = (node: Expanded, iri: string) => (node[iri] ?? []) as Expanded[];
 
 let fake: FakeDataCite;
 let t: TestApp;
@@ -51,6 +26,7 @@ beforeAll(async () => {
   const url = await fake.start();
   t = await testApp({ datacite: { url, user: "PLOTBANK.TEST", password: "fake-secret", prefix: "10.80555" } });
   const f = await citableFixture(t.ctx, "tb-linked");
+  await t.ctx.db.update(datasetsTable).set({ methods: "RCBD with 4 blocks per site-year; plot combine harvest; yields at 13 % moisture." }).where(eq(datasetsTable.id, f.datasetId));
   versionIds = [
     await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2023, 10, 1)), years: [2019, 2021] }),
     await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2024, 10, 1)), years: [2019, 2023] }),
@@ -70,26 +46,29 @@ afterAll(async () => {
 });
 
 describe("the DCAT 3 catalogue", () => {
-  it("expands as JSON-LD to a dcat:Catalog of datasets with version chains", async () => {
+  it("expands as JSON-LD to a dcat:Catalog whose dcat:dataset entries are the versions, with distributions, theme and contact point", async () => {
     const res = await request(t.app).get("/api/v1/catalog").expect(200);
     expect(res.headers["content-type"]).toBe("application/ld+json; charset=utf-8");
     const [catalog] = await expand(JSON.parse(res.text));
     expect(catalog!["@type"]).toEqual([`${DCAT}Catalog`]);
     expect(catalog!["@id"]).toBe("http://plotbank.test/api/v1/catalog");
+    expect(id(catalog!, `${DCAT}themeTaxonomy`)).toBe("http://publications.europa.eu/resource/authority/data-theme");
 
-    const [dataset] = nodes(catalog!, `${DCAT}dataset`);
-    expect(dataset!["@type"]).toEqual([`${DCAT}Dataset`]);
-    expect(dataset!["@id"]).toBe("http://plotbank.test/datasets/tb-linked");
-    expect(value(dataset!, `${DCT}title`)).toBe("Soybean starter phosphorus placement in the Tallgrass Basin");
-    expect(value(dataset!, `${DCT}identifier`)).toBe("10.80555/plotbank.tb-linked");
-    expect(id(dataset!, `${DCT}license`)).toBe("https://creativecommons.org/licenses/by/4.0/");
-    expect(id(dataset!, `${DCAT}hasCurrentVersion`)).toBe("http://plotbank.test/datasets/tb-linked?version=1.1.0");
-    expect(nodes(nodes(dataset!, `${DCT}publisher`)[0]!, "http://xmlns.com/foaf/0.1/name")[0]!["@value"]).toBe("Plotbank");
-
-    const versions = nodes(dataset!, `${DCAT}hasVersion`);
-    expect(versions.map((v) => value(v, `${DCAT}version`))).toEqual(["1.0.0", "1.1.0"]);
+    // A harvester following dcat:dataset reaches datasets that have files.
+    const versions = nodes(catalog!, `${DCAT}dataset`);
+    expect(versions.map((v) => v["@id"])).toEqual(["http://plotbank.test/datasets/tb-linked?version=1.0.0", "http://plotbank.test/datasets/tb-linked?version=1.1.0"]);
+    for (const v of versions) {
+      expect(v["@type"]).toEqual([`${DCAT}Dataset`]);
+      expect(nodes(v, `${DCAT}distribution`).length).toBeGreaterThan(0);
+      expect(id(v, `${DCAT}theme`)).toBe("http://publications.europa.eu/resource/authority/data-theme/AGRI");
+      const contact = nodes(v, `${DCAT}contactPoint`)[0]!;
+      expect(contact["@type"]).toEqual(["http://www.w3.org/2006/vcard/ns#Organization"]);
+      expect(value(contact, "http://www.w3.org/2006/vcard/ns#fn")).toBe("Tallgrass Basin Agronomy Network");
+      expect(id(contact, "http://www.w3.org/2006/vcard/ns#hasURL")).toBe("http://plotbank.test/datasets/tb-linked");
+      expect(id(v, `${DCT}isVersionOf`)).toBe("http://plotbank.test/datasets/tb-linked");
+    }
     const [v1, v2] = versions as [Expanded, Expanded];
-    expect(v1["@type"]).toEqual([`${DCAT}Dataset`]);
+    expect(versions.map((v) => value(v, `${DCAT}version`))).toEqual(["1.0.0", "1.1.0"]);
     expect(id(v1, `${DCAT}previousVersion`)).toBeUndefined();
     expect(id(v2, `${DCAT}previousVersion`)).toBe(v1["@id"]);
     expect(value(v2, `${DCT}identifier`)).toBe("10.80555/plotbank.tb-linked.v1.1.0");
@@ -97,11 +76,22 @@ describe("the DCAT 3 catalogue", () => {
     const temporal = nodes(v2, `${DCT}temporal`)[0]!;
     expect([value(temporal, `${DCAT}startDate`), value(temporal, `${DCAT}endDate`)]).toEqual(["2019", "2023"]);
     expect(value(nodes(v2, `${DCT}spatial`)[0]!, "http://www.w3.org/2000/01/rdf-schema#label")).toBe("Tallgrass Basin (invented), temperate uplands");
+
+    // The dataset as a whole is a catalogued resource that names its versions (DCAT 3 versioning).
+    const [dataset] = nodes(catalog!, `${DCAT}resource`);
+    expect(dataset!["@type"]).toEqual([`${DCAT}Dataset`]);
+    expect(dataset!["@id"]).toBe("http://plotbank.test/datasets/tb-linked");
+    expect(value(dataset!, `${DCT}title`)).toBe("Soybean starter phosphorus placement in the Tallgrass Basin");
+    expect(value(dataset!, `${DCT}identifier`)).toBe("10.80555/plotbank.tb-linked");
+    expect(id(dataset!, `${DCT}license`)).toBe("https://creativecommons.org/licenses/by/4.0/");
+    expect(id(dataset!, `${DCAT}hasCurrentVersion`)).toBe("http://plotbank.test/datasets/tb-linked?version=1.1.0");
+    expect(values(dataset!, `${DCAT}hasVersion`).map((v) => v["@id"])).toEqual(versions.map((v) => v["@id"]));
+    expect(nodes(nodes(dataset!, `${DCT}publisher`)[0]!, "http://xmlns.com/foaf/0.1/name")[0]!["@value"]).toBe("Plotbank");
   });
 
-  it("lists each version's Data Package and CSVs as distributions, with the exact size and SHA-256 of what each download sends", async () => {
+  it("lists each version's Data Package and CSVs as distributions, with format, and the exact size and SHA-256 of what each download sends", async () => {
     const [catalog] = await expand(JSON.parse((await request(t.app).get("/api/v1/catalog")).text));
-    const v2 = nodes(nodes(catalog!, `${DCAT}dataset`)[0]!, `${DCAT}hasVersion`)[1]!;
+    const v2 = nodes(catalog!, `${DCAT}dataset`)[1]!;
     const distributions = nodes(v2, `${DCAT}distribution`);
     expect(distributions.every((d) => (d["@type"] as string[]).includes(`${DCAT}Distribution`))).toBe(true);
     const base = "http://plotbank.test/api/v1/datasets/tb-linked/versions/1.1.0";
@@ -110,6 +100,7 @@ describe("the DCAT 3 catalogue", () => {
       ...["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"].map((r) => [`${base}/resources/${r}.csv`, "text/csv"]),
     ];
     expect(distributions.map((d) => [id(d, `${DCAT}downloadURL`), id(d, `${DCAT}mediaType`)?.replace("https://www.iana.org/assignments/media-types/", "")])).toEqual(expected);
+    expect(distributions.map((d) => id(d, `${DCT}format`)?.replace("http://publications.europa.eu/resource/authority/file-type/", ""))).toEqual(["ZIP", "CSV", "CSV", "CSV", "CSV", "CSV", "CSV"]);
 
     for (const d of distributions) {
       const url = id(d, `${DCAT}downloadURL`)!;
@@ -161,8 +152,18 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     expect(value(d!, `${SDO}version`)).toBe("1.1.0");
     expect(id(d!, `${SDO}license`)).toBe("https://creativecommons.org/licenses/by/4.0/");
     expect(id(d!, `${SDO}url`)).toBe("http://plotbank.test/datasets/tb-linked");
-    expect(id(d!, `${SDO}sameAs`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.1.0");
-    expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.1.0");
+    // The unversioned page is the dataset as a whole: the concept DOI, never a version's.
+    expect(id(d!, `${SDO}sameAs`)).toBe("https://doi.org/10.80555/plotbank.tb-linked");
+    expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked");
+    const current = nodes(d!, `${SDO}hasPart`)[0]!;
+    expect(current["@id"]).toBe("http://plotbank.test/datasets/tb-linked?version=1.1.0");
+    expect(value(current, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.1.0");
+    expect(value(current, `${SDO}version`)).toBe("1.1.0");
+    const catalog = nodes(d!, `${SDO}includedInDataCatalog`)[0]!;
+    expect(catalog["@type"]).toEqual([`${SDO}DataCatalog`]);
+    expect(catalog["@id"]).toBe("http://plotbank.test/api/v1/catalog");
+    expect(nodes(d!, `${SDO}funder`).map((f) => [f["@type"], value(f, `${SDO}name`)])).toEqual([[[`${SDO}Organization`], "Basin Soil Fund"]]);
+    expect(value(d!, `${SDO}measurementTechnique`)).toBe("RCBD with 4 blocks per site-year; plot combine harvest; yields at 13 % moisture.");
     expect(value(d!, `${SDO}temporalCoverage`)).toBe("2019/2023");
     const place = nodes(d!, `${SDO}spatialCoverage`)[0]!;
     expect(place["@type"]).toEqual([`${SDO}Place`]);
@@ -200,6 +201,7 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     expect(value(d!, `${SDO}version`)).toBe("1.0.0");
     expect(value(d!, `${SDO}temporalCoverage`)).toBe("2019/2021");
     expect(value(d!, `${SDO}identifier`)).toBe("https://doi.org/10.80555/plotbank.tb-linked.v1.0.0");
+    expect(nodes(d!, `${SDO}includedInDataCatalog`)[0]!["@id"]).toBe("http://plotbank.test/api/v1/catalog");
     expect(value(d!, `${SDO}datePublished`)).toBe("2023-11-01");
     const downloads = nodes(d!, `${SDO}distribution`).map((x) => id(x, `${SDO}contentUrl`));
     expect(id(d!, `${SDO}url`)).toBe("http://plotbank.test/datasets/tb-linked?version=1.0.0");

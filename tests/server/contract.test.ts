@@ -78,6 +78,7 @@ describe("real answers of every documented GET match their documented schemas", 
     if (name === "slug") return "tb-soy-starter-p";
     if (name === "semver") return "1.1.0";
     if (name === "resource") return "plots";
+    if (name === "view") return "observations";
     if (name === "id") return fixture.versionIds.get("tb-soy-starter-p@1.1.0")!;
     return "00000000-0000-4000-8000-000000000000";
   };

@@ -1,6 +1,7 @@
 import { createHash } from "node:crypto";
 import supertest from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { checkDataPackage } from "@/tests/support/data-package-check";
 import { testApp, type TestApp } from "@/tests/support/test-app";
 import { binary, unzip } from "@/tests/support/zip";
 import { draftWithData, type Fixture } from "./curation-fixtures";
@@ -42,6 +43,43 @@ describe("exports of a published version", () => {
     for (const name of ["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"]) h.update(`${name}\n`).update(files.get(`data/${name}.csv`)!);
     expect(checksum).toBe(`sha256:${h.digest("hex")}`);
     expect(dp.plotbank.checksum).toBe(checksum);
+  });
+
+  it("the zip is a valid Data Package: v2 and v1 profiles, hashes, sizes, every table and every foreign key", async () => {
+    const res = await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.zip`).buffer(true).parse(binary).expect(200);
+    const files = unzip(res.body as Buffer);
+    const dp = JSON.parse(files.get("datapackage.json")!.toString("utf8"));
+    expect(await checkDataPackage(dp, async (p) => files.get(p) ?? Buffer.alloc(0))).toEqual([]);
+    expect(dp.$schema).toBe("https://datapackage.org/profiles/2.0/datapackage.json");
+    // Every foreign key names a resource of the package, by the name the package gives it.
+    const names = dp.resources.map((r: { name: string }) => r.name);
+    const referenced = dp.resources.flatMap((r: { schema: { foreignKeys?: { reference: { resource: string } }[] } }) => (r.schema.foreignKeys ?? []).map((k) => k.reference.resource));
+    expect(referenced).toContain("site_years");
+    for (const name of referenced) expect(names).toContain(name);
+  });
+
+  it("the standalone datapackage.json works from its URL: every path answers 200 with the declared bytes and hash", async () => {
+    const url = `/api/v1/datasets/${f.slug}/versions/latest/datapackage.json`;
+    const dp = (await supertest(t.app).get(url).expect(200)).body;
+    const fetched: string[] = [];
+    const problems = await checkDataPackage(dp, async (p) => {
+      // Resolve the path against the descriptor's own address, as a reader that downloaded it from there would.
+      const target = new URL(p, `http://plotbank.test${url}`);
+      expect(target.origin).toBe("http://plotbank.test");
+      fetched.push(target.pathname);
+      const r = await supertest(t.app).get(target.pathname).buffer(true).parse(binary);
+      expect(r.status, target.pathname).toBe(200);
+      return r.body as Buffer;
+    });
+    expect(problems).toEqual([]);
+    expect(fetched).toContain(`/api/v1/datasets/${f.slug}/versions/1.0.0/resources/site_years.csv`);
+    expect(fetched).toHaveLength(6);
+  });
+
+  it("the /schema answer is keyed by the package's resource names", async () => {
+    const schema = (await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/schema`).expect(200)).body;
+    const dp = (await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.json`).expect(200)).body;
+    expect(Object.keys(schema.resources).sort()).toEqual(dp.resources.map((r: { name: string }) => r.name).sort());
   });
 
   it("a resource CSV with Digest, a strong ETag, 304 and a describedby link", async () => {

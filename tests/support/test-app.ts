@@ -2,12 +2,14 @@ import type { Express } from "express";
 import pg from "pg";
 import { migrateDatabase, openDatabase, type Database } from "@/db/client";
 import { createApp } from "@/server/app";
+import { generateOpenApiDocument } from "@/server/openapi/registry";
 import { loadConfig, type AppConfig } from "@/server/config";
 import type { AppContext } from "@/server/context";
 import { mailDeliveriesEnded } from "@/server/mail/mailer";
 import { drainDoiQueue } from "@/server/services/citation/doi-queue";
 import { createUser } from "@/server/services/users";
 import type { Role } from "@/schemas/account";
+import { answerCheckMiddleware } from "./answer-check";
 
 let template: Promise<Blob> | undefined;
 
@@ -51,7 +53,10 @@ export async function testApp(overrides: Partial<AppConfig> = {}, options: { web
     publicUrl: "http://plotbank.test",
     ...overrides,
   });
-  const { app, ctx } = createApp({ database, config, webDistDir: options.webDistDir ?? false });
+  // Every answer is checked against the document the app serves (generated once all routes have registered).
+  let document: ReturnType<typeof generateOpenApiDocument> | undefined;
+  const apiObserver = answerCheckMiddleware(() => (document ??= generateOpenApiDocument(ctx.registry, config.version)) as never);
+  const { app, ctx } = createApp({ database, config, webDistDir: options.webDistDir ?? false, apiObserver });
   return {
     app,
     ctx,

@@ -11,6 +11,8 @@ import { resourceOrder } from "@/server/services/curation/resource-csv";
 const versionParams = z.object({ slug: z.string().min(1).max(120), semver: z.union([semver, z.literal("latest")]) });
 const resourceParams = versionParams.extend({ resource: resourceName });
 const immutable = "public, max-age=31536000, immutable";
+/** A withdrawn version's files are gone: a problem that names the reason. */
+const withdrawn = { 410: { description: "Withdrawn (tombstone): the problem gives the reason", content: problemResponses(410)[410]!.content } };
 
 export function curationExportRoutes(ctx: AppContext): Router {
   const { db, registry, config } = ctx;
@@ -21,7 +23,7 @@ export function curationExportRoutes(ctx: AppContext): Router {
     method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.zip", operationId: "getDataPackageZip", tags: ["Downloads"],
     summary: "A published version as a Frictionless Data Package (datapackage.json + one CSV per resource); `latest` works as semver",
     params: versionParams,
-    responses: { 200: { description: "The zip", content: { "application/zip": { schema: z.string() } } }, 410: { description: "Withdrawn (tombstone)" }, ...problemResponses(404) },
+    responses: { 200: { description: "The zip", content: { "application/zip": { schema: z.string() } } }, ...withdrawn, ...problemResponses(404) },
   }, async ({ params: { slug, semver: v } }, req, res) => {
     const { dataset, version } = await publishedVersion(db, slug, v);
     const etag = `"${version.checksum?.replace("sha256:", "") ?? version.id}-zip"`;
@@ -34,21 +36,21 @@ export function curationExportRoutes(ctx: AppContext): Router {
 
   defineRoute({
     method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/datapackage.json", operationId: "getDataPackageDescriptor", tags: ["Downloads"],
-    summary: "The Data Package descriptor of a published version (schemas, hashes, sizes)",
+    summary: "The Data Package descriptor of a published version (schemas, hashes, sizes); each resource's path is the absolute URL of its CSV, so the descriptor works from its own address",
     params: versionParams,
-    responses: { 200: { description: "datapackage.json", content: { "application/json": { schema: z.record(z.string(), z.unknown()) } } }, ...problemResponses(404) },
+    responses: { 200: { description: "datapackage.json", content: { "application/json": { schema: z.record(z.string(), z.unknown()) } } }, ...withdrawn, ...problemResponses(404) },
   }, async ({ params: { slug, semver: v } }, _req, res) => {
     const { dataset, version } = await publishedVersion(db, slug, v);
     const built = [];
     for (const r of resourceOrder) built.push(await buildResource(db, version, r));
-    res.set("Cache-Control", v === "latest" ? "public, max-age=60" : immutable).json(dataPackageDescriptor(config.publicUrl, dataset, version, built));
+    res.set("Cache-Control", v === "latest" ? "public, max-age=60" : immutable).json(dataPackageDescriptor(config.publicUrl, dataset, version, built, { paths: "absolute" }));
   });
 
   defineRoute({
     method: "get", path: "/api/v1/datasets/{slug}/versions/{semver}/resources/{resource}.csv", operationId: "getResourceCsv", tags: ["Downloads"],
     summary: "One resource of a published version as CSV, with `Digest: sha-256=…`, a strong ETag and a describedby link to datapackage.json",
     params: resourceParams,
-    responses: { 200: { description: "The CSV", content: { "text/csv": { schema: z.string() } } }, 304: { description: "Not modified" }, 410: { description: "Withdrawn" }, ...problemResponses(404) },
+    responses: { 200: { description: "The CSV", content: { "text/csv": { schema: z.string() } } }, 304: { description: "Not modified" }, ...withdrawn, ...problemResponses(404) },
   }, async ({ params: { slug, semver: v, resource } }, req, res) => {
     const { dataset, version } = await publishedVersion(db, slug, v);
     const built = await buildResource(db, version, resource);

@@ -15,8 +15,9 @@ export function catalogRoutes(ctx: AppContext): Router {
     tags: ["Datasets"],
     summary: "The catalogue as W3C DCAT 3 (JSON-LD)",
     description:
-      "Every dataset with its published versions, chained by dcat:previousVersion (dcat:hasCurrentVersion names the newest), " +
-      "and each version's downloads as dcat:Distribution with media type, byte size and SHA-256 checksum (spdx:checksum). " +
+      "Every published version as a dcat:Dataset (under dcat:dataset), chained by dcat:previousVersion, with its downloads as " +
+      "dcat:Distribution (media type, format, byte size and SHA-256 checksum as spdx:checksum), theme and contact point; each " +
+      "dataset as a whole under dcat:resource, naming its versions with dcat:hasVersion and the newest with dcat:hasCurrentVersion. " +
       "The @context is inline, so it expands without fetching anything.",
     responses: {
       200: { description: "A dcat:Catalog", content: { "application/ld+json": { schema: z.record(z.string(), z.unknown()) } } },

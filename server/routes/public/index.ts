@@ -3,6 +3,7 @@ import type { AppContext } from "@/server/context";
 import { crossDatasetRoutes } from "./cross-dataset";
 import { datasetRoutes } from "./datasets";
 import { versionRowRoutes } from "./version-rows";
+import { viewSchemaRoutes } from "./view-schemas";
 
 /** The public read API: catalogue and version metadata, version rows, and rows across datasets. */
 export function publicRoutes(ctx: AppContext): Router {
@@ -10,5 +11,6 @@ export function publicRoutes(ctx: AppContext): Router {
   router.use(datasetRoutes(ctx));
   router.use(versionRowRoutes(ctx));
   router.use(crossDatasetRoutes(ctx));
+  router.use(viewSchemaRoutes(ctx));
   return router;
 }

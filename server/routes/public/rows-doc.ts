@@ -51,9 +51,9 @@ export function rowsRoute<Q extends z.ZodObject, P extends z.ZodObject | undefin
       (o.description ? `${o.description}\n\n` : "") +
       "JSON pages of `limit` rows (cursor paging: follow `nextPageToken` or the Link rel=next header). " +
       "CSV (`format=csv` or `Accept: text/csv`) streams every matching row in one answer, with " +
-      '`Link: </api/v1/openapi.json#/components/schemas/…Row>; rel="describedby"` (the row schema, whose properties are the columns) ' +
-      'and `rel="related"` links to the data dictionaries of the versions read; CRLF, UTF-8 without BOM, and text cells that start with ' +
-      "= + - @, a tab or a CR are prefixed with ' so spreadsheets read them as text.",
+      '`Link: </api/v1/schemas/{view}>; rel="describedby"` (the Table Schema of the CSV\'s columns) and `rel="related"` links to the data ' +
+      "dictionaries of the versions read; CRLF, UTF-8 without BOM, and text cells that start with = + - @, a tab or a CR are prefixed with ' so " +
+      "spreadsheets read them as text.",
     query: o.query,
     params: o.params,
     responses: <Responses>{

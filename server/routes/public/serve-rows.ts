@@ -6,6 +6,7 @@ import { cacheable, strongEtag, type Freshness } from "@/server/caching";
 import { streamCsv } from "@/server/csv";
 import { decodePageToken, encodePageToken, nextPageUrl, queryHash } from "@/server/paging";
 import type { RowResource, RowScope } from "@/server/services/public/row-resource";
+import { viewSchemaPath } from "@/server/services/public/view-schema";
 import { versionPath } from "@/server/services/public/versions";
 import type { ResolvedVersion } from "@/server/services/trial-filter";
 
@@ -66,9 +67,9 @@ export async function serveRows<Row extends { id: number }, F>(req: Request, res
   if (csv) {
     res.setHeader("Content-Type", "text/csv; charset=utf-8; header=present");
     res.setHeader("Content-Disposition", `inline; filename="${o.resource.name}.csv"`);
-    // The columns are the view's, not the dataset's: the OpenAPI component of the row describes them. The data
+    // The CSV's own columns are described by its view's Table Schema, not by the versions' resource schemas; the data
     // dictionaries of the versions read are linked as related.
-    const links = [`</api/v1/openapi.json#/components/schemas/${o.resource.rowSchema}>; rel="describedby"; type="application/vnd.oai.openapi+json"`];
+    const links = [`<${viewSchemaPath(o.resource.name)}>; rel="describedby"; type="application/json"`];
     for (const v of o.versions) links.push(`<${versionPath(v.datasetSlug, v.semver)}/schema>; rel="related"; title="data dictionary"`);
     res.setHeader("Link", links.join(", "));
     try {

@@ -7,7 +7,7 @@ import type { TableSchemaDescriptor } from "@/schemas/table-schema";
 import type { AppConfig } from "@/server/config";
 import { compareSemver } from "@/server/services/catalogue";
 import { latestPublishedOf, pickVersion } from "@/server/services/latest-version";
-import { citationCreators, type Creator } from "./creators";
+import { citationContributors, citationCreators, citationFunders, type CitationContributor, type Creator } from "./creators";
 import { licenceInfo, type LicenceInfo } from "./licences";
 
 /** The name every Plotbank DOI and citation gives as publisher. */
@@ -22,6 +22,12 @@ export interface CitableMetadata {
   region: string;
   crops: string[];
   creators: Creator[];
+  /** Everyone else who worked on it (curators, data collectors, project leaders …), by their role. */
+  contributors: CitationContributor[];
+  /** Who paid for the trials: funder contributors and the dataset's funding statement. */
+  funders: string[];
+  /** How the trials were run (design, harvest, soil sampling), as the curator wrote it. */
+  methods: string | null;
 }
 
 export interface CitableVersion extends CitableMetadata {
@@ -65,6 +71,8 @@ const snapshot = z
     region: z.string(),
     crops: z.array(z.string()),
     contributors: z.array(contributor),
+    funding: z.string().nullable(),
+    methods: z.string().nullable(),
   })
   .partial();
 
@@ -155,6 +163,9 @@ function toCitableVersion(config: AppConfig, d: DatasetRow, v: VersionRow, owner
     region: frozen.region ?? d.region,
     crops: frozen.crops ?? d.crops,
     creators: citationCreators(frozen.contributors ?? d.contributors, ownerName),
+    contributors: citationContributors(frozen.contributors ?? d.contributors),
+    funders: citationFunders(frozen.contributors ?? d.contributors, frozen.funding !== undefined ? frozen.funding : d.funding),
+    methods: (frozen.methods !== undefined ? frozen.methods : d.methods) || null,
     changelog: v.changelog,
     tableSchema: v.tableSchema,
     checksum: v.checksum,
@@ -167,8 +178,8 @@ function toCitableVersion(config: AppConfig, d: DatasetRow, v: VersionRow, owner
   };
 }
 
-function metadataOf({ title, description, licence, keywords, region, crops, creators }: CitableMetadata): CitableMetadata {
-  return { title, description, licence, keywords, region, crops, creators };
+function metadataOf({ title, description, licence, keywords, region, crops, creators, contributors, funders, methods }: CitableMetadata): CitableMetadata {
+  return { title, description, licence, keywords, region, crops, creators, contributors, funders, methods };
 }
 
 /** The released versions just before and after one, by semantic version. */

@@ -29,8 +29,9 @@ export const citationExtensions: Record<CitationFormat, string> = { text: "txt",
 
 /**
  * Render one CSL-JSON item with citation-js. Plain text follows APA 7 (its dataset pattern: "(Version x) [Dataset]").
- * BibTeX has no version or full-date fields for @misc, so it gets the version as a note and the year alone
- * (a day in `month` would not be valid BibTeX).
+ * BibTeX is written as biblatex's `@dataset` entry (with `version` and a full `date`): BibTeX itself has no dataset
+ * type, and parsers (citation-js, @retorquere/bibtex-parser) read `@dataset` back as a dataset where `@misc` comes
+ * back as a generic document. Plain-BibTeX styles treat the unknown type as @misc.
  * The abstract stays in CSL-JSON only: a reference list does not carry it.
  */
 export function renderCitation(original: CslItem, format: CitationFormat): string {
@@ -43,16 +44,38 @@ export function renderCitation(original: CslItem, format: CitationFormat): strin
     case "text":
       return `${new Cite([item]).format("bibliography", { format: "text", template: "apa", lang: "en-US" }).trim()}\n`;
     case "bibtex": {
-      const year = item.issued["date-parts"][0][0];
-      const bib: CslItem = { ...item, issued: { "date-parts": [[year]] }, note: `Version ${item.version}` };
+      const bib: CslItem & { "citation-key": string } = { ...item, "citation-key": bibtexKey(item) };
       delete bib.abstract;
-      return `${new Cite([bib]).format("bibtex", { format: "text" }).trim()}\n`;
+      return `${new Cite([bib]).format("biblatex", { format: "text" }).trim()}\n`;
     }
-    case "ris": {
-      // RIS writers wrap a long abstract over lines many readers do not join again; a reference needs none.
-      const ris: CslItem = { ...item };
-      delete ris.abstract;
-      return `${new Cite([ris]).format("ris", { format: "text" }).trim()}\n`;
-    }
+    case "ris":
+      return risText(item);
   }
 }
+
+/**
+ * A cite key unique to the dataset and version (two versions, or two datasets, can share one .bib file). Letters,
+ * digits and underscores only: citation-js replaces a key with other characters by an author-year-title label.
+ */
+function bibtexKey(item: Pick<CslItem, "id">): string {
+  return item.id.replace(/[^A-Za-z0-9]+/g, "_");
+}
+
+/**
+ * RIS: one "TAG  - value" line per value. citation-js's text output breaks values every 70 characters, which readers
+ * do not join again (a URL came back with a space in it), so its tag objects are written out here whole.
+ */
+function risText(item: CslItem): string {
+  const ris: CslItem = { ...item };
+  // A reference needs no abstract, and a long one is what other RIS writers wrap.
+  delete ris.abstract;
+  const [entry] = new Cite([ris]).format("ris", { format: "object" }) as unknown as Record<string, string | string[]>[];
+  const line = (tag: string, value: string) => `${tag}  - ${value.replace(/\s*[\r\n]+\s*/g, " ")}`;
+  const lines = [line("TY", String(entry!.TY))];
+  for (const [tag, value] of Object.entries(entry!)) {
+    if (tag !== "TY") for (const v of [value].flat()) lines.push(line(tag, String(v)));
+  }
+  lines.push("ER  -");
+  return `${lines.join("\n")}\n`;
+}
+

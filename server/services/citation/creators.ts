@@ -40,3 +40,30 @@ function toCreator(c: Contributor): Creator {
   const givenName = words.slice(0, -1).join(" ");
   return { name: `${familyName}, ${givenName}`, personal: true, givenName, familyName, ...base };
 }
+
+/** A contributor who is not a creator, with the DataCite contributorType of their role. */
+export interface CitationContributor extends Creator {
+  contributorType: "DataCurator" | "DataCollector" | "ProjectLeader" | "Other";
+}
+
+const contributorTypes: Partial<Record<Contributor["role"], CitationContributor["contributorType"]>> = {
+  curator: "DataCurator",
+  data_collector: "DataCollector",
+  project_leader: "ProjectLeader",
+  other: "Other",
+};
+
+/** Contributors with a role other than creator and funder (funders are funding, not contributors, in DataCite 4). */
+export function citationContributors(contributors: Contributor[]): CitationContributor[] {
+  return contributors.flatMap((c) => {
+    const contributorType = contributorTypes[c.role];
+    return contributorType ? [{ ...toCreator(c), contributorType }] : [];
+  });
+}
+
+/** Funders: contributors in the funder role, then the dataset's funding statement when it names someone else. */
+export function citationFunders(contributors: Contributor[], funding: string | null | undefined): string[] {
+  const named = contributors.filter((c) => c.role === "funder").map((c) => c.name.trim());
+  const statement = funding?.trim();
+  return statement && !named.includes(statement) ? [...named, statement] : named;
+}

@@ -1,6 +1,6 @@
-import type { DataCiteAttributes, DataCiteCreator, DataCiteRelatedIdentifier } from "@/server/doi/datacite-metadata";
+import type { DataCiteAttributes, DataCiteContributor, DataCiteCreator, DataCiteRelatedIdentifier } from "@/server/doi/datacite-metadata";
 import { neighbours, publisherName, type CitableDataset, type CitableMetadata, type CitableVersion } from "./citable-version";
-import type { Creator } from "./creators";
+import type { CitationContributor, Creator } from "./creators";
 import type { LicenceInfo } from "./licences";
 
 const resourceType = "Fertilizer field-trial data";
@@ -62,13 +62,18 @@ function describe(meta: CitableMetadata, doi: string, url: string, firstPublishe
     event: "publish",
     url,
     creators: meta.creators.map(dataciteCreator),
+    ...(meta.contributors.length ? { contributors: meta.contributors.map(dataciteContributor) } : {}),
+    ...(meta.funders.length ? { fundingReferences: meta.funders.map((funderName) => ({ funderName })) } : {}),
     titles: [{ title: meta.title }],
     publisher: publisherName,
     publicationYear: firstPublished.getUTCFullYear(),
     types: { resourceTypeGeneral: "Dataset", resourceType },
     language: "en",
     subjects: meta.keywords.map((subject) => ({ subject })),
-    descriptions: [{ description: meta.description, descriptionType: "Abstract" }],
+    descriptions: [
+      { description: meta.description, descriptionType: "Abstract" },
+      ...(meta.methods ? [{ description: meta.methods, descriptionType: "Methods" as const }] : []),
+    ],
     rightsList: [rights(meta.licence)],
     geoLocations: [{ geoLocationPlace: meta.region }],
   };
@@ -83,6 +88,10 @@ function dataciteCreator(c: Creator): DataCiteCreator {
     ...(c.orcid ? { nameIdentifiers: [{ nameIdentifier: `https://orcid.org/${c.orcid}`, nameIdentifierScheme: "ORCID", schemeUri: "https://orcid.org" }] } : {}),
     ...(c.affiliation ? { affiliation: [{ name: c.affiliation }] } : {}),
   };
+}
+
+function dataciteContributor(c: CitationContributor): DataCiteContributor {
+  return { ...dataciteCreator(c), contributorType: c.contributorType };
 }
 
 function rights(licence: LicenceInfo) {

@@ -48,20 +48,44 @@ export async function buildResource(db: Db, version: Version, resource: Resource
 }
 
 /** The resource's schema, with the formula guard's note on each field whose published cells it changed. */
-function servedSchema(version: Version, built: BuiltResource): TableSchemaResource {
-  const schema = resourceSchema(version, built.name);
+function servedSchema(version: Version, built: BuiltResource) {
+  const schema = packageResourceSchema(version, built.name);
   return {
     ...schema,
     fields: schema.fields.map((f) => (built.guarded.has(f.name) ? { ...f, description: [f.description, formulaGuardNote].filter(Boolean).join(" ") } : f)),
   };
 }
 
-/** datapackage.json (Frictionless Data Package v2, with the v1 profile names for older readers). */
-export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, version: Version, built: BuiltResource[]) {
+/**
+ * A resource's Table Schema as the package publishes it: Table Schema v2, written so Table Schema v1 readers accept it
+ * too. Missing values are plain strings (v1 knows no `{ value, label }` objects; v2 accepts both), and their labels
+ * go into the schema's description. `categories` (v2) is an extra property v1 readers skip.
+ */
+function packageResourceSchema(version: Version, resource: ResourceName) {
+  const { missingValues, ...schema } = resourceSchema(version, resource);
+  return {
+    $schema: "https://datapackage.org/profiles/2.0/tableschema.json",
+    ...schema,
+    ...(missingValues
+      ? {
+          missingValues: missingValues.map((m) => m.value),
+          description: `Missing values: ${missingValues.map((m) => `"${m.value}" = ${m.label}`).join("; ")}.`,
+        }
+      : {}),
+  };
+}
+
+/**
+ * datapackage.json as Frictionless Data Package v2 (`$schema`), with the v1 `profile` names that v1 readers use to
+ * recognise a tabular package. Inside the zip the paths are relative (`data/sites.csv`); the descriptor served on its
+ * own (`paths: "absolute"`) names each file by the URL that serves it, so it works from its address.
+ */
+export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, version: Version, built: BuiltResource[], { paths = "relative" }: { paths?: "relative" | "absolute" } = {}) {
   const meta = (version.metadataSnapshot ?? {}) as Partial<Dataset>;
   const licence = meta.licence ?? dataset.licence;
   const known = licences[licence];
   const contributors = (meta.contributors ?? dataset.contributors) as Contributor[];
+  const keywords = (meta.keywords ?? dataset.keywords) as string[];
   const base = `${publicUrl}/api/v1/datasets/${dataset.slug}/versions/${version.semver}`;
   return {
     $schema: "https://datapackage.org/profiles/2.0/datapackage.json",
@@ -73,14 +97,19 @@ export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, versi
     version: version.semver,
     created: version.publishedAt?.toISOString(),
     homepage: `${publicUrl}/datasets/${dataset.slug}`,
-    keywords: meta.keywords ?? dataset.keywords,
+    // Both profiles want at least one keyword and one contributor when the property is there at all.
+    ...(keywords.length ? { keywords } : {}),
     licenses: [{ name: licence, ...(known ?? {}) }],
-    contributors: contributors.map((c) => ({
-      title: c.name,
-      roles: [c.role],
-      ...(c.orcid ? { path: `https://orcid.org/${c.orcid}` } : {}),
-      ...(c.affiliation ? { organization: c.affiliation } : {}),
-    })),
+    ...(contributors.length
+      ? {
+          contributors: contributors.map((c) => ({
+            title: c.name,
+            roles: [c.role],
+            ...(c.orcid ? { path: `https://orcid.org/${c.orcid}` } : {}),
+            ...(c.affiliation ? { organization: c.affiliation } : {}),
+          })),
+        }
+      : {}),
     plotbank: {
       checksum: version.checksum,
       checksumOf: "SHA-256 over, for each resource in the order sites, site_years, soil_tests, treatments, plots, summaries, its name, a line feed and its CSV file as served",
@@ -91,10 +120,10 @@ export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, versi
       ...(version.tableSchema.soilTestSchemes?.length ? { soilTestSchemes: version.tableSchema.soilTestSchemes } : {}),
     },
     resources: built.map((r) => ({
-      name: r.name.replace("_", "-"),
+      name: r.name,
       type: "table",
       profile: "tabular-data-resource",
-      path: `data/${r.name}.csv`,
+      path: paths === "absolute" ? `${base}/resources/${r.name}.csv` : `data/${r.name}.csv`,
       format: "csv",
       mediatype: "text/csv",
       encoding: "utf-8",

@@ -19,54 +19,74 @@ const dcatContext = {
   rdfs: "http://www.w3.org/2000/01/rdf-schema#",
   adms: "http://www.w3.org/ns/adms#",
   locn: "http://www.w3.org/ns/locn#",
+  vcard: "http://www.w3.org/2006/vcard/ns#",
 } as const;
+
+/**
+ * The theme and file-type vocabularies of the EU Publications Office, which DCAT-AP profiles and the harvesters built
+ * on them use (from memory of those authority tables: data-theme AGRI is "Agriculture, fisheries, forestry and food").
+ */
+const themeScheme = "http://publications.europa.eu/resource/authority/data-theme";
+const agricultureTheme = { "@id": `${themeScheme}/AGRI` };
+const fileTypes: Record<string, string> = {
+  "application/zip": "http://publications.europa.eu/resource/authority/file-type/ZIP",
+  "text/csv": "http://publications.europa.eu/resource/authority/file-type/CSV",
+};
 
 const ianaMediaType = (mediaType: string) => ({ "@id": `https://www.iana.org/assignments/media-types/${mediaType}` });
 const doiIri = (doi: string) => `https://doi.org/${doi}`;
 
+export const catalogueTitle = "Plotbank field-trial catalogue";
+
 /**
- * The catalogue as W3C DCAT 3: each dataset is a dcat:Dataset whose versions are dcat:Datasets of their own,
- * chained by dcat:previousVersion, with dcat:hasVersion and dcat:hasCurrentVersion on the dataset. Only published
- * versions are listed (a withdrawn version's files are no longer served).
+ * The catalogue as W3C DCAT 3 versioning has it: every published version is a dcat:Dataset of its own, listed under
+ * dcat:dataset with its distributions, so a harvester that follows dcat:dataset reaches files. Each dataset as a whole
+ * (the concept, no files of its own) is listed under dcat:resource and names its versions with dcat:hasVersion and
+ * the newest with dcat:hasCurrentVersion; versions point back with dct:isVersionOf and are chained by
+ * dcat:previousVersion. Only published versions are listed (a withdrawn version's files are no longer served).
  */
 export async function dcatCatalog(ctx: AppContext): Promise<Node> {
   const { db, config } = ctx;
   const catalogue = await loadCitableCatalogue(db, config);
   const listed = catalogue.map((d) => ({ d, published: d.versions.filter((v) => v.state === "published") })).filter((x) => x.published.length);
   const seasons = await seasonsByVersion(db, listed.flatMap((x) => x.published.map((v) => v.versionId)));
-  const datasets: Node[] = [];
+  const concepts: Node[] = [];
+  const versions: Node[] = [];
   for (const { d, published } of listed) {
-    const versions: Node[] = [];
     for (let i = 0; i < published.length; i++) {
       const v = published[i]!;
       const distributions = await versionDistributions(db, config, d.slug, v);
       versions.push(versionNode(config.publicUrl, d, v, published[i - 1], seasons.get(v.versionId), distributions));
     }
-    datasets.push({
+    concepts.push({
       "@id": d.landingUrl,
       "@type": "dcat:Dataset",
       "dct:title": d.title,
       "dct:description": d.description,
       ...(d.conceptDoi ? { "dct:identifier": d.conceptDoi, "adms:identifier": { "@id": doiIri(d.conceptDoi) } } : {}),
       "dcat:keyword": d.keywords,
+      "dcat:theme": agricultureTheme,
       "dct:license": licenceNode(d.licence),
       "dct:publisher": publisherNode(config.publicUrl),
       "dct:creator": d.creators.map(agentNode),
+      "dcat:contactPoint": contactNode(d),
       "dcat:landingPage": { "@id": d.landingUrl },
       "dct:spatial": spatialNode(d.region),
       "dcat:hasCurrentVersion": { "@id": published[published.length - 1]!.landingUrl },
-      "dcat:hasVersion": versions,
+      "dcat:hasVersion": published.map((v) => ({ "@id": v.landingUrl })),
     });
   }
   return {
     "@context": dcatContext,
     "@id": `${config.publicUrl}/api/v1/catalog`,
     "@type": "dcat:Catalog",
-    "dct:title": "Plotbank field-trial catalogue",
+    "dct:title": catalogueTitle,
     "dct:description": "Versioned fertilizer field-trial datasets, each version citable and downloadable as a Frictionless Data Package.",
     "dct:publisher": publisherNode(config.publicUrl),
     "foaf:homepage": { "@id": config.publicUrl },
-    "dcat:dataset": datasets,
+    "dcat:themeTaxonomy": { "@id": themeScheme },
+    "dcat:dataset": versions,
+    "dcat:resource": concepts,
   };
 }
 
@@ -86,6 +106,8 @@ function versionNode(publicUrl: string, d: CitableDataset, v: CitableVersion, pr
     "dct:publisher": { "@id": `${publicUrl}#publisher` },
     "dct:creator": v.creators.map(agentNode),
     "dcat:keyword": v.keywords,
+    "dcat:theme": agricultureTheme,
+    "dcat:contactPoint": contactNode(d),
     "dcat:landingPage": { "@id": v.landingUrl },
     ...(seasons
       ? {
@@ -109,6 +131,7 @@ function distributionNode(x: Distribution, v: CitableVersion): Node {
     "dcat:downloadURL": { "@id": x.downloadUrl },
     "dcat:accessURL": { "@id": x.downloadUrl },
     "dcat:mediaType": ianaMediaType(x.mediaType),
+    ...(fileTypes[x.mediaType] ? { "dct:format": { "@id": fileTypes[x.mediaType] } } : {}),
     "dct:conformsTo": { "@id": x.conformsTo },
     "dct:license": licenceNode(v.licence),
     ...(x.byteSize !== undefined ? { "dcat:byteSize": { "@value": String(x.byteSize), "@type": "xsd:nonNegativeInteger" } } : {}),
@@ -126,6 +149,15 @@ function distributionNode(x: Distribution, v: CitableVersion): Node {
 
 function licenceNode(licence: CitableVersion["licence"]): Node {
   return licence.url ? { "@id": licence.url, "rdfs:label": licence.name } : { "@id": `https://spdx.org/licenses/${encodeURIComponent(licence.spdx)}.html`, "rdfs:label": licence.name };
+}
+
+/**
+ * Whom to ask about a dataset: the dataset's page, where its curators answer (DCAT-AP's vcard:Kind with a URL). No
+ * person's e-mail address is published here.
+ */
+function contactNode(d: CitableDataset): Node {
+  const group = d.creators.find((c) => !c.personal);
+  return { "@type": "vcard:Organization", "vcard:fn": group?.name ?? `${publisherName} curators`, "vcard:hasURL": { "@id": d.landingUrl } };
 }
 
 function publisherNode(publicUrl: string): Node {

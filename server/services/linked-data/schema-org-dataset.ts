@@ -3,6 +3,7 @@ import { findVersion, loadCitableDataset, publisherName, type CitableDataset, ty
 import type { Creator } from "@/server/services/citation/creators";
 import type { TableSchemaDescriptor } from "@/schemas/table-schema";
 import { seasonsByVersion } from "./coverage";
+import { catalogueTitle } from "./dcat-catalog";
 import { versionDistributions } from "./distributions";
 import { latestAlias } from "@/server/services/latest-version";
 
@@ -12,6 +13,8 @@ type Node = Record<string, unknown>;
  * schema.org Dataset markup, as search engines read it from a page: of the dataset's current published version, or
  * of the released version `semver` names (the page a version's DOI resolves to). A pinned version is its own node
  * (@id its page), part of the dataset as a whole; a withdrawn one is described as a tombstone, without downloads.
+ * The unversioned page describes the dataset as a whole: its identifier is the concept DOI, and the current version
+ * (with its own DOI) is a part of it.
  * The context is the usual "https://schema.org" string, which every crawler knows without fetching it.
  */
 export async function schemaOrgDataset(
@@ -33,6 +36,9 @@ export async function schemaOrgDataset(
   ]);
   const span = seasons.get(version.versionId);
   const url = pinned ? version.landingUrl : dataset.landingUrl;
+  const versionDoi = version.doi ? `https://doi.org/${version.doi}` : undefined;
+  const conceptDoi = dataset.conceptDoi ? `https://doi.org/${dataset.conceptDoi}` : undefined;
+  const doi = pinned ? versionDoi : conceptDoi;
   const wholeDataset: Node = {
     "@type": "Dataset",
     "@id": dataset.landingUrl,
@@ -50,13 +56,15 @@ export async function schemaOrgDataset(
     version: version.semver,
     ...(withdrawn ? { creativeWorkStatus: "Withdrawn" } : {}),
     datePublished: version.publishedAt.toISOString().slice(0, 10),
-    ...(version.doi ? { identifier: `https://doi.org/${version.doi}`, sameAs: `https://doi.org/${version.doi}` } : {}),
+    ...(doi ? { identifier: doi, sameAs: doi } : {}),
     // schema.org reads a string license as a URL (the context types it @id): a licence without a known deed URL is
     // named as a CreativeWork instead, not left as a bare identifier that would read as a relative IRI.
     license: version.licence.url ?? { "@type": "CreativeWork", name: version.licence.name, identifier: version.licence.spdx },
     isAccessibleForFree: true,
     keywords: version.keywords,
     creator: version.creators.map(creatorNode),
+    ...(version.funders.length ? { funder: version.funders.map((name) => ({ "@type": "Organization", name })) } : {}),
+    ...(version.methods ? { measurementTechnique: version.methods } : {}),
     publisher: { "@type": "Organization", name: publisherName, url: ctx.config.publicUrl },
     ...(span ? { temporalCoverage: span.from === span.to ? String(span.from) : `${span.from}/${span.to}` } : {}),
     spatialCoverage: { "@type": "Place", name: version.region },
@@ -67,11 +75,19 @@ export async function schemaOrgDataset(
       encodingFormat: x.mediaType,
       contentUrl: x.downloadUrl,
     })),
+    includedInDataCatalog: { "@type": "DataCatalog", "@id": `${ctx.config.publicUrl}/api/v1/catalog`, name: catalogueTitle, url: ctx.config.publicUrl },
     ...(pinned
       ? { isPartOf: wholeDataset }
-      : dataset.conceptDoi
-        ? { isPartOf: { "@type": "Dataset", "@id": `https://doi.org/${dataset.conceptDoi}`, name: dataset.title } }
-        : {}),
+      : {
+          hasPart: {
+            "@type": "Dataset",
+            "@id": version.landingUrl,
+            url: version.landingUrl,
+            name: `${version.title} (version ${version.semver})`,
+            version: version.semver,
+            ...(versionDoi ? { identifier: versionDoi, sameAs: versionDoi } : {}),
+          },
+        }),
   };
   return { dataset, version, pinned, jsonLd };
 }

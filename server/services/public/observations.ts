@@ -8,7 +8,7 @@ import { columnsFromFields, moistureBasisOf, orNull, provenanceLookup, versionId
 /** Plot observations with their site-year and treatment codes; yields in the unit asked for. */
 export const observationResource: RowResource<ObservationRow, Partial<TrialFilters>> = {
   name: "observations",
-  rowSchema: "ObservationRow",
+  row: observationRow,
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
     const rows = await db

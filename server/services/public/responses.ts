@@ -15,7 +15,7 @@ const checkTreatment = alias(treatments, "check_treatment");
  */
 export const responseResource: RowResource<ResponseRow, TrialFilters> = {
   name: "responses",
-  rowSchema: "ResponseRow",
+  row: responseRow,
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
     const rows = await db

@@ -1,3 +1,4 @@
+import type { z } from "zod";
 import type { Db } from "@/db/client";
 import type { YieldUnit } from "@/schemas/public";
 import type { CsvColumn, CsvValue } from "@/server/csv";
@@ -17,10 +18,12 @@ export interface RowScope<F> {
  */
 export interface RowResource<Row extends { id: number }, F> {
   name: string;
-  /** The OpenAPI component that describes one row (the CSV has the same columns, lists joined by ";"). */
-  rowSchema: string;
+  /** The row's contract schema: JSON pages are its items, and the CSV's Table Schema is derived from it. */
+  row: z.ZodObject;
   readBatch(db: Db, scope: RowScope<F>, afterId: number, limit: number): Promise<Row[]>;
   csvColumns: readonly CsvColumn<Row>[];
+  /** Table Schema facts of CSV columns that are not a field of the row (flattened ones). */
+  csvFields?: Record<string, { type: "string" | "number" | "integer"; description: string }>;
 }
 
 export function versionIdsOf(scope: RowScope<unknown>): string[] {

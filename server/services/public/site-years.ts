@@ -21,9 +21,16 @@ const soilColumns: CsvColumn<SiteYearRow>[] = (["P", "K", "S"] as const).flatMap
   return [column("Value", (t) => t.value), column("Unit", (t) => t.unit), column("Extractant", (t) => t.extractant), column("Class", (t) => t.class), column("ReportedClass", (t) => t.reportedClass), column("Scheme", (t) => t.interpretation)];
 });
 
+const soilFieldFacts = (["P", "K", "S"] as const).flatMap((analyte) => [
+  [`soil${analyte}Value`, { type: "number" as const, description: `Soil-test ${analyte} value, in soil${analyte}Unit` }],
+  [`soil${analyte}Unit`, { type: "string" as const, description: `Unit of the soil-test ${analyte} value` }],
+  [`soil${analyte}Extractant`, { type: "string" as const, description: `Extractant of the soil-test ${analyte} value` }],
+  [`soil${analyte}Class`, { type: "string" as const, description: `Soil-test ${analyte} class (very_low … very_high)` }],
+]);
+
 export const siteYearResource: RowResource<SiteYearRow, Partial<TrialFilters>> = {
   name: "site-years",
-  rowSchema: "SiteYearRow",
+  row: siteYearRow,
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
     const rows = await db
@@ -62,4 +69,5 @@ export const siteYearResource: RowResource<SiteYearRow, Partial<TrialFilters>> =
     }));
   },
   csvColumns: columnsFromFields<SiteYearRow>(Object.keys(siteYearRow.shape) as (keyof SiteYearRow)[], { soilTests: soilColumns }),
+  csvFields: Object.fromEntries(soilFieldFacts),
 };

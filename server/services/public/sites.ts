@@ -5,7 +5,7 @@ import { columnsFromFields, provenanceLookup, versionIdsOf, type RowResource } f
 
 export const siteResource: RowResource<SiteRow, object> = {
   name: "sites",
-  rowSchema: "SiteRow",
+  row: siteRow,
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
     const rows = await db

@@ -12,7 +12,7 @@ const applicationText = (a: Application) => `${a.product} ${a.grade} ${a.product
 
 export const treatmentResource: RowResource<TreatmentRow, Partial<TrialFilters>> = {
   name: "treatments",
-  rowSchema: "TreatmentRow",
+  row: treatmentRow,
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
     const rows = await db
