@@ -19,7 +19,8 @@ export const me = z
 export type Me = z.infer<typeof me>;
 
 /** "Who am I": the signed-in user, or null for a visitor (an answer, not an error, so a browser logs nothing). */
-export const sessionState = z.object({ user: me.nullable() }).meta({ id: "SessionState" });
+// A union, not me.nullable(): the generated document keeps the null beside the Me component's $ref.
+export const sessionState = z.object({ user: z.union([me, z.null()]) }).meta({ id: "SessionState" });
 export type SessionState = z.infer<typeof sessionState>;
 
 export const signInBody = z
@@ -103,7 +104,8 @@ const roleChangeEntry = z
     id: z.string(),
     at: z.string(),
     /** Null when the account was created with the role by accepting an invitation. */
-    fromRole: role.nullable(),
+    // A union, not role.nullable(): the generated document keeps the null beside the Role component's $ref.
+    fromRole: z.union([role, z.null()]),
     toRole: role,
     user: z.object({ id: z.string(), displayName: z.string(), email: z.string() }),
     actor: z.object({ id: z.string(), displayName: z.string() }).nullable(),

@@ -22,6 +22,9 @@ function inlineScriptHashes(html: string): string[] {
   return hashes;
 }
 
+/** The page to serve: index.html as a transform left it, and whether what the address names exists (else 404). */
+export type PageAnswer = string | { html: string; found: boolean };
+
 /**
  * Serve the exported Expo web app. Hashed bundles are cached for a year; every other path that is not a file gets
  * index.html, so a deep link (a shared analysis, a dataset page) works on reload. A path that no route file in app/
@@ -31,7 +34,7 @@ function inlineScriptHashes(html: string): string[] {
 export function mountWebApp(
   app: Express,
   distDir = webDistDir,
-  transformIndex?: (html: string, url: string) => Promise<string> | string,
+  transformIndex?: (html: string, url: string) => Promise<PageAnswer> | PageAnswer,
   isScreen: (pathname: string) => boolean = appRouteMatcher(),
 ): string[] {
   const indexPath = path.join(distDir, "index.html");
@@ -61,9 +64,10 @@ export function mountWebApp(
     if (req.path.startsWith("/api/")) return next();
     try {
       // The whole URL: a page may depend on its query (a dataset page on ?version=).
-      const html = transformIndex ? await transformIndex(indexHtml, req.originalUrl) : indexHtml;
+      const page = transformIndex ? await transformIndex(indexHtml, req.originalUrl) : indexHtml;
+      const { html, found } = typeof page === "string" ? { html: page, found: true } : page;
       res.setHeader("Cache-Control", "no-cache");
-      res.status(isScreen(req.path) ? 200 : 404).type("html").send(html);
+      res.status(found && isScreen(req.path) ? 200 : 404).type("html").send(html);
     } catch (error) {
       next(error);
     }

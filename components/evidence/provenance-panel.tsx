@@ -24,6 +24,9 @@ export function ProvenancePanel({ result }: { result: MetaAnalysisResponse }) {
         {p.k} site-years used from {p.contrastsRead} treatment-vs-check responses; {p.excluded.length} site-year{p.excluded.length === 1 ? "" : "s"} left out. Method: {p.method}
         {p.method === "FE" ? "" : " τ²"}, {p.ci === "hksj" ? "HKSJ" : "Wald"} CI, effect {p.effect === "md" ? "yield difference" : "log response ratio"} in {p.units}.
       </Text>
+      <Text variant="caption" testID="nutrient-rule">
+        Nutrient rule: {p.nutrientRule.text}
+      </Text>
       {p.excluded.length ? (
         <Disclosure title={`Left out: ${p.excluded.length}`} hint="Tap to see why" testID="excluded-toggle">
           <View style={styles.list}>

@@ -89,6 +89,13 @@ export function routeModule(registry: Registry) {
     const guards = spec.guards ?? [];
     const json = spec.body && "json" in spec.body ? spec.body.json : undefined;
     const body = spec.body && "stream" in spec.body ? { description: spec.body.description, content: spec.body.stream } : json ? { content: { "application/json": { schema: json } } } : undefined;
+    // The answers the shared parts can give before or after the handler, declared on every operation that can meet
+    // them: a path, query or body value that is refused (400, e.g. a control character in a path segment), a
+    // credential that is sent but invalid, revoked or expired (401, on any operation), the cross-site guard on writes
+    // (403), the body's size and media type (413, 415) and the error handler (500).
+    const write = spec.method !== "get";
+    const parsed = spec.params || spec.query || body;
+    const shared = problemResponses(...(parsed ? [400] : []), 401, ...(write ? [403] : []), ...(body ? [413, 415] : []), 500);
     const route: RouteConfig = {
       method: spec.method,
       path: spec.path,
@@ -98,7 +105,7 @@ export function routeModule(registry: Registry) {
       ...(spec.description ? { description: spec.description } : {}),
       security: securityOf(guards),
       request: { ...(spec.params ? { params: spec.params } : {}), ...(spec.query ? { query: spec.query } : {}), ...(body ? { body } : {}) },
-      responses: rateLimitExempt.has(path) ? spec.responses : withRateLimitHeaders(spec.responses),
+      responses: rateLimitExempt.has(path) ? { ...shared, ...spec.responses } : withRateLimitHeaders({ ...shared, ...spec.responses }),
     };
     registry.registerPath(route);
 

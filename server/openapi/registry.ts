@@ -40,6 +40,11 @@ export const problemResponses = (...statuses: number[]) =>
     ]),
   );
 
+/** One error answer with a description of its own, e.g. the 410 of a used link. */
+export const problemResponse = (status: number, description: string) => ({
+  [status]: { description, content: { "application/problem+json": { schema: problemSchema } } },
+});
+
 const problemDescriptions: Record<number, string> = {
   400: "A parameter or the body is not valid; `errors` names each field.",
   401: "No valid session or token.",
@@ -47,7 +52,9 @@ const problemDescriptions: Record<number, string> = {
   404: "Not found.",
   409: "The resource's state does not allow this.",
   413: "The body is larger than the limit.",
+  415: "The body is not of a media type this operation accepts (JSON, or multipart for uploads).",
   429: "Over the rate limit; see Retry-After.",
+  500: "The server failed; the problem carries no detail of the failure.",
 };
 
 export function generateOpenApiDocument(registry: OpenAPIRegistry, version: string, serverUrl = "/") {

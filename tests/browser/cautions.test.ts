@@ -42,6 +42,10 @@ describe("the cautions card follows the question", () => {
     expect(text.indexOf("placed with the seed")).toBeLessThan(text.indexOf("field can differ"));
     expect(await page.getByTestId("caution-band-n-k2o-rate").count()).toBe(0);
     expect(await page.getByTestId("cautions-untripped").first().innerText()).toMatch(/2x2 band/);
+    // The screen says which nutrient rule chose these treatments: the tested nutrient, not any amount supplied.
+    const rule = await page.getByTestId("nutrient-rule").first().innerText();
+    expect(rule).toContain("nutrient=P");
+    expect(rule).toContain(api.provenance.nutrientRule.text);
     await card.scrollIntoViewIfNeeded();
     await screenshot(page, "cautions-in-furrow-phone");
     await card.screenshot({ path: `${artifactsDir}/cautions-card-in-furrow-phone.png` });

@@ -264,11 +264,11 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     expect(ldOf(res.text).description).toBe("Ends early? </SCRIPT><img src=x onerror=alert(1)>");
   });
 
-  it("other pages, and datasets with nothing published, are served unchanged", async () => {
+  it("other pages are served unchanged; a dataset with nothing published gets the app without markup, as a 404", async () => {
     const plain = await request(web).get("/datasets").expect(200);
     expect(plain.text).toContain("<title>Plotbank</title>");
     expect(plain.text).not.toContain("application/ld+json");
-    const unknown = await request(web).get("/datasets/not-published-anywhere").expect(200);
+    const unknown = await request(web).get("/datasets/not-published-anywhere").expect(404);
     expect(unknown.text).not.toContain("application/ld+json");
   });
 });

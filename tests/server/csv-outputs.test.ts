@@ -54,7 +54,8 @@ describe("one CSV writer for every output", () => {
     expect(rows[1]).toEqual(["TB-01", `'=HYPERLINK("http://evil.test","open")`, "'@SUM(1+1)", "silt loam"]);
     expect(rows[2]).toEqual(["TB-02", "'+1+1 County", "'-Marrow", "clay loam"]);
     const dp = (await request(t.app).get(`${base}/datapackage.json`).expect(200)).body;
-    const sites = dp.resources.find((r: { path: string }) => r.path === "data/sites.csv");
+    // The standalone descriptor names each file by the URL that serves it.
+    const sites = dp.resources.find((r: { name: string }) => r.name === "sites");
     expect(sites.bytes).toBe(csv.length);
     expect(sites.hash).toBe(`sha256:${createHash("sha256").update(csv).digest("hex")}`);
     const note = (name: string) => sites.schema.fields.find((x: { name: string }) => x.name === name).description ?? "";
@@ -62,7 +63,7 @@ describe("one CSV writer for every output", () => {
     expect(note("soil_series")).toMatch(/leading apostrophe/);
     expect(note("site")).not.toMatch(/apostrophe/);
     // Numbers are never guarded: a negative yield response in the plots stays a number.
-    const plots = dp.resources.find((r: { path: string }) => r.path === "data/plots.csv");
+    const plots = dp.resources.find((r: { name: string }) => r.name === "plots");
     expect(JSON.stringify(plots.schema)).not.toMatch(/apostrophe/);
   });
 

@@ -22,37 +22,6 @@ export function takeAnswerMismatches(): string[] {
   return mismatches.splice(0);
 }
 
-/**
- * Mismatches whose cause is in how the routes declare their answers, which is being reworked where every route is
- * defined (one route definition for all). Each entry names its cause; a listed mismatch is not reported. Remove each
- * entry once that work has landed: a stale entry would hide a regression.
- */
-const knownMismatches: { pattern: RegExp; reason: string }[] = [
-  {
-    pattern: /^[A-Z]+ \/api\/v1\/(curation\/versions\/[^ ]+|datasets\/[^/ ]+\/versions) → 20[012]: body does not match .*'doi'/,
-    reason: "two components are named VersionDetail and the document keeps the public one, so curation version answers are checked against it",
-  },
-  {
-    pattern: /^POST \/api\/v1\/curation\/versions\/[^/]+\/uploads\/[a-z_]+ → 422: body does not match /,
-    reason: "the upload's 422 body (its `errors` array, and `warnings`) is declared with the wrong shape",
-  },
-  {
-    pattern: / → 401: status 401 is not declared/,
-    reason: "operations declare no security, so the 401 any of them gives an invalid, revoked or expired token is not declared",
-  },
-  {
-    pattern: / → (403|413|415|429|500): status \d+ is not declared/,
-    reason: "answers of the shared middleware (cross-site guard 403, body limit 413, body type 415, rate limit 429, error handler 500) are not declared on every operation",
-  },
-  {
-    pattern: /^POST \/api\/v1\/(password-reset\/confirm|invitations\/accept|email-verification) → 410: answered application\/problem\+json but .* declares no content/,
-    reason: "the accounts routes declare their 410 without its problem body",
-  },
-  {
-    pattern: /^GET \/api\/v1\/admin\/role-changes → 200: body does not match .*\/fromRole must be string/,
-    reason: "the Role enum component loses the null of a nullable role (fromRole of an invitation grant)",
-  },
-];
 
 interface Operation {
   method: string;
@@ -145,8 +114,7 @@ export function answerCheckMiddleware(document: () => OpenApiDocument): RequestH
       checker ??= answerChecker(document());
       const path = req.originalUrl.split("?")[0]!;
       const problem = checker.check(req.method, path, res.statusCode, res.getHeader("content-type") as string | undefined, Buffer.concat(chunks));
-      // PLOTBANK_ANSWER_CHECK_STRICT=1 reports the known mismatches too (to see which entries are still needed).
-      if (problem && (process.env.PLOTBANK_ANSWER_CHECK_STRICT === "1" || !knownMismatches.some((k) => k.pattern.test(problem)))) mismatches.push(problem);
+      if (problem) mismatches.push(problem);
       return end(chunk, encoding, cb);
     }) as Response["end"];
     next();

@@ -2,7 +2,7 @@ import type { Router } from "express";
 import { acceptInvitationBody, invitationPreview, me, tokenBody } from "@/schemas/account";
 import type { AppContext } from "@/server/context";
 import { routeModule } from "@/server/openapi/define-route";
-import { problemResponses } from "@/server/openapi/registry";
+import { problemResponse, problemResponses } from "@/server/openapi/registry";
 import { acceptInvitation, previewInvitation } from "@/server/services/accounts/invitations";
 import { meOf } from "@/server/services/users";
 
@@ -18,7 +18,7 @@ export function invitationRoutes(ctx: AppContext): Router {
     tags: ["Accounts"],
     summary: "Whom an invitation link is for, and with which role (does not use the link)",
     body: { json: tokenBody },
-    responses: { 200: { description: "The invitation", content: { "application/json": { schema: invitationPreview } } }, ...problemResponses(400), 410: { description: "Unknown, used or expired" } },
+    responses: { 200: { description: "The invitation", content: { "application/json": { schema: invitationPreview } } }, ...problemResponses(400), ...problemResponse(410, "Unknown, used or expired") },
   }, async ({ body }, _req, res) => {
     res.json(await previewInvitation(ctx, body.token));
   });
@@ -33,7 +33,7 @@ export function invitationRoutes(ctx: AppContext): Router {
     responses: {
       201: { description: "The new account (sign in next)", content: { "application/json": { schema: me } } },
       ...problemResponses(400, 409),
-      410: { description: "Unknown, used or expired" },
+      ...problemResponse(410, "Unknown, used or expired"),
     },
   }, async ({ body }, _req, res) => {
     const user = await acceptInvitation(ctx, body);

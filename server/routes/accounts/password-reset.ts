@@ -3,7 +3,7 @@ import { checkEmail, emailOnlyBody, resetPasswordBody } from "@/schemas/account"
 import type { AuthLimiters } from "@/server/auth/rate-limits";
 import type { AppContext } from "@/server/context";
 import { routeModule } from "@/server/openapi/define-route";
-import { problemResponses } from "@/server/openapi/registry";
+import { problemResponse, problemResponses } from "@/server/openapi/registry";
 import { requestPasswordReset, resetPassword } from "@/server/services/accounts/password-reset";
 
 export function passwordResetRoutes(ctx: AppContext, limiters: AuthLimiters): Router {
@@ -30,7 +30,7 @@ export function passwordResetRoutes(ctx: AppContext, limiters: AuthLimiters): Ro
     tags: ["Accounts"],
     summary: "Set a new password with the e-mailed link; every session of the account ends and its API tokens are revoked",
     body: { json: resetPasswordBody },
-    responses: { 204: { description: "Password changed; sign in with it" }, ...problemResponses(400), 410: { description: "The link is unknown, used or expired" } },
+    responses: { 204: { description: "Password changed; sign in with it" }, ...problemResponses(400), ...problemResponse(410, "The link is unknown, used or expired") },
   }, async ({ body }, _req, res) => {
     await resetPassword(ctx, body.token, body.password, body.revokeApiTokens !== false);
     res.status(204).end();

@@ -4,7 +4,7 @@ import { z } from "zod";
 import type { AuthLimiters } from "@/server/auth/rate-limits";
 import type { AppContext } from "@/server/context";
 import { routeModule } from "@/server/openapi/define-route";
-import { problemResponses } from "@/server/openapi/registry";
+import { problemResponse, problemResponses } from "@/server/openapi/registry";
 import { resendVerification, signUp, verifyEmail } from "@/server/services/accounts/sign-up";
 
 const verified = z.object({ email: z.string(), verified: z.literal(true) }).meta({ id: "EmailVerified" });
@@ -37,7 +37,7 @@ export function signUpRoutes(ctx: AppContext, limiters: AuthLimiters): Router {
     responses: {
       200: { description: "Confirmed; the account can sign in", content: { "application/json": { schema: verified } } },
       ...problemResponses(400),
-      410: { description: "The link is unknown, used or expired" },
+      ...problemResponse(410, "The link is unknown, used or expired"),
     },
   }, async ({ body: { token } }, _req, res) => {
     const { email } = await verifyEmail(ctx, token);

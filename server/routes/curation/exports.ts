@@ -4,7 +4,7 @@ import { semver } from "@/schemas/curation";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
 import { routeModule } from "@/server/openapi/define-route";
-import { problemResponses } from "@/server/openapi/registry";
+import { problemResponse, problemResponses } from "@/server/openapi/registry";
 import { buildResource, dataPackageDescriptor, dataPackageZip, publishedVersion } from "@/server/services/curation/data-package";
 import { resourceOrder } from "@/server/services/curation/resource-csv";
 
@@ -12,7 +12,7 @@ const versionParams = z.object({ slug: z.string().min(1).max(120), semver: z.uni
 const resourceParams = versionParams.extend({ resource: resourceName });
 const immutable = "public, max-age=31536000, immutable";
 /** A withdrawn version's files are gone: a problem that names the reason. */
-const withdrawn = { 410: { description: "Withdrawn (tombstone): the problem gives the reason", content: problemResponses(410)[410]!.content } };
+const withdrawn = problemResponse(410, "Withdrawn (tombstone): the problem gives the reason");
 
 export function curationExportRoutes(ctx: AppContext): Router {
   const { db, registry, config } = ctx;

@@ -1,6 +1,6 @@
 import { z } from "zod";
 import type { Responses } from "@/server/openapi/define-route";
-import { problemResponses } from "@/server/openapi/registry";
+import { problemResponse, problemResponses } from "@/server/openapi/registry";
 
 export const datasetPathParams = z.object({ slug: z.string().min(1).max(120).describe("Dataset slug") });
 export const versionPathParams = datasetPathParams.extend({
@@ -19,9 +19,7 @@ const cachingHeaders = {
 };
 
 /** A withdrawn version's rows: the problem carries `withdrawnReason`. */
-const goneResponse = {
-  410: { description: "The version was withdrawn; its metadata stays, its rows are not served", content: problemResponses(410)[410]!.content },
-};
+const goneResponse = problemResponse(410, "The version was withdrawn; its metadata stays, its rows are not served");
 
 /** 304 and the rate-limit answers every public read can give. */
 export const readResponses = {

@@ -1,5 +1,6 @@
 import type { AppContext } from "@/server/context";
 import { schemaOrgDataset } from "./schema-org-dataset";
+import type { PageAnswer } from "@/server/web";
 
 const datasetPath = /^\/datasets\/([a-z0-9]+(?:-[a-z0-9]+)*)\/?$/;
 
@@ -29,13 +30,14 @@ function shorten(text: string, max = 300): string {
  * Every other path is served unchanged.
  */
 export function datasetPageHead(ctx: AppContext) {
-  return async (html: string, url: string): Promise<string> => {
+  return async (html: string, url: string): Promise<PageAnswer> => {
     const { pathname, searchParams } = new URL(url, "http://localhost");
     const slug = datasetPath.exec(pathname)?.[1];
     if (!slug) return html;
     // A version's DOI resolves to ?version=X: that page describes that version, withdrawn or not.
     const found = await schemaOrgDataset(ctx, slug, searchParams.get("version") ?? undefined);
-    if (!found) return html;
+    // No published dataset (or version) of that name: the app still draws its not-found state, with status 404.
+    if (!found) return { html, found: false };
     const { version, pinned } = found;
     const title = `${version.title} (version ${version.semver}${version.state === "withdrawn" ? ", withdrawn" : ""}) · Plotbank`;
     const head =
