@@ -18,6 +18,7 @@ step() {
 
 step typecheck npm run --silent typecheck
 step lint npm run --silent lint
+step "formatting (prettier)" npm run --silent format:check
 step "unused files, exports and dependencies (knip)" npm run --silent unused
 step "unit and API tests (PGlite)" npx vitest run --project unit --project server --reporter=default --reporter=json --outputFile="$results/pglite.json"
 step "web export" env PLOTBANK_REBUILD_WEB=1 npm run --silent build:web
