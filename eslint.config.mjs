@@ -7,7 +7,15 @@ export default tseslint.config(
   ...tseslint.configs.recommended,
   {
     languageOptions: {
-      globals: { console: "readonly", process: "readonly", __dirname: "readonly", require: "readonly", module: "writable", fetch: "readonly", URL: "readonly" },
+      globals: {
+        console: "readonly",
+        process: "readonly",
+        __dirname: "readonly",
+        require: "readonly",
+        module: "writable",
+        fetch: "readonly",
+        URL: "readonly",
+      },
     },
     rules: {
       "@typescript-eslint/no-unused-vars": ["error", { argsIgnorePattern: "^_", varsIgnorePattern: "^_" }],

@@ -8,9 +8,7 @@ import { fontAssets } from "@/constants/fonts";
 
 export default function RootLayout() {
   const [fontsLoaded, fontError] = useFonts(fontAssets);
-  const [queryClient] = useState(
-    () => new QueryClient({ defaultOptions: { queries: { retry: 1, refetchOnWindowFocus: false } } }),
-  );
+  const [queryClient] = useState(() => new QueryClient({ defaultOptions: { queries: { retry: 1, refetchOnWindowFocus: false } } }));
   // Render once the shipped fonts are in (or failed: system fonts are an acceptable fallback).
   if (!fontsLoaded && !fontError) return null;
   return (

@@ -32,7 +32,9 @@ async function seed(database: Database, siteYearCount: number) {
            SELECT d.id, '1.0.0', '{"resources":{}}'::jsonb, d.owner_id FROM datasets d`);
   const v = `(SELECT id FROM versions LIMIT 1)`;
   const sitesN = Math.max(10, Math.round(siteYearCount / 40));
-  await q(`INSERT INTO sites (version_id, code, location) SELECT ${v}, 'TB-' || g, 'Grid ' || (g % 97) FROM generate_series(1, ${sitesN}) g`);
+  await q(
+    `INSERT INTO sites (version_id, code, location) SELECT ${v}, 'TB-' || g, 'Grid ' || (g % 97) FROM generate_series(1, ${sitesN}) g`,
+  );
   await q(`INSERT INTO site_years (version_id, site_id, code, crop, year, blocks, tillage, planting_date, row_spacing_in)
            SELECT ${v}, s.id, 'SY-' || g, 'soybean', 2000 + (g % 25), ${blocksPerSiteYear},
                   (ARRAY['no-till','strip-till','reduced','conventional'])[1 + g % 4],
@@ -122,23 +124,49 @@ async function measure(siteYearCount: number, runs: number) {
   const oq = trialFilters.parse(Object.fromEntries(new URLSearchParams(observationsQuery.replace(/&format=csv/, ""))));
   const versions = await resolveVersions(ctx.db, {});
   const responsesHttp = await timeAsync(() => fetchText(`${base}/api/v1/responses?${responsesQuery}`), runs);
-  const responsesDirect = await timeAsync(() => responseResource.readBatch(ctx.db, { versions, filters: rq, units: "bu/ac" }, 0, 1001), runs);
+  const responsesDirect = await timeAsync(
+    () => responseResource.readBatch(ctx.db, { versions, filters: rq, units: "bu/ac" }, 0, 1001),
+    runs,
+  );
   const observationsPageHttp = await timeAsync(() => fetchText(`${base}/api/v1/observations?${observationsPageQuery}`), runs);
-  const observationsPageDirect = await timeAsync(() => observationResource.readBatch(ctx.db, { versions, filters: oq, units: "bu/ac" }, 0, 1001), runs);
+  const observationsPageDirect = await timeAsync(
+    () => observationResource.readBatch(ctx.db, { versions, filters: oq, units: "bu/ac" }, 0, 1001),
+    runs,
+  );
   let csvRows = 0;
-  const observationsHttp = await timeAsync(async () => {
-    csvRows = (await fetchText(`${base}/api/v1/observations?${observationsQuery}`)).split("\r\n").length - 2;
-  }, Math.max(3, Math.round(runs / 4)));
-  const observationsDirect = await timeAsync(async () => {
-    // The same batches the CSV stream reads, without HTTP or CSV writing.
-    let after = 0;
-    for (;;) {
-      const rows = await observationResource.readBatch(ctx.db, { versions, filters: oq, units: "bu/ac" }, after, 2000);
-      if (rows.length < 2000) break;
-      after = rows[rows.length - 1]!.id;
-    }
-  }, Math.max(3, Math.round(runs / 4)));
-  return { siteYearCount, plots: siteYearCount * treatmentsPerSiteYear * blocksPerSiteYear, seedMs: round(seedMs), responsesHttp, responsesDirect, observationsPageHttp, observationsPageDirect, observationsHttp, observationsDirect, csvRows, database, server, base };
+  const observationsHttp = await timeAsync(
+    async () => {
+      csvRows = (await fetchText(`${base}/api/v1/observations?${observationsQuery}`)).split("\r\n").length - 2;
+    },
+    Math.max(3, Math.round(runs / 4)),
+  );
+  const observationsDirect = await timeAsync(
+    async () => {
+      // The same batches the CSV stream reads, without HTTP or CSV writing.
+      let after = 0;
+      for (;;) {
+        const rows = await observationResource.readBatch(ctx.db, { versions, filters: oq, units: "bu/ac" }, after, 2000);
+        if (rows.length < 2000) break;
+        after = rows[rows.length - 1]!.id;
+      }
+    },
+    Math.max(3, Math.round(runs / 4)),
+  );
+  return {
+    siteYearCount,
+    plots: siteYearCount * treatmentsPerSiteYear * blocksPerSiteYear,
+    seedMs: round(seedMs),
+    responsesHttp,
+    responsesDirect,
+    observationsPageHttp,
+    observationsPageDirect,
+    observationsHttp,
+    observationsDirect,
+    csvRows,
+    database,
+    server,
+    base,
+  };
 }
 
 /** Stream every plot as CSV; sample the process RSS while the bytes flow, reading the body without keeping it. */
@@ -155,7 +183,13 @@ async function streamAll(base: string) {
     for (const b of chunk) if (b === 0x0a) lines++;
   }
   clearInterval(timer);
-  return { rows: lines - 1, mb: round(bytes / 1e6), seconds: round((performance.now() - t0) / 1000), rssBeforeMb: round(before / 1e6), rssPeakMb: round(peak / 1e6) };
+  return {
+    rows: lines - 1,
+    mb: round(bytes / 1e6),
+    seconds: round((performance.now() - t0) / 1000),
+    rssBeforeMb: round(before / 1e6),
+    rssPeakMb: round(peak / 1e6),
+  };
 }
 
 async function main() {
@@ -175,8 +209,18 @@ async function main() {
     "| read | HTTP median ms | HTTP p95 ms | direct median ms | direct p95 ms | HTTP p95 ms at 1/10 size |",
     "|---|---|---|---|---|---|",
     row(`responses ?${responsesQuery} (1000-row JSON page)`, full.responsesHttp, full.responsesDirect, small.responsesHttp),
-    row(`observations ?${observationsPageQuery} (1000-row JSON page)`, full.observationsPageHttp, full.observationsPageDirect, small.observationsPageHttp),
-    row(`observations ?${observationsQuery} (${full.csvRows.toLocaleString()} CSV rows)`, full.observationsHttp, full.observationsDirect, small.observationsHttp),
+    row(
+      `observations ?${observationsPageQuery} (1000-row JSON page)`,
+      full.observationsPageHttp,
+      full.observationsPageDirect,
+      small.observationsPageHttp,
+    ),
+    row(
+      `observations ?${observationsQuery} (${full.csvRows.toLocaleString()} CSV rows)`,
+      full.observationsHttp,
+      full.observationsDirect,
+      small.observationsHttp,
+    ),
     "",
     `The filtered CSV grows with the data (${small.csvRows.toLocaleString()} rows at 1/10 size, ${full.csvRows.toLocaleString()} at full size), so its 1/10 column compares unequal outputs; the JSON pages hold the output fixed.`,
     "",
@@ -186,7 +230,10 @@ async function main() {
   const out = path.resolve(__dirname, "out");
   mkdirSync(out, { recursive: true });
   const strip = ({ database: _d, server: _s, base: _b, ...rest }: typeof full) => rest;
-  writeFileSync(path.join(out, "api.json"), JSON.stringify({ full: strip(full), tenth: strip(small), stream, at: new Date().toISOString() }, null, 2));
+  writeFileSync(
+    path.join(out, "api.json"),
+    JSON.stringify({ full: strip(full), tenth: strip(small), stream, at: new Date().toISOString() }, null, 2),
+  );
 }
 
 main().catch((error) => {

@@ -19,7 +19,8 @@ const gzipKb = (body: Buffer) => gzipSync(body).length / 1024;
 const kb = (n: number) => `${n.toFixed(1)} KB`;
 
 async function main() {
-  if (!existsSync(path.join(distJs, "..", "..", "..", "..", "index.html"))) throw new Error("No web export in dist/: run `flock /tmp/webbuild.lock npm run build:web` first.");
+  if (!existsSync(path.join(distJs, "..", "..", "..", "..", "index.html")))
+    throw new Error("No web export in dist/: run `flock /tmp/webbuild.lock npm run build:web` first.");
   const server = await startServerProcess({ port: 40000 + Math.floor(Math.random() * 20000) });
   const browser = await launchBrowser();
   const loaded = new Map<string, { raw: number; gzip: number }>();
@@ -43,7 +44,8 @@ async function main() {
     } else console.error("The analysis did not render, so the table was not opened:", (await page.locator("body").innerText()).slice(-300));
     const later = [...loaded].filter(([name]) => !first.has(name));
 
-    const sum = (files: [string, { raw: number; gzip: number }][]) => files.reduce((a, [, f]) => ({ raw: a.raw + f.raw, gzip: a.gzip + f.gzip }), { raw: 0, gzip: 0 });
+    const sum = (files: [string, { raw: number; gzip: number }][]) =>
+      files.reduce((a, [, f]) => ({ raw: a.raw + f.raw, gzip: a.gzip + f.gzip }), { raw: 0, gzip: 0 });
     const firstTotal = sum([...first]);
     const allFiles = readdirSync(distJs).filter((f) => f.endsWith(".js"));
     const whole = allFiles.reduce((a, f) => a + gzipKb(readFileSync(path.join(distJs, f))), 0);
@@ -60,7 +62,19 @@ async function main() {
     mkdirSync(out, { recursive: true });
     writeFileSync(
       path.join(out, "bundle.json"),
-      JSON.stringify({ node: process.version, at: new Date().toISOString(), goalKb, firstScreen: Object.fromEntries(first), firstScreenGzipKb: firstTotal.gzip, later: Object.fromEntries(later), wholeExportGzipKb: whole }, null, 2),
+      JSON.stringify(
+        {
+          node: process.version,
+          at: new Date().toISOString(),
+          goalKb,
+          firstScreen: Object.fromEntries(first),
+          firstScreenGzipKb: firstTotal.gzip,
+          later: Object.fromEntries(later),
+          wholeExportGzipKb: whole,
+        },
+        null,
+        2,
+      ),
     );
     if (!met) process.exitCode = 1;
   } finally {

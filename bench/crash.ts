@@ -32,19 +32,28 @@ const rows = async (ctx: AppContext, q: ReturnType<typeof sql>) => ((await ctx.d
 async function publishedFingerprints(): Promise<Record<string, string>> {
   return withDb(async (ctx) => {
     const out: Record<string, string> = {};
-    for (const v of await rows(ctx, sql`select id from versions where state = 'published' order by id`)) out[String(v.id)] = await versionFingerprint(ctx, String(v.id));
+    for (const v of await rows(ctx, sql`select id from versions where state = 'published' order by id`))
+      out[String(v.id)] = await versionFingerprint(ctx, String(v.id));
     return out;
   });
 }
 
 async function signIn(server: ServerProcess, email: string): Promise<string> {
-  const res = await fetch(`${server.url}/api/v1/session`, { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify({ email, password: demoPassword }) });
+  const res = await fetch(`${server.url}/api/v1/session`, {
+    method: "POST",
+    headers: { "content-type": "application/json" },
+    body: JSON.stringify({ email, password: demoPassword }),
+  });
   if (!res.ok) throw new Error(`sign-in ${email}: ${res.status} ${await res.text()}`);
   return res.headers.get("set-cookie")!.split(";")[0]!;
 }
 
 async function call(server: ServerProcess, cookie: string, method: string, p: string, body?: unknown) {
-  const res = await fetch(server.url + p, { method, headers: { cookie, "content-type": "application/json", origin: server.url }, body: body === undefined ? undefined : JSON.stringify(body) });
+  const res = await fetch(server.url + p, {
+    method,
+    headers: { cookie, "content-type": "application/json", origin: server.url },
+    body: body === undefined ? undefined : JSON.stringify(body),
+  });
   const text = await res.text();
   if (!res.ok) throw new Error(`${method} ${p}: ${res.status} ${text.slice(0, 500)}`);
   return JSON.parse(text) as Row;
@@ -53,7 +62,11 @@ async function call(server: ServerProcess, cookie: string, method: string, p: st
 async function uploadCsv(server: ServerProcess, cookie: string, versionId: string, resource: string, csv: string) {
   const form = new FormData();
   form.append("file", new Blob([csv], { type: "text/csv" }), `${resource}.csv`);
-  return fetch(`${server.url}/api/v1/curation/versions/${versionId}/uploads/${resource}`, { method: "POST", headers: { cookie, origin: server.url }, body: form });
+  return fetch(`${server.url}/api/v1/curation/versions/${versionId}/uploads/${resource}`, {
+    method: "POST",
+    headers: { cookie, origin: server.url },
+    body: form,
+  });
 }
 
 /** A large, valid trial: many site-years of an RCBD with 4 treatments × 4 blocks. */
@@ -64,7 +77,10 @@ function bigTrial(siteYears: number, tag: string) {
   for (let i = 0; i < siteYears; i++) {
     const code = `CR-${tag}-${i}`;
     sy.push(`${code},CR-01,soybean,2024,RCBD,4,no-till,2024-05-10,30`);
-    for (let b = 1; b <= 4; b++) ["CHK", "IF", "BAND", "BC"].forEach((t, k) => plots.push(`${code},${b}0${k + 1},${b},${t},${3500 + k * 90 + ((i * 7 + b * 13 + k * 31) % 97)},13.${(i + b + k) % 10}`));
+    for (let b = 1; b <= 4; b++)
+      ["CHK", "IF", "BAND", "BC"].forEach((t, k) =>
+        plots.push(`${code},${b}0${k + 1},${b},${t},${3500 + k * 90 + ((i * 7 + b * 13 + k * 31) % 97)},13.${(i + b + k) % 10}`),
+      );
   }
   const treatments =
     "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\n" +
@@ -91,11 +107,21 @@ async function main() {
     server = await startServerProcess({ port, dataDir, keepData: true });
     let cookie = await signIn(server, "curator@plotbank.test");
     const slug = `crash-test-${round}`;
-    await call(server, cookie, "POST", "/api/v1/datasets", { slug, title: `Crash test ${round}`, crops: ["soybean"], region: "Tallgrass Basin", description: "Crash-safety check." });
+    await call(server, cookie, "POST", "/api/v1/datasets", {
+      slug,
+      title: `Crash test ${round}`,
+      crops: ["soybean"],
+      region: "Tallgrass Basin",
+      description: "Crash-safety check.",
+    });
     const version = await call(server, cookie, "POST", `/api/v1/datasets/${slug}/versions`, {});
     const versionId = String(version.id);
     const trial = bigTrial(2500, String(round));
-    for (const [resource, csv] of [["sites", trial.sites], ["site_years", trial.siteYears], ["treatments", trial.treatments]] as const) {
+    for (const [resource, csv] of [
+      ["sites", trial.sites],
+      ["site_years", trial.siteYears],
+      ["treatments", trial.treatments],
+    ] as const) {
       const res = await uploadCsv(server, cookie, versionId, resource, csv);
       if (res.status !== 201) throw new Error(`${resource}: ${res.status} ${(await res.text()).slice(0, 500)}`);
     }
@@ -105,9 +131,17 @@ async function main() {
     server.child.kill("SIGKILL");
     await pending;
     await server.stop();
-    const plotCount = await withDb(async (ctx) => Number((await rows(ctx, sql`select count(*)::int as n from plots where version_id = ${versionId}`))[0]!.n));
-    check(plotCount === 0 || plotCount === trial.plotRows, `round ${round}: import killed after ${delay} ms left the draft whole or absent (${plotCount} of ${trial.plotRows} plot rows)`);
-    check(JSON.stringify(await publishedFingerprints()) === JSON.stringify(before), `round ${round}: published versions unchanged after the import crash`);
+    const plotCount = await withDb(async (ctx) =>
+      Number((await rows(ctx, sql`select count(*)::int as n from plots where version_id = ${versionId}`))[0]!.n),
+    );
+    check(
+      plotCount === 0 || plotCount === trial.plotRows,
+      `round ${round}: import killed after ${delay} ms left the draft whole or absent (${plotCount} of ${trial.plotRows} plot rows)`,
+    );
+    check(
+      JSON.stringify(await publishedFingerprints()) === JSON.stringify(before),
+      `round ${round}: published versions unchanged after the import crash`,
+    );
 
     // --- 2. kill during a publish ---
     server = await startServerProcess({ port, dataDir, keepData: true });
@@ -119,14 +153,23 @@ async function main() {
     }
     await call(server, cookie, "POST", `/api/v1/curation/versions/${versionId}/submit`, { changelog: "First release." });
     const reviewer = await signIn(server, "reviewer@plotbank.test");
-    const approving = fetch(`${server.url}/api/v1/curation/versions/${versionId}/approve`, { method: "POST", headers: { cookie: reviewer, "content-type": "application/json", origin: server.url }, body: "{}" }).catch(() => null);
+    const approving = fetch(`${server.url}/api/v1/curation/versions/${versionId}/approve`, {
+      method: "POST",
+      headers: { cookie: reviewer, "content-type": "application/json", origin: server.url },
+      body: "{}",
+    }).catch(() => null);
     const killAfter = [50, 600, 3000][(round - 1) % 3]!;
     await new Promise((r) => setTimeout(r, killAfter));
     server.child.kill("SIGKILL");
     await approving;
     await server.stop();
-    const state = await withDb(async (ctx) => (await rows(ctx, sql`select state, checksum, published_at from versions where id = ${versionId}`))[0]!);
-    const whole = state.state === "in_review" ? state.checksum === null && state.published_at === null : state.state === "published" && !!state.checksum && !!state.published_at;
+    const state = await withDb(
+      async (ctx) => (await rows(ctx, sql`select state, checksum, published_at from versions where id = ${versionId}`))[0]!,
+    );
+    const whole =
+      state.state === "in_review"
+        ? state.checksum === null && state.published_at === null
+        : state.state === "published" && !!state.checksum && !!state.published_at;
     check(whole, `round ${round}: publish killed after ${killAfter} ms left the version ${state.state}, whole`);
     const after = await publishedFingerprints();
     const unchanged = Object.entries(before).every(([id, fp]) => after[id] === fp);

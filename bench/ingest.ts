@@ -29,7 +29,11 @@ const TREATMENTS = 5;
 const BLOCKS = 20;
 const PER_SITE_YEAR = TREATMENTS * BLOCKS;
 const SITE_YEARS = Math.ceil(ROWS / PER_SITE_YEAR);
-const options: UploadOptions = { mapping: {}, units: { yield: "kg/ha", yieldMoisture: "standard", soilTest: "ppm", gradeBasis: "oxide" }, mode: "merge" };
+const options: UploadOptions = {
+  mapping: {},
+  units: { yield: "kg/ha", yieldMoisture: "standard", soilTest: "ppm", gradeBasis: "oxide" },
+  mode: "merge",
+};
 
 let peakRss = 0;
 const sampler = setInterval(() => {
@@ -48,7 +52,9 @@ function plotChunks(): Buffer[] {
     const within = r % PER_SITE_YEAR;
     const block = Math.floor(within / TREATMENTS) + 1;
     const t = within % TREATMENTS;
-    lines.push(`${syCode(sy)},${within + 1},${block},T${t},${Math.round(3800 + t * 60 + rng.normal(0, 250))},${(12 + rng.next() * 3).toFixed(1)}`);
+    lines.push(
+      `${syCode(sy)},${within + 1},${block},T${t},${Math.round(3800 + t * 60 + rng.normal(0, 250))},${(12 + rng.next() * 3).toFixed(1)}`,
+    );
     if (lines.length === 2000) {
       chunks.push(Buffer.from(lines.join("\n") + "\n"));
       lines = [];
@@ -61,21 +67,54 @@ function plotChunks(): Buffer[] {
 async function prepare() {
   const database = await openDatabase();
   await migrateDatabase(database);
-  const config = loadConfig({ NODE_ENV: "production", PLOTBANK_DEMO: "off" } as NodeJS.ProcessEnv, { uploadLimitBytes: 1024 * 1024 * 1024 });
+  const config = loadConfig({ NODE_ENV: "production", PLOTBANK_DEMO: "off" } as NodeJS.ProcessEnv, {
+    uploadLimitBytes: 1024 * 1024 * 1024,
+  });
   const { ctx } = createApp({ database, config, webDistDir: false });
-  const user = await createUser(ctx.db, { email: "bench@plotbank.test", displayName: "Bench", password: "bench-password-2026", role: "curator", verified: true });
+  const user = await createUser(ctx.db, {
+    email: "bench@plotbank.test",
+    displayName: "Bench",
+    password: "bench-password-2026",
+    role: "curator",
+    verified: true,
+  });
   const u = { id: user.id, email: user.email, displayName: user.displayName, role: user.role } as Express.User;
   await createDataset(ctx.db, u, { slug: "bench", title: "Bench", crops: ["soybean"], region: "Bench", description: "Benchmark." });
   const version = await createVersion(ctx, u, await datasetBySlug(ctx.db, "bench"));
   const up = async (resource: "sites" | "site_years" | "treatments", text: string) => {
-    const r = await ingestUpload(ctx, { versionId: version.id, resource, filename: `${resource}.csv`, source: textStream(text), options, userId: u.id });
+    const r = await ingestUpload(ctx, {
+      versionId: version.id,
+      resource,
+      filename: `${resource}.csv`,
+      source: textStream(text),
+      options,
+      userId: u.id,
+    });
     if (!r.accepted) throw new Error(JSON.stringify(r.problems.slice(0, 3)));
   };
   const siteCount = Math.ceil(SITE_YEARS / 100);
-  await up("sites", "site,location\n" + Array.from({ length: siteCount }, (_, i) => `S${String(i).padStart(4, "0")},Bench County`).join("\n") + "\n");
-  await up("treatments", "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\nT0,Check,true,1,,,,,,\n" +
-    Array.from({ length: TREATMENTS - 1 }, (_, i) => `T${i + 1},MAP ${i + 1},false,1,MAP,11-52-0,${50 * (i + 1)},lb/ac,2x2-band,at-planting`).join("\n") + "\n");
-  await up("site_years", "site_year,site,crop,year,blocks\n" + Array.from({ length: SITE_YEARS }, (_, i) => `${syCode(i)},S${String(Math.floor(i / 100)).padStart(4, "0")},soybean,${2000 + (i % 100)},${BLOCKS}`).join("\n") + "\n");
+  await up(
+    "sites",
+    "site,location\n" + Array.from({ length: siteCount }, (_, i) => `S${String(i).padStart(4, "0")},Bench County`).join("\n") + "\n",
+  );
+  await up(
+    "treatments",
+    "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\nT0,Check,true,1,,,,,,\n" +
+      Array.from(
+        { length: TREATMENTS - 1 },
+        (_, i) => `T${i + 1},MAP ${i + 1},false,1,MAP,11-52-0,${50 * (i + 1)},lb/ac,2x2-band,at-planting`,
+      ).join("\n") +
+      "\n",
+  );
+  await up(
+    "site_years",
+    "site_year,site,crop,year,blocks\n" +
+      Array.from(
+        { length: SITE_YEARS },
+        (_, i) => `${syCode(i)},S${String(Math.floor(i / 100)).padStart(4, "0")},soybean,${2000 + (i % 100)},${BLOCKS}`,
+      ).join("\n") +
+      "\n",
+  );
   return { database, ctx, version, user: u };
 }
 
@@ -92,8 +131,19 @@ async function part(which: "copy" | "service"): Promise<PartResult> {
   if (which === "copy") {
     // PGlite's own COPY of the same rows (ids already resolved), into a draft prepared the same way.
     const base = await prepare();
-    const sy = new Map((await base.ctx.db.select({ id: siteYears.id, code: siteYears.code }).from(siteYears).where(eq(siteYears.versionId, base.version.id))).map((r) => [r.code, r.id]));
-    const tr = new Map((await base.ctx.db.select({ id: treatments.id, code: treatments.code }).from(treatments).where(eq(treatments.versionId, base.version.id))).map((r) => [r.code, r.id]));
+    const sy = new Map(
+      (
+        await base.ctx.db.select({ id: siteYears.id, code: siteYears.code }).from(siteYears).where(eq(siteYears.versionId, base.version.id))
+      ).map((r) => [r.code, r.id]),
+    );
+    const tr = new Map(
+      (
+        await base.ctx.db
+          .select({ id: treatments.id, code: treatments.code })
+          .from(treatments)
+          .where(eq(treatments.versionId, base.version.id))
+      ).map((r) => [r.code, r.id]),
+    );
     const copyParts: string[] = [];
     for (const chunk of chunks.slice(1)) {
       let out = "";
@@ -109,7 +159,11 @@ async function part(which: "copy" | "service"): Promise<PartResult> {
     if (global.gc) global.gc();
     peakRss = process.memoryUsage().rss;
     const started = performance.now();
-    await base.database.pglite!.query("COPY plots (version_id, site_year_id, treatment_id, plot, block, yield_kg_ha, harvest_moisture_pct) FROM '/dev/blob' WITH (FORMAT csv)", [], { blob: copyBlob });
+    await base.database.pglite!.query(
+      "COPY plots (version_id, site_year_id, treatment_id, plot, block, yield_kg_ha, harvest_moisture_pct) FROM '/dev/blob' WITH (FORMAT csv)",
+      [],
+      { blob: copyBlob },
+    );
     const seconds = (performance.now() - started) / 1000;
     await base.database.close();
     return { seconds, peakRssMb: peakRss / 1024 / 1024 };
@@ -119,7 +173,14 @@ async function part(which: "copy" | "service"): Promise<PartResult> {
   if (global.gc) global.gc();
   peakRss = process.memoryUsage().rss;
   const started = performance.now();
-  const result = await ingestUpload(svc.ctx, { versionId: svc.version.id, resource: "plots", filename: "plots.csv", source: Readable.from(chunks), options, userId: svc.user.id });
+  const result = await ingestUpload(svc.ctx, {
+    versionId: svc.version.id,
+    resource: "plots",
+    filename: "plots.csv",
+    source: Readable.from(chunks),
+    options,
+    userId: svc.user.id,
+  });
   const seconds = (performance.now() - started) / 1000;
   if (!result.accepted) throw new Error(`refused: ${JSON.stringify(result.problems.slice(0, 3))}`);
   await svc.database.close();
@@ -146,7 +207,9 @@ async function main() {
     return;
   }
   clearInterval(sampler);
-  console.log(`${ROWS.toLocaleString("en")} plot rows in ${SITE_YEARS.toLocaleString("en")} site-years; COPY and service twice each, alternating, each in its own process…`);
+  console.log(
+    `${ROWS.toLocaleString("en")} plot rows in ${SITE_YEARS.toLocaleString("en")} site-years; COPY and service twice each, alternating, each in its own process…`,
+  );
   const bytes = plotChunks().reduce((a, c) => a + c.length, 0);
   // COPY and the service alternate, twice each: COPY's speed drifts between runs on this machine, so each side is
   // taken at its best run (the least disturbed), and every run is shown.
@@ -164,8 +227,19 @@ async function main() {
     rows: ROWS,
     siteYears: SITE_YEARS,
     fileBytes: bytes,
-    copy: { seconds: copySeconds, runs: copies.map((c) => c.seconds), rowsPerSecond: copyRate, peakRssMb: Math.max(...copies.map((c) => c.peakRssMb)) },
-    service: { seconds: service.seconds, runs: services.map((s) => s.seconds), rowsPerSecond: serviceRate, responses: service.responses ?? 0, warnings: service.warnings ?? 0 },
+    copy: {
+      seconds: copySeconds,
+      runs: copies.map((c) => c.seconds),
+      rowsPerSecond: copyRate,
+      peakRssMb: Math.max(...copies.map((c) => c.peakRssMb)),
+    },
+    service: {
+      seconds: service.seconds,
+      runs: services.map((s) => s.seconds),
+      rowsPerSecond: serviceRate,
+      responses: service.responses ?? 0,
+      warnings: service.warnings ?? 0,
+    },
     ratio: serviceRate / copyRate,
     ratioOfMeans: copies.reduce((a, c) => a + c.seconds, 0) / services.reduce((a, s) => a + s.seconds, 0),
     peakRssMb: Math.max(...services.map((s) => s.peakRssMb)),
@@ -175,8 +249,14 @@ async function main() {
   };
   const rate = (r: number) => Math.round(r).toLocaleString("en");
   const rows = [
-    ...copies.map((c, i) => `| PGlite COPY (ids resolved, no checks), run ${i + 1} | ${c.seconds.toFixed(2)} | ${rate(ROWS / c.seconds)} | ${c.peakRssMb.toFixed(0)} |`),
-    ...services.map((s, i) => `| ingest service (parse, validate, store, ${(s.responses ?? 0).toLocaleString("en")} responses, raw file), run ${i + 1} | ${s.seconds.toFixed(2)} | ${rate(ROWS / s.seconds)} | ${s.peakRssMb.toFixed(0)} |`),
+    ...copies.map(
+      (c, i) =>
+        `| PGlite COPY (ids resolved, no checks), run ${i + 1} | ${c.seconds.toFixed(2)} | ${rate(ROWS / c.seconds)} | ${c.peakRssMb.toFixed(0)} |`,
+    ),
+    ...services.map(
+      (s, i) =>
+        `| ingest service (parse, validate, store, ${(s.responses ?? 0).toLocaleString("en")} responses, raw file), run ${i + 1} | ${s.seconds.toFixed(2)} | ${rate(ROWS / s.seconds)} | ${s.peakRssMb.toFixed(0)} |`,
+    ),
   ];
   console.log(`
 | what | seconds | rows/s | peak RSS MB |

@@ -23,7 +23,10 @@ const paths = [
 
 async function main() {
   // Quotas are raised for the throughput run; a short second run at the default quota shows the designed 429s.
-  const server = await startServerProcess({ port: 18500, env: { PLOTBANK_ANON_RATE_PER_MIN: "100000000", PLOTBANK_TOKEN_RATE_PER_MIN: "100000000" } });
+  const server = await startServerProcess({
+    port: 18500,
+    env: { PLOTBANK_ANON_RATE_PER_MIN: "100000000", PLOTBANK_TOKEN_RATE_PER_MIN: "100000000" },
+  });
   let table: string[];
   let record: Record<string, unknown>;
   let failed = false;
@@ -44,7 +47,11 @@ async function main() {
     failed = errors > 0 || growth >= 10;
     if (errors > 0) {
       // What the server said about them (stderr and stdout, last lines that mention an error).
-      const said = server.output().split("\n").filter((l) => /error|fail|5\d\d/i.test(l)).slice(-10);
+      const said = server
+        .output()
+        .split("\n")
+        .filter((l) => /error|fail|5\d\d/i.test(l))
+        .slice(-10);
       console.error(`server output about errors:\n${said.join("\n") || "(nothing)"}`);
     }
     table = [
@@ -68,9 +75,16 @@ async function main() {
     const { result } = await run(limited.url, 10, 10);
     const codes = (result as unknown as { statusCodeStats?: Record<string, { count: number }> }).statusCodeStats ?? {};
     const tooMany = codes["429"]?.count ?? 0;
-    const other = result.errors + result.timeouts + Object.entries(codes).filter(([c]) => c !== "429" && !c.startsWith("2")).reduce((n, [, v]) => n + v.count, 0);
+    const other =
+      result.errors +
+      result.timeouts +
+      Object.entries(codes)
+        .filter(([c]) => c !== "429" && !c.startsWith("2"))
+        .reduce((n, [, v]) => n + v.count, 0);
     if (other > 0) failed = true;
-    table.push(`| at the default anonymous quota (10 clients × 10 s) | ${result.requests.total} requests: ${tooMany} designed 429s, ${other} other errors |`);
+    table.push(
+      `| at the default anonymous quota (10 clients × 10 s) | ${result.requests.total} requests: ${tooMany} designed 429s, ${other} other errors |`,
+    );
     record = { ...record, quotaRun: { requests: result.requests.total, tooMany, other } };
   } finally {
     await limited.stop();
@@ -85,8 +99,12 @@ async function main() {
 /** Which errors: status codes other than 2xx with their counts, timeouts and socket errors. */
 function describeErrors(result: autocannon.Result): string {
   const codes = (result as unknown as { statusCodeStats?: Record<string, { count: number }> }).statusCodeStats ?? {};
-  const bad = Object.entries(codes).filter(([c]) => !c.startsWith("2")).map(([c, v]) => `${v.count} × ${c}`);
-  return [...bad, result.timeouts ? `${result.timeouts} timeouts` : "", result.errors ? `${result.errors} socket errors` : ""].filter(Boolean).join(", ");
+  const bad = Object.entries(codes)
+    .filter(([c]) => !c.startsWith("2"))
+    .map(([c, v]) => `${v.count} × ${c}`);
+  return [...bad, result.timeouts ? `${result.timeouts} timeouts` : "", result.errors ? `${result.errors} socket errors` : ""]
+    .filter(Boolean)
+    .join(", ");
 }
 
 function percentile(values: number[], q: number): number {

@@ -71,35 +71,93 @@ async function serve() {
     const s = app.listen(0, "127.0.0.1", () => resolve(s));
   });
   const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
-  return { ctx, url, stop: async () => { await new Promise<void>((r) => server.close(() => r())); await database.close(); } };
+  return {
+    ctx,
+    url,
+    stop: async () => {
+      await new Promise<void>((r) => server.close(() => r()));
+      await database.close();
+    },
+  };
 }
 
 /** 20,000 site-years of one published version, inserted in bulk (one 2x2-band contrast each). */
 async function bulkInsert(ctx: AppContext, count: number) {
   const db = ctx.db;
-  const [owner] = await db.insert(users).values({ email: "bench@plotbank.test", displayName: "Bench", passwordHash: "x", role: "curator" }).returning();
-  const [dataset] = await db.insert(datasets).values({ slug: "bench-large", title: "Bench: many site-years", crops: ["soybean"], region: "Tallgrass Basin", description: "Synthetic", ownerId: owner!.id }).returning();
-  const [version] = await db.insert(versions).values({ datasetId: dataset!.id, semver: "1.0.0", tableSchema: { resources: {} } as TableSchemaDescriptor, createdBy: owner!.id }).returning();
+  const [owner] = await db
+    .insert(users)
+    .values({ email: "bench@plotbank.test", displayName: "Bench", passwordHash: "x", role: "curator" })
+    .returning();
+  const [dataset] = await db
+    .insert(datasets)
+    .values({
+      slug: "bench-large",
+      title: "Bench: many site-years",
+      crops: ["soybean"],
+      region: "Tallgrass Basin",
+      description: "Synthetic",
+      ownerId: owner!.id,
+    })
+    .returning();
+  const [version] = await db
+    .insert(versions)
+    .values({ datasetId: dataset!.id, semver: "1.0.0", tableSchema: { resources: {} } as TableSchemaDescriptor, createdBy: owner!.id })
+    .returning();
   const versionId = version!.id;
   const [site] = await db.insert(sites).values({ versionId, code: "TB-99", location: "Tallgrass County" }).returning();
-  const [check, band] = await db.insert(treatments).values([{ versionId, code: "CK", name: "Check", isCheck: true }, { versionId, code: "BAND", name: "2x2 band", nutrients: ["P"], placements: ["2x2-band"] }]).returning();
+  const [check, band] = await db
+    .insert(treatments)
+    .values([
+      { versionId, code: "CK", name: "Check", isCheck: true },
+      { versionId, code: "BAND", name: "2x2 band", nutrients: ["P"], placements: ["2x2-band"] },
+    ])
+    .returning();
   const u = generator(99);
   const classes = ["very_low", "low", "optimum", "high", "very_high"];
   for (let start = 0; start < count; start += 1000) {
     const n = Math.min(1000, count - start);
     const sy = await db
       .insert(siteYears)
-      .values(Array.from({ length: n }, (_, i) => ({ versionId, siteId: site!.id, code: `TB-99-${start + i}`, crop: "soybean", year: 2000 + ((start + i) % 25), blocks: 4 })))
+      .values(
+        Array.from({ length: n }, (_, i) => ({
+          versionId,
+          siteId: site!.id,
+          code: `TB-99-${start + i}`,
+          crop: "soybean",
+          year: 2000 + ((start + i) % 25),
+          blocks: 4,
+        })),
+      )
       .returning({ id: siteYears.id, code: siteYears.code, year: siteYears.year });
     await db.insert(responses).values(
       sy.map((s, i) => {
         const cls = classes[(start + i) % 5]!;
         const md = 300 - 60 * classes.indexOf(cls) + 150 * (u() - 0.5);
         return {
-          versionId, siteYearId: s.id, treatmentId: band!.id, checkTreatmentId: check!.id, siteCode: "TB-99", siteYearCode: s.code, treatmentCode: "BAND",
-          crop: "soybean", year: s.year, nutrients: ["P"], placements: ["2x2-band"], nLbAc: 11, p2o5LbAc: 52, k2oLbAc: 0, sLbAc: 0,
-          soilPClass: cls, soilPValue: 4 + 6 * classes.indexOf(cls), checkMeanKgHa: 3500, treatedMeanKgHa: 3500 + md, mdKgHa: md, seKgHa: 60 + 60 * u(),
-          dfError: 9, replicates: 4, balanced: true,
+          versionId,
+          siteYearId: s.id,
+          treatmentId: band!.id,
+          checkTreatmentId: check!.id,
+          siteCode: "TB-99",
+          siteYearCode: s.code,
+          treatmentCode: "BAND",
+          crop: "soybean",
+          year: s.year,
+          nutrients: ["P"],
+          placements: ["2x2-band"],
+          nLbAc: 11,
+          p2o5LbAc: 52,
+          k2oLbAc: 0,
+          sLbAc: 0,
+          soilPClass: cls,
+          soilPValue: 4 + 6 * classes.indexOf(cls),
+          checkMeanKgHa: 3500,
+          treatedMeanKgHa: 3500 + md,
+          mdKgHa: md,
+          seKgHa: 60 + 60 * u(),
+          dfError: 9,
+          replicates: 4,
+          balanced: true,
         };
       }),
     );
@@ -118,14 +176,27 @@ async function main() {
   await bulkInsert(large.ctx, siteYearCount);
   const insertMs = performance.now() - t0;
   const label = siteYearCount.toLocaleString("en-US");
-  for (const query of ["?dataset=bench-large", "?dataset=bench-large&groupBy=soilTestClass&price=11&cost=24", "?dataset=bench-large&forestLimit=all"]) {
+  for (const query of [
+    "?dataset=bench-large",
+    "?dataset=bench-large&groupBy=soilTestClass&price=11&cost=24",
+    "?dataset=bench-large&forestLimit=all",
+  ]) {
     const r = await timeRequest(`${large.url}/api/v1/analyses/meta${query}`, 7);
     const size = r.bytes > 1024 * 1024 ? `${(r.bytes / 1024 / 1024).toFixed(1)} MB` : `${(r.bytes / 1024).toFixed(0)} KB`;
-    rows.push({ case: `endpoint, ${label} site-years ${query}`, k: r.k, medianMs: r.medianMs, note: `PGlite in memory; ${size} JSON; bulk insert took ${(insertMs / 1000).toFixed(1)} s` });
+    rows.push({
+      case: `endpoint, ${label} site-years ${query}`,
+      k: r.k,
+      medianMs: r.medianMs,
+      note: `PGlite in memory; ${size} JSON; bulk insert took ${(insertMs / 1000).toFixed(1)} s`,
+    });
   }
   await large.stop();
 
-  const table = ["| case | k | median ms | note |", "|---|---:|---:|---|", ...rows.map((r) => `| ${r.case} | ${r.k} | ${r.medianMs.toFixed(1)} | ${r.note} |`)].join("\n");
+  const table = [
+    "| case | k | median ms | note |",
+    "|---|---:|---:|---|",
+    ...rows.map((r) => `| ${r.case} | ${r.k} | ${r.medianMs.toFixed(1)} | ${r.note} |`),
+  ].join("\n");
   console.log(table);
   const out = path.resolve(__dirname, "out");
   mkdirSync(out, { recursive: true });
@@ -156,7 +227,12 @@ async function fitAndDemo(rows: { case: string; k: number; medianMs: number; not
   }
   for (const query of ["", "?nutrient=P&groupBy=soilTestClass&price=11&cost=24", "?groupBy=placement&units=kg/ha"]) {
     const r = await timeRequest(`${demo.url}/api/v1/analyses/meta${query}`);
-    rows.push({ case: `endpoint, demo data ${query || "(no filters)"}`, k: r.k, medianMs: r.medianMs, note: `${demoNote}; ${(r.bytes / 1024).toFixed(0)} KB JSON` });
+    rows.push({
+      case: `endpoint, demo data ${query || "(no filters)"}`,
+      k: r.k,
+      medianMs: r.medianMs,
+      note: `${demoNote}; ${(r.bytes / 1024).toFixed(0)} KB JSON`,
+    });
   }
   await demo.stop();
 }

@@ -13,10 +13,12 @@ const benches = [
   { name: "api", file: "api.ts", title: "API: filtered reads through HTTP vs the same SQL on PGlite" },
   { name: "meta", file: "meta.ts", title: "Meta-analysis: REML + HKSJ fits and the endpoint" },
   { name: "bundle", file: "bundle.ts", title: "Web export: first-screen JavaScript, gzip (needs dist/: npm run build:web)" },
-  ...(process.env.BENCH_ALL ? [
-    { name: "load", file: "load.ts", title: "Load: 50 clients for 60 s against the public reads and the meta-analysis" },
-    { name: "crash", file: "crash.ts", title: "Crash safety: SIGKILL mid-import and mid-publish" },
-  ] : []),
+  ...(process.env.BENCH_ALL
+    ? [
+        { name: "load", file: "load.ts", title: "Load: 50 clients for 60 s against the public reads and the meta-analysis" },
+        { name: "crash", file: "crash.ts", title: "Crash safety: SIGKILL mid-import and mid-publish" },
+      ]
+    : []),
 ];
 const only = process.argv.slice(2);
 
@@ -27,12 +29,21 @@ for (const b of benches) {
   if (!existsSync(file)) continue;
   console.log(`\n=== ${b.name} ===`);
   const started = Date.now();
-  const run = spawnSync(process.execPath, ["--expose-gc", "--import", "tsx", file], { cwd: path.resolve(__dirname, ".."), encoding: "utf8", maxBuffer: 64 * 1024 * 1024 });
+  const run = spawnSync(process.execPath, ["--expose-gc", "--import", "tsx", file], {
+    cwd: path.resolve(__dirname, ".."),
+    encoding: "utf8",
+    maxBuffer: 64 * 1024 * 1024,
+  });
   process.stdout.write(run.stdout);
   process.stderr.write(run.stderr);
-  const tables = run.stdout.split("\n").filter((l) => l.startsWith("|")).join("\n");
+  const tables = run.stdout
+    .split("\n")
+    .filter((l) => l.startsWith("|"))
+    .join("\n");
   const status = run.status === 0 ? "" : `\n\n**The run failed (exit ${run.status}).**`;
-  sections.push(`## ${b.title}\n\nRan ${new Date(started).toISOString()} in ${Math.round((Date.now() - started) / 1000)} s (\`node --import tsx bench/${b.file}\`).\n\n${tables || "(no table printed)"}${status}`);
+  sections.push(
+    `## ${b.title}\n\nRan ${new Date(started).toISOString()} in ${Math.round((Date.now() - started) / 1000)} s (\`node --import tsx bench/${b.file}\`).\n\n${tables || "(no table printed)"}${status}`,
+  );
 }
 
 const resultsPath = path.join(__dirname, "RESULTS.md");

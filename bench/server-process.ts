@@ -14,13 +14,26 @@ export interface ServerProcess {
 }
 
 /** Start `npm start`'s entry point as its own process on a loopback port, with its own PGlite folder. */
-export async function startServerProcess(options: { port: number; env?: Record<string, string>; dataDir?: string; keepData?: boolean }): Promise<ServerProcess> {
+export async function startServerProcess(options: {
+  port: number;
+  env?: Record<string, string>;
+  dataDir?: string;
+  keepData?: boolean;
+}): Promise<ServerProcess> {
   const dataDir = options.dataDir ?? mkdtempSync(path.join(tmpdir(), "plotbank-bench-"));
   let log = "";
   // Benchmarks send no mail to anyone: production settings, with mail kept in the outbox.
   const child = spawn(process.execPath, ["--import", "tsx", "server/main.ts"], {
     cwd: path.resolve(__dirname, ".."),
-    env: { ...process.env, PORT: String(options.port), HOST: "127.0.0.1", PLOTBANK_DATA_DIR: dataDir, NODE_ENV: "production", PLOTBANK_MAIL_OUTBOX_ONLY: "1", ...options.env },
+    env: {
+      ...process.env,
+      PORT: String(options.port),
+      HOST: "127.0.0.1",
+      PLOTBANK_DATA_DIR: dataDir,
+      NODE_ENV: "production",
+      PLOTBANK_MAIL_OUTBOX_ONLY: "1",
+      ...options.env,
+    },
     stdio: ["ignore", "pipe", "pipe"],
   });
   child.stdout!.on("data", (d) => (log += d));

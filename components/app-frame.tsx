@@ -57,9 +57,15 @@ export function AppFrame({ children }: { children: React.ReactNode }) {
           {items.map((item) => (
             <NavLink key={item.href} item={item} active={item.match(pathname)} compact={false} />
           ))}
-          {session.data ? <Text variant="caption" style={styles.who}>{session.data.displayName} · {session.data.role}</Text> : null}
+          {session.data ? (
+            <Text variant="caption" style={styles.who}>
+              {session.data.displayName} · {session.data.role}
+            </Text>
+          ) : null}
         </View>
-        <View style={styles.main} role="main">{children}</View>
+        <View style={styles.main} role="main">
+          {children}
+        </View>
       </View>
     );
   }
@@ -69,7 +75,9 @@ export function AppFrame({ children }: { children: React.ReactNode }) {
         <Text style={styles.brand}>Plotbank</Text>
         {session.data ? <Text variant="caption">{session.data.displayName}</Text> : null}
       </View>
-      <View style={styles.main} role="main">{children}</View>
+      <View style={styles.main} role="main">
+        {children}
+      </View>
       <ScrollView horizontal contentContainerStyle={styles.tabBarInner} style={styles.tabBar} role="navigation" accessibilityLabel="Main">
         {items.map((item) => (
           <NavLink key={item.href} item={item} active={item.match(pathname)} compact />

@@ -14,8 +14,12 @@ export function DatasetCard({ dataset }: { dataset: DatasetSummary }) {
           <Text variant="heading">{dataset.title}</Text>
           <View style={styles.meta}>
             <Text variant="label">{dataset.crops.join(", ")}</Text>
-            <Text variant="label">{dataset.siteYears} site-years · {years}</Text>
-            <Text variant="label">v{dataset.latestVersion} · {dataset.licence}</Text>
+            <Text variant="label">
+              {dataset.siteYears} site-years · {years}
+            </Text>
+            <Text variant="label">
+              v{dataset.latestVersion} · {dataset.licence}
+            </Text>
           </View>
           <Text numberOfLines={3}>{dataset.description}</Text>
         </Card>

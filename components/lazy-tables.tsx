@@ -6,6 +6,15 @@ import type * as Tables from "./tables";
 const tables = () => import("./tables");
 const label = "Loading the table…";
 
-export const SiteYearTable = suspended<ComponentProps<typeof Tables.SiteYearTable>>(() => tables().then((m) => ({ default: m.SiteYearTable })), label);
-export const DictionaryEditor = suspended<ComponentProps<typeof Tables.DictionaryEditor>>(() => tables().then((m) => ({ default: m.DictionaryEditor })), label);
-export const ProblemReportTable = suspended<ComponentProps<typeof Tables.ProblemReportTable>>(() => tables().then((m) => ({ default: m.ProblemReportTable })), label);
+export const SiteYearTable = suspended<ComponentProps<typeof Tables.SiteYearTable>>(
+  () => tables().then((m) => ({ default: m.SiteYearTable })),
+  label,
+);
+export const DictionaryEditor = suspended<ComponentProps<typeof Tables.DictionaryEditor>>(
+  () => tables().then((m) => ({ default: m.DictionaryEditor })),
+  label,
+);
+export const ProblemReportTable = suspended<ComponentProps<typeof Tables.ProblemReportTable>>(
+  () => tables().then((m) => ({ default: m.ProblemReportTable })),
+  label,
+);

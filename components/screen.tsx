@@ -29,7 +29,9 @@ export function Screen({
     <ScrollView contentContainerStyle={[styles.scroll, { padding: wide ? space.xl : space.lg }]}>
       <PageHead title={documentTitle ?? title} description={description ?? subtitle} />
       <View style={[styles.inner, { maxWidth }]}>
-        <Text variant="title" aria-level={1}>{title}</Text>
+        <Text variant="title" aria-level={1}>
+          {title}
+        </Text>
         {subtitle ? <Text variant="caption">{subtitle}</Text> : null}
         {children}
       </View>

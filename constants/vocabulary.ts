@@ -52,7 +52,12 @@ export const soilTestClassLabels: Record<SoilTestClass, string> = {
 
 export const tillages = ["no-till", "strip-till", "reduced", "conventional"] as const;
 export type Tillage = (typeof tillages)[number];
-export const tillageLabels: Record<Tillage, string> = { "no-till": "No-till", "strip-till": "Strip-till", reduced: "Reduced", conventional: "Conventional" };
+export const tillageLabels: Record<Tillage, string> = {
+  "no-till": "No-till",
+  "strip-till": "Strip-till",
+  reduced: "Reduced",
+  conventional: "Conventional",
+};
 
 // A version's resources (the files of its Data Package).
 
@@ -77,7 +82,12 @@ export const staffRoles = ["curator", "reviewer", "admin"] as const satisfies re
 
 export const versionStates = ["draft", "in_review", "published", "withdrawn"] as const;
 export type VersionState = (typeof versionStates)[number];
-export const versionStateLabels: Record<VersionState, string> = { draft: "Draft", in_review: "In review", published: "Published", withdrawn: "Withdrawn" };
+export const versionStateLabels: Record<VersionState, string> = {
+  draft: "Draft",
+  in_review: "In review",
+  published: "Published",
+  withdrawn: "Withdrawn",
+};
 
 // Stored states with no words of their own on screen.
 

@@ -11,7 +11,11 @@ async function main() {
   const { ctx } = createApp({ database, config, webDistDir: false });
   const started = Date.now();
   const result = await seedDemo(ctx);
-  console.log(result.seeded ? `Seeded ${result.datasets} datasets, ${result.versions} versions in ${((Date.now() - started) / 1000).toFixed(1)} s.` : "The database already has datasets; nothing seeded.");
+  console.log(
+    result.seeded
+      ? `Seeded ${result.datasets} datasets, ${result.versions} versions in ${((Date.now() - started) / 1000).toFixed(1)} s.`
+      : "The database already has datasets; nothing seeded.",
+  );
   await database.close();
 }
 

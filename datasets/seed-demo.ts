@@ -11,7 +11,17 @@ import { textStream } from "@/server/services/ingest/csv-stream";
 import { ingestUpload } from "@/server/services/ingest/ingest-upload";
 import { createUser, findUserByEmail } from "@/server/services/users";
 import type { Role } from "@/schemas/account";
-import { cornStarterTrial, nitrogenSulfurTrial, plotsCsv, siteYearsCsv, sitesCsv, soilTestsCsv, starterTrial, treatmentsCsv, type DemoTrial } from "./tallgrass-trials";
+import {
+  cornStarterTrial,
+  nitrogenSulfurTrial,
+  plotsCsv,
+  siteYearsCsv,
+  sitesCsv,
+  soilTestsCsv,
+  starterTrial,
+  treatmentsCsv,
+  type DemoTrial,
+} from "./tallgrass-trials";
 
 /** The one password of every demo account (documented in the README; demo only). */
 export const demoPassword = "tallgrass-demo-2026";
@@ -23,7 +33,11 @@ export const demoAccounts: { email: string; displayName: string; role: Role }[] 
   { email: "member@plotbank.test", displayName: "Demo Member", role: "member" },
 ];
 
-const options: UploadOptions = { mapping: {}, units: { yield: "kg/ha", yieldMoisture: "standard", soilTest: "ppm", gradeBasis: "oxide" }, mode: "merge" };
+const options: UploadOptions = {
+  mapping: {},
+  units: { yield: "kg/ha", yieldMoisture: "standard", soilTest: "ppm", gradeBasis: "oxide" },
+  mode: "merge",
+};
 
 type Step = { resource: ResourceName; csv: string; filename: string };
 
@@ -75,15 +89,28 @@ function demoDatasets(): DemoDataset[] {
         keywords: ["soybean", "phosphorus", "starter", "in-furrow", "2x2 band", "broadcast"],
         contributors,
         funding: "Tallgrass Basin Growers' Fund (fictional)",
-        methods: "RCBD with 4-6 blocks per site-year; plots harvested with a plot combine; yields at 13 % moisture; Bray-P1 and ammonium-acetate soil tests, 0-6 in, sampled each spring.",
+        methods:
+          "RCBD with 4-6 blocks per site-year; plots harvested with a plot combine; yields at 13 % moisture; Bray-P1 and ammonium-acetate soil tests, 0-6 in, sampled each spring.",
       },
       releases: [
-        { changelog: "First release: 2020-2022 seasons.", steps: season(starterTrial, [2020, 2021, 2022], { withTypo: true, withTreatments: true }) },
+        {
+          changelog: "First release: 2020-2022 seasons.",
+          steps: season(starterTrial, [2020, 2021, 2022], { withTypo: true, withTreatments: true }),
+        },
         { changelog: "Adds the 2023 and 2024 seasons.", steps: season(starterTrial, [2023, 2024]) },
         {
           semver: "1.1.1",
           changelog: `Correction: plot ${starterTrial.typo!.plot.split("/")[1]} of ${typoSy} had its yield keyed more than twice too high (a transcription error in the field book).`,
-          steps: [{ resource: "plots", csv: plotsCsv(starterTrial, starterTrial.siteYears(2021).filter((s) => s.code === typoSy)), filename: `plots-${typoSy}-corrected.csv` }],
+          steps: [
+            {
+              resource: "plots",
+              csv: plotsCsv(
+                starterTrial,
+                starterTrial.siteYears(2021).filter((s) => s.code === typoSy),
+              ),
+              filename: `plots-${typoSy}-corrected.csv`,
+            },
+          ],
         },
         { steps: season(starterTrial, [2025]) },
       ],
@@ -101,14 +128,22 @@ function demoDatasets(): DemoDataset[] {
         methods: "RCBD with 4 blocks; early and normal plantings side by side at each site; yields at 13 % moisture.",
       },
       releases: [
-        { changelog: "First release: 2021-2023 seasons.", steps: season(nitrogenSulfurTrial, [2021, 2022, 2023], { withTreatments: true }) },
+        {
+          changelog: "First release: 2021-2023 seasons.",
+          steps: season(nitrogenSulfurTrial, [2021, 2022, 2023], { withTreatments: true }),
+        },
         { changelog: "Adds the 2024 season.", steps: season(nitrogenSulfurTrial, [2024]) },
         {
           semver: "1.1.1",
           steps: [
             {
               resource: "site_years",
-              csv: siteYearsCsv(nitrogenSulfurTrial.siteYears(2024).filter((s) => s.code === "TB-05-2024-N").map((s) => ({ ...s, plantingDate: "2024-05-27" }))),
+              csv: siteYearsCsv(
+                nitrogenSulfurTrial
+                  .siteYears(2024)
+                  .filter((s) => s.code === "TB-05-2024-N")
+                  .map((s) => ({ ...s, plantingDate: "2024-05-27" })),
+              ),
               filename: "site-years-TB-05-2024-N-planting-date.csv",
             },
           ],
@@ -162,12 +197,28 @@ export async function seedDemo(ctx: AppContext): Promise<{ seeded: boolean; data
       // The trial's own soil-test scheme goes into the first version's dictionary; later versions copy it.
       if (d.trial.sulfurScheme && !version.tableSchema.soilTestSchemes?.length) {
         // Parsed as the API would parse a curator's PUT (the stored JSON has its keys in another order).
-        await putTableSchema(ctx.db, curator!, version.id, { ...tableSchemaDescriptor.parse(version.tableSchema), soilTestSchemes: [d.trial.sulfurScheme] });
+        await putTableSchema(ctx.db, curator!, version.id, {
+          ...tableSchemaDescriptor.parse(version.tableSchema),
+          soilTestSchemes: [d.trial.sulfurScheme],
+        });
       }
       for (const step of release.steps) {
-        const result = await ingestUpload(ctx, { versionId: version.id, resource: step.resource, filename: step.filename, source: textStream(step.csv), options, userId: curator!.id });
+        const result = await ingestUpload(ctx, {
+          versionId: version.id,
+          resource: step.resource,
+          filename: step.filename,
+          source: textStream(step.csv),
+          options,
+          userId: curator!.id,
+        });
         if (!result.accepted) {
-          throw new Error(`demo ${d.meta.slug} ${version.semver} ${step.filename} was refused: ${result.problems.filter((p) => p.severity === "error").slice(0, 5).map((p) => `row ${p.row} ${p.column}: ${p.message}`).join("; ")}`);
+          throw new Error(
+            `demo ${d.meta.slug} ${version.semver} ${step.filename} was refused: ${result.problems
+              .filter((p) => p.severity === "error")
+              .slice(0, 5)
+              .map((p) => `row ${p.row} ${p.column}: ${p.message}`)
+              .join("; ")}`,
+          );
         }
       }
       if (!release.changelog) continue;

@@ -90,7 +90,20 @@ export function siteYearsCsv(sys: DemoSiteYear[]): string {
   for (const sy of sys) {
     const soy = sy.crop === "soybean";
     lines.push(
-      [sy.code, sy.site.code, sy.crop, sy.year, "RCBD", sy.blocks, sy.site.tillage, soy ? "corn" : "soybean", sy.plantingDate, 30, soy ? "TG-2.4 (invented)" : "TGH-108 (invented)", soy ? "2.4" : "108 d"].join(","),
+      [
+        sy.code,
+        sy.site.code,
+        sy.crop,
+        sy.year,
+        "RCBD",
+        sy.blocks,
+        sy.site.tillage,
+        soy ? "corn" : "soybean",
+        sy.plantingDate,
+        30,
+        soy ? "TG-2.4 (invented)" : "TGH-108 (invented)",
+        soy ? "2.4" : "108 d",
+      ].join(","),
     );
   }
   return lines.join("\n") + "\n";
@@ -103,7 +116,10 @@ export function soilTestsCsv(sys: DemoSiteYear[], sulfurScheme?: SoilTestScheme)
     lines.push(`${sy.code},P,${t.p},ppm,Bray-P1,6,${t.pClass},tallgrass-illustrative`);
     lines.push(`${sy.code},K,${t.k},ppm,ammonium-acetate,6,${t.kClass},tallgrass-illustrative`);
     // Reported under the lab's own labels where the trial's dictionary registers its scheme.
-    if (sulfurScheme) lines.push(`${sy.code},S,${t.s},ppm,${sulfurScheme.extractant},6,${classifyByThresholds(sulfurScheme, t.s)!.label},${sulfurScheme.name}`);
+    if (sulfurScheme)
+      lines.push(
+        `${sy.code},S,${t.s},ppm,${sulfurScheme.extractant},6,${classifyByThresholds(sulfurScheme, t.s)!.label},${sulfurScheme.name}`,
+      );
     else lines.push(`${sy.code},S,${t.s},ppm,,6,,`);
     lines.push(`${sy.code},OM,${t.om},%,loss-on-ignition,6,,`);
   }
@@ -137,7 +153,11 @@ export function plotsCsv(trial: DemoTrial, sys: DemoSiteYear[], options: { withT
         const key = `${sy.code}/${plot}`;
         let y = base + effects[ti]! + blockEffect + rng.normal(0, CV * base);
         const moisture = Math.round((sy.crop === "soybean" ? rng.between(11.5, 15) : rng.between(15, 21)) * 10) / 10;
-        const stand = Math.round((sy.crop === "soybean" ? 120_000 : 33_000) * rng.between(0.9, 1.05) * (tr.applications.some((a) => a.includes("in-furrow")) ? 0.97 : 1));
+        const stand = Math.round(
+          (sy.crop === "soybean" ? 120_000 : 33_000) *
+            rng.between(0.9, 1.05) *
+            (tr.applications.some((a) => a.includes("in-furrow")) ? 0.97 : 1),
+        );
         if (trial.lostPlots?.has(key)) return;
         if (options.withTypo && trial.typo?.plot === key) y *= trial.typo.factor;
         lines.push(`${sy.code},${plot},${b},${tr.code},${Math.round(y)},${moisture},${stand}`);
@@ -156,16 +176,51 @@ export const starterTrial: DemoTrial = {
   crop: "soybean",
   treatments: [
     { code: "CHK", name: "Untreated check", applications: [], response: () => 0 },
-    { code: "IF-APP", tested: "P", name: "In-furrow 10-34-0, 3 gal/ac", applications: ["APP 10-34-0,10-34-0,3,gal/ac,in-furrow,at-planting"], response: ({ pClass }) => 0.45 * pResponse[pClass]! - 25 },
-    { code: "IF-MAP", tested: "P", name: "In-furrow MAP, 40 lb/ac", applications: ["MAP,11-52-0,40,lb/ac,in-furrow,at-planting"], response: ({ pClass }) => 0.55 * pResponse[pClass]! - 40 },
-    { code: "BAND-MAP", tested: "P", name: "2x2 band MAP, 100 lb/ac", applications: ["MAP,11-52-0,100,lb/ac,2x2-band,at-planting"], response: ({ pClass }) => pResponse[pClass]! },
-    { code: "BC-MAP", tested: "P", name: "Broadcast MAP, 100 lb/ac", applications: ["MAP,11-52-0,100,lb/ac,broadcast,pre-plant"], response: ({ pClass }) => 0.8 * pResponse[pClass]! },
+    {
+      code: "IF-APP",
+      tested: "P",
+      name: "In-furrow 10-34-0, 3 gal/ac",
+      applications: ["APP 10-34-0,10-34-0,3,gal/ac,in-furrow,at-planting"],
+      response: ({ pClass }) => 0.45 * pResponse[pClass]! - 25,
+    },
+    {
+      code: "IF-MAP",
+      tested: "P",
+      name: "In-furrow MAP, 40 lb/ac",
+      applications: ["MAP,11-52-0,40,lb/ac,in-furrow,at-planting"],
+      response: ({ pClass }) => 0.55 * pResponse[pClass]! - 40,
+    },
+    {
+      code: "BAND-MAP",
+      tested: "P",
+      name: "2x2 band MAP, 100 lb/ac",
+      applications: ["MAP,11-52-0,100,lb/ac,2x2-band,at-planting"],
+      response: ({ pClass }) => pResponse[pClass]!,
+    },
+    {
+      code: "BC-MAP",
+      tested: "P",
+      name: "Broadcast MAP, 100 lb/ac",
+      applications: ["MAP,11-52-0,100,lb/ac,broadcast,pre-plant"],
+      response: ({ pClass }) => 0.8 * pResponse[pClass]!,
+    },
   ],
   siteYears(year) {
-    const rotation = [["TB-01", "TB-03", "TB-06", "TB-07", "TB-09", "TB-12"], ["TB-02", "TB-03", "TB-04", "TB-06", "TB-10", "TB-12"]][year % 2]!;
+    const rotation = [
+      ["TB-01", "TB-03", "TB-06", "TB-07", "TB-09", "TB-12"],
+      ["TB-02", "TB-03", "TB-04", "TB-06", "TB-10", "TB-12"],
+    ][year % 2]!;
     return rotation.map((code) => {
       const site = siteByCode.get(code)!;
-      return { code: `${code}-${year}`, site, year, crop: "soybean" as const, early: false, plantingDate: `${year}-05-${pad(site.plantingDay + 4)}`, blocks: 4 + (year % 3) };
+      return {
+        code: `${code}-${year}`,
+        site,
+        year,
+        crop: "soybean" as const,
+        early: false,
+        plantingDate: `${year}-05-${pad(site.plantingDay + 4)}`,
+        blocks: 4 + (year % 3),
+      };
     });
   },
   lostPlots: new Set(["TB-06-2021/302", "TB-06-2021/405"]),
@@ -179,17 +234,50 @@ export const nitrogenSulfurTrial: DemoTrial = {
   sulfurScheme: tallgrassLabSulfur,
   treatments: [
     { code: "CHK", name: "Untreated check", applications: [], response: () => 0 },
-    { code: "UREA", name: "Urea, 30 lb N/ac broadcast", applications: ["Urea,46-0-0,65,lb/ac,broadcast,at-planting"], response: ({ early }) => (early ? 55 : 15) },
-    { code: "AMS", tested: "N;S", name: "Ammonium sulfate, 100 lb/ac broadcast", applications: ["AMS,21-0-0-24S,100,lb/ac,broadcast,at-planting"], response: ({ site, early }) => (site.s <= 5 ? 190 : 60) * (early ? 1.3 : 1) },
-    { code: "ATS", tested: "N;S", name: "ATS 12-0-0-26S, 5 gal/ac in a 2x2 band", applications: ["ATS,12-0-0-26S,5,gal/ac,2x2-band,at-planting"], response: ({ site, early }) => (site.s <= 5 ? 150 : 45) * (early ? 1.25 : 1) },
+    {
+      code: "UREA",
+      name: "Urea, 30 lb N/ac broadcast",
+      applications: ["Urea,46-0-0,65,lb/ac,broadcast,at-planting"],
+      response: ({ early }) => (early ? 55 : 15),
+    },
+    {
+      code: "AMS",
+      tested: "N;S",
+      name: "Ammonium sulfate, 100 lb/ac broadcast",
+      applications: ["AMS,21-0-0-24S,100,lb/ac,broadcast,at-planting"],
+      response: ({ site, early }) => (site.s <= 5 ? 190 : 60) * (early ? 1.3 : 1),
+    },
+    {
+      code: "ATS",
+      tested: "N;S",
+      name: "ATS 12-0-0-26S, 5 gal/ac in a 2x2 band",
+      applications: ["ATS,12-0-0-26S,5,gal/ac,2x2-band,at-planting"],
+      response: ({ site, early }) => (site.s <= 5 ? 150 : 45) * (early ? 1.25 : 1),
+    },
   ],
   siteYears(year) {
     const codes = ["TB-04", "TB-05", "TB-08", "TB-11"];
     return codes.flatMap((code) => {
       const site = siteByCode.get(code)!;
       return [
-        { code: `${code}-${year}-E`, site, year, crop: "soybean" as const, early: true, plantingDate: `${year}-04-${pad(18 + (site.plantingDay % 8))}`, blocks: 4 },
-        { code: `${code}-${year}-N`, site, year, crop: "soybean" as const, early: false, plantingDate: `${year}-05-${pad(site.plantingDay + 10)}`, blocks: 4 },
+        {
+          code: `${code}-${year}-E`,
+          site,
+          year,
+          crop: "soybean" as const,
+          early: true,
+          plantingDate: `${year}-04-${pad(18 + (site.plantingDay % 8))}`,
+          blocks: 4,
+        },
+        {
+          code: `${code}-${year}-N`,
+          site,
+          year,
+          crop: "soybean" as const,
+          early: false,
+          plantingDate: `${year}-05-${pad(site.plantingDay + 10)}`,
+          blocks: 4,
+        },
       ];
     });
   },
@@ -201,15 +289,41 @@ export const cornStarterTrial: DemoTrial = {
   crop: "corn",
   treatments: [
     { code: "CHK", name: "Untreated check", applications: [], response: () => 0 },
-    { code: "NK-15", tested: "N;K", name: "2x2 band 15 N + 15 K2O", applications: ["UAN 28,28-0-0,5,gal/ac,2x2-band,at-planting", "Potash,0-0-60,25,lb/ac,2x2-band,at-planting"], response: ({ kClass }) => 0.5 * kResponse[kClass]! + 60 },
-    { code: "NK-30", tested: "N;K", name: "2x2 band 30 N + 30 K2O", applications: ["UAN 28,28-0-0,10,gal/ac,2x2-band,at-planting", "Potash,0-0-60,50,lb/ac,2x2-band,at-planting"], response: ({ kClass }) => 0.85 * kResponse[kClass]! + 110 },
-    { code: "NK-45", tested: "N;K", name: "2x2 band 45 N + 45 K2O", applications: ["UAN 28,28-0-0,15,gal/ac,2x2-band,at-planting", "Potash,0-0-60,75,lb/ac,2x2-band,at-planting"], response: ({ kClass, site }) => kResponse[kClass]! + 130 - (site.texture.includes("sand") ? 180 : 0) },
+    {
+      code: "NK-15",
+      tested: "N;K",
+      name: "2x2 band 15 N + 15 K2O",
+      applications: ["UAN 28,28-0-0,5,gal/ac,2x2-band,at-planting", "Potash,0-0-60,25,lb/ac,2x2-band,at-planting"],
+      response: ({ kClass }) => 0.5 * kResponse[kClass]! + 60,
+    },
+    {
+      code: "NK-30",
+      tested: "N;K",
+      name: "2x2 band 30 N + 30 K2O",
+      applications: ["UAN 28,28-0-0,10,gal/ac,2x2-band,at-planting", "Potash,0-0-60,50,lb/ac,2x2-band,at-planting"],
+      response: ({ kClass }) => 0.85 * kResponse[kClass]! + 110,
+    },
+    {
+      code: "NK-45",
+      tested: "N;K",
+      name: "2x2 band 45 N + 45 K2O",
+      applications: ["UAN 28,28-0-0,15,gal/ac,2x2-band,at-planting", "Potash,0-0-60,75,lb/ac,2x2-band,at-planting"],
+      response: ({ kClass, site }) => kResponse[kClass]! + 130 - (site.texture.includes("sand") ? 180 : 0),
+    },
   ],
   siteYears(year) {
     const codes = ["TB-01", "TB-02", "TB-07", "TB-10", "TB-11"];
     return codes.map((code) => {
       const site = siteByCode.get(code)!;
-      return { code: `${code}-${year}`, site, year, crop: "corn" as const, early: false, plantingDate: `${year}-04-${pad(22 + (site.plantingDay % 8))}`, blocks: 5 };
+      return {
+        code: `${code}-${year}`,
+        site,
+        year,
+        crop: "corn" as const,
+        early: false,
+        plantingDate: `${year}-04-${pad(22 + (site.plantingDay % 8))}`,
+        blocks: 5,
+      };
     });
   },
   lostPlots: new Set(["TB-10-2022/403"]),

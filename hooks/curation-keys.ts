@@ -14,8 +14,10 @@ export const curationPaths = {
   upload: (id: string, resource: ResourceName) => `/api/v1/curation/versions/${encodeURIComponent(id)}/uploads/${resource}`,
   action: (id: string, action: VersionAction) => `/api/v1/curation/versions/${encodeURIComponent(id)}/${action}`,
   requeueDoi: (id: string) => `/api/v1/curation/versions/${encodeURIComponent(id)}/doi/requeue`,
-  report: (versionId: string, reportId: string) => `/api/v1/curation/versions/${encodeURIComponent(versionId)}/reports/${encodeURIComponent(reportId)}`,
-  reportCsv: (versionId: string, reportId: string) => `/api/v1/curation/versions/${encodeURIComponent(versionId)}/reports/${encodeURIComponent(reportId)}.csv`,
+  report: (versionId: string, reportId: string) =>
+    `/api/v1/curation/versions/${encodeURIComponent(versionId)}/reports/${encodeURIComponent(reportId)}`,
+  reportCsv: (versionId: string, reportId: string) =>
+    `/api/v1/curation/versions/${encodeURIComponent(versionId)}/reports/${encodeURIComponent(reportId)}.csv`,
   diff: (from: string, to: string) => `/api/v1/curation/diff?from=${encodeURIComponent(from)}&to=${encodeURIComponent(to)}`,
   reviewQueue: "/api/v1/curation/review-queue",
 } as const;
@@ -37,4 +39,3 @@ export const curationKeys = {
 
 // Drafts change under the curator's hands: a short stale time, unlike published data.
 export const draftStaleMs = 5_000;
-

@@ -47,13 +47,22 @@ const invitationQuery = (token: string) =>
 const adminUsersQuery = () =>
   queryOptions({ queryKey: accountKeys.users(), queryFn: ({ signal }) => api("/api/v1/admin/users", adminUserList, { signal }) });
 const roleChangesQuery = () =>
-  queryOptions({ queryKey: accountKeys.roleChanges(), queryFn: ({ signal }) => api("/api/v1/admin/role-changes", roleChangeList, { signal }) });
+  queryOptions({
+    queryKey: accountKeys.roleChanges(),
+    queryFn: ({ signal }) => api("/api/v1/admin/role-changes", roleChangeList, { signal }),
+  });
 const invitationsQuery = () =>
-  queryOptions({ queryKey: accountKeys.invitations(), queryFn: ({ signal }) => api("/api/v1/admin/invitations", invitationList, { signal }) });
+  queryOptions({
+    queryKey: accountKeys.invitations(),
+    queryFn: ({ signal }) => api("/api/v1/admin/invitations", invitationList, { signal }),
+  });
 const outboxQuery = () =>
   queryOptions({ queryKey: accountKeys.outbox(), queryFn: ({ signal }) => api("/api/v1/admin/outbox", outboxList, { signal }) });
 const outboxMessageQuery = (id: string) =>
-  queryOptions({ queryKey: accountKeys.outboxMessage(id), queryFn: ({ signal }) => api(`/api/v1/admin/outbox/${encodeURIComponent(id)}`, outboxMessage, { signal }) });
+  queryOptions({
+    queryKey: accountKeys.outboxMessage(id),
+    queryFn: ({ signal }) => api(`/api/v1/admin/outbox/${encodeURIComponent(id)}`, outboxMessage, { signal }),
+  });
 
 export const useFollowsQuery = (enabled = true) => useQuery({ ...followsQuery(), enabled });
 export const useInvitationQuery = (token: string) => useQuery({ ...invitationQuery(token), enabled: token.length > 0 });
@@ -93,7 +102,8 @@ export function useSignOutMutation() {
 
 export const useSignUpMutation = () =>
   useMutation({
-    mutationFn: (body: { email: string; displayName: string; password: string }) => api("/api/v1/sign-up", checkEmail, { method: "POST", body }),
+    mutationFn: (body: { email: string; displayName: string; password: string }) =>
+      api("/api/v1/sign-up", checkEmail, { method: "POST", body }),
   });
 
 export const useVerifyEmailMutation = () =>
@@ -112,12 +122,16 @@ export const useResetPasswordMutation = () =>
 
 export const useAcceptInvitationMutation = () =>
   useMutation({
-    mutationFn: (body: { token: string; displayName: string; password: string }) => api("/api/v1/invitations/accept", me, { method: "POST", body }),
+    mutationFn: (body: { token: string; displayName: string; password: string }) =>
+      api("/api/v1/invitations/accept", me, { method: "POST", body }),
   });
 
 export function useProfileMutation() {
   const refresh = useRefreshIdentity();
-  return useMutation({ mutationFn: (patch: ProfilePatch) => api("/api/v1/account", me, { method: "PATCH", body: patch }), onSuccess: refresh });
+  return useMutation({
+    mutationFn: (patch: ProfilePatch) => api("/api/v1/account", me, { method: "PATCH", body: patch }),
+    onSuccess: refresh,
+  });
 }
 
 export function useFollowMutation() {

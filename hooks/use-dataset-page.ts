@@ -27,7 +27,8 @@ const versionSchemaQuery = (slug: string, semver: string) =>
   });
 
 export const useDatasetDetail = (slug: string) => useQuery(datasetDetailQuery(slug));
-export const useVersionSchema = (slug: string, semver: string | null) => useQuery({ ...versionSchemaQuery(slug, semver ?? ""), enabled: !!semver });
+export const useVersionSchema = (slug: string, semver: string | null) =>
+  useQuery({ ...versionSchemaQuery(slug, semver ?? ""), enabled: !!semver });
 
 /** Download links of a published version, as the API serves them. */
 export function versionDownloads(slug: string, semver: string, resources: string[]) {

@@ -57,10 +57,15 @@ async function readJson(res: Response, path: string): Promise<unknown> {
     return JSON.parse(text);
   } catch (error) {
     const type = res.headers.get("content-type")?.split(";")[0];
-    throw new ApiError(res.status, null, `The server's answer to ${path} is not JSON${type ? ` but ${type}` : ""}. Something between this app and Plotbank (a proxy or a sign-in page of the network) may have answered instead.`, {
-      kind: "not-json",
-      cause: error,
-    });
+    throw new ApiError(
+      res.status,
+      null,
+      `The server's answer to ${path} is not JSON${type ? ` but ${type}` : ""}. Something between this app and Plotbank (a proxy or a sign-in page of the network) may have answered instead.`,
+      {
+        kind: "not-json",
+        cause: error,
+      },
+    );
   }
 }
 

@@ -18,7 +18,14 @@ export interface EvidenceState {
   applicationCost?: number;
 }
 
-export const defaultEvidenceState: EvidenceState = { filters: {}, effect: "md", method: "REML", ci: "hksj", groupBy: "soilTestClass", units: "bu/ac" };
+export const defaultEvidenceState: EvidenceState = {
+  filters: {},
+  effect: "md",
+  method: "REML",
+  ci: "hksj",
+  groupBy: "soilTestClass",
+  units: "bu/ac",
+};
 
 export const priceKeys = ["price", "productCost", "applicationCost"] as const;
 export type PriceKey = (typeof priceKeys)[number];
@@ -30,7 +37,10 @@ const filterKeys = Object.keys(trialFilterShape) as (keyof TrialFilters)[];
 /** Every key the screen writes to its URL; the router gets `undefined` for the ones not set, to clear them. */
 const evidenceParamKeys = [...filterKeys, "effect", "method", "ci", "groupBy", "units", ...priceKeys] as const;
 
-function parseField<T>(schema: { safeParse(v: unknown): { success: true; data: T } | { success: false } }, raw: string | string[] | undefined): T | undefined {
+function parseField<T>(
+  schema: { safeParse(v: unknown): { success: true; data: T } | { success: false } },
+  raw: string | string[] | undefined,
+): T | undefined {
   if (raw === undefined || raw === "") return undefined;
   const result = schema.safeParse(raw);
   return result.success ? result.data : undefined;

@@ -23,9 +23,7 @@ export type Me = z.infer<typeof me>;
 export const sessionState = z.object({ user: z.union([me, z.null()]) }).meta({ id: "SessionState" });
 export type SessionState = z.infer<typeof sessionState>;
 
-export const signInBody = z
-  .object({ email: z.email().max(254), password: z.string().min(1).max(256) })
-  .meta({ id: "SignIn" });
+export const signInBody = z.object({ email: z.email().max(254), password: z.string().min(1).max(256) }).meta({ id: "SignIn" });
 
 /**
  * Passwords: this is the part a form can check. The server also refuses common and easily guessed ones with a strength
@@ -39,9 +37,7 @@ const emailAddress = z.email("Enter an e-mail address like name@example.org.").m
  * Sign-up. Unknown keys (role, emailVerified, …) are stripped, never stored: a new account is always an unverified
  * member.
  */
-export const signUpBody = z
-  .object({ email: emailAddress, displayName, password: newPassword })
-  .meta({ id: "SignUp" });
+export const signUpBody = z.object({ email: emailAddress, displayName, password: newPassword }).meta({ id: "SignUp" });
 export type SignUpBody = z.infer<typeof signUpBody>;
 
 /** What the server answers to sign-up and reset requests, whether or not the address has an account. */
@@ -49,7 +45,10 @@ export const checkEmail = z.object({ status: z.literal("check-email"), message: 
 export type CheckEmail = z.infer<typeof checkEmail>;
 
 export const emailOnlyBody = z.object({ email: emailAddress }).strip().meta({ id: "EmailOnly" });
-export const tokenBody = z.object({ token: line().min(10).max(200) }).strip().meta({ id: "EmailLinkToken" });
+export const tokenBody = z
+  .object({ token: line().min(10).max(200) })
+  .strip()
+  .meta({ id: "EmailLinkToken" });
 
 export const resetPasswordBody = z
   .object({
@@ -63,9 +62,7 @@ export const acceptInvitationBody = z
   .object({ token: line().min(10).max(200), displayName, password: newPassword })
   .meta({ id: "AcceptInvitation" });
 
-export const invitationPreview = z
-  .object({ email: z.string(), role, expiresAt: z.string() })
-  .meta({ id: "InvitationPreview" });
+export const invitationPreview = z.object({ email: z.string(), role, expiresAt: z.string() }).meta({ id: "InvitationPreview" });
 export type InvitationPreview = z.infer<typeof invitationPreview>;
 
 /** Profile changes: a new password needs the current one. Role and verification cannot be set here. */
@@ -79,7 +76,10 @@ export const profilePatch = z
       .optional()
       .describe("With a new password: also revoke every API token of the account (default true; false keeps them)"),
   })
-  .refine((p) => !p.newPassword || !!p.currentPassword, { path: ["currentPassword"], message: "Enter your current password to set a new one." })
+  .refine((p) => !p.newPassword || !!p.currentPassword, {
+    path: ["currentPassword"],
+    message: "Enter your current password to set a new one.",
+  })
   .meta({ id: "ProfilePatch" });
 export type ProfilePatch = z.infer<typeof profilePatch>;
 
@@ -91,9 +91,7 @@ export type FollowList = z.infer<typeof followList>;
 export const followState = z.object({ slug: z.string(), following: z.boolean() }).meta({ id: "FollowState" });
 
 /** Admin views: an admin may see members' e-mail addresses; nobody else may. */
-export const adminUser = me
-  .extend({ disabled: z.boolean(), createdAt: z.string() })
-  .meta({ id: "AdminUser" });
+export const adminUser = me.extend({ disabled: z.boolean(), createdAt: z.string() }).meta({ id: "AdminUser" });
 export type AdminUser = z.infer<typeof adminUser>;
 export const adminUserList = z.object({ items: z.array(adminUser) }).meta({ id: "AdminUserList" });
 

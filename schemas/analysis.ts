@@ -2,7 +2,7 @@ import { z } from "zod";
 import { trialFilterShape, trialFilters } from "./filters";
 import { yieldUnits, type YieldUnit } from "./public";
 
-export {  type YieldUnit };
+export { type YieldUnit };
 
 const effectMeasures = ["md", "lnrr"] as const;
 const tauMethods = ["REML", "DL", "PM", "FE"] as const;
@@ -22,9 +22,15 @@ export const defaultForestLimit = 200;
 /** The analysis options beside the shared trial filters; each also appears in share links of the Evidence screen. */
 export const metaOptionShape = {
   effect: z.enum(effectMeasures).default("md").describe("md: yield response (treated − check); lnrr: log response ratio ln(treated/check)"),
-  method: z.enum(tauMethods).default("REML").describe("τ² estimator: REML (default), DL (DerSimonian–Laird), PM (Paule–Mandel); FE is the fixed-effect model"),
+  method: z
+    .enum(tauMethods)
+    .default("REML")
+    .describe("τ² estimator: REML (default), DL (DerSimonian–Laird), PM (Paule–Mandel); FE is the fixed-effect model"),
   ci: z.enum(ciMethods).default("hksj").describe("hksj: Hartung–Knapp–Sidik–Jonkman, t(k − 1) (default); wald: normal"),
-  groupBy: z.enum(groupings).optional().describe("Subgroups: one estimate per level and the between-group test (do the level means differ?)"),
+  groupBy: z
+    .enum(groupings)
+    .optional()
+    .describe("Subgroups: one estimate per level and the between-group test (do the level means differ?)"),
   price: z.coerce.number().finite().positive().max(1000).optional().describe("Grain price, $/bu"),
   cost: money.optional().describe("Total cost of the practice, $/ac (product + application)"),
   productCost: money.optional().describe("Product cost, $/ac (instead of cost)"),
@@ -51,7 +57,8 @@ export const metaQuery = z
     // The filters' own cross-field rules (version needs dataset, year order) come from the one shared contract.
     const filters = Object.fromEntries(filterKeys.flatMap((k) => (q[k] === undefined ? [] : [[k, q[k]]])));
     const checked = trialFilters.safeParse(filters);
-    if (!checked.success) for (const issue of checked.error.issues) ctx.addIssue({ code: "custom", path: issue.path, message: issue.message });
+    if (!checked.success)
+      for (const issue of checked.error.issues) ctx.addIssue({ code: "custom", path: issue.path, message: issue.message });
     if (q.cost !== undefined && (q.productCost !== undefined || q.applicationCost !== undefined)) {
       ctx.addIssue({ code: "custom", path: ["cost"], message: "give either cost or productCost/applicationCost, not both" });
     }
@@ -84,12 +91,19 @@ const forestRow = z
     pooledWeightPercent: z
       .number()
       .nullable()
-      .describe("Weight of this row's site-year in the headline pooled estimate (every group row of one site-year has the same); null when it is not in it"),
-    treatmentLabels: z.array(z.string()).describe("Each treatment in words: product and grade, nutrient rates, placement (same order as `treatments`)"),
+      .describe(
+        "Weight of this row's site-year in the headline pooled estimate (every group row of one site-year has the same); null when it is not in it",
+      ),
+    treatmentLabels: z
+      .array(z.string())
+      .describe("Each treatment in words: product and grade, nutrient rates, placement (same order as `treatments`)"),
     soilTestAnalyte: z.string().nullable(),
     soilTestClass: z.string().nullable(),
     soilTestValue: z.number().nullable(),
-    soilTestReportedClass: z.string().nullable().describe("The class label as the trial reported it (soilTestClass is its place on the ordinal scale)"),
+    soilTestReportedClass: z
+      .string()
+      .nullable()
+      .describe("The class label as the trial reported it (soilTestClass is its place on the ordinal scale)"),
     soilTestScheme: z.string().nullable().describe("The interpretation scheme the label was read with"),
     checkMean: z.number().describe("Check yield in `units` (kg/ha when effect=lnrr and units=kg/ha)"),
   })
@@ -129,7 +143,9 @@ export const observedResponsesLimit = 2000;
 const observedResponses = z
   .array(z.number())
   .nullable()
-  .describe(`Every site-year's observed response, ascending, for the share above any break-even; null above ${observedResponsesLimit} site-years`);
+  .describe(
+    `Every site-year's observed response, ascending, for the share above any break-even; null above ${observedResponsesLimit} site-years`,
+  );
 
 const pooledEstimate = z
   .object({
@@ -172,9 +188,14 @@ const subgroupLevel = z
     pValue: z.number(),
     predictive: predictiveDistribution
       .nullable()
-      .describe("This level's predictive distribution with the common τ², as metafor's predict() on the ~ 0 + group model gives it: t(k − p) under HKSJ, normal under Wald; null for FE or too few site-years"),
+      .describe(
+        "This level's predictive distribution with the common τ², as metafor's predict() on the ~ 0 + group model gives it: t(k − p) under HKSJ, normal under Wald; null for FE or too few site-years",
+      ),
     probabilityAboveZero: z.number().nullable().describe("P(response > 0) on a new site-year of this level"),
-    probabilityAboveBreakEven: z.number().nullable().describe("P(response > break-even) on a new site-year of this level, when price and cost are given"),
+    probabilityAboveBreakEven: z
+      .number()
+      .nullable()
+      .describe("P(response > break-even) on a new site-year of this level, when price and cost are given"),
     shareAboveZero: z.number().nullable().describe("Share of this level's site-years with an observed response > 0"),
     shareAboveBreakEven: z.number().nullable(),
     observedResponses,
@@ -216,11 +237,15 @@ const decisionNumbers = z
     shareAboveBreakEven: z.number().nullable(),
     shareSignificant: z.number().nullable().describe("Share of site-years whose own analysis found the response significant (p < 0.05)"),
     significantCount: z.number().int(),
-    predictive: predictiveDistribution.nullable().describe("The pooled predictive distribution, t(k − 2) (Higgins, Thompson & Spiegelhalter 2009); null for k < 3 or no spread"),
+    predictive: predictiveDistribution
+      .nullable()
+      .describe("The pooled predictive distribution, t(k − 2) (Higgins, Thompson & Spiegelhalter 2009); null for k < 3 or no spread"),
     breakEvenUnitsPerBushel: z
       .number()
       .nullable()
-      .describe("Response units per bu/ac, to turn cost ÷ price into a break-even: 1 in bu/ac, the crop's kg/ha per bu/ac in kg/ha; null when no break-even applies (lnrr, or several crops in kg/ha)"),
+      .describe(
+        "Response units per bu/ac, to turn cost ÷ price into a break-even: 1 in bu/ac, the crop's kg/ha per bu/ac in kg/ha; null when no break-even applies (lnrr, or several crops in kg/ha)",
+      ),
     observedResponses,
     notes: z.array(z.string()),
   })
@@ -238,7 +263,9 @@ const analysisProvenance = z
     filters: z.record(z.string(), z.string()).describe("The normalised filters"),
     nutrientRule: z
       .object({
-        mode: z.enum(["tested", "supplied", "both", "none"]).describe("tested: nutrient= (tested nutrients); supplied: nutrientSupplied= (any amount); both; none: no nutrient filter"),
+        mode: z
+          .enum(["tested", "supplied", "both", "none"])
+          .describe("tested: nutrient= (tested nutrients); supplied: nutrientSupplied= (any amount); both; none: no nutrient filter"),
         text: z.string().describe("The rule in force, in words"),
       })
       .describe("Which nutrient rule selected the treatments"),
@@ -278,11 +305,17 @@ const caution = z
           "salt-sensitive crop (soybean); trials-not-your-field, seed-placement-injury, local-advice: standing cautions",
       ),
     text: z.string(),
-    source: z.string().describe("Where the rule comes from, or \"common practice, no source\""),
+    source: z.string().describe('Where the rule comes from, or "common practice, no source"'),
     standing: z.boolean().describe("true: a caution every result carries; false: a rule tested against the included treatments"),
     matches: z.boolean().describe("An included treatment trips this rule (listed first)"),
     treatments: z
-      .array(z.object({ dataset: z.string(), treatment: z.string().describe("Treatment code"), detail: z.string().describe("How it trips the rule") }))
+      .array(
+        z.object({
+          dataset: z.string(),
+          treatment: z.string().describe("Treatment code"),
+          detail: z.string().describe("How it trips the rule"),
+        }),
+      )
       .describe("The included treatments that trip the rule"),
   })
   .meta({ id: "Caution" });

@@ -13,7 +13,10 @@ export const semver = line().regex(/^\d+\.\d+\.\d+$/, "a semantic version such a
 
 /** The dataset's fields as the curator writes them, without defaults: a default inside `.partial()` would fill in (and so overwrite) every field a patch leaves out. */
 const datasetFields = z.object({
-  slug: line().min(3).max(80).regex(/^[a-z0-9]+(-[a-z0-9]+)*$/, "lower-case words joined by hyphens"),
+  slug: line()
+    .min(3)
+    .max(80)
+    .regex(/^[a-z0-9]+(-[a-z0-9]+)*$/, "lower-case words joined by hyphens"),
   title: line().min(3).max(200),
   crops: z.array(z.enum(crops)).min(1),
   region: line().min(2).max(200),
@@ -54,7 +57,17 @@ const versionBrief = z
 export type VersionBrief = z.infer<typeof versionBrief>;
 
 export const curationDataset = datasetSummary
-  .pick({ id: true, slug: true, title: true, crops: true, region: true, description: true, licence: true, keywords: true, contributors: true })
+  .pick({
+    id: true,
+    slug: true,
+    title: true,
+    crops: true,
+    region: true,
+    description: true,
+    licence: true,
+    keywords: true,
+    contributors: true,
+  })
   .extend({
     funding: z.string().nullable(),
     methods: z.string().nullable(),
@@ -83,9 +96,7 @@ export const versionCreate = z
 
 const resourceCounts = z.record(resourceName, z.number().int()).meta({ id: "ResourceCounts" });
 
-const uncomputedSiteYear = z
-  .object({ siteYear: z.string(), reason: z.string() })
-  .meta({ id: "UncomputedSiteYear" });
+const uncomputedSiteYear = z.object({ siteYear: z.string(), reason: z.string() }).meta({ id: "UncomputedSiteYear" });
 
 const uploadBrief = z
   .object({
@@ -114,10 +125,12 @@ const reportBrief = z
 
 const doiRegistration = z
   .object({
-    status: z.enum(doiStatuses).describe(
-      "none: nothing to register (no DOI service); pending: waiting for the service (first registration or a metadata update); " +
-        "registered; failed: the service refused the metadata",
-    ),
+    status: z
+      .enum(doiStatuses)
+      .describe(
+        "none: nothing to register (no DOI service); pending: waiting for the service (first registration or a metadata update); " +
+          "registered; failed: the service refused the metadata",
+      ),
     doi: z.string().nullable().describe("The DOI, once the service has registered it"),
     intendedDoi: z.string().describe("The DOI this version is registered under"),
     attempts: z.number().int(),
@@ -164,7 +177,9 @@ export const versionDetail = z
     latestPublishedSemver: z.string().nullable(),
     suggestedBump: z.enum(["major", "minor", "patch"]).nullable().describe("From the diff against the version it is based on"),
     suggestedSemver: semver.nullable(),
-    doiRegistration: doiRegistration.nullable().describe("For the dataset's editors and reviewers once the version is released; null otherwise"),
+    doiRegistration: doiRegistration
+      .nullable()
+      .describe("For the dataset's editors and reviewers once the version is released; null otherwise"),
   })
   .meta({ id: "CurationVersionDetail" });
 export type VersionDetail = z.infer<typeof versionDetail>;
@@ -225,7 +240,9 @@ const uploadUnits = z
     yieldMoisture: z
       .enum(["standard", "harvest"])
       .default("standard")
-      .describe("standard: yields already at the crop's standard moisture; harvest: at the harvest moisture of each plot (needs harvest_moisture_pct)"),
+      .describe(
+        "standard: yields already at the crop's standard moisture; harvest: at the harvest moisture of each plot (needs harvest_moisture_pct)",
+      ),
     soilTest: z.enum(["ppm", "lb/ac"]).default("ppm").describe("Soil-test P/K/S values; lb/ac is converted as ppm × 2 for a 6-inch sample"),
     gradeBasis: z.enum(["oxide", "element"]).default("oxide").describe("element: the grade gives P and K, converted to P2O5 and K2O"),
   })
@@ -240,7 +257,9 @@ export const uploadOptions = z
     mode: z
       .enum(["merge", "replace"])
       .default("merge")
-      .describe("merge: rows keyed as existing ones replace them (plots, summaries and soil tests per site-year), others are added; replace: the file becomes the whole resource"),
+      .describe(
+        "merge: rows keyed as existing ones replace them (plots, summaries and soil tests per site-year), others are added; replace: the file becomes the whole resource",
+      ),
   })
   .strict()
   .meta({ id: "UploadOptions" });
@@ -283,11 +302,26 @@ export const uploadRejection = z
   })
   .meta({ id: "UploadRejection" });
 
-export const submitBody = z.object({ changelog: paragraph().trim().min(3).max(20_000) }).strict().meta({ id: "SubmitVersion" });
-export const returnBody = z.object({ comment: paragraph().trim().min(3).max(5000) }).strict().meta({ id: "ReturnVersion" });
-export const approveBody = z.object({ comment: paragraph().max(5000).optional() }).strict().meta({ id: "ApproveVersion" });
-export const withdrawBody = z.object({ reason: paragraph().trim().min(3).max(5000) }).strict().meta({ id: "WithdrawVersion" });
-export const editorsBody = z.object({ email: z.email("an e-mail address") }).strict().meta({ id: "DatasetEditor" });
+export const submitBody = z
+  .object({ changelog: paragraph().trim().min(3).max(20_000) })
+  .strict()
+  .meta({ id: "SubmitVersion" });
+export const returnBody = z
+  .object({ comment: paragraph().trim().min(3).max(5000) })
+  .strict()
+  .meta({ id: "ReturnVersion" });
+export const approveBody = z
+  .object({ comment: paragraph().max(5000).optional() })
+  .strict()
+  .meta({ id: "ApproveVersion" });
+export const withdrawBody = z
+  .object({ reason: paragraph().trim().min(3).max(5000) })
+  .strict()
+  .meta({ id: "WithdrawVersion" });
+export const editorsBody = z
+  .object({ email: z.email("an e-mail address") })
+  .strict()
+  .meta({ id: "DatasetEditor" });
 export const editorParams = z.object({ slug: line(), userId: z.uuid() });
 
 const bump = z.enum(["major", "minor", "patch"]);

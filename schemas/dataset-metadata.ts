@@ -3,8 +3,7 @@ import { line } from "./safe-text";
 
 export type { TableSchemaDescriptor } from "./table-schema";
 
-const orcid = line()
-  .regex(/^\d{4}-\d{4}-\d{4}-\d{3}[\dX]$/, "an ORCID iD looks like 0000-0002-1825-0097");
+const orcid = line().regex(/^\d{4}-\d{4}-\d{4}-\d{3}[\dX]$/, "an ORCID iD looks like 0000-0002-1825-0097");
 
 export const contributor = z
   .object({

@@ -70,7 +70,8 @@ export const trialFilters = z
   .strict()
   .superRefine((f, ctx) => {
     if (f.version && !f.dataset) ctx.addIssue({ code: "custom", path: ["version"], message: "version needs dataset" });
-    if (f.yearFrom && f.yearTo && f.yearFrom > f.yearTo) ctx.addIssue({ code: "custom", path: ["yearTo"], message: "yearTo is before yearFrom" });
+    if (f.yearFrom && f.yearTo && f.yearFrom > f.yearTo)
+      ctx.addIssue({ code: "custom", path: ["yearTo"], message: "yearTo is before yearFrom" });
   })
   .meta({ id: "TrialFilters" });
 

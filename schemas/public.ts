@@ -21,7 +21,10 @@ const unitsParam = z
   .enum(yieldUnits)
   .default("bu/ac")
   .describe("Unit of yields, responses, SEs and LSDs: bu/ac (default; crop test weight) or kg/ha. Both at the crop's standard moisture.");
-const formatParam = z.enum(["json", "csv"]).optional().describe("csv streams every matching row (no paging); the same as `Accept: text/csv`");
+const formatParam = z
+  .enum(["json", "csv"])
+  .optional()
+  .describe("csv streams every matching row (no paging); the same as `Accept: text/csv`");
 const maxPageSize = 1000;
 const limitParam = z.coerce
   .number()
@@ -30,7 +33,11 @@ const limitParam = z.coerce
   .max(maxPageSize)
   .default(100)
   .describe(`Rows per JSON page, 1–${maxPageSize} (default 100)`);
-const pageTokenParam = line().min(1).max(400).optional().describe("Opaque token from the previous page's `nextPageToken` (or its Link rel=next)");
+const pageTokenParam = line()
+  .min(1)
+  .max(400)
+  .optional()
+  .describe("Opaque token from the previous page's `nextPageToken` (or its Link rel=next)");
 
 const pagingShape = { format: formatParam, limit: limitParam, pageToken: pageTokenParam };
 
@@ -42,7 +49,11 @@ function documentedList<T extends z.ZodType>(schema: T, values: readonly string[
   return schema.meta({
     type: "array",
     items: { type: "string", enum: [...values] },
-    param: { style: "form", explode: false, description: `${schema.description ?? ""} Comma-separated or repeated; one of: ${values.join(", ")}.`.trim() },
+    param: {
+      style: "form",
+      explode: false,
+      description: `${schema.description ?? ""} Comma-separated or repeated; one of: ${values.join(", ")}.`.trim(),
+    },
   }) as T;
 }
 
@@ -58,20 +69,29 @@ const { dataset: _dataset, version: _version, ...baseVersionFilterShape } = tria
 const versionFilterShape = { ...baseVersionFilterShape, ...documentedLists };
 
 function yearsInOrder(f: { yearFrom?: number; yearTo?: number }, ctx: z.RefinementCtx) {
-  if (f.yearFrom && f.yearTo && f.yearFrom > f.yearTo) ctx.addIssue({ code: "custom", path: ["yearTo"], message: "yearTo is before yearFrom" });
+  if (f.yearFrom && f.yearTo && f.yearFrom > f.yearTo)
+    ctx.addIssue({ code: "custom", path: ["yearTo"], message: "yearTo is before yearFrom" });
 }
 
 /** Cross-dataset rows with yields (observations, responses): every shared filter, units and paging. */
-export const crossDatasetYieldQuery = trialFilters.safeExtend({ ...documentedLists, units: unitsParam, ...pagingShape }).meta({ id: "CrossDatasetYieldQuery" });
+export const crossDatasetYieldQuery = trialFilters
+  .safeExtend({ ...documentedLists, units: unitsParam, ...pagingShape })
+  .meta({ id: "CrossDatasetYieldQuery" });
 /** Cross-dataset site-years: every shared filter and paging. */
-export const crossDatasetSiteYearQuery = trialFilters.safeExtend({ ...documentedLists, ...pagingShape }).meta({ id: "CrossDatasetSiteYearQuery" });
+export const crossDatasetSiteYearQuery = trialFilters
+  .safeExtend({ ...documentedLists, ...pagingShape })
+  .meta({ id: "CrossDatasetSiteYearQuery" });
 /** Rows of one version with yields: the shared filters except dataset and version (the path names those). */
 export const versionYieldQuery = z
   .object({ ...versionFilterShape, units: unitsParam, ...pagingShape })
   .strict()
   .superRefine(yearsInOrder)
   .meta({ id: "VersionYieldQuery" });
-export const versionSiteYearQuery = z.object({ ...versionFilterShape, ...pagingShape }).strict().superRefine(yearsInOrder).meta({ id: "VersionSiteYearQuery" });
+export const versionSiteYearQuery = z
+  .object({ ...versionFilterShape, ...pagingShape })
+  .strict()
+  .superRefine(yearsInOrder)
+  .meta({ id: "VersionSiteYearQuery" });
 /** Treatments are filtered by what they supply, how it is placed and how much. */
 export const versionTreatmentQuery = z
   .object({
@@ -92,7 +112,6 @@ export const versionTreatmentQuery = z
 export const versionSiteQuery = z.object(pagingShape).strict().meta({ id: "VersionSiteQuery" });
 /** Metadata endpoints take no parameters; anything sent is a mistake worth naming. */
 export const noQuery = z.object({}).strict();
-
 
 // ---------------------------------------------------------------- dataset and version metadata
 
@@ -115,7 +134,13 @@ const versionSummary = z
 export type VersionSummary = z.infer<typeof versionSummary>;
 
 const versionCounts = z
-  .object({ sites: z.number().int(), siteYears: z.number().int(), treatments: z.number().int(), plots: z.number().int(), responses: z.number().int() })
+  .object({
+    sites: z.number().int(),
+    siteYears: z.number().int(),
+    treatments: z.number().int(),
+    plots: z.number().int(),
+    responses: z.number().int(),
+  })
   .meta({ id: "VersionCounts" });
 
 export const versionDetail = versionSummary
@@ -124,9 +149,7 @@ export const versionDetail = versionSummary
     counts: versionCounts.nullable().describe("Row counts; null for a withdrawn version"),
     yearFrom: z.number().int().nullable(),
     yearTo: z.number().int().nullable(),
-    links: z
-      .record(z.string(), z.string())
-      .describe("URLs of the version's schema and rows (published versions), keyed by name"),
+    links: z.record(z.string(), z.string()).describe("URLs of the version's schema and rows (published versions), keyed by name"),
   })
   .meta({ id: "VersionDetail" });
 export type VersionDetail = z.infer<typeof versionDetail>;
@@ -139,7 +162,9 @@ export const datasetDetail = datasetSummary
     methods: z.string().nullable(),
     conceptDoi: z.string().nullable(),
     contributors: z.array(contributor),
-    versions: z.array(versionSummary).describe("Published and withdrawn versions, newest first; withdrawn ones are tombstones with their reason"),
+    versions: z
+      .array(versionSummary)
+      .describe("Published and withdrawn versions, newest first; withdrawn ones are tombstones with their reason"),
   })
   .meta({ id: "DatasetDetail" });
 export type DatasetDetail = z.infer<typeof datasetDetail>;
@@ -228,7 +253,9 @@ export const treatmentRow = z
     nutrients: z.array(z.string()).describe("Nutrients supplied in any amount"),
     testedNutrients: z
       .array(z.string())
-      .describe("Nutrients the treatment tests against its check: as the curator stated them, else those added at ≥ half its largest nutrient rate (carriers such as the N in MAP left out)"),
+      .describe(
+        "Nutrients the treatment tests against its check: as the curator stated them, else those added at ≥ half its largest nutrient rate (carriers such as the N in MAP left out)",
+      ),
     testedNutrientsStated: z.boolean().describe("true: the curator stated testedNutrients; false: derived from the products"),
     placements: z.array(z.string()),
     applications: z.array(applicationRow).describe("In CSV: one text cell, applications separated by ' | '"),
@@ -272,14 +299,21 @@ export const responseRow = z
     nutrients: z.array(z.string()).describe("Nutrients supplied in any amount (nutrientSupplied= filters on these)"),
     testedNutrients: z
       .array(z.string())
-      .describe("Nutrients the treatment tests against its check: as the curator stated them, else those added at ≥ half its largest nutrient rate (carriers such as the N in MAP left out)"),
+      .describe(
+        "Nutrients the treatment tests against its check: as the curator stated them, else those added at ≥ half its largest nutrient rate (carriers such as the N in MAP left out)",
+      ),
     testedNutrientsStated: z.boolean().describe("true: the curator stated testedNutrients; false: derived from the products"),
     placements: z.array(z.string()),
     nLbAc: z.number(),
     p2o5LbAc: z.number(),
     k2oLbAc: z.number(),
     sLbAc: z.number(),
-    soilTestAnalyte: z.string().nullable().describe("The soil test that counts for this response (soilTestClass= filters on it): of its tested nutrients, P before K before S, the first with a class"),
+    soilTestAnalyte: z
+      .string()
+      .nullable()
+      .describe(
+        "The soil test that counts for this response (soilTestClass= filters on it): of its tested nutrients, P before K before S, the first with a class",
+      ),
     soilTestClass: z.string().nullable(),
     soilPClass: z.string().nullable().describe("On the ordinal scale very_low … very_high"),
     soilPValue: z.number().nullable(),
@@ -329,9 +363,7 @@ export type TreatmentRow = z.infer<typeof treatmentRow>;
 export type ObservationRow = z.infer<typeof observationRow>;
 export type ResponseRow = z.infer<typeof responseRow>;
 
-const versionRef = z
-  .object({ dataset: z.string(), version: z.string(), licence: z.string() })
-  .meta({ id: "VersionRef" });
+const versionRef = z.object({ dataset: z.string(), version: z.string(), licence: z.string() }).meta({ id: "VersionRef" });
 
 /** One page of rows: the versions they come from (with their licences) and the token of the next page. */
 function page<T extends z.ZodType>(row: T, id: string, withUnits: boolean) {

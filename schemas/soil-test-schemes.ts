@@ -32,25 +32,38 @@ export const soilTestScheme = z
       .describe("In order, lowest first"),
     thresholds: z
       .union([z.literal("as reported"), z.array(z.number().finite())])
-      .describe("Upper limits (exclusive) of every class but the last, ascending, in `unit`; or \"as reported\" when the classes come without limits"),
+      .describe(
+        'Upper limits (exclusive) of every class but the last, ascending, in `unit`; or "as reported" when the classes come without limits',
+      ),
     source: z.string().min(1).max(500).describe("Where the scheme comes from"),
-    sourceStatus: z.enum(sourceStatuses).describe("as published, from memory (not checked against the source), common practice, no source, or invented for the demo"),
+    sourceStatus: z
+      .enum(sourceStatuses)
+      .describe("as published, from memory (not checked against the source), common practice, no source, or invented for the demo"),
   })
   .superRefine((s, ctx) => {
     const labels = s.classes.map((c) => c.label.toLowerCase());
     labels.forEach((l, i) => {
-      if (labels.indexOf(l) !== i) ctx.addIssue({ code: "custom", path: ["classes", i, "label"], message: `label "${s.classes[i]!.label}" appears twice` });
+      if (labels.indexOf(l) !== i)
+        ctx.addIssue({ code: "custom", path: ["classes", i, "label"], message: `label "${s.classes[i]!.label}" appears twice` });
     });
     s.classes.forEach((c, i) => {
       const previous = s.classes[i - 1];
       if (previous && soilTestClasses.indexOf(c.scale) < soilTestClasses.indexOf(previous.scale)) {
-        ctx.addIssue({ code: "custom", path: ["classes", i, "scale"], message: `classes are lowest first, so ${c.label} cannot map below ${previous.label}` });
+        ctx.addIssue({
+          code: "custom",
+          path: ["classes", i, "scale"],
+          message: `classes are lowest first, so ${c.label} cannot map below ${previous.label}`,
+        });
       }
     });
     const thresholds = s.thresholds;
     if (Array.isArray(thresholds)) {
       if (thresholds.length !== s.classes.length - 1) {
-        ctx.addIssue({ code: "custom", path: ["thresholds"], message: `${s.classes.length} classes need ${s.classes.length - 1} thresholds, not ${thresholds.length}` });
+        ctx.addIssue({
+          code: "custom",
+          path: ["thresholds"],
+          message: `${s.classes.length} classes need ${s.classes.length - 1} thresholds, not ${thresholds.length}`,
+        });
       }
       thresholds.forEach((t, i) => {
         if (i > 0 && t <= thresholds[i - 1]!) ctx.addIssue({ code: "custom", path: ["thresholds", i], message: "thresholds must ascend" });

@@ -11,7 +11,10 @@ export const tableSchemaFieldType = z.enum(["string", "number", "integer", "bool
 
 export const tableSchemaField = z
   .object({
-    name: line().min(1).max(64).regex(/^[a-z][a-zA-Z0-9_]*$/, "lower camelCase or snake_case, starting with a letter"),
+    name: line()
+      .min(1)
+      .max(64)
+      .regex(/^[a-z][a-zA-Z0-9_]*$/, "lower camelCase or snake_case, starting with a letter"),
     title: line().max(200).optional(),
     description: paragraph().max(2000).optional(),
     type: tableSchemaFieldType,

@@ -12,7 +12,13 @@ export const createTokenBody = z
   .object({
     name: line().trim().min(1, "give the token a name").max(100).describe("What the token is for, e.g. “nightly pull”"),
     scope: tokenScope.default("read").describe("read for data pulls; write only for curators, reviewers and admins"),
-    expiresInDays: z.coerce.number().int("a whole number of days").min(1, "at least 1 day").max(maxTokenDays, `at most ${maxTokenDays} days`).default(90).describe(`Lifetime in days, 1–${maxTokenDays}`),
+    expiresInDays: z.coerce
+      .number()
+      .int("a whole number of days")
+      .min(1, "at least 1 day")
+      .max(maxTokenDays, `at most ${maxTokenDays} days`)
+      .default(90)
+      .describe(`Lifetime in days, 1–${maxTokenDays}`),
   })
   .strict()
   .meta({ id: "CreateToken" });

@@ -25,7 +25,11 @@ const plotSide = 76;
 const gap = 16;
 const margin = (size - 2 * plotSide - gap) / 2;
 const plots = [0, 1].flatMap((row) =>
-  [0, 1].map((col) => ({ x: margin + col * (plotSide + gap), y: margin + row * (plotSide + gap), colour: row === 0 && col === 1 ? responded : plot })),
+  [0, 1].map((col) => ({
+    x: margin + col * (plotSide + gap),
+    y: margin + row * (plotSide + gap),
+    colour: row === 0 && col === 1 ? responded : plot,
+  })),
 );
 
 /** RGBA of one pixel, from 4 × 4 samples so the rounded edges are smooth. */
@@ -69,7 +73,12 @@ export function drawIcon(): Buffer {
   header.writeUInt32BE(size, 4);
   header.set([8, 6, 0, 0, 0], 8); // bit depth 8, colour type RGBA, deflate, no filter, no interlace
   const signature = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
-  return Buffer.concat([signature, chunk("IHDR", header), chunk("IDAT", deflateSync(Buffer.concat(rows), { level: 9 })), chunk("IEND", Buffer.alloc(0))]);
+  return Buffer.concat([
+    signature,
+    chunk("IHDR", header),
+    chunk("IDAT", deflateSync(Buffer.concat(rows), { level: 9 })),
+    chunk("IEND", Buffer.alloc(0)),
+  ]);
 }
 
 if (require.main === module) {

@@ -14,7 +14,9 @@ process.env.EXPO_ROUTER_APP_ROOT = path.join(root, "app");
 
 // @expo/router-server is a dependency of Expo's CLI, not of ours: resolve it from there.
 const fromCli = createRequire(createRequire(require.resolve("expo/package.json")).resolve("@expo/cli/package.json"));
-const generator = fromCli("@expo/router-server/build/typed-routes") as { regenerateDeclarations: (outputDir: string, options?: object) => void };
+const generator = fromCli("@expo/router-server/build/typed-routes") as {
+  regenerateDeclarations: (outputDir: string, options?: object) => void;
+};
 
 mkdirSync(out, { recursive: true });
 generator.regenerateDeclarations(out, { partialTypedGroups: false });

@@ -24,7 +24,10 @@ const env = z.object({
    */
   PLOTBANK_TRUST_PROXY: z
     .string()
-    .regex(/^(\d+|[\w.:/]+(\s*,\s*[\w.:/]+)*)$/, "a hop count, or a comma-separated list of addresses, CIDR ranges or loopback/linklocal/uniquelocal")
+    .regex(
+      /^(\d+|[\w.:/]+(\s*,\s*[\w.:/]+)*)$/,
+      "a hop count, or a comma-separated list of addresses, CIDR ranges or loopback/linklocal/uniquelocal",
+    )
     .optional(),
   SMTP_URL: z.string().optional(),
   /** Production without SMTP: keep every message in the outbox table only (admins read it on the Outbox screen). */
@@ -110,5 +113,8 @@ function appVersion(): string {
 function parseTrustProxy(value: string | undefined): AppConfig["trustProxy"] {
   if (!value) return false;
   if (/^\d+$/.test(value)) return Number(value) || false;
-  return value.split(",").map((part) => part.trim()).filter(Boolean);
+  return value
+    .split(",")
+    .map((part) => part.trim())
+    .filter(Boolean);
 }

@@ -10,7 +10,11 @@ function isRead(req: Request): boolean {
   return req.method === "OPTIONS" && typeof asked === "string" && readMethods.has(asked.toUpperCase());
 }
 
-const openToAnyOrigin = cors({ origin: "*", methods: ["GET", "HEAD"], exposedHeaders: ["ETag", "Link", "Retry-After", "RateLimit", "RateLimit-Policy"] });
+const openToAnyOrigin = cors({
+  origin: "*",
+  methods: ["GET", "HEAD"],
+  exposedHeaders: ["ETag", "Link", "Retry-After", "RateLimit", "RateLimit-Policy"],
+});
 
 /**
  * The public read API is open to any origin; writes are same-origin only. Only reads (and their preflights) get

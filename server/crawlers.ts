@@ -17,7 +17,15 @@ export function crawlerRoutes({ db, config }: AppContext): Router {
 
   router.get("/robots.txt", (_req, res) => {
     const signedInOnly = navItems.filter((item) => item.roles).map((item) => item.href);
-    const lines = ["User-agent: *", "Allow: /", ...signedInOnly.map((href) => `Disallow: ${href}`), "Disallow: /api/", "", `Sitemap: ${config.publicUrl}/sitemap.xml`, ""];
+    const lines = [
+      "User-agent: *",
+      "Allow: /",
+      ...signedInOnly.map((href) => `Disallow: ${href}`),
+      "Disallow: /api/",
+      "",
+      `Sitemap: ${config.publicUrl}/sitemap.xml`,
+      "",
+    ];
     res.set("Cache-Control", "public, max-age=3600").type("text/plain").send(lines.join("\n"));
   });
 

@@ -30,8 +30,7 @@ export const badRequest = (detail: string, errors?: ProblemLocation[]) =>
 export const unauthorized = (detail = "Sign in, or send a valid API token.") => new HttpProblem(401, "Unauthorized", detail);
 export const forbidden = (detail = "Your role does not allow this.") => new HttpProblem(403, "Forbidden", detail);
 export const notFound = (detail = "Nothing is here.") => new HttpProblem(404, "Not found", detail);
-export const conflict = (detail: string, errors?: ProblemLocation[]) =>
-  new HttpProblem(409, "Conflict", detail, errors ? { errors } : {});
+export const conflict = (detail: string, errors?: ProblemLocation[]) => new HttpProblem(409, "Conflict", detail, errors ? { errors } : {});
 
 /** Turn zod issues into located problems; `where` prefixes the field path (query, body, …). */
 export function zodProblems(error: z.ZodError, where: string): ProblemLocation[] {
@@ -40,7 +39,10 @@ export function zodProblems(error: z.ZodError, where: string): ProblemLocation[]
     const at = path ? `${where}.${path}` : where;
     // An unknown key is named itself, so a typo in `?placment=` points at `query.placment`, not at the whole query.
     if (issue.code === "unrecognized_keys") {
-      return issue.keys.map((key) => ({ field: `${at}.${key}`, message: `"${key}" is not a known ${where === "query" ? "parameter" : "field"} here` }));
+      return issue.keys.map((key) => ({
+        field: `${at}.${key}`,
+        message: `"${key}" is not a known ${where === "query" ? "parameter" : "field"} here`,
+      }));
     }
     return [{ field: at, message: issue.message }];
   });
@@ -117,7 +119,10 @@ export const problemMiddleware: ErrorRequestHandler = (err: unknown, req, res, n
   }
   // Text PostgreSQL cannot hold (U+0000) that got past the contract: still the client's input, never a 500.
   if (e.code === "22021" || e.code === "22P05" || (err as { cause?: HttpLikeError })?.cause?.code === "22021") {
-    return sendProblem(res, 400, { detail: "The request holds a character the database cannot store (U+0000).", instance: req.originalUrl });
+    return sendProblem(res, 400, {
+      detail: "The request holds a character the database cannot store (U+0000).",
+      instance: req.originalUrl,
+    });
   }
   // A write that hit the database's own immutability guard.
   if (e.hint === "plotbank:immutable") {

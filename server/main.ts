@@ -69,7 +69,10 @@ async function main() {
     const loading = seedDemo(ctx);
     seeding = loading;
     const demo = await loading;
-    if (demo.seeded) console.log(`Loaded the Tallgrass Basin demo: ${demo.datasets} datasets, ${demo.versions} versions (accounts *@plotbank.test, password tallgrass-demo-2026).`);
+    if (demo.seeded)
+      console.log(
+        `Loaded the Tallgrass Basin demo: ${demo.datasets} datasets, ${demo.versions} versions (accounts *@plotbank.test, password tallgrass-demo-2026).`,
+      );
   }
   if (stopping) return;
   ready = true;
@@ -80,7 +83,14 @@ async function main() {
 
 function answerStarting(res: http.ServerResponse) {
   res.writeHead(503, { "Content-Type": "application/problem+json", "Retry-After": "5", "Cache-Control": "no-store" });
-  res.end(JSON.stringify({ type: "about:blank", title: "Service unavailable", status: 503, detail: "Plotbank is starting; try again in a few seconds." }));
+  res.end(
+    JSON.stringify({
+      type: "about:blank",
+      title: "Service unavailable",
+      status: 503,
+      detail: "Plotbank is starting; try again in a few seconds.",
+    }),
+  );
 }
 
 main().catch((error) => {

@@ -17,9 +17,14 @@ export function parseQuery<T extends z.ZodType>(schema: T, req: Request): z.infe
 export function parseBody<T extends z.ZodType>(schema: T, req: Request): z.infer<T> {
   // express.json() leaves a body of any other type unread: answering as if it were empty would silently drop it.
   if (req.body === undefined && hasBody(req)) {
-    throw new HttpProblem(415, "Unsupported media type", `Send the request body as application/json (it came as ${req.headers["content-type"] ?? "no type"}).`, {
-      errors: [{ field: "body", message: "not application/json" }],
-    });
+    throw new HttpProblem(
+      415,
+      "Unsupported media type",
+      `Send the request body as application/json (it came as ${req.headers["content-type"] ?? "no type"}).`,
+      {
+        errors: [{ field: "body", message: "not application/json" }],
+      },
+    );
   }
   const result = schema.safeParse(req.body ?? {});
   if (!result.success) {

@@ -17,7 +17,11 @@ function inlineScriptHashes(html: string): string[] {
     if (/\bsrc\s*=/i.test(attributes)) continue;
     const type = /\btype\s*=\s*["']?([^"'\s>]+)/i.exec(attributes)?.[1]?.toLowerCase();
     if (type && type !== "text/javascript" && type !== "module" && type !== "application/javascript") continue;
-    hashes.push(`'sha256-${createHash("sha256").update(m[2] ?? "", "utf8").digest("base64")}'`);
+    hashes.push(
+      `'sha256-${createHash("sha256")
+        .update(m[2] ?? "", "utf8")
+        .digest("base64")}'`,
+    );
   }
   return hashes;
 }
@@ -67,7 +71,10 @@ export function mountWebApp(
       const page = transformIndex ? await transformIndex(indexHtml, req.originalUrl) : indexHtml;
       const { html, found } = typeof page === "string" ? { html: page, found: true } : page;
       res.setHeader("Cache-Control", "no-cache");
-      res.status(found && isScreen(req.path) ? 200 : 404).type("html").send(html);
+      res
+        .status(found && isScreen(req.path) ? 200 : 404)
+        .type("html")
+        .send(html);
     } catch (error) {
       next(error);
     }

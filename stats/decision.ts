@@ -86,7 +86,12 @@ export function shareSignificant(
 ): { share: number | null; significant: number; tested: number; untested: number } {
   const tested = pValues.filter((value): value is number => value !== null && Number.isFinite(value));
   const significant = tested.filter((value) => value < alpha).length;
-  return { share: tested.length > 0 ? significant / tested.length : null, significant, tested: tested.length, untested: pValues.length - tested.length };
+  return {
+    share: tested.length > 0 ? significant / tested.length : null,
+    significant,
+    tested: tested.length,
+    untested: pValues.length - tested.length,
+  };
 }
 
 /**
@@ -124,16 +129,27 @@ export interface GrowerPrices {
 export function pricedDecision(
   prices: GrowerPrices,
   analysis: { unitsPerBushel: number | null; predictive: PredictiveDistribution | null; observedResponses: readonly number[] | null },
-): { costPerAcre: number | null; pricePerBushel: number | null; breakEven: number | null; probabilityAboveBreakEven: number | null; shareAboveBreakEven: number | null } {
+): {
+  costPerAcre: number | null;
+  pricePerBushel: number | null;
+  breakEven: number | null;
+  probabilityAboveBreakEven: number | null;
+  shareAboveBreakEven: number | null;
+} {
   const price = prices.price !== undefined && prices.price > 0 ? prices.price : null;
   const anyCost = prices.productCost !== undefined || prices.applicationCost !== undefined;
   const costPerAcre = anyCost ? (prices.productCost ?? 0) + (prices.applicationCost ?? 0) : null;
-  const breakEven = price !== null && costPerAcre !== null && analysis.unitsPerBushel !== null ? breakEvenResponse(costPerAcre, price) * analysis.unitsPerBushel : null;
+  const breakEven =
+    price !== null && costPerAcre !== null && analysis.unitsPerBushel !== null
+      ? breakEvenResponse(costPerAcre, price) * analysis.unitsPerBushel
+      : null;
   return {
     costPerAcre,
     pricePerBushel: price,
     breakEven,
-    probabilityAboveBreakEven: breakEven !== null && analysis.predictive ? predictiveProbabilityAbove(analysis.predictive, breakEven) : null,
-    shareAboveBreakEven: breakEven !== null && analysis.observedResponses?.length ? shareAbove(analysis.observedResponses, breakEven) : null,
+    probabilityAboveBreakEven:
+      breakEven !== null && analysis.predictive ? predictiveProbabilityAbove(analysis.predictive, breakEven) : null,
+    shareAboveBreakEven:
+      breakEven !== null && analysis.observedResponses?.length ? shareAbove(analysis.observedResponses, breakEven) : null,
   };
 }

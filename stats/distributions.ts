@@ -57,9 +57,7 @@ function refineQuantile(
  * @example tDensity(0, 1) // 0.3183098861837907 (= 1/π)
  */
 export function tDensity(x: number, df: number): number {
-  return Math.exp(
-    logGamma((df + 1) / 2) - logGamma(df / 2) - 0.5 * Math.log(df * Math.PI) - ((df + 1) / 2) * Math.log1p((x * x) / df),
-  );
+  return Math.exp(logGamma((df + 1) / 2) - logGamma(df / 2) - 0.5 * Math.log(df * Math.PI) - ((df + 1) / 2) * Math.log1p((x * x) / df));
 }
 
 /**
@@ -88,7 +86,14 @@ export function tQuantile(p: number, df: number): number {
   if (p === 0.5) return 0;
   if (p < 0.5) return -tQuantile(1 - p, df);
   const start = jstat.studentt.inv(p, df);
-  return refineQuantile(start, 1 - p, (x) => tUpperTail(x, df), (x) => tDensity(x, df), -1, 0);
+  return refineQuantile(
+    start,
+    1 - p,
+    (x) => tUpperTail(x, df),
+    (x) => tDensity(x, df),
+    -1,
+    0,
+  );
 }
 
 /** F density f(x; d1, d2). @example fDensity(1, 2, 2) // 0.25 */

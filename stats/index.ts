@@ -1,6 +1,13 @@
 /** Public API of the Plotbank statistics engine (pure functions; see stats/README.md). */
 export * from "@/stats/distributions";
-export { fitLinearModel, factorLevels, type AnovaTableRow, type FactorColumn, type LinearModelFit, type LinearModelInput } from "@/stats/linear-model";
+export {
+  fitLinearModel,
+  factorLevels,
+  type AnovaTableRow,
+  type FactorColumn,
+  type LinearModelFit,
+  type LinearModelInput,
+} from "@/stats/linear-model";
 export * from "@/stats/mean-separation";
 export * from "@/stats/rcbd-anova";
 export * from "@/stats/one-way-anova";

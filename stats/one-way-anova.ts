@@ -59,7 +59,11 @@ export function oneWayAnova(groups: readonly { label: string; values: readonly n
   });
   const all = groups.flatMap((group) => group.values);
   const grandMean = origin + grandMeanShifted;
-  const summaries = groups.map((group, index) => ({ label: group.label, n: group.values.length, mean: origin + (shiftedMeans[index] ?? 0) }));
+  const summaries = groups.map((group, index) => ({
+    label: group.label,
+    n: group.values.length,
+    mean: origin + (shiftedMeans[index] ?? 0),
+  }));
   const betweenDf = groups.length - 1;
   const withinDf = all.length - groups.length;
   if (withinDf <= 0) throw new RangeError("oneWayAnova: no within-group degrees of freedom");

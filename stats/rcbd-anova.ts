@@ -117,7 +117,9 @@ export function rcbdAnova(plots: readonly RcbdPlot[]): RcbdAnovaResult {
   let totalSs = 0;
   for (const plot of plots) totalSs += (plot.y - grandMean) ** 2;
 
-  const fitted = balanced ? balancedFit(plots, blocks, treatments, firstCount, grandMean) : leastSquaresFit(plots, blockValues, treatmentValues, blocks, treatments, notes);
+  const fitted = balanced
+    ? balancedFit(plots, blocks, treatments, firstCount, grandMean)
+    : leastSquaresFit(plots, blockValues, treatmentValues, blocks, treatments, notes);
   const { blockRow, treatmentRow, residual, covariance, adjusted } = fitted;
   const mse = residual.meanSquare;
   if (mse === null) notes.push("No error degrees of freedom: no F test, LSD or standard errors.");
@@ -148,8 +150,7 @@ export function rcbdAnova(plots: readonly RcbdPlot[]): RcbdAnovaResult {
     total: { df: n - 1, sumOfSquares: totalSs },
     mse,
     cvPercent: mse === null ? null : coefficientOfVariationPercent(mse, grandMean),
-    meanSeparation:
-      mse !== null && replicates !== null ? meanSeparation({ mse, dfError: residual.df, replicates, grandMean }) : null,
+    meanSeparation: mse !== null && replicates !== null ? meanSeparation({ mse, dfError: residual.df, replicates, grandMean }) : null,
     replicates,
     treatmentMeans,
     adjustedMeanCovariance: covariance,
@@ -206,7 +207,10 @@ function balancedFit(plots: readonly RcbdPlot[], blocks: string[], treatments: s
   plots.forEach((plot, i) => {
     errorSs += (plot.y - blockMean[bi[i]!]! - treatmentMean[ti[i]!]! + grandMean) ** 2;
   });
-  errorSs = exactFitResidualSs(errorSs, plots.map((plot) => plot.y));
+  errorSs = exactFitResidualSs(
+    errorSs,
+    plots.map((plot) => plot.y),
+  );
   const errorDf = plots.length - 1 - (b - 1) - (t - 1);
   const mse = errorDf > 0 ? errorSs / errorDf : null;
   const variance = mse === null ? null : mse / (b * perCell);
@@ -220,7 +224,14 @@ function balancedFit(plots: readonly RcbdPlot[], blocks: string[], treatments: s
 }
 
 /** y ~ block + treatment by least squares (Householder QR), for layouts with missing or extra plots. */
-function leastSquaresFit(plots: readonly RcbdPlot[], blockValues: string[], treatmentValues: string[], blocks: string[], treatments: string[], notes: string[]): ModelFit {
+function leastSquaresFit(
+  plots: readonly RcbdPlot[],
+  blockValues: string[],
+  treatmentValues: string[],
+  blocks: string[],
+  treatments: string[],
+  notes: string[],
+): ModelFit {
   const fit = fitLinearModel({
     response: plots.map((plot) => plot.y),
     factors: { block: { values: blockValues, levels: blocks }, treatment: { values: treatmentValues, levels: treatments } },
@@ -248,7 +259,9 @@ function leastSquaresFit(plots: readonly RcbdPlot[], blockValues: string[], trea
     }
     return row;
   });
-  const adjusted = contrastRows.map((row) => (row ? row.reduce((acc, value, index) => acc + value * (fit.coefficients[index] ?? 0), 0) : Number.NaN));
+  const adjusted = contrastRows.map((row) =>
+    row ? row.reduce((acc, value, index) => acc + value * (fit.coefficients[index] ?? 0), 0) : Number.NaN,
+  );
   let covariance: number[][] | null = null;
   if (mse !== null && contrastRows.every((row) => row !== null)) {
     const rowsL = contrastRows as number[][];

@@ -142,7 +142,10 @@ export const fluidFertilizerDensityPoundsPerGallon = {
  * Nutrient rates (lb/ac) from a product rate and grade: product lb/ac × grade %.
  * @example nutrientRates(100, parseFertilizerGrade("11-52-0")) // { nitrogen: 11, phosphate: 52, potash: 0, sulfur: 0 }
  */
-export function nutrientRates(productPoundsPerAcre: number, grade: FertilizerGrade): { nitrogen: number; phosphate: number; potash: number; sulfur: number } {
+export function nutrientRates(
+  productPoundsPerAcre: number,
+  grade: FertilizerGrade,
+): { nitrogen: number; phosphate: number; potash: number; sulfur: number } {
   if (!(productPoundsPerAcre >= 0)) throw new RangeError(`product rate must be >= 0 lb/ac, got ${productPoundsPerAcre}`);
   return {
     nitrogen: (productPoundsPerAcre * grade.nitrogenPercent) / 100,

@@ -39,7 +39,9 @@ async function main() {
       controller.enqueue(chunk);
     },
   });
-  const sink = out ? createWriteStream(out) : new Writable({ write: (chunk, _enc, done) => (process.stdout.write(chunk) ? done() : process.stdout.once("drain", done)) });
+  const sink = out
+    ? createWriteStream(out)
+    : new Writable({ write: (chunk, _enc, done) => (process.stdout.write(chunk) ? done() : process.stdout.once("drain", done)) });
   await pipeline(Readable.fromWeb(res.body.pipeThrough(counter) as never), sink);
   // The first record is the header.
   process.stderr.write(`rows: ${Math.max(0, lines - 1)}\n`);

@@ -8,8 +8,18 @@ import { useSession } from "@/hooks/use-session";
  */
 export function AdminGate({ title, subtitle, children }: { title: string; subtitle?: string; children: React.ReactNode }) {
   const session = useSession();
-  if (session.isPending) return <Screen title={title}><LoadingState /></Screen>;
-  if (session.isError) return <Screen title={title}><ErrorState error={session.error} onRetry={() => session.refetch()} /></Screen>;
+  if (session.isPending)
+    return (
+      <Screen title={title}>
+        <LoadingState />
+      </Screen>
+    );
+  if (session.isError)
+    return (
+      <Screen title={title}>
+        <ErrorState error={session.error} onRetry={() => session.refetch()} />
+      </Screen>
+    );
   if (!session.data) return <Redirect href={"/sign-in?next=/admin"} />;
   if (session.data.role !== "admin") {
     return (
@@ -18,5 +28,9 @@ export function AdminGate({ title, subtitle, children }: { title: string; subtit
       </Screen>
     );
   }
-  return <Screen title={title} subtitle={subtitle}>{children}</Screen>;
+  return (
+    <Screen title={title} subtitle={subtitle}>
+      {children}
+    </Screen>
+  );
 }

@@ -6,7 +6,17 @@ import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, space } from "@/constants/theme";
 
 /** The narrow single-card page the sign-in family of screens share; a form stays readable on any width. */
-export function AuthPanel({ title, subtitle, children, footer }: { title: string; subtitle?: string; children: React.ReactNode; footer?: React.ReactNode }) {
+export function AuthPanel({
+  title,
+  subtitle,
+  children,
+  footer,
+}: {
+  title: string;
+  subtitle?: string;
+  children: React.ReactNode;
+  footer?: React.ReactNode;
+}) {
   return (
     <Screen title={title} subtitle={subtitle} maxWidth={480}>
       <Card style={styles.card}>{children}</Card>

@@ -25,7 +25,9 @@ export function FollowedDatasets() {
           <View key={d.slug} style={styles.row}>
             <Link href={`/datasets/${d.slug}`} asChild>
               <Pressable role="link" style={styles.title}>
-                <Text variant="subheading" style={{ color: colors.fieldDark }}>{d.title}</Text>
+                <Text variant="subheading" style={{ color: colors.fieldDark }}>
+                  {d.title}
+                </Text>
                 <Text variant="caption">{d.latestVersion ? `Latest version ${d.latestVersion}` : "No published version"}</Text>
               </Pressable>
             </Link>

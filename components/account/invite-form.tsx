@@ -29,7 +29,15 @@ export function InviteForm() {
       <Text variant="caption">They get an e-mail with a link, valid for 7 days, to choose a name and password.</Text>
       {invite.isSuccess ? <Notice tone="success">{`Invitation sent to ${invite.data.email}.`}</Notice> : null}
       {form.formError ? <Notice tone="error">{form.formError}</Notice> : null}
-      <TextField label="E-mail" value={form.values.email} onChangeText={form.set("email")} error={form.errors.email} autoCapitalize="none" keyboardType="email-address" inputMode="email" />
+      <TextField
+        label="E-mail"
+        value={form.values.email}
+        onChangeText={form.set("email")}
+        error={form.errors.email}
+        autoCapitalize="none"
+        keyboardType="email-address"
+        inputMode="email"
+      />
       <ChoiceChips label="Role" choices={roles} selected={[role]} onToggle={setRole} />
       <Button label="Send invitation" onPress={submit} busy={invite.isPending} />
       {open.data && open.data.items.length > 0 ? (

@@ -10,7 +10,11 @@ export function Notice({ tone, title, children }: { tone: "error" | "success" | 
       aria-live={tone === "error" ? "assertive" : "polite"}
       style={[styles.box, styles[tone]]}
     >
-      {title ? <Text variant="subheading" style={tone === "error" ? styles.errorText : undefined}>{title}</Text> : null}
+      {title ? (
+        <Text variant="subheading" style={tone === "error" ? styles.errorText : undefined}>
+          {title}
+        </Text>
+      ) : null}
       {typeof children === "string" ? <Text>{children}</Text> : children}
     </View>
   );

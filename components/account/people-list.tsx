@@ -16,7 +16,11 @@ export function PeopleList() {
   return (
     <Card>
       <Text variant="heading">People</Text>
-      {change.isError ? <Notice tone="error" title="The role was not changed">{change.error.message}</Notice> : null}
+      {change.isError ? (
+        <Notice tone="error" title="The role was not changed">
+          {change.error.message}
+        </Notice>
+      ) : null}
       {users.isPending ? (
         <LoadingState label="Loading people…" />
       ) : users.isError ? (

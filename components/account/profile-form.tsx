@@ -26,7 +26,13 @@ export function ProfileForm({ me }: { me: Me }) {
         <Text variant="caption">{`${me.email} · ${me.role}`}</Text>
         {saveName.isSuccess ? <Notice tone="success">Name saved.</Notice> : null}
         {name.formError ? <Notice tone="error">{name.formError}</Notice> : null}
-        <TextField label="Your name" value={name.values.displayName} onChangeText={name.set("displayName")} error={name.errors.displayName} autoComplete="name" />
+        <TextField
+          label="Your name"
+          value={name.values.displayName}
+          onChangeText={name.set("displayName")}
+          error={name.errors.displayName}
+          autoComplete="name"
+        />
         <Button
           label="Save name"
           tone="secondary"
@@ -39,11 +45,28 @@ export function ProfileForm({ me }: { me: Me }) {
       </Card>
       <Card>
         <Text variant="heading">Password</Text>
-        <Text variant="caption">Changing it signs you out on every other device and revokes your API tokens; you are e-mailed about it.</Text>
+        <Text variant="caption">
+          Changing it signs you out on every other device and revokes your API tokens; you are e-mailed about it.
+        </Text>
         {passwordChanged ? <Notice tone="success">Password changed.</Notice> : null}
         {password.formError ? <Notice tone="error">{password.formError}</Notice> : null}
-        <TextField label="Current password" value={password.values.currentPassword} onChangeText={password.set("currentPassword")} error={password.errors.currentPassword} secureTextEntry autoComplete="current-password" />
-        <TextField label="New password" value={password.values.newPassword} onChangeText={password.set("newPassword")} error={password.errors.newPassword} secureTextEntry autoComplete="new-password" hint="At least 12 characters." />
+        <TextField
+          label="Current password"
+          value={password.values.currentPassword}
+          onChangeText={password.set("currentPassword")}
+          error={password.errors.currentPassword}
+          secureTextEntry
+          autoComplete="current-password"
+        />
+        <TextField
+          label="New password"
+          value={password.values.newPassword}
+          onChangeText={password.set("newPassword")}
+          error={password.errors.newPassword}
+          secureTextEntry
+          autoComplete="new-password"
+          hint="At least 12 characters."
+        />
         <Button
           label="Change password"
           tone="secondary"

@@ -12,11 +12,26 @@ export function EmailLinkForm({ mutation, actionLabel }: { mutation: UseMutation
     const body = form.validate();
     if (body) mutation.mutate(body.email, { onError: form.showServerError });
   };
-  if (mutation.isSuccess) return <Notice tone="success" title="Check your e-mail">{mutation.data.message}</Notice>;
+  if (mutation.isSuccess)
+    return (
+      <Notice tone="success" title="Check your e-mail">
+        {mutation.data.message}
+      </Notice>
+    );
   return (
     <>
       {form.formError ? <Notice tone="error">{form.formError}</Notice> : null}
-      <TextField label="E-mail" value={form.values.email} onChangeText={form.set("email")} error={form.errors.email} autoComplete="email" keyboardType="email-address" autoCapitalize="none" inputMode="email" onSubmitEditing={submit} />
+      <TextField
+        label="E-mail"
+        value={form.values.email}
+        onChangeText={form.set("email")}
+        error={form.errors.email}
+        autoComplete="email"
+        keyboardType="email-address"
+        autoCapitalize="none"
+        inputMode="email"
+        onSubmitEditing={submit}
+      />
       <Button label={actionLabel} onPress={submit} busy={mutation.isPending} />
     </>
   );

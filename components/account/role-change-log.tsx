@@ -10,7 +10,9 @@ export function RoleChangeLog() {
   return (
     <Card>
       <Text variant="heading">Role changes</Text>
-      <Text variant="caption">Every change of role, newest first, with who made it; an accepted invitation counts as one, made by the inviter.</Text>
+      <Text variant="caption">
+        Every change of role, newest first, with who made it; an accepted invitation counts as one, made by the inviter.
+      </Text>
       {log.isPending ? (
         <LoadingState label="Loading the log…" />
       ) : log.isError ? (
@@ -20,7 +22,11 @@ export function RoleChangeLog() {
       ) : (
         log.data.items.map((c) => (
           <View key={c.id} style={styles.row}>
-            <Text>{c.fromRole ? `${c.user.displayName}: ${c.fromRole} → ${c.toRole}` : `${c.user.displayName}: joined as ${c.toRole} by invitation`}</Text>
+            <Text>
+              {c.fromRole
+                ? `${c.user.displayName}: ${c.fromRole} → ${c.toRole}`
+                : `${c.user.displayName}: joined as ${c.toRole} by invitation`}
+            </Text>
             <Text variant="caption">{`${new Date(c.at).toLocaleString()} · by ${c.actor?.displayName ?? "a removed account"}`}</Text>
           </View>
         ))

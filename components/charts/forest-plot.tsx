@@ -100,7 +100,14 @@ export function ForestPlot({
                   <Rect x={0} y={y - rowHeight / 2} width={width} height={rowHeight} fill={colors.card} />
                   <Line x1={0} x2={width} y1={y - rowHeight / 2} y2={y - rowHeight / 2} stroke={colors.line} />
                   <Marker x={9} y={y} size={4.5} shape={line.group.shape} fill={line.group.colour} />
-                  <SvgText x={20} y={y + 4} fontSize={12} fontFamily={fonts.semibold} fill={colors.ink} data-group-header={line.group.level}>
+                  <SvgText
+                    x={20}
+                    y={y + 4}
+                    fontSize={12}
+                    fontFamily={fonts.semibold}
+                    fill={colors.ink}
+                    data-group-header={line.group.level}
+                  >
                     {`${line.group.label} · k = ${line.group.k}`}
                   </SvgText>
                 </G>
@@ -116,9 +123,24 @@ export function ForestPlot({
                   </SvgText>
                   <Line x1={x(r.ciLower)} x2={x(r.ciUpper)} y1={y} y2={y} stroke={colors.ink} strokeWidth={1.5} />
                   {line.group ? (
-                    <Marker x={x(r.estimate)} y={y} size={size} shape={line.group.shape} fill={r.significant ? colour : colors.card} stroke={colour} />
+                    <Marker
+                      x={x(r.estimate)}
+                      y={y}
+                      size={size}
+                      shape={line.group.shape}
+                      fill={r.significant ? colour : colors.card}
+                      stroke={colour}
+                    />
                   ) : (
-                    <Rect x={x(r.estimate) - size} y={y - size} width={2 * size} height={2 * size} fill={r.significant ? colors.field : colors.card} stroke={colors.fieldDark} strokeWidth={1.5} />
+                    <Rect
+                      x={x(r.estimate) - size}
+                      y={y - size}
+                      width={2 * size}
+                      height={2 * size}
+                      fill={r.significant ? colors.field : colors.card}
+                      stroke={colors.fieldDark}
+                      strokeWidth={1.5}
+                    />
                   )}
                 </G>
               );
@@ -126,7 +148,13 @@ export function ForestPlot({
             case "subtotal":
               return (
                 <G key={`s-${line.group.level}`}>
-                  <SvgText x={12} y={y + 4} fontSize={11} fontFamily={fonts.semibold} fill={colors.ink}>{`Subtotal, k = ${line.group.k}`}</SvgText>
+                  <SvgText
+                    x={12}
+                    y={y + 4}
+                    fontSize={11}
+                    fontFamily={fonts.semibold}
+                    fill={colors.ink}
+                  >{`Subtotal, k = ${line.group.k}`}</SvgText>
                   <Path
                     d={diamond(x, line.group.ciLower, line.group.estimate, line.group.ciUpper, y, 6)}
                     fill={line.group.colour}
@@ -140,16 +168,32 @@ export function ForestPlot({
               return (
                 <G key="pooled">
                   <Line x1={0} x2={width} y1={y - rowHeight / 2 - 2} y2={y - rowHeight / 2 - 2} stroke={colors.line} />
-                  <SvgText x={4} y={y + 4} fontSize={11} fontFamily={fonts.semibold} fill={colors.ink}>{groups?.length ? "All, pooled (95 % CI)" : "Mean (95 % CI)"}</SvgText>
-                  <Path d={diamond(x, pooled!.ciLower, pooled!.estimate, pooled!.ciUpper, y, 7)} fill={colors.wheat} stroke={colors.ink} data-pooled="true" />
+                  <SvgText x={4} y={y + 4} fontSize={11} fontFamily={fonts.semibold} fill={colors.ink}>
+                    {groups?.length ? "All, pooled (95 % CI)" : "Mean (95 % CI)"}
+                  </SvgText>
+                  <Path
+                    d={diamond(x, pooled!.ciLower, pooled!.estimate, pooled!.ciUpper, y, 7)}
+                    fill={colors.wheat}
+                    stroke={colors.ink}
+                    data-pooled="true"
+                  />
                 </G>
               );
             case "prediction": {
               const pi = pooled!.prediction!;
               return (
                 <G key="prediction">
-                  <SvgText x={4} y={y + 4} fontSize={11} fontFamily={fonts.semibold} fill={colors.ink}>New field (PI)</SvgText>
-                  <Rect x={x(pi.lower)} y={y - 3} width={Math.max(1, x(pi.upper) - x(pi.lower))} height={6} fill={colors.wheatTint} stroke={colors.wheat} />
+                  <SvgText x={4} y={y + 4} fontSize={11} fontFamily={fonts.semibold} fill={colors.ink}>
+                    New field (PI)
+                  </SvgText>
+                  <Rect
+                    x={x(pi.lower)}
+                    y={y - 3}
+                    width={Math.max(1, x(pi.upper) - x(pi.lower))}
+                    height={6}
+                    fill={colors.wheatTint}
+                    stroke={colors.wheat}
+                  />
                   <Line x1={x(pi.lower)} x2={x(pi.lower)} y1={y - 7} y2={y + 7} stroke={colors.wheat} strokeWidth={2} />
                   <Line x1={x(pi.upper)} x2={x(pi.upper)} y1={y - 7} y2={y + 7} stroke={colors.wheat} strokeWidth={2} />
                 </G>
@@ -161,7 +205,9 @@ export function ForestPlot({
         {ticks.map((t) => (
           <G key={t}>
             <Line x1={x(t)} x2={x(t)} y1={plotBottom} y2={plotBottom + 4} stroke={colors.muted} />
-            <SvgText x={x(t)} y={plotBottom + 16} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">{format(t)}</SvgText>
+            <SvgText x={x(t)} y={plotBottom + 16} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">
+              {format(t)}
+            </SvgText>
           </G>
         ))}
         <SvgText x={width / 2} y={plotBottom + 30} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">

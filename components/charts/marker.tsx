@@ -12,7 +12,21 @@ function polygon(x: number, y: number, radius: (i: number) => number, corners: n
 }
 
 /** One data marker; `data-shape` names the shape in the web DOM, for tests and for readers of the page source. */
-export function Marker({ x, y, size, shape, fill, stroke = "#ffffff" }: { x: number; y: number; size: number; shape: string; fill: string; stroke?: string }) {
+export function Marker({
+  x,
+  y,
+  size,
+  shape,
+  fill,
+  stroke = "#ffffff",
+}: {
+  x: number;
+  y: number;
+  size: number;
+  shape: string;
+  fill: string;
+  stroke?: string;
+}) {
   const s = size;
   const common = { fill, stroke, strokeWidth: 1, "data-shape": shape } as const;
   switch (shape) {
@@ -27,7 +41,12 @@ export function Marker({ x, y, size, shape, fill, stroke = "#ffffff" }: { x: num
     case "cross": {
       const a = s * 0.4;
       const b = s * 1.2;
-      return <Path d={`M${x - a} ${y - b} H${x + a} V${y - a} H${x + b} V${y + a} H${x + a} V${y + b} H${x - a} V${y + a} H${x - b} V${y - a} H${x - a} Z`} {...common} />;
+      return (
+        <Path
+          d={`M${x - a} ${y - b} H${x + a} V${y - a} H${x + b} V${y + a} H${x + a} V${y + b} H${x - a} V${y + a} H${x - b} V${y - a} H${x - a} Z`}
+          {...common}
+        />
+      );
     }
     case "hexagon":
       return <Path d={polygon(x, y, () => s * 1.15, 6, 0)} {...common} />;

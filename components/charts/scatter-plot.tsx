@@ -12,12 +12,25 @@ const height = 250;
 const margin = { left: 48, right: 12, top: 10, bottom: 40 };
 
 /** Response against the soil-test value, one marker per site-year, coloured and shaped by soil-test class. */
-export function SoilTestScatter({ rows, format, unitLabel, summary }: { rows: ForestRow[]; format: (v: number) => string; unitLabel: string; summary: string }) {
+export function SoilTestScatter({
+  rows,
+  format,
+  unitLabel,
+  summary,
+}: {
+  rows: ForestRow[];
+  format: (v: number) => string;
+  unitLabel: string;
+  summary: string;
+}) {
   const [width, setWidth] = useState(280);
   const onLayout = (e: LayoutChangeEvent) => setWidth(Math.max(260, Math.floor(e.nativeEvent.layout.width)));
   const points = rows.filter((r): r is ForestRow & { soilTestValue: number } => r.soilTestValue !== null);
   const analyte = points[0]?.soilTestAnalyte ?? "";
-  const xs = niceDomain(points.map((p) => p.soilTestValue), false);
+  const xs = niceDomain(
+    points.map((p) => p.soilTestValue),
+    false,
+  );
   const ys = niceDomain(points.map((p) => p.estimate));
   const x = linearScale(xs.domain, [margin.left, width - margin.right]);
   const y = linearScale(ys.domain, [height - margin.bottom, margin.top]);
@@ -30,17 +43,51 @@ export function SoilTestScatter({ rows, format, unitLabel, summary }: { rows: Fo
           <Line x1={margin.left} x2={margin.left} y1={margin.top} y2={height - margin.bottom} stroke={colors.muted} />
           <Line x1={margin.left} x2={width - margin.right} y1={height - margin.bottom} y2={height - margin.bottom} stroke={colors.muted} />
           {ys.ticks.map((t) => (
-            <SvgText key={`y${t}`} x={margin.left - 4} y={y(t) + 4} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="end">{format(t)}</SvgText>
+            <SvgText
+              key={`y${t}`}
+              x={margin.left - 4}
+              y={y(t) + 4}
+              fontSize={11}
+              fontFamily={fonts.regular}
+              fill={colors.muted}
+              textAnchor="end"
+            >
+              {format(t)}
+            </SvgText>
           ))}
           {xs.ticks.map((t) => (
-            <SvgText key={`x${t}`} x={x(t)} y={height - margin.bottom + 15} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">{String(t)}</SvgText>
+            <SvgText
+              key={`x${t}`}
+              x={x(t)}
+              y={height - margin.bottom + 15}
+              fontSize={11}
+              fontFamily={fonts.regular}
+              fill={colors.muted}
+              textAnchor="middle"
+            >
+              {String(t)}
+            </SvgText>
           ))}
-          <SvgText x={(margin.left + width) / 2} y={height - 6} fontSize={11} fontFamily={fonts.regular} fill={colors.muted} textAnchor="middle">
+          <SvgText
+            x={(margin.left + width) / 2}
+            y={height - 6}
+            fontSize={11}
+            fontFamily={fonts.regular}
+            fill={colors.muted}
+            textAnchor="middle"
+          >
             Soil-test {analyte} (as reported) · response in {unitLabel}
           </SvgText>
           <G>
             {points.map((p) => (
-              <Marker key={p.id} x={x(p.soilTestValue)} y={y(p.estimate)} size={5} shape={classShapes[p.soilTestClass ?? ""] ?? "circle"} fill={soilClassColors[p.soilTestClass ?? ""] ?? colors.muted} />
+              <Marker
+                key={p.id}
+                x={x(p.soilTestValue)}
+                y={y(p.estimate)}
+                size={5}
+                shape={classShapes[p.soilTestClass ?? ""] ?? "circle"}
+                fill={soilClassColors[p.soilTestClass ?? ""] ?? colors.muted}
+              />
             ))}
           </G>
         </Svg>
@@ -55,7 +102,9 @@ export function SoilTestScatter({ rows, format, unitLabel, summary }: { rows: Fo
           </View>
         ))}
       </View>
-      {points.length < rows.length ? <Text variant="caption">{rows.length - points.length} site-year(s) have no soil-test value and are not plotted.</Text> : null}
+      {points.length < rows.length ? (
+        <Text variant="caption">{rows.length - points.length} site-year(s) have no soil-test value and are not plotted.</Text>
+      ) : null}
     </View>
   );
 }

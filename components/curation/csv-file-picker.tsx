@@ -6,16 +6,31 @@ import { space } from "@/constants/theme";
 import type { PickedFile } from "@/lib/upload-client";
 
 /** On a phone, the system document picker; the file is streamed from its local URI when uploaded. */
-export function CsvFilePicker({ file, onPick, label = "Choose CSV file" }: { file: PickedFile | null; onPick: (file: PickedFile | null) => void; label?: string }) {
+export function CsvFilePicker({
+  file,
+  onPick,
+  label = "Choose CSV file",
+}: {
+  file: PickedFile | null;
+  onPick: (file: PickedFile | null) => void;
+  label?: string;
+}) {
   return (
     <View style={styles.row}>
       <Button
         label={label}
         tone="secondary"
         onPress={async () => {
-          const result = await DocumentPicker.getDocumentAsync({ type: ["text/csv", "text/comma-separated-values", "text/plain", "*/*"], copyToCacheDirectory: true });
+          const result = await DocumentPicker.getDocumentAsync({
+            type: ["text/csv", "text/comma-separated-values", "text/plain", "*/*"],
+            copyToCacheDirectory: true,
+          });
           const asset = result.canceled ? undefined : result.assets[0];
-          onPick(asset ? { kind: "native", name: asset.name, size: asset.size ?? null, uri: asset.uri, mimeType: asset.mimeType ?? "text/csv" } : null);
+          onPick(
+            asset
+              ? { kind: "native", name: asset.name, size: asset.size ?? null, uri: asset.uri, mimeType: asset.mimeType ?? "text/csv" }
+              : null,
+          );
         }}
       />
       <Text variant="label" numberOfLines={1} style={styles.name}>

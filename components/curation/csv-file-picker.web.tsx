@@ -7,7 +7,15 @@ import type { PickedFile } from "@/lib/upload-client";
 import { formatBytes } from "./format";
 
 /** The browser's own file chooser behind a button of our style; the input stays in the page for keyboard and tests. */
-export function CsvFilePicker({ file, onPick, label = "Choose CSV file" }: { file: PickedFile | null; onPick: (file: PickedFile | null) => void; label?: string }) {
+export function CsvFilePicker({
+  file,
+  onPick,
+  label = "Choose CSV file",
+}: {
+  file: PickedFile | null;
+  onPick: (file: PickedFile | null) => void;
+  label?: string;
+}) {
   const input = useRef<HTMLInputElement>(null);
   return (
     <View style={styles.row}>

@@ -15,7 +15,9 @@ export function CurationDatasetCard({ dataset }: { dataset: CurationDataset }) {
       <Pressable role="link">
         <Card>
           <View style={styles.head}>
-            <Text variant="heading" aria-level={3} style={styles.title}>{dataset.title}</Text>
+            <Text variant="heading" aria-level={3} style={styles.title}>
+              {dataset.title}
+            </Text>
             {newest ? <StateBadge state={newest.state} /> : null}
           </View>
           <Text variant="label">

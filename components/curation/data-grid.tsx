@@ -51,7 +51,11 @@ export function DataGrid<F extends TableFeatures, T extends RowData>({
           {table.getHeaderGroups().map((group) => (
             <View key={group.id} role="row" style={[styles.row, styles.headerRow]}>
               {group.headers.map((header: Header<F, T, unknown>) => (
-                <View key={header.id} role="columnheader" style={[styles.cell, { width: width(header.column.id), flexGrow: width(header.column.id) }]}>
+                <View
+                  key={header.id}
+                  role="columnheader"
+                  style={[styles.cell, { width: width(header.column.id), flexGrow: width(header.column.id) }]}
+                >
                   {header.isPlaceholder ? null : (
                     <Text style={styles.headerText}>{render(header.column.columnDef.header, header.getContext())}</Text>
                   )}

@@ -29,12 +29,13 @@ export function initialValues(d: CurationDataset | null): DatasetFormValues {
   return {
     slug: d?.slug ?? "",
     title: d?.title ?? "",
-    crops: (d?.crops.filter((c): c is Crop => (crops as readonly string[]).includes(c)) ?? []),
+    crops: d?.crops.filter((c): c is Crop => (crops as readonly string[]).includes(c)) ?? [],
     region: d?.region ?? "",
     description: d?.description ?? "",
     licence: d?.licence ?? "CC-BY-4.0",
     keywords: d?.keywords.join(", ") ?? "",
-    contributors: d?.contributors.map((c) => ({ name: c.name, role: c.role, orcid: c.orcid ?? "", affiliation: c.affiliation ?? "" })) ?? [],
+    contributors:
+      d?.contributors.map((c) => ({ name: c.name, role: c.role, orcid: c.orcid ?? "", affiliation: c.affiliation ?? "" })) ?? [],
     funding: d?.funding ?? "",
     methods: d?.methods ?? "",
   };
@@ -49,7 +50,10 @@ export function toDatasetBody(v: DatasetFormValues): DatasetCreate {
     region: v.region.trim(),
     description: v.description.trim(),
     licence: v.licence.trim(),
-    keywords: v.keywords.split(",").map((k) => k.trim()).filter(Boolean),
+    keywords: v.keywords
+      .split(",")
+      .map((k) => k.trim())
+      .filter(Boolean),
     contributors: v.contributors.map((c) => ({
       name: c.name.trim(),
       role: c.role,
@@ -60,4 +64,3 @@ export function toDatasetBody(v: DatasetFormValues): DatasetCreate {
     methods: v.methods.trim() || null,
   };
 }
-

@@ -66,41 +66,117 @@ export function DatasetForm({
           error={issues.slug}
           editable={!editing}
           autoCapitalize="none"
-          hint={editing ? "The address stays fixed once the dataset exists." : "Lower-case words joined by hyphens, e.g. soybean-starter-placement."}
+          hint={
+            editing
+              ? "The address stays fixed once the dataset exists."
+              : "Lower-case words joined by hyphens, e.g. soybean-starter-placement."
+          }
         />
-        <ChoiceChips label="Crops" multiple choices={cropOptions} selected={values.crops} error={issues.crops}
-          onToggle={(c) => set("crops", values.crops.includes(c) ? values.crops.filter((x) => x !== c) : [...values.crops, c])} />
-        <TextField label="Region" value={values.region} onChangeText={(t) => set("region", t)} error={issues.region} hint="Coarse only: a basin, county or region, never a farm." />
-        <TextField label="Description" multiline value={values.description} onChangeText={(t) => set("description", t)} error={issues.description} />
-        <TextField label="Licence" value={values.licence} onChangeText={(t) => set("licence", t)} error={issues.licence} autoCapitalize="none" hint="SPDX identifier; CC-BY-4.0 unless the data owners chose otherwise." />
-        <TextField label="Keywords" value={values.keywords} onChangeText={(t) => set("keywords", t)} error={issues.keywords ?? firstUnder(issues, "keywords.")} hint="Separated by commas." />
+        <ChoiceChips
+          label="Crops"
+          multiple
+          choices={cropOptions}
+          selected={values.crops}
+          error={issues.crops}
+          onToggle={(c) => set("crops", values.crops.includes(c) ? values.crops.filter((x) => x !== c) : [...values.crops, c])}
+        />
+        <TextField
+          label="Region"
+          value={values.region}
+          onChangeText={(t) => set("region", t)}
+          error={issues.region}
+          hint="Coarse only: a basin, county or region, never a farm."
+        />
+        <TextField
+          label="Description"
+          multiline
+          value={values.description}
+          onChangeText={(t) => set("description", t)}
+          error={issues.description}
+        />
+        <TextField
+          label="Licence"
+          value={values.licence}
+          onChangeText={(t) => set("licence", t)}
+          error={issues.licence}
+          autoCapitalize="none"
+          hint="SPDX identifier; CC-BY-4.0 unless the data owners chose otherwise."
+        />
+        <TextField
+          label="Keywords"
+          value={values.keywords}
+          onChangeText={(t) => set("keywords", t)}
+          error={issues.keywords ?? firstUnder(issues, "keywords.")}
+          hint="Separated by commas."
+        />
       </Card>
 
       <Card>
         <Text variant="heading">Contributors</Text>
-        {values.contributors.length === 0 ? <Text variant="caption">No contributors yet. Add the people who ran, collected and curated the trials.</Text> : null}
+        {values.contributors.length === 0 ? (
+          <Text variant="caption">No contributors yet. Add the people who ran, collected and curated the trials.</Text>
+        ) : null}
         {values.contributors.map((c, i) => {
           const ci = issuesUnder(issues, `contributors.${i}.`);
           return (
             <View key={i} style={styles.contributor} accessibilityLabel={`Contributor ${i + 1}`}>
-              <TextField label={`Contributor ${i + 1} name`} value={c.name} onChangeText={(t) => setContributor(i, { name: t })} error={ci.name} />
-              <ChoiceChips label={`Contributor ${i + 1} role`} choices={roleOptions} selected={[c.role]} onToggle={(r) => setContributor(i, { role: r })} error={ci.role} />
-              <TextField label={`Contributor ${i + 1} ORCID iD (optional)`} value={c.orcid} placeholder="0000-0000-0000-0000" autoCapitalize="characters" onChangeText={(t) => setContributor(i, { orcid: t })} error={ci.orcid} />
-              <TextField label={`Contributor ${i + 1} affiliation (optional)`} value={c.affiliation} onChangeText={(t) => setContributor(i, { affiliation: t })} error={ci.affiliation} />
-              <Button label={`Remove contributor ${i + 1}`} tone="quiet" style={styles.left}
-                onPress={() => setValues((v) => ({ ...v, contributors: v.contributors.filter((_, j) => j !== i) }))} />
+              <TextField
+                label={`Contributor ${i + 1} name`}
+                value={c.name}
+                onChangeText={(t) => setContributor(i, { name: t })}
+                error={ci.name}
+              />
+              <ChoiceChips
+                label={`Contributor ${i + 1} role`}
+                choices={roleOptions}
+                selected={[c.role]}
+                onToggle={(r) => setContributor(i, { role: r })}
+                error={ci.role}
+              />
+              <TextField
+                label={`Contributor ${i + 1} ORCID iD (optional)`}
+                value={c.orcid}
+                placeholder="0000-0000-0000-0000"
+                autoCapitalize="characters"
+                onChangeText={(t) => setContributor(i, { orcid: t })}
+                error={ci.orcid}
+              />
+              <TextField
+                label={`Contributor ${i + 1} affiliation (optional)`}
+                value={c.affiliation}
+                onChangeText={(t) => setContributor(i, { affiliation: t })}
+                error={ci.affiliation}
+              />
+              <Button
+                label={`Remove contributor ${i + 1}`}
+                tone="quiet"
+                style={styles.left}
+                onPress={() => setValues((v) => ({ ...v, contributors: v.contributors.filter((_, j) => j !== i) }))}
+              />
             </View>
           );
         })}
-        <Button label="Add contributor" tone="secondary" style={styles.left}
-          onPress={() => setValues((v) => ({ ...v, contributors: [...v.contributors, { name: "", role: "creator", orcid: "", affiliation: "" }] }))} />
+        <Button
+          label="Add contributor"
+          tone="secondary"
+          style={styles.left}
+          onPress={() =>
+            setValues((v) => ({ ...v, contributors: [...v.contributors, { name: "", role: "creator", orcid: "", affiliation: "" }] }))
+          }
+        />
       </Card>
 
       <Card>
         <Text variant="heading">Funding and methods</Text>
         <TextField label="Funding" multiline value={values.funding} onChangeText={(t) => set("funding", t)} error={issues.funding} />
-        <TextField label="Methods and protocol" multiline value={values.methods} onChangeText={(t) => set("methods", t)} error={issues.methods}
-          hint="Design, plot size, harvest method, moisture basis, how soil samples were taken." />
+        <TextField
+          label="Methods and protocol"
+          multiline
+          value={values.methods}
+          onChangeText={(t) => set("methods", t)}
+          error={issues.methods}
+          hint="Design, plot size, harvest method, moisture basis, how soil samples were taken."
+        />
       </Card>
 
       {issues[""] ? <FieldError message={issues[""]} /> : null}

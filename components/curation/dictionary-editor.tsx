@@ -19,14 +19,31 @@ const features = tableFeatures({});
 const helper = createColumnHelper<typeof features, DictionaryRow>();
 type TextKey = "name" | "type" | "unit" | "description" | "minimum" | "maximum" | "enumText";
 const issueKey: Record<TextKey, string> = {
-  name: "name", type: "type", unit: "unit", description: "description",
-  minimum: "constraints.minimum", maximum: "constraints.maximum", enumText: "constraints.enum",
+  name: "name",
+  type: "type",
+  unit: "unit",
+  description: "description",
+  minimum: "constraints.minimum",
+  maximum: "constraints.maximum",
+  enumText: "constraints.enum",
 };
 const widths = { name: 170, type: 110, unit: 100, description: 280, required: 100, minimum: 100, maximum: 100, enumText: 220, remove: 110 };
 const resourceOptions = resourceName.options.map((value) => ({ value, label: resourceTitles[value] }));
 const typeHint = tableSchemaFieldType.options.join(", ");
 
-function Cell({ value, label, error, readOnly, onChange }: { value: string; label: string; error?: string; readOnly: boolean; onChange: (v: string) => void }) {
+function Cell({
+  value,
+  label,
+  error,
+  readOnly,
+  onChange,
+}: {
+  value: string;
+  label: string;
+  error?: string;
+  readOnly: boolean;
+  onChange: (v: string) => void;
+}) {
   if (readOnly) return <Text style={styles.readOnly}>{value || "—"}</Text>;
   return (
     <View>
@@ -38,7 +55,11 @@ function Cell({ value, label, error, readOnly, onChange }: { value: string; labe
         autoCapitalize="none"
         style={[styles.input, !!error && styles.inputError]}
       />
-      {error ? <Text variant="caption" style={styles.error}>{error}</Text> : null}
+      {error ? (
+        <Text variant="caption" style={styles.error}>
+          {error}
+        </Text>
+      ) : null}
     </View>
   );
 }
@@ -123,7 +144,12 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
         header: "",
         cell: (c) =>
           readOnly ? null : (
-            <Button label="Remove" tone="quiet" accessibilityLabel={`Remove field ${c.row.original.name || c.row.index + 1}`} onPress={() => removeRow(c.row.index)} />
+            <Button
+              label="Remove"
+              tone="quiet"
+              accessibilityLabel={`Remove field ${c.row.original.name || c.row.index + 1}`}
+              onPress={() => removeRow(c.row.index)}
+            />
           ),
       }),
     ]);
@@ -133,7 +159,8 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
 
   const onSave = async () => {
     let descriptor = version.tableSchema;
-    for (const [res, edited] of Object.entries(rowsByResource) as [ResourceName, DictionaryRow[]][]) descriptor = withResourceFields(descriptor, res, edited);
+    for (const [res, edited] of Object.entries(rowsByResource) as [ResourceName, DictionaryRow[]][])
+      descriptor = withResourceFields(descriptor, res, edited);
     const checked = tableSchemaDescriptor.safeParse(descriptor);
     if (!checked.success) {
       setIssues(zodFieldIssues(checked.error));
@@ -157,7 +184,8 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
     <Card>
       <Text variant="heading">Data dictionary</Text>
       <Text variant="caption">
-        Each resource is a Frictionless Table Schema: field names, types, units and constraints. Uploads are checked against it before anything is stored.
+        Each resource is a Frictionless Table Schema: field names, types, units and constraints. Uploads are checked against it before
+        anything is stored.
         {readOnly ? " This version is not an editable draft, so the dictionary is read-only." : ""}
       </Text>
       <ChoiceChips label="Resource" choices={resourceOptions} selected={[resource]} onToggle={setResource} />
@@ -165,13 +193,25 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
       <DataGrid table={table} widths={widths} label={`${resourceTitles[resource]} data dictionary`} />
       {readOnly ? null : (
         <View style={styles.actions}>
-          <Button label="Add field" tone="secondary" onPress={() => setRowsByResource((all) => ({ ...all, [resource]: [...rows, blankRow()] }))} />
+          <Button
+            label="Add field"
+            tone="secondary"
+            onPress={() => setRowsByResource((all) => ({ ...all, [resource]: [...rows, blankRow()] }))}
+          />
           <Button label="Save dictionary" busy={save.isPending} disabled={!dirty} onPress={onSave} />
-          {saved ? <Text role="status" style={{ color: colors.fieldDark }}>Dictionary saved.</Text> : null}
+          {saved ? (
+            <Text role="status" style={{ color: colors.fieldDark }}>
+              Dictionary saved.
+            </Text>
+          ) : null}
         </View>
       )}
-      {otherIssues.map(([k, m]) => <FieldError key={k} message={k ? `${k}: ${m}` : m} />)}
-      {issueCount > 0 ? <FieldError message={`The dictionary was not saved: ${issueCount} problem${issueCount === 1 ? "" : "s"} to correct.`} /> : null}
+      {otherIssues.map(([k, m]) => (
+        <FieldError key={k} message={k ? `${k}: ${m}` : m} />
+      ))}
+      {issueCount > 0 ? (
+        <FieldError message={`The dictionary was not saved: ${issueCount} problem${issueCount === 1 ? "" : "s"} to correct.`} />
+      ) : null}
     </Card>
   );
 }

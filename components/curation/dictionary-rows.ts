@@ -29,7 +29,15 @@ export function rowsOf(fields: readonly TableSchemaField[]): DictionaryRow[] {
 }
 
 export const blankRow = (): DictionaryRow => ({
-  name: "", type: "string", unit: "", description: "", required: false, minimum: "", maximum: "", enumText: "", original: null,
+  name: "",
+  type: "string",
+  unit: "",
+  description: "",
+  required: false,
+  minimum: "",
+  maximum: "",
+  enumText: "",
+  original: null,
 });
 
 /** A number typed in a cell; text that is not one is passed through so the shared schema names the cell. */
@@ -43,7 +51,10 @@ function numberOrText(text: string): number | string | undefined {
 /** Editor rows → a Table Schema field, dropping empty optionals and keeping what the grid does not edit. */
 export function fieldOf(row: DictionaryRow): TableSchemaField {
   const { required: _r, minimum: _min, maximum: _max, enum: _enum, ...keptConstraints } = row.original?.constraints ?? {};
-  const enumValues = row.enumText.split(",").map((s) => s.trim()).filter(Boolean);
+  const enumValues = row.enumText
+    .split(",")
+    .map((s) => s.trim())
+    .filter(Boolean);
   const constraints = {
     ...keptConstraints,
     ...(row.required ? { required: true } : {}),
@@ -70,7 +81,11 @@ export function fieldOf(row: DictionaryRow): TableSchemaField {
 }
 
 /** The whole descriptor with one resource's fields replaced. */
-export function withResourceFields(descriptor: TableSchemaDescriptor, resource: ResourceName, rows: readonly DictionaryRow[]): TableSchemaDescriptor {
+export function withResourceFields(
+  descriptor: TableSchemaDescriptor,
+  resource: ResourceName,
+  rows: readonly DictionaryRow[],
+): TableSchemaDescriptor {
   const current = descriptor.resources[resource];
   const fields = rows.map(fieldOf);
   return { resources: { ...descriptor.resources, [resource]: { ...(current ?? {}), fields } } };

@@ -14,7 +14,8 @@ const pendingPollMs = 4000;
 const headline = (r: DoiRegistration): { text: string; color: string } => {
   if (r.status === "registered") return { text: "Registered", color: colors.fieldDark };
   if (r.status === "failed") return { text: "Refused by the DOI service", color: colors.danger };
-  if (r.status === "pending") return { text: r.doi ? "Registered; a metadata update is waiting" : "Waiting for the DOI service", color: colors.wheatText };
+  if (r.status === "pending")
+    return { text: r.doi ? "Registered; a metadata update is waiting" : "Waiting for the DOI service", color: colors.wheatText };
   return { text: "Not registered: no DOI service is set up", color: colors.muted };
 };
 
@@ -26,14 +27,20 @@ const headline = (r: DoiRegistration): { text: string; color: string } => {
 export function DoiStatusCard({ version }: { version: VersionDetail }) {
   const r = version.doiRegistration;
   const requeue = useRequeueDoiMutation(version.id);
-  useQuery({ ...versionQuery(version.id), enabled: r?.status === "pending", refetchInterval: r?.status === "pending" ? pendingPollMs : false });
+  useQuery({
+    ...versionQuery(version.id),
+    enabled: r?.status === "pending",
+    refetchInterval: r?.status === "pending" ? pendingPollMs : false,
+  });
   if (!r) return null;
   const { text, color } = headline(r);
-  const problem = requeue.isError ? serverFieldIssues(requeue.error)[""] ?? "The request failed." : null;
+  const problem = requeue.isError ? (serverFieldIssues(requeue.error)[""] ?? "The request failed.") : null;
   return (
     <Card testID="doi-status" accessibilityLabel="DOI registration">
       <Text variant="heading">DOI</Text>
-      <Text role="status" style={[styles.state, { color }]}>{text}</Text>
+      <Text role="status" style={[styles.state, { color }]}>
+        {text}
+      </Text>
       <Text variant="caption" selectable>
         {r.doi ? `https://doi.org/${r.doi}` : `Will be registered as ${r.intendedDoi}`}
         {r.attempts ? ` · ${r.attempts} ${r.attempts === 1 ? "attempt" : "attempts"}` : ""}
@@ -44,7 +51,9 @@ export function DoiStatusCard({ version }: { version: VersionDetail }) {
           <Text selectable>{r.lastError}</Text>
         </View>
       ) : null}
-      {r.status === "pending" && !r.lastError ? <Text variant="caption">Registration runs in the background; this card updates when it is done.</Text> : null}
+      {r.status === "pending" && !r.lastError ? (
+        <Text variant="caption">Registration runs in the background; this card updates when it is done.</Text>
+      ) : null}
       {r.canRequeue ? (
         <Button
           label="Send to the DOI service again"
@@ -54,7 +63,11 @@ export function DoiStatusCard({ version }: { version: VersionDetail }) {
           style={styles.left}
         />
       ) : null}
-      {problem ? <Text role="alert" style={{ color: colors.danger }}>{problem}</Text> : null}
+      {problem ? (
+        <Text role="alert" style={{ color: colors.danger }}>
+          {problem}
+        </Text>
+      ) : null}
     </Card>
   );
 }

@@ -4,7 +4,17 @@ import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, radius, space } from "@/constants/theme";
 
 /** A navigation link that looks like a button (a link, for screen readers and middle-click). */
-export function LinkButton({ href, label, tone = "secondary", accessibilityLabel }: { href: Href; label: string; tone?: "primary" | "secondary" | "quiet"; accessibilityLabel?: string }) {
+export function LinkButton({
+  href,
+  label,
+  tone = "secondary",
+  accessibilityLabel,
+}: {
+  href: Href;
+  label: string;
+  tone?: "primary" | "secondary" | "quiet";
+  accessibilityLabel?: string;
+}) {
   return (
     <Link href={href} asChild>
       <Pressable
@@ -20,7 +30,16 @@ export function LinkButton({ href, label, tone = "secondary", accessibilityLabel
 }
 
 const styles = StyleSheet.create({
-  base: { minHeight: minTap, paddingHorizontal: space.lg, borderRadius: radius.md, justifyContent: "center", alignItems: "center", alignSelf: "flex-start", borderWidth: 1, borderColor: "transparent" },
+  base: {
+    minHeight: minTap,
+    paddingHorizontal: space.lg,
+    borderRadius: radius.md,
+    justifyContent: "center",
+    alignItems: "center",
+    alignSelf: "flex-start",
+    borderWidth: 1,
+    borderColor: "transparent",
+  },
   primary: { backgroundColor: colors.field },
   secondary: { backgroundColor: colors.card, borderColor: colors.field },
   quiet: { backgroundColor: "transparent" },

@@ -56,7 +56,15 @@ const severityOptions = [
 type SeverityChoice = (typeof severityOptions)[number]["value"];
 
 /** A validation report: every problem with file, row, column and value, filterable, and downloadable as CSV. */
-export function ProblemReportTable({ problems, filename, onDownload }: { problems: ValidationProblem[]; filename: string; onDownload: () => Promise<void> }) {
+export function ProblemReportTable({
+  problems,
+  filename,
+  onDownload,
+}: {
+  problems: ValidationProblem[];
+  filename: string;
+  onDownload: () => Promise<void>;
+}) {
   const [downloading, setDownloading] = useState(false);
   const [downloadError, setDownloadError] = useState<string | null>(null);
   const [severity, setSeverity] = useState<SeverityChoice>("all");
@@ -65,7 +73,10 @@ export function ProblemReportTable({ problems, filename, onDownload }: { problem
   const [pagination, setPagination] = useState<PaginationState>({ pageIndex: 0, pageSize: 50 });
 
   const columnOptions = useMemo(
-    () => [{ value: "", label: "All columns" }, ...[...new Set(problems.map((p) => p.column ?? "").filter(Boolean))].sort().map((c) => ({ value: c, label: c }))],
+    () => [
+      { value: "", label: "All columns" },
+      ...[...new Set(problems.map((p) => p.column ?? "").filter(Boolean))].sort().map((c) => ({ value: c, label: c })),
+    ],
     [problems],
   );
   const columnFilters = useMemo(
@@ -90,11 +101,35 @@ export function ProblemReportTable({ problems, filename, onDownload }: { problem
   return (
     <View style={styles.box}>
       <View style={styles.filters}>
-        <ChoiceChips label="Severity" choices={severityOptions} selected={[severity]} onToggle={(v) => { setSeverity(v); setPagination((p) => ({ ...p, pageIndex: 0 })); }} />
+        <ChoiceChips
+          label="Severity"
+          choices={severityOptions}
+          selected={[severity]}
+          onToggle={(v) => {
+            setSeverity(v);
+            setPagination((p) => ({ ...p, pageIndex: 0 }));
+          }}
+        />
         {columnOptions.length > 2 ? (
-          <ChoiceChips label="Column" choices={columnOptions} selected={[column]} onToggle={(v) => { setColumn(v); setPagination((p) => ({ ...p, pageIndex: 0 })); }} />
+          <ChoiceChips
+            label="Column"
+            choices={columnOptions}
+            selected={[column]}
+            onToggle={(v) => {
+              setColumn(v);
+              setPagination((p) => ({ ...p, pageIndex: 0 }));
+            }}
+          />
         ) : null}
-        <TextField label="Search problems" placeholder="Text in the message or value" value={text} onChangeText={(t) => { setText(t); setPagination((p) => ({ ...p, pageIndex: 0 })); }} />
+        <TextField
+          label="Search problems"
+          placeholder="Text in the message or value"
+          value={text}
+          onChangeText={(t) => {
+            setText(t);
+            setPagination((p) => ({ ...p, pageIndex: 0 }));
+          }}
+        />
       </View>
       <View style={styles.bar}>
         <Text variant="label" role="status" aria-live="polite">
@@ -122,13 +157,17 @@ export function ProblemReportTable({ problems, filename, onDownload }: { problem
           widths={widths}
           label={`Validation problems in ${filename}`}
           rowTone={(p) => (p.severity === "error" ? "danger" : "warn")}
-          rowLabel={(p) => `${p.severity}${p.row === null ? "" : ` in row ${p.row}`}${p.column ? `, column ${p.column}` : ""}: ${p.message}`}
+          rowLabel={(p) =>
+            `${p.severity}${p.row === null ? "" : ` in row ${p.row}`}${p.column ? `, column ${p.column}` : ""}: ${p.message}`
+          }
         />
       )}
       {pages > 1 ? (
         <View style={styles.pager}>
           <Button label="Previous page" tone="quiet" disabled={!table.getCanPreviousPage()} onPress={() => table.previousPage()} />
-          <Text variant="label">Page {pagination.pageIndex + 1} of {pages}</Text>
+          <Text variant="label">
+            Page {pagination.pageIndex + 1} of {pages}
+          </Text>
           <Button label="Next page" tone="quiet" disabled={!table.getCanNextPage()} onPress={() => table.nextPage()} />
         </View>
       ) : null}

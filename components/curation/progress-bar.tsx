@@ -7,17 +7,12 @@ export function ProgressBar({ fraction, label }: { fraction: number; label: stri
   const pct = Math.round(Math.max(0, Math.min(1, fraction)) * 100);
   return (
     <View style={styles.box}>
-      <View
-        role="progressbar"
-        accessibilityLabel={label}
-        aria-valuemin={0}
-        aria-valuemax={100}
-        aria-valuenow={pct}
-        style={styles.track}
-      >
+      <View role="progressbar" accessibilityLabel={label} aria-valuemin={0} aria-valuemax={100} aria-valuenow={pct} style={styles.track}>
         <View style={[styles.fill, { width: `${pct}%` }]} />
       </View>
-      <Text variant="caption">{label}: {pct} %</Text>
+      <Text variant="caption">
+        {label}: {pct} %
+      </Text>
     </View>
   );
 }

@@ -17,13 +17,20 @@ export function ReviewQueueList() {
     <View style={styles.list} role="list" accessibilityLabel="Review queue">
       {queue.data.items.map((item) => (
         <Card key={item.versionId} role="listitem">
-          <Text variant="subheading">{item.datasetTitle} · v{item.semver}</Text>
+          <Text variant="subheading">
+            {item.datasetTitle} · v{item.semver}
+          </Text>
           <Text variant="caption">
-            Submitted {formatDay(item.submittedAt)}{item.submittedByName ? ` by ${item.submittedByName}` : ""}
+            Submitted {formatDay(item.submittedAt)}
+            {item.submittedByName ? ` by ${item.submittedByName}` : ""}
             {item.canApprove ? "" : " · you made or submitted it, so another reviewer approves it"}
           </Text>
           <Text numberOfLines={3}>{item.changelog}</Text>
-          <LinkButton href={`/curate/versions/${item.versionId}`} label="Review" accessibilityLabel={`Review ${item.datasetTitle} version ${item.semver}`} />
+          <LinkButton
+            href={`/curate/versions/${item.versionId}`}
+            label="Review"
+            accessibilityLabel={`Review ${item.datasetTitle} version ${item.semver}`}
+          />
         </Card>
       ))}
     </View>

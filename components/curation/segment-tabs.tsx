@@ -3,7 +3,17 @@ import { Text } from "@/components/ui/text";
 import { colors, fonts, minTap, space } from "@/constants/theme";
 
 /** A row of tabs switching panels on one screen. */
-export function SegmentTabs<T extends string>({ tabs, value, onChange, label }: { tabs: readonly { value: T; label: string }[]; value: T; onChange: (v: T) => void; label: string }) {
+export function SegmentTabs<T extends string>({
+  tabs,
+  value,
+  onChange,
+  label,
+}: {
+  tabs: readonly { value: T; label: string }[];
+  value: T;
+  onChange: (v: T) => void;
+  label: string;
+}) {
   return (
     <View role="tablist" accessibilityLabel={label} style={styles.bar}>
       {tabs.map((t) => (

@@ -60,7 +60,11 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
   useEffect(() => {
     let live = true;
     setMapping({});
-    if (file) readCsvHeader(file).then((h) => live && setHeader(h), () => live && setHeader([]));
+    if (file)
+      readCsvHeader(file).then(
+        (h) => live && setHeader(h),
+        () => live && setHeader([]),
+      );
     else setHeader([]);
     return () => {
       live = false;
@@ -86,12 +90,29 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
     <View style={styles.box}>
       <Card>
         <Text variant="heading">Add data from a CSV</Text>
-        <ChoiceChips label="Resource" choices={resourceOptions} selected={[resource]} onToggle={(r) => { setResource(r); setMapping({}); }} />
-        <CsvFilePicker file={file} onPick={(f) => { setFile(f); setReportId(null); upload.reset(); }} />
+        <ChoiceChips
+          label="Resource"
+          choices={resourceOptions}
+          selected={[resource]}
+          onToggle={(r) => {
+            setResource(r);
+            setMapping({});
+          }}
+        />
+        <CsvFilePicker
+          file={file}
+          onPick={(f) => {
+            setFile(f);
+            setReportId(null);
+            upload.reset();
+          }}
+        />
         {header.length ? (
           <Text variant="caption">
             Columns found: {header.join(", ")}
-            {unmatched.length ? ` — ${unmatched.length} not in the ${resourceTitles[resource].toLowerCase()} dictionary` : " — all match the dictionary"}
+            {unmatched.length
+              ? ` — ${unmatched.length} not in the ${resourceTitles[resource].toLowerCase()} dictionary`
+              : " — all match the dictionary"}
           </Text>
         ) : null}
 
@@ -113,44 +134,78 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
                     label={`Column "${h}" holds`}
                     choices={[{ value: "", label: "(ignore)" }, ...fields.map((f) => ({ value: f, label: f }))]}
                     selected={[mapping[h] ?? ""]}
-                    onToggle={(f) => setMapping((m) => {
-                      const next = { ...m };
-                      if (f) next[h] = f;
-                      else delete next[h];
-                      return next;
-                    })}
+                    onToggle={(f) =>
+                      setMapping((m) => {
+                        const next = { ...m };
+                        if (f) next[h] = f;
+                        else delete next[h];
+                        return next;
+                      })
+                    }
                   />
                 ))}
               </View>
             ) : (
-              <Text variant="caption">{file ? "Every column matches a dictionary field by name." : "Choose a file to map its columns."}</Text>
+              <Text variant="caption">
+                {file ? "Every column matches a dictionary field by name." : "Choose a file to map its columns."}
+              </Text>
             )}
             {resource === "plots" || resource === "summaries" ? (
               <>
-                <ChoiceChips label="Yield unit" choices={yieldUnits} selected={[units.yield]} onToggle={(v) => setUnits((u) => ({ ...u, yield: v }))} />
-                <ChoiceChips label="Yield moisture basis" choices={moistureBases} selected={[units.yieldMoisture]} onToggle={(v) => setUnits((u) => ({ ...u, yieldMoisture: v }))} />
+                <ChoiceChips
+                  label="Yield unit"
+                  choices={yieldUnits}
+                  selected={[units.yield]}
+                  onToggle={(v) => setUnits((u) => ({ ...u, yield: v }))}
+                />
+                <ChoiceChips
+                  label="Yield moisture basis"
+                  choices={moistureBases}
+                  selected={[units.yieldMoisture]}
+                  onToggle={(v) => setUnits((u) => ({ ...u, yieldMoisture: v }))}
+                />
               </>
             ) : null}
             {resource === "soil_tests" ? (
-              <ChoiceChips label="Soil-test unit" choices={soilUnits} selected={[units.soilTest]} onToggle={(v) => setUnits((u) => ({ ...u, soilTest: v }))} />
+              <ChoiceChips
+                label="Soil-test unit"
+                choices={soilUnits}
+                selected={[units.soilTest]}
+                onToggle={(v) => setUnits((u) => ({ ...u, soilTest: v }))}
+              />
             ) : null}
             {resource === "treatments" ? (
-              <ChoiceChips label="Fertilizer grade basis" choices={gradeBases} selected={[units.gradeBasis]} onToggle={(v) => setUnits((u) => ({ ...u, gradeBasis: v }))} />
+              <ChoiceChips
+                label="Fertilizer grade basis"
+                choices={gradeBases}
+                selected={[units.gradeBasis]}
+                onToggle={(v) => setUnits((u) => ({ ...u, gradeBasis: v }))}
+              />
             ) : null}
             <ChoiceChips label="How to combine" choices={modes} selected={[mode]} onToggle={setMode} />
           </View>
         ) : null}
 
-        <Button label={`Upload ${resourceTitles[resource].toLowerCase()}`} disabled={!file || upload.isPending} busy={upload.isPending} onPress={start} style={styles.left} />
+        <Button
+          label={`Upload ${resourceTitles[resource].toLowerCase()}`}
+          disabled={!file || upload.isPending}
+          busy={upload.isPending}
+          onPress={start}
+          style={styles.left}
+        />
         {upload.isPending ? <ProgressBar fraction={progress} label={`Uploading ${file?.name ?? "the file"}`} /> : null}
         {upload.isError ? <ErrorState error={upload.error} onRetry={start} /> : null}
       </Card>
       {reportId ? <ReportView versionId={version.id} reportId={reportId} /> : null}
       {upload.data && !upload.data.accepted ? null : upload.data?.responses?.uncomputed.length ? (
         <Card>
-          <Text variant="subheading" style={{ color: colors.wheatText }}>Site-years without responses</Text>
+          <Text variant="subheading" style={{ color: colors.wheatText }}>
+            Site-years without responses
+          </Text>
           {upload.data.responses.uncomputed.map((u) => (
-            <Text key={u.siteYear}>{u.siteYear}: {u.reason}</Text>
+            <Text key={u.siteYear}>
+              {u.siteYear}: {u.reason}
+            </Text>
           ))}
         </Card>
       ) : null}

@@ -38,7 +38,11 @@ export function VersionActions({ version }: { version: VersionDetail }) {
     setIssues({});
     setDone(null);
     setText(a === "submit" ? version.changelog : "");
-    setSemver(version.suggestedSemver && version.semver !== version.suggestedSemver && version.state === "draft" ? version.suggestedSemver : version.semver);
+    setSemver(
+      version.suggestedSemver && version.semver !== version.suggestedSemver && version.state === "draft"
+        ? version.suggestedSemver
+        : version.semver,
+    );
   };
 
   const run = async () => {
@@ -47,7 +51,10 @@ export function VersionActions({ version }: { version: VersionDetail }) {
       if (open === "submit") {
         const body = submitBody.safeParse({ changelog: text });
         const sv = semverSchema.safeParse(semver.trim());
-        const found = { ...(body.success ? {} : zodFieldIssues(body.error)), ...(sv.success ? {} : { semver: sv.error.issues[0]?.message ?? "not a version" }) };
+        const found = {
+          ...(body.success ? {} : zodFieldIssues(body.error)),
+          ...(sv.success ? {} : { semver: sv.error.issues[0]?.message ?? "not a version" }),
+        };
         if (Object.keys(found).length) return setIssues(found);
         if (sv.data !== version.semver) await patch.mutateAsync({ semver: sv.data });
         await act.mutateAsync({ action: "submit", changelog: body.data!.changelog });
@@ -71,14 +78,27 @@ export function VersionActions({ version }: { version: VersionDetail }) {
     }
   };
 
-  const textLabel = open === "submit" ? "Changelog" : open === "withdraw" ? "Reason for withdrawal" : open === "return" ? "Comment for the curator" : "Comment (optional)";
+  const textLabel =
+    open === "submit"
+      ? "Changelog"
+      : open === "withdraw"
+        ? "Reason for withdrawal"
+        : open === "return"
+          ? "Comment for the curator"
+          : "Comment (optional)";
   const textIssue = issues.changelog ?? issues.comment ?? issues.reason;
   return (
     <Card accessibilityLabel="Review steps">
       <Text variant="heading">Next step</Text>
       <View style={styles.buttons}>
         {[...allowed].map((a) => (
-          <Button key={a} label={titles[a]} tone={a === "withdraw" ? "danger" : open === a ? "primary" : "secondary"} aria-expanded={open === a} onPress={() => choose(a)} />
+          <Button
+            key={a}
+            label={titles[a]}
+            tone={a === "withdraw" ? "danger" : open === a ? "primary" : "secondary"}
+            aria-expanded={open === a}
+            onPress={() => choose(a)}
+          />
         ))}
       </View>
       {open ? (
@@ -90,19 +110,39 @@ export function VersionActions({ version }: { version: VersionDetail }) {
               onChangeText={setSemver}
               error={issues.semver}
               autoCapitalize="none"
-              hint={version.suggestedBump ? `Suggested from the changes: ${version.suggestedBump} → ${version.suggestedSemver}` : "MAJOR.MINOR.PATCH"}
+              hint={
+                version.suggestedBump
+                  ? `Suggested from the changes: ${version.suggestedBump} → ${version.suggestedSemver}`
+                  : "MAJOR.MINOR.PATCH"
+              }
             />
           ) : null}
           {open === "approve" ? (
             <Text variant="caption">Approving publishes v{version.semver}: its rows become immutable and public under its licence.</Text>
           ) : null}
-          <TextField label={textLabel} multiline value={text} onChangeText={setText} error={textIssue}
-            hint={open === "submit" ? "What changed since the last version: site-years added, corrections, dictionary changes." : undefined} />
+          <TextField
+            label={textLabel}
+            multiline
+            value={text}
+            onChangeText={setText}
+            error={textIssue}
+            hint={open === "submit" ? "What changed since the last version: site-years added, corrections, dictionary changes." : undefined}
+          />
           {issues[""] ? <FieldError message={issues[""]} /> : null}
-          <Button label={`Confirm: ${titles[open].toLowerCase()}`} tone={open === "withdraw" ? "danger" : "primary"} busy={act.isPending || patch.isPending} onPress={run} style={styles.left} />
+          <Button
+            label={`Confirm: ${titles[open].toLowerCase()}`}
+            tone={open === "withdraw" ? "danger" : "primary"}
+            busy={act.isPending || patch.isPending}
+            onPress={run}
+            style={styles.left}
+          />
         </View>
       ) : null}
-      {done ? <Text role="status" style={{ color: colors.fieldDark }}>{done}</Text> : null}
+      {done ? (
+        <Text role="status" style={{ color: colors.fieldDark }}>
+          {done}
+        </Text>
+      ) : null}
     </Card>
   );
 }

@@ -35,11 +35,21 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
         )}
         {version.uncomputedSiteYears.length ? (
           <View style={styles.warn}>
-            <Text variant="subheading" style={{ color: colors.wheatText }}>Site-years without responses ({version.uncomputedSiteYears.length})</Text>
-            {version.uncomputedSiteYears.map((u) => <Text key={u.siteYear}>{u.siteYear}: {u.reason}</Text>)}
+            <Text variant="subheading" style={{ color: colors.wheatText }}>
+              Site-years without responses ({version.uncomputedSiteYears.length})
+            </Text>
+            {version.uncomputedSiteYears.map((u) => (
+              <Text key={u.siteYear}>
+                {u.siteYear}: {u.reason}
+              </Text>
+            ))}
           </View>
         ) : null}
-        {version.checksum ? <Text variant="caption" selectable>Checksum {version.checksum}</Text> : null}
+        {version.checksum ? (
+          <Text variant="caption" selectable>
+            Checksum {version.checksum}
+          </Text>
+        ) : null}
       </Card>
 
       <Card>
@@ -56,9 +66,15 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
                   onPress={() => setReportId(reportId === r.id ? null : r.id)}
                   style={StyleSheet.flatten([styles.report, reportId === r.id && styles.reportOn])}
                 >
-                  <Text style={{ color: r.accepted ? colors.fieldDark : colors.danger, fontFamily: fonts.semibold }}>{r.accepted ? "Accepted" : "Rejected"}</Text>
-                  <Text style={styles.grow}>{resourceTitles[r.resource]} · {r.filename}</Text>
-                  <Text variant="caption">{r.errors} errors · {r.warnings} warnings · {formatDay(r.createdAt)}</Text>
+                  <Text style={{ color: r.accepted ? colors.fieldDark : colors.danger, fontFamily: fonts.semibold }}>
+                    {r.accepted ? "Accepted" : "Rejected"}
+                  </Text>
+                  <Text style={styles.grow}>
+                    {resourceTitles[r.resource]} · {r.filename}
+                  </Text>
+                  <Text variant="caption">
+                    {r.errors} errors · {r.warnings} warnings · {formatDay(r.createdAt)}
+                  </Text>
                 </Pressable>
               </View>
             ))}
@@ -66,7 +82,10 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
         )}
         {version.uploads.length ? (
           <Text variant="caption">
-            Stored files: {version.uploads.map((u) => `${u.filename} (${resourceTitles[u.resource]}, ${u.rowCount} rows, ${formatBytes(u.byteSize)})`).join("; ")}
+            Stored files:{" "}
+            {version.uploads
+              .map((u) => `${u.filename} (${resourceTitles[u.resource]}, ${u.rowCount} rows, ${formatBytes(u.byteSize)})`)
+              .join("; ")}
           </Text>
         ) : null}
       </Card>
@@ -81,7 +100,17 @@ const styles = StyleSheet.create({
   count: { minWidth: 96, padding: space.sm, borderRadius: 10, backgroundColor: colors.paper, alignItems: "flex-start" },
   countNum: { fontFamily: fonts.bold, fontSize: 22, lineHeight: 28, fontVariant: ["tabular-nums"] },
   warn: { padding: space.md, borderRadius: 10, backgroundColor: colors.wheatTint, gap: space.xs },
-  report: { minHeight: minTap, flexDirection: "row", flexWrap: "wrap", alignItems: "center", gap: space.md, paddingVertical: space.sm, paddingHorizontal: space.sm, borderBottomWidth: 1, borderBottomColor: colors.line },
+  report: {
+    minHeight: minTap,
+    flexDirection: "row",
+    flexWrap: "wrap",
+    alignItems: "center",
+    gap: space.md,
+    paddingVertical: space.sm,
+    paddingHorizontal: space.sm,
+    borderBottomWidth: 1,
+    borderBottomColor: colors.line,
+  },
   reportOn: { backgroundColor: colors.fieldTint },
   grow: { flexGrow: 1 },
 });

@@ -39,7 +39,16 @@ export function VersionTimeline({ versions }: { versions: VersionBrief[] }) {
 const styles = StyleSheet.create({
   list: { gap: 0, borderLeftWidth: 2, borderLeftColor: colors.line, marginLeft: 6 },
   item: { flexDirection: "row", gap: space.md, paddingBottom: space.lg },
-  dot: { width: 12, height: 12, borderRadius: 6, backgroundColor: colors.card, borderWidth: 2, borderColor: colors.muted, marginLeft: -7, marginTop: 6 },
+  dot: {
+    width: 12,
+    height: 12,
+    borderRadius: 6,
+    backgroundColor: colors.card,
+    borderWidth: 2,
+    borderColor: colors.muted,
+    marginLeft: -7,
+    marginTop: 6,
+  },
   dotOn: { backgroundColor: colors.field, borderColor: colors.field },
   dotOff: { backgroundColor: colors.danger, borderColor: colors.danger },
   body: { flex: 1, gap: space.xs, minHeight: minTap },

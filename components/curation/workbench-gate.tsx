@@ -31,7 +31,9 @@ export function WorkbenchGate({ children }: { children: (user: SessionUser) => R
     );
   }
   if (!workbenchRoles.has(user.role)) {
-    return <EmptyState title="The workbench is for curators and reviewers" hint="Ask an administrator if you need to publish trial data." />;
+    return (
+      <EmptyState title="The workbench is for curators and reviewers" hint="Ask an administrator if you need to publish trial data." />
+    );
   }
   return <>{children(user)}</>;
 }

@@ -24,7 +24,12 @@ export function DataDictionary({ schema }: { schema: TableSchemaDescriptor }) {
   return (
     <View style={styles.stack} testID="data-dictionary">
       {entries.map(([name, resource]) => (
-        <Disclosure key={name} title={resourceTitles[name as ResourceName] ?? name} hint={`${resource!.fields.length} fields${resource!.primaryKey ? ` · key ${resource!.primaryKey.join(", ")}` : ""}`} testID={`dictionary-${name}`}>
+        <Disclosure
+          key={name}
+          title={resourceTitles[name as ResourceName] ?? name}
+          hint={`${resource!.fields.length} fields${resource!.primaryKey ? ` · key ${resource!.primaryKey.join(", ")}` : ""}`}
+          testID={`dictionary-${name}`}
+        >
           <View style={styles.fields}>
             {resource!.fields.map((f) => (
               <View key={f.name} style={styles.field}>

@@ -23,11 +23,17 @@ function VersionEntry({ v }: { v: VersionSummary }) {
         v{v.semver} {withdrawn ? "· withdrawn" : ""}
       </Text>
       <Text variant="caption">
-        {withdrawn ? `Withdrawn ${v.withdrawnAt?.slice(0, 10) ?? ""}: ${v.withdrawnReason ?? "no reason given"}` : `Published ${v.publishedAt?.slice(0, 10) ?? ""}`}
+        {withdrawn
+          ? `Withdrawn ${v.withdrawnAt?.slice(0, 10) ?? ""}: ${v.withdrawnReason ?? "no reason given"}`
+          : `Published ${v.publishedAt?.slice(0, 10) ?? ""}`}
         {v.doi ? ` · DOI ${v.doi}` : ""} · {v.licence}
       </Text>
       {v.changelog ? <Text>{v.changelog}</Text> : null}
-      {v.checksum && !withdrawn ? <Text variant="caption" selectable>SHA-256 {v.checksum.slice(0, 16)}…</Text> : null}
+      {v.checksum && !withdrawn ? (
+        <Text variant="caption" selectable>
+          SHA-256 {v.checksum.slice(0, 16)}…
+        </Text>
+      ) : null}
     </View>
   );
 }
@@ -44,7 +50,14 @@ function Tombstone({ v, newest }: { v: VersionSummary; newest: VersionSummary | 
         Its data are no longer served; this page keeps its record{v.doi ? `, and its DOI ${v.doi} still resolves here` : ""}.
         {newest ? ` The newest published version is v${newest.semver}.` : ""}
       </Text>
-      {newest ? <Button label={`Open v${newest.semver}`} tone="secondary" onPress={() => router.setParams({ version: newest.semver })} style={styles.left} /> : null}
+      {newest ? (
+        <Button
+          label={`Open v${newest.semver}`}
+          tone="secondary"
+          onPress={() => router.setParams({ version: newest.semver })}
+          style={styles.left}
+        />
+      ) : null}
     </Card>
   );
 }
@@ -61,8 +74,18 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
   const semver = asked?.semver ?? published[0]?.semver ?? null;
   const schema = useVersionSchema(slug, semver);
 
-  if (detail.isPending) return <Screen title="Dataset"><LoadingState label="Loading the dataset…" /></Screen>;
-  if (detail.isError) return <Screen title="Dataset"><ErrorState error={detail.error} onRetry={() => detail.refetch()} /></Screen>;
+  if (detail.isPending)
+    return (
+      <Screen title="Dataset">
+        <LoadingState label="Loading the dataset…" />
+      </Screen>
+    );
+  if (detail.isError)
+    return (
+      <Screen title="Dataset">
+        <ErrorState error={detail.error} onRetry={() => detail.refetch()} />
+      </Screen>
+    );
   const d = detail.data;
   const current = d.versions.find((v) => v.semver === semver) ?? null;
   const resources = schema.data ? Object.keys(schema.data.resources) : [];
@@ -79,9 +102,13 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
         <Text>{d.description}</Text>
         {d.methods ? <Text variant="caption">Methods: {d.methods}</Text> : null}
         {d.funding ? <Text variant="caption">Funding: {d.funding}</Text> : null}
-        {d.contributors.length ? <Text variant="caption">Contributors: {d.contributors.map((c) => `${c.name} (${c.role.replace("_", " ")})`).join(", ")}</Text> : null}
+        {d.contributors.length ? (
+          <Text variant="caption">Contributors: {d.contributors.map((c) => `${c.name} (${c.role.replace("_", " ")})`).join(", ")}</Text>
+        ) : null}
         {d.keywords.length ? <Text variant="caption">Keywords: {d.keywords.join(", ")}</Text> : null}
-        <Text variant="label" testID="dataset-licence">Licence: {d.licence}</Text>
+        <Text variant="label" testID="dataset-licence">
+          Licence: {d.licence}
+        </Text>
         <Button
           label="Analyse this dataset"
           testID="analyse-dataset"
@@ -91,7 +118,10 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
       </Card>
       {version && !asked ? (
         <Card testID="version-not-found">
-          <Text>This dataset has no version {version}{published[0] ? `; showing the newest, v${published[0].semver}` : ""}.</Text>
+          <Text>
+            This dataset has no version {version}
+            {published[0] ? `; showing the newest, v${published[0].semver}` : ""}.
+          </Text>
         </Card>
       ) : null}
       {published.length > 1 ? (
@@ -121,11 +151,23 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
       ) : null}
       <Card>
         <Text variant="heading">Data dictionary{semver ? ` (v${semver})` : ""}</Text>
-        {schema.isPending && semver ? <LoadingState label="Loading the data dictionary…" /> : schema.isError ? <ErrorState error={schema.error} onRetry={() => schema.refetch()} /> : schema.data ? <DataDictionary schema={schema.data} /> : <Text variant="caption">No published version yet.</Text>}
+        {schema.isPending && semver ? (
+          <LoadingState label="Loading the data dictionary…" />
+        ) : schema.isError ? (
+          <ErrorState error={schema.error} onRetry={() => schema.refetch()} />
+        ) : schema.data ? (
+          <DataDictionary schema={schema.data} />
+        ) : (
+          <Text variant="caption">No published version yet.</Text>
+        )}
       </Card>
       <Card testID="versions">
         <Text variant="heading">Versions</Text>
-        {d.versions.length ? d.versions.map((v) => <VersionEntry key={v.semver} v={v} />) : <Text variant="caption">No published versions.</Text>}
+        {d.versions.length ? (
+          d.versions.map((v) => <VersionEntry key={v.semver} v={v} />)
+        ) : (
+          <Text variant="caption">No published versions.</Text>
+        )}
       </Card>
     </Screen>
   );

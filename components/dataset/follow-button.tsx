@@ -18,7 +18,11 @@ export function FollowButton({ slug, title }: { slug: string; title: string }) {
   if (session.isPending) return null;
   if (!signedIn) {
     return (
-      <Link href={`/sign-in?next=${encodeURIComponent(`/datasets/${slug}`)}`} style={styles.link} accessibilityLabel={`Sign in to follow new versions of ${title}`}>
+      <Link
+        href={`/sign-in?next=${encodeURIComponent(`/datasets/${slug}`)}`}
+        style={styles.link}
+        accessibilityLabel={`Sign in to follow new versions of ${title}`}
+      >
         Sign in to follow new versions
       </Link>
     );
@@ -35,7 +39,11 @@ export function FollowButton({ slug, title }: { slug: string; title: string }) {
         testID="follow-dataset"
       />
       <Text variant="caption" style={styles.hint} role="status">
-        {toggle.isError ? `Could not change that: ${toggle.error.message}` : following ? "You get an e-mail when a new version is published." : "Get an e-mail when a new version is published."}
+        {toggle.isError
+          ? `Could not change that: ${toggle.error.message}`
+          : following
+            ? "You get an e-mail when a new version is published."
+            : "Get an e-mail when a new version is published."}
       </Text>
     </View>
   );

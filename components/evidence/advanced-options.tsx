@@ -16,7 +16,16 @@ export function AdvancedOptions({ value, onChange }: { value: MethodOptions; onC
   return (
     <Disclosure title="Advanced" hint="Effect size, τ² method, CI method" testID="advanced-toggle">
       <View style={{ gap: space.md }}>
-        <ChoiceChips label="Effect" testID="opt-effect" choices={[{ value: "md", label: "Yield difference" }, { value: "lnrr", label: "Log response ratio" }]} selected={[value.effect]} onToggle={(effect) => onChange({ ...value, effect })} />
+        <ChoiceChips
+          label="Effect"
+          testID="opt-effect"
+          choices={[
+            { value: "md", label: "Yield difference" },
+            { value: "lnrr", label: "Log response ratio" },
+          ]}
+          selected={[value.effect]}
+          onToggle={(effect) => onChange({ ...value, effect })}
+        />
         <ChoiceChips
           label="τ² method"
           testID="opt-method"
@@ -29,8 +38,19 @@ export function AdvancedOptions({ value, onChange }: { value: MethodOptions; onC
           selected={[value.method]}
           onToggle={(method) => onChange({ ...value, method })}
         />
-        <ChoiceChips label="CI method" testID="opt-ci" choices={[{ value: "hksj", label: "HKSJ (t)" }, { value: "wald", label: "Wald (z)" }]} selected={[value.ci]} onToggle={(ci) => onChange({ ...value, ci })} />
-        <Text variant="caption">Defaults: REML τ², Hartung–Knapp–Sidik–Jonkman CI, prediction interval with t(k − 2) (Veroniki et al. 2016; IntHout et al. 2014).</Text>
+        <ChoiceChips
+          label="CI method"
+          testID="opt-ci"
+          choices={[
+            { value: "hksj", label: "HKSJ (t)" },
+            { value: "wald", label: "Wald (z)" },
+          ]}
+          selected={[value.ci]}
+          onToggle={(ci) => onChange({ ...value, ci })}
+        />
+        <Text variant="caption">
+          Defaults: REML τ², Hartung–Knapp–Sidik–Jonkman CI, prediction interval with t(k − 2) (Veroniki et al. 2016; IntHout et al. 2014).
+        </Text>
       </View>
     </Disclosure>
   );

@@ -11,7 +11,9 @@ function CopyRow({ label, text, testID }: { label: string; text: string; testID:
   const [copied, setCopied] = useState(false);
   return (
     <View style={styles.row}>
-      <Text variant="mono" selectable style={styles.code} testID={testID}>{text}</Text>
+      <Text variant="mono" selectable style={styles.code} testID={testID}>
+        {text}
+      </Text>
       <Button
         label={copied ? "Copied" : `Copy ${label}`}
         tone="secondary"
@@ -34,7 +36,9 @@ export function ApiLinkPanel({ apiUrl }: { apiUrl: string }) {
       <CopyRow label="URL" text={apiUrl} testID="api-url" />
       <CopyRow label="curl line" text={curlCommand(apiUrl)} testID="api-curl" />
       <CopyRow label="CSV URL" text={`${apiUrl}${apiUrl.includes("?") ? "&" : "?"}format=csv`} testID="api-csv" />
-      <Text variant="caption">Your prices are not in these links. A script can add price= ($/bu) and cost= ($/ac) to get the break-even numbers in the answer.</Text>
+      <Text variant="caption">
+        Your prices are not in these links. A script can add price= ($/bu) and cost= ($/ac) to get the break-even numbers in the answer.
+      </Text>
     </Disclosure>
   );
 }
@@ -44,5 +48,12 @@ export { CopyRow };
 const styles = StyleSheet.create({
   row: { gap: space.sm },
   // Long URLs break anywhere rather than widen the page.
-  code: { backgroundColor: colors.paper, borderRadius: radius.sm, padding: space.sm, borderWidth: 1, borderColor: colors.line, wordBreak: "break-all" } as object,
+  code: {
+    backgroundColor: colors.paper,
+    borderRadius: radius.sm,
+    padding: space.sm,
+    borderWidth: 1,
+    borderColor: colors.line,
+    wordBreak: "break-all",
+  } as object,
 });

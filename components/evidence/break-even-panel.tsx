@@ -15,7 +15,19 @@ const fields: { key: PriceKey; label: string; unit: string; testID: string }[] =
   { key: "price", label: "Grain price", unit: "$/bu", testID: "price-input" },
 ];
 
-function MoneyField({ label, unit, value, onValue, testID }: { label: string; unit: string; value: number | undefined; onValue: (v: number | undefined) => void; testID: string }) {
+function MoneyField({
+  label,
+  unit,
+  value,
+  onValue,
+  testID,
+}: {
+  label: string;
+  unit: string;
+  value: number | undefined;
+  onValue: (v: number | undefined) => void;
+  testID: string;
+}) {
   const [text, setText] = useState(value === undefined ? "" : String(value));
   const parsed = parseMoneyInput(text);
   const invalid = Number.isNaN(parsed) || (label === "Grain price" && parsed === 0);
@@ -33,7 +45,9 @@ function MoneyField({ label, unit, value, onValue, testID }: { label: string; un
   }, [parsed, invalid, value]);
   return (
     <View style={styles.field}>
-      <Text variant="label" nativeID={`${testID}-label`}>{label} ({unit})</Text>
+      <Text variant="label" nativeID={`${testID}-label`}>
+        {label} ({unit})
+      </Text>
       <TextInput
         value={text}
         onChangeText={setText}
@@ -45,7 +59,11 @@ function MoneyField({ label, unit, value, onValue, testID }: { label: string; un
         testID={testID}
         style={[styles.input, invalid && styles.inputInvalid]}
       />
-      {invalid ? <Text variant="caption" style={{ color: colors.danger }}>Enter an amount such as 4.80{label === "Grain price" ? " (more than 0)" : ""}.</Text> : null}
+      {invalid ? (
+        <Text variant="caption" style={{ color: colors.danger }}>
+          Enter an amount such as 4.80{label === "Grain price" ? " (more than 0)" : ""}.
+        </Text>
+      ) : null}
     </View>
   );
 }
@@ -57,7 +75,15 @@ const chanceExplanation =
   "responses also carry each trial's own plot noise, so the two differ most with few site-years, noisy trials or a break-even near the mean.";
 
 /** The predictive chance and the observed share of one event, as bars on one 0–100 % scale. */
-function PredictedAndObserved({ predicted, observed, what }: { predicted: number | null; observed: number | null; what: [string, string] }) {
+function PredictedAndObserved({
+  predicted,
+  observed,
+  what,
+}: {
+  predicted: number | null;
+  observed: number | null;
+  what: [string, string];
+}) {
   return (
     <ChanceBars
       testID="chance-bars"
@@ -73,54 +99,96 @@ function PredictedAndObserved({ predicted, observed, what }: { predicted: number
  * "Does it pay?": costs and price → break-even response and the chance a new site-year clears it. Everything here is
  * computed on the device from the answer's predictive distribution and observed responses; no price is sent.
  */
-export function BreakEvenPanel({ result, prices, onPrices }: { result: MetaAnalysisResponse; prices: Prices; onPrices: (p: Prices) => void }) {
+export function BreakEvenPanel({
+  result,
+  prices,
+  onPrices,
+}: {
+  result: MetaAnalysisResponse;
+  prices: Prices;
+  onPrices: (p: Prices) => void;
+}) {
   const d = result.decision;
   const u = result.units;
-  const local = pricedDecision(prices, { unitsPerBushel: d.breakEvenUnitsPerBushel, predictive: d.predictive, observedResponses: d.observedResponses });
+  const local = pricedDecision(prices, {
+    unitsPerBushel: d.breakEvenUnitsPerBushel,
+    predictive: d.predictive,
+    observedResponses: d.observedResponses,
+  });
   const missing = local.pricePerBushel === null || local.costPerAcre === null;
   return (
     <Card testID="break-even-panel">
       <Text variant="heading">Does it pay?</Text>
       <Text variant="caption" testID="prices-stay">
-        Your prices stay on this device: the break-even and the chances are worked out here, and nothing you type is sent. The chance is for a new site-year like these trials, not a promise for one field.
+        Your prices stay on this device: the break-even and the chances are worked out here, and nothing you type is sent. The chance is for
+        a new site-year like these trials, not a promise for one field.
       </Text>
       <View style={styles.fields}>
         {fields.map((f) => (
-          <MoneyField key={f.key} label={f.label} unit={f.unit} testID={f.testID} value={prices[f.key]} onValue={(v) => onPrices({ ...prices, [f.key]: v })} />
+          <MoneyField
+            key={f.key}
+            label={f.label}
+            unit={f.unit}
+            testID={f.testID}
+            value={prices[f.key]}
+            onValue={(v) => onPrices({ ...prices, [f.key]: v })}
+          />
         ))}
       </View>
       {local.breakEven !== null ? (
         <View style={styles.results}>
           <Text testID="break-even">
-            Break-even: {formatResponse(local.breakEven, u).replace("+", "")} {unitLabel(u)} ({formatMoney(local.costPerAcre ?? 0)}/ac ÷ {formatMoney(local.pricePerBushel ?? 0)}/bu)
+            Break-even: {formatResponse(local.breakEven, u).replace("+", "")} {unitLabel(u)} ({formatMoney(local.costPerAcre ?? 0)}/ac ÷{" "}
+            {formatMoney(local.pricePerBushel ?? 0)}/bu)
           </Text>
-          <Text variant="number" testID="probability-profit" accessibilityLabel={`Chance of a profitable response ${formatPercent(local.probabilityAboveBreakEven)}`}>
+          <Text
+            variant="number"
+            testID="probability-profit"
+            accessibilityLabel={`Chance of a profitable response ${formatPercent(local.probabilityAboveBreakEven)}`}
+          >
             {formatPercent(local.probabilityAboveBreakEven)}
           </Text>
           <Text>chance that a new site-year's response beats the break-even</Text>
           <Text variant="caption" testID="share-above-break-even">
-            In these trials, {formatPercent(local.shareAboveBreakEven)} of site-years beat it; {formatPercent(d.shareAboveZero)} gained any yield. Chance of any gain on a new site-year: {formatPercent(d.probabilityAboveZero)}.
+            In these trials, {formatPercent(local.shareAboveBreakEven)} of site-years beat it; {formatPercent(d.shareAboveZero)} gained any
+            yield. Chance of any gain on a new site-year: {formatPercent(d.probabilityAboveZero)}.
           </Text>
-          <PredictedAndObserved predicted={local.probabilityAboveBreakEven} observed={local.shareAboveBreakEven} what={["beats the break-even", "beat it"]} />
+          <PredictedAndObserved
+            predicted={local.probabilityAboveBreakEven}
+            observed={local.shareAboveBreakEven}
+            what={["beats the break-even", "beat it"]}
+          />
         </View>
       ) : (
         <View style={styles.results}>
           <Text variant="caption" testID="probability-above-zero">
-            Chance of any gain on a new site-year: {formatPercent(d.probabilityAboveZero)}; in these trials {formatPercent(d.shareAboveZero)} of site-years gained.
+            Chance of any gain on a new site-year: {formatPercent(d.probabilityAboveZero)}; in these trials{" "}
+            {formatPercent(d.shareAboveZero)} of site-years gained.
           </Text>
           <PredictedAndObserved predicted={d.probabilityAboveZero} observed={d.shareAboveZero} what={["gains any yield", "gained"]} />
-          {missing && d.breakEvenUnitsPerBushel !== null ? <Text variant="caption">Give a grain price and a cost for the break-even and the chance it pays.</Text> : null}
+          {missing && d.breakEvenUnitsPerBushel !== null ? (
+            <Text variant="caption">Give a grain price and a cost for the break-even and the chance it pays.</Text>
+          ) : null}
         </View>
       )}
       {d.observedResponses === null && local.breakEven !== null ? (
-        <Text variant="caption">• Too many site-years to send each response to this device, so the observed share at your break-even is not shown; the API gives it with price= and cost=.</Text>
+        <Text variant="caption">
+          • Too many site-years to send each response to this device, so the observed share at your break-even is not shown; the API gives
+          it with price= and cost=.
+        </Text>
       ) : null}
-      <Text variant="caption" testID="chance-explained">{chanceExplanation}</Text>
-      {d.breakEvenUnitsPerBushel === null ? <Text variant="caption">• No break-even here: it needs a yield response in bu/ac, or in kg/ha for one crop.</Text> : null}
+      <Text variant="caption" testID="chance-explained">
+        {chanceExplanation}
+      </Text>
+      {d.breakEvenUnitsPerBushel === null ? (
+        <Text variant="caption">• No break-even here: it needs a yield response in bu/ac, or in kg/ha for one crop.</Text>
+      ) : null}
       {d.notes
         .filter((n) => !/^Give a grain price/.test(n))
         .map((n) => (
-          <Text key={n} variant="caption">• {n}</Text>
+          <Text key={n} variant="caption">
+            • {n}
+          </Text>
         ))}
     </Card>
   );

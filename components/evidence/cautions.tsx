@@ -13,21 +13,29 @@ export function Cautions({ cautions }: { cautions: Caution[] }) {
   const untripped = cautions.filter((c) => !c.matches && !c.standing);
   return (
     <View style={styles.box} role="note" aria-label="Cautions" testID="cautions">
-      <Text variant="subheading" style={{ color: colors.wheatText }}>Before you act on this</Text>
+      <Text variant="subheading" style={{ color: colors.wheatText }}>
+        Before you act on this
+      </Text>
       {matching.map((c) => (
         <View key={c.code} style={styles.match} testID={`caution-${c.code}`}>
-          <Text variant="caption" style={styles.strong}>• {c.text}</Text>
+          <Text variant="caption" style={styles.strong}>
+            • {c.text}
+          </Text>
           {c.treatments.map((t) => (
             <Text key={`${t.dataset}/${t.treatment}/${t.detail}`} variant="caption" style={styles.text}>
               {"   "}
               {t.treatment} ({t.dataset}): {t.detail}
             </Text>
           ))}
-          <Text variant="caption" style={styles.source}>{"   "}Source: {c.source}</Text>
+          <Text variant="caption" style={styles.source}>
+            {"   "}Source: {c.source}
+          </Text>
         </View>
       ))}
       {standing.map((c) => (
-        <Text key={c.code} variant="caption" style={styles.text} testID={`caution-${c.code}`}>• {c.text}</Text>
+        <Text key={c.code} variant="caption" style={styles.text} testID={`caution-${c.code}`}>
+          • {c.text}
+        </Text>
       ))}
       {untripped.length > 0 && (
         <Text variant="caption" style={styles.source} testID="cautions-untripped">

@@ -21,18 +21,32 @@ export function ChanceBars({ bars, testID }: { bars: ChanceBar[]; testID?: strin
       {bars.map((b) => (
         <View key={b.label} style={styles.row}>
           <View style={styles.head}>
-            <Text variant="caption" style={styles.label}>{b.label}</Text>
-            <Text variant="caption" style={styles.value}>{formatPercent(b.value)}</Text>
+            <Text variant="caption" style={styles.label}>
+              {b.label}
+            </Text>
+            <Text variant="caption" style={styles.value}>
+              {formatPercent(b.value)}
+            </Text>
           </View>
           <View style={styles.track}>
-            {b.value !== null ? <View style={[styles.fill, b.kind === "observed" && styles.fillObserved, { width: `${Math.max(0, Math.min(1, b.value)) * 100}%` }]} /> : null}
+            {b.value !== null ? (
+              <View
+                style={[
+                  styles.fill,
+                  b.kind === "observed" && styles.fillObserved,
+                  { width: `${Math.max(0, Math.min(1, b.value)) * 100}%` },
+                ]}
+              />
+            ) : null}
             <View style={styles.half} />
           </View>
         </View>
       ))}
       <View style={styles.axis}>
         {["0 %", "50 %", "100 %"].map((t) => (
-          <Text key={t} variant="caption">{t}</Text>
+          <Text key={t} variant="caption">
+            {t}
+          </Text>
         ))}
       </View>
     </View>

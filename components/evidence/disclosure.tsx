@@ -29,7 +29,9 @@ export function Disclosure({
         onPress={() => setOpen((o) => !o)}
         style={({ focused }: { pressed: boolean; focused?: boolean }) => [styles.head, focused && styles.focused]}
       >
-        <Text style={styles.chevron} aria-hidden>{open ? "▾" : "▸"}</Text>
+        <Text style={styles.chevron} aria-hidden>
+          {open ? "▾" : "▸"}
+        </Text>
         <View style={styles.titles}>
           <Text style={styles.title}>{title}</Text>
           {hint ? <Text variant="caption">{hint}</Text> : null}
@@ -42,7 +44,15 @@ export function Disclosure({
 
 const styles = StyleSheet.create({
   box: { gap: space.sm },
-  head: { minHeight: minTap, flexDirection: "row", alignItems: "center", gap: space.sm, borderRadius: 8, borderWidth: 2, borderColor: "transparent" },
+  head: {
+    minHeight: minTap,
+    flexDirection: "row",
+    alignItems: "center",
+    gap: space.sm,
+    borderRadius: 8,
+    borderWidth: 2,
+    borderColor: "transparent",
+  },
   focused: { borderColor: colors.focus },
   chevron: { width: 18, color: colors.fieldDark, fontFamily: fonts.bold },
   titles: { flex: 1 },

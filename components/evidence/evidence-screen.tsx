@@ -15,7 +15,16 @@ import { useLayout } from "@/hooks/use-layout";
 import { apiUrl } from "@/lib/api-client";
 import { ApiError } from "@/lib/api-error";
 import { loadPrices, savePrices } from "@/lib/device-storage";
-import { countActiveFilters, evidenceStateFromParams, metaApiPath, priceKeys, routerParams, shareUrl, type EvidenceState, type Prices } from "@/lib/share-link";
+import {
+  countActiveFilters,
+  evidenceStateFromParams,
+  metaApiPath,
+  priceKeys,
+  routerParams,
+  shareUrl,
+  type EvidenceState,
+  type Prices,
+} from "@/lib/share-link";
 import type { MetaAnalysisResponse } from "@/schemas/analysis";
 import { AdvancedOptions } from "./advanced-options";
 import { ApiLinkPanel, CopyRow } from "./api-link-panel";
@@ -98,7 +107,10 @@ function plotSummary(result: MetaAnalysisResponse): string {
 function scatterSummary(result: MetaAnalysisResponse): string {
   const byClass = new Map<string, number[]>();
   for (const r of result.rows) if (r.soilTestClass) byClass.set(r.soilTestClass, [...(byClass.get(r.soilTestClass) ?? []), r.estimate]);
-  const parts = [...byClass.entries()].map(([c, v]) => `${c.replace("_", " ")}: ${v.length} site-years, mean ${formatResponse(v.reduce((a, b) => a + b, 0) / v.length, result.units)}`);
+  const parts = [...byClass.entries()].map(
+    ([c, v]) =>
+      `${c.replace("_", " ")}: ${v.length} site-years, mean ${formatResponse(v.reduce((a, b) => a + b, 0) / v.length, result.units)}`,
+  );
   return `Scatter of response against soil-test value. ${parts.join("; ")}.`;
 }
 
@@ -106,8 +118,19 @@ function scatterSummary(result: MetaAnalysisResponse): string {
 function forestGroups(result: MetaAnalysisResponse, groupBy: EvidenceState["groupBy"]): ForestGroup[] {
   const levels = result.subgroups?.levels ?? [];
   if (levels.length === 0) return [];
-  const styleOf = groupStyles(groupBy, levels.map((l) => l.level));
-  return levels.map((l) => ({ level: l.level, label: levelLabel(l.level, levelLabels), k: l.k, estimate: l.estimate, ciLower: l.ciLower, ciUpper: l.ciUpper, ...styleOf.get(l.level)! }));
+  const styleOf = groupStyles(
+    groupBy,
+    levels.map((l) => l.level),
+  );
+  return levels.map((l) => ({
+    level: l.level,
+    label: levelLabel(l.level, levelLabels),
+    k: l.k,
+    estimate: l.estimate,
+    ciLower: l.ciLower,
+    ciUpper: l.ciUpper,
+    ...styleOf.get(l.level)!,
+  }));
 }
 
 function groupedSummary(groups: ForestGroup[], units: string): string {
@@ -115,10 +138,27 @@ function groupedSummary(groups: ForestGroup[], units: string): string {
   return ` Grouped: ${groups.map((g) => `${g.label}, k = ${g.k}, subtotal ${formatResponse(g.estimate, units)} (${formatInterval(g.ciLower, g.ciUpper, units)})`).join("; ")}.`;
 }
 
-function Results({ result, state, update, prices, setPrices }: { result: MetaAnalysisResponse; state: EvidenceState; update: (s: EvidenceState) => void; prices: Prices; setPrices: (p: Prices) => void }) {
+function Results({
+  result,
+  state,
+  update,
+  prices,
+  setPrices,
+}: {
+  result: MetaAnalysisResponse;
+  state: EvidenceState;
+  update: (s: EvidenceState) => void;
+  prices: Prices;
+  setPrices: (p: Prices) => void;
+}) {
   const fmt = (v: number) => formatResponse(v, result.units).replace("+", "");
   const pooled = result.pooled
-    ? { estimate: result.pooled.estimate, ciLower: result.pooled.ciLower, ciUpper: result.pooled.ciUpper, prediction: result.pooled.predictionInterval }
+    ? {
+        estimate: result.pooled.estimate,
+        ciLower: result.pooled.ciLower,
+        ciUpper: result.pooled.ciUpper,
+        prediction: result.pooled.predictionInterval,
+      }
     : null;
   const groups = forestGroups(result, state.groupBy);
   return (
@@ -130,10 +170,21 @@ function Results({ result, state, update, prices, setPrices }: { result: MetaAna
       <Card>
         <Disclosure
           title="Forest plot"
-          hint={groups.length > 1 ? `${result.rows.length} rows in ${groups.length} groups, each with its subtotal, then the mean and the range for a new field` : `${result.rows.length} rows, the mean and the range for a new field`}
+          hint={
+            groups.length > 1
+              ? `${result.rows.length} rows in ${groups.length} groups, each with its subtotal, then the mean and the range for a new field`
+              : `${result.rows.length} rows, the mean and the range for a new field`
+          }
           testID="open-forest-plot"
         >
-          <ForestPlot rows={result.rows} pooled={pooled} groups={groups.length > 1 ? groups : undefined} format={fmt} unitLabel={unitLabel(result.units)} summary={plotSummary(result) + (groups.length > 1 ? groupedSummary(groups, result.units) : "")} />
+          <ForestPlot
+            rows={result.rows}
+            pooled={pooled}
+            groups={groups.length > 1 ? groups : undefined}
+            format={fmt}
+            unitLabel={unitLabel(result.units)}
+            summary={plotSummary(result) + (groups.length > 1 ? groupedSummary(groups, result.units) : "")}
+          />
         </Disclosure>
       </Card>
       <Card>
@@ -147,7 +198,10 @@ function Results({ result, state, update, prices, setPrices }: { result: MetaAna
         </Disclosure>
       </Card>
       <Card>
-        <AdvancedOptions value={{ effect: state.effect, method: state.method, ci: state.ci }} onChange={(o) => update({ ...state, ...o })} />
+        <AdvancedOptions
+          value={{ effect: state.effect, method: state.method, ci: state.ci }}
+          onChange={(o) => update({ ...state, ...o })}
+        />
       </Card>
       <ProvenancePanel result={result} />
       <Card>
@@ -225,7 +279,11 @@ export function EvidenceScreen() {
     <LoadingState label="Pooling the site-years…" />
   ) : analysis.data.k === 0 ? (
     <View style={styles.stack} testID="empty-result">
-      <EmptyState title="No site-years match; widen these filters" hint={analysis.data.notes.join(" ")} action={<Button label="Clear filters" tone="secondary" onPress={() => update({ ...state, filters: {} })} />} />
+      <EmptyState
+        title="No site-years match; widen these filters"
+        hint={analysis.data.notes.join(" ")}
+        action={<Button label="Clear filters" tone="secondary" onPress={() => update({ ...state, filters: {} })} />}
+      />
       <Cautions cautions={analysis.data.cautions} />
     </View>
   ) : (
@@ -235,9 +293,15 @@ export function EvidenceScreen() {
   const header = (
     <View style={styles.header}>
       <PageHead title="Evidence" description={evidenceDescription} />
-      <Text variant="title" aria-level={1}>Evidence</Text>
+      <Text variant="title" aria-level={1}>
+        Evidence
+      </Text>
       <Text variant="caption">{evidenceDescription}</Text>
-      {analysis.isFetching && analysis.data ? <Text variant="caption" role="status" aria-live="polite" testID="updating">Updating…</Text> : null}
+      {analysis.isFetching && analysis.data ? (
+        <Text variant="caption" role="status" aria-live="polite" testID="updating">
+          Updating…
+        </Text>
+      ) : null}
     </View>
   );
 
@@ -274,9 +338,28 @@ const styles = StyleSheet.create({
   stack: { gap: space.lg },
   header: { gap: space.xs },
   share: { gap: space.sm, alignItems: "stretch" },
-  check: { minHeight: minTap, flexDirection: "row", alignItems: "center", gap: space.sm, alignSelf: "flex-start", paddingRight: space.sm, borderWidth: 2, borderColor: "transparent", borderRadius: radius.sm },
+  check: {
+    minHeight: minTap,
+    flexDirection: "row",
+    alignItems: "center",
+    gap: space.sm,
+    alignSelf: "flex-start",
+    paddingRight: space.sm,
+    borderWidth: 2,
+    borderColor: "transparent",
+    borderRadius: radius.sm,
+  },
   checkFocused: { borderColor: colors.focus },
-  box: { width: 22, height: 22, borderRadius: 4, borderWidth: 2, borderColor: colors.muted, alignItems: "center", justifyContent: "center", backgroundColor: colors.card },
+  box: {
+    width: 22,
+    height: 22,
+    borderRadius: 4,
+    borderWidth: 2,
+    borderColor: colors.muted,
+    alignItems: "center",
+    justifyContent: "center",
+    backgroundColor: colors.card,
+  },
   boxOn: { backgroundColor: colors.field, borderColor: colors.field },
   tick: { color: "#ffffff", fontSize: 14, lineHeight: 16 },
   wideRoot: { flex: 1, flexDirection: "row" },

@@ -21,8 +21,10 @@ export function ProvenancePanel({ result }: { result: MetaAnalysisResponse }) {
         </Text>
       ))}
       <Text variant="caption">
-        {p.k} site-years used from {p.contrastsRead} treatment-vs-check responses; {p.excluded.length} site-year{p.excluded.length === 1 ? "" : "s"} left out. Method: {p.method}
-        {p.method === "FE" ? "" : " τ²"}, {p.ci === "hksj" ? "HKSJ" : "Wald"} CI, effect {p.effect === "md" ? "yield difference" : "log response ratio"} in {p.units}.
+        {p.k} site-years used from {p.contrastsRead} treatment-vs-check responses; {p.excluded.length} site-year
+        {p.excluded.length === 1 ? "" : "s"} left out. Method: {p.method}
+        {p.method === "FE" ? "" : " τ²"}, {p.ci === "hksj" ? "HKSJ" : "Wald"} CI, effect{" "}
+        {p.effect === "md" ? "yield difference" : "log response ratio"} in {p.units}.
       </Text>
       <Text variant="caption" testID="nutrient-rule">
         Nutrient rule: {p.nutrientRule.text}

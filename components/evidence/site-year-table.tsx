@@ -16,7 +16,11 @@ import type { ForestRow } from "@/schemas/analysis";
 import { soilTestClassLabels } from "@/constants/vocabulary";
 import { formatInterval, formatResponse, formatPValue, levelLabel } from "./format";
 
-const features = tableFeatures({ rowSortingFeature, sortedRowModel: createSortedRowModel(), sortFns: { alphanumeric: sortFn_alphanumeric, basic: sortFn_basic } });
+const features = tableFeatures({
+  rowSortingFeature,
+  sortedRowModel: createSortedRowModel(),
+  sortFns: { alphanumeric: sortFn_alphanumeric, basic: sortFn_basic },
+});
 const helper = createColumnHelper<typeof features, ForestRow>();
 
 /** Column widths of the table layout; the treatment column takes what is left. */
@@ -38,14 +42,29 @@ function buildColumns(units: string) {
   return helper.columns([
     helper.accessor("siteYearCode", { header: "Site-year", sortFn: "alphanumeric" }),
     helper.accessor(treatmentText, { id: "treatments", header: "Treatment", sortFn: "alphanumeric" }),
-    helper.accessor((r) => r.soilTestValue ?? Number.NEGATIVE_INFINITY, { id: "soil", header: "Soil test", sortFn: "basic", cell: (c) => soilText(c.row.original) }),
+    helper.accessor((r) => r.soilTestValue ?? Number.NEGATIVE_INFINITY, {
+      id: "soil",
+      header: "Soil test",
+      sortFn: "basic",
+      cell: (c) => soilText(c.row.original),
+    }),
     helper.accessor("estimate", {
       header: `Response (${units === "ln(treated/check)" ? "ln" : units})`,
       sortFn: "basic",
       cell: (c) => `${formatResponse(c.getValue(), units)}\n${formatInterval(c.row.original.ciLower, c.row.original.ciUpper, units)}`,
     }),
-    helper.accessor((r) => r.pooledWeightPercent ?? -1, { id: "pooledWeight", header: "Weight in mean", sortFn: "basic", cell: (c) => weightText(c.row.original.pooledWeightPercent) }),
-    helper.accessor((r) => r.pValue ?? 2, { id: "pValue", header: "Own trial", sortFn: "basic", cell: (c) => ownTrialText(c.row.original) }),
+    helper.accessor((r) => r.pooledWeightPercent ?? -1, {
+      id: "pooledWeight",
+      header: "Weight in mean",
+      sortFn: "basic",
+      cell: (c) => weightText(c.row.original.pooledWeightPercent),
+    }),
+    helper.accessor((r) => r.pValue ?? 2, {
+      id: "pValue",
+      header: "Own trial",
+      sortFn: "basic",
+      cell: (c) => ownTrialText(c.row.original),
+    }),
   ]);
 }
 
@@ -54,7 +73,15 @@ function buildColumns(units: string) {
  * narrow for the columns (a phone) the same rows, in the same order, are a list of labelled lines. The weight shown
  * is each site-year's weight in the headline mean above; grouped rows also give their weight within their group.
  */
-export function SiteYearTable({ rows, units, groupLabels = {} }: { rows: ForestRow[]; units: string; groupLabels?: Record<string, string> }) {
+export function SiteYearTable({
+  rows,
+  units,
+  groupLabels = {},
+}: {
+  rows: ForestRow[];
+  units: string;
+  groupLabels?: Record<string, string>;
+}) {
   const columns = useMemo(() => buildColumns(units), [units]);
   const [sorting, setSorting] = useState<SortingState>([]);
   const [width, setWidth] = useState(0);
@@ -65,10 +92,17 @@ export function SiteYearTable({ rows, units, groupLabels = {} }: { rows: ForestR
   return (
     <View onLayout={onLayout} style={styles.box} testID="site-year-box">
       <Text variant="caption">
-        Weight: each site-year's share of the mean above{grouped ? "; in a grouped view each row also shows its weight within its group's subtotal" : ""}.
+        Weight: each site-year's share of the mean above
+        {grouped ? "; in a grouped view each row also shows its weight within its group's subtotal" : ""}.
       </Text>
       {list ? <Text variant="label">Sort by (tap again to reverse)</Text> : null}
-      <View role="table" aria-label="Site-years in this analysis" aria-rowcount={rows.length + 1} testID="site-year-table" style={styles.table}>
+      <View
+        role="table"
+        aria-label="Site-years in this analysis"
+        aria-rowcount={rows.length + 1}
+        testID="site-year-table"
+        style={styles.table}
+      >
         <View role="row" style={[styles.row, styles.headRow, list && styles.sortRow]}>
           {table.getHeaderGroups()[0]!.headers.map((header) => {
             const sorted = header.column.getIsSorted();
@@ -128,12 +162,18 @@ export function SiteYearTable({ rows, units, groupLabels = {} }: { rows: ForestR
           return (
             <View key={row.id} role="row" style={[styles.row, i % 2 === 1 && styles.zebra]} testID={`site-year-row-${r.siteYearCode}`}>
               {row.getAllCells().map((cell) => (
-                <View key={cell.id} role="cell" style={[styles.cell, cell.column.id === "treatments" ? styles.flexCell : { width: widths[cell.column.id] ?? 90 }]}>
+                <View
+                  key={cell.id}
+                  role="cell"
+                  style={[styles.cell, cell.column.id === "treatments" ? styles.flexCell : { width: widths[cell.column.id] ?? 90 }]}
+                >
                   <Text style={styles.cellText}>
                     <table.FlexRender cell={cell} />
                   </Text>
                   {cell.column.id === "treatments" && group ? <Text variant="caption">{group}</Text> : null}
-                  {cell.column.id === "pooledWeight" && group ? <Text variant="caption">{`within group ${weightText(r.weightPercent)}`}</Text> : null}
+                  {cell.column.id === "pooledWeight" && group ? (
+                    <Text variant="caption">{`within group ${weightText(r.weightPercent)}`}</Text>
+                  ) : null}
                 </View>
               ))}
             </View>

@@ -40,7 +40,17 @@ function GroupMarker({ style, level, size = 16 }: { style: GroupStyle; level: st
  * level marked with its colour and shape and given its own decision numbers: the chance that a new site-year of that
  * level gains, or beats the break-even at the prices typed (computed here), beside the share observed.
  */
-export function SubgroupView({ result, groupBy, onGroupBy, prices }: { result: MetaAnalysisResponse; groupBy: Grouping; onGroupBy: (g: Grouping) => void; prices: Prices }) {
+export function SubgroupView({
+  result,
+  groupBy,
+  onGroupBy,
+  prices,
+}: {
+  result: MetaAnalysisResponse;
+  groupBy: Grouping;
+  onGroupBy: (g: Grouping) => void;
+  prices: Prices;
+}) {
   const s = result.subgroups;
   const u = result.units;
   const styleOf = groupStyles(groupBy, s?.levels.map((l) => l.level) ?? []);
@@ -48,7 +58,13 @@ export function SubgroupView({ result, groupBy, onGroupBy, prices }: { result: M
   return (
     <Card testID="subgroup-view">
       <Text variant="heading">By {groupingLabels[groupBy].toLowerCase()}</Text>
-      <ChoiceChips label="Compare by" testID="group-by" choices={groupings.map((g) => ({ value: g, label: groupingLabels[g] }))} selected={[groupBy]} onToggle={onGroupBy} />
+      <ChoiceChips
+        label="Compare by"
+        testID="group-by"
+        choices={groupings.map((g) => ({ value: g, label: groupingLabels[g] }))}
+        selected={[groupBy]}
+        onToggle={onGroupBy}
+      />
       {s && s.levels.length ? (
         <View style={styles.levels}>
           {s.levels.map((l) => {
@@ -60,7 +76,9 @@ export function SubgroupView({ result, groupBy, onGroupBy, prices }: { result: M
                   <GroupMarker style={styleOf.get(l.level)!} level={l.level} />
                 </View>
                 <View style={styles.levelText}>
-                  <Text variant="subheading">{label} · {l.k} site-year{l.k === 1 ? "" : "s"}</Text>
+                  <Text variant="subheading">
+                    {label} · {l.k} site-year{l.k === 1 ? "" : "s"}
+                  </Text>
                   <Text>
                     {formatResponse(l.estimate, u)} {unitLabel(u)} (95 % CI {formatInterval(l.ciLower, l.ciUpper, u)})
                   </Text>
@@ -82,10 +100,15 @@ export function SubgroupView({ result, groupBy, onGroupBy, prices }: { result: M
           <Text variant="caption">{s.model}</Text>
           <Text variant="caption">
             Each group's chance uses its own mean with the spread between site-years shared by all groups (
-            {s.levels.some((l) => l.predictive?.df === null) ? "normal, as the Wald option asks" : "t with k − p df, p the number of groups"}).
+            {s.levels.some((l) => l.predictive?.df === null)
+              ? "normal, as the Wald option asks"
+              : "t with k − p df, p the number of groups"}
+            ).
           </Text>
           {s.notes.map((n) => (
-            <Text key={n} variant="caption">• {n}</Text>
+            <Text key={n} variant="caption">
+              • {n}
+            </Text>
           ))}
         </View>
       ) : (

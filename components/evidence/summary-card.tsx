@@ -7,7 +7,15 @@ import { ChoiceChips } from "@/components/ui/choice-chips";
 import { formatInterval, formatPercent, formatResponse, lnrrAsPercent, unitLabel } from "./format";
 
 /** The headline: mean response with its CI, the range for a new field, k, heterogeneity and own-trial significance. */
-export function SummaryCard({ result, units, onUnits }: { result: MetaAnalysisResponse; units: YieldUnit; onUnits: (u: YieldUnit) => void }) {
+export function SummaryCard({
+  result,
+  units,
+  onUnits,
+}: {
+  result: MetaAnalysisResponse;
+  units: YieldUnit;
+  onUnits: (u: YieldUnit) => void;
+}) {
   const { pooled, heterogeneity, decision, provenance } = result;
   const u = result.units;
   const lnrr = result.effect === "lnrr";
@@ -16,12 +24,25 @@ export function SummaryCard({ result, units, onUnits }: { result: MetaAnalysisRe
       <View style={styles.head}>
         <Text variant="heading">Mean yield response</Text>
         {!lnrr ? (
-          <ChoiceChips label="Units" testID="units-toggle" choices={[{ value: "bu/ac", label: "bu/ac" }, { value: "kg/ha", label: "kg/ha" }]} selected={[units]} onToggle={(v) => onUnits(v as YieldUnit)} />
+          <ChoiceChips
+            label="Units"
+            testID="units-toggle"
+            choices={[
+              { value: "bu/ac", label: "bu/ac" },
+              { value: "kg/ha", label: "kg/ha" },
+            ]}
+            selected={[units]}
+            onToggle={(v) => onUnits(v as YieldUnit)}
+          />
         ) : null}
       </View>
       {pooled ? (
         <>
-          <Text variant="number" testID="pooled-estimate" accessibilityLabel={`Mean response ${formatResponse(pooled.estimate, u)} ${unitLabel(u)}`}>
+          <Text
+            variant="number"
+            testID="pooled-estimate"
+            accessibilityLabel={`Mean response ${formatResponse(pooled.estimate, u)} ${unitLabel(u)}`}
+          >
             {formatResponse(pooled.estimate, u)} <Text style={styles.unit}>{unitLabel(u)}</Text>
             {lnrr ? <Text style={styles.unit}> ({lnrrAsPercent(pooled.estimate)})</Text> : null}
           </Text>
@@ -44,7 +65,9 @@ export function SummaryCard({ result, units, onUnits }: { result: MetaAnalysisRe
         <View style={styles.block} testID="heterogeneity">
           <Text>{heterogeneity.plainWords}</Text>
           <Text variant="caption">
-            I² = {heterogeneity.i2Percent === null ? "–" : `${heterogeneity.i2Percent.toFixed(0)} %`} · τ = {lnrr ? heterogeneity.tau.toFixed(3) : `${formatResponse(heterogeneity.tau, u).replace("+", "")} ${unitLabel(u)}`} · Q = {heterogeneity.q.toFixed(1)} on {heterogeneity.df} df
+            I² = {heterogeneity.i2Percent === null ? "–" : `${heterogeneity.i2Percent.toFixed(0)} %`} · τ ={" "}
+            {lnrr ? heterogeneity.tau.toFixed(3) : `${formatResponse(heterogeneity.tau, u).replace("+", "")} ${unitLabel(u)}`} · Q ={" "}
+            {heterogeneity.q.toFixed(1)} on {heterogeneity.df} df
           </Text>
         </View>
       ) : null}
@@ -56,7 +79,9 @@ export function SummaryCard({ result, units, onUnits }: { result: MetaAnalysisRe
       {result.notes.length ? (
         <View style={styles.notes} testID="analysis-notes">
           {result.notes.map((n) => (
-            <Text key={n} variant="caption">• {n}</Text>
+            <Text key={n} variant="caption">
+              • {n}
+            </Text>
           ))}
         </View>
       ) : null}

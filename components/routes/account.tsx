@@ -19,8 +19,18 @@ export default function AccountScreen() {
   const router = useRouter();
   const { wide } = useLayout();
 
-  if (session.isPending) return <Screen title="Account" description={accountDescription}><LoadingState /></Screen>;
-  if (session.isError) return <Screen title="Account" description={accountDescription}><ErrorState error={session.error} onRetry={() => session.refetch()} /></Screen>;
+  if (session.isPending)
+    return (
+      <Screen title="Account" description={accountDescription}>
+        <LoadingState />
+      </Screen>
+    );
+  if (session.isError)
+    return (
+      <Screen title="Account" description={accountDescription}>
+        <ErrorState error={session.error} onRetry={() => session.refetch()} />
+      </Screen>
+    );
   if (!session.data) return <Redirect href={"/sign-in?next=/account"} />;
 
   return (
@@ -32,7 +42,12 @@ export default function AccountScreen() {
         <View style={wide ? { flex: 1, gap: space.lg } : { gap: space.lg, alignSelf: "stretch" }}>
           <FollowedDatasets />
           {session.data.role === "admin" ? <TextLink href="/admin" label="People & roles (admin)" /> : null}
-          <Button label="Sign out" tone="danger" busy={signOut.isPending} onPress={() => signOut.mutate(undefined, { onSuccess: () => router.replace("/sign-in") })} />
+          <Button
+            label="Sign out"
+            tone="danger"
+            busy={signOut.isPending}
+            onPress={() => signOut.mutate(undefined, { onSuccess: () => router.replace("/sign-in") })}
+          />
         </View>
       </View>
     </Screen>

@@ -30,7 +30,9 @@ export default function OutboxMessageScreen() {
         <Card>
           <Text variant="heading">{message.data.subject}</Text>
           <Text variant="caption">{`To ${message.data.to} · ${message.data.kind} · ${new Date(message.data.createdAt).toLocaleString()} · ${message.data.transport}`}</Text>
-          <Text style={styles.body} selectable>{message.data.text}</Text>
+          <Text style={styles.body} selectable>
+            {message.data.text}
+          </Text>
           {message.data.links.length ? <Text variant="subheading">Links</Text> : null}
           {message.data.links.map((link) => (
             <Link key={link} href={hrefOf(link)} asChild>

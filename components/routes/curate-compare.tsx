@@ -34,7 +34,10 @@ function Compare({ slug, from, to }: { slug: string; from?: string; to?: string 
 export default function CompareScreen() {
   const { dataset, from, to } = useLocalSearchParams<{ dataset: string; from?: string; to?: string }>();
   return (
-    <Screen title="Compare versions" subtitle="Site-years, rows and dictionary fields that changed, and the version number that follows from them.">
+    <Screen
+      title="Compare versions"
+      subtitle="Site-years, rows and dictionary fields that changed, and the version number that follows from them."
+    >
       <WorkbenchGate>{() => <Compare slug={dataset ?? ""} from={from} to={to} />}</WorkbenchGate>
     </Screen>
   );

@@ -11,7 +11,11 @@ export default function DatasetDetailsScreen() {
   const dataset = useCurationDataset(slug);
   const update = useUpdateDatasetMutation(slug);
   return (
-    <Screen title="Dataset details" subtitle="Published versions keep the details they were published with; changes apply to the next one." maxWidth={860}>
+    <Screen
+      title="Dataset details"
+      subtitle="Published versions keep the details they were published with; changes apply to the next one."
+      maxWidth={860}
+    >
       <WorkbenchGate>
         {() =>
           dataset.isPending ? (

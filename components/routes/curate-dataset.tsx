@@ -29,7 +29,9 @@ function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
     <>
       <Card>
         <Text variant="heading">{d.title}</Text>
-        <Text variant="label">{d.slug} · {d.crops.join(", ")} · {d.region} · {d.licence}</Text>
+        <Text variant="label">
+          {d.slug} · {d.crops.join(", ")} · {d.region} · {d.licence}
+        </Text>
         <Text numberOfLines={4}>{d.description}</Text>
         {d.keywords.length ? <Text variant="caption">Keywords: {d.keywords.join(", ")}</Text> : null}
         {d.contributors.length ? (
@@ -43,7 +45,11 @@ function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
 
       <View style={styles.row}>
         {open ? (
-          <LinkButton href={`/curate/versions/${open.id}`} tone="primary" label={`${open.state === "draft" ? "Continue draft" : "Open version in review"} v${open.semver}`} />
+          <LinkButton
+            href={`/curate/versions/${open.id}`}
+            tone="primary"
+            label={`${open.state === "draft" ? "Continue draft" : "Open version in review"} v${open.semver}`}
+          />
         ) : null}
         {canStartVersion(user, d) ? (
           <Button
@@ -58,7 +64,9 @@ function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
       </View>
       {start.isError ? <FieldError message={start.error.message} /> : null}
       {!first && canStartVersion(user, d) ? (
-        <Text variant="caption">A new version starts as a copy of the latest published one; upload the new season or corrections into it.</Text>
+        <Text variant="caption">
+          A new version starts as a copy of the latest published one; upload the new season or corrections into it.
+        </Text>
       ) : null}
 
       <View style={styles.section}>

@@ -38,7 +38,9 @@ function VersionDesk({ id }: { id: string }) {
     <>
       <Card>
         <View style={styles.head}>
-          <Text variant="heading">{v.datasetTitle} · v{v.semver}</Text>
+          <Text variant="heading">
+            {v.datasetTitle} · v{v.semver}
+          </Text>
           <StateBadge state={v.state} />
         </View>
         <Text variant="caption">

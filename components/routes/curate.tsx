@@ -24,10 +24,17 @@ function MyDatasets({ user }: { user: SessionUser }) {
       ) : list.isError ? (
         <ErrorState error={list.error} onRetry={() => list.refetch()} />
       ) : list.data.items.length === 0 ? (
-        <EmptyState title="No datasets yet" hint={curates ? "Create a dataset, then upload its sites, site-years and plots." : "Datasets appear here once curators create them."} />
+        <EmptyState
+          title="No datasets yet"
+          hint={
+            curates ? "Create a dataset, then upload its sites, site-years and plots." : "Datasets appear here once curators create them."
+          }
+        />
       ) : (
         <View style={styles.list}>
-          {list.data.items.map((d) => <CurationDatasetCard key={d.id} dataset={d} />)}
+          {list.data.items.map((d) => (
+            <CurationDatasetCard key={d.id} dataset={d} />
+          ))}
         </View>
       )}
     </View>

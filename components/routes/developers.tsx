@@ -43,7 +43,10 @@ function examples(filters: Record<string, string>) {
   const csvUrl = `${base}/api/v1/observations?${new URLSearchParams({ ...filters, format: "csv" })}`;
   return [
     { title: "Site-year responses as JSON (curl)", code: `curl -H "Authorization: Bearer $PLOTBANK_TOKEN" \\\n  "${url}"` },
-    { title: "Every matching plot as CSV, streamed (curl)", code: `curl -H "Authorization: Bearer $PLOTBANK_TOKEN" \\\n  -o observations.csv "${csvUrl}"` },
+    {
+      title: "Every matching plot as CSV, streamed (curl)",
+      code: `curl -H "Authorization: Bearer $PLOTBANK_TOKEN" \\\n  -o observations.csv "${csvUrl}"`,
+    },
     {
       title: "All pages in TypeScript (fetch)",
       code: [
@@ -81,10 +84,14 @@ function CodeBlock({ title, code }: { title: string; code: string }) {
   return (
     <View style={styles.codeWrap}>
       <View style={styles.row}>
-        <Text variant="subheading" style={{ flex: 1 }}>{title}</Text>
+        <Text variant="subheading" style={{ flex: 1 }}>
+          {title}
+        </Text>
         <CopyButton text={code} label={`Copy: ${title}`} />
       </View>
-      <Text variant="mono" selectable style={styles.code}>{code}</Text>
+      <Text variant="mono" selectable style={styles.code}>
+        {code}
+      </Text>
     </View>
   );
 }
@@ -93,8 +100,13 @@ function NewSecret({ created, onDone }: { created: CreatedToken; onDone: () => v
   return (
     <Card style={styles.secretCard} accessibilityLiveRegion="polite">
       <Text variant="subheading">Your new token “{created.token.name}”</Text>
-      <Text>Copy it now: this is the only time Plotbank shows it. We keep only a fingerprint, so a lost token cannot be shown again — revoke it and make another.</Text>
-      <Text variant="mono" selectable style={styles.code}>{created.secret}</Text>
+      <Text>
+        Copy it now: this is the only time Plotbank shows it. We keep only a fingerprint, so a lost token cannot be shown again — revoke it
+        and make another.
+      </Text>
+      <Text variant="mono" selectable style={styles.code}>
+        {created.secret}
+      </Text>
       <View style={styles.row}>
         <CopyButton text={created.secret} label="Copy token" />
         <Button tone="quiet" label="I have stored it" onPress={onDone} />
@@ -131,7 +143,13 @@ function TokenForm({ canWrite, onCreated }: { canWrite: boolean; onCreated: (t: 
         {errors.scope ? <Text style={styles.error}>{errors.scope}</Text> : null}
       </View>
       <View style={{ maxWidth: 240 }}>
-        <TextField label="Expires after (days, 1–365)" value={days} onChangeText={setDays} inputMode="numeric" error={errors.expiresInDays} />
+        <TextField
+          label="Expires after (days, 1–365)"
+          value={days}
+          onChangeText={setDays}
+          inputMode="numeric"
+          error={errors.expiresInDays}
+        />
       </View>
       {create.error && !Object.keys(errors).length ? <Text style={styles.error}>{create.error.message}</Text> : null}
       <Button
@@ -164,12 +182,19 @@ function TokenRow({ token }: { token: ApiToken }) {
         <Text variant="subheading">{token.name}</Text>
         <Text variant="mono">{token.prefix}…</Text>
         <Text variant="caption">
-          {token.scope} · {token.status} · made {when(token.createdAt)} · expires {when(token.expiresAt)} · last used {when(token.lastUsedAt)}
+          {token.scope} · {token.status} · made {when(token.createdAt)} · expires {when(token.expiresAt)} · last used{" "}
+          {when(token.lastUsedAt)}
           {token.revokedAt ? ` · revoked ${when(token.revokedAt)}` : ""}
         </Text>
       </View>
       {token.status === "active" ? (
-        <Button tone="danger" label="Revoke" accessibilityLabel={`Revoke ${token.name}`} busy={revoke.isPending} onPress={() => revoke.mutate(token.id)} />
+        <Button
+          tone="danger"
+          label="Revoke"
+          accessibilityLabel={`Revoke ${token.name}`}
+          busy={revoke.isPending}
+          onPress={() => revoke.mutate(token.id)}
+        />
       ) : null}
     </View>
   );
@@ -179,7 +204,8 @@ function TokenList() {
   const tokens = useTokenList();
   if (tokens.isPending) return <LoadingState label="Loading your tokens…" />;
   if (tokens.isError) return <ErrorState error={tokens.error} onRetry={() => tokens.refetch()} />;
-  if (tokens.data.items.length === 0) return <EmptyState title="No tokens yet" hint="Make one above to raise your rate limit to the per-token quota." />;
+  if (tokens.data.items.length === 0)
+    return <EmptyState title="No tokens yet" hint="Make one above to raise your rate limit to the per-token quota." />;
   return (
     <Card style={{ gap: 0, paddingVertical: 0 }}>
       {tokens.data.items.map((t) => (
@@ -196,7 +222,10 @@ export default function DevelopersScreen() {
   const [created, setCreated] = useState<CreatedToken | null>(null);
   const user = session.data;
   return (
-    <Screen title="Developers" subtitle="Pull the same numbers the app shows: typed filters, JSON or streamed CSV, cursor paging, OpenAPI 3.1.">
+    <Screen
+      title="Developers"
+      subtitle="Pull the same numbers the app shows: typed filters, JSON or streamed CSV, cursor paging, OpenAPI 3.1."
+    >
       <View style={styles.row}>
         <ServerLink href="/api/docs/" label="Interactive API reference" testID="api-docs-link" />
         <ServerLink href="/api/v1/openapi.json" label="OpenAPI document" testID="openapi-link" />
@@ -208,7 +237,11 @@ export default function DevelopersScreen() {
         <EmptyState
           title="Sign in to make API tokens"
           hint="Published data are open without a token, at a lower rate limit. A token raises it and identifies your scripts."
-          action={<Link href="/sign-in" style={styles.link}>Sign in</Link>}
+          action={
+            <Link href="/sign-in" style={styles.link}>
+              Sign in
+            </Link>
+          }
         />
       ) : (
         <>
@@ -234,12 +267,28 @@ export default function DevelopersScreen() {
 const styles = StyleSheet.create({
   row: { flexDirection: "row", flexWrap: "wrap", alignItems: "center", gap: space.sm },
   link: { color: colors.info, fontFamily: fonts.medium, textDecorationLine: "underline", minHeight: minTap, paddingVertical: space.sm },
-  choice: { minHeight: minTap, paddingHorizontal: space.md, justifyContent: "center", borderWidth: 1, borderColor: colors.line, borderRadius: radius.md, backgroundColor: colors.card },
+  choice: {
+    minHeight: minTap,
+    paddingHorizontal: space.md,
+    justifyContent: "center",
+    borderWidth: 1,
+    borderColor: colors.line,
+    borderRadius: radius.md,
+    backgroundColor: colors.card,
+  },
   choiceOn: { backgroundColor: colors.field, borderColor: colors.field },
   choiceTextOn: { color: "#fff" },
   error: { color: colors.danger },
   secretCard: { gap: space.sm, borderColor: colors.wheat, borderWidth: 2, backgroundColor: colors.wheatTint },
   code: { backgroundColor: colors.card, borderWidth: 1, borderColor: colors.line, borderRadius: radius.sm, padding: space.md },
   codeWrap: { gap: space.sm },
-  tokenRow: { flexDirection: "row", flexWrap: "wrap", alignItems: "center", gap: space.md, paddingVertical: space.md, borderBottomWidth: 1, borderBottomColor: colors.line },
+  tokenRow: {
+    flexDirection: "row",
+    flexWrap: "wrap",
+    alignItems: "center",
+    gap: space.md,
+    paddingVertical: space.md,
+    borderBottomWidth: 1,
+    borderBottomColor: colors.line,
+  },
 });

@@ -28,11 +28,18 @@ export default function AcceptInvitationScreen() {
       </AuthPanel>
     );
   }
-  if (invitation.isPending) return <AuthPanel title="Accept invitation"><LoadingState label="Checking the invitation…" /></AuthPanel>;
+  if (invitation.isPending)
+    return (
+      <AuthPanel title="Accept invitation">
+        <LoadingState label="Checking the invitation…" />
+      </AuthPanel>
+    );
   if (invitation.isError) {
     return (
       <AuthPanel title="Accept invitation" footer={<TextLink href="/sign-in" label="Already have an account? Sign in" />}>
-        <Notice tone="error" title="This invitation cannot be used">{invitation.error.message}</Notice>
+        <Notice tone="error" title="This invitation cannot be used">
+          {invitation.error.message}
+        </Notice>
       </AuthPanel>
     );
   }
@@ -44,7 +51,10 @@ export default function AcceptInvitationScreen() {
       { token, ...v },
       {
         onSuccess: (user) =>
-          signIn.mutate({ email: user.email, password: v.password }, { onSuccess: () => router.replace("/account"), onError: form.showServerError }),
+          signIn.mutate(
+            { email: user.email, password: v.password },
+            { onSuccess: () => router.replace("/account"), onError: form.showServerError },
+          ),
         onError: form.showServerError,
       },
     );
@@ -54,10 +64,26 @@ export default function AcceptInvitationScreen() {
     <AuthPanel title="Accept invitation" subtitle={`You are invited as a ${invitation.data.role}.`}>
       {form.formError ? <Notice tone="error">{form.formError}</Notice> : null}
       <Text>
-        The account will be <Text style={{ fontWeight: "600" }}>{invitation.data.email}</Text>. Choose the name others see on your work, and a password.
+        The account will be <Text style={{ fontWeight: "600" }}>{invitation.data.email}</Text>. Choose the name others see on your work, and
+        a password.
       </Text>
-      <TextField label="Your name" value={form.values.displayName} onChangeText={form.set("displayName")} error={form.errors.displayName} autoComplete="name" />
-      <TextField label="Password" value={form.values.password} onChangeText={form.set("password")} error={form.errors.password} secureTextEntry autoComplete="new-password" hint="At least 12 characters." onSubmitEditing={submit} />
+      <TextField
+        label="Your name"
+        value={form.values.displayName}
+        onChangeText={form.set("displayName")}
+        error={form.errors.displayName}
+        autoComplete="name"
+      />
+      <TextField
+        label="Password"
+        value={form.values.password}
+        onChangeText={form.set("password")}
+        error={form.errors.password}
+        secureTextEntry
+        autoComplete="new-password"
+        hint="At least 12 characters."
+        onSubmitEditing={submit}
+      />
       <Button label="Accept and sign in" onPress={submit} busy={accept.isPending || signIn.isPending} />
     </AuthPanel>
   );

@@ -27,7 +27,9 @@ export default function SetNewPasswordScreen() {
   if (reset.isSuccess) {
     return (
       <AuthPanel title="Password changed">
-        <Notice tone="success" title="Sign in with the new password">You were signed out everywhere else.</Notice>
+        <Notice tone="success" title="Sign in with the new password">
+          You were signed out everywhere else.
+        </Notice>
         <TextLink href="/sign-in" label="Go to sign in" />
       </AuthPanel>
     );
@@ -38,9 +40,29 @@ export default function SetNewPasswordScreen() {
   };
   return (
     <AuthPanel title="Set a new password" footer={<TextLink href="/forgot-password" label="Link expired? Ask for a new one" />}>
-      {f.formError ? <Notice tone="error" title="The password was not changed">{f.formError}</Notice> : null}
-      <TextField label="New password" value={f.values.password} onChangeText={f.set("password")} error={f.errors.password} secureTextEntry autoComplete="new-password" hint="At least 12 characters." />
-      <TextField label="New password again" value={f.values.repeat} onChangeText={f.set("repeat")} error={f.errors.repeat} secureTextEntry autoComplete="new-password" onSubmitEditing={submit} />
+      {f.formError ? (
+        <Notice tone="error" title="The password was not changed">
+          {f.formError}
+        </Notice>
+      ) : null}
+      <TextField
+        label="New password"
+        value={f.values.password}
+        onChangeText={f.set("password")}
+        error={f.errors.password}
+        secureTextEntry
+        autoComplete="new-password"
+        hint="At least 12 characters."
+      />
+      <TextField
+        label="New password again"
+        value={f.values.repeat}
+        onChangeText={f.set("repeat")}
+        error={f.errors.repeat}
+        secureTextEntry
+        autoComplete="new-password"
+        onSubmitEditing={submit}
+      />
       <Button label="Set the new password" onPress={submit} busy={reset.isPending} />
     </AuthPanel>
   );

@@ -9,7 +9,8 @@ import { signInBody } from "@/schemas/account";
 
 /** Only paths inside the app may be returned to after signing in (never another site). */
 /** Where to go after signing in: a path of ours from `?next=` (checked here, so only known at run time), else the account. */
-const safeNext = (next: unknown): Href => (typeof next === "string" && next.startsWith("/") && !next.startsWith("//") ? (next as Href) : "/account");
+const safeNext = (next: unknown): Href =>
+  typeof next === "string" && next.startsWith("/") && !next.startsWith("//") ? (next as Href) : "/account";
 
 export default function SignInScreen() {
   const params = useLocalSearchParams<{ next?: string; email?: string }>();
@@ -35,8 +36,25 @@ export default function SignInScreen() {
       }
     >
       {form.formError ? <Notice tone="error">{form.formError}</Notice> : null}
-      <TextField label="E-mail" value={form.values.email} onChangeText={form.set("email")} error={form.errors.email} autoComplete="email" keyboardType="email-address" autoCapitalize="none" inputMode="email" />
-      <TextField label="Password" value={form.values.password} onChangeText={form.set("password")} error={form.errors.password} secureTextEntry autoComplete="current-password" onSubmitEditing={submit} />
+      <TextField
+        label="E-mail"
+        value={form.values.email}
+        onChangeText={form.set("email")}
+        error={form.errors.email}
+        autoComplete="email"
+        keyboardType="email-address"
+        autoCapitalize="none"
+        inputMode="email"
+      />
+      <TextField
+        label="Password"
+        value={form.values.password}
+        onChangeText={form.set("password")}
+        error={form.errors.password}
+        secureTextEntry
+        autoComplete="current-password"
+        onSubmitEditing={submit}
+      />
       <Button label="Sign in" onPress={submit} busy={signIn.isPending} />
     </AuthPanel>
   );

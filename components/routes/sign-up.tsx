@@ -22,7 +22,9 @@ export default function CreateAccountScreen() {
         <Notice tone="success" title="One more step">
           {`We sent a link to ${form.values.email}. Open it to confirm the address, then sign in.`}
         </Notice>
-        <Text variant="caption">The link works once, for 48 hours. Look in the spam folder if it does not arrive within a few minutes.</Text>
+        <Text variant="caption">
+          The link works once, for 48 hours. Look in the spam folder if it does not arrive within a few minutes.
+        </Text>
       </AuthPanel>
     );
   }
@@ -34,8 +36,23 @@ export default function CreateAccountScreen() {
       footer={<TextLink href="/sign-in" label="Already have an account? Sign in" />}
     >
       {form.formError ? <Notice tone="error">{form.formError}</Notice> : null}
-      <TextField label="Your name" value={form.values.displayName} onChangeText={form.set("displayName")} error={form.errors.displayName} autoComplete="name" />
-      <TextField label="E-mail" value={form.values.email} onChangeText={form.set("email")} error={form.errors.email} autoComplete="email" keyboardType="email-address" autoCapitalize="none" inputMode="email" />
+      <TextField
+        label="Your name"
+        value={form.values.displayName}
+        onChangeText={form.set("displayName")}
+        error={form.errors.displayName}
+        autoComplete="name"
+      />
+      <TextField
+        label="E-mail"
+        value={form.values.email}
+        onChangeText={form.set("email")}
+        error={form.errors.email}
+        autoComplete="email"
+        keyboardType="email-address"
+        autoCapitalize="none"
+        inputMode="email"
+      />
       <TextField
         label="Password"
         value={form.values.password}

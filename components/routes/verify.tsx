@@ -40,7 +40,9 @@ export default function VerifyScreen() {
   return (
     <AuthPanel title="Check your e-mail" footer={<TextLink href="/sign-in" label="Back to sign in" />}>
       {verify.isError ? (
-        <Notice tone="error" title="This link did not work">{verify.error.message}</Notice>
+        <Notice tone="error" title="This link did not work">
+          {verify.error.message}
+        </Notice>
       ) : (
         <Text>Open the link we sent to confirm your address. If it did not arrive, we can send a new one.</Text>
       )}

@@ -45,7 +45,12 @@ export function ChoiceChips<T extends string>({
               accessibilityLabel={`${label}: ${choice.label}`}
               testID={testID ? `${testID}-${choice.value}` : undefined}
               onPress={() => onToggle(choice.value)}
-              style={({ focused, hovered }: { pressed: boolean; focused?: boolean; hovered?: boolean }) => [styles.chip, on && styles.chipOn, hovered && !on && styles.chipHover, focused && styles.focused]}
+              style={({ focused, hovered }: { pressed: boolean; focused?: boolean; hovered?: boolean }) => [
+                styles.chip,
+                on && styles.chipOn,
+                hovered && !on && styles.chipHover,
+                focused && styles.focused,
+              ]}
             >
               <Text style={[styles.text, on && styles.textOn]}>{choice.label}</Text>
             </Pressable>

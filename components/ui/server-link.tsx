@@ -12,7 +12,14 @@ export function ServerLink({ href, label, testID }: { href: string; label: strin
   const url = apiUrl(href);
   const web = Platform.OS === "web" ? ({ href: url } as object) : {};
   return (
-    <Text role="link" {...web} onPress={Platform.OS === "web" ? undefined : () => Linking.openURL(url)} style={styles.link} testID={testID} accessibilityLabel={label}>
+    <Text
+      role="link"
+      {...web}
+      onPress={Platform.OS === "web" ? undefined : () => Linking.openURL(url)}
+      style={styles.link}
+      testID={testID}
+      accessibilityLabel={label}
+    >
       {label}
     </Text>
   );

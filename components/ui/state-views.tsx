@@ -17,7 +17,11 @@ export function EmptyState({ title, hint, action }: { title: string; hint?: stri
   return (
     <View style={styles.box} role="status">
       <Text variant="subheading">{title}</Text>
-      {hint ? <Text variant="caption" style={styles.center}>{hint}</Text> : null}
+      {hint ? (
+        <Text variant="caption" style={styles.center}>
+          {hint}
+        </Text>
+      ) : null}
       {action}
     </View>
   );
@@ -34,7 +38,9 @@ export function ErrorState({ error, onRetry }: { error: unknown; onRetry?: () =>
       : "The request failed.";
   return (
     <View style={[styles.box, styles.error]} role="alert">
-      <Text variant="subheading" style={{ color: colors.danger }}>{title}</Text>
+      <Text variant="subheading" style={{ color: colors.danger }}>
+        {title}
+      </Text>
       <Text style={styles.center}>{message}</Text>
       {onRetry ? <Button label="Try again" tone="secondary" onPress={onRetry} /> : null}
     </View>

@@ -7,7 +7,12 @@ type Variant = "body" | "title" | "heading" | "subheading" | "label" | "caption"
  * Body text, or a heading: a screen's title is its one h1 and section headings are h2; a heading inside a section
  * passes `aria-level={3}`. react-native-web renders role="heading" with aria-level N as <hN>.
  */
-export function Text({ variant = "body", style, "aria-level": ariaLevel, ...props }: TextProps & { variant?: Variant; "aria-level"?: number }) {
+export function Text({
+  variant = "body",
+  style,
+  "aria-level": ariaLevel,
+  ...props
+}: TextProps & { variant?: Variant; "aria-level"?: number }) {
   const heading = variant === "title" || variant === "heading";
   const level = heading ? (ariaLevel ?? (variant === "title" ? 1 : 2)) : ariaLevel;
   return <RNText role={heading ? "heading" : undefined} {...props} aria-level={level} style={[styles.base, styles[variant], style]} />;

@@ -19,7 +19,9 @@ export const sessions = pgTable(
   "sessions",
   {
     tokenHash: text("token_hash").primaryKey(),
-    userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
   },
@@ -49,7 +51,9 @@ export const apiTokens = pgTable(
   "api_tokens",
   {
     id: uuid("id").primaryKey().defaultRandom(),
-    userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
     name: text("name").notNull(),
     /** First characters of the secret, shown in lists so an owner can tell tokens apart. */
     prefix: text("prefix").notNull(),
@@ -79,7 +83,9 @@ export const outbox = pgTable("outbox", {
 export const roleChanges = pgTable("role_changes", {
   id: uuid("id").primaryKey().defaultRandom(),
   actorId: uuid("actor_id").references(() => users.id, { onDelete: "set null" }),
-  userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+  userId: uuid("user_id")
+    .notNull()
+    .references(() => users.id, { onDelete: "cascade" }),
   /** Null when the account was created with the role: an accepted invitation, whose actor is the inviter. */
   fromRole: roleEnum("from_role"),
   toRole: roleEnum("to_role").notNull(),

@@ -15,7 +15,9 @@ export const datasets = pgTable("datasets", {
   contributors: jsonb("contributors").$type<Contributor[]>().notNull().default([]),
   funding: text("funding"),
   methods: text("methods"),
-  ownerId: uuid("owner_id").notNull().references(() => users.id),
+  ownerId: uuid("owner_id")
+    .notNull()
+    .references(() => users.id),
   /** DOI naming the dataset as a whole (DataCite HasVersion points from it to each version). */
   conceptDoi: text("concept_doi"),
   createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
@@ -26,8 +28,12 @@ export const datasets = pgTable("datasets", {
 export const datasetEditors = pgTable(
   "dataset_editors",
   {
-    datasetId: uuid("dataset_id").notNull().references(() => datasets.id, { onDelete: "cascade" }),
-    userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    datasetId: uuid("dataset_id")
+      .notNull()
+      .references(() => datasets.id, { onDelete: "cascade" }),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
   },
   (t) => [primaryKey({ columns: [t.datasetId, t.userId] })],
 );
@@ -35,8 +41,12 @@ export const datasetEditors = pgTable(
 export const follows = pgTable(
   "follows",
   {
-    datasetId: uuid("dataset_id").notNull().references(() => datasets.id, { onDelete: "cascade" }),
-    userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    datasetId: uuid("dataset_id")
+      .notNull()
+      .references(() => datasets.id, { onDelete: "cascade" }),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [primaryKey({ columns: [t.datasetId, t.userId] })],
@@ -46,7 +56,9 @@ export const versions = pgTable(
   "versions",
   {
     id: uuid("id").primaryKey().defaultRandom(),
-    datasetId: uuid("dataset_id").notNull().references(() => datasets.id, { onDelete: "cascade" }),
+    datasetId: uuid("dataset_id")
+      .notNull()
+      .references(() => datasets.id, { onDelete: "cascade" }),
     semver: text("semver").notNull(),
     state: versionStateEnum("state").notNull().default("draft"),
     changelog: text("changelog").notNull().default(""),
@@ -56,7 +68,9 @@ export const versions = pgTable(
     /** SHA-256 over the canonical CSV of every resource; set on publish. */
     checksum: text("checksum"),
     basedOnVersionId: uuid("based_on_version_id"),
-    createdBy: uuid("created_by").notNull().references(() => users.id),
+    createdBy: uuid("created_by")
+      .notNull()
+      .references(() => users.id),
     submittedBy: uuid("submitted_by").references(() => users.id),
     reviewedBy: uuid("reviewed_by").references(() => users.id),
     reviewComment: text("review_comment"),
@@ -84,8 +98,12 @@ export const versions = pgTable(
 export const versionEdits = pgTable(
   "version_edits",
   {
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
-    userId: uuid("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
+    userId: uuid("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
     lastAt: timestamp("last_at", { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [primaryKey({ columns: [t.versionId, t.userId] })],
@@ -96,7 +114,9 @@ export const uploads = pgTable(
   "uploads",
   {
     id: uuid("id").primaryKey().defaultRandom(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
     resource: text("resource").notNull(),
     filename: text("filename").notNull(),
     byteSize: bigint("byte_size", { mode: "number" }).notNull(),
@@ -116,7 +136,9 @@ export const validationReports = pgTable(
   "validation_reports",
   {
     id: uuid("id").primaryKey().defaultRandom(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
     resource: text("resource").notNull(),
     filename: text("filename").notNull(),
     accepted: boolean("accepted").notNull(),

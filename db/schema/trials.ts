@@ -1,5 +1,18 @@
 import { sql } from "drizzle-orm";
-import { bigint, boolean, date, doublePrecision, index, integer, pgTable, real, smallint, text, uniqueIndex, uuid } from "drizzle-orm/pg-core";
+import {
+  bigint,
+  boolean,
+  date,
+  doublePrecision,
+  index,
+  integer,
+  pgTable,
+  real,
+  smallint,
+  text,
+  uniqueIndex,
+  uuid,
+} from "drizzle-orm/pg-core";
 import { versions } from "./datasets";
 
 /**
@@ -10,7 +23,9 @@ export const sites = pgTable(
   "sites",
   {
     id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
     code: text("code").notNull(),
     /** Coarse location only (county or grid cell), never a farm's exact position. */
     location: text("location").notNull(),
@@ -24,8 +39,12 @@ export const siteYears = pgTable(
   "site_years",
   {
     id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
-    siteId: bigint("site_id", { mode: "number" }).notNull().references(() => sites.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
+    siteId: bigint("site_id", { mode: "number" })
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
     /** Curator's key, e.g. "TB-03-2022"; stable across versions, so diffs match site-years by it. */
     code: text("code").notNull(),
     crop: text("crop").notNull(),
@@ -39,10 +58,7 @@ export const siteYears = pgTable(
     variety: text("variety"),
     maturityGroup: text("maturity_group"),
   },
-  (t) => [
-    uniqueIndex("site_years_version_code_uq").on(t.versionId, t.code),
-    index("site_years_site_idx").on(t.siteId),
-  ],
+  (t) => [uniqueIndex("site_years_version_code_uq").on(t.versionId, t.code), index("site_years_site_idx").on(t.siteId)],
 );
 
 /** One soil test of a site-year: the value and extractant always stay beside the class. */
@@ -50,8 +66,12 @@ export const soilTests = pgTable(
   "soil_tests",
   {
     id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
-    siteYearId: bigint("site_year_id", { mode: "number" }).notNull().references(() => siteYears.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
+    siteYearId: bigint("site_year_id", { mode: "number" })
+      .notNull()
+      .references(() => siteYears.id, { onDelete: "cascade" }),
     /** Element tested: P, K, S, OM, pH … */
     analyte: text("analyte").notNull(),
     value: doublePrecision("value").notNull(),
@@ -72,7 +92,9 @@ export const treatments = pgTable(
   "treatments",
   {
     id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
     code: text("code").notNull(),
     name: text("name").notNull(),
     isCheck: boolean("is_check").notNull().default(false),
@@ -82,8 +104,14 @@ export const treatments = pgTable(
     k2oLbAc: doublePrecision("k2o_lb_ac").notNull().default(0),
     sLbAc: doublePrecision("s_lb_ac").notNull().default(0),
     /** Nutrients supplied (N, P, K, S) and placements used, for filtering. */
-    nutrients: text("nutrients").array().notNull().default(sql`'{}'::text[]`),
-    placements: text("placements").array().notNull().default(sql`'{}'::text[]`),
+    nutrients: text("nutrients")
+      .array()
+      .notNull()
+      .default(sql`'{}'::text[]`),
+    placements: text("placements")
+      .array()
+      .notNull()
+      .default(sql`'{}'::text[]`),
     /** The nutrients the curator states the treatment tests; null: derived from the rates (server/services/tested-nutrients.ts). */
     testedNutrientsStated: text("tested_nutrients_stated").array(),
   },
@@ -94,8 +122,12 @@ export const applications = pgTable(
   "applications",
   {
     id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
-    treatmentId: bigint("treatment_id", { mode: "number" }).notNull().references(() => treatments.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
+    treatmentId: bigint("treatment_id", { mode: "number" })
+      .notNull()
+      .references(() => treatments.id, { onDelete: "cascade" }),
     product: text("product").notNull(),
     /** N-P2O5-K2O[-S] grade, e.g. "11-52-0" or "21-0-0-24S". */
     grade: text("grade").notNull(),
@@ -119,9 +151,15 @@ export const plots = pgTable(
   "plots",
   {
     id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
-    siteYearId: bigint("site_year_id", { mode: "number" }).notNull().references(() => siteYears.id, { onDelete: "cascade" }),
-    treatmentId: bigint("treatment_id", { mode: "number" }).notNull().references(() => treatments.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
+    siteYearId: bigint("site_year_id", { mode: "number" })
+      .notNull()
+      .references(() => siteYears.id, { onDelete: "cascade" }),
+    treatmentId: bigint("treatment_id", { mode: "number" })
+      .notNull()
+      .references(() => treatments.id, { onDelete: "cascade" }),
     plot: text("plot").notNull(),
     block: smallint("block").notNull(),
     yieldKgHa: doublePrecision("yield_kg_ha"),
@@ -131,10 +169,7 @@ export const plots = pgTable(
     vigour: real("vigour"),
     testWeight: real("test_weight"),
   },
-  (t) => [
-    uniqueIndex("plots_site_year_plot_uq").on(t.siteYearId, t.plot),
-    index("plots_version_idx").on(t.versionId, t.siteYearId),
-  ],
+  (t) => [uniqueIndex("plots_site_year_plot_uq").on(t.siteYearId, t.plot), index("plots_version_idx").on(t.versionId, t.siteYearId)],
 );
 
 /** Site-years published without plots: treatment means, replicates and the ANOVA's error term. */
@@ -142,9 +177,15 @@ export const summaryMeans = pgTable(
   "summary_means",
   {
     id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
-    siteYearId: bigint("site_year_id", { mode: "number" }).notNull().references(() => siteYears.id, { onDelete: "cascade" }),
-    treatmentId: bigint("treatment_id", { mode: "number" }).notNull().references(() => treatments.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
+    siteYearId: bigint("site_year_id", { mode: "number" })
+      .notNull()
+      .references(() => siteYears.id, { onDelete: "cascade" }),
+    treatmentId: bigint("treatment_id", { mode: "number" })
+      .notNull()
+      .references(() => treatments.id, { onDelete: "cascade" }),
     meanKgHa: doublePrecision("mean_kg_ha").notNull(),
     replicates: smallint("replicates").notNull(),
     /** Error mean square in (kg/ha)^2 and its degrees of freedom. */
@@ -162,10 +203,18 @@ export const responses = pgTable(
   "responses",
   {
     id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
-    versionId: uuid("version_id").notNull().references(() => versions.id, { onDelete: "cascade" }),
-    siteYearId: bigint("site_year_id", { mode: "number" }).notNull().references(() => siteYears.id, { onDelete: "cascade" }),
-    treatmentId: bigint("treatment_id", { mode: "number" }).notNull().references(() => treatments.id, { onDelete: "cascade" }),
-    checkTreatmentId: bigint("check_treatment_id", { mode: "number" }).notNull().references(() => treatments.id, { onDelete: "cascade" }),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
+    siteYearId: bigint("site_year_id", { mode: "number" })
+      .notNull()
+      .references(() => siteYears.id, { onDelete: "cascade" }),
+    treatmentId: bigint("treatment_id", { mode: "number" })
+      .notNull()
+      .references(() => treatments.id, { onDelete: "cascade" }),
+    checkTreatmentId: bigint("check_treatment_id", { mode: "number" })
+      .notNull()
+      .references(() => treatments.id, { onDelete: "cascade" }),
     siteCode: text("site_code").notNull(),
     siteYearCode: text("site_year_code").notNull(),
     treatmentCode: text("treatment_code").notNull(),

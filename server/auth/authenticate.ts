@@ -16,7 +16,10 @@ async function loadUser(db: Db, id: string): Promise<Express.User | null> {
 
 /** The user and scope of a live API token, or null for an unknown, revoked or expired one (or a disabled owner). */
 async function tokenUser(db: Db, secret: string): Promise<{ user: Express.User; scope: "read" | "write"; tokenId: string } | null> {
-  const [token] = await db.select().from(apiTokens).where(eq(apiTokens.tokenHash, sha256Hex(secret)));
+  const [token] = await db
+    .select()
+    .from(apiTokens)
+    .where(eq(apiTokens.tokenHash, sha256Hex(secret)));
   if (!token || token.revokedAt || (token.expiresAt && token.expiresAt.getTime() <= Date.now())) return null;
   const user = await loadUser(db, token.userId);
   if (!user) return null;

@@ -27,7 +27,9 @@ function strengthEstimator(): ZxcvbnFactory {
 
 /** The whole password is one entry of the common-password list (also reversed or with l33t substitutions). */
 const isCommonPassword = (result: ZxcvbnResult) =>
-  result.sequence.some((m) => m.pattern === "dictionary" && m.dictionaryName === "passwords-common" && m.token.length === result.password.length);
+  result.sequence.some(
+    (m) => m.pattern === "dictionary" && m.dictionaryName === "passwords-common" && m.token.length === result.password.length,
+  );
 
 /** Why a password is refused, or null when it is acceptable. The message is zxcvbn's own feedback where it has one. */
 export function passwordWeakness(password: string, email?: string): string | null {

@@ -43,7 +43,11 @@ export function createDataCiteClient({ url, user, password, timeoutMs = 10_000 }
     try {
       res = await fetch(`${base}${path}`, {
         method,
-        headers: { Authorization: authorization, Accept: "application/vnd.api+json", ...(body ? { "Content-Type": "application/vnd.api+json" } : {}) },
+        headers: {
+          Authorization: authorization,
+          Accept: "application/vnd.api+json",
+          ...(body ? { "Content-Type": "application/vnd.api+json" } : {}),
+        },
         body: body ? JSON.stringify(body) : undefined,
         signal: AbortSignal.timeout(timeoutMs),
       });
@@ -61,7 +65,11 @@ export function createDataCiteClient({ url, user, password, timeoutMs = 10_000 }
     if (!res.ok) {
       const errors = ((json as { errors?: DataCiteError[] } | undefined)?.errors ?? []).filter((e) => typeof e?.title === "string");
       const said = errors.map((e) => (e.source ? `${e.source}: ${e.title}` : e.title)).join("; ");
-      throw new DataCiteRequestError(res.status, errors, `The DOI service answered ${res.status} to ${method} ${path}${said ? `: ${said}` : ""}.`);
+      throw new DataCiteRequestError(
+        res.status,
+        errors,
+        `The DOI service answered ${res.status} to ${method} ${path}${said ? `: ${said}` : ""}.`,
+      );
     }
     const attributes = (json as DataCiteDoiDocument | undefined)?.data?.attributes;
     if (!attributes) throw new DataCiteRequestError(res.status, [], `The DOI service answered ${method} ${path} without a DOI document.`);

@@ -84,7 +84,8 @@ const blank = (s: unknown) => typeof s !== "string" || s.trim() === "";
 export function missingMandatoryProperties(a: DataCiteAttributes): DataCiteError[] {
   const errors: DataCiteError[] = [];
   if (blank(a.doi) && blank(a.prefix)) errors.push({ source: "doi", title: "Can't be blank: give a doi or a prefix" });
-  if (!Array.isArray(a.creators) || a.creators.length === 0) errors.push({ source: "creators", title: "DOI must have at least one creator" });
+  if (!Array.isArray(a.creators) || a.creators.length === 0)
+    errors.push({ source: "creators", title: "DOI must have at least one creator" });
   else a.creators.forEach((c, i) => blank(c?.name) && errors.push({ source: `creators[${i}].name`, title: "Each creator needs a name" }));
   if (!Array.isArray(a.titles) || a.titles.length === 0 || a.titles.some((t) => blank(t?.title))) {
     errors.push({ source: "titles", title: "DOI must have at least one title" });
@@ -105,19 +106,66 @@ export function missingMandatoryProperties(a: DataCiteAttributes): DataCiteError
  * 4.5 added Instrument and StudyRegistration, 4.6 Award and Project).
  */
 const resourceTypesGeneral = [
-  "Audiovisual", "Award", "Book", "BookChapter", "Collection", "ComputationalNotebook", "ConferencePaper", "ConferenceProceeding",
-  "DataPaper", "Dataset", "Dissertation", "Event", "Image", "Instrument", "InteractiveResource", "Journal", "JournalArticle", "Model",
-  "OutputManagementPlan", "PeerReview", "PhysicalObject", "Preprint", "Project", "Report", "Service", "Software", "Sound", "Standard",
-  "StudyRegistration", "Text", "Workflow", "Other",
+  "Audiovisual",
+  "Award",
+  "Book",
+  "BookChapter",
+  "Collection",
+  "ComputationalNotebook",
+  "ConferencePaper",
+  "ConferenceProceeding",
+  "DataPaper",
+  "Dataset",
+  "Dissertation",
+  "Event",
+  "Image",
+  "Instrument",
+  "InteractiveResource",
+  "Journal",
+  "JournalArticle",
+  "Model",
+  "OutputManagementPlan",
+  "PeerReview",
+  "PhysicalObject",
+  "Preprint",
+  "Project",
+  "Report",
+  "Service",
+  "Software",
+  "Sound",
+  "Standard",
+  "StudyRegistration",
+  "Text",
+  "Workflow",
+  "Other",
 ] as const;
 
 const creatorNameTypes = ["Personal", "Organizational"] as const;
 
 /** DataCite Metadata Schema 4.6's controlled list for contributorType (from memory of the schema documentation). */
 const contributorTypes = [
-  "ContactPerson", "DataCollector", "DataCurator", "DataManager", "Distributor", "Editor", "HostingInstitution", "Producer",
-  "ProjectLeader", "ProjectManager", "ProjectMember", "RegistrationAgency", "RegistrationAuthority", "RelatedPerson", "Researcher",
-  "ResearchGroup", "RightsHolder", "Sponsor", "Supervisor", "Translator", "WorkPackageLeader", "Other",
+  "ContactPerson",
+  "DataCollector",
+  "DataCurator",
+  "DataManager",
+  "Distributor",
+  "Editor",
+  "HostingInstitution",
+  "Producer",
+  "ProjectLeader",
+  "ProjectManager",
+  "ProjectMember",
+  "RegistrationAgency",
+  "RegistrationAuthority",
+  "RelatedPerson",
+  "Researcher",
+  "ResearchGroup",
+  "RightsHolder",
+  "Sponsor",
+  "Supervisor",
+  "Translator",
+  "WorkPackageLeader",
+  "Other",
 ] as const;
 
 /**
@@ -129,7 +177,10 @@ export function controlledListProblems(a: DataCiteAttributes): DataCiteError[] {
   const errors: DataCiteError[] = [];
   const general = a.types?.resourceTypeGeneral;
   if (!blank(general) && !(resourceTypesGeneral as readonly string[]).includes(general!)) {
-    errors.push({ source: "types.resourceTypeGeneral", title: `"${general}" is not one of DataCite's resource types (${resourceTypesGeneral.join(", ")})` });
+    errors.push({
+      source: "types.resourceTypeGeneral",
+      title: `"${general}" is not one of DataCite's resource types (${resourceTypesGeneral.join(", ")})`,
+    });
   }
   (Array.isArray(a.creators) ? a.creators : []).forEach((c, i) => {
     const nameType: unknown = c?.nameType;
@@ -140,14 +191,18 @@ export function controlledListProblems(a: DataCiteAttributes): DataCiteError[] {
   (Array.isArray(a.contributors) ? a.contributors : []).forEach((c, i) => {
     if (blank(c?.name)) errors.push({ source: `contributors[${i}].name`, title: "Each contributor needs a name" });
     if (!(contributorTypes as readonly unknown[]).includes(c?.contributorType)) {
-      errors.push({ source: `contributors[${i}].contributorType`, title: `contributorType "${String(c?.contributorType)}" is not one of ${contributorTypes.join(", ")}` });
+      errors.push({
+        source: `contributors[${i}].contributorType`,
+        title: `contributorType "${String(c?.contributorType)}" is not one of ${contributorTypes.join(", ")}`,
+      });
     }
     if (c?.nameType !== undefined && !(creatorNameTypes as readonly unknown[]).includes(c.nameType)) {
       errors.push({ source: `contributors[${i}].nameType`, title: `nameType "${String(c.nameType)}" must be Personal or Organizational` });
     }
   });
   (Array.isArray(a.fundingReferences) ? a.fundingReferences : []).forEach((f, i) => {
-    if (blank(f?.funderName)) errors.push({ source: `fundingReferences[${i}].funderName`, title: "A funding reference needs a funderName" });
+    if (blank(f?.funderName))
+      errors.push({ source: `fundingReferences[${i}].funderName`, title: "A funding reference needs a funderName" });
   });
   return errors;
 }

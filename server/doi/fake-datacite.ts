@@ -66,7 +66,10 @@ export function createFakeDataCite(options: FakeDataCiteOptions): FakeDataCite {
     if (!body.ok) return errors(res, body.status, body.errors);
     const incoming = body.attributes;
     let doi = incoming.doi?.trim().toLowerCase();
-    if (!doi && incoming.prefix) doi = `${incoming.prefix.trim().toLowerCase()}/${randomBytes(4).toString("hex").replace(/(.{4})/, "$1-")}`;
+    if (!doi && incoming.prefix)
+      doi = `${incoming.prefix.trim().toLowerCase()}/${randomBytes(4)
+        .toString("hex")
+        .replace(/(.{4})/, "$1-")}`;
     const denied = prefixProblem(doi, options.prefixes);
     if (denied) return errors(res, denied.status, [denied.error]);
     if (records.has(doi!)) return errors(res, 422, [{ status: "422", source: "doi", title: "This DOI has already been taken" }]);
@@ -94,7 +97,9 @@ export function createFakeDataCite(options: FakeDataCiteOptions): FakeDataCite {
   app.use((_req, res) => errors(res, 404, [{ status: "404", title: "The resource you are looking for doesn't exist." }]));
   const onError: ErrorRequestHandler = (error: { status?: number; type?: string }, _req, res, _next) => {
     const status = error.status && error.status < 500 ? error.status : 500;
-    errors(res, status, [{ status: String(status), title: error.type === "entity.parse.failed" ? "The body is not valid JSON" : "Internal error" }]);
+    errors(res, status, [
+      { status: String(status), title: error.type === "entity.parse.failed" ? "The body is not valid JSON" : "Internal error" },
+    ]);
   };
   app.use(onError);
 
@@ -134,7 +139,8 @@ type Outcome = { ok: true; record: DataCiteAttributes } | { ok: false; errors: D
 /** Draft DOIs need only an identifier; `publish` (findable) and `register` need the mandatory metadata, within the controlled lists. */
 function applyEvent(attributes: DataCiteAttributes, existing: DataCiteAttributes | undefined): Outcome {
   const { event, prefix: _prefix, ...rest } = attributes;
-  const state = event === "publish" ? "findable" : event === "register" ? "registered" : event === "hide" ? "registered" : existing?.state ?? "draft";
+  const state =
+    event === "publish" ? "findable" : event === "register" ? "registered" : event === "hide" ? "registered" : (existing?.state ?? "draft");
   if (state !== "draft") {
     const missing = [...missingMandatoryProperties(rest), ...controlledListProblems(rest)];
     if (missing.length) return { ok: false, errors: missing.map((e) => ({ status: "422", ...e })) };
@@ -143,13 +149,14 @@ function applyEvent(attributes: DataCiteAttributes, existing: DataCiteAttributes
   return { ok: true, record: { ...rest, state, created: existing?.created ?? now, updated: now } };
 }
 
-function documentOf(body: unknown):
-  | { ok: true; attributes: DataCiteAttributes }
-  | { ok: false; status: number; errors: DataCiteError[] } {
+function documentOf(body: unknown): { ok: true; attributes: DataCiteAttributes } | { ok: false; status: number; errors: DataCiteError[] } {
   const data = (body as { data?: { type?: unknown; attributes?: unknown } } | undefined)?.data;
-  if (!data || typeof data !== "object") return { ok: false, status: 400, errors: [{ status: "400", source: "data", title: "The body must be a JSON:API document with data" }] };
-  if (data.type !== "dois") return { ok: false, status: 422, errors: [{ status: "422", source: "data.type", title: 'data.type must be "dois"' }] };
-  if (!data.attributes || typeof data.attributes !== "object") return { ok: false, status: 422, errors: [{ status: "422", source: "data.attributes", title: "data.attributes is missing" }] };
+  if (!data || typeof data !== "object")
+    return { ok: false, status: 400, errors: [{ status: "400", source: "data", title: "The body must be a JSON:API document with data" }] };
+  if (data.type !== "dois")
+    return { ok: false, status: 422, errors: [{ status: "422", source: "data.type", title: 'data.type must be "dois"' }] };
+  if (!data.attributes || typeof data.attributes !== "object")
+    return { ok: false, status: 422, errors: [{ status: "422", source: "data.attributes", title: "data.attributes is missing" }] };
   return { ok: true, attributes: data.attributes as DataCiteAttributes };
 }
 

@@ -56,7 +56,15 @@ export function createMailer(ctx: AppContext): Mailer {
       const keep = (body: string) => (useSmtp ? redactLinkTokens(body) : body);
       const [row] = await ctx.db
         .insert(outbox)
-        .values({ kind: message.kind, to: message.to, subject: message.subject, text: keep(message.text), html: message.html ? keep(message.html) : null, meta: message.meta ?? {}, transport })
+        .values({
+          kind: message.kind,
+          to: message.to,
+          subject: message.subject,
+          text: keep(message.text),
+          html: message.html ? keep(message.html) : null,
+          meta: message.meta ?? {},
+          transport,
+        })
         .returning({ id: outbox.id });
       const delivery = transporter
         .sendMail({ from: ctx.config.mailFrom, to: message.to, subject: message.subject, text: message.text, html: message.html })

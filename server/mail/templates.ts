@@ -60,7 +60,9 @@ export const templates = {
 
   alreadyRegistered: (p: { publicUrl: string; displayName: string }) =>
     render("You already have a Plotbank account", `Hello ${p.displayName},`, {
-      paragraphs: ["Someone tried to create a Plotbank account with this address, which already has one. You can sign in, or set a new password from the sign-in screen."],
+      paragraphs: [
+        "Someone tried to create a Plotbank account with this address, which already has one. You can sign in, or set a new password from the sign-in screen.",
+      ],
       action: { label: "Sign in", url: p.publicUrl + mailPaths.signIn() },
       footer: notYou,
     }),
@@ -100,7 +102,14 @@ export const templates = {
       footer: "If you were not expecting this, ignore it; no account is made until you accept.",
     }),
 
-  reviewRequested: (p: { publicUrl: string; reviewerName: string; datasetTitle: string; semver: string; submitterName: string; changelog: string }) =>
+  reviewRequested: (p: {
+    publicUrl: string;
+    reviewerName: string;
+    datasetTitle: string;
+    semver: string;
+    submitterName: string;
+    changelog: string;
+  }) =>
     render(`Review requested: ${p.datasetTitle} ${p.semver}`, `Hello ${p.reviewerName},`, {
       paragraphs: [
         `${p.submitterName} submitted version ${p.semver} of “${p.datasetTitle}” for review.`,
@@ -109,7 +118,16 @@ export const templates = {
       action: { label: "Open the review queue", url: p.publicUrl + mailPaths.review() },
     }),
 
-  reviewDecision: (p: { publicUrl: string; submitterName: string; datasetTitle: string; slug: string; semver: string; decision: "approved" | "returned"; reviewerName: string; comment: string }) =>
+  reviewDecision: (p: {
+    publicUrl: string;
+    submitterName: string;
+    datasetTitle: string;
+    slug: string;
+    semver: string;
+    decision: "approved" | "returned";
+    reviewerName: string;
+    comment: string;
+  }) =>
     render(
       p.decision === "approved" ? `Approved: ${p.datasetTitle} ${p.semver}` : `Returned for changes: ${p.datasetTitle} ${p.semver}`,
       `Hello ${p.submitterName},`,

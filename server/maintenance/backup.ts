@@ -40,4 +40,3 @@ export async function restore(options: { dataDir?: string; url?: string; file: s
   const database = await openDatabase({ dataDir: options.dataDir, loadDataDir: blob });
   await database.close();
 }
-

@@ -77,10 +77,11 @@ const expressPath = (openApiPath: string) => openApiPath.slice(apiBase.length).r
  */
 export function routeModule(registry: Registry) {
   const router = Router();
-  function defineRoute<P extends z.ZodObject | undefined = undefined, Q extends z.ZodObject | undefined = undefined, B extends z.ZodType | undefined = undefined>(
-    spec: RouteSpec<P, Q, B>,
-    handler: RouteHandler<P, Q, B>,
-  ): void {
+  function defineRoute<
+    P extends z.ZodObject | undefined = undefined,
+    Q extends z.ZodObject | undefined = undefined,
+    B extends z.ZodType | undefined = undefined,
+  >(spec: RouteSpec<P, Q, B>, handler: RouteHandler<P, Q, B>): void {
     if (!spec.path.startsWith(`${apiBase}/`)) throw new Error(`${spec.operationId}: the path must start with ${apiBase}/`);
     if (registry.definitions.some((d) => d.type === "route" && d.route.operationId === spec.operationId)) {
       throw new Error(`operationId ${spec.operationId} is already defined`);
@@ -88,7 +89,12 @@ export function routeModule(registry: Registry) {
     const path = expressPath(spec.path);
     const guards = spec.guards ?? [];
     const json = spec.body && "json" in spec.body ? spec.body.json : undefined;
-    const body = spec.body && "stream" in spec.body ? { description: spec.body.description, content: spec.body.stream } : json ? { content: { "application/json": { schema: json } } } : undefined;
+    const body =
+      spec.body && "stream" in spec.body
+        ? { description: spec.body.description, content: spec.body.stream }
+        : json
+          ? { content: { "application/json": { schema: json } } }
+          : undefined;
     // The answers the shared parts can give before or after the handler, declared on every operation that can meet
     // them: a path, query or body value that is refused (400, e.g. a control character in a path segment), a
     // credential that is sent but invalid, revoked or expired (401, on any operation), the cross-site guard on writes

@@ -2,7 +2,8 @@ import express, { type Express } from "express";
 import swaggerUi from "swagger-ui-express";
 
 /** The files the docs page loads: swagger-ui's script, style and icons, and the start-up script swagger-ui-express writes. */
-const pageFiles = /^\/(?:swagger-ui\.css|swagger-ui-bundle\.js|swagger-ui-standalone-preset\.js|swagger-ui-init\.js|favicon-(?:16x16|32x32)\.png)$/;
+const pageFiles =
+  /^\/(?:swagger-ui\.css|swagger-ui-bundle\.js|swagger-ui-standalone-preset\.js|swagger-ui-init\.js|favicon-(?:16x16|32x32)\.png)$/;
 
 /**
  * Interactive API docs at /api/docs/. Mounted alone, swagger-ui-express answers every path below it with its page (and

@@ -24,10 +24,14 @@ export function createRegistry(): OpenAPIRegistry {
     schema: { type: "string" },
   });
   registry.registerComponent("headers", "RateLimit-Policy", {
-    description: 'The quota that applies to the caller: `"anonymous"; q=60; w=60` (requests per window of seconds), or `5;w=60` on sign-in and e-mailed-link requests',
+    description:
+      'The quota that applies to the caller: `"anonymous"; q=60; w=60` (requests per window of seconds), or `5;w=60` on sign-in and e-mailed-link requests',
     schema: { type: "string" },
   });
-  registry.registerComponent("headers", "Retry-After", { description: "Seconds to wait before trying again", schema: { type: "integer", minimum: 0 } });
+  registry.registerComponent("headers", "Retry-After", {
+    description: "Seconds to wait before trying again",
+    schema: { type: "integer", minimum: 0 },
+  });
   return registry;
 }
 

@@ -21,7 +21,12 @@ export function guard<T extends RequestHandler>(security: SecurityRequirement[],
   return middleware;
 }
 
-const key = (r: SecurityRequirement) => JSON.stringify(Object.keys(r).sort().map((k) => [k, r[k]]));
+const key = (r: SecurityRequirement) =>
+  JSON.stringify(
+    Object.keys(r)
+      .sort()
+      .map((k) => [k, r[k]]),
+  );
 
 /**
  * The security an operation declares, from its middlewares: the requirements every guard admits (a session-only guard

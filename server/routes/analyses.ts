@@ -9,37 +9,43 @@ import { runMetaAnalysis } from "@/server/services/analysis/run-meta-analysis";
 export function analysisRoutes({ db, registry }: AppContext): Router {
   const { router, defineRoute } = routeModule(registry);
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/analyses/meta",
-    operationId: "runMetaAnalysis",
-    tags: ["Analyses"],
-    summary: "Random-effects meta-analysis of yield response over the filtered site-years",
-    description:
-      "Takes the same filters as the responses and rows endpoints, so a screen's numbers come from one URL. Each " +
-      "site-year enters once: several matching treatments of one site-year are combined first, using the covariance " +
-      "their shared check induces (MSE/r). τ² by REML (default), DL or PM, or the fixed-effect model; CI by " +
-      "Hartung–Knapp–Sidik–Jonkman (default) or Wald; the prediction interval uses t(k − 2). With price and cost, the " +
-      "decision block gives the break-even response and the chance a new site-year exceeds it. `format=csv` returns " +
-      "the per-site-year rows (reproduce in R: `rma(yi = estimate, sei = se, data = d, method = \"REML\", test = \"knha\")`). " +
-      "k = 0 is an answer (200), not an error. Results summarise these trials; a field can differ.",
-    query: metaQuery,
-    responses: {
-      200: {
-        description: "The analysis with its provenance",
-        content: { "application/json": { schema: metaAnalysisResult }, "text/csv": { schema: { type: "string" } } },
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/analyses/meta",
+      operationId: "runMetaAnalysis",
+      tags: ["Analyses"],
+      summary: "Random-effects meta-analysis of yield response over the filtered site-years",
+      description:
+        "Takes the same filters as the responses and rows endpoints, so a screen's numbers come from one URL. Each " +
+        "site-year enters once: several matching treatments of one site-year are combined first, using the covariance " +
+        "their shared check induces (MSE/r). τ² by REML (default), DL or PM, or the fixed-effect model; CI by " +
+        "Hartung–Knapp–Sidik–Jonkman (default) or Wald; the prediction interval uses t(k − 2). With price and cost, the " +
+        "decision block gives the break-even response and the chance a new site-year exceeds it. `format=csv` returns " +
+        'the per-site-year rows (reproduce in R: `rma(yi = estimate, sei = se, data = d, method = "REML", test = "knha")`). ' +
+        "k = 0 is an answer (200), not an error. Results summarise these trials; a field can differ.",
+      query: metaQuery,
+      responses: {
+        200: {
+          description: "The analysis with its provenance",
+          content: { "application/json": { schema: metaAnalysisResult }, "text/csv": { schema: { type: "string" } } },
+        },
+        ...problemResponses(400, 404, 429),
       },
-      ...problemResponses(400, 404, 429),
     },
-  }, async ({ query }, _req, res) => {
-    const result = await runMetaAnalysis(db, query);
-    res.set("Cache-Control", "public, max-age=60");
-    if (query.format === "csv") {
-      res.type("text/csv; charset=utf-8").set("Content-Disposition", 'inline; filename="meta-analysis-site-years.csv"').send(forestRowsCsv(result));
-      return;
-    }
-    res.json(result);
-  });
+    async ({ query }, _req, res) => {
+      const result = await runMetaAnalysis(db, query);
+      res.set("Cache-Control", "public, max-age=60");
+      if (query.format === "csv") {
+        res
+          .type("text/csv; charset=utf-8")
+          .set("Content-Disposition", 'inline; filename="meta-analysis-site-years.csv"')
+          .send(forestRowsCsv(result));
+        return;
+      }
+      res.json(result);
+    },
+  );
 
   return router;
 }

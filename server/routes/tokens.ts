@@ -21,48 +21,60 @@ const tokenParams = z.object({ id: z.uuid() });
 export function tokenRoutes({ db, registry }: AppContext): Router {
   const { router, defineRoute } = routeModule(registry);
 
-  defineRoute({
-    method: "post",
-    path: "/api/v1/tokens",
-    operationId: "createToken",
-    tags: ["Tokens"],
-    summary: "Make an API token; the secret is in this answer only",
-    guards: [requireSession],
-    body: { json: createTokenBody },
-    responses: {
-      201: { description: "The token and its secret (shown once)", content: { "application/json": { schema: createdToken } } },
-      ...problemResponses(400, 401, 403, 429),
+  defineRoute(
+    {
+      method: "post",
+      path: "/api/v1/tokens",
+      operationId: "createToken",
+      tags: ["Tokens"],
+      summary: "Make an API token; the secret is in this answer only",
+      guards: [requireSession],
+      body: { json: createTokenBody },
+      responses: {
+        201: { description: "The token and its secret (shown once)", content: { "application/json": { schema: createdToken } } },
+        ...problemResponses(400, 401, 403, 429),
+      },
     },
-  }, async ({ body }, req, res) => {
-    const created = await createToken(db, currentUser(req), body);
-    res.status(201).set("Cache-Control", "no-store").json(created);
-  });
+    async ({ body }, req, res) => {
+      const created = await createToken(db, currentUser(req), body);
+      res.status(201).set("Cache-Control", "no-store").json(created);
+    },
+  );
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/tokens",
-    operationId: "listTokens",
-    tags: ["Tokens"],
-    summary: "Your API tokens: name, prefix, scope, dates and status (never the secret)",
-    guards: [requireSession],
-    responses: { 200: { description: "Your tokens, newest first", content: { "application/json": { schema: tokenList } } }, ...problemResponses(401, 403, 429) },
-  }, async (_input, req, res) => {
-    res.set("Cache-Control", "no-store").json({ items: await listTokens(db, currentUser(req).id) });
-  });
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/tokens",
+      operationId: "listTokens",
+      tags: ["Tokens"],
+      summary: "Your API tokens: name, prefix, scope, dates and status (never the secret)",
+      guards: [requireSession],
+      responses: {
+        200: { description: "Your tokens, newest first", content: { "application/json": { schema: tokenList } } },
+        ...problemResponses(401, 403, 429),
+      },
+    },
+    async (_input, req, res) => {
+      res.set("Cache-Control", "no-store").json({ items: await listTokens(db, currentUser(req).id) });
+    },
+  );
 
-  defineRoute({
-    method: "delete",
-    path: "/api/v1/tokens/{id}",
-    operationId: "revokeToken",
-    tags: ["Tokens"],
-    summary: "Revoke one of your tokens; it stops working at once",
-    guards: [requireSession],
-    params: tokenParams,
-    responses: { 204: { description: "Revoked" }, ...problemResponses(401, 403, 404, 429) },
-  }, async ({ params: { id } }, req, res) => {
-    await revokeToken(db, currentUser(req).id, id);
-    res.status(204).end();
-  });
+  defineRoute(
+    {
+      method: "delete",
+      path: "/api/v1/tokens/{id}",
+      operationId: "revokeToken",
+      tags: ["Tokens"],
+      summary: "Revoke one of your tokens; it stops working at once",
+      guards: [requireSession],
+      params: tokenParams,
+      responses: { 204: { description: "Revoked" }, ...problemResponses(401, 403, 404, 429) },
+    },
+    async ({ params: { id } }, req, res) => {
+      await revokeToken(db, currentUser(req).id, id);
+      res.status(204).end();
+    },
+  );
 
   return router;
 }

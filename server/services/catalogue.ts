@@ -10,7 +10,13 @@ import { latestPublishedByDataset } from "./latest-version";
  */
 export async function listPublishedDatasets(db: Db): Promise<DatasetSummary[]> {
   const published = await db
-    .select({ id: versions.id, datasetId: versions.datasetId, semver: versions.semver, state: versions.state, publishedAt: versions.publishedAt })
+    .select({
+      id: versions.id,
+      datasetId: versions.datasetId,
+      semver: versions.semver,
+      state: versions.state,
+      publishedAt: versions.publishedAt,
+    })
     .from(versions)
     .where(eq(versions.state, "published"))
     .orderBy(desc(versions.publishedAt));
@@ -18,7 +24,11 @@ export async function listPublishedDatasets(db: Db): Promise<DatasetSummary[]> {
   if (latestByDataset.size === 0) return [];
   const latestIds = [...latestByDataset.values()].map((v) => v.id);
   const [rows, counts] = await Promise.all([
-    db.select().from(datasets).where(inArray(datasets.id, [...latestByDataset.keys()])).orderBy(datasets.title),
+    db
+      .select()
+      .from(datasets)
+      .where(inArray(datasets.id, [...latestByDataset.keys()]))
+      .orderBy(datasets.title),
     db
       .select({
         versionId: siteYears.versionId,

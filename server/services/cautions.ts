@@ -67,7 +67,10 @@ export const cautionRules: CautionRule[] = [
       "and to less on sandy or dry soils, where a band injures seedlings sooner.",
     source: noSource,
     trips: (t) => {
-      const nk = sum(t.applications.filter((a) => a.placement === "2x2-band"), (a) => a.nLbAc + a.k2oLbAc);
+      const nk = sum(
+        t.applications.filter((a) => a.placement === "2x2-band"),
+        (a) => a.nLbAc + a.k2oLbAc,
+      );
       const limit = bandLimitAt(t.rowSpacingIn);
       const rows = t.rowSpacingIn === null ? "row spacing not recorded, taken as 30 in" : `${t.rowSpacingIn}-in rows`;
       return nk > limit ? `${lb(nk)} N + K2O in the 2x2 band, above about ${lb(limit)} at ${rows}` : null;
@@ -81,7 +84,11 @@ export const cautionRules: CautionRule[] = [
       return saltSensitiveCrops.has(t.crop) && inFurrow(t).length > 0 ? `fertilizer in the furrow on ${t.crop}` : null;
     },
   },
-  { code: "trials-not-your-field", text: "These results summarise the trials in these datasets; a grower's field can differ.", source: noSource },
+  {
+    code: "trials-not-your-field",
+    text: "These results summarise the trials in these datasets; a grower's field can differ.",
+    source: noSource,
+  },
   { code: "seed-placement-injury", text: "Seed-placed (in-furrow) fertilizer can injure a stand.", source: noSource },
   { code: "local-advice", text: "Local recommendations and licensed advisers have the last word.", source: noSource },
 ];
@@ -103,12 +110,20 @@ export function evaluateCautions(included: CautionTreatment[]): Caution[] {
   for (const t of included) {
     for (const { rule, detail } of trippedRules(t)) {
       const list = named.get(rule.code) ?? [];
-      if (!list.some((x) => x.dataset === t.dataset && x.treatment === t.treatment && x.detail === detail)) list.push({ dataset: t.dataset, treatment: t.treatment, detail });
+      if (!list.some((x) => x.dataset === t.dataset && x.treatment === t.treatment && x.detail === detail))
+        list.push({ dataset: t.dataset, treatment: t.treatment, detail });
       named.set(rule.code, list);
     }
   }
   const rank = (r: CautionRule) => (named.has(r.code) ? 0 : r.trips ? 2 : 1);
   return [...cautionRules]
     .sort((a, b) => rank(a) - rank(b))
-    .map((r) => ({ code: r.code, text: r.text, source: r.source, standing: !r.trips, matches: named.has(r.code), treatments: named.get(r.code) ?? [] }));
+    .map((r) => ({
+      code: r.code,
+      text: r.text,
+      source: r.source,
+      standing: !r.trips,
+      matches: named.has(r.code),
+      treatments: named.get(r.code) ?? [],
+    }));
 }

@@ -45,8 +45,13 @@ export function pickVersion<T extends Candidate>(versions: readonly T[], semver:
 /** A withdrawn version keeps its metadata (a tombstone), but its rows are gone for good: 410, with the reason. */
 export function versionGone(slug: string, semver: string, reason: string | null, withdrawnAt?: Date | null): HttpProblem {
   const because = reason ? `: ${reason.trim().replace(/\.+$/, "")}.` : " (no reason given).";
-  return new HttpProblem(410, "Gone", `Version ${semver} of "${slug}" was withdrawn${because} Its metadata stays available; its rows are no longer served.`, {
-    withdrawnReason: reason,
-    ...(withdrawnAt ? { withdrawnAt: withdrawnAt.toISOString() } : {}),
-  });
+  return new HttpProblem(
+    410,
+    "Gone",
+    `Version ${semver} of "${slug}" was withdrawn${because} Its metadata stays available; its rows are no longer served.`,
+    {
+      withdrawnReason: reason,
+      ...(withdrawnAt ? { withdrawnAt: withdrawnAt.toISOString() } : {}),
+    },
+  );
 }

@@ -8,7 +8,8 @@ const ordinal = (labels: readonly [string, string, string, string, string]) =>
 
 const tallgrass = {
   title: "Tallgrass Basin illustrative soil-test interpretation",
-  source: "Invented round numbers in the usual shape of such tables, for the fictional demo region only; not a recommendation for any real field.",
+  source:
+    "Invented round numbers in the usual shape of such tables, for the fictional demo region only; not a recommendation for any real field.",
   sourceStatus: "invented for the demo" as const,
   unit: "ppm",
   classes: ordinal(["very_low", "low", "optimum", "high", "very_high"]),
@@ -16,7 +17,8 @@ const tallgrass = {
 
 const isu = {
   title: "Iowa State University Extension PM 1688 (2013 revision), corn and soybean, 6-inch samples",
-  source: "Mallarino et al., A General Guide for Crop Nutrient and Limestone Recommendations in Iowa, Iowa State University Extension PM 1688 (2013).",
+  source:
+    "Mallarino et al., A General Guide for Crop Nutrient and Limestone Recommendations in Iowa, Iowa State University Extension PM 1688 (2013).",
   sourceStatus: "from memory" as const,
   unit: "ppm",
   classes: ordinal(["Very Low", "Low", "Optimum", "High", "Very High"]),
@@ -39,23 +41,36 @@ export const builtInSchemes: SoilTestScheme[] = [
 export const builtInSchemeNames = new Set(builtInSchemes.map((s) => s.name));
 
 export type SchemeLookup =
-  | { ok: true; scheme: SoilTestScheme; extractantDiffers: boolean }
-  | { ok: false; reason: "unknown" | "analyte"; message: string };
+  { ok: true; scheme: SoilTestScheme; extractantDiffers: boolean } | { ok: false; reason: "unknown" | "analyte"; message: string };
 
 /**
  * The scheme a soil-test row names: the version's own first, then the built-in ones; among several of one name, the
  * one for the row's analyte and extractant. A scheme for the analyte under another extractant still maps its labels,
  * but its thresholds say nothing about this row (`extractantDiffers`).
  */
-export function findScheme(name: string, analyte: string, extractant: string | null, versionSchemes: readonly SoilTestScheme[] = []): SchemeLookup {
+export function findScheme(
+  name: string,
+  analyte: string,
+  extractant: string | null,
+  versionSchemes: readonly SoilTestScheme[] = [],
+): SchemeLookup {
   const own = versionSchemes.filter((s) => s.name === name);
   const named = own.length ? own : builtInSchemes.filter((s) => s.name === name);
   if (named.length === 0) {
     const known = [...new Set([...versionSchemes.map((s) => s.name), ...builtInSchemeNames])].join(", ");
-    return { ok: false, reason: "unknown", message: `interpretation scheme "${name}" is neither in this version's data dictionary (soilTestSchemes) nor built in (${known})` };
+    return {
+      ok: false,
+      reason: "unknown",
+      message: `interpretation scheme "${name}" is neither in this version's data dictionary (soilTestSchemes) nor built in (${known})`,
+    };
   }
   const forAnalyte = named.filter((s) => s.analyte === analyte);
-  if (forAnalyte.length === 0) return { ok: false, reason: "analyte", message: `scheme "${name}" interprets ${[...new Set(named.map((s) => s.analyte))].join(", ")}, not ${analyte}` };
+  if (forAnalyte.length === 0)
+    return {
+      ok: false,
+      reason: "analyte",
+      message: `scheme "${name}" interprets ${[...new Set(named.map((s) => s.analyte))].join(", ")}, not ${analyte}`,
+    };
   const exact = forAnalyte.find((s) => s.extractant === null || s.extractant === extractant);
   return exact ? { ok: true, scheme: exact, extractantDiffers: false } : { ok: true, scheme: forAnalyte[0]!, extractantDiffers: true };
 }

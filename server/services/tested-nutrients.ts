@@ -38,7 +38,8 @@ const testedNutrientRule =
   `${carrierShare * 100} % of the treatment's largest nutrient rate (lb/ac of N, P2O5, K2O, S), such as the N in MAP or 10-34-0 ` +
   `(a threshold of common practice, no source). A curator's stated tested nutrients replace the derived ones.`;
 
-const suppliedNutrientRule = "nutrientSupplied= keeps treatments that supply any amount of the nutrient, carriers included (the N in MAP counts).";
+const suppliedNutrientRule =
+  "nutrientSupplied= keeps treatments that supply any amount of the nutrient, carriers included (the N in MAP counts).";
 
 /** The nutrients a treatment's own rates test, in N, P, K, S order. */
 export function derivedTestedNutrients(rates: NutrientRates): Nutrient[] {
@@ -57,9 +58,16 @@ export function testedNutrients(row: NutrientRates & { testedNutrientsStated?: r
  * message of what is wrong.
  */
 export function parseTestedNutrients(cell: string): { ok: true; value: Nutrient[] } | { ok: false; message: string } {
-  const parts = cell.split(/[;,\s]+/).map((p) => p.trim()).filter(Boolean);
+  const parts = cell
+    .split(/[;,\s]+/)
+    .map((p) => p.trim())
+    .filter(Boolean);
   const unknown = parts.filter((p) => !(nutrients as readonly string[]).includes(p));
-  if (unknown.length) return { ok: false, message: `tested_nutrients "${cell}" names ${unknown.map((u) => `"${u}"`).join(", ")}; use N, P, K and S separated by ";" (e.g. "N;S")` };
+  if (unknown.length)
+    return {
+      ok: false,
+      message: `tested_nutrients "${cell}" names ${unknown.map((u) => `"${u}"`).join(", ")}; use N, P, K and S separated by ";" (e.g. "N;S")`,
+    };
   if (parts.length === 0) return { ok: false, message: "tested_nutrients is empty; leave it blank to derive it from the products" };
   return { ok: true, value: nutrients.filter((n) => parts.includes(n)) };
 }
@@ -109,12 +117,32 @@ export function countedSoilTest(tested: readonly string[], soil: SoilTestsByAnal
   const candidates = narrowed.length ? narrowed : testedAnalytes;
   const pick = (a: Analyte) =>
     a === "P"
-      ? { analyte: a, class: soil.soilPClass ?? null, value: soil.soilPValue ?? null, reportedClass: soil.soilPReportedClass ?? null, scheme: soil.soilPScheme ?? null }
+      ? {
+          analyte: a,
+          class: soil.soilPClass ?? null,
+          value: soil.soilPValue ?? null,
+          reportedClass: soil.soilPReportedClass ?? null,
+          scheme: soil.soilPScheme ?? null,
+        }
       : a === "K"
-        ? { analyte: a, class: soil.soilKClass ?? null, value: soil.soilKValue ?? null, reportedClass: soil.soilKReportedClass ?? null, scheme: soil.soilKScheme ?? null }
-        : { analyte: a, class: soil.soilSClass ?? null, value: soil.soilSValue ?? null, reportedClass: soil.soilSReportedClass ?? null, scheme: soil.soilSScheme ?? null };
+        ? {
+            analyte: a,
+            class: soil.soilKClass ?? null,
+            value: soil.soilKValue ?? null,
+            reportedClass: soil.soilKReportedClass ?? null,
+            scheme: soil.soilKScheme ?? null,
+          }
+        : {
+            analyte: a,
+            class: soil.soilSClass ?? null,
+            value: soil.soilSValue ?? null,
+            reportedClass: soil.soilSReportedClass ?? null,
+            scheme: soil.soilSScheme ?? null,
+          };
   const withClass = candidates.map(pick).find((t) => t.class !== null);
-  return withClass ?? (candidates[0] ? pick(candidates[0]) : { analyte: null, class: null, value: null, reportedClass: null, scheme: null });
+  return (
+    withClass ?? (candidates[0] ? pick(candidates[0]) : { analyte: null, class: null, value: null, reportedClass: null, scheme: null })
+  );
 }
 
 /** Anything that stands in SQL as a column: a real column or a correlated sub-select. */
@@ -148,7 +176,11 @@ export function testsAnyOf(c: TestedNutrientColumns, wanted: readonly string[]):
 }
 
 /** SQL of `countedSoilTest(...).class`, for the soil-test-class filter. */
-export function countedSoilClassSql(c: TestedNutrientColumns, soil: Record<Analyte, ColumnLike>, filterNutrients: readonly string[] = []): SQL {
+export function countedSoilClassSql(
+  c: TestedNutrientColumns,
+  soil: Record<Analyte, ColumnLike>,
+  filterNutrients: readonly string[] = [],
+): SQL {
   const tested = testedNutrientsSql(c);
   const narrowedTo = analytes.filter((a) => filterNutrients.includes(a));
   const candidate = (a: Analyte) => {

@@ -65,7 +65,11 @@ export async function listTokens(db: Db, userId: string): Promise<ApiToken[]> {
  * were revoked and how many live ones are left.
  */
 export async function revokeAllTokens(db: Db | Tx, userId: string, revoke = true): Promise<{ revoked: number; kept: number }> {
-  const live = and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt), or(isNull(apiTokens.expiresAt), gt(apiTokens.expiresAt, new Date())));
+  const live = and(
+    eq(apiTokens.userId, userId),
+    isNull(apiTokens.revokedAt),
+    or(isNull(apiTokens.expiresAt), gt(apiTokens.expiresAt, new Date())),
+  );
   if (!revoke) return { revoked: 0, kept: (await db.select({ id: apiTokens.id }).from(apiTokens).where(live)).length };
   const rows = await db.update(apiTokens).set({ revokedAt: new Date() }).where(live).returning({ id: apiTokens.id });
   return { revoked: rows.length, kept: 0 };
@@ -76,7 +80,13 @@ export async function revokeAllTokens(db: Db | Tx, userId: string, revoke = true
  * be probed. Revoking twice is harmless.
  */
 export async function revokeToken(db: Db, userId: string, tokenId: string): Promise<void> {
-  const [owned] = await db.select({ id: apiTokens.id }).from(apiTokens).where(and(eq(apiTokens.id, tokenId), eq(apiTokens.userId, userId)));
+  const [owned] = await db
+    .select({ id: apiTokens.id })
+    .from(apiTokens)
+    .where(and(eq(apiTokens.id, tokenId), eq(apiTokens.userId, userId)));
   if (!owned) throw notFound("You have no token with this id.");
-  await db.update(apiTokens).set({ revokedAt: new Date() }).where(and(eq(apiTokens.id, tokenId), isNull(apiTokens.revokedAt)));
+  await db
+    .update(apiTokens)
+    .set({ revokedAt: new Date() })
+    .where(and(eq(apiTokens.id, tokenId), isNull(apiTokens.revokedAt)));
 }

@@ -77,7 +77,13 @@ export interface FilterColumns {
 
 const responseColumns: FilterColumns = {
   versionId: responses.versionId,
-  siteYear: { crop: responses.crop, year: responses.year, tillage: responses.tillage, rowSpacingIn: responses.rowSpacingIn, plantingDate: responses.plantingDate },
+  siteYear: {
+    crop: responses.crop,
+    year: responses.year,
+    tillage: responses.tillage,
+    rowSpacingIn: responses.rowSpacingIn,
+    plantingDate: responses.plantingDate,
+  },
   treatment: {
     nutrients: responses.nutrients,
     placements: responses.placements,
@@ -168,7 +174,20 @@ export function observationConditions(filters: Partial<TrialFilters>, versionIds
   });
 }
 
-const treatmentFilterKeys = ["nutrient", "nutrientSupplied", "placement", "soilTestClass", "nRateMin", "nRateMax", "p2o5RateMin", "p2o5RateMax", "k2oRateMin", "k2oRateMax", "sRateMin", "sRateMax"] as const;
+const treatmentFilterKeys = [
+  "nutrient",
+  "nutrientSupplied",
+  "placement",
+  "soilTestClass",
+  "nRateMin",
+  "nRateMax",
+  "p2o5RateMin",
+  "p2o5RateMax",
+  "k2oRateMin",
+  "k2oRateMax",
+  "sRateMin",
+  "sRateMax",
+] as const;
 
 /**
  * WHERE conditions on site-years. Site-year filters apply directly; treatment filters (and the soil-test class,

@@ -6,10 +6,7 @@ import { hashPassword } from "@/server/auth/passwords";
 
 export const normaliseEmail = (email: string) => email.trim().toLowerCase();
 
-export async function createUser(
-  db: Db,
-  input: { email: string; displayName: string; password: string; role?: Role; verified?: boolean },
-) {
+export async function createUser(db: Db, input: { email: string; displayName: string; password: string; role?: Role; verified?: boolean }) {
   const [user] = await db
     .insert(users)
     .values({
@@ -24,7 +21,10 @@ export async function createUser(
 }
 
 export async function findUserByEmail(db: Db, email: string) {
-  const [user] = await db.select().from(users).where(eq(users.email, normaliseEmail(email)));
+  const [user] = await db
+    .select()
+    .from(users)
+    .where(eq(users.email, normaliseEmail(email)));
   return user ?? null;
 }
 

@@ -133,7 +133,12 @@ export function metaAnalysis(input: MetaAnalysisInput): MetaAnalysisResult {
     };
     if (k >= 3) {
       const critical = tQuantile(1 - (1 - level) / 2, k - 2);
-      tKMinus2 = { lower: coefficient.estimate - critical * spread, upper: coefficient.estimate + critical * spread, distribution: "t", df: k - 2 };
+      tKMinus2 = {
+        lower: coefficient.estimate - critical * spread,
+        upper: coefficient.estimate + critical * spread,
+        distribution: "t",
+        df: k - 2,
+      };
     }
   }
   const totalWeight = fit.weights.reduce((sum, w) => sum + w, 0);

@@ -6,14 +6,7 @@
  * dummies; a continuous soil-test value is one more column. Reference: Viechtbauer (2010) J Stat
  * Softw 36(3) (metafor `rma(yi, vi, mods = ...)`); Knapp & Hartung (2003) Stat Med 22:2693–2710.
  */
-import {
-  chiSquareSurvival,
-  fSurvival,
-  normalQuantile,
-  normalTwoSidedP,
-  tQuantile,
-  tTwoSidedP,
-} from "@/stats/distributions";
+import { chiSquareSurvival, fSurvival, normalQuantile, normalTwoSidedP, tQuantile, tTwoSidedP } from "@/stats/distributions";
 import { estimateTauSquared, marginalWeights } from "@/stats/meta/tau-squared";
 import type {
   CoefficientEstimate,
@@ -139,8 +132,7 @@ export function metaRegression(input: MetaRegressionInput): MetaRegressionResult
     };
   });
 
-  const tested =
-    input.testedCoefficients ?? input.coefficientNames.flatMap((name, index) => (name === "intrcpt" ? [] : [index]));
+  const tested = input.testedCoefficients ?? input.coefficientNames.flatMap((name, index) => (name === "intrcpt" ? [] : [index]));
   let qm: MetaRegressionResult["qm"] = null;
   if (tested.length > 0) {
     const subCovariance = tested.map((i) => tested.map((j) => covariance[i]?.[j] ?? 0));

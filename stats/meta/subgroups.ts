@@ -77,11 +77,23 @@ export function commonTauSquaredSubgroups(input: SubgroupInput): CommonTauSquare
     testedCoefficients: levels.map((_, index) => index),
     ...options,
     // Same column space as `~ group`, so the same residual τ² (metafor estimates it again and gets it to 1e-10).
-    tau2Estimate: { tau2: differences.tau2, seTau2: differences.seTau2, converged: differences.converged, iterations: differences.iterations, message: null },
+    tau2Estimate: {
+      tau2: differences.tau2,
+      seTau2: differences.seTau2,
+      converged: differences.converged,
+      iterations: differences.iterations,
+      message: null,
+    },
   });
   let r2Percent: number | null = null;
   if (method !== "FE" && input.r2 !== false) {
-    const overall = metaRegression({ yi: input.yi, vi: input.vi, design: input.yi.map(() => [1]), coefficientNames: ["intrcpt"], ...options });
+    const overall = metaRegression({
+      yi: input.yi,
+      vi: input.vi,
+      design: input.yi.map(() => [1]),
+      coefficientNames: ["intrcpt"],
+      ...options,
+    });
     r2Percent = overall.tau2 > 0 ? Math.max(0, (100 * (overall.tau2 - differences.tau2)) / overall.tau2) : null;
   }
   return { differences, perLevel, r2Percent };

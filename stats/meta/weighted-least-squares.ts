@@ -79,7 +79,11 @@ export interface WeightedFit {
  *
  * @example weightedLeastSquares([1, 3], [[1], [1]], [1, 1]).coefficients // [2]
  */
-export function weightedLeastSquares(y: ArrayLike<number>, design: readonly (readonly number[])[], weights: ArrayLike<number>): WeightedFit {
+export function weightedLeastSquares(
+  y: ArrayLike<number>,
+  design: readonly (readonly number[])[],
+  weights: ArrayLike<number>,
+): WeightedFit {
   const k = y.length;
   const p = design[0]?.length ?? 0;
   const w = Float64Array.from(weights);

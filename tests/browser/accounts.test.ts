@@ -79,8 +79,19 @@ describe("accounts on a phone (390x844)", () => {
 
   it("lets an admin change a role, see it in the log, and open an e-mailed link from the outbox", async () => {
     const password = "admin-basin-plots-7";
-    const admin = await createUser(server.ctx.db, { email: "basin.admin@tallgrass.test", displayName: "Basin Admin", password, role: "admin", verified: true });
-    const member = await createUser(server.ctx.db, { email: "basin.member@tallgrass.test", displayName: "Basin Member", password, verified: true });
+    const admin = await createUser(server.ctx.db, {
+      email: "basin.admin@tallgrass.test",
+      displayName: "Basin Admin",
+      password,
+      role: "admin",
+      verified: true,
+    });
+    const member = await createUser(server.ctx.db, {
+      email: "basin.member@tallgrass.test",
+      displayName: "Basin Member",
+      password,
+      verified: true,
+    });
     // An invitation accepted earlier: the grant is in the log, made by the inviter.
     await inviteUser(server.ctx, admin, { email: "basin.invitee@tallgrass.test", role: "curator" });
     const [invitation] = await server.ctx.db.select().from(outbox).where(eq(outbox.to, "basin.invitee@tallgrass.test"));

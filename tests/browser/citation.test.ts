@@ -23,7 +23,10 @@ beforeAll(async () => {
   withdrawn = await citableFixture(server.ctx, "tb-cite-withdrawn");
   const first = await withdrawn.publish("1.0.0", { publishedAt: new Date(Date.UTC(2024, 4, 2)) });
   await withdrawn.publish("1.1.0", { publishedAt: new Date(Date.UTC(2025, 2, 14)) });
-  await server.ctx.db.update(versions).set({ state: "withdrawn", withdrawnReason: "Yields at TB-01 were entered in bu/ac", withdrawnAt: new Date(Date.UTC(2025, 3, 1)) }).where(eq(versions.id, first));
+  await server.ctx.db
+    .update(versions)
+    .set({ state: "withdrawn", withdrawnReason: "Yields at TB-01 were entered in bu/ac", withdrawnAt: new Date(Date.UTC(2025, 3, 1)) })
+    .where(eq(versions.id, first));
   browser = await launchBrowser();
 });
 afterAll(async () => {
@@ -129,11 +132,18 @@ describe("DOI registration on the version desk", () => {
     fake.records.delete(doi);
     await server.ctx.db
       .update(versions)
-      .set({ doi: null, doiStatus: "failed", doiLastError: "The DOI service answered 422 to POST /dois: types.resourceTypeGeneral: not accepted." })
+      .set({
+        doi: null,
+        doiStatus: "failed",
+        doiLastError: "The DOI service answered 422 to POST /dois: types.resourceTypeGeneral: not accepted.",
+      })
       .where(eq(versions.id, id));
     const [owner] = await server.ctx.db.select().from(users).where(eq(users.id, f.ownerId));
 
-    for (const [viewport, name] of [[phone, "phone"], [desktop, "desktop"]] as const) {
+    for (const [viewport, name] of [
+      [phone, "phone"],
+      [desktop, "desktop"],
+    ] as const) {
       const context = await newContext(browser, viewport);
       const page = await context.newPage();
       const problems = watchPage(page);

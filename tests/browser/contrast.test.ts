@@ -22,7 +22,10 @@ async function contrastFailures(page: Page): Promise<{ checked: number; failures
     const parse = (c: string): [number, number, number, number] => {
       const m = c.match(/rgba?\(([^)]+)\)/);
       if (!m) return [0, 0, 0, 0];
-      const [r, g, b, a] = m[1]!.split(/[ ,/]+/).filter(Boolean).map(Number);
+      const [r, g, b, a] = m[1]!
+        .split(/[ ,/]+/)
+        .filter(Boolean)
+        .map(Number);
       return [r!, g!, b!, a === undefined ? 1 : a];
     };
     const over = (top: [number, number, number, number], under: [number, number, number]): [number, number, number] =>
@@ -66,7 +69,13 @@ async function contrastFailures(page: Page): Promise<{ checked: number; failures
       const needed = size >= 24 || (bold && size >= 18.66) ? 3 : 4.5;
       checked++;
       if (ratio < needed) {
-        failures.push({ text: n.textContent.trim().slice(0, 60), ratio: Math.round(ratio * 100) / 100, needed, color: style.color, background: `rgb(${bg.map(Math.round).join(", ")})` });
+        failures.push({
+          text: n.textContent.trim().slice(0, 60),
+          ratio: Math.round(ratio * 100) / 100,
+          needed,
+          color: style.color,
+          background: `rgb(${bg.map(Math.round).join(", ")})`,
+        });
       }
     }
     return { checked, failures };

@@ -13,7 +13,12 @@ let browser: Browser;
 beforeAll(async () => {
   server = await startServer();
   await createUser(server.ctx.db, { ...colleague, role: "curator", verified: true });
-  await createUser(server.ctx.db, { email: "field.member@tallgrass.test", displayName: "Field Member", password: "prairie-member-2026", verified: true });
+  await createUser(server.ctx.db, {
+    email: "field.member@tallgrass.test",
+    displayName: "Field Member",
+    password: "prairie-member-2026",
+    verified: true,
+  });
   browser = await launchBrowser();
 });
 afterAll(async () => {

@@ -70,7 +70,9 @@ async function signIn(context: BrowserContext, email: string): Promise<Page> {
 }
 
 async function chooseFile(page: Page, name: string, text: string) {
-  await page.locator('input[type="file"][aria-label="CSV file"]').setInputFiles({ name, mimeType: "text/csv", buffer: Buffer.from(text, "utf8") });
+  await page
+    .locator('input[type="file"][aria-label="CSV file"]')
+    .setInputFiles({ name, mimeType: "text/csv", buffer: Buffer.from(text, "utf8") });
   await page.getByText(name, { exact: false }).first().waitFor();
 }
 
@@ -112,7 +114,9 @@ describe("the curator's workbench at desktop size", () => {
     await page.getByLabel("Slug (web address)", { exact: true }).fill(slug);
     await page.getByRole("checkbox", { name: "Crops: Soybean" }).click();
     await page.getByLabel("Region", { exact: true }).fill("Tallgrass Basin, east");
-    await page.getByLabel("Description", { exact: true }).fill("Check versus 2x2 band MAP on soybean at two invented Tallgrass Basin sites.");
+    await page
+      .getByLabel("Description", { exact: true })
+      .fill("Check versus 2x2 band MAP on soybean at two invented Tallgrass Basin sites.");
     await page.getByRole("button", { name: "Add contributor" }).click();
     await page.getByLabel("Contributor 1 name", { exact: true }).fill("Tallgrass Basin Agronomy Network");
     await page.getByLabel("Contributor 1 ORCID iD (optional)", { exact: true }).fill("1234");
@@ -167,9 +171,25 @@ describe("the curator's workbench at desktop size", () => {
     expect((await apiVersion(page, v1)).counts?.site_years ?? 0).toBe(0);
 
     await uploadFile(page, "Site-years", "site-years.csv", `${siteYearHeader}\n${siteYears2021.join("\n")}\n`);
-    await uploadFile(page, "Soil tests", "soil-tests.csv", soilTestsCsv(["TB-05-2021,P,7,ppm,Bray-P1,6,low,tallgrass-illustrative", "TB-06-2021,P,26,ppm,Bray-P1,6,very_high,tallgrass-illustrative"]));
+    await uploadFile(
+      page,
+      "Soil tests",
+      "soil-tests.csv",
+      soilTestsCsv([
+        "TB-05-2021,P,7,ppm,Bray-P1,6,low,tallgrass-illustrative",
+        "TB-06-2021,P,26,ppm,Bray-P1,6,very_high,tallgrass-illustrative",
+      ]),
+    );
     await uploadFile(page, "Treatments", "treatments.csv", treatmentsCsv);
-    await uploadFile(page, "Plots", "plots-2021.csv", plotsCsv([{ code: "TB-05-2021", base: 3500, band: 320 }, { code: "TB-06-2021", base: 4050, band: 10 }]));
+    await uploadFile(
+      page,
+      "Plots",
+      "plots-2021.csv",
+      plotsCsv([
+        { code: "TB-05-2021", base: 3500, band: 320 },
+        { code: "TB-06-2021", base: 4050, band: 10 },
+      ]),
+    );
     const drafted = await apiVersion(page, v1);
     expect(drafted.counts).toMatchObject({ sites: 2, site_years: 2, soil_tests: 2, treatments: 2, plots: 16 });
     expect(drafted.responses).toBe(2);
@@ -180,7 +200,10 @@ describe("the curator's workbench at desktop size", () => {
     await expect(page.getByRole("button", { name: "Approve and publish" }).count()).resolves.toBe(0);
     await page.getByRole("button", { name: "Submit for review" }).click();
     await page.getByRole("button", { name: "Confirm: submit for review" }).click();
-    await page.getByText(/at least 3|too small|Too small/i).first().waitFor();
+    await page
+      .getByText(/at least 3|too small|Too small/i)
+      .first()
+      .waitFor();
     await page.getByLabel("Changelog", { exact: true }).fill("First release: the 2021 season at TB-05 and TB-06.");
     await expect(page.getByLabel("Version number", { exact: true }).inputValue()).resolves.toBe("1.0.0");
     await page.getByRole("button", { name: "Confirm: submit for review" }).click();
@@ -208,7 +231,12 @@ describe("the curator's workbench at desktop size", () => {
     const v2 = await versionOf(page);
     await page.getByText("Based on v1.0.0").waitFor();
     await page.getByRole("tab", { name: "Upload" }).click();
-    await uploadFile(page, "Site-years", "site-years-2022.csv", `${siteYearHeader}\nTB-05-2022,TB-05,soybean,2022,RCBD,4,no-till,corn,2022-05-10,30\n`);
+    await uploadFile(
+      page,
+      "Site-years",
+      "site-years-2022.csv",
+      `${siteYearHeader}\nTB-05-2022,TB-05,soybean,2022,RCBD,4,no-till,corn,2022-05-10,30\n`,
+    );
     await uploadFile(page, "Soil tests", "soil-tests-2022.csv", soilTestsCsv(["TB-05-2022,P,9,ppm,Bray-P1,6,low,tallgrass-illustrative"]));
     await uploadFile(page, "Plots", "plots-2022.csv", plotsCsv([{ code: "TB-05-2022", base: 3650, band: 280 }]));
     await page.getByRole("tab", { name: "Changes since v1.0.0" }).click();

@@ -56,11 +56,16 @@ describe("the Developers screen", () => {
     await page.getByLabel("Expires after (days, 1–365)").fill("30");
     await page.getByRole("button", { name: "Make token" }).click();
     await page.getByText("Your new token “nightly pull”").waitFor();
-    const secret = (await page.getByText(/^pb_[A-Za-z0-9_-]{20,}$/).first().textContent())!.trim();
+    const secret = (await page
+      .getByText(/^pb_[A-Za-z0-9_-]{20,}$/)
+      .first()
+      .textContent())!.trim();
     await screenshot(page, "developers-new-token-phone");
 
     // The secret authenticates an API read; a made-up one does not.
-    const withToken = await fetch(`${server.url}/api/v1/responses?crop=soybean&limit=5`, { headers: { Authorization: `Bearer ${secret}` } });
+    const withToken = await fetch(`${server.url}/api/v1/responses?crop=soybean&limit=5`, {
+      headers: { Authorization: `Bearer ${secret}` },
+    });
     expect(withToken.status).toBe(200);
     const wrong = await fetch(`${server.url}/api/v1/responses?limit=5`, { headers: { Authorization: `Bearer ${secret}x` } });
     expect(wrong.status).toBe(401);

@@ -67,13 +67,21 @@ describe("compare by placement at 390x844", () => {
     await settled(page);
 
     // Colour and shape per group, both distinct, each marker at least 3:1 against its card (WCAG 2.1 SC 1.4.11).
-    const markers = await page.evaluate((names) => {
-      const card = document.querySelector('[data-testid="subgroup-view"]')!;
-      return names.map((level) => {
-        const shape = document.querySelector(`[data-testid="group-marker-${level}"] [data-shape]`)!;
-        return { level, shape: shape.getAttribute("data-shape"), fill: getComputedStyle(shape).fill, card: getComputedStyle(card).backgroundColor };
-      });
-    }, levels.map((l) => l.level));
+    const markers = await page.evaluate(
+      (names) => {
+        const card = document.querySelector('[data-testid="subgroup-view"]')!;
+        return names.map((level) => {
+          const shape = document.querySelector(`[data-testid="group-marker-${level}"] [data-shape]`)!;
+          return {
+            level,
+            shape: shape.getAttribute("data-shape"),
+            fill: getComputedStyle(shape).fill,
+            card: getComputedStyle(card).backgroundColor,
+          };
+        });
+      },
+      levels.map((l) => l.level),
+    );
     expect(new Set(markers.map((m) => m.shape)).size).toBe(levels.length);
     expect(new Set(markers.map((m) => m.fill)).size).toBe(levels.length);
     for (const m of markers) expect(contrast(m.fill, m.card), JSON.stringify(m)).toBeGreaterThanOrEqual(3);
@@ -81,7 +89,9 @@ describe("compare by placement at 390x844", () => {
     // Each group's chance of any gain, as the API gives it.
     for (const l of levels) {
       const line = await page.getByTestId(`subgroup-chance-${l.level}`).innerText();
-      expect(line).toContain(`Any gain on a new site-year: ${formatPercent(l.probabilityAboveZero)} (observed ${formatPercent(l.shareAboveZero)})`);
+      expect(line).toContain(
+        `Any gain on a new site-year: ${formatPercent(l.probabilityAboveZero)} (observed ${formatPercent(l.shareAboveZero)})`,
+      );
     }
 
     // The grouped forest plot: a header per group with its k, its rows under it, a subtotal diamond with its k.
@@ -91,8 +101,15 @@ describe("compare by placement at 390x844", () => {
     const forest = await page.evaluate(() => {
       const svg = document.querySelector('[data-testid="forest-plot"] svg')!;
       const texts = [...svg.querySelectorAll("text")].map((t) => t.textContent ?? "");
-      const headers = [...svg.querySelectorAll("[data-group-header]")].map((t) => ({ level: t.getAttribute("data-group-header"), text: t.textContent }));
-      const subtotals = [...svg.querySelectorAll("[data-subtotal]")].map((p) => ({ level: p.getAttribute("data-subtotal"), k: Number(p.getAttribute("data-k")), fill: getComputedStyle(p).fill }));
+      const headers = [...svg.querySelectorAll("[data-group-header]")].map((t) => ({
+        level: t.getAttribute("data-group-header"),
+        text: t.textContent,
+      }));
+      const subtotals = [...svg.querySelectorAll("[data-subtotal]")].map((p) => ({
+        level: p.getAttribute("data-subtotal"),
+        k: Number(p.getAttribute("data-k")),
+        fill: getComputedStyle(p).fill,
+      }));
       return { texts, headers, subtotals };
     });
     expect(forest.headers).toEqual([
@@ -119,7 +136,9 @@ describe("compare by placement at 390x844", () => {
     for (const l of priced.subgroups!.levels) {
       await expect
         .poll(() => page.getByTestId(`subgroup-chance-${l.level}`).innerText())
-        .toContain(`Beats the break-even on a new site-year: ${formatPercent(l.probabilityAboveBreakEven)} (observed ${formatPercent(l.shareAboveBreakEven)} of these site-years)`);
+        .toContain(
+          `Beats the break-even on a new site-year: ${formatPercent(l.probabilityAboveBreakEven)} (observed ${formatPercent(l.shareAboveBreakEven)} of these site-years)`,
+        );
     }
     expect(await page.getByTestId("probability-profit").innerText()).toBe(formatPercent(priced.decision.probabilityAboveBreakEven));
 
@@ -159,9 +178,13 @@ describe("prices stay on the device", () => {
       expect(r.postData() ?? "", r.url()).not.toMatch(leaks);
     }
     expect(page.url()).not.toMatch(leaks);
-    const want = await api(`/api/v1/analyses/meta?crop=soybean&nutrient=P&placement=2x2-band&soilTestClass=low&groupBy=soilTestClass&price=11.35&productCost=18.25&applicationCost=6.75`);
+    const want = await api(
+      `/api/v1/analyses/meta?crop=soybean&nutrient=P&placement=2x2-band&soilTestClass=low&groupBy=soilTestClass&price=11.35&productCost=18.25&applicationCost=6.75`,
+    );
     expect(await page.getByTestId("probability-profit").innerText()).toBe(formatPercent(want.decision.probabilityAboveBreakEven));
-    expect(await page.getByTestId("share-above-break-even").innerText()).toContain(`${formatPercent(want.decision.shareAboveBreakEven)} of site-years beat it`);
+    expect(await page.getByTestId("share-above-break-even").innerText()).toContain(
+      `${formatPercent(want.decision.shareAboveBreakEven)} of site-years beat it`,
+    );
     expect(await page.getByTestId("chance-bars").getAttribute("aria-label")).toBe(
       `On one scale from 0 to 100 %: Chance a new site-year beats the break-even: ${formatPercent(want.decision.probabilityAboveBreakEven)}; Share of these site-years that beat it (observed): ${formatPercent(want.decision.shareAboveBreakEven)}`,
     );
@@ -190,7 +213,12 @@ describe("prices stay on the device", () => {
     await other.getByTestId("break-even").waitFor();
     expect(await other.getByTestId("probability-profit").innerText()).toBe(formatPercent(want.decision.probabilityAboveBreakEven));
     await other.waitForFunction(() => !/price/.test(window.location.search), undefined, { timeout: 10_000 });
-    expect(otherSent.filter((r) => r.url().includes("/api/")).map((r) => r.url()).filter((u) => leaks.test(u))).toEqual([]);
+    expect(
+      otherSent
+        .filter((r) => r.url().includes("/api/"))
+        .map((r) => r.url())
+        .filter((u) => leaks.test(u)),
+    ).toEqual([]);
     await fresh.close();
 
     // The device remembers them: a new visit fills them in without putting them in the address.

@@ -102,7 +102,9 @@ describe.each([
     expect(api.decision.costPerAcre).toBe(24);
     expect(api.decision.breakEven).toBeCloseTo(24 / 11.5, 9);
     expect(await text(page, "cautions")).toMatch(/injure a stand/);
-    expect(await text(page, "subgroup-test")).toMatch(/Between-group test: (F|χ²) = [\d.]+ on \d+( and \d+)? df, p [<=] [\d.]+|Only one group/);
+    expect(await text(page, "subgroup-test")).toMatch(
+      /Between-group test: (F|χ²) = [\d.]+ on \d+( and \d+)? df, p [<=] [\d.]+|Only one group/,
+    );
 
     await page.getByTestId("open-forest-plot").click();
     const plot = page.getByTestId("forest-plot");
@@ -198,7 +200,13 @@ describe("states of the Evidence screen", () => {
       [...document.querySelectorAll('[role="button"], [role="checkbox"], [role="radio"], input, [role="columnheader"]')].map((el) => {
         const r = el.getBoundingClientRect();
         // Labelled: an aria-label, or (a button named by its own words) its text.
-        return { label: el.getAttribute("aria-label") ?? el.textContent?.trim() ?? "", h: r.height, w: r.width, visible: r.width > 0 && r.height > 0, tab: (el as HTMLElement).tabIndex };
+        return {
+          label: el.getAttribute("aria-label") ?? el.textContent?.trim() ?? "",
+          h: r.height,
+          w: r.width,
+          visible: r.width > 0 && r.height > 0,
+          tab: (el as HTMLElement).tabIndex,
+        };
       }),
     );
     const visible = controls.filter((c) => c.visible);
@@ -249,7 +257,9 @@ describe("states of the Evidence screen", () => {
     expect(await text(page, "dataset-licence")).toMatch(/Licence/);
     await page.getByTestId("data-dictionary").waitFor();
     expect(await page.getByTestId("versions").innerText()).toMatch(/v\d+\.\d+\.\d+/);
-    expect(await page.getByTestId("download-datapackage").getAttribute("href")).toMatch(new RegExp(`/api/v1/datasets/${dataset.slug}/versions/.+/datapackage.zip$`));
+    expect(await page.getByTestId("download-datapackage").getAttribute("href")).toMatch(
+      new RegExp(`/api/v1/datasets/${dataset.slug}/versions/.+/datapackage.zip$`),
+    );
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(phone.width);
     await screenshot(page, "dataset-page-phone");
     await page.getByTestId("analyse-dataset").click();

@@ -37,11 +37,18 @@ describe("following a dataset on a phone", () => {
     await page.getByRole("button", { name: "Sign in" }).click();
     await page.waitForURL(`${server.url}/datasets/${slug}`);
 
-    const follow = page.getByRole("button", { name: /^Follow / }).filter({ visible: true }).first();
+    const follow = page
+      .getByRole("button", { name: /^Follow / })
+      .filter({ visible: true })
+      .first();
     const box = await follow.boundingBox();
     expect(box!.height).toBeGreaterThanOrEqual(44);
     await follow.click();
-    await page.getByRole("button", { name: /^Stop following / }).filter({ visible: true }).first().waitFor();
+    await page
+      .getByRole("button", { name: /^Stop following / })
+      .filter({ visible: true })
+      .first()
+      .waitFor();
     await page.getByText("You get an e-mail when a new version is published.").filter({ visible: true }).first().waitFor();
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(phone.width);
     await screenshot(page, "follow-dataset-phone");
@@ -53,14 +60,25 @@ describe("following a dataset on a phone", () => {
     await page.getByRole("link", { name: /Latest version 1\.0\.0$/ }).waitFor();
 
     await dataset.publish("1.1.0", { years: [2020, 2022] });
-    const notices = await server.ctx.db.select().from(outbox).where(and(eq(outbox.to, email), eq(outbox.kind, "new-version")));
+    const notices = await server.ctx.db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.to, email), eq(outbox.kind, "new-version")));
     expect(notices).toHaveLength(1);
     expect(notices[0]!.text).toContain(`/datasets/${slug}`);
 
     // Unfollowing from the dataset page ends the notices.
     await page.goto(`${server.url}/datasets/${slug}`);
-    await page.getByRole("button", { name: /^Stop following / }).filter({ visible: true }).first().click();
-    await page.getByRole("button", { name: /^Follow / }).filter({ visible: true }).first().waitFor();
+    await page
+      .getByRole("button", { name: /^Stop following / })
+      .filter({ visible: true })
+      .first()
+      .click();
+    await page
+      .getByRole("button", { name: /^Follow / })
+      .filter({ visible: true })
+      .first()
+      .waitFor();
     expect(await server.ctx.db.select().from(follows).where(eq(follows.datasetId, dataset.datasetId))).toHaveLength(0);
     expect(problems).toEqual([]);
     await context.close();

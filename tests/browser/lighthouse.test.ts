@@ -56,7 +56,9 @@ afterAll(async () => {
 
 // Every page at phone size; at desktop size the pages whose layout changes most (side filters, side navigation).
 const runs = formFactors.flatMap(([size, settings]) =>
-  pages.filter(([name]) => size === "phone" || ["Evidence", "a dataset page", "Developers"].includes(name)).map(([name, path]) => [`${name} at ${size} size`, path, settings] as const),
+  pages
+    .filter(([name]) => size === "phone" || ["Evidence", "a dataset page", "Developers"].includes(name))
+    .map(([name, path]) => [`${name} at ${size} size`, path, settings] as const),
 );
 
 describe("Lighthouse", () => {
@@ -76,9 +78,14 @@ describe("Lighthouse", () => {
     const failing = Object.values(lhr.categories).flatMap((c) =>
       c.auditRefs
         .filter((ref) => ref.weight > 0 && (lhr.audits[ref.id]?.score ?? 1) < 1)
-        .map((ref) => `${c.id}: ${ref.id} (${lhr.audits[ref.id]!.title}) ${JSON.stringify(lhr.audits[ref.id]!.details ?? {}).slice(0, 300)}`),
+        .map(
+          (ref) => `${c.id}: ${ref.id} (${lhr.audits[ref.id]!.title}) ${JSON.stringify(lhr.audits[ref.id]!.details ?? {}).slice(0, 300)}`,
+        ),
     );
     expect(failing).toEqual([]);
-    expect({ seo: lhr.categories.seo?.score, bestPractices: lhr.categories["best-practices"]?.score }).toEqual({ seo: 1, bestPractices: 1 });
+    expect({ seo: lhr.categories.seo?.score, bestPractices: lhr.categories["best-practices"]?.score }).toEqual({
+      seo: 1,
+      bestPractices: 1,
+    });
   });
 });

@@ -29,7 +29,11 @@ async function axeViolations(page: Page): Promise<Violation[]> {
   return page.evaluate(async () => {
     const axe = (window as unknown as { axe: { run: (c: Document, o: object) => Promise<{ violations: Violation[] }> } }).axe;
     const result = await axe.run(document, { resultTypes: ["violations"] });
-    return result.violations.map((v) => ({ id: v.id, impact: v.impact, nodes: v.nodes.map((n) => ({ target: n.target, html: n.html.slice(0, 160) })) }));
+    return result.violations.map((v) => ({
+      id: v.id,
+      impact: v.impact,
+      nodes: v.nodes.map((n) => ({ target: n.target, html: n.html.slice(0, 160) })),
+    }));
   });
 }
 
@@ -58,7 +62,11 @@ afterAll(async () => {
 
 it("the list of visited screens covers every route file in app/", () => {
   const visited = new Set(screenVisits.map((v) => v.route));
-  expect(appRoutes().map((r) => r.file).filter((f) => !visited.has(f))).toEqual([]);
+  expect(
+    appRoutes()
+      .map((r) => r.file)
+      .filter((f) => !visited.has(f)),
+  ).toEqual([]);
   expect(visited.has("+not-found")).toBe(true);
 });
 
@@ -71,7 +79,9 @@ describe.each([
     await context.addInitScript(() => {
       const seen: string[] = [];
       (window as unknown as { __cspViolations: string[] }).__cspViolations = seen;
-      document.addEventListener("securitypolicyviolation", (e) => seen.push(`${e.violatedDirective} blocked ${e.blockedURI || "(inline)"}`));
+      document.addEventListener("securitypolicyviolation", (e) =>
+        seen.push(`${e.violatedDirective} blocked ${e.blockedURI || "(inline)"}`),
+      );
     });
     if (visit.as) await signInAs(context, server.url, visit.as);
     const page = await context.newPage();
@@ -81,7 +91,12 @@ describe.each([
     const facts = await pageFacts(page);
     await context.close();
 
-    expect.soft(violations.map((v) => `${v.id} (${v.impact}): ${v.nodes.map((n) => n.html).join(" | ")}`), "axe-core violations").toEqual([]);
+    expect
+      .soft(
+        violations.map((v) => `${v.id} (${v.impact}): ${v.nodes.map((n) => n.html).join(" | ")}`),
+        "axe-core violations",
+      )
+      .toEqual([]);
     expect.soft(facts.h1, "exactly one h1").toHaveLength(1);
     // "<h1> · Plotbank"; a dataset page adds the version it shows: "<h1> (version 1.1.1) · Plotbank".
     const h1 = (facts.h1[0] ?? "").replace(/[.*+?^${}()|[\]\\]/g, "\\$&");
@@ -90,7 +105,8 @@ describe.each([
     expect.soft(facts.descriptions[0]?.length ?? 0, "a meta description with words in it").toBeGreaterThan(40);
     expect.soft(facts.cspViolations, "Content-Security-Policy violations").toEqual([]);
     // The not-found screen's own document is answered 404 (for crawlers), and Chromium logs that one.
-    const expected = visit.route === "+not-found" ? ["console error: Failed to load resource: the server responded with a status of 404 (Not Found)"] : [];
+    const expected =
+      visit.route === "+not-found" ? ["console error: Failed to load resource: the server responded with a status of 404 (Not Found)"] : [];
     expect.soft(problems, "console errors").toEqual(expected);
     // Different screens have different titles (the same screen seen by two roles shares one).
     const earlier = [...titles].find(([route, title]) => title === facts.title && route !== visit.route);

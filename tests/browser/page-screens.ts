@@ -63,8 +63,13 @@ export async function screenFixture(server: RunningServer): Promise<ScreenFixtur
   const [dataset] = await db.select().from(datasets).where(eq(datasets.slug, "soybean-starter-p-placement"));
   if (!dataset) throw new Error("the demo data has no soybean-starter-p-placement dataset");
   const own = await db.select().from(versions).where(eq(versions.datasetId, dataset.id));
-  const published = own.filter((v) => v.state === "published").sort((a, b) => (b.publishedAt?.getTime() ?? 0) - (a.publishedAt?.getTime() ?? 0));
-  const [message] = await db.insert(outbox).values({ kind: "test", to: "someone@tallgrass.test", subject: "Review requested", text: "A version waits for review." }).returning();
+  const published = own
+    .filter((v) => v.state === "published")
+    .sort((a, b) => (b.publishedAt?.getTime() ?? 0) - (a.publishedAt?.getTime() ?? 0));
+  const [message] = await db
+    .insert(outbox)
+    .values({ kind: "test", to: "someone@tallgrass.test", subject: "Review requested", text: "A version waits for review." })
+    .returning();
   const member = await findUserByEmail(db, "member@plotbank.test");
   let n = 0;
   // A confirmation link for a new, unconfirmed account; a reset link for the demo member; an invitation for a curator.
@@ -72,7 +77,13 @@ export async function screenFixture(server: RunningServer): Promise<ScreenFixtur
     n++;
     const who =
       purpose === "verify"
-        ? await createUser(db, { email: `unconfirmed-${n}@tallgrass.test`, displayName: "Unconfirmed Visitor", password: demoPassword, role: "member", verified: false })
+        ? await createUser(db, {
+            email: `unconfirmed-${n}@tallgrass.test`,
+            displayName: "Unconfirmed Visitor",
+            password: demoPassword,
+            role: "member",
+            verified: false,
+          })
         : purpose === "reset"
           ? member
           : null;
@@ -98,5 +109,7 @@ export async function openScreen(page: Page, url: string) {
   await page.goto(url);
   await page.locator("h1").first().waitFor();
   await page.waitForLoadState("networkidle");
-  await page.waitForFunction(() => !document.querySelector('[aria-busy="true"], [role="progressbar"]'), undefined, { timeout: 15_000 }).catch(() => undefined);
+  await page
+    .waitForFunction(() => !document.querySelector('[aria-busy="true"], [role="progressbar"]'), undefined, { timeout: 15_000 })
+    .catch(() => undefined);
 }

@@ -24,11 +24,21 @@ async function startMain(env: Record<string, string>, command: "node" | "npm sta
   const [file, args] = command === "node" ? [process.execPath, ["--import", "tsx", "server/main.ts"]] : ["npm", ["start"]];
   const child = spawn(file, args, {
     cwd: root,
-    env: { ...inherited, HOST: "127.0.0.1", PORT: "0", NODE_ENV: "production", PLOTBANK_MAIL_OUTBOX_ONLY: "1", PLOTBANK_DEMO: "off", ...env },
+    env: {
+      ...inherited,
+      HOST: "127.0.0.1",
+      PORT: "0",
+      NODE_ENV: "production",
+      PLOTBANK_MAIL_OUTBOX_ONLY: "1",
+      PLOTBANK_DEMO: "off",
+      ...env,
+    },
     stdio: ["ignore", "pipe", "pipe"],
   });
   let log = "";
-  const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((resolve) => child.once("exit", (code, signal) => resolve({ code, signal })));
+  const exited = new Promise<{ code: number | null; signal: NodeJS.Signals | null }>((resolve) =>
+    child.once("exit", (code, signal) => resolve({ code, signal })),
+  );
   const url = await new Promise<string>((resolve, reject) => {
     const timer = setTimeout(() => reject(new Error(`no "is serving" line within 60 s:\n${log}`)), 60_000);
     const read = (chunk: Buffer) => {
@@ -62,7 +72,11 @@ const password = "loam-furrow-7391-basin";
 
 /** Sign-in tells an unconfirmed account apart from an unknown one; that is how the test sees the account exists. */
 async function signInDetail(url: string) {
-  const res = await fetch(`${url}/api/v1/session`, { method: "POST", headers: { "Content-Type": "application/json" }, body: JSON.stringify({ email, password }) });
+  const res = await fetch(`${url}/api/v1/session`, {
+    method: "POST",
+    headers: { "Content-Type": "application/json" },
+    body: JSON.stringify({ email, password }),
+  });
   expect(res.status).toBe(401);
   return ((await res.json()) as { detail: string }).detail;
 }
@@ -110,7 +124,11 @@ describe("the production process (server/main.ts)", () => {
 
     const answer = await fetch(`${first.url}/api/v1/health`);
     expect(answer.status).toBe(200);
-    expect(health.parse(await answer.json())).toMatchObject({ status: "ok", version: packageVersion, database: { kind: "pglite", connected: true } });
+    expect(health.parse(await answer.json())).toMatchObject({
+      status: "ok",
+      version: packageVersion,
+      database: { kind: "pglite", connected: true },
+    });
     expect(await signInDetail(first.url)).toMatch(/e-mail or the password is wrong/);
     const signUp = await fetch(`${first.url}/api/v1/sign-up`, {
       method: "POST",
@@ -125,7 +143,10 @@ describe("the production process (server/main.ts)", () => {
 
     running = await startMain(env);
     const second = running;
-    expect(health.parse(await (await fetch(`${second.url}/api/v1/health`)).json()).database).toMatchObject({ kind: "pglite", connected: true });
+    expect(health.parse(await (await fetch(`${second.url}/api/v1/health`)).json()).database).toMatchObject({
+      kind: "pglite",
+      connected: true,
+    });
     expect(await signInDetail(second.url)).toMatch(/Confirm your e-mail address/);
     // The web export is served by the same process.
     const page = await fetch(`${second.url}/datasets`);

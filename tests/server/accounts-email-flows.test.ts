@@ -66,7 +66,10 @@ describe("sign-up → confirmation link → sign-in", () => {
   });
 
   it("answers the same for an address that already has an account, and mails its owner instead", async () => {
-    const res = await request(t.app).post("/api/v1/sign-up").send({ email, displayName: "Someone Else", password: "another-long-pass-9" }).expect(202);
+    const res = await request(t.app)
+      .post("/api/v1/sign-up")
+      .send({ email, displayName: "Someone Else", password: "another-long-pass-9" })
+      .expect(202);
     expect(res.body.status).toBe("check-email");
     const { message } = await lastMail(email.toLowerCase(), "already-registered");
     expect(message.subject).toMatch(/already have/);
@@ -78,7 +81,9 @@ describe("sign-up → confirmation link → sign-in", () => {
     expect(short.body.errors[0].field).toBe("body.password");
     // Whole entries of zxcvbn's common-password list, and near-variants of them (score below 3).
     const common = await signUp("x2@tallgrass.test", "123456789012").expect(400);
-    expect(common.body.errors).toEqual([{ field: "body.password", message: "This is a commonly used password. Add more words that are less common." }]);
+    expect(common.body.errors).toEqual([
+      { field: "body.password", message: "This is a commonly used password. Add more words that are less common." },
+    ]);
     const similar = await signUp("x3@tallgrass.test", "password1234").expect(400);
     expect(similar.body.errors[0].message).toMatch(/^This is similar to a commonly used password\./);
     const repeated = await signUp("x4@tallgrass.test", "aaaaaaaaaaaa").expect(400);
@@ -92,8 +97,14 @@ describe("sign-up → confirmation link → sign-in", () => {
 
   it("accepts passphrases of a few unrelated words, the demo accounts' password among them", async () => {
     for (const { email } of demoAccounts) expect(passwordWeakness(demoPassword, email), email).toBeNull();
-    await request(t.app).post("/api/v1/sign-up").send({ email: "demo.like@tallgrass.test", displayName: "Demo Like", password: demoPassword }).expect(202);
-    await request(t.app).post("/api/v1/sign-up").send({ email: "furrow@tallgrass.test", displayName: "Furrow", password: testPassword }).expect(202);
+    await request(t.app)
+      .post("/api/v1/sign-up")
+      .send({ email: "demo.like@tallgrass.test", displayName: "Demo Like", password: demoPassword })
+      .expect(202);
+    await request(t.app)
+      .post("/api/v1/sign-up")
+      .send({ email: "furrow@tallgrass.test", displayName: "Furrow", password: testPassword })
+      .expect(202);
   });
 
   it("refuses an unknown link with a clear message", async () => {
@@ -135,7 +146,10 @@ describe("password reset", () => {
     await request(t.app).post("/api/v1/password-reset").send({ email: user.email }).expect(202);
     const { token } = await lastMail(user.email, "password-reset");
     const { emailTokens } = await import("@/db/schema");
-    await t.ctx.db.update(emailTokens).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(emailTokens.email, user.email));
+    await t.ctx.db
+      .update(emailTokens)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .where(eq(emailTokens.email, user.email));
     const res = await request(t.app).post("/api/v1/password-reset/confirm").send({ token, password: newPassword }).expect(410);
     expect(res.body.detail).toMatch(/expired/);
   });
@@ -171,13 +185,18 @@ describe("invitation → accept → sign-in", () => {
 
     const agent = await signedInAgent(t.app, "new.curator@tallgrass.test", newPassword);
     expect((await agent.get("/api/v1/session").expect(200)).body.user.role).toBe("curator");
-    const again = await request(t.app).post("/api/v1/invitations/accept").send({ token, displayName: "X", password: newPassword }).expect(410);
+    const again = await request(t.app)
+      .post("/api/v1/invitations/accept")
+      .send({ token, displayName: "X", password: newPassword })
+      .expect(410);
     expect(again.body.detail).toMatch(/invitation has already been used/);
 
     // The grant is in the role-change log like any change of role, made by the inviter.
     const log = roleChangeList.parse((await adminAgent.get("/api/v1/admin/role-changes").expect(200)).body);
     const granted = log.items.filter((c) => c.user.id === accepted.body.id);
-    expect(granted).toEqual([expect.objectContaining({ fromRole: null, toRole: "curator", actor: { id: admin.id, displayName: admin.displayName } })]);
+    expect(granted).toEqual([
+      expect.objectContaining({ fromRole: null, toRole: "curator", actor: { id: admin.id, displayName: admin.displayName } }),
+    ]);
   });
 
   it("creates no account when the role grant cannot be logged, and the link still works afterwards", async () => {
@@ -189,12 +208,20 @@ describe("invitation → accept → sign-in", () => {
       const [invitation] = await fresh.ctx.db.select().from(outbox).where(eq(outbox.kind, "invitation"));
       const token = new URL(invitation!.text.match(/https?:\/\/\S+/)![0]).searchParams.get("token")!;
       // A database-level fault in the audit log: the account must not exist without its log row.
-      await fresh.ctx.db.execute(sql`create function refuse_log() returns trigger language plpgsql as $$ begin raise exception 'audit log unavailable'; end $$`);
+      await fresh.ctx.db.execute(
+        sql`create function refuse_log() returns trigger language plpgsql as $$ begin raise exception 'audit log unavailable'; end $$`,
+      );
       await fresh.ctx.db.execute(sql`create trigger refuse_log before insert on role_changes for each row execute function refuse_log()`);
-      await request(fresh.app).post("/api/v1/invitations/accept").send({ token, displayName: "Lee Margin", password: newPassword }).expect(500);
+      await request(fresh.app)
+        .post("/api/v1/invitations/accept")
+        .send({ token, displayName: "Lee Margin", password: newPassword })
+        .expect(500);
       expect(await fresh.ctx.db.select().from(users).where(eq(users.email, "logged.reviewer@tallgrass.test"))).toEqual([]);
       await fresh.ctx.db.execute(sql`drop trigger refuse_log on role_changes`);
-      const accepted = await request(fresh.app).post("/api/v1/invitations/accept").send({ token, displayName: "Lee Margin", password: newPassword }).expect(201);
+      const accepted = await request(fresh.app)
+        .post("/api/v1/invitations/accept")
+        .send({ token, displayName: "Lee Margin", password: newPassword })
+        .expect(201);
       const rows = await fresh.ctx.db.select().from(roleChanges).where(eq(roleChanges.userId, accepted.body.id));
       expect(rows).toEqual([expect.objectContaining({ actorId: admin.id, fromRole: null, toRole: "reviewer" })]);
     } finally {
@@ -242,7 +269,10 @@ describe("profile", () => {
     const user = await makeUser(t.ctx, "member");
     const agent = await signedInAgent(t.app, user.email);
     const other = await signedInAgent(t.app, user.email);
-    const res = await agent.patch("/api/v1/account").send({ displayName: "Juniper Strip", role: "admin", emailVerified: false }).expect(200);
+    const res = await agent
+      .patch("/api/v1/account")
+      .send({ displayName: "Juniper Strip", role: "admin", emailVerified: false })
+      .expect(200);
     expect(res.body).toMatchObject({ displayName: "Juniper Strip", role: "member", emailVerified: true });
 
     const wrong = await agent.patch("/api/v1/account").send({ currentPassword: "not-my-password", newPassword }).expect(400);

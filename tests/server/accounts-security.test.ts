@@ -27,17 +27,27 @@ async function insertDataset(ctx: AppContext, slug: string, state: "draft" | "pu
   const owner = await makeUser(ctx, "curator");
   const [dataset] = await ctx.db
     .insert(datasets)
-    .values({ slug, title: `Tallgrass ${slug}`, crops: ["corn"], region: "Tallgrass Basin", description: "Invented trials", ownerId: owner.id })
+    .values({
+      slug,
+      title: `Tallgrass ${slug}`,
+      crops: ["corn"],
+      region: "Tallgrass Basin",
+      description: "Invented trials",
+      ownerId: owner.id,
+    })
     .returning();
   const [version] = await ctx.db
     .insert(versions)
-    .values({ datasetId: dataset!.id, semver: "1.0.0", tableSchema: { resources: {} } as never, createdBy: owner.id, changelog: "First release." })
+    .values({
+      datasetId: dataset!.id,
+      semver: "1.0.0",
+      tableSchema: { resources: {} } as never,
+      createdBy: owner.id,
+      changelog: "First release.",
+    })
     .returning();
   if (state !== "draft") {
-    await ctx.db
-      .update(versions)
-      .set({ state, submittedBy: owner.id, publishedAt: new Date() })
-      .where(eq(versions.id, version!.id));
+    await ctx.db.update(versions).set({ state, submittedBy: owner.id, publishedAt: new Date() }).where(eq(versions.id, version!.id));
   }
   return { owner, dataset: dataset!, versionId: version!.id };
 }
@@ -66,9 +76,15 @@ describe("abuse limits", () => {
     const fresh = await testApp({ authLimits: { windowMs: 60_000, perIp: 4, perAccount: 100 } });
     try {
       for (let i = 0; i < 4; i++) {
-        await request(fresh.app).post("/api/v1/session").send({ email: `spray${i}@tallgrass.test`, password: "wrong-password-1" }).expect(401);
+        await request(fresh.app)
+          .post("/api/v1/session")
+          .send({ email: `spray${i}@tallgrass.test`, password: "wrong-password-1" })
+          .expect(401);
       }
-      const res = await request(fresh.app).post("/api/v1/session").send({ email: "spray9@tallgrass.test", password: "wrong-password-1" }).expect(429);
+      const res = await request(fresh.app)
+        .post("/api/v1/session")
+        .send({ email: "spray9@tallgrass.test", password: "wrong-password-1" })
+        .expect(429);
       expect(res.headers["retry-after"]).toBeDefined();
     } finally {
       await fresh.close();
@@ -80,7 +96,10 @@ describe("abuse limits", () => {
     for (let i = 0; i < 3; i++) await request(t.app).post("/api/v1/password-reset").send({ email: user.email }).expect(202);
     const res = await request(t.app).post("/api/v1/password-reset").send({ email: user.email }).expect(429);
     expect(res.body.detail).toMatch(/requests for e-mailed links/);
-    const sent = await t.ctx.db.select().from(outbox).where(and(eq(outbox.to, user.email), eq(outbox.kind, "password-reset")));
+    const sent = await t.ctx.db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.to, user.email), eq(outbox.kind, "password-reset")));
     expect(sent).toHaveLength(3);
   });
 });
@@ -92,7 +111,8 @@ describe("reset requests per client", () => {
       const people = [];
       for (let i = 0; i < 5; i++) people.push(await makeUser(fresh.ctx, "member"));
       // Behind a loopback proxy the app is configured to trust (PLOTBANK_TRUST_PROXY=loopback), X-Forwarded-For names the client.
-      const from = (ip: string, email: string) => request(fresh.app).post("/api/v1/password-reset").set("X-Forwarded-For", ip).send({ email });
+      const from = (ip: string, email: string) =>
+        request(fresh.app).post("/api/v1/password-reset").set("X-Forwarded-For", ip).send({ email });
       for (const person of people.slice(0, 3)) await from("203.0.113.7", person.email).expect(202);
       const refused = await from("203.0.113.7", people[3]!.email).expect(429);
       expect(refused.headers["content-type"]).toMatch(/^application\/problem\+json/);
@@ -130,10 +150,19 @@ describe("cross-site request guard", () => {
   });
 
   it("guards sign-up and sign-in too (login CSRF), but not bearer-token requests", async () => {
-    await request(t.app).post("/api/v1/sign-up").set("Origin", "https://evil.example").send({ email: "z@tallgrass.test", displayName: "Z", password: testPassword }).expect(403);
+    await request(t.app)
+      .post("/api/v1/sign-up")
+      .set("Origin", "https://evil.example")
+      .send({ email: "z@tallgrass.test", displayName: "Z", password: testPassword })
+      .expect(403);
     const user = await makeUser(t.ctx, "member");
     const token = await tokenFor(user.id, "write");
-    await request(t.app).patch("/api/v1/account").set("Authorization", `Bearer ${token}`).set("Origin", "https://script.example").send({ displayName: "Script" }).expect(200);
+    await request(t.app)
+      .patch("/api/v1/account")
+      .set("Authorization", `Bearer ${token}`)
+      .set("Origin", "https://script.example")
+      .send({ displayName: "Script" })
+      .expect(200);
   });
 });
 
@@ -205,7 +234,13 @@ describe("mail configuration at start-up", () => {
     const { SMTP_URL: _smtp, PLOTBANK_MAIL_OUTBOX_ONLY: _only, ...env } = process.env;
     const started = spawnSync(process.execPath, ["--import", "tsx", "server/main.ts"], {
       cwd: path.resolve(__dirname, "../.."),
-      env: { ...env, NODE_ENV: "production", PLOTBANK_DEMO: "off", PLOTBANK_DATA_DIR: path.join(tmpdir(), "plotbank-never-created"), PORT: "0" },
+      env: {
+        ...env,
+        NODE_ENV: "production",
+        PLOTBANK_DEMO: "off",
+        PLOTBANK_DATA_DIR: path.join(tmpdir(), "plotbank-never-created"),
+        PORT: "0",
+      },
       encoding: "utf8",
       timeout: 60_000,
     });
@@ -214,7 +249,9 @@ describe("mail configuration at start-up", () => {
     expect(started.stderr).toContain("PLOTBANK_MAIL_OUTBOX_ONLY=1");
     expect(existsSync(path.join(tmpdir(), "plotbank-never-created"))).toBe(false);
 
-    expect(() => refuseUndeliverableMail(loadConfig({ NODE_ENV: "production", SMTP_URL: "smtp://mail.tallgrass.test:587" } as NodeJS.ProcessEnv))).not.toThrow();
+    expect(() =>
+      refuseUndeliverableMail(loadConfig({ NODE_ENV: "production", SMTP_URL: "smtp://mail.tallgrass.test:587" } as NodeJS.ProcessEnv)),
+    ).not.toThrow();
     expect(() => refuseUndeliverableMail(loadConfig({ NODE_ENV: "development" } as NodeJS.ProcessEnv))).not.toThrow();
     expect(() => loadConfig({ NODE_ENV: "production", PLOTBANK_MAIL_OUTBOX_ONLY: "maybe" } as NodeJS.ProcessEnv)).toThrow();
   }, 90_000);
@@ -294,7 +331,10 @@ describe("following datasets and the e-mails that go with it", () => {
     const a = await makeUser(t.ctx, "member");
     const b = await makeUser(t.ctx, "reviewer");
     const bystander = await makeUser(t.ctx, "member");
-    await t.ctx.db.insert(follows).values([{ datasetId: dataset.id, userId: a.id }, { datasetId: dataset.id, userId: b.id }]);
+    await t.ctx.db.insert(follows).values([
+      { datasetId: dataset.id, userId: a.id },
+      { datasetId: dataset.id, userId: b.id },
+    ]);
     await runPublishHooks(t.ctx, versionId);
     await runPublishHooks(t.ctx, versionId);
     const notices = await t.ctx.db.select().from(outbox).where(eq(outbox.kind, "new-version"));
@@ -308,7 +348,12 @@ describe("following datasets and the e-mails that go with it", () => {
 
 describe("review e-mails", () => {
   const mails = async (ctx: AppContext, kind: string) =>
-    (await ctx.db.select().from(outbox).where(eq(outbox.kind, kind)).orderBy(asc(outbox.createdAt))).map((m) => ({ to: m.to, subject: m.subject, text: m.text, meta: m.meta as Record<string, unknown> }));
+    (await ctx.db.select().from(outbox).where(eq(outbox.kind, kind)).orderBy(asc(outbox.createdAt))).map((m) => ({
+      to: m.to,
+      subject: m.subject,
+      text: m.text,
+      meta: m.meta as Record<string, unknown>,
+    }));
 
   it("asks reviewers (not the submitter) on submit, and tells the submitter each decision with the comment", async () => {
     const fresh = await testApp();
@@ -316,7 +361,11 @@ describe("review e-mails", () => {
       const f = await draftWithData(fresh.app, fresh.ctx);
       const secondReviewer = await makeUser(fresh.ctx, "reviewer");
       const admin = await makeUser(fresh.ctx, "admin");
-      const submit = () => f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release: 2021 season." }).expect(200);
+      const submit = () =>
+        f.curatorAgent
+          .post(`/api/v1/curation/versions/${f.versionId}/submit`)
+          .send({ changelog: "First release: 2021 season." })
+          .expect(200);
 
       await submit();
       const asked = await mails(fresh.ctx, "review-requested");
@@ -326,7 +375,10 @@ describe("review e-mails", () => {
       expect(asked[0]!.text).toContain("First release: 2021 season.");
       expect(asked[0]!.meta.versionId).toBe(f.versionId);
 
-      await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/return`).send({ comment: "Site TB-02 lacks the soil-test K value." }).expect(200);
+      await f.reviewerAgent
+        .post(`/api/v1/curation/versions/${f.versionId}/return`)
+        .send({ comment: "Site TB-02 lacks the soil-test K value." })
+        .expect(200);
       const returned = await mails(fresh.ctx, "review-returned");
       expect(returned).toHaveLength(1);
       expect(returned[0]).toMatchObject({ to: f.curator.email, subject: expect.stringMatching(/^Returned for changes/) });
@@ -335,7 +387,10 @@ describe("review e-mails", () => {
       await submit();
       expect(await mails(fresh.ctx, "review-requested")).toHaveLength(4);
 
-      await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({ comment: "Soil tests complete now." }).expect(200);
+      await f.reviewerAgent
+        .post(`/api/v1/curation/versions/${f.versionId}/approve`)
+        .send({ comment: "Soil tests complete now." })
+        .expect(200);
       const approved = await mails(fresh.ctx, "review-approved");
       expect(approved).toHaveLength(1);
       expect(approved[0]).toMatchObject({ to: f.curator.email, subject: expect.stringMatching(/^Approved/) });
@@ -376,7 +431,9 @@ describe("review e-mails", () => {
     try {
       const f = await draftWithData(fresh.app, fresh.ctx);
       // A database-level fault: every insert into the outbox fails from here on.
-      await fresh.ctx.db.execute(sql`create function refuse_mail() returns trigger language plpgsql as $$ begin raise exception 'outbox is full'; end $$`);
+      await fresh.ctx.db.execute(
+        sql`create function refuse_mail() returns trigger language plpgsql as $$ begin raise exception 'outbox is full'; end $$`,
+      );
       await fresh.ctx.db.execute(sql`create trigger refuse_mail before insert on outbox for each row execute function refuse_mail()`);
       console.error = (...args: unknown[]) => logged.push(args);
       await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);

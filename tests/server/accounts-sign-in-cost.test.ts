@@ -34,7 +34,10 @@ describe("sign-in cost does not reveal who has an account", () => {
 
     const wrong = await request(t.app).post("/api/v1/session").send({ email: user.email, password: "not-the-password-9" }).expect(401);
     const forWrongPassword = scryptCalls.splice(0);
-    const unknown = await request(t.app).post("/api/v1/session").send({ email: "nobody.here@tallgrass.test", password: "not-the-password-9" }).expect(401);
+    const unknown = await request(t.app)
+      .post("/api/v1/session")
+      .send({ email: "nobody.here@tallgrass.test", password: "not-the-password-9" })
+      .expect(401);
     const forUnknownAddress = scryptCalls.splice(0);
 
     expect(forWrongPassword).toEqual([expect.objectContaining({ N: 2 ** 15, r: 8, p: 1 })]);

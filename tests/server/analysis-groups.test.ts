@@ -11,7 +11,10 @@ import { testApp, type TestApp } from "@/tests/support/test-app";
 const reference = path.resolve(__dirname, "../fixtures/reference");
 // dat.michael2013 (Michael et al. 2013, Psychon Bull Rev 20:720-725), copied from the shared check files.
 const michael = Papa.parse<Record<string, string>>(
-  readFileSync(path.join(reference, "meta_michael2013_md_data.csv"), "utf8").split("\n").filter((l) => !l.startsWith("#")).join("\n"),
+  readFileSync(path.join(reference, "meta_michael2013_md_data.csv"), "utf8")
+    .split("\n")
+    .filter((l) => !l.startsWith("#"))
+    .join("\n"),
   { header: true, skipEmptyLines: true },
 ).data;
 // metafor 3.8-1 predict() on rma(yi, vi, mods = ~ 0 + included_critique): meta_michael2013_md_subgroup_predict.R.
@@ -24,7 +27,9 @@ const levelOf: Record<string, string> = { "in-furrow": "Critique", "2x2-band": "
 let t: TestApp;
 const get = async (query: string) => metaAnalysisResult.parse((await request(t.app).get(`/api/v1/analyses/meta${query}`).expect(200)).body);
 const close = (actual: number | null | undefined, expected: number, tolerance = 1e-7) =>
-  expect(Math.abs((actual ?? Number.NaN) - expected), `${actual} vs ${expected}`).toBeLessThanOrEqual(tolerance * Math.max(1, Math.abs(expected)));
+  expect(Math.abs((actual ?? Number.NaN) - expected), `${actual} vs ${expected}`).toBeLessThanOrEqual(
+    tolerance * Math.max(1, Math.abs(expected)),
+  );
 
 beforeAll(async () => {
   t = await testApp();
@@ -89,12 +94,18 @@ describe("per-group predictive distributions equal metafor's predict() on the co
       const b = priced.decision.breakEven!;
       expect(level.shareAboveBreakEven).toBe(ys.filter((y) => y > b).length / ys.length);
       expect(level.observedResponses).toEqual([...ys].sort((a, b) => a - b).map((y) => expect.closeTo(y, 12)));
-      const local = pricedDecision({ price: factor * 10, productCost: 1 }, { unitsPerBushel: factor, predictive: level.predictive, observedResponses: level.observedResponses });
+      const local = pricedDecision(
+        { price: factor * 10, productCost: 1 },
+        { unitsPerBushel: factor, predictive: level.predictive, observedResponses: level.observedResponses },
+      );
       close(local.probabilityAboveBreakEven, level.probabilityAboveBreakEven!, 1e-12);
       expect(local.shareAboveBreakEven).toBe(level.shareAboveBreakEven);
     }
     // Pooled: t(k − 2), the same chance the API gives with prices.
-    const pooled = pricedDecision({ price: factor * 10, productCost: 1 }, { unitsPerBushel: factor, predictive: plain.decision.predictive, observedResponses: plain.decision.observedResponses });
+    const pooled = pricedDecision(
+      { price: factor * 10, productCost: 1 },
+      { unitsPerBushel: factor, predictive: plain.decision.predictive, observedResponses: plain.decision.observedResponses },
+    );
     expect(plain.decision.predictive!.df).toBe(10);
     close(pooled.probabilityAboveBreakEven, priced.decision.probabilityAboveBreakEven!, 1e-12);
     expect(pooled.shareAboveBreakEven).toBe(priced.decision.shareAboveBreakEven);
@@ -105,7 +116,16 @@ describe("per-group predictive distributions equal metafor's predict() on the co
 describe("grouped forest rows", () => {
   it("come group by group in level order, each site-year once per group, with the headline mean's weight beside the group's", async () => {
     const body = await get("?dataset=two-placements&groupBy=placement");
-    expect(body.rows.map((r) => r.group)).toEqual(["in-furrow", "in-furrow", "in-furrow", "in-furrow", "2x2-band", "2x2-band", "2x2-band", "2x2-band"]);
+    expect(body.rows.map((r) => r.group)).toEqual([
+      "in-furrow",
+      "in-furrow",
+      "in-furrow",
+      "in-furrow",
+      "2x2-band",
+      "2x2-band",
+      "2x2-band",
+      "2x2-band",
+    ]);
     expect(body.rows.slice(0, 4).map((r) => r.siteYearCode)).toEqual(["TP-01-2021", "TP-02-2021", "TP-03-2021", "TP-04-2021"]);
     const withinGroup = body.rows.filter((r) => r.group === "in-furrow").reduce((a, r) => a + r.weightPercent, 0);
     expect(withinGroup).toBeCloseTo(100, 9);

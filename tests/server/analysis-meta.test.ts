@@ -32,16 +32,53 @@ const normandVi: number[] = normand.vi;
 
 /** P-starter site-years of a second dataset: low and high P, two placements sharing a check at some site-years. */
 const starter: FixtureResponse[] = [
-  { siteYear: "TB-01-2020", year: 2020, treatment: "IF", placements: ["in-furrow"], md: 310, se: 95, soilPClass: "very_low", soilPValue: 4 },
-  { siteYear: "TB-01-2020", year: 2020, treatment: "BAND", placements: ["2x2-band"], md: 260, se: 95, soilPClass: "very_low", soilPValue: 4 },
+  {
+    siteYear: "TB-01-2020",
+    year: 2020,
+    treatment: "IF",
+    placements: ["in-furrow"],
+    md: 310,
+    se: 95,
+    soilPClass: "very_low",
+    soilPValue: 4,
+  },
+  {
+    siteYear: "TB-01-2020",
+    year: 2020,
+    treatment: "BAND",
+    placements: ["2x2-band"],
+    md: 260,
+    se: 95,
+    soilPClass: "very_low",
+    soilPValue: 4,
+  },
   { siteYear: "TB-02-2020", year: 2020, treatment: "BAND", placements: ["2x2-band"], md: 180, se: 80, soilPClass: "low", soilPValue: 9 },
   { siteYear: "TB-03-2021", year: 2021, treatment: "BAND", placements: ["2x2-band"], md: 240, se: 110, soilPClass: "low", soilPValue: 11 },
   { siteYear: "TB-03-2021", year: 2021, treatment: "IF", placements: ["in-furrow"], md: 150, se: 110, soilPClass: "low", soilPValue: 11 },
   { siteYear: "TB-04-2021", year: 2021, treatment: "BAND", placements: ["2x2-band"], md: 20, se: 90, soilPClass: "high", soilPValue: 28 },
   { siteYear: "TB-05-2022", year: 2022, treatment: "BAND", placements: ["2x2-band"], md: -35, se: 70, soilPClass: "high", soilPValue: 31 },
-  { siteYear: "TB-06-2022", year: 2022, treatment: "BAND", placements: ["2x2-band"], md: 60, se: 85, soilPClass: "optimum", soilPValue: 18, df: 12 },
+  {
+    siteYear: "TB-06-2022",
+    year: 2022,
+    treatment: "BAND",
+    placements: ["2x2-band"],
+    md: 60,
+    se: 85,
+    soilPClass: "optimum",
+    soilPValue: 18,
+    df: 12,
+  },
   { siteYear: "TB-07-2022", year: 2022, treatment: "IF", placements: ["in-furrow"], md: 95, se: 75, soilPClass: "optimum", soilPValue: 17 },
-  { siteYear: "TB-08-2023", year: 2023, treatment: "BAND", placements: ["2x2-band"], md: 400, se: 120, soilPClass: "very_low", soilPValue: 3 },
+  {
+    siteYear: "TB-08-2023",
+    year: 2023,
+    treatment: "BAND",
+    placements: ["2x2-band"],
+    md: 400,
+    se: 120,
+    soilPClass: "very_low",
+    soilPValue: 3,
+  },
   { siteYear: "TB-09-2023", year: 2023, treatment: "BAND", placements: ["2x2-band"], md: 10, se: 0, soilPClass: "high", soilPValue: 30 },
 ];
 
@@ -52,7 +89,10 @@ function starterEffects(select: (r: FixtureResponse) => boolean = () => true) {
   return [...bySiteYear.entries()].map(([siteYear, rs]) => {
     const effects = rs.map((r) => ({ yi: r.md / soybean, vi: (r.se / soybean) ** 2 }));
     const shared = Math.min(...rs.map((r) => r.se ** 2 / 2)) / soybean ** 2;
-    const combined = combineWithinSiteYear(effects, effects.map((a, i) => effects.map((_, j) => (i === j ? a.vi : shared))));
+    const combined = combineWithinSiteYear(
+      effects,
+      effects.map((a, i) => effects.map((_, j) => (i === j ? a.vi : shared))),
+    );
     return { siteYear, ...combined, df: rs[0]!.df ?? 9, rows: rs };
   });
 }
@@ -61,11 +101,26 @@ beforeAll(async () => {
   t = await testApp();
   await insertAnalysisFixture(t.ctx, {
     slug: "normand-check",
-    responses: normandYi.map((yi, i) => ({ siteYear: `NC-${String(i + 1).padStart(2, "0")}-2019`, year: 2019, treatment: "T1", crop: "corn", nutrients: ["N"], placements: ["side-dress"], md: yi, se: Math.sqrt(normandVi[i]!), soilPClass: null, soilPValue: null })),
+    responses: normandYi.map((yi, i) => ({
+      siteYear: `NC-${String(i + 1).padStart(2, "0")}-2019`,
+      year: 2019,
+      treatment: "T1",
+      crop: "corn",
+      nutrients: ["N"],
+      placements: ["side-dress"],
+      md: yi,
+      se: Math.sqrt(normandVi[i]!),
+      soilPClass: null,
+      soilPValue: null,
+    })),
   });
   await insertAnalysisFixture(t.ctx, { slug: "p-starter", responses: starter });
   // An older version of p-starter must not be read unless asked for.
-  await insertAnalysisFixture(t.ctx, { slug: "p-starter", semver: "0.9.0", responses: [{ siteYear: "TB-01-2019", year: 2019, treatment: "BAND", md: 999, se: 50 }] });
+  await insertAnalysisFixture(t.ctx, {
+    slug: "p-starter",
+    semver: "0.9.0",
+    responses: [{ siteYear: "TB-01-2019", year: 2019, treatment: "BAND", md: 999, se: 50 }],
+  });
 });
 afterAll(() => t.close());
 
@@ -119,13 +174,17 @@ describe("the endpoint gives exactly what the stats functions give for the same 
     expect(body.provenance.combinedSiteYears).toBe(2);
     expect(body.provenance.combination).toMatch(/combined within the site-year/);
     // The older version's 999 kg/ha row is not read.
-    expect(body.provenance.versions).toEqual([expect.objectContaining({ dataset: "p-starter", version: "1.0.0", licence: "CC-BY-4.0", siteYearsUsed: expected.length })]);
+    expect(body.provenance.versions).toEqual([
+      expect.objectContaining({ dataset: "p-starter", version: "1.0.0", licence: "CC-BY-4.0", siteYearsUsed: expected.length }),
+    ]);
     expect(body.rows.map((r) => r.siteYearCode)).not.toContain("TB-01-2019");
   });
 
   it("leaves out a site-year it cannot weight and says why", async () => {
     const body = await get("?dataset=p-starter");
-    expect(body.provenance.excluded).toEqual([expect.objectContaining({ siteYearCode: "TB-09-2023", treatments: ["BAND"], reason: expect.stringMatching(/SE/) })]);
+    expect(body.provenance.excluded).toEqual([
+      expect.objectContaining({ siteYearCode: "TB-09-2023", treatments: ["BAND"], reason: expect.stringMatching(/SE/) }),
+    ]);
     expect(body.provenance.contrastsRead).toBe(starter.length);
   });
 
@@ -136,7 +195,14 @@ describe("the endpoint gives exactly what the stats functions give for the same 
     expect(row.pValue).toBeCloseTo(tTwoSidedP(60 / 85, 12), 12);
     expect(row.significant).toBe(false);
     expect(body.rows.find((r) => r.siteYearCode === "TB-08-2023")!.significant).toBe(true);
-    expect(row).toMatchObject({ soilTestAnalyte: "P", soilTestClass: "optimum", soilTestValue: 18, dataset: "p-starter", version: "1.0.0", crop: "soybean" });
+    expect(row).toMatchObject({
+      soilTestAnalyte: "P",
+      soilTestClass: "optimum",
+      soilTestValue: 18,
+      dataset: "p-starter",
+      version: "1.0.0",
+      crop: "soybean",
+    });
     expect(row.estimate).toBeCloseTo(60 / soybean, 12);
   });
 
@@ -165,7 +231,10 @@ describe("the endpoint gives exactly what the stats functions give for the same 
     const effects = [...bySiteYear.values()].map((rs) => {
       const es = rs.map((r) => ({ yi: Math.log((3500 + r.md) / 3500), vi: (r.se ** 2 / 2) * (1 / (3500 + r.md) ** 2 + 1 / 3500 ** 2) }));
       const shared = Math.min(...rs.map((r) => r.se ** 2 / 2)) / 3500 ** 2;
-      return combineWithinSiteYear(es, es.map((a, i) => es.map((_, j) => (i === j ? a.vi : shared))));
+      return combineWithinSiteYear(
+        es,
+        es.map((a, i) => es.map((_, j) => (i === j ? a.vi : shared))),
+      );
     });
     const fit = metaAnalysis({ yi: effects.map((e) => e.yi), vi: effects.map((e) => e.vi) });
     expect(body.pooled!.estimate).toBeCloseTo(fit.estimate, 12);
@@ -180,7 +249,14 @@ describe("subgroups", () => {
     const expected = starterEffects();
     const groups = expected.map((e) => e.rows[0]!.soilPClass as string);
     const levels = ["very_low", "low", "optimum", "high"];
-    const fit = commonTauSquaredSubgroups({ yi: expected.map((e) => e.yi), vi: expected.map((e) => e.vi), groups, levels, method: "REML", ci: "hksj" });
+    const fit = commonTauSquaredSubgroups({
+      yi: expected.map((e) => e.yi),
+      vi: expected.map((e) => e.vi),
+      groups,
+      levels,
+      method: "REML",
+      ci: "hksj",
+    });
     const s = body.subgroups!;
     expect(s.by).toBe("soilTestClass");
     expect(s.levels.map((l) => l.level)).toEqual(levels);
@@ -190,7 +266,10 @@ describe("subgroups", () => {
     expect(s.qm!.pValue).toBeCloseTo(fit.differences.qm!.pValue, 10);
     expect(s.qm).toMatchObject({ distribution: "F", df: 3, df2: 4 });
     // The same test under its own name, in words; the old field stays for existing scripts.
-    expect(s.betweenGroupTest).toEqual({ ...s.qm, text: expect.stringMatching(/^Between-group test: F = \d+\.\d on 3 and 4 df, p (< 0\.001|= \d\.\d+)$/) });
+    expect(s.betweenGroupTest).toEqual({
+      ...s.qm,
+      text: expect.stringMatching(/^Between-group test: F = \d+\.\d on 3 and 4 df, p (< 0\.001|= \d\.\d+)$/),
+    });
     expect(`${s.model} ${s.betweenGroupTest!.text}`).not.toMatch(/QM|moderator/);
     // The pooled estimate is unchanged by grouping.
     const plain = await get("?dataset=p-starter");
@@ -244,9 +323,18 @@ describe("decision numbers", () => {
     const b = breakEvenResponse(30, 12);
     const d = body.decision;
     expect(d.breakEven).toBeCloseTo(2.5, 12);
-    expect(d.probabilityAboveBreakEven).toBeCloseTo(probabilityNewResponseAbove({ x: b, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k: fit.k }).probability!, 12);
-    expect(d.probabilityAboveZero).toBeCloseTo(probabilityNewResponseAbove({ x: 0, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k: fit.k }).probability!, 12);
-    const shares = empiricalShares(expected.map((e) => e.yi), b);
+    expect(d.probabilityAboveBreakEven).toBeCloseTo(
+      probabilityNewResponseAbove({ x: b, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k: fit.k }).probability!,
+      12,
+    );
+    expect(d.probabilityAboveZero).toBeCloseTo(
+      probabilityNewResponseAbove({ x: 0, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k: fit.k }).probability!,
+      12,
+    );
+    const shares = empiricalShares(
+      expected.map((e) => e.yi),
+      b,
+    );
     expect(d.shareAboveZero).toBe(shares.aboveZero);
     expect(d.shareAboveBreakEven).toBe(shares.aboveBreakEven);
     const significant = expected.filter((e) => tTwoSidedP(e.yi / Math.sqrt(e.vi), e.df) < 0.05).length;
@@ -277,7 +365,14 @@ describe("decision numbers", () => {
 describe("filters, units and formats", () => {
   it("uses the shared filters and reports them normalised", async () => {
     const body = await get("?dataset=p-starter&soilTestClass=low,very_low&placement=2x2-band&yearFrom=2020&yearTo=2022&nutrient=P");
-    expect(body.provenance.filters).toEqual({ dataset: "p-starter", nutrient: "P", placement: "2x2-band", soilTestClass: "low,very_low", yearFrom: "2020", yearTo: "2022" });
+    expect(body.provenance.filters).toEqual({
+      dataset: "p-starter",
+      nutrient: "P",
+      placement: "2x2-band",
+      soilTestClass: "low,very_low",
+      yearFrom: "2020",
+      yearTo: "2022",
+    });
     // TB-01-2020 (both placements match: BAND is 2x2) , TB-02-2020, TB-03-2021 (BAND only matches placement; IF is in-furrow).
     expect(body.rows.map((r) => r.siteYearCode).sort()).toEqual(["TB-01-2020", "TB-02-2020", "TB-03-2021"]);
     expect(body.rows.every((r) => r.treatments.length === 1)).toBe(true);
@@ -307,7 +402,9 @@ describe("filters, units and formats", () => {
     expect(parsed.data.length).toBe(json.k);
     const fit = metaAnalysis({ yi: parsed.data.map((r) => Number(r.estimate)), vi: parsed.data.map((r) => Number(r.se) ** 2) });
     expect(fit.estimate).toBeCloseTo(json.pooled!.estimate, 10);
-    expect(Object.keys(parsed.data[0]!)).toEqual(expect.arrayContaining(["site_year", "dataset", "version", "estimate", "se", "weight_pct", "soil_test_class"]));
+    expect(Object.keys(parsed.data[0]!)).toEqual(
+      expect.arrayContaining(["site_year", "dataset", "version", "estimate", "se", "weight_pct", "soil_test_class"]),
+    );
   });
 
   it("every result carries the cautions", async () => {
@@ -383,7 +480,14 @@ describe("bad input", () => {
 });
 
 describe("forestLimit bounds the forest rows, never the numbers", () => {
-  const numbers = (b: Awaited<ReturnType<typeof get>>) => ({ k: b.k, pooled: b.pooled, heterogeneity: b.heterogeneity, subgroups: b.subgroups, decision: b.decision, provenance: b.provenance });
+  const numbers = (b: Awaited<ReturnType<typeof get>>) => ({
+    k: b.k,
+    pooled: b.pooled,
+    heterogeneity: b.heterogeneity,
+    subgroups: b.subgroups,
+    decision: b.decision,
+    provenance: b.provenance,
+  });
 
   it("keeps the most precise site-years in their usual order; the pooled estimate is the same with and without the bound", async () => {
     const all = await get("?dataset=p-starter&forestLimit=all&price=11&cost=18");
@@ -395,7 +499,10 @@ describe("forestLimit bounds the forest rows, never the numbers", () => {
     expect(bounded.notes).toContain(bounded.forest.note);
     expect(numbers(bounded)).toEqual(numbers(all));
     // Most precise = smallest SE (largest weight), listed in the unbounded answer's order with identical rows.
-    const expected = [...all.rows].sort((a, b) => a.se - b.se).slice(0, 3).map((r) => r.id);
+    const expected = [...all.rows]
+      .sort((a, b) => a.se - b.se)
+      .slice(0, 3)
+      .map((r) => r.id);
     expect(bounded.rows.map((r) => r.id)).toEqual(all.rows.map((r) => r.id).filter((id) => expected.includes(id)));
     for (const row of bounded.rows) expect(row).toEqual(all.rows.find((r) => r.id === row.id));
     // The same pooled estimate by hand from every site-year, not only the rows shown.
@@ -413,7 +520,8 @@ describe("forestLimit bounds the forest rows, never the numbers", () => {
   });
 
   it("format=csv gives every row unless forestLimit is given", async () => {
-    const lines = async (q: string) => (await request(t.app).get(`/api/v1/analyses/meta?dataset=p-starter&format=csv${q}`).expect(200)).text.trim().split("\r\n").length - 1;
+    const lines = async (q: string) =>
+      (await request(t.app).get(`/api/v1/analyses/meta?dataset=p-starter&format=csv${q}`).expect(200)).text.trim().split("\r\n").length - 1;
     expect(await lines("")).toBe((await get("?dataset=p-starter")).k);
     expect(await lines("&forestLimit=2")).toBe(2);
   });
@@ -424,7 +532,13 @@ describe("forestLimit bounds the forest rows, never the numbers", () => {
       many = await testApp();
       await insertAnalysisFixture(many.ctx, {
         slug: "many-site-years",
-        responses: Array.from({ length: defaultForestLimit + 25 }, (_, i) => ({ siteYear: `MS-${String(i).padStart(3, "0")}-2021`, year: 2021, treatment: "BAND", md: 150 + ((i * 37) % 200), se: 60 + ((i * 53) % 90) })),
+        responses: Array.from({ length: defaultForestLimit + 25 }, (_, i) => ({
+          siteYear: `MS-${String(i).padStart(3, "0")}-2021`,
+          year: 2021,
+          treatment: "BAND",
+          md: 150 + ((i * 37) % 200),
+          se: 60 + ((i * 53) % 90),
+        })),
       });
     });
     afterAll(() => many.close());
@@ -434,7 +548,12 @@ describe("forestLimit bounds the forest rows, never the numbers", () => {
       const all = metaAnalysisResult.parse((await request(many.app).get("/api/v1/analyses/meta?forestLimit=all").expect(200)).body);
       expect(body.k).toBe(defaultForestLimit + 25);
       expect(body.rows).toHaveLength(defaultForestLimit);
-      expect(body.forest).toMatchObject({ total: defaultForestLimit + 25, returned: defaultForestLimit, limit: defaultForestLimit, truncated: true });
+      expect(body.forest).toMatchObject({
+        total: defaultForestLimit + 25,
+        returned: defaultForestLimit,
+        limit: defaultForestLimit,
+        truncated: true,
+      });
       expect(all.rows).toHaveLength(defaultForestLimit + 25);
       expect(numbers(body)).toEqual(numbers(all));
     });
@@ -457,7 +576,22 @@ describe("OpenAPI", () => {
   it("documents the endpoint with its named schemas", async () => {
     const res = await request(t.app).get("/api/v1/openapi.json").expect(200);
     const op = res.body.paths["/api/v1/analyses/meta"].get;
-    expect(op.parameters.map((p: { name: string }) => p.name)).toEqual(expect.arrayContaining(["crop", "nutrient", "soilTestClass", "effect", "method", "ci", "groupBy", "price", "cost", "units", "format", "forestLimit"]));
+    expect(op.parameters.map((p: { name: string }) => p.name)).toEqual(
+      expect.arrayContaining([
+        "crop",
+        "nutrient",
+        "soilTestClass",
+        "effect",
+        "method",
+        "ci",
+        "groupBy",
+        "price",
+        "cost",
+        "units",
+        "format",
+        "forestLimit",
+      ]),
+    );
     expect(res.body.components.schemas).toHaveProperty("MetaAnalysis");
     expect(res.body.components.schemas).toHaveProperty("ForestRow");
     expect(res.body.components.schemas).toHaveProperty("ForestExtent");

@@ -22,7 +22,11 @@ describe("cross-origin access: the public read API is open, writes are not", () 
   });
 
   it("grants the preflight of a read, for reads only", async () => {
-    const res = await request(t.app).options("/api/v1/datasets").set("Origin", foreign).set("Access-Control-Request-Method", "GET").expect(204);
+    const res = await request(t.app)
+      .options("/api/v1/datasets")
+      .set("Origin", foreign)
+      .set("Access-Control-Request-Method", "GET")
+      .expect(204);
     expect(res.headers["access-control-allow-origin"]).toBe("*");
     expect(res.headers["access-control-allow-methods"]).toBe("GET,HEAD");
   });
@@ -34,7 +38,12 @@ describe("cross-origin access: the public read API is open, writes are not", () 
       .set("Access-Control-Request-Method", "PATCH")
       .set("Access-Control-Request-Headers", "content-type");
     expect(res.status).toBe(204);
-    for (const header of ["access-control-allow-origin", "access-control-allow-methods", "access-control-allow-headers", "access-control-allow-credentials"]) {
+    for (const header of [
+      "access-control-allow-origin",
+      "access-control-allow-methods",
+      "access-control-allow-headers",
+      "access-control-allow-credentials",
+    ]) {
       expect(res.headers[header], header).toBeUndefined();
     }
   });
@@ -42,12 +51,24 @@ describe("cross-origin access: the public read API is open, writes are not", () 
   it("sends no Access-Control-Allow-Origin on POST, PATCH or DELETE answers, even those that succeed", async () => {
     const user = await makeUser(t.ctx, "member");
     const secret = newSecret("pb_");
-    await t.ctx.db.insert(apiTokens).values({ userId: user.id, name: "cors", prefix: secret.slice(0, 8), tokenHash: sha256Hex(secret), scope: "write" });
-    const patched = await request(t.app).patch("/api/v1/account").set("Authorization", `Bearer ${secret}`).set("Origin", foreign).send({ displayName: "Script" }).expect(200);
-    const posted = await request(t.app).post("/api/v1/password-reset").set("Origin", "http://plotbank.test").send({ email: user.email }).expect(202);
+    await t.ctx.db
+      .insert(apiTokens)
+      .values({ userId: user.id, name: "cors", prefix: secret.slice(0, 8), tokenHash: sha256Hex(secret), scope: "write" });
+    const patched = await request(t.app)
+      .patch("/api/v1/account")
+      .set("Authorization", `Bearer ${secret}`)
+      .set("Origin", foreign)
+      .send({ displayName: "Script" })
+      .expect(200);
+    const posted = await request(t.app)
+      .post("/api/v1/password-reset")
+      .set("Origin", "http://plotbank.test")
+      .send({ email: user.email })
+      .expect(202);
     const refused = await request(t.app).post("/api/v1/password-reset").set("Origin", foreign).send({ email: user.email }).expect(403);
     const deleted = await request(t.app).delete("/api/v1/session").set("Origin", "http://plotbank.test").expect(204);
-    for (const [what, res] of Object.entries({ patched, posted, refused, deleted })) expect(res.headers["access-control-allow-origin"], what).toBeUndefined();
+    for (const [what, res] of Object.entries({ patched, posted, refused, deleted }))
+      expect(res.headers["access-control-allow-origin"], what).toBeUndefined();
   });
 });
 

@@ -40,13 +40,18 @@ afterAll(async () => {
 
 const script = path.resolve(__dirname, "../developer-pull.ts");
 const pull = (args: string[], token = secret) =>
-  run(process.execPath, ["--import", "tsx", script, ...args], { env: { ...process.env, PLOTBANK_URL: url, PLOTBANK_TOKEN: token }, cwd: path.resolve(__dirname, "../..") });
+  run(process.execPath, ["--import", "tsx", script, ...args], {
+    env: { ...process.env, PLOTBANK_URL: url, PLOTBANK_TOKEN: token },
+    cwd: path.resolve(__dirname, "../.."),
+  });
 
 describe("tests/developer-pull.ts", () => {
   it("pulls a filtered CSV of responses with a token, to a file, and counts its rows", async () => {
     const out = path.join(dir, "responses.csv");
     const { stderr } = await pull(["responses", "crop=soybean&placement=2x2-band,in-furrow", "--out", out]);
-    const want = modelCells(isLatestPublished).filter((c) => c.crop === "soybean" && c.placements.some((p) => ["2x2-band", "in-furrow"].includes(p))).length;
+    const want = modelCells(isLatestPublished).filter(
+      (c) => c.crop === "soybean" && c.placements.some((p) => ["2x2-band", "in-furrow"].includes(p)),
+    ).length;
     expect(stderr).toContain(`rows: ${want}`);
     expect(stderr).toContain('rel="describedby"');
     const file = readFileSync(out, "utf8");

@@ -130,7 +130,10 @@ describe("bad parameters are 400 problem+json naming the parameter", () => {
       expect(res.headers["content-type"]).toMatch(/^application\/problem\+json/);
       const fields = problemSchema.parse(res.body).errors!.map((e) => e.field);
       // A list parameter names the bad item too (query.placement.0).
-      expect(fields.some((f) => f === field || f?.startsWith(`${field}.`)), fields.join()).toBe(true);
+      expect(
+        fields.some((f) => f === field || f?.startsWith(`${field}.`)),
+        fields.join(),
+      ).toBe(true);
     });
   }
   it("the unknown parameter's name is in the message", async () => {
@@ -235,7 +238,7 @@ describe("CSV", () => {
   it("neutralises tab and carriage-return starts as well", () => {
     const line = (value: string | number) => new CsvWriter(["x"]).rows([[value]]);
     expect(line("\tcmd")).toBe("'\tcmd\r\n");
-    expect(line("\rx")).toBe("\"'\rx\"\r\n");
+    expect(line("\rx")).toBe('"\'\rx"\r\n');
     expect(line(-3.5)).toBe("-3.5\r\n");
   });
 });

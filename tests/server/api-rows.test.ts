@@ -22,7 +22,18 @@ type Query = Record<string, string>;
 const list = (v: string | undefined) => (v ? v.split(",") : undefined);
 const num = (v: string | undefined) => (v === undefined ? undefined : Number(v));
 
-const siteYearKeys = ["crop", "yearFrom", "yearTo", "tillage", "rowSpacingMin", "rowSpacingMax", "plantedFrom", "plantedTo", "dataset", "version"];
+const siteYearKeys = [
+  "crop",
+  "yearFrom",
+  "yearTo",
+  "tillage",
+  "rowSpacingMin",
+  "rowSpacingMax",
+  "plantedFrom",
+  "plantedTo",
+  "dataset",
+  "version",
+];
 
 /** The filter semantics, written out plainly: a cell (site-year × treatment) matches a query. */
 function siteYearMatches(q: Query, c: ModelCell): boolean {
@@ -65,7 +76,9 @@ function treatmentMatches(q: Query, c: ModelCell): boolean {
 }
 
 function cellsFor(q: Query): ModelCell[] {
-  return modelCells((spec) => (q.dataset ? spec.slug === q.dataset && (q.version ? spec.semver === q.version : isLatestPublished(spec)) : isLatestPublished(spec)));
+  return modelCells((spec) =>
+    q.dataset ? spec.slug === q.dataset && (q.version ? spec.semver === q.version : isLatestPublished(spec)) : isLatestPublished(spec),
+  );
 }
 
 const treatmentFilterGiven = (q: Query) => Object.keys(q).some((k) => !siteYearKeys.includes(k));
@@ -94,8 +107,11 @@ async function readAll(endpoint: Endpoint, q: Query, limit = 1000): Promise<stri
   let url: string | null = `/api/v1/${endpoint}?${new URLSearchParams({ ...q, limit: String(limit) })}`;
   while (url) {
     const res: request.Response = await request(t.app).get(url).expect(200);
-    if (endpoint === "responses") for (const r of responsePage.parse(res.body).items) keys.push(`${r.dataset}@${r.version}/${r.siteYearCode}/${r.treatmentCode}`);
-    if (endpoint === "observations") for (const r of observationPage.parse(res.body).items) keys.push(`${r.dataset}@${r.version}/${r.siteYearCode}/${r.treatmentCode}/${r.block}`);
+    if (endpoint === "responses")
+      for (const r of responsePage.parse(res.body).items) keys.push(`${r.dataset}@${r.version}/${r.siteYearCode}/${r.treatmentCode}`);
+    if (endpoint === "observations")
+      for (const r of observationPage.parse(res.body).items)
+        keys.push(`${r.dataset}@${r.version}/${r.siteYearCode}/${r.treatmentCode}/${r.block}`);
     if (endpoint === "site-years") for (const r of siteYearPage.parse(res.body).items) keys.push(`${r.dataset}@${r.version}/${r.code}`);
     const link = res.headers.link as string | undefined;
     url = link?.match(/<([^>]+)>; rel="next"/)?.[1] ?? null;
@@ -164,11 +180,17 @@ describe("every filter narrows every cross-dataset read to exactly the predicted
 
 describe("version-scoped reads take the same filters", () => {
   it("responses of 1.0.0 filtered by placement match the cross-dataset read of that version", async () => {
-    const scoped = await request(t.app).get("/api/v1/datasets/tb-soy-starter-p/versions/1.0.0/responses?placement=2x2-band&limit=1000").expect(200);
-    const cross = await request(t.app).get("/api/v1/responses?dataset=tb-soy-starter-p&version=1.0.0&placement=2x2-band&limit=1000").expect(200);
+    const scoped = await request(t.app)
+      .get("/api/v1/datasets/tb-soy-starter-p/versions/1.0.0/responses?placement=2x2-band&limit=1000")
+      .expect(200);
+    const cross = await request(t.app)
+      .get("/api/v1/responses?dataset=tb-soy-starter-p&version=1.0.0&placement=2x2-band&limit=1000")
+      .expect(200);
     const ids = (b: unknown) => responsePage.parse(b).items.map((r) => r.id);
     expect(ids(scoped.body)).toEqual(ids(cross.body));
-    expect(ids(scoped.body)).toHaveLength(expected.responses({ dataset: "tb-soy-starter-p", version: "1.0.0", placement: "2x2-band" }).length);
+    expect(ids(scoped.body)).toHaveLength(
+      expected.responses({ dataset: "tb-soy-starter-p", version: "1.0.0", placement: "2x2-band" }).length,
+    );
   });
   it("refuses dataset and version parameters on a version path (the path names them)", async () => {
     const res = await request(t.app).get("/api/v1/datasets/tb-soy-starter-p/versions/1.0.0/responses?dataset=tb-corn-nk").expect(400);

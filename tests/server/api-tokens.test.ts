@@ -63,7 +63,9 @@ describe("API tokens", () => {
 
   it("an expired token fails with 401", async () => {
     const { agent } = await member();
-    const { secret, token } = createdToken.parse((await agent.post("/api/v1/tokens").send({ name: "short-lived", expiresInDays: 1 }).expect(201)).body);
+    const { secret, token } = createdToken.parse(
+      (await agent.post("/api/v1/tokens").send({ name: "short-lived", expiresInDays: 1 }).expect(201)).body,
+    );
     await request(t.app).get("/api/v1/datasets").set("Authorization", `Bearer ${secret}`).expect(200);
     await t.ctx.db.execute(sql`UPDATE api_tokens SET expires_at = now() - interval '1 minute' WHERE id = ${token.id}`);
     await request(t.app).get("/api/v1/datasets").set("Authorization", `Bearer ${secret}`).expect(401);

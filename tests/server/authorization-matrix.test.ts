@@ -15,7 +15,19 @@ import express, { type Express } from "express";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
-import { apiTokens, datasetEditors, datasets, emailTokens, outbox, sessions, siteYears, sites, users, validationReports, versions } from "@/db/schema";
+import {
+  apiTokens,
+  datasetEditors,
+  datasets,
+  emailTokens,
+  outbox,
+  sessions,
+  siteYears,
+  sites,
+  users,
+  validationReports,
+  versions,
+} from "@/db/schema";
 import { newSecret, sha256Hex } from "@/server/auth/secrets";
 import { isDefinedRoute } from "@/server/openapi/define-route";
 import { createSession, sessionCookieName } from "@/server/auth/sessions";
@@ -25,7 +37,17 @@ import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/t
 import { binary, unzip } from "@/tests/support/zip";
 
 const actors = [
-  "anonymous", "member", "curatorOwner", "curatorEditor", "curatorOther", "reviewer", "admin", "readToken", "writeToken", "revokedToken", "expiredToken",
+  "anonymous",
+  "member",
+  "curatorOwner",
+  "curatorEditor",
+  "curatorOther",
+  "reviewer",
+  "admin",
+  "readToken",
+  "writeToken",
+  "revokedToken",
+  "expiredToken",
 ] as const;
 type Actor = (typeof actors)[number];
 
@@ -38,7 +60,10 @@ type Actor = (typeof actors)[number];
  */
 type Expectation = number | "ok" | "pass" | "hidden";
 /** A revoked or expired token is refused with 401 wherever authentication runs, unless a row says otherwise. */
-type Cells = Record<Exclude<Actor, "revokedToken" | "expiredToken">, Expectation> & { revokedToken?: Expectation; expiredToken?: Expectation };
+type Cells = Record<Exclude<Actor, "revokedToken" | "expiredToken">, Expectation> & {
+  revokedToken?: Expectation;
+  expiredToken?: Expectation;
+};
 
 interface Fixture {
   slug: string;
@@ -74,34 +99,77 @@ interface Row {
 }
 
 // Policy helpers: read them as sentences ("signed in, write scope: 200").
-const everyone = (e: Expectation): Cells => ({ anonymous: e, member: e, curatorOwner: e, curatorEditor: e, curatorOther: e, reviewer: e, admin: e, readToken: e, writeToken: e });
+const everyone = (e: Expectation): Cells => ({
+  anonymous: e,
+  member: e,
+  curatorOwner: e,
+  curatorEditor: e,
+  curatorOther: e,
+  reviewer: e,
+  admin: e,
+  readToken: e,
+  writeToken: e,
+});
 /** Served before authentication runs: even a bad token gets the answer. */
 const beforeAuthentication = (e: Expectation): Cells => ({ ...everyone(e), revokedToken: e, expiredToken: e });
 const signedIn = (e: Expectation): Cells => ({ ...everyone(e), anonymous: 401 });
 const signedInWrite = (e: Expectation): Cells => ({ ...signedIn(e), readToken: 403 });
 const sessionOnly = (e: Expectation): Cells => ({ ...signedIn(e), readToken: 403, writeToken: 403 });
 const adminOnly = (e: Expectation): Cells => ({
-  anonymous: 401, member: 403, curatorOwner: 403, curatorEditor: 403, curatorOther: 403, reviewer: 403, admin: e, readToken: 403, writeToken: 403,
+  anonymous: 401,
+  member: 403,
+  curatorOwner: 403,
+  curatorEditor: 403,
+  curatorOther: 403,
+  reviewer: 403,
+  admin: e,
+  readToken: 403,
+  writeToken: 403,
 });
 const reviewerWrite = (e: Expectation): Cells => ({ ...adminOnly(e), reviewer: e });
 /** Changing a dataset: its owner, its editors and admins; another curator is refused. Tokens belong to the owner. */
 const ownerWrite = (e: Expectation, other: Expectation = 403): Cells => ({
-  anonymous: 401, member: 403, curatorOwner: e, curatorEditor: e, curatorOther: other, reviewer: 403, admin: e, readToken: 403, writeToken: e,
+  anonymous: 401,
+  member: 403,
+  curatorOwner: e,
+  curatorEditor: e,
+  curatorOther: other,
+  reviewer: 403,
+  admin: e,
+  readToken: 403,
+  writeToken: e,
 });
 /** Choosing a dataset's editors: its owner and admins only; an editor does not pick co-editors. */
 const ownerOnly = (e: Expectation): Cells => ({ ...ownerWrite(e), curatorEditor: 403 });
 /** Seeing a draft: its editors, reviewers and admins; everyone else is told it does not exist. */
 const draftView = (e: Expectation, anonymous: Expectation = 404): Cells => ({
-  anonymous, member: 404, curatorOwner: e, curatorEditor: e, curatorOther: 404, reviewer: e, admin: e, readToken: e, writeToken: e,
+  anonymous,
+  member: 404,
+  curatorOwner: e,
+  curatorEditor: e,
+  curatorOther: 404,
+  reviewer: e,
+  admin: e,
+  readToken: e,
+  writeToken: e,
 });
 /** A browser's CORS preflight from another origin, asking to send `method`. */
-const preflight = (method: string) => ({ Origin: "https://field-notes.example", "Access-Control-Request-Method": method, "Access-Control-Request-Headers": "content-type" });
+const preflight = (method: string) => ({
+  Origin: "https://field-notes.example",
+  "Access-Control-Request-Method": method,
+  "Access-Control-Request-Headers": "content-type",
+});
 
 const fresh = (prefix: string) => `${prefix}-${Math.random().toString(36).slice(2, 10)}`;
 const emailToken = async (c: Cell, purpose: "verify" | "reset" | "invite") => {
   const user = purpose === "invite" ? null : await makeUser(c.t.ctx, "member");
   const email = user?.email ?? `${fresh("invitee")}@tallgrass.test`;
-  const { secret } = await issueEmailToken(c.t.ctx.db, { purpose, email, userId: user?.id, role: purpose === "invite" ? "curator" : undefined });
+  const { secret } = await issueEmailToken(c.t.ctx.db, {
+    purpose,
+    email,
+    userId: user?.id,
+    role: purpose === "invite" ? "curator" : undefined,
+  });
   c.revealed.push(email);
   return { secret, email };
 };
@@ -111,7 +179,11 @@ const table: Record<string, Row> = {
   "GET /api/v1/health": { expect: everyone(200) },
   "GET /api/v1/openapi.json": { expect: everyone(200) },
   // The docs page and its files are served outside the API router, before authentication; the rest of /api is a 404.
-  "GET /api/docs": { expect: beforeAuthentication(200), path: "/api/docs/", check: (_res, text) => (/swagger-ui/.test(text) ? null : "not the docs page") },
+  "GET /api/docs": {
+    expect: beforeAuthentication(200),
+    path: "/api/docs/",
+    check: (_res, text) => (/swagger-ui/.test(text) ? null : "not the docs page"),
+  },
   "USE /api/docs": { expect: beforeAuthentication(200), path: "/api/docs/swagger-ui.css" },
   "USE /api": { expect: beforeAuthentication(404), path: "/api/v2/datasets" },
 
@@ -164,14 +236,20 @@ const table: Record<string, Row> = {
   "DELETE /api/v1/session": { expect: everyone(204) },
 
   // Sign-up and e-mailed links: anonymous by nature. Bodies are fresh per cell.
-  "POST /api/v1/sign-up": { expect: everyone(202), body: () => ({ email: `${fresh("new")}@tallgrass.test`, displayName: "New Member", password: testPassword }) },
+  "POST /api/v1/sign-up": {
+    expect: everyone(202),
+    body: () => ({ email: `${fresh("new")}@tallgrass.test`, displayName: "New Member", password: testPassword }),
+  },
   "POST /api/v1/email-verification": {
     expect: everyone(200),
     body: async (c) => ({ token: (await emailToken(c, "verify")).secret }),
   },
   "POST /api/v1/email-verification/resend": { expect: everyone(202), body: () => ({ email: `${fresh("nobody")}@tallgrass.test` }) },
   "POST /api/v1/password-reset": { expect: everyone(202), body: () => ({ email: `${fresh("nobody")}@tallgrass.test` }) },
-  "POST /api/v1/password-reset/confirm": { expect: everyone(204), body: async (c) => ({ token: (await emailToken(c, "reset")).secret, password: "new-basin-password-1" }) },
+  "POST /api/v1/password-reset/confirm": {
+    expect: everyone(204),
+    body: async (c) => ({ token: (await emailToken(c, "reset")).secret, password: "new-basin-password-1" }),
+  },
   "POST /api/v1/invitations/preview": { expect: everyone(200), body: async (c) => ({ token: (await emailToken(c, "invite")).secret }) },
   "POST /api/v1/invitations/accept": {
     expect: everyone(201),
@@ -194,12 +272,18 @@ const table: Record<string, Row> = {
   },
   "GET /api/v1/admin/role-changes": { expect: adminOnly(200) },
   "GET /api/v1/admin/invitations": { expect: adminOnly(200) },
-  "POST /api/v1/admin/invitations": { expect: adminOnly(201), body: () => ({ email: `${fresh("invite")}@tallgrass.test`, role: "curator" }) },
+  "POST /api/v1/admin/invitations": {
+    expect: adminOnly(201),
+    body: () => ({ email: `${fresh("invite")}@tallgrass.test`, role: "curator" }),
+  },
   "GET /api/v1/admin/outbox": { expect: adminOnly(200) },
   "GET /api/v1/admin/outbox/:id": {
     expect: adminOnly(200),
     params: async (c) => {
-      const [m] = await c.t.ctx.db.insert(outbox).values({ kind: "test", to: "someone@tallgrass.test", subject: "Hello", text: "Body" }).returning();
+      const [m] = await c.t.ctx.db
+        .insert(outbox)
+        .values({ kind: "test", to: "someone@tallgrass.test", subject: "Hello", text: "Body" })
+        .returning();
       return { id: m!.id };
     },
   },
@@ -242,18 +326,44 @@ const table: Record<string, Row> = {
     body: () => ({ semver: "2.0.0" }),
   },
   "GET /api/v1/curation/versions/:id": { expect: draftView(200), params: (c) => ({ id: c.fx.draftId }) },
-  "PATCH /api/v1/curation/versions/:id": { expect: ownerWrite("ok", "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => ({ changelog: "More site-years." }) },
-  "PUT /api/v1/curation/versions/:id/table-schema": { expect: ownerWrite(200, "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => defaultTableSchema() },
-  "GET /api/v1/curation/versions/:id/reports/:report": { expect: draftView(200, 401), params: (c) => ({ id: c.fx.draftId, report: c.fx.reportId }) },
-  "POST /api/v1/curation/versions/:id/submit": { expect: ownerWrite(200, "hidden"), params: (c) => ({ id: c.fx.draftId }), body: () => ({ changelog: "First release of the basin trials." }) },
-  "POST /api/v1/curation/versions/:id/approve": { expect: reviewerWrite(200), params: (c) => ({ id: c.fx.inReviewId }), body: () => ({ comment: "Looks right." }) },
-  "POST /api/v1/curation/versions/:id/return": { expect: reviewerWrite(200), params: (c) => ({ id: c.fx.inReviewId }), body: () => ({ comment: "Site 2 lacks soil tests." }) },
+  "PATCH /api/v1/curation/versions/:id": {
+    expect: ownerWrite("ok", "hidden"),
+    params: (c) => ({ id: c.fx.draftId }),
+    body: () => ({ changelog: "More site-years." }),
+  },
+  "PUT /api/v1/curation/versions/:id/table-schema": {
+    expect: ownerWrite(200, "hidden"),
+    params: (c) => ({ id: c.fx.draftId }),
+    body: () => defaultTableSchema(),
+  },
+  "GET /api/v1/curation/versions/:id/reports/:report": {
+    expect: draftView(200, 401),
+    params: (c) => ({ id: c.fx.draftId, report: c.fx.reportId }),
+  },
+  "POST /api/v1/curation/versions/:id/submit": {
+    expect: ownerWrite(200, "hidden"),
+    params: (c) => ({ id: c.fx.draftId }),
+    body: () => ({ changelog: "First release of the basin trials." }),
+  },
+  "POST /api/v1/curation/versions/:id/approve": {
+    expect: reviewerWrite(200),
+    params: (c) => ({ id: c.fx.inReviewId }),
+    body: () => ({ comment: "Looks right." }),
+  },
+  "POST /api/v1/curation/versions/:id/return": {
+    expect: reviewerWrite(200),
+    params: (c) => ({ id: c.fx.inReviewId }),
+    body: () => ({ comment: "Site 2 lacks soil tests." }),
+  },
   "POST /api/v1/curation/versions/:id/withdraw": {
     expect: { ...ownerWrite(200), reviewer: 200 },
     params: (c) => ({ id: c.fx.publishedId }),
     body: () => ({ reason: "A unit error in site 4." }),
   },
-  "POST /api/v1/curation/versions/:id/doi/requeue": { expect: { ...ownerWrite("pass"), reviewer: "pass" }, params: (c) => ({ id: c.fx.publishedId }) },
+  "POST /api/v1/curation/versions/:id/doi/requeue": {
+    expect: { ...ownerWrite("pass"), reviewer: "pass" },
+    params: (c) => ({ id: c.fx.publishedId }),
+  },
   "GET /api/v1/curation/diff": { expect: draftView(200), query: (c) => ({ from: c.fx.publishedId, to: c.fx.draftId }) },
   "GET /api/v1/curation/review-queue": { expect: { ...adminOnly(200), reviewer: 200 } },
   "POST /api/v1/curation/versions/:id/uploads/:resource": {
@@ -279,8 +389,13 @@ async function tokenOf(t: TestApp, userId: string, scope: "read" | "write", stat
   const [row] = await t.ctx.db
     .insert(apiTokens)
     .values({
-      userId, name: "matrix", prefix: secret.slice(0, 8), tokenHash: sha256Hex(secret), scope,
-      revokedAt: state === "revoked" ? past : null, expiresAt: state === "expired" ? past : null,
+      userId,
+      name: "matrix",
+      prefix: secret.slice(0, 8),
+      tokenHash: sha256Hex(secret),
+      scope,
+      revokedAt: state === "revoked" ? past : null,
+      expiresAt: state === "expired" ? past : null,
     })
     .returning();
   return { secret, id: row!.id };
@@ -291,17 +406,40 @@ async function newFixture(t: TestApp): Promise<Fixture> {
   const slug = fresh("basin");
   const [dataset] = await db
     .insert(datasets)
-    .values({ slug, title: "Tallgrass Basin N rates", crops: ["corn"], region: "Tallgrass Basin", description: "Invented trials", ownerId: world.curatorOwner.id })
+    .values({
+      slug,
+      title: "Tallgrass Basin N rates",
+      crops: ["corn"],
+      region: "Tallgrass Basin",
+      description: "Invented trials",
+      ownerId: world.curatorOwner.id,
+    })
     .returning();
   const version = async (semver: string) =>
-    (await db.insert(versions).values({ datasetId: dataset!.id, semver, tableSchema: defaultTableSchema(), createdBy: world.curatorOwner.id }).returning())[0]!;
+    (
+      await db
+        .insert(versions)
+        .values({ datasetId: dataset!.id, semver, tableSchema: defaultTableSchema(), createdBy: world.curatorOwner.id })
+        .returning()
+    )[0]!;
   const published = await version("1.0.0");
   const draft = await version("1.1.0");
   const inReview = await version("1.2.0");
-  await db.update(versions).set({ state: "published", publishedAt: new Date(), submittedBy: world.curatorOwner.id }).where(eq(versions.id, published.id));
-  await db.update(versions).set({ state: "in_review", submittedAt: new Date(), submittedBy: world.curatorOwner.id }).where(eq(versions.id, inReview.id));
-  const [report] = await db.insert(validationReports).values({ versionId: draft.id, resource: "sites", filename: "sites.csv", accepted: true, problems: [] }).returning();
-  await db.insert(datasetEditors).values([world.users.curatorEditor, world.coEditor].map((u) => ({ datasetId: dataset!.id, userId: u.id })));
+  await db
+    .update(versions)
+    .set({ state: "published", publishedAt: new Date(), submittedBy: world.curatorOwner.id })
+    .where(eq(versions.id, published.id));
+  await db
+    .update(versions)
+    .set({ state: "in_review", submittedAt: new Date(), submittedBy: world.curatorOwner.id })
+    .where(eq(versions.id, inReview.id));
+  const [report] = await db
+    .insert(validationReports)
+    .values({ versionId: draft.id, resource: "sites", filename: "sites.csv", accepted: true, problems: [] })
+    .returning();
+  await db
+    .insert(datasetEditors)
+    .values([world.users.curatorEditor, world.coEditor].map((u) => ({ datasetId: dataset!.id, userId: u.id })));
   // One site-year in the draft, so submitting it can succeed.
   const [site] = await db.insert(sites).values({ versionId: draft.id, code: "TB-01", location: "Wren County" }).returning();
   await db.insert(siteYears).values({ versionId: draft.id, siteId: site!.id, code: "TB-01-2021", crop: "corn", year: 2021, blocks: 4 });
@@ -315,7 +453,11 @@ function matches(e: Expectation, status: number) {
   return ![401, 403, 404].includes(status) && status < 500;
 }
 
-type Layer = { route?: { path: unknown; methods: Record<string, boolean>; stack?: { handle?: unknown }[] }; handle?: { stack?: Layer[] }; rawPath?: unknown };
+type Layer = {
+  route?: { path: unknown; methods: Record<string, boolean>; stack?: { handle?: unknown }[] };
+  handle?: { stack?: Layer[] };
+  rawPath?: unknown;
+};
 
 /** Served by the app itself rather than by an API operation: the document and the page that renders it. */
 const notOperations = new Set(["GET /api/v1/openapi.json", "GET /api/docs"]);
@@ -341,7 +483,12 @@ function enumerateRoutes(app: Express): { routes: string[]; problems: string[] }
           if (m === "_all") problems.push(`${prefix}${path} is registered with router.all(); register each method it answers`);
           else out.push(`${m.toUpperCase()} ${prefix}${path}`);
           const key = `${m.toUpperCase()} ${prefix}${path}`;
-          if (m !== "_all" && key.includes(" /api/") && !notOperations.has(key) && !layer.route.stack?.some((l) => isDefinedRoute(l.handle))) {
+          if (
+            m !== "_all" &&
+            key.includes(" /api/") &&
+            !notOperations.has(key) &&
+            !layer.route.stack?.some((l) => isDefinedRoute(l.handle))
+          ) {
             problems.push(`${key} is not defined with defineRoute`);
           }
         }
@@ -410,8 +557,14 @@ describe("authorization matrix", () => {
     const { routes, problems } = enumerateRoutes(t.app);
     expect(problems, "routes the enumeration cannot name exactly").toEqual([]);
     expect(routes.length).toBeGreaterThan(20);
-    expect(routes.filter((r) => !(r in table)), "routes without a row in the matrix").toEqual([]);
-    expect(Object.keys(table).filter((k) => !isPreflightRow(k) && !routes.includes(k)), "rows for routes that do not exist").toEqual([]);
+    expect(
+      routes.filter((r) => !(r in table)),
+      "routes without a row in the matrix",
+    ).toEqual([]);
+    expect(
+      Object.keys(table).filter((k) => !isPreflightRow(k) && !routes.includes(k)),
+      "rows for routes that do not exist",
+    ).toEqual([]);
   });
 
   it("refuses to enumerate router.all(), mounts whose path is not a plain string, and routes made without defineRoute", () => {
@@ -421,7 +574,10 @@ describe("authorization matrix", () => {
     inner.get(/^\/regex-route$/, (_req, res) => res.end());
     inner.get("/by-hand", (_req, res) => res.end());
     sneaky.use("/api/v1", inner);
-    sneaky.use(["/api/a", "/api/b"], express.Router().get("/x", (_req, res) => res.end()));
+    sneaky.use(
+      ["/api/a", "/api/b"],
+      express.Router().get("/x", (_req, res) => res.end()),
+    );
     sneaky.use(/^\/api\/hidden/, (_req, res) => res.end());
     const { problems } = enumerateRoutes(sneaky);
     expect(problems).toEqual([
@@ -437,7 +593,9 @@ describe("authorization matrix", () => {
     const doc = (await request(t.app).get("/api/v1/openapi.json").expect(200)).body as { paths: Record<string, Record<string, unknown>> };
     // Compared by shape: parameter names may differ, and a documented `{resource}.csv` is the route's `:resource`.
     const shape = (route: string) => route.replace(/\{\w+\}/g, ":p").replace(/:\w+/g, ":p");
-    const documented = new Set(Object.entries(doc.paths).flatMap(([path, ops]) => Object.keys(ops).map((m) => shape(`${m.toUpperCase()} ${path}`))));
+    const documented = new Set(
+      Object.entries(doc.paths).flatMap(([path, ops]) => Object.keys(ops).map((m) => shape(`${m.toUpperCase()} ${path}`))),
+    );
     // The document itself, the docs page and path mounts are not API operations.
     const undocumented = registeredRoutes(t.app).filter((r) => !notOperations.has(r) && !r.startsWith("USE ") && !documented.has(shape(r)));
     expect(undocumented, "routes missing from the OpenAPI document").toEqual([]);
@@ -449,17 +607,25 @@ describe("authorization matrix", () => {
       const [method, pathPattern] = key.split(" ") as [string, string];
       for (const actor of actors) {
         const fx = await newFixture(t);
-        const user = actor in world.users ? world.users[actor as keyof World["users"]] : actor.endsWith("Token") ? world.curatorOwner : null;
+        const user =
+          actor in world.users ? world.users[actor as keyof World["users"]] : actor.endsWith("Token") ? world.curatorOwner : null;
         const cell: Cell = { actor, user, fx, t, revealed: [] };
         const params = { slug: fx.slug, semver: "1.0.0", resource: "sites", ...(await row.params?.(cell)) };
-        const path = row.path ?? pathPattern.replace(/:(\w+)/g, (_m, name: string) => {
-          const value = (params as Record<string, string>)[name];
-          if (value === undefined) throw new Error(`${key}: no value for :${name}; give the row a params builder`);
-          return encodeURIComponent(value);
-        });
+        const path =
+          row.path ??
+          pathPattern.replace(/:(\w+)/g, (_m, name: string) => {
+            const value = (params as Record<string, string>)[name];
+            if (value === undefined) throw new Error(`${key}: no value for :${name}; give the row a params builder`);
+            return encodeURIComponent(value);
+          });
         const body = await row.body?.(cell);
         // A path mount answers whatever reaches it; GET is what a browser or script sends it.
-        let req = request(t.app)[(method === "USE" ? "get" : method.toLowerCase()) as "get"](path).set(row.headers ?? {}).buffer(true).parse(binary);
+        const verb = (method === "USE" ? "get" : method.toLowerCase()) as "get";
+        const agent = request(t.app);
+        let req = agent[verb](path)
+          .set(row.headers ?? {})
+          .buffer(true)
+          .parse(binary);
         if (row.query) req = req.query(row.query(cell));
         if (actor.endsWith("Token")) req = req.set("Authorization", `Bearer ${world.tokens[actor as TokenActor]}`);
         else if (user) req = req.set("Cookie", `${sessionCookieName}=${(await createSession(t.ctx.db, user.id)).secret}`);
@@ -469,9 +635,15 @@ describe("authorization matrix", () => {
         const text = bodyText(res);
         const expected = row.expect[actor] ?? (actor === "revokedToken" || actor === "expiredToken" ? 401 : undefined);
         if (expected === undefined) throw new Error(`${key}: no expectation for ${actor}`);
-        if (!matches(expected, res.status)) failures.push(`${key} as ${actor}: expected ${expected}, got ${res.status} ${text.slice(0, 160)}`);
-        else if (matches("ok", res.status) && row.check?.(res, text, cell)) failures.push(`${key} as ${actor}: ${row.check(res, text, cell)}`);
-        const allowedEmails = new Set<string>([...(user ? [user.email] : []), ...JSON.stringify(body ?? "").match(/[\w.+-]+@[\w.-]+/g) ?? [], ...cell.revealed]);
+        if (!matches(expected, res.status))
+          failures.push(`${key} as ${actor}: expected ${expected}, got ${res.status} ${text.slice(0, 160)}`);
+        else if (matches("ok", res.status) && row.check?.(res, text, cell))
+          failures.push(`${key} as ${actor}: ${row.check(res, text, cell)}`);
+        const allowedEmails = new Set<string>([
+          ...(user ? [user.email] : []),
+          ...(JSON.stringify(body ?? "").match(/[\w.+-]+@[\w.-]+/g) ?? []),
+          ...cell.revealed,
+        ]);
         // The owner (and its tokens) and admins choose a dataset's editors by address, so they may see the editors'.
         if (ownerSide.has(actor)) allowedEmails.add(world.users.curatorEditor.email).add(world.coEditor.email);
         results.push({ key, actor, status: res.status, text, allowedEmails });
@@ -513,18 +685,33 @@ describe("authorization matrix", () => {
       const user = actor in world.users ? world.users[actor as keyof World["users"]] : actor.endsWith("Token") ? world.curatorOwner : null;
       const cookie = user && !actor.endsWith("Token") ? `${sessionCookieName}=${(await createSession(t.ctx.db, user.id)).secret}` : null;
       const auth = (req: request.Test) =>
-        actor.endsWith("Token") ? req.set("Authorization", `Bearer ${world.tokens[actor as TokenActor]}`) : cookie ? req.set("Cookie", cookie) : req;
+        actor.endsWith("Token")
+          ? req.set("Authorization", `Bearer ${world.tokens[actor as TokenActor]}`)
+          : cookie
+            ? req.set("Cookie", cookie)
+            : req;
       const one = await auth(request(t.app).get(`/api/v1/curation/datasets/${fx.slug}`));
       const list = await auth(request(t.app).get("/api/v1/curation/datasets"));
       seen[actor] = editorEmails.filter((e) => one.text.includes(e) || list.text.includes(e));
       if (one.status === 200) {
         // Everyone who may see the dataset's desk sees who edits it, by name.
-        expect(one.body.editors.map((e: { id: string }) => e.id).sort(), actor).toEqual([world.users.curatorEditor.id, world.coEditor.id].sort());
+        expect(one.body.editors.map((e: { id: string }) => e.id).sort(), actor).toEqual(
+          [world.users.curatorEditor.id, world.coEditor.id].sort(),
+        );
       }
     }
     expect(seen).toEqual({
-      anonymous: [], member: [], curatorOwner: editorEmails, curatorEditor: [world.users.curatorEditor.email], curatorOther: [], reviewer: [],
-      admin: editorEmails, readToken: editorEmails, writeToken: editorEmails, revokedToken: [], expiredToken: [],
+      anonymous: [],
+      member: [],
+      curatorOwner: editorEmails,
+      curatorEditor: [world.users.curatorEditor.email],
+      curatorOther: [],
+      reviewer: [],
+      admin: editorEmails,
+      readToken: editorEmails,
+      writeToken: editorEmails,
+      revokedToken: [],
+      expiredToken: [],
     });
   });
 });
@@ -532,7 +719,10 @@ describe("authorization matrix", () => {
 describe("mass assignment and object-level checks", () => {
   it("ignores role and emailVerified in a sign-up body", async () => {
     const email = `${fresh("mass")}@tallgrass.test`;
-    await request(t.app).post("/api/v1/sign-up").send({ email, displayName: "Mass", password: testPassword, role: "admin", emailVerified: true, emailVerifiedAt: "2020-01-01" }).expect(202);
+    await request(t.app)
+      .post("/api/v1/sign-up")
+      .send({ email, displayName: "Mass", password: testPassword, role: "admin", emailVerified: true, emailVerifiedAt: "2020-01-01" })
+      .expect(202);
     const [row] = await t.ctx.db.select().from(users).where(eq(users.email, email));
     expect(row).toMatchObject({ role: "member", emailVerifiedAt: null });
   });
@@ -540,7 +730,11 @@ describe("mass assignment and object-level checks", () => {
   it("ignores role in a profile body", async () => {
     const member = await makeUser(t.ctx, "member");
     const cookie = `${sessionCookieName}=${(await createSession(t.ctx.db, member.id)).secret}`;
-    const res = await request(t.app).patch("/api/v1/account").set("Cookie", cookie).send({ role: "admin", id: world.users.admin.id, email: "x@y.z" }).expect(200);
+    const res = await request(t.app)
+      .patch("/api/v1/account")
+      .set("Cookie", cookie)
+      .send({ role: "admin", id: world.users.admin.id, email: "x@y.z" })
+      .expect(200);
     expect(res.body).toMatchObject({ id: member.id, role: "member", email: member.email });
   });
 
@@ -548,7 +742,11 @@ describe("mass assignment and object-level checks", () => {
     const admin = world.users.admin;
     const target = await makeUser(t.ctx, "member");
     const cookie = `${sessionCookieName}=${(await createSession(t.ctx.db, admin.id)).secret}`;
-    const res = await request(t.app).patch(`/api/v1/admin/users/${target.id}`).set("Cookie", cookie).send({ role: "curator", email: "taken@tallgrass.test" }).expect(400);
+    const res = await request(t.app)
+      .patch(`/api/v1/admin/users/${target.id}`)
+      .set("Cookie", cookie)
+      .send({ role: "curator", email: "taken@tallgrass.test" })
+      .expect(400);
     expect(res.body.errors[0].field).toMatch(/^body/);
   });
 
@@ -558,7 +756,10 @@ describe("mass assignment and object-level checks", () => {
     await request(t.app).get(`/api/v1/curation/versions/${fx.draftId}`).set("Cookie", cookie).expect(404);
     const patch = await request(t.app).patch(`/api/v1/curation/versions/${fx.draftId}`).set("Cookie", cookie).send({ changelog: "hijack" });
     expect([403, 404]).toContain(patch.status);
-    const [draft] = await t.ctx.db.select().from(versions).where(and(eq(versions.id, fx.draftId)));
+    const [draft] = await t.ctx.db
+      .select()
+      .from(versions)
+      .where(and(eq(versions.id, fx.draftId)));
     expect(draft?.changelog).not.toBe("hijack");
   });
 });

@@ -24,7 +24,12 @@ describe.skipIf(!!process.env.PLOTBANK_TEST_DATABASE_URL)("backup and restore of
       const demo = (await import(demoModule)) as { seedDemo?: (c: typeof ctx) => Promise<unknown> };
       await demo.seedDemo?.(ctx);
     }
-    await createUser(ctx.db, { email: "backup-check@plotbank.test", displayName: "Backup check", password: "a-long-enough-pass", verified: true });
+    await createUser(ctx.db, {
+      email: "backup-check@plotbank.test",
+      displayName: "Backup check",
+      password: "a-long-enough-pass",
+      verified: true,
+    });
     const before = await tableChecksums(ctx.db);
     await database.close();
 

@@ -97,7 +97,11 @@ describe("citation formats of a published version", () => {
     const other = await citableFixture(t.ctx, "tb-starter-p-second");
     await other.publish("1.1.0", { publishedAt: new Date(Date.UTC(2025, 2, 14, 9)) });
     const entries = [];
-    for (const url of [`${base}/1.0.0/citation?format=bibtex`, `${base}/1.1.0/citation?format=bibtex`, "/api/v1/datasets/tb-starter-p-second/versions/1.1.0/citation?format=bibtex"]) {
+    for (const url of [
+      `${base}/1.0.0/citation?format=bibtex`,
+      `${base}/1.1.0/citation?format=bibtex`,
+      "/api/v1/datasets/tb-starter-p-second/versions/1.1.0/citation?format=bibtex",
+    ]) {
       entries.push((await request(t.app).get(url).expect(200)).text);
     }
     const library = parseBibtex(entries.join("\n"), { sentenceCase: false });
@@ -152,7 +156,12 @@ describe("citation formats of a published version", () => {
     for (const line of res.text.trimEnd().split("\n")) expect(line).toMatch(/^[A-Z][A-Z0-9] {2}-( |$)/);
     expect(res.text).toContain(`UR  - ${url}\n`);
     const [parsed] = new Cite(res.text).data as Record<string, unknown>[];
-    expect(parsed).toMatchObject({ type: "dataset", URL: url, version: "12.10.3", title: "Soybean starter phosphorus placement in the Tallgrass Basin" });
+    expect(parsed).toMatchObject({
+      type: "dataset",
+      URL: url,
+      version: "12.10.3",
+      title: "Soybean starter phosphorus placement in the Tallgrass Basin",
+    });
   });
 
   it("CSL-JSON, the record the other formats render from", async () => {
@@ -169,7 +178,8 @@ describe("citation formats of a published version", () => {
         version: "1.1.0",
         DOI: doi,
         URL: "http://plotbank.test/datasets/tb-starter-p?version=1.1.0",
-        abstract: "Invented demonstration trials: starter P placement (check, in-furrow, 2x2 band, broadcast) on soybean across soil-test P classes.",
+        abstract:
+          "Invented demonstration trials: starter P placement (check, in-furrow, 2x2 band, broadcast) on soybean across soil-test P classes.",
         license: "CC-BY-4.0",
         keyword: "soybean,phosphorus,starter fertilizer",
       },
@@ -212,7 +222,9 @@ describe("bad citation requests", () => {
   });
   it("a draft is not citable", async () => {
     const f = await citableFixture(t.ctx, "tb-draft-only");
-    await t.ctx.db.insert(versions).values({ datasetId: f.datasetId, semver: "1.0.0", createdBy: f.ownerId, tableSchema: defaultTableSchema() });
+    await t.ctx.db
+      .insert(versions)
+      .values({ datasetId: f.datasetId, semver: "1.0.0", createdBy: f.ownerId, tableSchema: defaultTableSchema() });
     await request(t.app).get("/api/v1/datasets/tb-draft-only/versions/1.0.0/citation").expect(404);
   });
 });

@@ -41,7 +41,13 @@ describe("DOI registration on publication", () => {
     const f = await citableFixture(t.ctx, "tb-doi-chain");
     const v1 = await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2024, 4, 2)) });
     const row1 = await versionRow(v1);
-    expect(row1).toMatchObject({ state: "published", doi: `${prefix}/plotbank.tb-doi-chain.v1.0.0`, doiStatus: "registered", doiAttempts: 1, doiLastError: null });
+    expect(row1).toMatchObject({
+      state: "published",
+      doi: `${prefix}/plotbank.tb-doi-chain.v1.0.0`,
+      doiStatus: "registered",
+      doiAttempts: 1,
+      doiLastError: null,
+    });
 
     const first = fake.records.get(row1.doi!)!;
     expect(first.state).toBe("findable");
@@ -61,7 +67,9 @@ describe("DOI registration on publication", () => {
         nameType: "Personal",
         givenName: "Marta",
         familyName: "Quillon",
-        nameIdentifiers: [{ nameIdentifier: "https://orcid.org/0000-0002-1825-0097", nameIdentifierScheme: "ORCID", schemeUri: "https://orcid.org" }],
+        nameIdentifiers: [
+          { nameIdentifier: "https://orcid.org/0000-0002-1825-0097", nameIdentifierScheme: "ORCID", schemeUri: "https://orcid.org" },
+        ],
         affiliation: [{ name: "Tallgrass Basin Agronomy Network" }],
       },
       { name: "Tallgrass Basin Agronomy Network", nameType: "Organizational" },
@@ -79,14 +87,21 @@ describe("DOI registration on publication", () => {
       ]),
     );
     // The earlier version's DOI metadata now points forward to the new one.
-    expect(fake.records.get(row1.doi!)!.relatedIdentifiers).toContainEqual({ relatedIdentifier: row2.doi, relatedIdentifierType: "DOI", relationType: "IsPreviousVersionOf" });
+    expect(fake.records.get(row1.doi!)!.relatedIdentifiers).toContainEqual({
+      relatedIdentifier: row2.doi,
+      relatedIdentifierType: "DOI",
+      relationType: "IsPreviousVersionOf",
+    });
 
     // The concept DOI names the dataset and has both versions.
     const [d] = await t.ctx.db.select().from(datasets).where(eq(datasets.id, f.datasetId));
     expect(d!.conceptDoi).toBe(`${prefix}/plotbank.tb-doi-chain`);
     const concept = fake.records.get(d!.conceptDoi!)!;
     expect(concept.url).toBe("http://plotbank.test/datasets/tb-doi-chain");
-    expect(concept.relatedIdentifiers!.filter((r) => r.relationType === "HasVersion").map((r) => r.relatedIdentifier)).toEqual([row1.doi, row2.doi]);
+    expect(concept.relatedIdentifiers!.filter((r) => r.relationType === "HasVersion").map((r) => r.relatedIdentifier)).toEqual([
+      row1.doi,
+      row2.doi,
+    ]);
     expect(concept.publicationYear).toBe(2024);
   });
 
@@ -100,15 +115,31 @@ describe("DOI registration on publication", () => {
     ]);
     await t.ctx.db
       .update(datasets)
-      .set({ funding: "Tallgrass Basin Growers' Fund (invented)", methods: "RCBD with 4 blocks per site-year; yields at 13 % moisture; Bray-P1, 0-6 in." })
+      .set({
+        funding: "Tallgrass Basin Growers' Fund (invented)",
+        methods: "RCBD with 4 blocks per site-year; yields at 13 % moisture; Bray-P1, 0-6 in.",
+      })
       .where(eq(datasets.id, f.datasetId));
     const id = await f.publish("1.0.0");
     const record = fake.records.get((await versionRow(id)).doi!)!;
-    expect(record.fundingReferences).toEqual([{ funderName: "Basin Soil Fund" }, { funderName: "Tallgrass Basin Growers' Fund (invented)" }]);
-    expect(record.descriptions).toContainEqual({ description: "RCBD with 4 blocks per site-year; yields at 13 % moisture; Bray-P1, 0-6 in.", descriptionType: "Methods" });
+    expect(record.fundingReferences).toEqual([
+      { funderName: "Basin Soil Fund" },
+      { funderName: "Tallgrass Basin Growers' Fund (invented)" },
+    ]);
+    expect(record.descriptions).toContainEqual({
+      description: "RCBD with 4 blocks per site-year; yields at 13 % moisture; Bray-P1, 0-6 in.",
+      descriptionType: "Methods",
+    });
     expect(record.contributors).toEqual([
       expect.objectContaining({ name: "Quillon, Marta", nameType: "Personal", contributorType: "ProjectLeader" }),
-      { name: "Varga, Ines", nameType: "Personal", givenName: "Ines", familyName: "Varga", affiliation: [{ name: "Tallgrass Basin Agronomy Network" }], contributorType: "DataCurator" },
+      {
+        name: "Varga, Ines",
+        nameType: "Personal",
+        givenName: "Ines",
+        familyName: "Varga",
+        affiliation: [{ name: "Tallgrass Basin Agronomy Network" }],
+        contributorType: "DataCurator",
+      },
       { name: "Basin Field Team", nameType: "Organizational", contributorType: "DataCollector" },
     ]);
     // The concept DOI carries them too.
@@ -140,7 +171,12 @@ describe("DOI registration on publication", () => {
     const summary = await retryPendingDois(t.ctx, { now: new Date(row.updatedAt.getTime() + retryDelayMs(2)) });
     expect(summary.registered).toBeGreaterThanOrEqual(1);
     row = await versionRow(id);
-    expect(row).toMatchObject({ doi: `${prefix}/plotbank.tb-doi-retry.v1.0.0`, doiStatus: "registered", doiAttempts: 3, doiLastError: null });
+    expect(row).toMatchObject({
+      doi: `${prefix}/plotbank.tb-doi-retry.v1.0.0`,
+      doiStatus: "registered",
+      doiAttempts: 3,
+      doiLastError: null,
+    });
     expect(fake.records.get(row.doi!)!.state).toBe("findable");
   });
 
@@ -155,7 +191,8 @@ describe("DOI registration on publication", () => {
     const v2 = await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2025, 0, 20)) });
     expect(await versionRow(v2)).toMatchObject({ doiStatus: "registered", doi: doi2 });
     // 1.0.0 is still waiting for its back-off: 1.1.0 names no earlier version, and the concept DOI has only 1.1.0.
-    const relations = (doi: string) => (fake.records.get(doi)?.relatedIdentifiers ?? []).map((r) => `${r.relationType} ${r.relatedIdentifier}`);
+    const relations = (doi: string) =>
+      (fake.records.get(doi)?.relatedIdentifiers ?? []).map((r) => `${r.relationType} ${r.relatedIdentifier}`);
     expect(relations(doi2)).toEqual([`IsVersionOf ${conceptDoi}`]);
     expect(relations(conceptDoi)).toEqual([`HasVersion ${doi2}`]);
 
@@ -217,7 +254,11 @@ describe("withdrawing a version", () => {
       description: `Withdrawn on ${withdrawnOn}: Plot yields at TB-01 were entered in bu/ac as kg/ha. The data of this version are no longer served; its landing page keeps this record.`,
       descriptionType: "Other",
     });
-    expect(record.dates).toContainEqual({ date: withdrawnOn, dateType: "Withdrawn", dateInformation: "Plot yields at TB-01 were entered in bu/ac as kg/ha" });
+    expect(record.dates).toContainEqual({
+      date: withdrawnOn,
+      dateType: "Withdrawn",
+      dateInformation: "Plot yields at TB-01 were entered in bu/ac as kg/ha",
+    });
   });
 
   it("while the DOI service is down, the update waits (the DOI is still cited) and goes out on a later pass", async () => {
@@ -242,7 +283,9 @@ describe("withdrawing a version", () => {
 describe("DOI registration on the version desk", () => {
   const desk = async (versionId: string, email?: string) => {
     const agent = email ? await signedInAgent(t.app, email) : request.agent(t.app);
-    return (await agent.get(`/api/v1/curation/versions/${versionId}`).expect(200)).body as { doiRegistration: Record<string, unknown> | null };
+    return (await agent.get(`/api/v1/curation/versions/${versionId}`).expect(200)).body as {
+      doiRegistration: Record<string, unknown> | null;
+    };
   };
   const ownerEmail = async (ownerId: string) => (await t.ctx.db.select().from(users).where(eq(users.id, ownerId)))[0]!.email;
 
@@ -272,7 +315,10 @@ describe("DOI registration on the version desk", () => {
     // As left by a service that refused this version's metadata before it was set up to accept it.
     const doi = `${prefix}/plotbank.tb-doi-requeue.v1.0.0`;
     fake.records.delete(doi);
-    await t.ctx.db.update(versions).set({ doi: null, doiStatus: "failed", doiLastError: "The DOI service answered 422 to POST /dois: types: not accepted." }).where(eq(versions.id, id));
+    await t.ctx.db
+      .update(versions)
+      .set({ doi: null, doiStatus: "failed", doiLastError: "The DOI service answered 422 to POST /dois: types: not accepted." })
+      .where(eq(versions.id, id));
     // The retry loop leaves a refused registration alone.
     await retryPendingDois(t.ctx, { now: new Date(Date.now() + 24 * 3600_000) });
     expect((await versionRow(id)).doiStatus).toBe("failed");
@@ -341,7 +387,15 @@ describe("the local DataCite fake", () => {
     ["types.resourceTypeGeneral", { types: { resourceTypeGeneral: "Spreadsheet" } }],
     // The schema's enumeration is case-sensitive.
     ["types.resourceTypeGeneral", { types: { resourceTypeGeneral: "dataset" } }],
-    ["creators[1].nameType", { creators: [{ name: "Quillon, Marta", nameType: "Personal" }, { name: "Tallgrass Basin Agronomy Network", nameType: "Organisation" }] }],
+    [
+      "creators[1].nameType",
+      {
+        creators: [
+          { name: "Quillon, Marta", nameType: "Personal" },
+          { name: "Tallgrass Basin Agronomy Network", nameType: "Organisation" },
+        ],
+      },
+    ],
     ["creators[0].nameType", { creators: [{ name: "Quillon, Marta", nameType: "Person" }] }],
     ["contributors[0].contributorType", { contributors: [{ name: "Varga, Ines", contributorType: "Curator" }] }],
     ["fundingReferences[0].funderName", { fundingReferences: [{ funderName: "" }] }],
@@ -356,7 +410,12 @@ describe("the local DataCite fake", () => {
   it("accepts other values from the controlled lists, and a creator without a nameType", async () => {
     const client = createDataCiteClient({ url: fake.url!, ...credentials });
     const doi = `${prefix}/plotbank.fake-lists.v1.0.0`;
-    const made = await client.createDoi({ ...valid(), doi, types: { resourceTypeGeneral: "Software" }, creators: [{ name: "Tallgrass Basin Agronomy Network" }] });
+    const made = await client.createDoi({
+      ...valid(),
+      doi,
+      types: { resourceTypeGeneral: "Software" },
+      creators: [{ name: "Tallgrass Basin Agronomy Network" }],
+    });
     expect(made).toMatchObject({ state: "findable", types: { resourceTypeGeneral: "Software" } });
     // A draft is not validated against the lists, as on the real service.
     const draft = await client.createDoi({ doi: `${prefix}/plotbank.fake-lists-draft`, types: { resourceTypeGeneral: "Spreadsheet" } });

@@ -26,7 +26,10 @@ beforeAll(async () => {
   const url = await fake.start();
   t = await testApp({ datacite: { url, user: "PLOTBANK.TEST", password: "fake-secret", prefix: "10.80555" } });
   const f = await citableFixture(t.ctx, "tb-linked");
-  await t.ctx.db.update(datasetsTable).set({ methods: "RCBD with 4 blocks per site-year; plot combine harvest; yields at 13 % moisture." }).where(eq(datasetsTable.id, f.datasetId));
+  await t.ctx.db
+    .update(datasetsTable)
+    .set({ methods: "RCBD with 4 blocks per site-year; plot combine harvest; yields at 13 % moisture." })
+    .where(eq(datasetsTable.id, f.datasetId));
   versionIds = [
     await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2023, 10, 1)), years: [2019, 2021] }),
     await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2024, 10, 1)), years: [2019, 2023] }),
@@ -56,7 +59,10 @@ describe("the DCAT 3 catalogue", () => {
 
     // A harvester following dcat:dataset reaches datasets that have files.
     const versions = nodes(catalog!, `${DCAT}dataset`);
-    expect(versions.map((v) => v["@id"])).toEqual(["http://plotbank.test/datasets/tb-linked?version=1.0.0", "http://plotbank.test/datasets/tb-linked?version=1.1.0"]);
+    expect(versions.map((v) => v["@id"])).toEqual([
+      "http://plotbank.test/datasets/tb-linked?version=1.0.0",
+      "http://plotbank.test/datasets/tb-linked?version=1.1.0",
+    ]);
     for (const v of versions) {
       expect(v["@type"]).toEqual([`${DCAT}Dataset`]);
       expect(nodes(v, `${DCAT}distribution`).length).toBeGreaterThan(0);
@@ -75,7 +81,9 @@ describe("the DCAT 3 catalogue", () => {
     expect(values(v2, `${DCT}issued`)[0]).toEqual({ "@value": "2024-11-01", "@type": "http://www.w3.org/2001/XMLSchema#date" });
     const temporal = nodes(v2, `${DCT}temporal`)[0]!;
     expect([value(temporal, `${DCAT}startDate`), value(temporal, `${DCAT}endDate`)]).toEqual(["2019", "2023"]);
-    expect(value(nodes(v2, `${DCT}spatial`)[0]!, "http://www.w3.org/2000/01/rdf-schema#label")).toBe("Tallgrass Basin (invented), temperate uplands");
+    expect(value(nodes(v2, `${DCT}spatial`)[0]!, "http://www.w3.org/2000/01/rdf-schema#label")).toBe(
+      "Tallgrass Basin (invented), temperate uplands",
+    );
 
     // The dataset as a whole is a catalogued resource that names its versions (DCAT 3 versioning).
     const [dataset] = nodes(catalog!, `${DCAT}resource`);
@@ -99,8 +107,15 @@ describe("the DCAT 3 catalogue", () => {
       [`${base}/datapackage.zip`, "application/zip"],
       ...["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"].map((r) => [`${base}/resources/${r}.csv`, "text/csv"]),
     ];
-    expect(distributions.map((d) => [id(d, `${DCAT}downloadURL`), id(d, `${DCAT}mediaType`)?.replace("https://www.iana.org/assignments/media-types/", "")])).toEqual(expected);
-    expect(distributions.map((d) => id(d, `${DCT}format`)?.replace("http://publications.europa.eu/resource/authority/file-type/", ""))).toEqual(["ZIP", "CSV", "CSV", "CSV", "CSV", "CSV", "CSV"]);
+    expect(
+      distributions.map((d) => [
+        id(d, `${DCAT}downloadURL`),
+        id(d, `${DCAT}mediaType`)?.replace("https://www.iana.org/assignments/media-types/", ""),
+      ]),
+    ).toEqual(expected);
+    expect(
+      distributions.map((d) => id(d, `${DCT}format`)?.replace("http://publications.europa.eu/resource/authority/file-type/", "")),
+    ).toEqual(["ZIP", "CSV", "CSV", "CSV", "CSV", "CSV", "CSV"]);
 
     for (const d of distributions) {
       const url = id(d, `${DCAT}downloadURL`)!;
@@ -162,8 +177,12 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     const catalog = nodes(d!, `${SDO}includedInDataCatalog`)[0]!;
     expect(catalog["@type"]).toEqual([`${SDO}DataCatalog`]);
     expect(catalog["@id"]).toBe("http://plotbank.test/api/v1/catalog");
-    expect(nodes(d!, `${SDO}funder`).map((f) => [f["@type"], value(f, `${SDO}name`)])).toEqual([[[`${SDO}Organization`], "Basin Soil Fund"]]);
-    expect(value(d!, `${SDO}measurementTechnique`)).toBe("RCBD with 4 blocks per site-year; plot combine harvest; yields at 13 % moisture.");
+    expect(nodes(d!, `${SDO}funder`).map((f) => [f["@type"], value(f, `${SDO}name`)])).toEqual([
+      [[`${SDO}Organization`], "Basin Soil Fund"],
+    ]);
+    expect(value(d!, `${SDO}measurementTechnique`)).toBe(
+      "RCBD with 4 blocks per site-year; plot combine harvest; yields at 13 % moisture.",
+    );
     expect(value(d!, `${SDO}temporalCoverage`)).toBe("2019/2023");
     const place = nodes(d!, `${SDO}spatialCoverage`)[0]!;
     expect(place["@type"]).toEqual([`${SDO}Place`]);
@@ -222,9 +241,14 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     const f = await citableFixture(t.ctx, "tb-linked-withdrawn");
     const id = await f.publish("1.0.0");
     await f.publish("1.1.0");
-    await t.ctx.db.update(versionsTable).set({ state: "withdrawn", withdrawnReason: "Yields at TB-01 were in bu/ac", withdrawnAt: new Date() }).where(eq(versionsTable.id, id));
+    await t.ctx.db
+      .update(versionsTable)
+      .set({ state: "withdrawn", withdrawnReason: "Yields at TB-01 were in bu/ac", withdrawnAt: new Date() })
+      .where(eq(versionsTable.id, id));
     const res = await request(web).get("/datasets/tb-linked-withdrawn?version=1.0.0").expect(200);
-    expect(res.text).toContain("<title>Soybean starter phosphorus placement in the Tallgrass Basin (version 1.0.0, withdrawn) · Plotbank</title>");
+    expect(res.text).toContain(
+      "<title>Soybean starter phosphorus placement in the Tallgrass Basin (version 1.0.0, withdrawn) · Plotbank</title>",
+    );
     const [d] = await expand(ldOf(res.text));
     expect(d!["@id"]).toBe("http://plotbank.test/datasets/tb-linked-withdrawn?version=1.0.0");
     expect(value(d!, `${SDO}creativeWorkStatus`)).toBe("Withdrawn");
@@ -255,7 +279,8 @@ describe("schema.org Dataset JSON-LD in the served dataset page", () => {
     const f = await citableFixture(t.ctx, "tb-hostile-title");
     await t.ctx.db.execute(
       // Written past the API's own validation, as a stored value could be.
-      (await import("drizzle-orm")).sql`UPDATE datasets SET description = ${"Ends early? </SCRIPT><img src=x onerror=alert(1)>"} WHERE id = ${f.datasetId}`,
+      (await import("drizzle-orm"))
+        .sql`UPDATE datasets SET description = ${"Ends early? </SCRIPT><img src=x onerror=alert(1)>"} WHERE id = ${f.datasetId}`,
     );
     await f.publish("1.0.0");
     const res = await request(web).get("/datasets/tb-hostile-title").expect(200);

@@ -29,7 +29,14 @@ describe("DOIs through the real publication path (the demo: submit and approve t
 
   it("every published demo version ends with a findable DOI, linked to its neighbours and to the dataset's concept DOI", async () => {
     const rows = await t.ctx.db
-      .select({ slug: datasets.slug, conceptDoi: datasets.conceptDoi, semver: versions.semver, doi: versions.doi, doiStatus: versions.doiStatus, doiLastError: versions.doiLastError })
+      .select({
+        slug: datasets.slug,
+        conceptDoi: datasets.conceptDoi,
+        semver: versions.semver,
+        doi: versions.doi,
+        doiStatus: versions.doiStatus,
+        doiLastError: versions.doiLastError,
+      })
       .from(versions)
       .innerJoin(datasets, eq(datasets.id, versions.datasetId))
       .where(eq(versions.state, "published"));
@@ -56,7 +63,9 @@ describe("DOIs through the real publication path (the demo: submit and approve t
       });
       const concept = fake.records.get(conceptDoi);
       expect(concept?.state).toBe("findable");
-      expect(concept!.relatedIdentifiers!.filter((l) => l.relationType === "HasVersion").map((l) => l.relatedIdentifier)).toEqual(chain.map((v) => v.doi));
+      expect(concept!.relatedIdentifiers!.filter((l) => l.relationType === "HasVersion").map((l) => l.relatedIdentifier)).toEqual(
+        chain.map((v) => v.doi),
+      );
     }
   });
 });
@@ -112,7 +121,10 @@ describe("publishing never waits on the DOI service", () => {
     const follower = await makeUser(t.ctx, "member");
     const [dataset] = await t.ctx.db.select().from(datasets).where(eq(datasets.slug, f.slug));
     await t.ctx.db.insert(follows).values({ datasetId: dataset!.id, userId: follower.id });
-    await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release: 2021 season." }).expect(200);
+    await f.curatorAgent
+      .post(`/api/v1/curation/versions/${f.versionId}/submit`)
+      .send({ changelog: "First release: 2021 season." })
+      .expect(200);
 
     const started = performance.now();
     const approved = await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
@@ -127,7 +139,10 @@ describe("publishing never waits on the DOI service", () => {
     expect(pending).toMatchObject({ state: "published", doiStatus: "pending", doi: null });
     expect(fake.records.size).toBe(0);
 
-    const notices = await t.ctx.db.select().from(outbox).where(and(eq(outbox.kind, "new-version"), inArray(outbox.to, [follower.email])));
+    const notices = await t.ctx.db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.kind, "new-version"), inArray(outbox.to, [follower.email])));
     expect(notices).toHaveLength(1);
 
     hanging.answer();

@@ -62,12 +62,16 @@ describe("every Express route is in the OpenAPI document", () => {
   });
   it("documents each of them", () => {
     const documented = new Set(Object.entries(doc.paths).flatMap(([path, ops]) => Object.keys(ops).map((m) => `${m} ${path}`)));
-    const missing = expressRoutes(t.app).filter((r) => r.startsWith("get /api") || /^\w+ \/api/.test(r)).filter((r) => !documented.has(r) && !undocumentedByDesign.has(r));
+    const missing = expressRoutes(t.app)
+      .filter((r) => r.startsWith("get /api") || /^\w+ \/api/.test(r))
+      .filter((r) => !documented.has(r) && !undocumentedByDesign.has(r));
     expect(missing).toEqual([]);
   });
   it("documents nothing that is not a route", () => {
     const routes = new Set(expressRoutes(t.app));
-    const extra = Object.entries(doc.paths).flatMap(([path, ops]) => Object.keys(ops).map((m) => `${m} ${path}`)).filter((r) => !routes.has(r));
+    const extra = Object.entries(doc.paths)
+      .flatMap(([path, ops]) => Object.keys(ops).map((m) => `${m} ${path}`))
+      .filter((r) => !routes.has(r));
     expect(extra).toEqual([]);
   });
 });
@@ -113,7 +117,13 @@ describe("real answers of every documented GET match their documented schemas", 
       }
       if (!type.endsWith("json")) continue;
       const parsed = schema.safeParse(res.body);
-      if (!parsed.success) failures.push(`GET ${url}: ${res.status} body does not match: ${parsed.error.issues.slice(0, 3).map((i) => `${i.path.join(".")} ${i.message}`).join("; ")}`);
+      if (!parsed.success)
+        failures.push(
+          `GET ${url}: ${res.status} body does not match: ${parsed.error.issues
+            .slice(0, 3)
+            .map((i) => `${i.path.join(".")} ${i.message}`)
+            .join("; ")}`,
+        );
     }
     expect(failures).toEqual([]);
   });

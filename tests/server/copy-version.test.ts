@@ -17,7 +17,11 @@ let copyId: string;
 
 type Row = Record<string, unknown>;
 const rowsOf = async (table: PgTable, versionId: string): Promise<Row[]> =>
-  ((await t.ctx.db.execute(sql`SELECT * FROM ${sql.identifier(getTableName(table))} WHERE version_id = ${versionId} ORDER BY id`)) as unknown as { rows: Row[] }).rows;
+  (
+    (await t.ctx.db.execute(
+      sql`SELECT * FROM ${sql.identifier(getTableName(table))} WHERE version_id = ${versionId} ORDER BY id`,
+    )) as unknown as { rows: Row[] }
+  ).rows;
 
 /** A version's rows with ids replaced by what they mean: the version dropped, references by the referenced row's code. */
 async function comparable(versionId: string): Promise<Map<string, Row[]>> {
@@ -56,12 +60,35 @@ beforeAll(async () => {
     .join("\n");
   f = await draftWithData(t.app, t.ctx, { plots: `${plots}\n`, treatments: `${treatments}\n` });
   // Potassium and sulfur tests too, so every soil column of the responses is filled.
-  await upload(f.curatorAgent, f.versionId, "soil_tests", "site_year,analyte,value,unit,extractant,depth_in,class,interpretation\nTB-01-2021,K,110,ppm,ammonium-acetate,6,low,tallgrass-illustrative\nTB-01-2021,S,6,ppm,calcium-phosphate,6,low,tallgrass-illustrative\n").expect(201);
+  await upload(
+    f.curatorAgent,
+    f.versionId,
+    "soil_tests",
+    "site_year,analyte,value,unit,extractant,depth_in,class,interpretation\nTB-01-2021,K,110,ppm,ammonium-acetate,6,low,tallgrass-illustrative\nTB-01-2021,S,6,ppm,calcium-phosphate,6,low,tallgrass-illustrative\n",
+  ).expect(201);
   // A site-year published as means (summary_means), with the variety columns filled.
-  await upload(f.curatorAgent, f.versionId, "sites", "site,location,soil_series,soil_texture\nTB-05,Osage Bend County,Marrow,clay loam\n").expect(201);
-  await upload(f.curatorAgent, f.versionId, "site_years", "site_year,site,crop,year,blocks,variety,maturity_group\nTB-05-2021,TB-05,soybean,2021,4,Basin 27X,2.7\n").expect(201);
-  await upload(f.curatorAgent, f.versionId, "summaries", "site_year,treatment,mean_kg_ha,replicates,mse,df_error\nTB-05-2021,CHK,3500,4,20000,9\nTB-05-2021,BAND,3800,4,20000,9\n").expect(201);
-  await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release: 2021 season." }).expect(200);
+  await upload(
+    f.curatorAgent,
+    f.versionId,
+    "sites",
+    "site,location,soil_series,soil_texture\nTB-05,Osage Bend County,Marrow,clay loam\n",
+  ).expect(201);
+  await upload(
+    f.curatorAgent,
+    f.versionId,
+    "site_years",
+    "site_year,site,crop,year,blocks,variety,maturity_group\nTB-05-2021,TB-05,soybean,2021,4,Basin 27X,2.7\n",
+  ).expect(201);
+  await upload(
+    f.curatorAgent,
+    f.versionId,
+    "summaries",
+    "site_year,treatment,mean_kg_ha,replicates,mse,df_error\nTB-05-2021,CHK,3500,4,20000,9\nTB-05-2021,BAND,3800,4,20000,9\n",
+  ).expect(201);
+  await f.curatorAgent
+    .post(`/api/v1/curation/versions/${f.versionId}/submit`)
+    .send({ changelog: "First release: 2021 season." })
+    .expect(200);
   await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
   copyId = (await f.curatorAgent.post(`/api/v1/datasets/${f.slug}/versions`).send({}).expect(201)).body.id as string;
 });
@@ -79,19 +106,28 @@ describe("a new draft copied from the published version", () => {
     expect(versionRowTables.map((table) => getTableName(table)).sort()).toEqual(versionScoped.sort());
   });
 
-  it.each(versionRowTables.map((table) => [getTableName(table), table] as const))("%s: the same rows, column by column, with new ids", async (name, table) => {
-    const [source, copy] = await Promise.all([comparable(f.versionId), comparable(copyId)]);
-    const from = source.get(name)!;
-    const to = copy.get(name)!;
-    expect(from.length, `${name} has rows in the source`).toBeGreaterThan(0);
-    // Every column of the table takes part, and each holds a value in some source row, so a dropped column shows.
-    const compared = Object.values(getTableColumns(table)).map((column) => column.name).filter((column) => column !== "id" && column !== "version_id");
-    expect(Object.keys(from[0]!).sort()).toEqual(compared.sort());
-    for (const column of compared) expect(from.some((row) => row[column] !== null && row[column] !== undefined), `${name}.${column} is filled in the source`).toBe(true);
-    expect(to).toEqual(from);
+  it.each(versionRowTables.map((table) => [getTableName(table), table] as const))(
+    "%s: the same rows, column by column, with new ids",
+    async (name, table) => {
+      const [source, copy] = await Promise.all([comparable(f.versionId), comparable(copyId)]);
+      const from = source.get(name)!;
+      const to = copy.get(name)!;
+      expect(from.length, `${name} has rows in the source`).toBeGreaterThan(0);
+      // Every column of the table takes part, and each holds a value in some source row, so a dropped column shows.
+      const compared = Object.values(getTableColumns(table))
+        .map((column) => column.name)
+        .filter((column) => column !== "id" && column !== "version_id");
+      expect(Object.keys(from[0]!).sort()).toEqual(compared.sort());
+      for (const column of compared)
+        expect(
+          from.some((row) => row[column] !== null && row[column] !== undefined),
+          `${name}.${column} is filled in the source`,
+        ).toBe(true);
+      expect(to).toEqual(from);
 
-    const [sourceIds, copyIds] = await Promise.all([rowsOf(table, f.versionId), rowsOf(table, copyId)]);
-    const shared = new Set(sourceIds.map((row) => String(row.id)));
-    expect(copyIds.filter((row) => shared.has(String(row.id)))).toEqual([]);
-  });
+      const [sourceIds, copyIds] = await Promise.all([rowsOf(table, f.versionId), rowsOf(table, copyId)]);
+      const shared = new Set(sourceIds.map((row) => String(row.id)));
+      expect(copyIds.filter((row) => shared.has(String(row.id)))).toEqual([]);
+    },
+  );
 });

@@ -15,10 +15,15 @@ beforeAll(async () => {
   await f.publish("1.1.0", { publishedAt: new Date(Date.UTC(2024, 10, 1)), hooks: false });
   const gone = await f.publish("1.2.0", { publishedAt: new Date(Date.UTC(2025, 2, 1)), hooks: false });
   const now = new Date();
-  await t.ctx.db.update(versions).set({ state: "withdrawn", withdrawnReason: "A site's plot map was wrong.", withdrawnAt: now, updatedAt: now }).where(eq(versions.id, gone));
+  await t.ctx.db
+    .update(versions)
+    .set({ state: "withdrawn", withdrawnReason: "A site's plot map was wrong.", withdrawnAt: now, updatedAt: now })
+    .where(eq(versions.id, gone));
   // A dataset with only a draft has no public page yet.
   const draftOnly = await citableFixture(t.ctx, "tb-draft-only");
-  await t.ctx.db.insert(versions).values({ datasetId: draftOnly.datasetId, semver: "1.0.0", createdBy: draftOnly.ownerId, tableSchema: {} as never });
+  await t.ctx.db
+    .insert(versions)
+    .values({ datasetId: draftOnly.datasetId, semver: "1.0.0", createdBy: draftOnly.ownerId, tableSchema: {} as never });
   draftSlug = draftOnly.slug;
 });
 afterAll(async () => {
@@ -67,6 +72,8 @@ describe("sitemap.xml", () => {
     const f = await citableFixture(t.ctx, "tb-crawled-later");
     await f.publish("1.0.0", { publishedAt: new Date(Date.UTC(2026, 0, 15)), hooks: false });
     const res = await request(t.app).get("/sitemap.xml").expect(200);
-    expect(res.text).toContain(`<url><loc>${t.ctx.config.publicUrl}/datasets/tb-crawled-later</loc><lastmod>2026-01-15T00:00:00.000Z</lastmod></url>`);
+    expect(res.text).toContain(
+      `<url><loc>${t.ctx.config.publicUrl}/datasets/tb-crawled-later</loc><lastmod>2026-01-15T00:00:00.000Z</lastmod></url>`,
+    );
   });
 });

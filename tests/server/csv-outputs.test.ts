@@ -80,7 +80,8 @@ describe("one CSV writer for every output", () => {
       expect(r.hash).toBe(`sha256:${createHash("sha256").update(csv).digest("hex")}`);
       expect(r.bytes).toBe(csv.length);
     }
-    for (const name of ["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"]) h.update(`${name}\n`).update(files.get(`data/${name}.csv`)!);
+    for (const name of ["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"])
+      h.update(`${name}\n`).update(files.get(`data/${name}.csv`)!);
     expect(dp.plotbank.checksum).toBe(`sha256:${h.digest("hex")}`);
   });
 
@@ -94,7 +95,10 @@ describe("one CSV writer for every output", () => {
     const rows = rowsOf(responses.text);
     const estimate = rows[0]!.indexOf("md");
     expect(estimate).toBeGreaterThan(-1);
-    expect(rows.slice(1).some((r) => /^-\d/.test(r[estimate]!)), "a negative response is written as a number").toBe(true);
+    expect(
+      rows.slice(1).some((r) => /^-\d/.test(r[estimate]!)),
+      "a negative response is written as a number",
+    ).toBe(true);
   });
 
   it("the validation-report CSV guards the values an uploader sent, with CRLF", async () => {
@@ -110,7 +114,11 @@ describe("one CSV writer for every output", () => {
   });
 
   it("the meta-analysis site-year CSV is CRLF without a BOM, and its negative numbers stay numbers", async () => {
-    const res = await request(t.app).get(`/api/v1/analyses/meta?dataset=${f.slug}&version=1.0.0&nutrient=P&format=csv`).buffer(true).parse(binary).expect(200);
+    const res = await request(t.app)
+      .get(`/api/v1/analyses/meta?dataset=${f.slug}&version=1.0.0&nutrient=P&format=csv`)
+      .buffer(true)
+      .parse(binary)
+      .expect(200);
     expectCsvFraming(res.body as Buffer);
     const rows = rowsOf((res.body as Buffer).toString("utf8"));
     expect(rows[0]!.slice(0, 3)).toEqual(["id", "site_year", "site"]);
@@ -128,21 +136,30 @@ describe("one CSV writer for every output", () => {
       yield [{ id: 2, code: "B" }];
     }
     const app = express().get("/csv", async (_req, res) => {
-      await streamCsv(res, [{ name: "id", value: (r: { id: number }) => r.id }, { name: "code", value: (r: { code: string }) => r.code }], batches());
+      await streamCsv(
+        res,
+        [
+          { name: "id", value: (r: { id: number }) => r.id },
+          { name: "code", value: (r: { code: string }) => r.code },
+        ],
+        batches(),
+      );
     });
     const server = http.createServer(app).listen(0, "127.0.0.1");
     await new Promise((resolve) => server.once("listening", resolve));
     try {
       const { port } = server.address() as AddressInfo;
       const text = await new Promise<string>((resolve, reject) => {
-        http.get({ port, host: "127.0.0.1", path: "/csv" }, (res) => {
-          let body = "";
-          res.on("data", (c: Buffer) => {
-            body += c.toString("utf8");
-            if (body.includes("'=A1")) release();
-          });
-          res.on("end", () => resolve(body));
-        }).on("error", reject);
+        http
+          .get({ port, host: "127.0.0.1", path: "/csv" }, (res) => {
+            let body = "";
+            res.on("data", (c: Buffer) => {
+              body += c.toString("utf8");
+              if (body.includes("'=A1")) release();
+            });
+            res.on("end", () => resolve(body));
+          })
+          .on("error", reject);
       });
       expect(text).toBe("id,code\r\n1,'=A1\r\n2,B\r\n");
     } finally {

@@ -27,7 +27,9 @@ describe("the Tallgrass Basin demo", () => {
       expect(Number(d.published)).toBeGreaterThanOrEqual(2);
       expect(Number(d.drafts)).toBe(1);
     }
-    const semvers = await rows<{ semver: string; state: string }>(sql`select v.semver, v.state from versions v join datasets d on d.id = v.dataset_id where d.slug = 'soybean-starter-p-placement' order by v.created_at`);
+    const semvers = await rows<{ semver: string; state: string }>(
+      sql`select v.semver, v.state from versions v join datasets d on d.id = v.dataset_id where d.slug = 'soybean-starter-p-placement' order by v.created_at`,
+    );
     expect(semvers).toEqual([
       { semver: "1.0.0", state: "published" },
       { semver: "1.1.0", state: "published" },
@@ -60,12 +62,16 @@ describe("the Tallgrass Basin demo", () => {
       expect(Number(r.cv)).toBeGreaterThan(4);
       expect(Number(r.cv)).toBeLessThan(11);
     }
-    const [unbalanced] = await rows<{ n: number | string }>(sql`select count(distinct site_year_code) as n from responses r join versions v on v.id = r.version_id where v.state = 'published' and not r.balanced`);
+    const [unbalanced] = await rows<{ n: number | string }>(
+      sql`select count(distinct site_year_code) as n from responses r join versions v on v.id = r.version_id where v.state = 'published' and not r.balanced`,
+    );
     expect(Number(unbalanced!.n)).toBeGreaterThanOrEqual(2);
   });
 
   it("the correction release diffs as a PATCH, the season release as a MINOR", async () => {
-    const v = await rows<{ id: string; semver: string }>(sql`select v.id, v.semver from versions v join datasets d on d.id = v.dataset_id where d.slug = 'soybean-starter-p-placement'`);
+    const v = await rows<{ id: string; semver: string }>(
+      sql`select v.id, v.semver from versions v join datasets d on d.id = v.dataset_id where d.slug = 'soybean-starter-p-placement'`,
+    );
     const id = (s: string) => v.find((x) => x.semver === s)!.id;
     const agent = await signedInAgent(t.app, "reviewer@plotbank.test", "tallgrass-demo-2026");
     const patch = await agent.get(`/api/v1/curation/diff?from=${id("1.1.0")}&to=${id("1.1.1")}`).expect(200);
@@ -89,8 +95,12 @@ describe("the Tallgrass Basin demo", () => {
     const supplied = await read("crop=soybean&nutrientSupplied=N&placement=in-furrow");
     expect(supplied.length).toBeGreaterThan(0);
     expect(new Set(supplied.map((r) => r.treatmentCode))).toEqual(new Set(["IF-APP", "IF-MAP"]));
-    for (const r of supplied) expect(r).toMatchObject({ dataset: "soybean-starter-p-placement", testedNutrients: ["P"], testedNutrientsStated: true });
-    expect((await request(t.app).get("/api/v1/analyses/meta?crop=soybean&nutrientSupplied=N&placement=in-furrow").expect(200)).body.provenance.nutrientRule.mode).toBe("supplied");
+    for (const r of supplied)
+      expect(r).toMatchObject({ dataset: "soybean-starter-p-placement", testedNutrients: ["P"], testedNutrientsStated: true });
+    expect(
+      (await request(t.app).get("/api/v1/analyses/meta?crop=soybean&nutrientSupplied=N&placement=in-furrow").expect(200)).body.provenance
+        .nutrientRule.mode,
+    ).toBe("supplied");
     // Soybean N without a placement: urea (derived from its product) and the two sulfur sources the curator states as N;S.
     const n = await read("crop=soybean&nutrient=N");
     expect(new Set(n.map((r) => r.treatmentCode))).toEqual(new Set(["UREA", "AMS", "ATS"]));
@@ -99,13 +109,31 @@ describe("the Tallgrass Basin demo", () => {
   });
 
   it("the N and S dataset reports sulfate-S under its lab's own low/medium/high scheme, filtered on the ordinal scale", async () => {
-    type Row = { siteYearCode: string; treatmentCode: string; soilTestAnalyte: string | null; soilTestClass: string | null; soilSClass: string | null; soilSReportedClass: string | null; soilSScheme: string | null };
-    const read = async (q: string) => (await request(t.app).get(`/api/v1/responses?dataset=soybean-n-s-planting-date&${q}&limit=1000`).expect(200)).body.items as Row[];
+    type Row = {
+      siteYearCode: string;
+      treatmentCode: string;
+      soilTestAnalyte: string | null;
+      soilTestClass: string | null;
+      soilSClass: string | null;
+      soilSReportedClass: string | null;
+      soilSScheme: string | null;
+    };
+    const read = async (q: string) =>
+      (await request(t.app).get(`/api/v1/responses?dataset=soybean-n-s-planting-date&${q}&limit=1000`).expect(200)).body.items as Row[];
     const optimum = await read("nutrient=S&soilTestClass=optimum");
     expect(optimum.length).toBeGreaterThan(0);
-    for (const r of optimum) expect(r).toMatchObject({ soilTestAnalyte: "S", soilTestClass: "optimum", soilSClass: "optimum", soilSReportedClass: "medium", soilSScheme: "tallgrass-lab-sulfate-s" });
+    for (const r of optimum)
+      expect(r).toMatchObject({
+        soilTestAnalyte: "S",
+        soilTestClass: "optimum",
+        soilSClass: "optimum",
+        soilSReportedClass: "medium",
+        soilSScheme: "tallgrass-lab-sulfate-s",
+      });
     const all = await read("nutrient=S");
-    expect(new Set(all.map((r) => r.soilSReportedClass))).toEqual(new Set(["low", "medium", "high"].filter((l) => all.some((r) => r.soilSReportedClass === l))));
+    expect(new Set(all.map((r) => r.soilSReportedClass))).toEqual(
+      new Set(["low", "medium", "high"].filter((l) => all.some((r) => r.soilSReportedClass === l))),
+    );
     expect(all.filter((r) => r.soilSClass === "optimum").length).toBe(optimum.length);
   });
 

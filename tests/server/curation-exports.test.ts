@@ -20,10 +20,22 @@ afterAll(() => t.close());
 
 describe("exports of a published version", () => {
   it("a Frictionless Data Package zip: datapackage.json with hashes and sizes, and one CSV per resource", async () => {
-    const res = await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.zip`).buffer(true).parse(binary).expect(200);
+    const res = await supertest(t.app)
+      .get(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.zip`)
+      .buffer(true)
+      .parse(binary)
+      .expect(200);
     expect(res.headers["content-type"]).toBe("application/zip");
     const files = unzip(res.body as Buffer);
-    expect([...files.keys()].sort()).toEqual(["data/plots.csv", "data/site_years.csv", "data/sites.csv", "data/soil_tests.csv", "data/summaries.csv", "data/treatments.csv", "datapackage.json"]);
+    expect([...files.keys()].sort()).toEqual([
+      "data/plots.csv",
+      "data/site_years.csv",
+      "data/sites.csv",
+      "data/soil_tests.csv",
+      "data/summaries.csv",
+      "data/treatments.csv",
+      "datapackage.json",
+    ]);
     const dp = JSON.parse(files.get("datapackage.json")!.toString("utf8"));
     expect(dp).toMatchObject({ profile: "tabular-data-package", name: f.slug, version: "1.0.0", licenses: [{ name: "CC-BY-4.0" }] });
     expect(dp.resources).toHaveLength(6);
@@ -40,20 +52,27 @@ describe("exports of a published version", () => {
     expect(treatments).toContain("CHK,Untreated check,true,,1,,,,,,,,0,0,0,0");
     // The version checksum is SHA-256 over "<resource>\n" + CSV, in the fixed resource order.
     const h = createHash("sha256");
-    for (const name of ["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"]) h.update(`${name}\n`).update(files.get(`data/${name}.csv`)!);
+    for (const name of ["sites", "site_years", "soil_tests", "treatments", "plots", "summaries"])
+      h.update(`${name}\n`).update(files.get(`data/${name}.csv`)!);
     expect(checksum).toBe(`sha256:${h.digest("hex")}`);
     expect(dp.plotbank.checksum).toBe(checksum);
   });
 
   it("the zip is a valid Data Package: v2 and v1 profiles, hashes, sizes, every table and every foreign key", async () => {
-    const res = await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.zip`).buffer(true).parse(binary).expect(200);
+    const res = await supertest(t.app)
+      .get(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.zip`)
+      .buffer(true)
+      .parse(binary)
+      .expect(200);
     const files = unzip(res.body as Buffer);
     const dp = JSON.parse(files.get("datapackage.json")!.toString("utf8"));
     expect(await checkDataPackage(dp, async (p) => files.get(p) ?? Buffer.alloc(0))).toEqual([]);
     expect(dp.$schema).toBe("https://datapackage.org/profiles/2.0/datapackage.json");
     // Every foreign key names a resource of the package, by the name the package gives it.
     const names = dp.resources.map((r: { name: string }) => r.name);
-    const referenced = dp.resources.flatMap((r: { schema: { foreignKeys?: { reference: { resource: string } }[] } }) => (r.schema.foreignKeys ?? []).map((k) => k.reference.resource));
+    const referenced = dp.resources.flatMap((r: { schema: { foreignKeys?: { reference: { resource: string } }[] } }) =>
+      (r.schema.foreignKeys ?? []).map((k) => k.reference.resource),
+    );
     expect(referenced).toContain("site_years");
     for (const name of referenced) expect(names).toContain(name);
   });
@@ -88,7 +107,10 @@ describe("exports of a published version", () => {
     expect(res.headers.digest).toBe(`sha-256=${sha.toString("base64")}`);
     expect(res.headers.etag).toBe(`"${sha.toString("hex")}"`);
     expect(res.headers.link).toContain(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.json>; rel="describedby"`);
-    await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/resources/plots.csv`).set("If-None-Match", res.headers.etag!).expect(304);
+    await supertest(t.app)
+      .get(`/api/v1/datasets/${f.slug}/versions/1.0.0/resources/plots.csv`)
+      .set("If-None-Match", res.headers.etag!)
+      .expect(304);
     const latest = await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/latest/resources/plots.csv`).expect(200);
     expect(latest.text).toBe(res.text);
     await supertest(t.app).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/resources/nothing.csv`).expect(404);

@@ -7,7 +7,8 @@ import { signedInAgent } from "@/tests/support/sign-in";
 
 export type Agent = ReturnType<typeof request.agent>;
 
-export const sitesCsv = "site,location,soil_series,soil_texture\nTB-01,Wren County,Harlan,silt loam\nTB-02,Osage Bend County,Marrow,clay loam\n";
+export const sitesCsv =
+  "site,location,soil_series,soil_texture\nTB-01,Wren County,Harlan,silt loam\nTB-02,Osage Bend County,Marrow,clay loam\n";
 const siteYearsCsv =
   "site_year,site,crop,year,design,blocks,tillage,previous_crop,planting_date,row_spacing_in\n" +
   "TB-01-2021,TB-01,soybean,2021,RCBD,4,no-till,corn,2021-05-12,30\n" +
@@ -26,13 +27,16 @@ export const treatmentsCsv =
 /** Plots of the two site-years: a response on the low-P site, none on the very-high one; deterministic noise. */
 export function plotsCsv(options: { skip?: string[]; override?: Record<string, string> } = {}): string {
   const lines = ["site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct"];
-  const effect: Record<string, Record<string, number>> = { "TB-01-2021": { CHK: 0, IF: 180, BAND: 300, BC: 220 }, "TB-02-2021": { CHK: 0, IF: 10, BAND: -15, BC: 5 } };
+  const effect: Record<string, Record<string, number>> = {
+    "TB-01-2021": { CHK: 0, IF: 180, BAND: 300, BC: 220 },
+    "TB-02-2021": { CHK: 0, IF: 10, BAND: -15, BC: 5 },
+  };
   const noise = [37, -52, 12, -8, 61, -33, 25, -19, -44, 7, 53, -28, 16, -61, 30, 4];
   for (const sy of ["TB-01-2021", "TB-02-2021"]) {
     let i = 0;
     for (let block = 1; block <= 4; block++) {
       for (const t of ["CHK", "IF", "BAND", "BC"]) {
-        const plot = `${block}0${i % 4 + 1}`;
+        const plot = `${block}0${(i % 4) + 1}`;
         const key = `${sy}/${plot}`;
         i++;
         if (options.skip?.includes(key)) continue;
@@ -53,7 +57,14 @@ export interface Fixture {
   versionId: string;
 }
 
-export function upload(agent: Agent, versionId: string, resource: string, csv: string | Buffer, fields: Record<string, string> = {}, filename = `${resource}.csv`) {
+export function upload(
+  agent: Agent,
+  versionId: string,
+  resource: string,
+  csv: string | Buffer,
+  fields: Record<string, string> = {},
+  filename = `${resource}.csv`,
+) {
   let req = agent.post(`/api/v1/curation/versions/${versionId}/uploads/${resource}`);
   for (const [k, v] of Object.entries(fields)) req = req.field(k, v);
   return req.attach("file", Buffer.isBuffer(csv) ? csv : Buffer.from(csv, "utf8"), filename);
@@ -62,7 +73,11 @@ export function upload(agent: Agent, versionId: string, resource: string, csv: s
 let counter = 0;
 
 /** A curator's dataset with a first draft holding the two-site-year starter trial above. */
-export async function draftWithData(app: Express, ctx: AppContext, opts: { plots?: string | false; treatments?: string } = {}): Promise<Fixture> {
+export async function draftWithData(
+  app: Express,
+  ctx: AppContext,
+  opts: { plots?: string | false; treatments?: string } = {},
+): Promise<Fixture> {
   const curator = await makeUser(ctx, "curator");
   const reviewer = await makeUser(ctx, "reviewer");
   const curatorAgent = await signedInAgent(app, curator.email);
@@ -74,7 +89,12 @@ export async function draftWithData(app: Express, ctx: AppContext, opts: { plots
     .expect(201);
   const v = await curatorAgent.post(`/api/v1/datasets/${slug}/versions`).send({}).expect(201);
   const versionId = v.body.id as string;
-  for (const [resource, csv] of [["sites", sitesCsv], ["site_years", siteYearsCsv], ["soil_tests", soilTestsCsv], ["treatments", opts.treatments ?? treatmentsCsv]] as const) {
+  for (const [resource, csv] of [
+    ["sites", sitesCsv],
+    ["site_years", siteYearsCsv],
+    ["soil_tests", soilTestsCsv],
+    ["treatments", opts.treatments ?? treatmentsCsv],
+  ] as const) {
     const res = await upload(curatorAgent, versionId, resource, csv);
     expect(res.status, JSON.stringify(res.body).slice(0, 2000)).toBe(201);
   }

@@ -21,8 +21,21 @@ describe("draft → review → published → next version", () => {
     expect(v.counts).toMatchObject({ sites: 2, site_years: 2, soil_tests: 2, treatments: 4, plots: 32 });
     expect(v.responses).toBe(6);
     expect(v.uncomputedSiteYears).toEqual([]);
-    const rows = await t.ctx.db.execute(sql`select site_year_code, treatment_code, md_kg_ha, balanced, soil_p_class, placements from responses where version_id = ${f.versionId} order by 1, 2`);
-    const r = (rows as unknown as { rows: { site_year_code: string; treatment_code: string; md_kg_ha: number; balanced: boolean; soil_p_class: string; placements: string[] }[] }).rows;
+    const rows = await t.ctx.db.execute(
+      sql`select site_year_code, treatment_code, md_kg_ha, balanced, soil_p_class, placements from responses where version_id = ${f.versionId} order by 1, 2`,
+    );
+    const r = (
+      rows as unknown as {
+        rows: {
+          site_year_code: string;
+          treatment_code: string;
+          md_kg_ha: number;
+          balanced: boolean;
+          soil_p_class: string;
+          placements: string[];
+        }[];
+      }
+    ).rows;
     const band = r.find((x) => x.site_year_code === "TB-01-2021" && x.treatment_code === "BAND")!;
     // Balanced RCBD: the response is the plain difference of the treatment means.
     expect(band.balanced).toBe(true);
@@ -34,7 +47,10 @@ describe("draft → review → published → next version", () => {
 
   it("needs a changelog to submit; the submitting reviewer cannot approve, another can", async () => {
     await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({}).expect(400);
-    await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release: 2021 season." }).expect(200);
+    await f.curatorAgent
+      .post(`/api/v1/curation/versions/${f.versionId}/submit`)
+      .send({ changelog: "First release: 2021 season." })
+      .expect(200);
     // A curator cannot approve at all.
     await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(403);
     // Uploads into a version in review are refused with 409.
@@ -42,10 +58,16 @@ describe("draft → review → published → next version", () => {
     expect(late.status).toBe(409);
     const queue = await f.reviewerAgent.get("/api/v1/curation/review-queue").expect(200);
     expect(queue.body.items.map((i: { versionId: string }) => i.versionId)).toContain(f.versionId);
-    await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/return`).send({ comment: "Please add the soil series." }).expect(200);
+    await f.reviewerAgent
+      .post(`/api/v1/curation/versions/${f.versionId}/return`)
+      .send({ comment: "Please add the soil series." })
+      .expect(200);
     const back = await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}`).expect(200);
     expect(back.body).toMatchObject({ state: "draft", reviewComment: "Please add the soil series." });
-    await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release: 2021 season." }).expect(200);
+    await f.curatorAgent
+      .post(`/api/v1/curation/versions/${f.versionId}/submit`)
+      .send({ changelog: "First release: 2021 season." })
+      .expect(200);
     const approved = await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
     const v = versionDetail.parse(approved.body);
     expect(v.state).toBe("published");
@@ -63,7 +85,10 @@ describe("draft → review → published → next version", () => {
     expect(res.body.detail).toMatch(/another reviewer/);
     const own = await draftWithData(t.app, t.ctx);
     // The reviewer account of `own` approves nothing it created either: make a draft as admin.
-    const ds = await adminAgent.post("/api/v1/datasets").send({ slug: `admin-own-${Date.now()}`, title: "Admin's own", crops: ["corn"], region: "Tallgrass Basin", description: "x" }).expect(201);
+    const ds = await adminAgent
+      .post("/api/v1/datasets")
+      .send({ slug: `admin-own-${Date.now()}`, title: "Admin's own", crops: ["corn"], region: "Tallgrass Basin", description: "x" })
+      .expect(201);
     const dv = await adminAgent.post(`/api/v1/datasets/${ds.body.slug}/versions`).send({}).expect(201);
     expect(dv.body.canReview).toBe(false);
     expect(own.versionId).toBeTruthy();
@@ -79,7 +104,9 @@ describe("draft → review → published → next version", () => {
     // A second open version is refused.
     await f.curatorAgent.post(`/api/v1/datasets/${f.slug}/versions`).send({}).expect(409);
 
-    const unchanged = versionDiff.parse((await f.curatorAgent.get(`/api/v1/curation/diff?from=${v2.basedOnVersionId}&to=${v2.id}`).expect(200)).body);
+    const unchanged = versionDiff.parse(
+      (await f.curatorAgent.get(`/api/v1/curation/diff?from=${v2.basedOnVersionId}&to=${v2.id}`).expect(200)).body,
+    );
     expect(unchanged.suggestedBump).toBe("patch");
     expect(unchanged.reasons).toEqual(["no changes"]);
 
@@ -108,7 +135,9 @@ describe("draft → review → published → next version", () => {
     expect(d.suggestedBump).toBe("major");
     expect(d.suggestedSemver).toBe("2.0.0");
     // The unbalanced site-year still has responses, flagged.
-    const r = await t.ctx.db.execute(sql`select bool_and(balanced) as b, count(*) as n from responses where version_id = ${v2.id} and site_year_code = 'TB-02-2021'`);
+    const r = await t.ctx.db.execute(
+      sql`select bool_and(balanced) as b, count(*) as n from responses where version_id = ${v2.id} and site_year_code = 'TB-02-2021'`,
+    );
     const row = (r as unknown as { rows: { b: boolean; n: number | string }[] }).rows[0]!;
     expect(row.b).toBe(false);
     expect(Number(row.n)).toBe(3);
@@ -127,7 +156,10 @@ describe("draft → review → published → next version", () => {
     const draft = list.versions.find((v: { state: string }) => v.state === "draft");
     await agent.patch(`/api/v1/datasets/${f.slug}`).send({ title: "Taken over" }).expect(403);
     expect((await upload(agent, draft.id, "sites", "site,location\nTB-09,Wren County\n")).status).toBe(403);
-    await agent.put(`/api/v1/curation/versions/${draft.id}/table-schema`).send(draft.tableSchema ?? {}).expect((r) => expect([400, 403]).toContain(r.status));
+    await agent
+      .put(`/api/v1/curation/versions/${draft.id}/table-schema`)
+      .send(draft.tableSchema ?? {})
+      .expect((r) => expect([400, 403]).toContain(r.status));
     const shared = await f.curatorAgent.post(`/api/v1/curation/datasets/${f.slug}/editors`).send({ email: other.email }).expect(200);
     expect(shared.body.editors).toEqual([{ id: other.id, displayName: other.displayName, email: other.email }]);
     expect(shared.body.canShare).toBe(true);
@@ -142,7 +174,10 @@ describe("draft → review → published → next version", () => {
     // A member's address and an address without an account get the same answer: sharing tells nobody who has an account.
     const refused = await f.curatorAgent.post(`/api/v1/curation/datasets/${f.slug}/editors`).send({ email: member0.email }).expect(404);
     expect(refused.body.errors).toEqual([{ field: "body.email", message: "no curator has this address" }]);
-    const unknown = await f.curatorAgent.post(`/api/v1/curation/datasets/${f.slug}/editors`).send({ email: "nobody@tallgrass.test" }).expect(404);
+    const unknown = await f.curatorAgent
+      .post(`/api/v1/curation/datasets/${f.slug}/editors`)
+      .send({ email: "nobody@tallgrass.test" })
+      .expect(404);
     expect(unknown.body.errors).toEqual(refused.body.errors);
     const after = await f.curatorAgent.delete(`/api/v1/curation/datasets/${f.slug}/editors/${other.id}`).expect(200);
     expect(after.body.editors).toEqual([]);
@@ -159,7 +194,10 @@ describe("draft → review → published → next version", () => {
     const list = (await f.curatorAgent.get(`/api/v1/curation/datasets/${f.slug}`).expect(200)).body;
     const published = list.versions.find((v: { state: string }) => v.state === "published");
     await f.reviewerAgent.post(`/api/v1/curation/versions/${published.id}/withdraw`).send({}).expect(400);
-    await f.reviewerAgent.post(`/api/v1/curation/versions/${published.id}/withdraw`).send({ reason: "Plot yields of TB-01 were mis-keyed." }).expect(200);
+    await f.reviewerAgent
+      .post(`/api/v1/curation/versions/${published.id}/withdraw`)
+      .send({ reason: "Plot yields of TB-01 were mis-keyed." })
+      .expect(200);
     const tomb = await request(t).get(`/api/v1/curation/versions/${published.id}`).expect(200);
     expect(tomb.body).toMatchObject({ state: "withdrawn", withdrawnReason: "Plot yields of TB-01 were mis-keyed.", counts: null });
     const gone = await request(t).get(`/api/v1/datasets/${f.slug}/versions/1.0.0/datapackage.zip`).expect(410);

@@ -49,14 +49,18 @@ describe("the development proxy", () => {
     expect(await res.text()).toContain("from the dev server");
   });
 
-  it("cuts the connection, rather than writing a 502 into a started answer, when the dev server dies mid-way", { timeout: 5_000 }, async () => {
-    const res = await fetch(`${proxyUrl}/bundle.js`);
-    expect(res.status).toBe(200);
-    await expect(res.text()).rejects.toThrow();
-    // The proxy keeps serving, and nothing was thrown outside a request.
-    expect((await fetch(`${proxyUrl}/datasets`)).status).toBe(200);
-    expect(uncaught).toEqual([]);
-  });
+  it(
+    "cuts the connection, rather than writing a 502 into a started answer, when the dev server dies mid-way",
+    { timeout: 5_000 },
+    async () => {
+      const res = await fetch(`${proxyUrl}/bundle.js`);
+      expect(res.status).toBe(200);
+      await expect(res.text()).rejects.toThrow();
+      // The proxy keeps serving, and nothing was thrown outside a request.
+      expect((await fetch(`${proxyUrl}/datasets`)).status).toBe(200);
+      expect(uncaught).toEqual([]);
+    },
+  );
 
   it("answers 502 in words when the dev server is not there", async () => {
     const app = express();

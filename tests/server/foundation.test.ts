@@ -26,7 +26,11 @@ describe("health", () => {
     expect(res.headers["content-type"]).toMatch(/^application\/json/);
     expect(res.headers["cache-control"]).toBe("no-store");
     const body = health.parse(res.body);
-    expect(body).toMatchObject({ status: "degraded", version: down.ctx.config.version, database: { kind: down.database.kind, connected: false } });
+    expect(body).toMatchObject({
+      status: "degraded",
+      version: down.ctx.config.version,
+      database: { kind: down.database.kind, connected: false },
+    });
   });
 });
 
@@ -70,7 +74,7 @@ describe("session", () => {
     await agent.delete("/api/v1/session").expect(204);
     expect((await agent.get("/api/v1/session").expect(200)).body).toEqual({ user: null });
   });
-  it("answers a visitor's \"who am I\" with 200 and no user (a 401 would be logged as an error by every browser)", async () => {
+  it('answers a visitor\'s "who am I" with 200 and no user (a 401 would be logged as an error by every browser)', async () => {
     const res = await request(t.app).get("/api/v1/session").expect(200);
     expect(res.body).toEqual({ user: null });
     expect(res.headers["cache-control"]).toBe("private, no-store");
@@ -93,7 +97,10 @@ describe("OpenAPI", () => {
   });
   it("serves interactive docs at /api/docs/ with the files the page loads", async () => {
     await request(t.app).get("/api/docs").expect(301).expect("Location", "/api/docs/");
-    const res = await request(t.app).get("/api/docs/").expect(200).expect("Content-Type", /^text\/html/);
+    const res = await request(t.app)
+      .get("/api/docs/")
+      .expect(200)
+      .expect("Content-Type", /^text\/html/);
     expect(res.text).toContain("swagger-ui");
     const files = [...res.text.matchAll(/(?:src|href)="\.\/([^"]+)"/g)].map((m) => m[1]);
     expect(files).toEqual(expect.arrayContaining(["swagger-ui.css", "swagger-ui-bundle.js", "swagger-ui-init.js"]));

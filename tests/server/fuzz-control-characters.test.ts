@@ -16,7 +16,15 @@ import { makeUser, testApp, type TestApp } from "@/tests/support/test-app";
 /** NUL, other C0 controls, DEL, a C1 control, a bare CR, CRLF, the Unicode line separator and an escape sequence. */
 const controls = ["\u0000", "a\u0001b", "\u001b[31m", "x\u007f", "\u0085", "line\rbreak", "two\r\nlines", "\u2028", "tab\there"];
 
-type Schema = { $ref?: string; type?: string | string[]; properties?: Record<string, Schema>; items?: Schema; anyOf?: Schema[]; oneOf?: Schema[]; allOf?: Schema[] };
+type Schema = {
+  $ref?: string;
+  type?: string | string[];
+  properties?: Record<string, Schema>;
+  items?: Schema;
+  anyOf?: Schema[];
+  oneOf?: Schema[];
+  allOf?: Schema[];
+};
 interface Operation {
   parameters?: { name: string; in: "path" | "query" | "header"; schema?: Schema }[];
   requestBody?: { content: Record<string, { schema?: Schema }> };
@@ -29,16 +37,33 @@ let doc: { paths: Record<string, Record<string, Operation>>; components?: { sche
 const ids: Record<string, string> = {};
 
 beforeAll(async () => {
-  t = await testApp({ anonRatePerMinute: 1_000_000, tokenRatePerMinute: 1_000_000, authLimits: { windowMs: 60_000, perIp: 1_000_000, perAccount: 1_000_000 } });
+  t = await testApp({
+    anonRatePerMinute: 1_000_000,
+    tokenRatePerMinute: 1_000_000,
+    authLimits: { windowMs: 60_000, perIp: 1_000_000, perAccount: 1_000_000 },
+  });
   f = await draftWithData(t.app, t.ctx);
   await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
   await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
   const draft = await f.curatorAgent.post(`/api/v1/datasets/${f.slug}/versions`).send({}).expect(201);
-  const report = await upload(f.curatorAgent, draft.body.id, "plots", plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,x,CHK,3700,13.1" } }));
+  const report = await upload(
+    f.curatorAgent,
+    draft.body.id,
+    "plots",
+    plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,x,CHK,3700,13.1" } }),
+  );
   const adminUser = await makeUser(t.ctx, "admin");
   admin = await signedInAgent(t.app, adminUser.email);
   const token = await admin.post("/api/v1/tokens").send({ name: "fuzz" }).expect(201);
-  Object.assign(ids, { slug: f.slug, semver: "1.0.0", id: draft.body.id, report: report.body.reportId, resource: "sites", userId: f.curator.id, token: token.body.token.id });
+  Object.assign(ids, {
+    slug: f.slug,
+    semver: "1.0.0",
+    id: draft.body.id,
+    report: report.body.reportId,
+    resource: "sites",
+    userId: f.curator.id,
+    token: token.body.token.id,
+  });
   doc = generateOpenApiDocument(t.ctx.registry, "fuzz") as unknown as typeof doc;
 }, 120_000);
 afterAll(() => t.close());
@@ -69,7 +94,11 @@ function bodyWith(path: string[], value: string): unknown {
 }
 
 const pathFor = (template: string, override?: [string, string]) =>
-  template.replace(/\{(\w+)\}/g, (_, name: string) => encodeURIComponent(override?.[0] === name ? override[1] : name === "id" && template.startsWith("/api/v1/tokens") ? ids.token! : ids[name] ?? "x"));
+  template.replace(/\{(\w+)\}/g, (_, name: string) =>
+    encodeURIComponent(
+      override?.[0] === name ? override[1] : name === "id" && template.startsWith("/api/v1/tokens") ? ids.token! : (ids[name] ?? "x"),
+    ),
+  );
 
 interface Probe {
   method: string;
@@ -96,7 +125,13 @@ function probes(): Probe[] {
         }
         const json = op.requestBody?.content["application/json"]?.schema;
         for (const leaf of stringLeaves(json)) {
-          out.push({ method, url: pathFor(template), body: bodyWith(leaf, c), field: `body.${leaf.filter((k) => k !== "[]").join(".")}`, neverAllowed: hasControlCharacter(c, true) });
+          out.push({
+            method,
+            url: pathFor(template),
+            body: bodyWith(leaf, c),
+            field: `body.${leaf.filter((k) => k !== "[]").join(".")}`,
+            neverAllowed: hasControlCharacter(c, true),
+          });
         }
       }
     }
@@ -119,7 +154,10 @@ describe("control characters in every parameter and field of every route", () =>
     const failures: string[] = [];
     let refusedNamed = 0;
     for (const p of all) {
-      for (const [who, agent] of [["anonymous", request(t.app)], ["admin", admin]] as const) {
+      for (const [who, agent] of [
+        ["anonymous", request(t.app)],
+        ["admin", admin],
+      ] as const) {
         if (who === "anonymous" && p.method !== "get") continue;
         const res = await send(agent, p);
         const what = `${who} ${p.method.toUpperCase()} ${p.url}${p.query ? ` ?${JSON.stringify(p.query)}` : ""}${p.body ? ` ${JSON.stringify(p.body)}` : ""}`;
@@ -128,7 +166,8 @@ describe("control characters in every parameter and field of every route", () =>
         if (res.status === 400 && p.field) {
           const named = ((res.body as { errors?: { field?: string }[] }).errors ?? []).map((e) => e.field ?? "");
           if (named.some((n) => n === p.field || n.startsWith(`${p.field}.`))) refusedNamed++;
-          else if (p.field.startsWith("path") || p.field.startsWith("query")) failures.push(`400 not naming ${p.field}: ${what} → ${JSON.stringify(named)}`);
+          else if (p.field.startsWith("path") || p.field.startsWith("query"))
+            failures.push(`400 not naming ${p.field}: ${what} → ${JSON.stringify(named)}`);
         }
       }
     }

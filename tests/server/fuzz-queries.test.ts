@@ -18,7 +18,19 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 const filterNames = Object.keys(trialFilterShape);
-const goodValues = [...crops, ...nutrients, ...placements, ...soilTestClasses, ...tillages, "2019", "2024", "05-01", "30", "1.0.0", "latest"];
+const goodValues = [
+  ...crops,
+  ...nutrients,
+  ...placements,
+  ...soilTestClasses,
+  ...tillages,
+  "2019",
+  "2024",
+  "05-01",
+  "30",
+  "1.0.0",
+  "latest",
+];
 const oddStrings = fc.oneof(
   fc.constantFrom(...goodValues),
   fc.string({ maxLength: 40 }),
@@ -26,7 +38,10 @@ const oddStrings = fc.oneof(
   fc.constantFrom("", " ", "NaN", "Infinity", "-1", "1e309", "%00", "😀", "'; DROP TABLE plots; --", "a".repeat(5000), "[]", "{}", "true"),
 );
 const paramName = fc.oneof(
-  { weight: 8, arbitrary: fc.constantFrom(...filterNames, "effect", "method", "ci", "groupBy", "price", "cost", "units", "format", "limit", "cursor") },
+  {
+    weight: 8,
+    arbitrary: fc.constantFrom(...filterNames, "effect", "method", "ci", "groupBy", "price", "cost", "units", "format", "limit", "cursor"),
+  },
   { weight: 1, arbitrary: fc.string({ minLength: 1, maxLength: 12 }) },
 );
 const query = fc.array(fc.tuple(paramName, oddStrings), { maxLength: 6 });

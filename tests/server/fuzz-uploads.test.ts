@@ -46,7 +46,7 @@ const mutations = (i: number, j: number, text: string): Mutation[] => [
 ];
 const oddText = fc.oneof(
   fc.string({ maxLength: 20 }),
-  fc.constantFrom("", "NA", "-1", "1e309", "NaN", "=cmd|' /C calc'!A0", "9999999", "13,5", "TB-99-2021", "ZZZ", "\"", "\n", "😀", "0x10"),
+  fc.constantFrom("", "NA", "-1", "1e309", "NaN", "=cmd|' /C calc'!A0", "9999999", "13,5", "TB-99-2021", "ZZZ", '"', "\n", "😀", "0x10"),
 );
 
 describe("fuzzed CSV uploads", () => {

@@ -17,7 +17,10 @@ afterAll(() => t.close());
 
 /** The statement fails with the immutability trigger's own error (drizzle wraps it; the cause is PostgreSQL's). */
 const refused = async (statement: ReturnType<typeof sql>) => {
-  const error = await t.ctx.db.execute(statement).then(() => null, (e: unknown) => e as { cause?: { message?: string; hint?: string } });
+  const error = await t.ctx.db.execute(statement).then(
+    () => null,
+    (e: unknown) => e as { cause?: { message?: string; hint?: string } },
+  );
   expect(error, "the statement should have been refused").not.toBeNull();
   expect(error!.cause?.hint).toBe("plotbank:immutable");
   expect(error!.cause?.message).toMatch(/is published/);
@@ -62,7 +65,12 @@ describe("a published version cannot change", () => {
 
   it("a new draft is a separate copy: editing it leaves the published version as it was", async () => {
     const next = await f.curatorAgent.post(`/api/v1/datasets/${f.slug}/versions`).send({}).expect(201);
-    await upload(f.curatorAgent, next.body.id, "plots", plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,1,CHK,3300,13.1" } })).expect(201);
+    await upload(
+      f.curatorAgent,
+      next.body.id,
+      "plots",
+      plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,1,CHK,3300,13.1" } }),
+    ).expect(201);
     expect(await versionFingerprint(t.ctx, f.versionId)).toBe(before);
   });
 });

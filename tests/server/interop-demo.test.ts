@@ -35,22 +35,35 @@ beforeAll(async () => {
   fake = createFakeDataCite({ user: "PLOTBANK.TEST", password: "fake-secret", prefixes: ["10.80555"] });
   const url = await fake.start();
   // A data user's tool reads hundreds of files here; the anonymous quota is not what is being tested.
-  t = await testApp({ anonRatePerMinute: 1_000_000, datacite: { url, user: "PLOTBANK.TEST", password: "fake-secret", prefix: "10.80555" } });
+  t = await testApp({
+    anonRatePerMinute: 1_000_000,
+    datacite: { url, user: "PLOTBANK.TEST", password: "fake-secret", prefix: "10.80555" },
+  });
   await seedDemo(t.ctx);
   await drainDoiQueue(t.ctx);
   // On a busy machine a registration can time out while the demo loads; later passes send those again.
-  for (let pass = 0; pass < 3; pass++) if ((await retryPendingDois(t.ctx, { now: new Date(Date.now() + (pass + 1) * 3_600_000) })).pending === 0) break;
+  for (let pass = 0; pass < 3; pass++)
+    if ((await retryPendingDois(t.ctx, { now: new Date(Date.now() + (pass + 1) * 3_600_000) })).pending === 0) break;
   const datasets = (await request(t.app).get("/api/v1/datasets").expect(200)).body.items as { slug: string }[];
   published = [];
   about = new Map();
   for (const d of datasets) {
-    const detail = (await request(t.app).get(`/api/v1/datasets/${d.slug}`).expect(200)).body as { funding: string | null; methods: string | null };
+    const detail = (await request(t.app).get(`/api/v1/datasets/${d.slug}`).expect(200)).body as {
+      funding: string | null;
+      methods: string | null;
+    };
     about.set(d.slug, detail);
-    const versions = (await request(t.app).get(`/api/v1/datasets/${d.slug}/versions`).expect(200)).body.items as { semver: string; state: string }[];
+    const versions = (await request(t.app).get(`/api/v1/datasets/${d.slug}/versions`).expect(200)).body.items as {
+      semver: string;
+      state: string;
+    }[];
     for (const v of versions) if (v.state === "published") published.push({ slug: d.slug, semver: v.semver });
   }
   webDir = mkdtempSync(path.join(os.tmpdir(), "plotbank-web-"));
-  writeFileSync(path.join(webDir, "index.html"), '<!DOCTYPE html>\n<html lang="en">\n  <head>\n    <meta charset="utf-8" />\n    <title>Plotbank</title>\n</head>\n  <body><div id="root"></div></body>\n</html>\n');
+  writeFileSync(
+    path.join(webDir, "index.html"),
+    '<!DOCTYPE html>\n<html lang="en">\n  <head>\n    <meta charset="utf-8" />\n    <title>Plotbank</title>\n</head>\n  <body><div id="root"></div></body>\n</html>\n',
+  );
   web = createApp({ database: t.database, config: t.ctx.config, webDistDir: webDir }).app;
 }, 180_000);
 afterAll(async () => {
@@ -78,7 +91,9 @@ describe("the demo's published versions", () => {
       const inZip = JSON.parse(files.get("datapackage.json")!.toString("utf8"));
       expect(await checkDataPackage(inZip, async (p) => files.get(p) ?? Buffer.alloc(0)), `${slug}@${semver} zip`).toEqual([]);
       const standalone = (await request(t.app).get(`${base}/datapackage.json`).expect(200)).body;
-      const problems = await checkDataPackage(standalone, (p) => bytes(new URL(p, `http://plotbank.test${base}/datapackage.json`).pathname));
+      const problems = await checkDataPackage(standalone, (p) =>
+        bytes(new URL(p, `http://plotbank.test${base}/datapackage.json`).pathname),
+      );
       expect(problems, `${slug}@${semver} datapackage.json`).toEqual([]);
       // The /schema answer names the same resources as the package.
       const schema = (await request(t.app).get(`${base}/schema`).expect(200)).body;
@@ -99,15 +114,35 @@ describe("the demo's published versions", () => {
       expect(library.errors, where).toEqual([]);
       const entry = library.entries[0]!;
       expect(entry.type, where).toBe("dataset");
-      expect([entry.fields.title, entry.fields.doi, entry.fields.url, entry.fields.version], where).toEqual([csl!.title, csl!.DOI, csl!.URL, csl!.version]);
+      expect([entry.fields.title, entry.fields.doi, entry.fields.url, entry.fields.version], where).toEqual([
+        csl!.title,
+        csl!.DOI,
+        csl!.URL,
+        csl!.version,
+      ]);
       keys.push(entry.key);
       const [fromBib] = new Cite(bib).data as Record<string, unknown>[];
-      expect(fromBib, where).toMatchObject({ type: "dataset", title: csl!.title, DOI: csl!.DOI, URL: csl!.URL, version: csl!.version, publisher: csl!.publisher, issued: csl!.issued });
+      expect(fromBib, where).toMatchObject({
+        type: "dataset",
+        title: csl!.title,
+        DOI: csl!.DOI,
+        URL: csl!.URL,
+        version: csl!.version,
+        publisher: csl!.publisher,
+        issued: csl!.issued,
+      });
 
       const ris = (await request(t.app).get(`${base}ris`).expect(200)).text;
       for (const line of ris.trimEnd().split("\n")) expect(line, where).toMatch(/^[A-Z][A-Z0-9] {2}-( |$)/);
       const [fromRis] = new Cite(ris).data as Record<string, unknown>[];
-      expect(fromRis, where).toMatchObject({ type: "dataset", title: csl!.title, DOI: csl!.DOI, URL: csl!.URL, version: csl!.version, publisher: csl!.publisher });
+      expect(fromRis, where).toMatchObject({
+        type: "dataset",
+        title: csl!.title,
+        DOI: csl!.DOI,
+        URL: csl!.URL,
+        version: csl!.version,
+        publisher: csl!.publisher,
+      });
     }
     expect(new Set(keys).size).toBe(published.length);
   });
@@ -115,7 +150,9 @@ describe("the demo's published versions", () => {
   it("the DCAT catalogue leads harvesters from dcat:dataset to every published version, each with distributions, format, theme and contact point", async () => {
     const [catalog] = await expand(JSON.parse((await request(t.app).get("/api/v1/catalog").expect(200)).text));
     const versions = nodes(catalog!, `${DCAT}dataset`);
-    expect(versions.map((v) => v["@id"]).sort()).toEqual(published.map((p) => `http://plotbank.test/datasets/${p.slug}?version=${p.semver}`).sort());
+    expect(versions.map((v) => v["@id"]).sort()).toEqual(
+      published.map((p) => `http://plotbank.test/datasets/${p.slug}?version=${p.semver}`).sort(),
+    );
     for (const v of versions) {
       const where = String(v["@id"]);
       expect(v["@type"], where).toEqual([`${DCAT}Dataset`]);
@@ -148,7 +185,10 @@ describe("the demo's published versions", () => {
       expect(whole!["@type"]).toEqual([`${SDO}Dataset`]);
       expect(nodes(whole!, `${SDO}includedInDataCatalog`)[0]!["@type"]).toEqual([`${SDO}DataCatalog`]);
       const { funding, methods } = about.get(slug)!;
-      expect(nodes(whole!, `${SDO}funder`).map((f) => value(f, `${SDO}name`)), slug).toEqual(funding ? [funding] : []);
+      expect(
+        nodes(whole!, `${SDO}funder`).map((f) => value(f, `${SDO}name`)),
+        slug,
+      ).toEqual(funding ? [funding] : []);
       expect(methods, slug).toBeTruthy();
       expect(value(whole!, `${SDO}measurementTechnique`), slug).toBe(methods);
       // The dataset as a whole is identified by its concept DOI, not by one of its versions'.

@@ -17,12 +17,27 @@ function wouldGenerate(migrations: string): { added: string[]; sql: string } {
   const run = spawnSync(
     process.execPath,
     // drizzle-kit reads --out relative to the working folder, so the copy is named by a relative path.
-    [path.join(root, "node_modules/drizzle-kit/bin.cjs"), "generate", "--dialect", "postgresql", "--schema", "./db/schema/index.ts", "--out", path.relative(root, migrations)],
+    [
+      path.join(root, "node_modules/drizzle-kit/bin.cjs"),
+      "generate",
+      "--dialect",
+      "postgresql",
+      "--schema",
+      "./db/schema/index.ts",
+      "--out",
+      path.relative(root, migrations),
+    ],
     { cwd: root, encoding: "utf8", timeout: 60_000 },
   );
   expect(run.status, `drizzle-kit generate failed:\n${run.stdout}\n${run.stderr}`).toBe(0);
-  const added = readdirSync(migrations, { recursive: true }).map(String).filter((f) => !before.has(f)).sort();
-  const sql = added.filter((f) => f.endsWith(".sql")).map((f) => readFileSync(path.join(migrations, f), "utf8")).join("\n");
+  const added = readdirSync(migrations, { recursive: true })
+    .map(String)
+    .filter((f) => !before.has(f))
+    .sort();
+  const sql = added
+    .filter((f) => f.endsWith(".sql"))
+    .map((f) => readFileSync(path.join(migrations, f), "utf8"))
+    .join("\n");
   return { added, sql };
 }
 
@@ -31,7 +46,10 @@ describe("committed migrations", () => {
     const copy = path.join(work, "committed");
     cpSync(path.join(root, "drizzle"), copy, { recursive: true });
     const { added, sql } = wouldGenerate(copy);
-    expect(added, `db/schema has changes without a migration; run \`npm run db:generate\` and commit drizzle/. It would write:\n${sql}`).toEqual([]);
+    expect(
+      added,
+      `db/schema has changes without a migration; run \`npm run db:generate\` and commit drizzle/. It would write:\n${sql}`,
+    ).toEqual([]);
   });
 
   it("the check sees missing migrations: with none at all it would write the whole schema", () => {

@@ -22,7 +22,11 @@ interface Operation {
 }
 interface Document {
   paths: Record<string, Record<string, Operation>>;
-  components: { schemas: Record<string, { properties?: Record<string, { type?: string; $ref?: string }> }>; securitySchemes: Record<string, unknown>; headers?: Record<string, unknown> };
+  components: {
+    schemas: Record<string, { properties?: Record<string, { type?: string; $ref?: string }> }>;
+    securitySchemes: Record<string, unknown>;
+    headers?: Record<string, unknown>;
+  };
 }
 
 let t: TestApp;
@@ -34,7 +38,9 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 const operations = () =>
-  Object.entries(doc.paths).flatMap(([path, ops]) => Object.entries(ops).map(([method, op]) => ({ key: `${method.toUpperCase()} ${path}`, op })));
+  Object.entries(doc.paths).flatMap(([path, ops]) =>
+    Object.entries(ops).map(([method, op]) => ({ key: `${method.toUpperCase()} ${path}`, op })),
+  );
 const refName = (ref: string | undefined) => ref?.replace("#/components/schemas/", "");
 
 /** Every zod schema reachable from a root, through objects, arrays, unions, wrappers and pipes. */
@@ -57,7 +63,9 @@ describe("the OpenAPI document", () => {
     expect(modules.length).toBeGreaterThan(5);
     const roots = modules.flatMap((m) => Object.values(m).filter((v): v is z.ZodType => v instanceof z.ZodType));
     // Schemas written beside a route (a path's params, a small answer) count too: the registry holds them.
-    const routeSchemas = JSON.stringify(t.ctx.registry.definitions, (_k, v: unknown) => (v instanceof z.ZodType ? (roots.push(v), undefined) : v));
+    const routeSchemas = JSON.stringify(t.ctx.registry.definitions, (_k, v: unknown) =>
+      v instanceof z.ZodType ? (roots.push(v), undefined) : v,
+    );
     expect(routeSchemas.length).toBeGreaterThan(0);
     expect(roots.length).toBeGreaterThan(100);
     const byId = new Map<string, Set<z.ZodType>>();
@@ -69,23 +77,36 @@ describe("the OpenAPI document", () => {
       }
     }
     expect(byId.size).toBeGreaterThan(50);
-    expect([...byId].filter(([, schemas]) => schemas.size > 1).map(([id]) => id), "ids named by more than one schema").toEqual([]);
+    expect(
+      [...byId].filter(([, schemas]) => schemas.size > 1).map(([id]) => id),
+      "ids named by more than one schema",
+    ).toEqual([]);
   });
 
   it("describes a curation version with the curation shape, and a public version with the public one", () => {
     const curation = refName(doc.paths["/api/v1/curation/versions/{id}"]!.get!.responses["200"]!.content!["application/json"]!.schema.$ref);
-    const published = refName(doc.paths["/api/v1/datasets/{slug}/versions/{semver}"]!.get!.responses["200"]!.content!["application/json"]!.schema.$ref);
+    const published = refName(
+      doc.paths["/api/v1/datasets/{slug}/versions/{semver}"]!.get!.responses["200"]!.content!["application/json"]!.schema.$ref,
+    );
     expect(curation).not.toBe(published);
-    expect(Object.keys(doc.components.schemas[curation!]!.properties!)).toEqual(expect.arrayContaining(["canEdit", "canReview", "uploads", "reports"]));
+    expect(Object.keys(doc.components.schemas[curation!]!.properties!)).toEqual(
+      expect.arrayContaining(["canEdit", "canReview", "uploads", "reports"]),
+    );
     expect(Object.keys(doc.components.schemas[published!]!.properties!)).not.toContain("canEdit");
   });
 
   it("names every operation with an operationId of its own", () => {
     const ops = operations();
     expect(ops.length).toBeGreaterThanOrEqual(64);
-    expect(ops.filter(({ op }) => !op.operationId).map(({ key }) => key), "operations without an operationId").toEqual([]);
+    expect(
+      ops.filter(({ op }) => !op.operationId).map(({ key }) => key),
+      "operations without an operationId",
+    ).toEqual([]);
     const ids = ops.map(({ op }) => op.operationId);
-    expect(ids.filter((id, i) => ids.indexOf(id) !== i), "operationIds used twice").toEqual([]);
+    expect(
+      ids.filter((id, i) => ids.indexOf(id) !== i),
+      "operationIds used twice",
+    ).toEqual([]);
   });
 
   it("declares security on every operation, with registered schemes; anonymous access is an explicit empty requirement", () => {
@@ -93,10 +114,14 @@ describe("the OpenAPI document", () => {
     const failures: string[] = [];
     for (const { key, op } of operations()) {
       if (!op.security?.length) failures.push(`${key}: no security`);
-      for (const requirement of op.security ?? []) for (const name of Object.keys(requirement)) if (!schemes.has(name)) failures.push(`${key}: unknown scheme ${name}`);
+      for (const requirement of op.security ?? [])
+        for (const name of Object.keys(requirement)) if (!schemes.has(name)) failures.push(`${key}: unknown scheme ${name}`);
     }
     expect(failures).toEqual([]);
-    const anonymous = (key: string) => operations().find((o) => o.key === key)!.op.security!.some((r) => Object.keys(r).length === 0);
+    const anonymous = (key: string) =>
+      operations()
+        .find((o) => o.key === key)!
+        .op.security!.some((r) => Object.keys(r).length === 0);
     expect(anonymous("GET /api/v1/datasets")).toBe(true);
     expect(anonymous("GET /api/v1/analyses/meta")).toBe(true);
     expect(anonymous("POST /api/v1/session")).toBe(true);
@@ -108,12 +133,21 @@ describe("the OpenAPI document", () => {
   });
 
   it("agrees with the server about who may call: an operation without anonymous access refuses an anonymous caller", async () => {
-    const sample = (name: string) => (name === "id" || name === "userId" ? "00000000-0000-4000-8000-000000000000" : name === "semver" ? "1.0.0" : name === "resource" ? "sites" : "x");
+    const sample = (name: string) =>
+      name === "id" || name === "userId"
+        ? "00000000-0000-4000-8000-000000000000"
+        : name === "semver"
+          ? "1.0.0"
+          : name === "resource"
+            ? "sites"
+            : "x";
     const failures: string[] = [];
     for (const { key, op } of operations()) {
       if (op.security!.some((r) => Object.keys(r).length === 0)) continue;
       const [method, path] = key.split(" ") as [string, string];
-      const res = await request(t.app)[method.toLowerCase() as "get"](path.replace(/\{(\w+)\}/g, (_m, n: string) => sample(n))).send({});
+      const verb = method.toLowerCase() as "get";
+      const agent = request(t.app);
+      const res = await agent[verb](path.replace(/\{(\w+)\}/g, (_m, n: string) => sample(n))).send({});
       if (res.status !== 401) failures.push(`${key}: anonymous got ${res.status}`);
     }
     expect(failures).toEqual([]);
@@ -127,7 +161,8 @@ describe("the OpenAPI document", () => {
         const expected = p.name === "placement" ? placements : p.name === "soilTestClass" ? soilTestClasses : null;
         if (!expected || p.in !== "query") continue;
         found.push(`${key} ${p.name}`);
-        if (JSON.stringify(p.schema?.items?.enum) !== JSON.stringify(expected)) failures.push(`${key} ${p.name}: ${JSON.stringify(p.schema)}`);
+        if (JSON.stringify(p.schema?.items?.enum) !== JSON.stringify(expected))
+          failures.push(`${key} ${p.name}: ${JSON.stringify(p.schema)}`);
       }
     }
     expect(found).toContain("GET /api/v1/analyses/meta placement");
@@ -144,7 +179,8 @@ describe("the OpenAPI document", () => {
       if (!op.responses["429"]) failures.push(`${key}: no 429`);
       for (const [status, r] of Object.entries(op.responses)) {
         const names = Object.keys(r.headers ?? {});
-        for (const h of ["RateLimit", "RateLimit-Policy", ...(status === "429" ? ["Retry-After"] : [])]) if (!names.includes(h)) failures.push(`${key} ${status}: no ${h}`);
+        for (const h of ["RateLimit", "RateLimit-Policy", ...(status === "429" ? ["Retry-After"] : [])])
+          if (!names.includes(h)) failures.push(`${key} ${status}: no ${h}`);
       }
     }
     expect(failures).toEqual([]);
@@ -164,7 +200,12 @@ describe("the OpenAPI document", () => {
     expect(schema.properties!.errorCount).toMatchObject({ type: "integer" });
 
     const fixture = await draftWithData(t.app, t.ctx, { plots: false });
-    const res = await upload(fixture.curatorAgent, fixture.versionId, "plots", plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,1,CHK,lots,13.1" } }));
+    const res = await upload(
+      fixture.curatorAgent,
+      fixture.versionId,
+      "plots",
+      plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,1,CHK,lots,13.1" } }),
+    );
     expect(res.status).toBe(422);
     expect(res.headers["content-type"]).toMatch(/^application\/problem\+json/);
     const body = uploadRejection.parse(res.body);

@@ -47,14 +47,26 @@ describe("the OpenAPI document", () => {
     const checker = answerChecker(doc as never);
     const body = (value: unknown) => Buffer.from(JSON.stringify(value));
     // A JSON answer of the wrong shape is caught, naming the operation.
-    expect(checker.check("GET", "/api/v1/datasets", 200, "application/json", body({ items: 5 }))).toMatch(/GET \/api\/v1\/datasets → 200: body does not match \/api\/v1\/datasets 200/);
+    expect(checker.check("GET", "/api/v1/datasets", 200, "application/json", body({ items: 5 }))).toMatch(
+      /GET \/api\/v1\/datasets → 200: body does not match \/api\/v1\/datasets 200/,
+    );
     // A status the operation does not declare.
     expect(checker.check("GET", "/api/v1/catalog", 418, "application/json", body({}))).toMatch(/status 418 is not declared/);
     // A content type it does not declare.
     expect(checker.check("GET", "/api/v1/catalog", 200, "text/html", Buffer.from("<p>"))).toMatch(/answered text\/html/);
     // Templates: a concrete path finds its operation, and a problem answer is checked against the problem schema.
-    expect(checker.check("GET", "/api/v1/datasets/tb-x/versions/1.0.0/schema", 404, "application/problem+json", body({ type: "about:blank", title: "Not found", status: 404 }))).toBeNull();
-    expect(checker.check("GET", "/api/v1/datasets/tb-x/versions/1.0.0/schema", 404, "application/problem+json", body({ status: "404" }))).toMatch(/body does not match/);
+    expect(
+      checker.check(
+        "GET",
+        "/api/v1/datasets/tb-x/versions/1.0.0/schema",
+        404,
+        "application/problem+json",
+        body({ type: "about:blank", title: "Not found", status: 404 }),
+      ),
+    ).toBeNull();
+    expect(
+      checker.check("GET", "/api/v1/datasets/tb-x/versions/1.0.0/schema", 404, "application/problem+json", body({ status: "404" })),
+    ).toMatch(/body does not match/);
     expect(checker.operations.length).toBeGreaterThan(60);
   });
 });

@@ -39,13 +39,24 @@ describe("partial dataset edits", () => {
     await agent
       .post("/api/v1/datasets")
       .send({
-        slug, title: "Keep metadata", crops: ["corn"], region: "Tallgrass Basin", description: "Test.", licence: "CC0-1.0",
-        keywords: ["starter", "potassium"], contributors: [{ name: "Ada Fieldhand", role: "creator" }],
+        slug,
+        title: "Keep metadata",
+        crops: ["corn"],
+        region: "Tallgrass Basin",
+        description: "Test.",
+        licence: "CC0-1.0",
+        keywords: ["starter", "potassium"],
+        contributors: [{ name: "Ada Fieldhand", role: "creator" }],
       })
       .expect(201);
     await agent.patch(`/api/v1/datasets/${slug}`).send({}).expect(200);
     const res = await agent.patch(`/api/v1/datasets/${slug}`).send({ title: "Keep metadata, renamed" }).expect(200);
-    expect(res.body).toMatchObject({ title: "Keep metadata, renamed", licence: "CC0-1.0", keywords: ["starter", "potassium"], contributors: [{ name: "Ada Fieldhand", role: "creator" }] });
+    expect(res.body).toMatchObject({
+      title: "Keep metadata, renamed",
+      licence: "CC0-1.0",
+      keywords: ["starter", "potassium"],
+      contributors: [{ name: "Ada Fieldhand", role: "creator" }],
+    });
     const [row] = await t.ctx.db.select().from(datasets).where(eq(datasets.slug, slug));
     expect(row).toMatchObject({ licence: "CC0-1.0", keywords: ["starter", "potassium"] });
   });
@@ -69,7 +80,10 @@ describe("partial dataset edits", () => {
     const curator = await makeUser(t.ctx, "curator");
     const agent = await signedInAgent(t.app, curator.email);
     const slug = `typed-body-${Date.now().toString(36)}`;
-    await agent.post("/api/v1/datasets").send({ slug, title: "Typed body", crops: ["corn"], region: "Tallgrass Basin", description: "Test." }).expect(201);
+    await agent
+      .post("/api/v1/datasets")
+      .send({ slug, title: "Typed body", crops: ["corn"], region: "Tallgrass Basin", description: "Test." })
+      .expect(201);
     const secret = await writeToken(agent);
     const res = await request(t.app)
       .patch(`/api/v1/datasets/${slug}`)
@@ -91,7 +105,9 @@ describe("control characters", () => {
     expect(path.body.errors[0].field).toBe("path.slug");
     const curator = await makeUser(t.ctx, "curator");
     const agent = await signedInAgent(t.app, curator.email);
-    const body = await agent.post("/api/v1/datasets").send({ slug: "nul-title", title: "Bad\u0000title", crops: ["corn"], region: "Tallgrass Basin", description: "Test." });
+    const body = await agent
+      .post("/api/v1/datasets")
+      .send({ slug: "nul-title", title: "Bad\u0000title", crops: ["corn"], region: "Tallgrass Basin", description: "Test." });
     expect(body.status).toBe(400);
     expect(body.body.errors.map((e: { field: string }) => e.field)).toContain("body.title");
   });
@@ -99,10 +115,22 @@ describe("control characters", () => {
   it("a one-line field refuses a line break, while a paragraph field keeps tabs and line breaks", async () => {
     const curator = await makeUser(t.ctx, "curator");
     const agent = await signedInAgent(t.app, curator.email);
-    const forged = await agent.post("/api/v1/datasets").send({ slug: "forged-ris", title: "Trial\r\nER  -\r\nTY  - DATA", crops: ["corn"], region: "Tallgrass Basin", description: "Test." });
+    const forged = await agent.post("/api/v1/datasets").send({
+      slug: "forged-ris",
+      title: "Trial\r\nER  -\r\nTY  - DATA",
+      crops: ["corn"],
+      region: "Tallgrass Basin",
+      description: "Test.",
+    });
     expect(forged.status).toBe(400);
     expect(forged.body.errors.map((e: { field: string }) => e.field)).toContain("body.title");
-    const ok = await agent.post("/api/v1/datasets").send({ slug: `paragraphs-${Date.now().toString(36)}`, title: "Paragraphs", crops: ["corn"], region: "Tallgrass Basin", description: "One.\n\n\tTwo." });
+    const ok = await agent.post("/api/v1/datasets").send({
+      slug: `paragraphs-${Date.now().toString(36)}`,
+      title: "Paragraphs",
+      crops: ["corn"],
+      region: "Tallgrass Basin",
+      description: "One.\n\n\tTwo.",
+    });
     expect(ok.status).toBe(201);
   });
 });
@@ -119,7 +147,13 @@ describe("cut-off uploads", () => {
       const head = `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="sites.csv"\r\nContent-Type: text/csv\r\n\r\n${sitesCsv}`;
       const answer = await new Promise<{ status: number; body: string }>((resolve, reject) => {
         const req = http.request(
-          { port, host: "127.0.0.1", method: "POST", path: `/api/v1/curation/versions/${f.versionId}/uploads/sites`, headers: { Authorization: `Bearer ${secret}`, "Content-Type": `multipart/form-data; boundary=${boundary}` } },
+          {
+            port,
+            host: "127.0.0.1",
+            method: "POST",
+            path: `/api/v1/curation/versions/${f.versionId}/uploads/sites`,
+            headers: { Authorization: `Bearer ${secret}`, "Content-Type": `multipart/form-data; boundary=${boundary}` },
+          },
           (res) => {
             let body = "";
             res.on("data", (c) => (body += c));
@@ -141,7 +175,10 @@ describe("cut-off uploads", () => {
 
   it("a multipart upload without a boundary is a 400 problem, not a 500", async () => {
     const f = await draftWithData(t.app, t.ctx, { plots: false });
-    const res = await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/uploads/sites`).set("Content-Type", "multipart/form-data").send("site,location\n");
+    const res = await f.curatorAgent
+      .post(`/api/v1/curation/versions/${f.versionId}/uploads/sites`)
+      .set("Content-Type", "multipart/form-data")
+      .send("site,location\n");
     expect(res.status).toBe(400);
     expect(res.type).toBe("application/problem+json");
   });
@@ -149,7 +186,10 @@ describe("cut-off uploads", () => {
 
 describe("tokens end with the password", () => {
   async function liveTokens(userId: string) {
-    return t.ctx.db.select().from(apiTokens).where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)));
+    return t.ctx.db
+      .select()
+      .from(apiTokens)
+      .where(and(eq(apiTokens.userId, userId), isNull(apiTokens.revokedAt)));
   }
 
   it("changing the password revokes every API token (401 at once) and e-mails the account; revokeApiTokens: false keeps them", async () => {
@@ -159,12 +199,18 @@ describe("tokens end with the password", () => {
     await request(t.app).get("/api/v1/account").set("Authorization", `Bearer ${body.secret}`).expect(200);
     await agent.patch("/api/v1/account").send({ currentPassword: testPassword, newPassword: "furrow-openers-2027!" }).expect(200);
     await request(t.app).get("/api/v1/account").set("Authorization", `Bearer ${body.secret}`).expect(401);
-    const mail = await t.ctx.db.select().from(outbox).where(and(eq(outbox.to, member.email), eq(outbox.kind, "password-changed")));
+    const mail = await t.ctx.db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.to, member.email), eq(outbox.kind, "password-changed")));
     expect(mail).toHaveLength(1);
     expect(mail[0]!.text).toMatch(/1 API token was revoked/);
 
     await agent.post("/api/v1/tokens").send({ name: "kept" }).expect(201);
-    await agent.patch("/api/v1/account").send({ currentPassword: "furrow-openers-2027!", newPassword: "seed-firmers-2028!", revokeApiTokens: false }).expect(200);
+    await agent
+      .patch("/api/v1/account")
+      .send({ currentPassword: "furrow-openers-2027!", newPassword: "seed-firmers-2028!", revokeApiTokens: false })
+      .expect(200);
     expect(await liveTokens(member.id)).toHaveLength(1);
   });
 
@@ -176,7 +222,10 @@ describe("tokens end with the password", () => {
     await request(t.app).post("/api/v1/password-reset/confirm").send({ token: secret, password: "closing-wheels-2027!" }).expect(204);
     await request(t.app).get("/api/v1/account").set("Authorization", `Bearer ${body.secret}`).expect(401);
     expect(await liveTokens(member.id)).toHaveLength(0);
-    const mail = await t.ctx.db.select().from(outbox).where(and(eq(outbox.to, member.email), eq(outbox.kind, "password-changed")));
+    const mail = await t.ctx.db
+      .select()
+      .from(outbox)
+      .where(and(eq(outbox.to, member.email), eq(outbox.kind, "password-changed")));
     expect(mail[0]!.text).toMatch(/reset/);
   });
 });
@@ -185,7 +234,9 @@ describe("accounts", () => {
   it("four sign-ups of one new address at the same moment all get the normal answer, and one account exists", async () => {
     const email = `race-${Date.now().toString(36)}@plotbank.test`;
     const answers = await Promise.all(
-      [1, 2, 3, 4].map(() => request(t.app).post("/api/v1/sign-up").send({ email, displayName: "Racer", password: "strip-till-bars-2026!" })),
+      [1, 2, 3, 4].map(() =>
+        request(t.app).post("/api/v1/sign-up").send({ email, displayName: "Racer", password: "strip-till-bars-2026!" }),
+      ),
     );
     expect(answers.map((a) => a.status)).toEqual([202, 202, 202, 202]);
     expect(await t.ctx.db.select().from(users).where(eq(users.email, email))).toHaveLength(1);
@@ -216,7 +267,10 @@ describe("accounts", () => {
       const member = await makeUser(fresh.ctx, "member");
       const agent = await signedInAgent(fresh.app, member.email);
       const statuses: number[] = [];
-      for (let i = 0; i < 5; i++) statuses.push((await agent.patch("/api/v1/account").send({ currentPassword: `wrong-guess-${i}`, newPassword: "closing-wheels-2027!" })).status);
+      for (let i = 0; i < 5; i++)
+        statuses.push(
+          (await agent.patch("/api/v1/account").send({ currentPassword: `wrong-guess-${i}`, newPassword: "closing-wheels-2027!" })).status,
+        );
       expect(statuses.slice(0, 3)).toEqual([400, 400, 400]);
       expect(statuses.slice(3)).toEqual([429, 429]);
       // A name change carries no password and is not slowed.
@@ -229,7 +283,11 @@ describe("accounts", () => {
   it("X-Forwarded-For is ignored unless PLOTBANK_TRUST_PROXY names the proxy, so it cannot dodge the per-IP limits", async () => {
     const fresh = await testApp({ authLimits: { windowMs: 60_000, perIp: 2, perAccount: 100 } });
     try {
-      const from = (ip: string) => request(fresh.app).post("/api/v1/password-reset").set("X-Forwarded-For", ip).send({ email: `x-${ip}@plotbank.test` });
+      const from = (ip: string) =>
+        request(fresh.app)
+          .post("/api/v1/password-reset")
+          .set("X-Forwarded-For", ip)
+          .send({ email: `x-${ip}@plotbank.test` });
       expect((await from("203.0.113.1")).status).toBe(202);
       expect((await from("203.0.113.2")).status).toBe(202);
       expect((await from("203.0.113.3")).status).toBe(429);
@@ -281,7 +339,10 @@ describe("what others may not learn", () => {
     const curator = await makeUser(t.ctx, "curator");
     const agent = await signedInAgent(t.app, curator.email);
     const slug = `share-probe-${Date.now().toString(36)}`;
-    await agent.post("/api/v1/datasets").send({ slug, title: "Share probe", crops: ["corn"], region: "Tallgrass Basin", description: "Test." }).expect(201);
+    await agent
+      .post("/api/v1/datasets")
+      .send({ slug, title: "Share probe", crops: ["corn"], region: "Tallgrass Basin", description: "Test." })
+      .expect(201);
     const member = await makeUser(t.ctx, "member");
     const nobody = await agent.post(`/api/v1/curation/datasets/${slug}/editors`).send({ email: "nobody-here@plotbank.test" });
     const someone = await agent.post(`/api/v1/curation/datasets/${slug}/editors`).send({ email: member.email });
@@ -292,7 +353,12 @@ describe("what others may not learn", () => {
 
   it("the validation report of a rejected upload stays with editors and reviewers, even on a published version", async () => {
     const f = await draftWithData(t.app, t.ctx);
-    const rejected = await upload(f.curatorAgent, f.versionId, "plots", plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,x,CHK,3700,13.1" } }));
+    const rejected = await upload(
+      f.curatorAgent,
+      f.versionId,
+      "plots",
+      plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,x,CHK,3700,13.1" } }),
+    );
     expect(rejected.status).toBe(422);
     await f.curatorAgent.post(`/api/v1/curation/versions/${f.versionId}/submit`).send({ changelog: "First release." }).expect(200);
     await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
@@ -308,7 +374,10 @@ describe("what others may not learn", () => {
 
 describe("database guards", () => {
   const refusal = async (statement: ReturnType<typeof sql>) => {
-    const error = await t.ctx.db.execute(statement).then(() => null, (e: unknown) => e as { cause?: { hint?: string } });
+    const error = await t.ctx.db.execute(statement).then(
+      () => null,
+      (e: unknown) => e as { cause?: { hint?: string } },
+    );
     expect(error, "the statement should have been refused").not.toBeNull();
     expect(error!.cause?.hint).toBe("plotbank:immutable");
   };
@@ -325,7 +394,9 @@ describe("database guards", () => {
     await refusal(sql`update versions set submitted_at = now() - interval '1 year' where id = ${f.versionId}`);
     await t.ctx.db.execute(sql`update versions set doi = '10.80555/plotbank.test' where id = ${f.versionId}`);
     await refusal(sql`update datasets set slug = 'renamed-under-a-doi' where slug = ${f.slug}`);
-    const counted = (await t.ctx.db.execute(sql`select count(*)::int as n from plots where version_id = ${f.versionId}`)) as unknown as { rows: { n: number }[] };
+    const counted = (await t.ctx.db.execute(sql`select count(*)::int as n from plots where version_id = ${f.versionId}`)) as unknown as {
+      rows: { n: number }[];
+    };
     const [plots] = counted.rows;
     expect(plots!.n).toBe(32);
   });
@@ -344,8 +415,14 @@ describe("caching of errors", () => {
 describe("citations", () => {
   it("a line break stored in a title cannot forge a second RIS record, nor break a BibTeX entry's line", () => {
     const item = {
-      id: "forged-v1.0.0", type: "dataset" as const, title: "Starter trial\r\nER  - \r\nTY  - DATA\r\nTI  - Forged", author: [{ literal: "Tallgrass Basin Agronomy Network" }],
-      publisher: "Plotbank", issued: { "date-parts": [[2026, 5, 1]] as [[number, number, number]] }, version: "1.0.0", URL: "http://plotbank.test/datasets/forged?version=1.0.0",
+      id: "forged-v1.0.0",
+      type: "dataset" as const,
+      title: "Starter trial\r\nER  - \r\nTY  - DATA\r\nTI  - Forged",
+      author: [{ literal: "Tallgrass Basin Agronomy Network" }],
+      publisher: "Plotbank",
+      issued: { "date-parts": [[2026, 5, 1]] as [[number, number, number]] },
+      version: "1.0.0",
+      URL: "http://plotbank.test/datasets/forged?version=1.0.0",
     };
     const ris = renderCitation(item, "ris");
     expect(ris.match(/^TY {2}- /gm)).toHaveLength(1);
@@ -364,7 +441,10 @@ describe("web pages", () => {
   const inline = "window.__plotbankBoot = 1;";
   beforeAll(async () => {
     dist = mkdtempSync(path.join(tmpdir(), "plotbank-csp-"));
-    writeFileSync(path.join(dist, "index.html"), `<!doctype html><html><head><title>Plotbank</title><script>${inline}</script></head><body><div id="root"></div><script src="/_expo/entry.js" defer></script></body></html>`);
+    writeFileSync(
+      path.join(dist, "index.html"),
+      `<!doctype html><html><head><title>Plotbank</title><script>${inline}</script></head><body><div id="root"></div><script src="/_expo/entry.js" defer></script></body></html>`,
+    );
     web = await testApp({ anonRatePerMinute: 3 }, { webDistDir: dist });
   });
   afterAll(async () => {

@@ -47,7 +47,13 @@ const columns: FilterColumns = {
   },
   soilClass: { P: probe.soilPClass, K: probe.soilKClass, S: probe.soilSClass },
 };
-const testedColumns = { stated: probe.testedNutrientsStated, nLbAc: probe.nLbAc, p2o5LbAc: probe.p2o5LbAc, k2oLbAc: probe.k2oLbAc, sLbAc: probe.sLbAc };
+const testedColumns = {
+  stated: probe.testedNutrientsStated,
+  nLbAc: probe.nLbAc,
+  p2o5LbAc: probe.p2o5LbAc,
+  k2oLbAc: probe.k2oLbAc,
+  sLbAc: probe.sLbAc,
+};
 
 let database: Database;
 beforeAll(async () => {
@@ -133,20 +139,30 @@ const withIds = (rows: Omit<Row, "id">[]): Row[] => rows.map((r, i) => ({ ...r, 
 describe("the tested-nutrient rule: SQL and TypeScript agree on PGlite", () => {
   it("the tested nutrients and the counted soil class of every row", async () => {
     await fc.assert(
-      fc.asyncProperty(fc.array(treatmentRow, { minLength: 1, maxLength: 25 }), fc.option(nutrientSubset, { nil: undefined }), async (generated, filterNutrients) => {
-        const rows = withIds(generated);
-        await load(rows);
-        const filters = { nutrient: filterNutrients };
-        const result = await database.db
-          .select({ id: probe.id, tested: sql<string[]>`${testedNutrientsSql(testedColumns)}`, counted: sql<string | null>`${countedSoilClassSql(testedColumns, columns.soilClass!, filterNutrientsOf(filters))}` })
-          .from(probe)
-          .orderBy(probe.id);
-        for (const r of rows) {
-          const got = result.find((x) => x.id === r.id)!;
-          expect(got.tested, JSON.stringify(r)).toEqual(testedOf(r));
-          expect(got.counted, JSON.stringify({ r, filterNutrients })).toBe(countedSoilTest(testedOf(r), r, filterNutrientsOf(filters)).class);
-        }
-      }),
+      fc.asyncProperty(
+        fc.array(treatmentRow, { minLength: 1, maxLength: 25 }),
+        fc.option(nutrientSubset, { nil: undefined }),
+        async (generated, filterNutrients) => {
+          const rows = withIds(generated);
+          await load(rows);
+          const filters = { nutrient: filterNutrients };
+          const result = await database.db
+            .select({
+              id: probe.id,
+              tested: sql<string[]>`${testedNutrientsSql(testedColumns)}`,
+              counted: sql<string | null>`${countedSoilClassSql(testedColumns, columns.soilClass!, filterNutrientsOf(filters))}`,
+            })
+            .from(probe)
+            .orderBy(probe.id);
+          for (const r of rows) {
+            const got = result.find((x) => x.id === r.id)!;
+            expect(got.tested, JSON.stringify(r)).toEqual(testedOf(r));
+            expect(got.counted, JSON.stringify({ r, filterNutrients })).toBe(
+              countedSoilTest(testedOf(r), r, filterNutrientsOf(filters)).class,
+            );
+          }
+        },
+      ),
       { numRuns: 150 },
     );
   }, 120_000);
@@ -156,8 +172,15 @@ describe("the tested-nutrient rule: SQL and TypeScript agree on PGlite", () => {
       fc.asyncProperty(fc.array(treatmentRow, { minLength: 1, maxLength: 25 }), filterArb, async (generated, filters) => {
         const rows = withIds(generated);
         await load(rows);
-        const kept = await database.db.select({ id: probe.id }).from(probe).where(filterConditions(filters, [versionId], columns)).orderBy(probe.id);
-        expect(kept.map((k) => k.id), JSON.stringify(filters)).toEqual(rows.filter((r) => keeps(r, filters)).map((r) => r.id));
+        const kept = await database.db
+          .select({ id: probe.id })
+          .from(probe)
+          .where(filterConditions(filters, [versionId], columns))
+          .orderBy(probe.id);
+        expect(
+          kept.map((k) => k.id),
+          JSON.stringify(filters),
+        ).toEqual(rows.filter((r) => keeps(r, filters)).map((r) => r.id));
       }),
       { numRuns: 200 },
     );

@@ -32,11 +32,22 @@ function manyPlots(): string {
   return lines.join("\n") + "\n";
 }
 
-type Stored = { site_year_id: string | number; treatment_id: string | number; md_kg_ha: number; se_kg_ha: number; lnrr: number | null; p_value: number | null; balanced: boolean };
+type Stored = {
+  site_year_id: string | number;
+  treatment_id: string | number;
+  md_kg_ha: number;
+  se_kg_ha: number;
+  lnrr: number | null;
+  p_value: number | null;
+  balanced: boolean;
+};
 
 describe("responses computed from a large plots file", () => {
   it("equal the responses computed again from the stored plots", async () => {
-    const siteYears = "site_year,site,crop,year,blocks\n" + Array.from({ length: siteYearCount }, (_, i) => `${code(i)},TB-01,soybean,${1950 + (i % 70)},4`).join("\n") + "\n";
+    const siteYears =
+      "site_year,site,crop,year,blocks\n" +
+      Array.from({ length: siteYearCount }, (_, i) => `${code(i)},TB-01,soybean,${1950 + (i % 70)},4`).join("\n") +
+      "\n";
     const sy = await upload(f.curatorAgent, f.versionId, "site_years", siteYears);
     expect(sy.status, JSON.stringify(sy.body).slice(0, 800)).toBe(201);
     const res = await upload(f.curatorAgent, f.versionId, "plots", manyPlots());

@@ -14,7 +14,7 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-const rows = async <T>(q: ReturnType<typeof sql>) => (await t.ctx.db.execute(q) as unknown as { rows: T[] }).rows;
+const rows = async <T>(q: ReturnType<typeof sql>) => ((await t.ctx.db.execute(q)) as unknown as { rows: T[] }).rows;
 
 /** Upload that must be refused: 422 problem+json, the draft untouched, and the problem located as expected. */
 async function rejected(resource: string, csv: string | Buffer, fields: Record<string, string> = {}) {
@@ -24,7 +24,11 @@ async function rejected(resource: string, csv: string | Buffer, fields: Record<s
   expect(res.headers["content-type"]).toMatch(/application\/problem\+json/);
   expect(res.body.errorCount).toBeGreaterThan(0);
   expect(await versionFingerprint(t.ctx, f.versionId)).toBe(before);
-  return res.body as { errors: { file: string; row?: number; column?: string; value?: string; message: string }[]; reportId: string; problems: { severity: string; message: string }[] };
+  return res.body as {
+    errors: { file: string; row?: number; column?: string; value?: string; message: string }[];
+    reportId: string;
+    problems: { severity: string; message: string }[];
+  };
 }
 
 let token: string | undefined;
@@ -37,21 +41,25 @@ const plotsHeader = "site_year,plot,block,treatment,yield_kg_ha,harvest_moisture
 
 describe("file format", () => {
   it("reads a UTF-8 BOM, semicolons, decimal commas and quoted fields with newlines", async () => {
-    const csv = "\uFEFFsite;location;soil_series;soil_texture\nTB-03;\"Wren County\nnorth half\";\"Harlan; eroded\";silt loam\n";
+    const csv = '\uFEFFsite;location;soil_series;soil_texture\nTB-03;"Wren County\nnorth half";"Harlan; eroded";silt loam\n';
     const res = await upload(f.curatorAgent, f.versionId, "sites", csv).expect(201);
     const body = uploadResult.parse(res.body);
     expect(body.delimiter).toBe(";");
     expect(body.rows).toBe(1);
-    const [site] = await rows<{ location: string; soil_series: string }>(sql`select location, soil_series from sites where version_id = ${f.versionId} and code = 'TB-03'`);
+    const [site] = await rows<{ location: string; soil_series: string }>(
+      sql`select location, soil_series from sites where version_id = ${f.versionId} and code = 'TB-03'`,
+    );
     expect(site).toEqual({ location: "Wren County\nnorth half", soil_series: "Harlan; eroded" });
     const sy = "site_year;site;crop;year;blocks;row_spacing_in\nTB-03-2021;TB-03;soybean;2021;4;7,5\n";
     await upload(f.curatorAgent, f.versionId, "site_years", sy).expect(201);
-    const [s] = await rows<{ row_spacing_in: number }>(sql`select row_spacing_in from site_years where version_id = ${f.versionId} and code = 'TB-03-2021'`);
+    const [s] = await rows<{ row_spacing_in: number }>(
+      sql`select row_spacing_in from site_years where version_id = ${f.versionId} and code = 'TB-03-2021'`,
+    );
     expect(s!.row_spacing_in).toBe(7.5);
   });
 
   it("keeps the raw file byte for byte with its SHA-256", async () => {
-    const csv = "\uFEFFsite,location\r\nTB-04,\"Osage Bend County, \"\"east\"\"\"\r\n";
+    const csv = '\uFEFFsite,location\r\nTB-04,"Osage Bend County, ""east"""\r\n';
     const res = await upload(f.curatorAgent, f.versionId, "sites", csv).expect(201);
     // Compared inside the database: a driver's text decoding may drop a leading BOM on the way out.
     const [u] = await rows<{ stored: string; sha256: string; byte_size: number | string }>(
@@ -81,7 +89,11 @@ describe("file format", () => {
     expect(res.status).toBe(413);
     expect(res.body.limit).toBe(LIMIT);
     expect(res.body.detail).toContain(String(LIMIT));
-    const raw = await supertest(t.app).post(`/api/v1/curation/versions/${f.versionId}/uploads/plots`).set("Authorization", `Bearer ${await writeToken()}`).set("Content-Type", "text/csv").send(big);
+    const raw = await supertest(t.app)
+      .post(`/api/v1/curation/versions/${f.versionId}/uploads/plots`)
+      .set("Authorization", `Bearer ${await writeToken()}`)
+      .set("Content-Type", "text/csv")
+      .send(big);
     expect(raw.status).toBe(413);
     expect(await versionFingerprint(t.ctx, f.versionId)).toBe(before);
   });
@@ -102,12 +114,16 @@ describe("Table Schema rules, located by row and column", () => {
   it("a wrong type names the row (1-based data row) and column", async () => {
     const csv = plotsCsv().replace("TB-01-2021,102,1,IF,", "TB-01-2021,102,two,IF,");
     const body = await rejected("plots", csv);
-    expect(body.errors).toContainEqual(expect.objectContaining({ file: "plots.csv", row: 2, column: "block", value: "two", message: expect.stringMatching(/whole/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ file: "plots.csv", row: 2, column: "block", value: "two", message: expect.stringMatching(/whole/) }),
+    );
   });
 
   it("a missing required column and a missing required value", async () => {
     let body = await rejected("site_years", "site_year,site,crop,year\nTB-01-2023,TB-01,soybean,2023\n");
-    expect(body.errors).toContainEqual(expect.objectContaining({ column: "blocks", message: expect.stringMatching(/required field blocks has no column/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ column: "blocks", message: expect.stringMatching(/required field blocks has no column/) }),
+    );
     body = await rejected("site_years", "site_year,site,crop,year,blocks\nTB-01-2023,TB-01,soybean,2023,\n");
     expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "blocks", message: "blocks is required but missing" }));
   });
@@ -117,21 +133,31 @@ describe("Table Schema rules, located by row and column", () => {
       "site_years",
       "site_year,site,crop,year,blocks,row_spacing_in,planting_date\nTB-01-2023,TB-01,rice,2023,4,30,2023-05-10\nTB-01-2024,TB-01,soybean,2024,4,100,2024-05-10\nTB-01-2025,TB-01,soybean,2025,4,30,2025-02-30\n",
     );
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "crop", value: "rice", message: expect.stringMatching(/not one of the allowed values/) }));
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 2, column: "row_spacing_in", message: expect.stringMatching(/above the maximum 60 in/) }));
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 3, column: "planting_date", message: expect.stringMatching(/YYYY-MM-DD/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 1, column: "crop", value: "rice", message: expect.stringMatching(/not one of the allowed values/) }),
+    );
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 2, column: "row_spacing_in", message: expect.stringMatching(/above the maximum 60 in/) }),
+    );
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 3, column: "planting_date", message: expect.stringMatching(/YYYY-MM-DD/) }),
+    );
   });
 
   it("a duplicate primary key", async () => {
     const csv = plotsCsv() + "TB-01-2021,101,1,CHK,3600,13\n";
     const body = await rejected("plots", csv);
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 33, column: "plot", value: "101", message: expect.stringMatching(/appears twice/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 33, column: "plot", value: "101", message: expect.stringMatching(/appears twice/) }),
+    );
   });
 
   it("foreign keys to an unknown site-year and an unknown treatment", async () => {
     const csv = `${plotsHeader}\nTB-77-2021,101,1,CHK,3600,13\nTB-01-2021,101,1,NOPE,3600,13\n`;
     const body = await rejected("plots", csv);
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "site_year", value: "TB-77-2021", message: expect.stringMatching(/not in this version/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 1, column: "site_year", value: "TB-77-2021", message: expect.stringMatching(/not in this version/) }),
+    );
     expect(body.errors).toContainEqual(expect.objectContaining({ row: 2, column: "treatment", value: "NOPE" }));
   });
 
@@ -149,48 +175,105 @@ describe("Table Schema rules, located by row and column", () => {
 
 describe("domain rules", () => {
   it("a site-year without a check, and one with two checks", async () => {
-    const noCheck = plotsCsv().split("\n").filter((l) => !l.includes(",CHK,")).join("\n");
+    const noCheck = plotsCsv()
+      .split("\n")
+      .filter((l) => !l.includes(",CHK,"))
+      .join("\n");
     let body = await rejected("plots", noCheck);
-    expect(body.errors).toContainEqual(expect.objectContaining({ column: "treatment", message: expect.stringMatching(/site-year "TB-01-2021" has no untreated check/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ column: "treatment", message: expect.stringMatching(/site-year "TB-01-2021" has no untreated check/) }),
+    );
     await upload(f.curatorAgent, f.versionId, "treatments", "treatment,name,is_check,application\nCHK2,Second check,yes,1\n").expect(201);
-    body = await rejected("plots", plotsCsv({ override: { "TB-02-2021/101": "TB-02-2021,101,1,CHK2,4100,13" } }).replace(/TB-02-2021,102,1,IF/, "TB-02-2021,102,1,CHK"));
+    body = await rejected(
+      "plots",
+      plotsCsv({ override: { "TB-02-2021/101": "TB-02-2021,101,1,CHK2,4100,13" } }).replace(/TB-02-2021,102,1,IF/, "TB-02-2021,102,1,CHK"),
+    );
     expect(body.errors.map((e) => e.message).join("\n")).toMatch(/site-year "TB-02-2021" has 2 checks \(CHK, CHK2\)/);
   });
 
   it("a check with a product, and an application without its rate", async () => {
-    const body = await rejected("treatments", "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\nCHK,Check,true,1,MAP,11-52-0,50,lb/ac,broadcast,pre-plant\nX,Odd,false,1,MAP,11-52-0,,lb/ac,broadcast,pre-plant\n");
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "product", message: expect.stringMatching(/untreated check/) }));
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 2, column: "product_rate", message: expect.stringMatching(/required for an application/) }));
+    const body = await rejected(
+      "treatments",
+      "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\nCHK,Check,true,1,MAP,11-52-0,50,lb/ac,broadcast,pre-plant\nX,Odd,false,1,MAP,11-52-0,,lb/ac,broadcast,pre-plant\n",
+    );
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 1, column: "product", message: expect.stringMatching(/untreated check/) }),
+    );
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 2, column: "product_rate", message: expect.stringMatching(/required for an application/) }),
+    );
   });
 
   it("inconsistent blocks: a block beyond the site-year's blocks, a treatment twice in one block", async () => {
     let body = await rejected("plots", plotsCsv({ override: { "TB-01-2021/101": "TB-01-2021,101,5,CHK,3600,13" } }));
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "block", value: "5", message: expect.stringMatching(/outside 1–4/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 1, column: "block", value: "5", message: expect.stringMatching(/outside 1–4/) }),
+    );
     body = await rejected("plots", plotsCsv({ override: { "TB-01-2021/102": "TB-01-2021,102,1,CHK,3600,13" } }));
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 2, column: "block", message: expect.stringMatching(/more than once in block 1/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 2, column: "block", message: expect.stringMatching(/more than once in block 1/) }),
+    );
   });
 
   it("an implausible harvest moisture", async () => {
     const body = await rejected("plots", plotsCsv({ override: { "TB-01-2021/103": "TB-01-2021,103,1,BAND,3600,55" } }));
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 3, column: "harvest_moisture_pct", value: "55", message: expect.stringMatching(/not plausible/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 3, column: "harvest_moisture_pct", value: "55", message: expect.stringMatching(/not plausible/) }),
+    );
   });
 
   it("a soil-test class that contradicts its scheme's thresholds is kept as reported, with a warning naming row and column", async () => {
-    const res = await upload(f.curatorAgent, f.versionId, "soil_tests", "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,high,tallgrass-illustrative\n").expect(201);
+    const res = await upload(
+      f.curatorAgent,
+      f.versionId,
+      "soil_tests",
+      "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,high,tallgrass-illustrative\n",
+    ).expect(201);
     const body = uploadResult.parse(res.body);
     expect(body.errors).toBe(0);
-    expect(body.problems).toContainEqual(expect.objectContaining({ severity: "warning", row: 1, column: "class", value: "high", message: expect.stringMatching(/contradicts scheme "tallgrass-illustrative".*falls in "low"/) }));
-    const [p] = await rows<{ class: string; reported_class: string; interpretation: string }>(sql`select st.class, st.reported_class, st.interpretation from soil_tests st join site_years sy on sy.id = st.site_year_id where st.version_id = ${f.versionId} and sy.code = 'TB-01-2021' and st.analyte = 'P'`);
+    expect(body.problems).toContainEqual(
+      expect.objectContaining({
+        severity: "warning",
+        row: 1,
+        column: "class",
+        value: "high",
+        message: expect.stringMatching(/contradicts scheme "tallgrass-illustrative".*falls in "low"/),
+      }),
+    );
+    const [p] = await rows<{ class: string; reported_class: string; interpretation: string }>(
+      sql`select st.class, st.reported_class, st.interpretation from soil_tests st join site_years sy on sy.id = st.site_year_id where st.version_id = ${f.versionId} and sy.code = 'TB-01-2021' and st.analyte = 'P'`,
+    );
     expect(p).toEqual({ class: "high", reported_class: "high", interpretation: "tallgrass-illustrative" });
   });
 
   it("a class label the named scheme does not have, and one off the ordinal scale with no scheme", async () => {
-    const unknownLabel = await rejected("soil_tests", "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,medium,tallgrass-illustrative\n");
-    expect(unknownLabel.errors[0]).toMatchObject({ row: 1, column: "class", value: "medium", message: expect.stringMatching(/not a label of scheme "tallgrass-illustrative"/) });
+    const unknownLabel = await rejected(
+      "soil_tests",
+      "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,medium,tallgrass-illustrative\n",
+    );
+    expect(unknownLabel.errors[0]).toMatchObject({
+      row: 1,
+      column: "class",
+      value: "medium",
+      message: expect.stringMatching(/not a label of scheme "tallgrass-illustrative"/),
+    });
     const noScheme = await rejected("soil_tests", "site_year,analyte,value,unit,extractant,class\nTB-01-2021,P,7,ppm,Bray-P1,medium\n");
-    expect(noScheme.errors[0]).toMatchObject({ row: 1, column: "class", value: "medium", message: expect.stringMatching(/not on the ordinal scale.*interpretation/) });
-    const unknownScheme = await rejected("soil_tests", "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,medium,lab-xyz\n");
-    expect(unknownScheme.errors[0]).toMatchObject({ row: 1, column: "interpretation", value: "lab-xyz", message: expect.stringMatching(/neither in this version's data dictionary/) });
+    expect(noScheme.errors[0]).toMatchObject({
+      row: 1,
+      column: "class",
+      value: "medium",
+      message: expect.stringMatching(/not on the ordinal scale.*interpretation/),
+    });
+    const unknownScheme = await rejected(
+      "soil_tests",
+      "site_year,analyte,value,unit,extractant,class,interpretation\nTB-01-2021,P,7,ppm,Bray-P1,medium,lab-xyz\n",
+    );
+    expect(unknownScheme.errors[0]).toMatchObject({
+      row: 1,
+      column: "interpretation",
+      value: "lab-xyz",
+      message: expect.stringMatching(/neither in this version's data dictionary/),
+    });
   });
 
   it("tested_nutrients: an unknown nutrient, a check that tests something, and a nutrient the products do not add", async () => {
@@ -199,29 +282,61 @@ describe("domain rules", () => {
       "treatments",
       `${header}\nCHK,Check,true,P,1,,,,,,\nBAND,Band MAP,false,Q,1,MAP,11-52-0,100,lb/ac,2x2-band,at-planting\nBC,Broadcast MAP,false,K,1,MAP,11-52-0,100,lb/ac,broadcast,pre-plant\n`,
     );
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "tested_nutrients", message: expect.stringMatching(/untreated check/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({ row: 1, column: "tested_nutrients", message: expect.stringMatching(/untreated check/) }),
+    );
     expect(body.errors).toContainEqual(expect.objectContaining({ row: 2, column: "tested_nutrients", value: "Q" }));
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 3, column: "tested_nutrients", value: "K", message: expect.stringMatching(/tests K, but its products add no K/) }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({
+        row: 3,
+        column: "tested_nutrients",
+        value: "K",
+        message: expect.stringMatching(/tests K, but its products add no K/),
+      }),
+    );
   });
 
   it("derives a blank class from the table, converts lb/ac to ppm", async () => {
-    const res = await upload(f.curatorAgent, f.versionId, "soil_tests", "site_year,analyte,value,extractant,interpretation\nTB-01-2021,K,240,ammonium-acetate,tallgrass-illustrative\n", { units: JSON.stringify({ soilTest: "lb/ac" }) }).expect(201);
+    const res = await upload(
+      f.curatorAgent,
+      f.versionId,
+      "soil_tests",
+      "site_year,analyte,value,extractant,interpretation\nTB-01-2021,K,240,ammonium-acetate,tallgrass-illustrative\n",
+      { units: JSON.stringify({ soilTest: "lb/ac" }) },
+    ).expect(201);
     expect(res.body.accepted).toBe(true);
-    const [k] = await rows<{ value: number; unit: string; class: string }>(sql`select value, unit, class from soil_tests where version_id = ${f.versionId} and analyte = 'K'`);
+    const [k] = await rows<{ value: number; unit: string; class: string }>(
+      sql`select value, unit, class from soil_tests where version_id = ${f.versionId} and analyte = 'K'`,
+    );
     expect(k).toEqual({ value: 120, unit: "ppm", class: "low" });
   });
 
   it("a yield far outside its site-year's range is a warning, not an error", async () => {
-    const res = await upload(f.curatorAgent, f.versionId, "plots", plotsCsv({ override: { "TB-01-2021/104": "TB-01-2021,104,1,BC,9800,13" } })).expect(201);
+    const res = await upload(
+      f.curatorAgent,
+      f.versionId,
+      "plots",
+      plotsCsv({ override: { "TB-01-2021/104": "TB-01-2021,104,1,BC,9800,13" } }),
+    ).expect(201);
     const body = uploadResult.parse(res.body);
     expect(body.errors).toBe(0);
-    expect(body.problems).toContainEqual(expect.objectContaining({ severity: "warning", row: 4, column: "yield_kg_ha", message: expect.stringMatching(/far outside/) }));
+    expect(body.problems).toContainEqual(
+      expect.objectContaining({ severity: "warning", row: 4, column: "yield_kg_ha", message: expect.stringMatching(/far outside/) }),
+    );
   });
 
   it("missing plots are accepted with an unbalance warning; responses use the least-squares fit", async () => {
     const res = await upload(f.curatorAgent, f.versionId, "plots", plotsCsv({ skip: ["TB-01-2021/203", "TB-01-2021/204"] })).expect(201);
-    expect(res.body.problems).toContainEqual(expect.objectContaining({ severity: "warning", column: "block", message: expect.stringMatching(/TB-01-2021" is unbalanced: 2 of 16 plots missing/) }));
-    const r = await rows<{ balanced: boolean; lsd05_kg_ha: number | null }>(sql`select balanced, lsd05_kg_ha from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021'`);
+    expect(res.body.problems).toContainEqual(
+      expect.objectContaining({
+        severity: "warning",
+        column: "block",
+        message: expect.stringMatching(/TB-01-2021" is unbalanced: 2 of 16 plots missing/),
+      }),
+    );
+    const r = await rows<{ balanced: boolean; lsd05_kg_ha: number | null }>(
+      sql`select balanced, lsd05_kg_ha from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021'`,
+    );
     expect(r).toHaveLength(3);
     expect(r.every((x) => x.balanced === false && x.lsd05_kg_ha === null)).toBe(true);
   });
@@ -233,13 +348,18 @@ describe("units at the edge", () => {
     // (Mulvaney & Devkota 2020, UF/IFAS EDIS AG442).
     const csv = plotsCsv()
       .replace("yield_kg_ha,harvest_moisture_pct", "Yield (bu/ac),Moisture")
-      .replace(/^(TB-0[12]-2021,\d+,\d,\w+,)(\d+),([\d.]+)$/gm, (_m, a: string, y: string, mo: string) => `${a}${(Number(y) / 67.25).toFixed(2)},${mo}`)
+      .replace(
+        /^(TB-0[12]-2021,\d+,\d,\w+,)(\d+),([\d.]+)$/gm,
+        (_m, a: string, y: string, mo: string) => `${a}${(Number(y) / 67.25).toFixed(2)},${mo}`,
+      )
       .replace(/TB-02-2021,101,1,CHK,[0-9.]+,[0-9.]+/, "TB-02-2021,101,1,CHK,60,18");
     await upload(f.curatorAgent, f.versionId, "plots", csv, {
       mapping: JSON.stringify({ "Yield (bu/ac)": "yield_kg_ha", Moisture: "harvest_moisture_pct" }),
       units: JSON.stringify({ yield: "bu/ac", yieldMoisture: "harvest" }),
     }).expect(201);
-    const [p] = await rows<{ yield_kg_ha: number; harvest_moisture_pct: number }>(sql`select p.yield_kg_ha, p.harvest_moisture_pct from plots p join site_years sy on sy.id = p.site_year_id where p.version_id = ${f.versionId} and sy.code = 'TB-02-2021' and p.plot = '101'`);
+    const [p] = await rows<{ yield_kg_ha: number; harvest_moisture_pct: number }>(
+      sql`select p.yield_kg_ha, p.harvest_moisture_pct from plots p join site_years sy on sy.id = p.site_year_id where p.version_id = ${f.versionId} and sy.code = 'TB-02-2021' and p.plot = '101'`,
+    );
     expect(p!.harvest_moisture_pct).toBe(18);
     expect(p!.yield_kg_ha).toBeCloseTo(((60 * 60 * 0.45359237) / 0.40468564224) * (82 / 87), 6);
   });
@@ -256,25 +376,52 @@ describe("units at the edge", () => {
     const dens = await rows<{ code: string; density_lb_gal: number | null }>(
       sql`select t.code, a.density_lb_gal from applications a join treatments t on t.id = a.treatment_id where a.version_id = ${f.versionId} and t.code in ('IF', 'BAND') order by t.code`,
     );
-    expect(dens).toEqual([{ code: "BAND", density_lb_gal: null }, { code: "IF", density_lb_gal: 11.4 }]);
+    expect(dens).toEqual([
+      { code: "BAND", density_lb_gal: null },
+      { code: "IF", density_lb_gal: 11.4 },
+    ]);
     // A density given in the file wins over the typical one (10.67 lb/gal for 28 % UAN, from memory).
-    await upload(f.curatorAgent, f.versionId, "treatments", "treatment,name,is_check,application,product,grade,product_rate,rate_unit,density_lb_gal,placement,timing\nFL,Fluid given,false,1,UAN,28-0-0,10,gal/ac,10.67,broadcast,pre-plant\n").expect(201);
-    const [fl] = await rows<{ n_lb_ac: number; density_lb_gal: number }>(sql`select t.n_lb_ac, a.density_lb_gal from treatments t join applications a on a.treatment_id = t.id where t.version_id = ${f.versionId} and t.code = 'FL'`);
+    await upload(
+      f.curatorAgent,
+      f.versionId,
+      "treatments",
+      "treatment,name,is_check,application,product,grade,product_rate,rate_unit,density_lb_gal,placement,timing\nFL,Fluid given,false,1,UAN,28-0-0,10,gal/ac,10.67,broadcast,pre-plant\n",
+    ).expect(201);
+    const [fl] = await rows<{ n_lb_ac: number; density_lb_gal: number }>(
+      sql`select t.n_lb_ac, a.density_lb_gal from treatments t join applications a on a.treatment_id = t.id where t.version_id = ${f.versionId} and t.code = 'FL'`,
+    );
     expect(fl!.density_lb_gal).toBe(10.67);
     expect(fl!.n_lb_ac).toBeCloseTo(10 * 10.67 * 0.28, 3);
     // An elemental grade: 0-20-0 as P is 45.82 % P2O5 (÷ 0.4365, Virginia Tech SPES-201NP).
-    await upload(f.curatorAgent, f.versionId, "treatments", "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\nEL,Elemental,false,1,TSP-E,0-20-0,100,kg/ha,broadcast,pre-plant\n", { units: JSON.stringify({ gradeBasis: "element" }) }).expect(201);
-    const [el] = await rows<{ p2o5_lb_ac: number }>(sql`select p2o5_lb_ac from treatments where version_id = ${f.versionId} and code = 'EL'`);
-    expect(el!.p2o5_lb_ac).toBeCloseTo(Math.round(((100 * 0.40468564224) / 0.45359237) * (20 / 0.4365) / 100 * 1000) / 1000, 3);
+    await upload(
+      f.curatorAgent,
+      f.versionId,
+      "treatments",
+      "treatment,name,is_check,application,product,grade,product_rate,rate_unit,placement,timing\nEL,Elemental,false,1,TSP-E,0-20-0,100,kg/ha,broadcast,pre-plant\n",
+      { units: JSON.stringify({ gradeBasis: "element" }) },
+    ).expect(201);
+    const [el] = await rows<{ p2o5_lb_ac: number }>(
+      sql`select p2o5_lb_ac from treatments where version_id = ${f.versionId} and code = 'EL'`,
+    );
+    expect(el!.p2o5_lb_ac).toBeCloseTo(Math.round(((((100 * 0.40468564224) / 0.45359237) * (20 / 0.4365)) / 100) * 1000) / 1000, 3);
   });
 });
 
 describe("summaries and reports", () => {
   it("a site-year given as means, r, MSE and df gets responses from them", async () => {
-    await upload(f.curatorAgent, f.versionId, "site_years", "site_year,site,crop,year,blocks\nTB-05-2021,TB-05,soybean,2021,4\n").expect(201);
-    const res = await upload(f.curatorAgent, f.versionId, "summaries", "site_year,treatment,mean_kg_ha,replicates,mse,df_error\nTB-05-2021,CHK,3500,4,20000,9\nTB-05-2021,BAND,3800,4,20000,9\n").expect(201);
+    await upload(f.curatorAgent, f.versionId, "site_years", "site_year,site,crop,year,blocks\nTB-05-2021,TB-05,soybean,2021,4\n").expect(
+      201,
+    );
+    const res = await upload(
+      f.curatorAgent,
+      f.versionId,
+      "summaries",
+      "site_year,treatment,mean_kg_ha,replicates,mse,df_error\nTB-05-2021,CHK,3500,4,20000,9\nTB-05-2021,BAND,3800,4,20000,9\n",
+    ).expect(201);
     expect(res.body.responses.uncomputed).toEqual([]);
-    const [r] = await rows<{ md_kg_ha: number; se_kg_ha: number; from_summary: boolean; df_error: number }>(sql`select md_kg_ha, se_kg_ha, from_summary, df_error from responses where version_id = ${f.versionId} and site_year_code = 'TB-05-2021'`);
+    const [r] = await rows<{ md_kg_ha: number; se_kg_ha: number; from_summary: boolean; df_error: number }>(
+      sql`select md_kg_ha, se_kg_ha, from_summary, df_error from responses where version_id = ${f.versionId} and site_year_code = 'TB-05-2021'`,
+    );
     expect(r).toMatchObject({ md_kg_ha: 300, from_summary: true, df_error: 9 });
     expect(r!.se_kg_ha).toBeCloseTo(Math.sqrt((2 * 20000) / 4), 9);
     // A site-year cannot have both.
@@ -282,11 +429,18 @@ describe("summaries and reports", () => {
   });
 
   it("stores every report; it can be filtered and downloaded as CSV", async () => {
-    const body = await rejected("plots", plotsCsv().replace("TB-01-2021,102,1,IF,", "TB-01-2021,102,x,IF,").replace("TB-01-2021,103,1,BAND,", "TB-01-2021,103,1,ZZ,"));
-    const all = validationReport.parse((await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${body.reportId}`).expect(200)).body);
+    const body = await rejected(
+      "plots",
+      plotsCsv().replace("TB-01-2021,102,1,IF,", "TB-01-2021,102,x,IF,").replace("TB-01-2021,103,1,BAND,", "TB-01-2021,103,1,ZZ,"),
+    );
+    const all = validationReport.parse(
+      (await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${body.reportId}`).expect(200)).body,
+    );
     expect(all.accepted).toBe(false);
     expect(all.errors).toBe(2);
-    const byColumn = validationReport.parse((await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${body.reportId}?column=treatment`).expect(200)).body);
+    const byColumn = validationReport.parse(
+      (await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${body.reportId}?column=treatment`).expect(200)).body,
+    );
     expect(byColumn.total).toBe(1);
     expect(byColumn.problems[0]).toMatchObject({ row: 3, value: "ZZ" });
     const csv = await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${body.reportId}.csv`).expect(200);

@@ -39,7 +39,9 @@ describe("what the server says each caller may do with a version", () => {
     expect(await rights(admin, f.versionId)).toEqual({ ...none, canReturn: true });
     expect(await rights(f.curatorAgent, f.versionId)).toEqual(none);
     // The answers hold: the submitting admin is refused, the other reviewer publishes.
-    expect((await admin.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(403)).body.detail).toMatch(/another reviewer/);
+    expect((await admin.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(403)).body.detail).toMatch(
+      /another reviewer/,
+    );
     await f.reviewerAgent.post(`/api/v1/curation/versions/${f.versionId}/approve`).send({}).expect(200);
   });
 

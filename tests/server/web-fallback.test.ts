@@ -13,7 +13,10 @@ let dist: string;
 let t: TestApp;
 beforeAll(async () => {
   dist = mkdtempSync(path.join(tmpdir(), "plotbank-dist-"));
-  writeFileSync(path.join(dist, "index.html"), `<!doctype html><html><head><title>Plotbank</title></head><body><div id="root">${marker}</div></body></html>`);
+  writeFileSync(
+    path.join(dist, "index.html"),
+    `<!doctype html><html><head><title>Plotbank</title></head><body><div id="root">${marker}</div></body></html>`,
+  );
   t = await testApp({}, { webDistDir: dist });
 });
 afterAll(async () => {
@@ -64,7 +67,9 @@ describe("non-API paths get the web app", () => {
 
   it("every route file in app/ is answered 200 (the server reads the same files the app is built from)", async () => {
     const routes = appRoutes();
-    expect(routes.map((r) => r.file)).toEqual(expect.arrayContaining(["index", "datasets/index", "datasets/[slug]", "curate/versions/[id]"]));
+    expect(routes.map((r) => r.file)).toEqual(
+      expect.arrayContaining(["index", "datasets/index", "datasets/[slug]", "curate/versions/[id]"]),
+    );
     for (const r of routes) {
       const url = r.pattern.replace(/\[\.{3}[^\]]+\]/g, "a/b").replace(/\[[^\]]+\]/g, "some-id");
       // This app has no datasets, so a dataset page's address names nothing: 404 (with the app), as below.

@@ -9,7 +9,12 @@ import { fitLinearModel } from "@/stats/linear-model";
 import { metaAnalysis } from "@/stats/meta/meta-analysis";
 import { expectClose, loadCsvFixture, loadJsonFixture, numericColumn } from "@/tests/stats/fixtures";
 
-interface Check { check: string; fixture: number; statsmodels: number; tol: number }
+interface Check {
+  check: string;
+  fixture: number;
+  statsmodels: number;
+  tol: number;
+}
 const checks = loadJsonFixture<{ checks: Check[] }>("crosscheck_statsmodels.json").checks;
 
 const data = Object.fromEntries(
@@ -65,7 +70,8 @@ describe("cross-check with statsmodels 0.13.5 (combine_effects, anova_lm)", () =
         // … and, for these rows, statsmodels' number is the PM equation's residual at τ²: ours is ~0 too.
         const input = data[check.check.split(" ")[0] ?? ""] as { yi: number[]; vi: number[] };
         const fit = metaAnalysis({ ...input, method: "PM", ci: "wald" });
-        const residual = input.yi.reduce((sum, y, i) => sum + (y - fit.estimate) ** 2 / ((input.vi[i] as number) + fit.tau2), 0) - (input.yi.length - 1);
+        const residual =
+          input.yi.reduce((sum, y, i) => sum + (y - fit.estimate) ** 2 / ((input.vi[i] as number) + fit.tau2), 0) - (input.yi.length - 1);
         expect(Math.abs(residual)).toBeLessThanOrEqual(check.tol * input.yi.length);
         expect(Math.abs(check.statsmodels)).toBeLessThanOrEqual(check.tol * input.yi.length);
       } else {

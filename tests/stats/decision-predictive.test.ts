@@ -5,7 +5,9 @@ import { predictiveProbabilityAbove, pricedDecision, probabilityNewResponseAbove
 
 // metafor 3.8-1 predict() per level of rma(yi, vi, mods = ~ 0 + included_critique) on dat.michael2013
 // (Michael et al. 2013, Psychon Bull Rev 20:720-725); tests/fixtures/reference/meta_michael2013_md_subgroup_predict.R.
-const predicted = JSON.parse(readFileSync(path.resolve(__dirname, "../fixtures/reference/meta_michael2013_md_subgroup_predict.json"), "utf8"));
+const predicted = JSON.parse(
+  readFileSync(path.resolve(__dirname, "../fixtures/reference/meta_michael2013_md_subgroup_predict.json"), "utf8"),
+);
 
 describe("predictiveProbabilityAbove", () => {
   it.each(["REML_knha", "REML_z", "DL_knha"])("gives R's P(new > x) per level of %s (t(ddf) or normal)", (model) => {
@@ -38,20 +40,35 @@ describe("shareAbove and pricedDecision", () => {
 
   it("B = (product + application) ÷ price in the response's units, with the chance and the observed share at B", () => {
     const predictive = { estimate: 8, se: 1, tau2: 8, df: 10 };
-    const out = pricedDecision({ price: 4.8, productCost: 18, applicationCost: 6 }, { unitsPerBushel: 1, predictive, observedResponses: [-1, 2, 6, 8] });
+    const out = pricedDecision(
+      { price: 4.8, productCost: 18, applicationCost: 6 },
+      { unitsPerBushel: 1, predictive, observedResponses: [-1, 2, 6, 8] },
+    );
     expect(out.costPerAcre).toBe(24);
     expect(out.breakEven).toBe(5);
     expect(out.probabilityAboveBreakEven).toBe(predictiveProbabilityAbove(predictive, 5));
     expect(out.shareAboveBreakEven).toBe(0.5);
     // kg/ha: the break-even scales by the units per bu/ac.
-    expect(pricedDecision({ price: 4.8, productCost: 24 }, { unitsPerBushel: 67.25, predictive, observedResponses: null }).breakEven).toBeCloseTo(5 * 67.25, 12);
+    expect(
+      pricedDecision({ price: 4.8, productCost: 24 }, { unitsPerBushel: 67.25, predictive, observedResponses: null }).breakEven,
+    ).toBeCloseTo(5 * 67.25, 12);
   });
 
   it("gives nothing it cannot: no price, no cost, no units, no observed list", () => {
     const predictive = { estimate: 8, se: 1, tau2: 8, df: 10 };
-    expect(pricedDecision({ productCost: 18 }, { unitsPerBushel: 1, predictive, observedResponses: [1] })).toMatchObject({ breakEven: null, probabilityAboveBreakEven: null, shareAboveBreakEven: null, costPerAcre: 18 });
+    expect(pricedDecision({ productCost: 18 }, { unitsPerBushel: 1, predictive, observedResponses: [1] })).toMatchObject({
+      breakEven: null,
+      probabilityAboveBreakEven: null,
+      shareAboveBreakEven: null,
+      costPerAcre: 18,
+    });
     expect(pricedDecision({ price: 5 }, { unitsPerBushel: 1, predictive, observedResponses: [1] }).breakEven).toBeNull();
-    expect(pricedDecision({ price: 5, productCost: 10 }, { unitsPerBushel: null, predictive, observedResponses: [1] }).breakEven).toBeNull();
-    expect(pricedDecision({ price: 5, productCost: 10 }, { unitsPerBushel: 1, predictive, observedResponses: null })).toMatchObject({ breakEven: 2, shareAboveBreakEven: null });
+    expect(
+      pricedDecision({ price: 5, productCost: 10 }, { unitsPerBushel: null, predictive, observedResponses: [1] }).breakEven,
+    ).toBeNull();
+    expect(pricedDecision({ price: 5, productCost: 10 }, { unitsPerBushel: 1, predictive, observedResponses: null })).toMatchObject({
+      breakEven: 2,
+      shareAboveBreakEven: null,
+    });
   });
 });

@@ -29,20 +29,36 @@ const fixture = loadJsonFixture<{ values: DistributionCase[] }>("distribution_ch
 
 function evaluate({ fn, args }: DistributionCase): number {
   const a = args as Record<string, number>;
-  const p = a.p as number, x = a.x as number, df = a.df as number, df1 = a.df1 as number, df2 = a.df2 as number;
+  const p = a.p as number,
+    x = a.x as number,
+    df = a.df as number,
+    df1 = a.df1 as number,
+    df2 = a.df2 as number;
   switch (fn) {
-    case "t_ppf": return tQuantile(p, df);
-    case "t_cdf": return tCdf(x, df);
-    case "t_two_sided_p": return tTwoSidedP(x, df);
-    case "f_sf": return fSurvival(x, df1, df2);
-    case "f_cdf": return fCdf(x, df1, df2);
-    case "f_ppf": return fQuantile(p, df1, df2);
-    case "chi2_sf": return chiSquareSurvival(x, df);
-    case "chi2_ppf": return chiSquareQuantile(p, df);
-    case "norm_ppf": return normalQuantile(p);
-    case "norm_cdf": return normalCdf(x);
-    case "norm_two_sided_p": return normalTwoSidedP(x);
-    default: throw new Error(`unknown fn ${fn}`);
+    case "t_ppf":
+      return tQuantile(p, df);
+    case "t_cdf":
+      return tCdf(x, df);
+    case "t_two_sided_p":
+      return tTwoSidedP(x, df);
+    case "f_sf":
+      return fSurvival(x, df1, df2);
+    case "f_cdf":
+      return fCdf(x, df1, df2);
+    case "f_ppf":
+      return fQuantile(p, df1, df2);
+    case "chi2_sf":
+      return chiSquareSurvival(x, df);
+    case "chi2_ppf":
+      return chiSquareQuantile(p, df);
+    case "norm_ppf":
+      return normalQuantile(p);
+    case "norm_cdf":
+      return normalCdf(x);
+    case "norm_two_sided_p":
+      return normalTwoSidedP(x);
+    default:
+      throw new Error(`unknown fn ${fn}`);
   }
 }
 

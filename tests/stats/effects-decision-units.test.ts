@@ -18,7 +18,12 @@ import { CLOSED_FORM, expectClose, loadJsonFixture } from "@/tests/stats/fixture
 
 describe("effects against the check", () => {
   it("mean difference with variance 2·MSE/r (Steel, Torrie & Dickey 1997 §8.4)", () => {
-    const effect = meanDifferenceEffect({ treatmentMean: 57.6833333333333, checkMean: 52.0666666666667, mse: 20.2228431372549, replicates: 12 });
+    const effect = meanDifferenceEffect({
+      treatmentMean: 57.6833333333333,
+      checkMean: 52.0666666666667,
+      mse: 20.2228431372549,
+      replicates: 12,
+    });
     expectClose(effect.yi, 5.6166666666666, 1e-12, "yi");
     // npk aov(yield ~ block + N): SED = 1.83588503349451, so vi = SED².
     expectClose(effect.vi, 1.83588503349451 ** 2, CLOSED_FORM, "vi = SED²");
@@ -38,7 +43,18 @@ describe("effects against the check", () => {
 
   it("combineWithinSiteYear: mean of m contrasts, var = Σ Cov / m² (Borenstein et al. 2009 ch. 24)", () => {
     // Two treatments vs one check, r = 4, MSE = 16: var 8 each, covariance 4.
-    expect(combineWithinSiteYear([{ yi: 4, vi: 8 }, { yi: 6, vi: 8 }], [[8, 4], [4, 8]])).toEqual({ yi: 5, vi: 6 });
+    expect(
+      combineWithinSiteYear(
+        [
+          { yi: 4, vi: 8 },
+          { yi: 6, vi: 8 },
+        ],
+        [
+          [8, 4],
+          [4, 8],
+        ],
+      ),
+    ).toEqual({ yi: 5, vi: 6 });
     // Ignoring the covariance would give 4, too small: the check's noise is shared.
     expect(() => combineWithinSiteYear([{ yi: 4, vi: 8 }], [[9]])).toThrow(/covariance\[0\]\[0\]/);
     expect(() => combineWithinSiteYear([], [])).toThrow(/no contrasts/);
@@ -59,8 +75,18 @@ describe("decision numbers", () => {
     expectClose(probability, 1 - tCdf((0 - fit.estimate) / spread, 7), 1e-15, "probability");
     // At the HTS prediction bounds the probability is 0.975 and 0.025.
     const expected = normand.models.REML;
-    expectClose(probabilityNewResponseAbove({ x: expected.pi_hts_tkm2_lb, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k: 9 }).probability, 0.975, 1e-7, "at lower PI");
-    expectClose(probabilityNewResponseAbove({ x: expected.pi_hts_tkm2_ub, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k: 9 }).probability, 0.025, 1e-6, "at upper PI");
+    expectClose(
+      probabilityNewResponseAbove({ x: expected.pi_hts_tkm2_lb, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k: 9 }).probability,
+      0.975,
+      1e-7,
+      "at lower PI",
+    );
+    expectClose(
+      probabilityNewResponseAbove({ x: expected.pi_hts_tkm2_ub, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k: 9 }).probability,
+      0.025,
+      1e-6,
+      "at upper PI",
+    );
     const small = probabilityNewResponseAbove({ x: 0, estimate: 1, se: 1, tau2: 1, k: 2 });
     expect(small.probability).toBeNull();
     expect(small.note).toMatch(/at least 3/);
@@ -142,7 +168,12 @@ describe("unit conversions", () => {
   });
 
   it("grade → nutrient rates, fluid densities (Univ. of Nebraska PASSEL; Alabama Extension ANR-174)", () => {
-    expect(units.parseFertilizerGrade("12-0-0-26S")).toEqual({ nitrogenPercent: 12, phosphatePercent: 0, potashPercent: 0, sulfurPercent: 26 });
+    expect(units.parseFertilizerGrade("12-0-0-26S")).toEqual({
+      nitrogenPercent: 12,
+      phosphatePercent: 0,
+      potashPercent: 0,
+      sulfurPercent: 26,
+    });
     expect(() => units.parseFertilizerGrade("ten-34-0")).toThrow(/not of the form/);
     const product = units.fluidProductPoundsPerAcre(5, units.fluidFertilizerDensityPoundsPerGallon["10-34-0"]);
     expectClose(product, 57, 1e-15, "5 gal/ac of 10-34-0");

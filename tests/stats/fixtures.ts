@@ -27,7 +27,8 @@ export function loadCsvFixture(name: string): Record<string, string>[] {
     .filter((line) => !line.startsWith("#"))
     .join("\n");
   const parsed = Papa.parse<Record<string, string>>(text, { header: true, skipEmptyLines: true, dynamicTyping: false });
-  if (parsed.errors.length > 0) throw new Error(`${name}: ${parsed.errors.map((error) => `row ${error.row}: ${error.message}`).join("; ")}`);
+  if (parsed.errors.length > 0)
+    throw new Error(`${name}: ${parsed.errors.map((error) => `row ${error.row}: ${error.message}`).join("; ")}`);
   return parsed.data;
 }
 
@@ -46,7 +47,12 @@ function relativeError(actual: number, expected: number): number {
 }
 
 /** Asserts |actual − expected|/|expected| <= tolerance (absolute when expected is 0), naming the value on failure. */
-export function expectClose(actual: number | null | undefined, expected: number | null | undefined, tolerance: number, label: string): void {
+export function expectClose(
+  actual: number | null | undefined,
+  expected: number | null | undefined,
+  tolerance: number,
+  label: string,
+): void {
   if (expected === null || expected === undefined) {
     expect(actual ?? null, `${label}: expected no value`).toBeNull();
     return;

@@ -30,7 +30,12 @@ describe("Curtis & Wang 1998 / Hedges et al. 1999 (Ecology 80:1150–1156), ROM,
     rows.forEach((row, index) => {
       const [m1, m2, s1, s2, n1, n2] = ["m1i", "m2i", "sd1i", "sd2i", "n1i", "n2i"].map((name) => Number(row[name])) as number[];
       expectClose(yi[index], Math.log((m1 as number) / (m2 as number)), CLOSED_FORM, `yi ${index + 1}`);
-      expectClose(vi[index], (s1 as number) ** 2 / ((n1 as number) * (m1 as number) ** 2) + (s2 as number) ** 2 / ((n2 as number) * (m2 as number) ** 2), CLOSED_FORM, `vi ${index + 1}`);
+      expectClose(
+        vi[index],
+        (s1 as number) ** 2 / ((n1 as number) * (m1 as number) ** 2) + (s2 as number) ** 2 / ((n2 as number) * (m2 as number) ** 2),
+        CLOSED_FORM,
+        `vi ${index + 1}`,
+      );
     });
   });
 
@@ -72,18 +77,30 @@ describe("Curtis & Wang 1998 / Hedges et al. 1999 (Ecology 80:1150–1156), ROM,
     }
     for (const method of ["FE", "DL", "REML"] as const) {
       it(`separate_${method}: one rma(method = "${method}") per fungrp level + Q_between`, () => {
-        expectSeparateFitsMatch(subgroupAnalysis({ yi, vi, groups, method, ci: "wald" }), fixture[`separate_${method}`], `separate_${method}`);
+        expectSeparateFitsMatch(
+          subgroupAnalysis({ yi, vi, groups, method, ci: "wald" }),
+          fixture[`separate_${method}`],
+          `separate_${method}`,
+        );
       });
     }
   });
 
   describe("metadat help examples: rma(yi, vi, method = 'DL', subset = xtrt == X & level == 'LOW'); predict(res, transf = exp)", () => {
-    for (const [key, xtrt] of [["FERT_LOW", "FERT"], ["LIGHT_LOW", "LIGHT"]] as const) {
+    for (const [key, xtrt] of [
+      ["FERT_LOW", "FERT"],
+      ["LIGHT_LOW", "LIGHT"],
+    ] as const) {
       it(`${key}`, () => {
         const indices = rows.flatMap((row, index) => (row.xtrt === xtrt && row.level === "LOW" ? [index] : []));
         const expected = results.help_example_subsets[key];
         expect(indices).toHaveLength(expected.subset_k);
-        const fit = metaAnalysis({ yi: indices.map((i) => yi[i] as number), vi: indices.map((i) => vi[i] as number), method: "DL", ci: "wald" });
+        const fit = metaAnalysis({
+          yi: indices.map((i) => yi[i] as number),
+          vi: indices.map((i) => vi[i] as number),
+          method: "DL",
+          ci: "wald",
+        });
         expectModelMatches(fit, expected, key);
         expectClose(Math.exp(fit.estimate), expected.ratio_of_means, CLOSED_FORM, `${key} ratio`);
         expectClose(Math.exp(fit.ciLower), expected.ratio_ci[0], CLOSED_FORM, `${key} ratio ci_lb`);

@@ -81,7 +81,12 @@ export function expectHeterogeneityIntervalMatches(result: MetaAnalysisResult, e
   expectClose(interval.tau2.estimate, expected.tau2.estimate, toleranceFor(result.method), `${label} tau2 estimate`);
 }
 
-function expectCoefficientMatches(actual: MetaRegressionResult["coefficients"][number] | undefined, expected: any, tolerance: number, label: string) {
+function expectCoefficientMatches(
+  actual: MetaRegressionResult["coefficients"][number] | undefined,
+  expected: any,
+  tolerance: number,
+  label: string,
+) {
   expect(actual, `${label} coefficient`).toBeDefined();
   expectClose(actual?.estimate, expected.estimate, tolerance, `${label} estimate`);
   expectClose(actual?.se, expected.se, tolerance, `${label} se`);
@@ -99,7 +104,12 @@ export function expectCommonTauSquaredMatches(result: SubgroupResult, expected: 
   const { differences, perLevel, r2Percent } = result.commonTau2;
   expect(differences.p).toBe(expected.p);
   for (const [name, coefficient] of Object.entries<any>(expected.coefficients)) {
-    expectCoefficientMatches(differences.coefficients.find((c) => c.name === name), coefficient, tolerance, `${label} ${name}`);
+    expectCoefficientMatches(
+      differences.coefficients.find((c) => c.name === name),
+      coefficient,
+      tolerance,
+      `${label} ${name}`,
+    );
   }
   expectClose(differences.qm?.statistic, expected.QM, tolerance, `${label} QM`);
   expect(differences.qm?.df).toEqual(expected.QM_df);
@@ -114,7 +124,12 @@ export function expectCommonTauSquaredMatches(result: SubgroupResult, expected: 
   expectClose(differences.h2, expected.H2_resid, tolerance, `${label} H2 resid`);
   expectClose(r2Percent ?? 0, expected.R2_pct, tolerance, `${label} R2`);
   for (const [level, estimate] of Object.entries<any>(expected.per_level_estimates)) {
-    expectCoefficientMatches(perLevel.coefficients.find((c) => c.name === level), estimate, tolerance, `${label} level ${level}`);
+    expectCoefficientMatches(
+      perLevel.coefficients.find((c) => c.name === level),
+      estimate,
+      tolerance,
+      `${label} level ${level}`,
+    );
   }
   expectClose(perLevel.qm?.statistic, expected.QM_all_zero, tolerance, `${label} QM all zero`);
   expectClose(perLevel.qm?.pValue, expected.QM_all_zero_pval, tolerance, `${label} QM all zero p`);

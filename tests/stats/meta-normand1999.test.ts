@@ -47,7 +47,12 @@ describe("Normand 1999 (Stat Med 18:321–359), metafor 3.8-1 rma()", () => {
     const expected = results.models.DL.heterogeneity_ci;
     expectHeterogeneityIntervalMatches(
       result,
-      { ...expected, tau2: { ...expected.tau2, ci_ub: results.models.REML.heterogeneity_ci.tau2.ci_ub }, H2: results.models.REML.heterogeneity_ci.H2, tau: results.models.REML.heterogeneity_ci.tau },
+      {
+        ...expected,
+        tau2: { ...expected.tau2, ci_ub: results.models.REML.heterogeneity_ci.tau2.ci_ub },
+        H2: results.models.REML.heterogeneity_ci.H2,
+        tau: results.models.REML.heterogeneity_ci.tau,
+      },
       "DL",
     );
     // metafor's reported DL upper bound equals its search limit 10·tau2_DL (it warns in that case).

@@ -36,11 +36,14 @@ const certified = loadJsonFixture<{ datasets: Record<string, Certified> }>("nist
 
 /** Reads "group value" pairs; with `decimalOrigin`, subtracts that integer from the decimal text before conversion. */
 function readDataset(entry: Certified, decimalOrigin?: bigint): { label: string; values: number[] }[] {
-  const lines = loadTextFixture(entry.file).split(/\r?\n/).slice(entry.data_first_line - 1, entry.data_last_line);
+  const lines = loadTextFixture(entry.file)
+    .split(/\r?\n/)
+    .slice(entry.data_first_line - 1, entry.data_last_line);
   const groups = new Map<string, number[]>();
   lines.forEach((line, index) => {
     const [group, text] = line.trim().split(/\s+/);
-    if (group === undefined || text === undefined) throw new Error(`${entry.file} line ${entry.data_first_line + index}: expected "group value"`);
+    if (group === undefined || text === undefined)
+      throw new Error(`${entry.file} line ${entry.data_first_line + index}: expected "group value"`);
     let value: number;
     if (decimalOrigin === undefined) {
       value = Number(text);
@@ -72,7 +75,17 @@ function worstLre(result: ReturnType<typeof oneWayAnova>, entry: Certified): Rec
 
 /** LRE each dataset reaches from plain doubles (see the header comment). */
 const minimumLrePlain: Record<string, number> = {
-  SiRstv: 12.5, SmLs01: 14.5, SmLs02: 14.5, SmLs03: 12.5, SmLs04: 9.5, SmLs05: 9.5, SmLs06: 9.5, SmLs07: 3.8, SmLs08: 3.8, SmLs09: 3.8, AtmWtAg: 10,
+  SiRstv: 12.5,
+  SmLs01: 14.5,
+  SmLs02: 14.5,
+  SmLs03: 12.5,
+  SmLs04: 9.5,
+  SmLs05: 9.5,
+  SmLs06: 9.5,
+  SmLs07: 3.8,
+  SmLs08: 3.8,
+  SmLs09: 3.8,
+  AtmWtAg: 10,
 };
 
 describe("one-way ANOVA vs NIST StRD ANOVA certified values (Simon & Lesage 1989; NIST ITL)", () => {

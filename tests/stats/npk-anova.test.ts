@@ -16,7 +16,13 @@ const response = numericColumn(rows, "yield");
 const factor = (name: string) => ({ values: rows.map((row) => row[name] as string) });
 const factors = { block: factor("block"), N: factor("N"), P: factor("P"), K: factor("K") };
 
-interface TableEntry { df: number; SS: number; MS: number; F: number | null; p: number | null }
+interface TableEntry {
+  df: number;
+  SS: number;
+  MS: number;
+  F: number | null;
+  p: number | null;
+}
 
 function expectTable(fit: LinearModelFit, table: Record<string, TableEntry>, label: string): void {
   const terms = Object.keys(table).filter((term) => term !== "Residuals");

@@ -124,7 +124,11 @@ describe("rcbdAnova — the balanced closed form agrees with the least-squares f
   it("an exact fit up to round-off has MSE 0 and no F test in either fit", () => {
     const ys = [1000, 1000, 1000, 1000.0000000000001];
     const plots: RcbdPlot[] = ys.map((y, i) => ({ treatment: i < 2 ? "T0" : "T1", block: "1", y }));
-    const ls = fitLinearModel({ response: ys, factors: { block: { values: plots.map((p) => p.block) }, treatment: { values: plots.map((p) => p.treatment) } }, terms: [["block"], ["treatment"]] });
+    const ls = fitLinearModel({
+      response: ys,
+      factors: { block: { values: plots.map((p) => p.block) }, treatment: { values: plots.map((p) => p.treatment) } },
+      terms: [["block"], ["treatment"]],
+    });
     const result = rcbdAnova(plots);
     expect(result.balanced).toBe(true);
     expect(result.mse).toBe(0);
@@ -143,9 +147,11 @@ describe("rcbdAnova — the balanced closed form agrees with the least-squares f
         fc.array(fc.double({ min: 1000, max: 6000, noNaN: true }), { minLength: 108, maxLength: 108 }),
         (t, b, c, values) => {
           const plots: RcbdPlot[] = [];
-          for (let ti = 0; ti < t; ti++) for (let bi = 0; bi < b; bi++) for (let ci = 0; ci < c; ci++) {
-            plots.push({ treatment: `T${ti}`, block: `${bi + 1}`, y: values[plots.length]! });
-          }
+          for (let ti = 0; ti < t; ti++)
+            for (let bi = 0; bi < b; bi++)
+              for (let ci = 0; ci < c; ci++) {
+                plots.push({ treatment: `T${ti}`, block: `${bi + 1}`, y: values[plots.length]! });
+              }
           const result = rcbdAnova(plots);
           expect(result.balanced).toBe(true);
           const ls = fitLinearModel({
@@ -171,7 +177,10 @@ describe("rcbdAnova — the balanced closed form agrees with the least-squares f
           // Balanced: the treatment means are independent, each with variance MSE/(b·c).
           const mse = ls.residual.meanSquare;
           if (mse === null) expect(result.adjustedMeanCovariance).toBeNull();
-          else result.adjustedMeanCovariance!.forEach((row, i) => row.forEach((v, j) => close(v, i === j ? mse / (b * c) : 0, `cov ${i},${j}`)));
+          else
+            result.adjustedMeanCovariance!.forEach((row, i) =>
+              row.forEach((v, j) => close(v, i === j ? mse / (b * c) : 0, `cov ${i},${j}`)),
+            );
         },
       ),
       { numRuns: 300 },

@@ -48,12 +48,25 @@ export async function insertAnalysisFixture(ctx: AppContext, input: FixtureDatas
     (
       await db
         .insert(datasets)
-        .values({ slug: input.slug, title: `Fixture ${input.slug}`, crops: ["soybean"], region: "Tallgrass Basin", description: "Test fixture", licence: input.licence ?? "CC-BY-4.0", ownerId: owner.id })
+        .values({
+          slug: input.slug,
+          title: `Fixture ${input.slug}`,
+          crops: ["soybean"],
+          region: "Tallgrass Basin",
+          description: "Test fixture",
+          licence: input.licence ?? "CC-BY-4.0",
+          ownerId: owner.id,
+        })
         .returning()
     )[0]!;
   const [version] = await db
     .insert(versions)
-    .values({ datasetId: dataset.id, semver: input.semver ?? "1.0.0", tableSchema: { resources: {} } as TableSchemaDescriptor, createdBy: owner.id })
+    .values({
+      datasetId: dataset.id,
+      semver: input.semver ?? "1.0.0",
+      tableSchema: { resources: {} } as TableSchemaDescriptor,
+      createdBy: owner.id,
+    })
     .returning();
   const versionId = version!.id;
   const siteIds = new Map<string, number>();
@@ -79,7 +92,17 @@ export async function insertAnalysisFixture(ctx: AppContext, input: FixtureDatas
     if (!siteYearIds.has(r.siteYear)) {
       const [sy] = await db
         .insert(siteYears)
-        .values({ versionId, siteId: siteIds.get(siteCode)!, code: r.siteYear, crop, year, blocks: r.replicates ?? 4, tillage: r.tillage ?? null, rowSpacingIn: r.rowSpacingIn ?? null, plantingDate: r.plantingDate ?? null })
+        .values({
+          versionId,
+          siteId: siteIds.get(siteCode)!,
+          code: r.siteYear,
+          crop,
+          year,
+          blocks: r.replicates ?? 4,
+          tillage: r.tillage ?? null,
+          rowSpacingIn: r.rowSpacingIn ?? null,
+          plantingDate: r.plantingDate ?? null,
+        })
         .returning({ id: siteYears.id });
       siteYearIds.set(r.siteYear, sy!.id);
     }
@@ -125,7 +148,10 @@ export async function insertAnalysisFixture(ctx: AppContext, input: FixtureDatas
       .returning();
     inserted.push(row!);
   }
-  await db.update(versions).set({ state: input.state ?? "published", publishedAt: new Date() }).where(eq(versions.id, versionId));
+  await db
+    .update(versions)
+    .set({ state: input.state ?? "published", publishedAt: new Date() })
+    .where(eq(versions.id, versionId));
   return { dataset, versionId, responses: inserted };
 }
 

@@ -22,7 +22,6 @@ export function takeAnswerMismatches(): string[] {
   return mismatches.splice(0);
 }
 
-
 interface Operation {
   method: string;
   template: string;
@@ -62,13 +61,15 @@ export function answerChecker(doc: OpenApiDocument): AnswerChecker {
       const where = `${method} ${path} → ${status}`;
       if (!op) return null; // Not an operation (unknown /api paths answer 404 from the fallback): the contract test covers routes.
       const statusKey = [String(status), `${String(status)[0]}XX`, "default"].find((k) => op.responses[k]);
-      if (!statusKey) return `${where}: status ${status} is not declared for ${op.method} ${op.template} (declared: ${Object.keys(op.responses).join(", ")})`;
+      if (!statusKey)
+        return `${where}: status ${status} is not declared for ${op.method} ${op.template} (declared: ${Object.keys(op.responses).join(", ")})`;
       const declared = op.responses[statusKey]!;
       if (body.length === 0) return null;
       const type = (contentType ?? "").split(";")[0]!.trim().toLowerCase();
       if (!declared.content) return `${where}: answered ${type || "a body"} but ${op.template} declares no content for ${statusKey}`;
       const media = declared.content[type];
-      if (!media) return `${where}: answered ${type || "no content type"}, ${op.template} declares ${Object.keys(declared.content).join(", ")} for ${statusKey}`;
+      if (!media)
+        return `${where}: answered ${type || "no content type"}, ${op.template} declares ${Object.keys(declared.content).join(", ")} for ${statusKey}`;
       if (!/[/+]json$/.test(type) || media.schema === undefined) return null;
       const pointer = `openapi.json#/paths/${escapePointer(op.template)}/${op.method.toLowerCase()}/responses/${statusKey}/content/${escapePointer(type)}/schema`;
       let validate = validators.get(pointer);
@@ -103,7 +104,9 @@ export function answerCheckMiddleware(document: () => OpenApiDocument): RequestH
     const end = res.end.bind(res) as (...args: unknown[]) => Response;
     const keep = (chunk: unknown, encoding: unknown) => {
       if (chunk === undefined || chunk === null || typeof chunk === "function") return;
-      chunks.push(Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk as string, typeof encoding === "string" ? (encoding as BufferEncoding) : "utf8"));
+      chunks.push(
+        Buffer.isBuffer(chunk) ? chunk : Buffer.from(chunk as string, typeof encoding === "string" ? (encoding as BufferEncoding) : "utf8"),
+      );
     };
     res.write = ((chunk: unknown, encoding?: unknown, cb?: unknown) => {
       keep(chunk, encoding);
@@ -113,7 +116,13 @@ export function answerCheckMiddleware(document: () => OpenApiDocument): RequestH
       keep(chunk, encoding);
       checker ??= answerChecker(document());
       const path = req.originalUrl.split("?")[0]!;
-      const problem = checker.check(req.method, path, res.statusCode, res.getHeader("content-type") as string | undefined, Buffer.concat(chunks));
+      const problem = checker.check(
+        req.method,
+        path,
+        res.statusCode,
+        res.getHeader("content-type") as string | undefined,
+        Buffer.concat(chunks),
+      );
       if (problem) mismatches.push(problem);
       return end(chunk, encoding, cb);
     }) as Response["end"];

@@ -39,7 +39,8 @@ export async function citableFixture(
       title: "Soybean starter phosphorus placement in the Tallgrass Basin",
       crops: ["soybean"],
       region: "Tallgrass Basin (invented), temperate uplands",
-      description: "Invented demonstration trials: starter P placement (check, in-furrow, 2x2 band, broadcast) on soybean across soil-test P classes.",
+      description:
+        "Invented demonstration trials: starter P placement (check, in-furrow, 2x2 band, broadcast) on soybean across soil-test P classes.",
       licence: "CC-BY-4.0",
       keywords: ["soybean", "phosphorus", "starter fertilizer"],
       contributors,
@@ -57,9 +58,14 @@ export async function citableFixture(
         .insert(versions)
         .values({ datasetId: d.id, semver, createdBy: owner.id, tableSchema: defaultTableSchema(), changelog: `Version ${semver}` })
         .returning();
-      const [site] = await ctx.db.insert(sites).values({ versionId: v!.id, code: "TB-01", location: "Tallgrass County (invented)" }).returning();
+      const [site] = await ctx.db
+        .insert(sites)
+        .values({ versionId: v!.id, code: "TB-01", location: "Tallgrass County (invented)" })
+        .returning();
       for (let year = from; year <= to; year++) {
-        await ctx.db.insert(siteYears).values({ versionId: v!.id, siteId: site!.id, code: `TB-01-${year}`, crop: "soybean", year, blocks: 4 });
+        await ctx.db
+          .insert(siteYears)
+          .values({ versionId: v!.id, siteId: site!.id, code: `TB-01-${year}`, crop: "soybean", year, blocks: 4 });
       }
       const publishedAt = options.publishedAt ?? new Date(Date.UTC(2025, 2, 14, 12));
       await ctx.db

@@ -17,7 +17,8 @@ import Papa from "papaparse";
  */
 
 const profileDir = path.join(__dirname, "../fixtures/frictionless");
-const loadProfile = (version: "1.0" | "2.0") => JSON.parse(readFileSync(path.join(profileDir, version, "datapackage.json"), "utf8")) as object;
+const loadProfile = (version: "1.0" | "2.0") =>
+  JSON.parse(readFileSync(path.join(profileDir, version, "datapackage.json"), "utf8")) as object;
 
 let validators: Record<"1.0" | "2.0" | "tableschema-2.0", ReturnType<Ajv["compile"]>> | undefined;
 function profileValidators() {
@@ -26,7 +27,11 @@ function profileValidators() {
     const ajv = new Ajv({ strict: false, allErrors: true });
     addFormats(ajv);
     const tableSchema = JSON.parse(readFileSync(path.join(profileDir, "2.0", "tableschema.json"), "utf8")) as object;
-    validators = { "1.0": ajv.compile(loadProfile("1.0")), "2.0": ajv.compile(loadProfile("2.0")), "tableschema-2.0": ajv.compile(tableSchema) };
+    validators = {
+      "1.0": ajv.compile(loadProfile("1.0")),
+      "2.0": ajv.compile(loadProfile("2.0")),
+      "tableschema-2.0": ajv.compile(tableSchema),
+    };
   }
   return validators;
 }
@@ -38,7 +43,8 @@ function profileValidators() {
 export function checkCsvAgainstTableSchema(name: string, schema: unknown, csv: string): string[] {
   const problems: string[] = [];
   const validate = profileValidators()["tableschema-2.0"];
-  if (!validate(schema)) for (const e of validate.errors ?? []) problems.push(`Table Schema 2.0 profile: ${e.instancePath || "/"} ${e.message ?? ""}`);
+  if (!validate(schema))
+    for (const e of validate.errors ?? []) problems.push(`Table Schema 2.0 profile: ${e.instancePath || "/"} ${e.message ?? ""}`);
   const resource = { name, path: "", bytes: 0, hash: "", schema: schema as PackageResource["schema"] };
   problems.push(...checkTable(resource, csv).problems);
   return problems;
@@ -47,7 +53,16 @@ export function checkCsvAgainstTableSchema(name: string, schema: unknown, csv: s
 interface PackageField {
   name: string;
   type: string;
-  constraints?: { required?: boolean; unique?: boolean; minimum?: number; maximum?: number; minLength?: number; maxLength?: number; pattern?: string; enum?: string[] };
+  constraints?: {
+    required?: boolean;
+    unique?: boolean;
+    minimum?: number;
+    maximum?: number;
+    minLength?: number;
+    maxLength?: number;
+    pattern?: string;
+    enum?: string[];
+  };
 }
 interface PackageResource {
   name: string;
@@ -71,7 +86,8 @@ export async function checkDataPackage(descriptor: unknown, readPath: (resourceP
   const { "1.0": v1, "2.0": v2 } = profileValidators();
   for (const [version, validate] of Object.entries({ "1.0": v1, "2.0": v2 })) {
     if (!validate(descriptor)) {
-      for (const e of validate.errors ?? []) problems.push(`profile ${version}: ${e.instancePath || "/"} ${e.message ?? ""} ${JSON.stringify(e.params)}`);
+      for (const e of validate.errors ?? [])
+        problems.push(`profile ${version}: ${e.instancePath || "/"} ${e.message ?? ""} ${JSON.stringify(e.params)}`);
     }
   }
   const dp = descriptor as PackageDescriptor;
@@ -89,14 +105,19 @@ export async function checkDataPackage(descriptor: unknown, readPath: (resourceP
     for (const fk of r.schema.foreignKeys ?? []) {
       const target = tables.get(fk.reference.resource);
       if (!target) {
-        problems.push(`${r.name}: foreign key ${fk.fields.join("+")} names resource "${fk.reference.resource}", which the package does not have`);
+        problems.push(
+          `${r.name}: foreign key ${fk.fields.join("+")} names resource "${fk.reference.resource}", which the package does not have`,
+        );
         continue;
       }
       const key = (row: Record<string, string | null>, fields: string[]) => JSON.stringify(fields.map((f) => row[f]));
       const known = new Set(target.map((row) => key(row, fk.reference.fields)));
       (tables.get(r.name) ?? []).forEach((row, i) => {
         if (fk.fields.some((f) => row[f] === null)) return;
-        if (!known.has(key(row, fk.fields))) problems.push(`${r.name} row ${i + 2}: ${fk.fields.join("+")} ${key(row, fk.fields)} is not in ${fk.reference.resource}.${fk.reference.fields.join("+")}`);
+        if (!known.has(key(row, fk.fields)))
+          problems.push(
+            `${r.name} row ${i + 2}: ${fk.fields.join("+")} ${key(row, fk.fields)} is not in ${fk.reference.resource}.${fk.reference.fields.join("+")}`,
+          );
       });
     }
   }
@@ -139,7 +160,8 @@ function checkTable(r: PackageResource, text: string): { rows: Record<string, st
   for (const e of parsed.errors) problems.push(`${r.name} row ${(e.row ?? 0) + 1}: ${e.message}`);
   const [header = [], ...body] = parsed.data;
   const names = r.schema.fields.map((f) => f.name);
-  if (JSON.stringify(header) !== JSON.stringify(names)) problems.push(`${r.name}: header ${header.join(",")} is not the schema's fields ${names.join(",")}`);
+  if (JSON.stringify(header) !== JSON.stringify(names))
+    problems.push(`${r.name}: header ${header.join(",")} is not the schema's fields ${names.join(",")}`);
   const missing = new Set((r.schema.missingValues ?? [""]).map((m) => (typeof m === "string" ? m : m.value)));
   const rows: Record<string, string | null>[] = [];
   const unique = new Map<string, Set<string>>();

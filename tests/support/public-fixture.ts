@@ -67,9 +67,36 @@ function random(seed: number) {
 }
 
 const soySites: SiteSpec[] = [
-  { code: "TB-01", location: "=Prairie County", soilSeries: 'Tallgrass "A", silt loam', pClass: "very_low", pPpm: 6, kClass: "optimum", tillage: "no-till", rowSpacingIn: 30 },
-  { code: "TB-02", location: "Bluestem County", soilSeries: "Bluestem", pClass: "optimum", pPpm: 18, kClass: "high", tillage: "conventional", rowSpacingIn: 15 },
-  { code: "TB-03", location: "+Cedar grid 14", soilSeries: "Cedar", pClass: "high", pPpm: 30, kClass: "low", tillage: "strip-till", rowSpacingIn: 30 },
+  {
+    code: "TB-01",
+    location: "=Prairie County",
+    soilSeries: 'Tallgrass "A", silt loam',
+    pClass: "very_low",
+    pPpm: 6,
+    kClass: "optimum",
+    tillage: "no-till",
+    rowSpacingIn: 30,
+  },
+  {
+    code: "TB-02",
+    location: "Bluestem County",
+    soilSeries: "Bluestem",
+    pClass: "optimum",
+    pPpm: 18,
+    kClass: "high",
+    tillage: "conventional",
+    rowSpacingIn: 15,
+  },
+  {
+    code: "TB-03",
+    location: "+Cedar grid 14",
+    soilSeries: "Cedar",
+    pClass: "high",
+    pPpm: 30,
+    kClass: "low",
+    tillage: "strip-till",
+    rowSpacingIn: 30,
+  },
 ];
 
 const soyTreatments: TreatmentSpec[] = [
@@ -136,10 +163,47 @@ const cornTreatments: TreatmentSpec[] = [
 ];
 
 const fixtureVersions: VersionSpec[] = [
-  { slug: "tb-soy-starter-p", semver: "0.9.0", crop: "soybean", years: [2020], sites: soySites.slice(0, 1), treatments: soyTreatments, baseKgHa: 3800, withdraw: "A plot key error swapped two blocks at TB-01.", seed: 9 },
-  { slug: "tb-soy-starter-p", semver: "1.0.0", crop: "soybean", years: [2020, 2021, 2022], sites: soySites.slice(0, 2), treatments: soyTreatments, baseKgHa: 3800, seed: 10 },
-  { slug: "tb-soy-starter-p", semver: "1.1.0", crop: "soybean", years: [2020, 2021, 2022], sites: soySites, treatments: soyTreatments, baseKgHa: 3800, seed: 11 },
-  { slug: "tb-corn-nk", semver: "1.0.0", crop: "corn", years: [2021, 2022], sites: soySites.slice(1, 3), treatments: cornTreatments, baseKgHa: 11000, seed: 20 },
+  {
+    slug: "tb-soy-starter-p",
+    semver: "0.9.0",
+    crop: "soybean",
+    years: [2020],
+    sites: soySites.slice(0, 1),
+    treatments: soyTreatments,
+    baseKgHa: 3800,
+    withdraw: "A plot key error swapped two blocks at TB-01.",
+    seed: 9,
+  },
+  {
+    slug: "tb-soy-starter-p",
+    semver: "1.0.0",
+    crop: "soybean",
+    years: [2020, 2021, 2022],
+    sites: soySites.slice(0, 2),
+    treatments: soyTreatments,
+    baseKgHa: 3800,
+    seed: 10,
+  },
+  {
+    slug: "tb-soy-starter-p",
+    semver: "1.1.0",
+    crop: "soybean",
+    years: [2020, 2021, 2022],
+    sites: soySites,
+    treatments: soyTreatments,
+    baseKgHa: 3800,
+    seed: 11,
+  },
+  {
+    slug: "tb-corn-nk",
+    semver: "1.0.0",
+    crop: "corn",
+    years: [2021, 2022],
+    sites: soySites.slice(1, 3),
+    treatments: cornTreatments,
+    baseKgHa: 11000,
+    seed: 20,
+  },
 ];
 
 export const blocks = [1, 2, 3, 4];
@@ -158,7 +222,11 @@ const fixtureTableSchema: TableSchemaDescriptor = {
     soil_tests: { fields: [codeField("siteYear"), codeField("analyte"), { name: "value", type: "number", unit: "ppm" }] },
     treatments: { fields: [codeField("treatment"), { name: "isCheck", type: "boolean" }], primaryKey: ["treatment"] },
     plots: {
-      fields: [codeField("siteYear"), codeField("plot"), { name: "yield", type: "number", unit: "kg/ha", description: "At the crop's standard moisture" }],
+      fields: [
+        codeField("siteYear"),
+        codeField("plot"),
+        { name: "yield", type: "number", unit: "kg/ha", description: "At the crop's standard moisture" },
+      ],
       missingValues: [{ value: "NA", label: "not harvested" }],
     },
     summaries: { fields: [codeField("siteYear"), codeField("treatment"), { name: "mean", type: "number", unit: "kg/ha" }] },
@@ -185,7 +253,13 @@ async function insertVersion(ctx: AppContext, ownerId: string, spec: VersionSpec
     )[0]!;
   const [version] = await db
     .insert(versions)
-    .values({ datasetId: dataset.id, semver: spec.semver, tableSchema: fixtureTableSchema, createdBy: ownerId, changelog: `Release ${spec.semver}` })
+    .values({
+      datasetId: dataset.id,
+      semver: spec.semver,
+      tableSchema: fixtureTableSchema,
+      createdBy: ownerId,
+      changelog: `Release ${spec.semver}`,
+    })
     .returning();
   const versionId = version!.id;
   const rand = random(spec.seed);
@@ -238,8 +312,28 @@ async function insertVersion(ctx: AppContext, ownerId: string, spec: VersionSpec
         })
         .returning();
       await db.insert(soilTests).values([
-        { versionId, siteYearId: sy!.id, analyte: "P", value: site.pPpm, unit: "ppm", extractant: "Bray-P1", depthIn: 6, class: site.pClass, interpretation: "tallgrass-basin-2024" },
-        { versionId, siteYearId: sy!.id, analyte: "K", value: 120, unit: "ppm", extractant: "ammonium acetate", depthIn: 6, class: site.kClass, interpretation: "tallgrass-basin-2024" },
+        {
+          versionId,
+          siteYearId: sy!.id,
+          analyte: "P",
+          value: site.pPpm,
+          unit: "ppm",
+          extractant: "Bray-P1",
+          depthIn: 6,
+          class: site.pClass,
+          interpretation: "tallgrass-basin-2024",
+        },
+        {
+          versionId,
+          siteYearId: sy!.id,
+          analyte: "K",
+          value: 120,
+          unit: "ppm",
+          extractant: "ammonium acetate",
+          depthIn: 6,
+          class: site.kClass,
+          interpretation: "tallgrass-basin-2024",
+        },
       ]);
       const factor = spec.crop === "soybean" ? classFactor[site.pClass]! : classFactor[site.kClass]!;
       const plotRows = spec.treatments.flatMap((t, ti) =>
@@ -258,12 +352,30 @@ async function insertVersion(ctx: AppContext, ownerId: string, spec: VersionSpec
         }),
       );
       await db.insert(plots).values(plotRows);
-      await insertResponses(ctx, { versionId, siteYearId: sy!.id, siteCode: site.code, code, crop: spec.crop, year, site, plantingDate, spec, treatmentId, plotRows });
+      await insertResponses(ctx, {
+        versionId,
+        siteYearId: sy!.id,
+        siteCode: site.code,
+        code,
+        crop: spec.crop,
+        year,
+        site,
+        plantingDate,
+        spec,
+        treatmentId,
+        plotRows,
+      });
     }
   }
-  await db.update(versions).set({ state: "published", publishedAt: new Date(), checksum: `fixture-${spec.slug}-${spec.semver}` }).where(eq(versions.id, versionId));
+  await db
+    .update(versions)
+    .set({ state: "published", publishedAt: new Date(), checksum: `fixture-${spec.slug}-${spec.semver}` })
+    .where(eq(versions.id, versionId));
   if (spec.withdraw) {
-    await db.update(versions).set({ state: "withdrawn", withdrawnAt: new Date(), withdrawnReason: spec.withdraw }).where(eq(versions.id, versionId));
+    await db
+      .update(versions)
+      .set({ state: "withdrawn", withdrawnAt: new Date(), withdrawnReason: spec.withdraw })
+      .where(eq(versions.id, versionId));
   }
   return { datasetId: dataset.id, versionId };
 }

@@ -4,7 +4,9 @@ import type { Db } from "@/db/client";
 import * as schema from "@/db/schema";
 
 /** Every application table, for whole-database comparisons: the tables db/schema declares. */
-const applicationTables: readonly string[] = (Object.values(schema) as unknown[]).filter((value): value is PgTable => is(value, PgTable)).map((table) => getTableName(table));
+const applicationTables: readonly string[] = (Object.values(schema) as unknown[])
+  .filter((value): value is PgTable => is(value, PgTable))
+  .map((table) => getTableName(table));
 
 /** An order-independent checksum of each table's rows (md5 over the rows' text, sorted). */
 export async function tableChecksums(db: Db, tables: readonly string[] = applicationTables): Promise<Record<string, string>> {

@@ -10,7 +10,11 @@ export async function versionFingerprint(ctx: AppContext, versionId: string): Pr
   const v = await ctx.db.execute(sql`select row_to_json(v)::text as j from versions v where id = ${versionId}`);
   hash.update((v as unknown as { rows: { j: string }[] }).rows[0]!.j);
   for (const table of versionTables) {
-    const r = await ctx.db.execute(sql.raw(`select coalesce(string_agg(row_to_json(t)::text, E'\\n' order by t.id), '') as j from ${table} t where version_id = '${versionId}'`));
+    const r = await ctx.db.execute(
+      sql.raw(
+        `select coalesce(string_agg(row_to_json(t)::text, E'\\n' order by t.id), '') as j from ${table} t where version_id = '${versionId}'`,
+      ),
+    );
     hash.update(`${table}:${(r as unknown as { rows: { j: string }[] }).rows[0]!.j}`);
   }
   return hash.digest("hex");

@@ -56,7 +56,13 @@ describe("the API client", () => {
   });
 
   it("an OK answer that is not JSON is an ApiError of kind not-json naming what came instead", async () => {
-    answer(() => new Response("<!doctype html><title>Sign in to the network</title>", { status: 200, headers: { "Content-Type": "text/html; charset=utf-8" } }));
+    answer(
+      () =>
+        new Response("<!doctype html><title>Sign in to the network</title>", {
+          status: 200,
+          headers: { "Content-Type": "text/html; charset=utf-8" },
+        }),
+    );
     const error = await apiErrorOf(api("/api/v1/health", health));
     expect(error.kind).toBe("not-json");
     expect(error.status).toBe(200);

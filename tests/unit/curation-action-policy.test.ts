@@ -4,7 +4,13 @@ import { canStartVersion, versionActions, type PolicyVersion } from "@/component
 const curator = { id: "u-curator", role: "curator" as const };
 const reviewer = { id: "u-reviewer", role: "reviewer" as const };
 
-const answer = (over: Partial<PolicyVersion> = {}): PolicyVersion => ({ canEdit: false, canReview: false, canReturn: false, canWithdraw: false, ...over });
+const answer = (over: Partial<PolicyVersion> = {}): PolicyVersion => ({
+  canEdit: false,
+  canReview: false,
+  canReturn: false,
+  canWithdraw: false,
+  ...over,
+});
 const list = (s: Set<string>) => [...s].sort();
 
 // Who may do what is the server's answer (tests/server/version-permissions.test.ts); the buttons follow it exactly.

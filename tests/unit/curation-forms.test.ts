@@ -12,7 +12,11 @@ describe("the dataset form against the shared contract", () => {
 
   it("starts with the CC-BY-4.0 licence and maps each schema issue to its input", () => {
     expect(blank.licence).toBe("CC-BY-4.0");
-    const body = toDatasetBody({ ...blank, slug: "Not A Slug", contributors: [{ name: "Tallgrass Basin Agronomy Network", role: "creator", orcid: "1234", affiliation: "" }] });
+    const body = toDatasetBody({
+      ...blank,
+      slug: "Not A Slug",
+      contributors: [{ name: "Tallgrass Basin Agronomy Network", role: "creator", orcid: "1234", affiliation: "" }],
+    });
     const parsed = datasetCreate.safeParse(body);
     expect(parsed.success).toBe(false);
     const issues = zodFieldIssues(parsed.error!);
@@ -23,8 +27,14 @@ describe("the dataset form against the shared contract", () => {
 
   it("drops blank optionals and splits keywords, so a filled form parses", () => {
     const body = toDatasetBody({
-      ...blank, slug: "starter-placement", title: "Starter placement", crops: ["soybean"], region: "Tallgrass Basin",
-      description: "Invented trials.", keywords: " starter, phosphorus ,, ", funding: "  ",
+      ...blank,
+      slug: "starter-placement",
+      title: "Starter placement",
+      crops: ["soybean"],
+      region: "Tallgrass Basin",
+      description: "Invented trials.",
+      keywords: " starter, phosphorus ,, ",
+      funding: "  ",
       contributors: [{ name: "A. Curator", role: "curator", orcid: " ", affiliation: "" }],
     });
     expect(body.keywords).toEqual(["starter", "phosphorus"]);
@@ -34,7 +44,11 @@ describe("the dataset form against the shared contract", () => {
   });
 
   it("server field errors (problem+json body.*) land on the same keys; others go above the buttons", () => {
-    const err = new ApiError(400, { type: "about:blank", title: "Bad request", status: 400, errors: [{ field: "body.slug", message: "is taken" }] }, "Bad request");
+    const err = new ApiError(
+      400,
+      { type: "about:blank", title: "Bad request", status: 400, errors: [{ field: "body.slug", message: "is taken" }] },
+      "Bad request",
+    );
     expect(serverFieldIssues(err)).toEqual({ slug: "is taken" });
     expect(serverFieldIssues(new ApiError(409, null, "Conflict here"))).toEqual({ "": "Conflict here" });
   });

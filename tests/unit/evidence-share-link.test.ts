@@ -48,7 +48,15 @@ describe("share links", () => {
   });
 
   it("drop what the API would refuse, keeping the rest", () => {
-    const s = evidenceStateFromParams({ nutrient: "P,Zn", soilTestClass: "low", method: "ML", yearFrom: "abc", version: "1.0.0", price: "-3", colour: "red" });
+    const s = evidenceStateFromParams({
+      nutrient: "P,Zn",
+      soilTestClass: "low",
+      method: "ML",
+      yearFrom: "abc",
+      version: "1.0.0",
+      price: "-3",
+      colour: "red",
+    });
     expect(s.filters).toEqual({ soilTestClass: ["low"] });
     expect(s.method).toBe("REML");
     expect(s.price).toBeUndefined();
@@ -77,7 +85,9 @@ describe("share links", () => {
   });
 
   it("build the share URL and a shell-safe curl line", () => {
-    expect(shareUrl("http://127.0.0.1:8080/", { ...defaultEvidenceState, filters: { dataset: "tb-starter" } })).toBe("http://127.0.0.1:8080/?dataset=tb-starter");
+    expect(shareUrl("http://127.0.0.1:8080/", { ...defaultEvidenceState, filters: { dataset: "tb-starter" } })).toBe(
+      "http://127.0.0.1:8080/?dataset=tb-starter",
+    );
     expect(curlCommand("http://x/api?a=1&b=2")).toBe("curl -H 'Accept: application/json' 'http://x/api?a=1&b=2'");
     expect(curlCommand("http://x/it's")).toBe("curl -H 'Accept: application/json' 'http://x/it'\\''s'");
   });

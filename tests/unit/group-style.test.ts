@@ -24,10 +24,22 @@ describe("group colours and shapes", () => {
   });
 
   it("gives each level its own colour and shape, and distinct pairs well past the palette's length", () => {
-    const eight = groupStyles("placement", ["in-furrow", "2x2-band", "broadcast", "broadcast-incorporated", "surface-band", "side-dress", "foliar", "deep-band"]);
+    const eight = groupStyles("placement", [
+      "in-furrow",
+      "2x2-band",
+      "broadcast",
+      "broadcast-incorporated",
+      "surface-band",
+      "side-dress",
+      "foliar",
+      "deep-band",
+    ]);
     expect(new Set([...eight.values()].map((s) => s.colour)).size).toBe(8);
     expect(new Set([...eight.values()].map((s) => s.shape)).size).toBe(8);
-    const many = groupStyles("dataset", Array.from({ length: 40 }, (_, i) => `d${i}`));
+    const many = groupStyles(
+      "dataset",
+      Array.from({ length: 40 }, (_, i) => `d${i}`),
+    );
     expect(new Set([...many.values()].map((s) => `${s.colour}/${s.shape}`)).size).toBe(40);
     expect(groupShapes.length).toBe(groupPalette.length);
   });

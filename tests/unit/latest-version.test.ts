@@ -15,7 +15,12 @@ describe("the latest published version", () => {
   });
 
   it("per dataset, leaving out datasets with nothing published", () => {
-    const latest = latestPublishedByDataset([v("2.0.0", "published", "a"), v("2.1.0", "published", "a"), v("1.0.0", "withdrawn", "b"), v("0.9.0", "published", "c")]);
+    const latest = latestPublishedByDataset([
+      v("2.0.0", "published", "a"),
+      v("2.1.0", "published", "a"),
+      v("1.0.0", "withdrawn", "b"),
+      v("0.9.0", "published", "c"),
+    ]);
     expect(Object.fromEntries([...latest].map(([id, version]) => [id, version.semver]))).toEqual({ a: "2.1.0", c: "0.9.0" });
   });
 
@@ -31,7 +36,9 @@ describe("a withdrawn version's rows", () => {
   it("are gone: one 410 naming the version, the reason and the date, whoever serves them", () => {
     const gone = versionGone("tb-soy", "1.0.0", "Blocks 2 and 3 were swapped.", new Date("2026-05-01T00:00:00Z"));
     expect(gone.status).toBe(410);
-    expect(gone.detail).toBe('Version 1.0.0 of "tb-soy" was withdrawn: Blocks 2 and 3 were swapped. Its metadata stays available; its rows are no longer served.');
+    expect(gone.detail).toBe(
+      'Version 1.0.0 of "tb-soy" was withdrawn: Blocks 2 and 3 were swapped. Its metadata stays available; its rows are no longer served.',
+    );
     expect(gone.extra).toEqual({ withdrawnReason: "Blocks 2 and 3 were swapped.", withdrawnAt: "2026-05-01T00:00:00.000Z" });
     expect(versionGone("tb-soy", "1.0.0", null).detail).toContain("was withdrawn (no reason given). Its metadata stays available");
   });

@@ -26,18 +26,27 @@ const listed = readFileSync(path.join(referenceDirectory, "SHA256SUMS"), "utf8")
 
 describe("reference fixtures", () => {
   it("every data file in the folder has a checksum, and every checksum has its file", () => {
-    const present = filesUnder(referenceDirectory).filter((file) => !notData.has(file)).sort();
+    const present = filesUnder(referenceDirectory)
+      .filter((file) => !notData.has(file))
+      .sort();
     expect(listed.map((entry) => entry.file).sort()).toEqual(present);
     expect(present.length).toBeGreaterThanOrEqual(22);
   });
 
   it.each(listed)("$file matches its SHA-256", ({ file, sha256 }) => {
-    expect(createHash("sha256").update(readFileSync(path.join(referenceDirectory, file))).digest("hex")).toBe(sha256);
+    expect(
+      createHash("sha256")
+        .update(readFileSync(path.join(referenceDirectory, file)))
+        .digest("hex"),
+    ).toBe(sha256);
   });
 
   it("each results file names its source and the program versions that computed it", () => {
     for (const { file } of listed.filter((entry) => entry.file.endsWith("_results.json"))) {
-      const results = JSON.parse(readFileSync(path.join(referenceDirectory, file), "utf8")) as { source?: string; computed_with?: Record<string, string> };
+      const results = JSON.parse(readFileSync(path.join(referenceDirectory, file), "utf8")) as {
+        source?: string;
+        computed_with?: Record<string, string>;
+      };
       expect(results.source, file).toMatch(/\(\d{4}\)/);
       expect(results.computed_with?.metafor ?? results.computed_with?.R, file).toBeTruthy();
     }

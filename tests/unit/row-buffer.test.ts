@@ -21,7 +21,7 @@ describe("RowBuffer", () => {
     const parsed = Papa.parse<string[]>(chunks.join(""), { skipEmptyLines: true }).data;
     expect(parsed).toHaveLength(rows.length);
     // COPY's CSV: an empty unquoted field is NULL; strings are quoted with doubled quotes.
-    expect(parsed[0]).toEqual(["0b9f3c1e-1111-4222-8333-944445555666", "0", "", "plot \"0\", east\nedge", "true"]);
+    expect(parsed[0]).toEqual(["0b9f3c1e-1111-4222-8333-944445555666", "0", "", 'plot "0", east\nedge', "true"]);
     expect(parsed[4_502]).toEqual(["0b9f3c1e-1111-4222-8333-944445555666", "4502", String(3500.25 + 4502), "4502", "true"]);
     expect(chunks[0]!.startsWith('"0b9f3c1e-1111-4222-8333-944445555666",0,,"plot ""0"", east\nedge",true\n')).toBe(true);
   });

@@ -28,97 +28,141 @@ const adminOnly = requireRole("admin");
 export function adminRoutes(ctx: AppContext): Router {
   const { router, defineRoute } = routeModule(ctx.registry);
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/admin/users",
-    operationId: "listUsers",
-    tags: ["Admin"],
-    summary: "Everyone with an account, with e-mail and role",
-    guards: [adminOnly],
-    responses: { 200: { description: "Users", content: { "application/json": { schema: adminUserList } } }, ...problemResponses(401, 403) },
-  }, async (_input, _req, res) => {
-    res.set("Cache-Control", "private, no-store").json({ items: await listUsers(ctx) });
-  });
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/admin/users",
+      operationId: "listUsers",
+      tags: ["Admin"],
+      summary: "Everyone with an account, with e-mail and role",
+      guards: [adminOnly],
+      responses: {
+        200: { description: "Users", content: { "application/json": { schema: adminUserList } } },
+        ...problemResponses(401, 403),
+      },
+    },
+    async (_input, _req, res) => {
+      res.set("Cache-Control", "private, no-store").json({ items: await listUsers(ctx) });
+    },
+  );
 
-  defineRoute({
-    method: "patch",
-    path: "/api/v1/admin/users/{id}",
-    operationId: "changeUserRole",
-    tags: ["Admin"],
-    summary: "Change a user's role (recorded in the role-change log)",
-    guards: [adminOnly, requireWriteScope],
-    params: idParams,
-    body: { json: roleChangeBody },
-    responses: { 200: { description: "The user", content: { "application/json": { schema: adminUser } } }, ...problemResponses(400, 401, 403, 404, 409) },
-  }, async ({ params: { id }, body: { role } }, req, res) => {
-    res.json(await changeRole(ctx, currentUser(req), id, role));
-  });
+  defineRoute(
+    {
+      method: "patch",
+      path: "/api/v1/admin/users/{id}",
+      operationId: "changeUserRole",
+      tags: ["Admin"],
+      summary: "Change a user's role (recorded in the role-change log)",
+      guards: [adminOnly, requireWriteScope],
+      params: idParams,
+      body: { json: roleChangeBody },
+      responses: {
+        200: { description: "The user", content: { "application/json": { schema: adminUser } } },
+        ...problemResponses(400, 401, 403, 404, 409),
+      },
+    },
+    async ({ params: { id }, body: { role } }, req, res) => {
+      res.json(await changeRole(ctx, currentUser(req), id, role));
+    },
+  );
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/admin/role-changes",
-    operationId: "listRoleChanges",
-    tags: ["Admin"],
-    summary: "Who changed whose role, and when (newest first)",
-    guards: [adminOnly],
-    responses: { 200: { description: "Role changes", content: { "application/json": { schema: roleChangeList } } }, ...problemResponses(401, 403) },
-  }, async (_input, _req, res) => {
-    res.set("Cache-Control", "private, no-store").json({ items: await listRoleChanges(ctx) });
-  });
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/admin/role-changes",
+      operationId: "listRoleChanges",
+      tags: ["Admin"],
+      summary: "Who changed whose role, and when (newest first)",
+      guards: [adminOnly],
+      responses: {
+        200: { description: "Role changes", content: { "application/json": { schema: roleChangeList } } },
+        ...problemResponses(401, 403),
+      },
+    },
+    async (_input, _req, res) => {
+      res.set("Cache-Control", "private, no-store").json({ items: await listRoleChanges(ctx) });
+    },
+  );
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/admin/invitations",
-    operationId: "listInvitations",
-    tags: ["Admin"],
-    summary: "Invitations not yet accepted",
-    guards: [adminOnly],
-    responses: { 200: { description: "Open invitations", content: { "application/json": { schema: invitationList } } }, ...problemResponses(401, 403) },
-  }, async (_input, _req, res) => {
-    res.set("Cache-Control", "private, no-store").json({ items: await listOpenInvitations(ctx), outboxAvailable: outboxScreenAvailable(ctx.config) });
-  });
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/admin/invitations",
+      operationId: "listInvitations",
+      tags: ["Admin"],
+      summary: "Invitations not yet accepted",
+      guards: [adminOnly],
+      responses: {
+        200: { description: "Open invitations", content: { "application/json": { schema: invitationList } } },
+        ...problemResponses(401, 403),
+      },
+    },
+    async (_input, _req, res) => {
+      res
+        .set("Cache-Control", "private, no-store")
+        .json({ items: await listOpenInvitations(ctx), outboxAvailable: outboxScreenAvailable(ctx.config) });
+    },
+  );
 
-  defineRoute({
-    method: "post",
-    path: "/api/v1/admin/invitations",
-    operationId: "createInvitation",
-    tags: ["Admin"],
-    summary: "Invite someone by e-mail as a curator, reviewer or admin",
-    guards: [adminOnly, requireWriteScope],
-    body: { json: invitationBody },
-    responses: { 201: { description: "Invitation sent", content: { "application/json": { schema: invitationEntry } } }, ...problemResponses(400, 401, 403, 409) },
-  }, async ({ body }, req, res) => {
-    res.status(201).json(await inviteUser(ctx, currentUser(req), body));
-  });
+  defineRoute(
+    {
+      method: "post",
+      path: "/api/v1/admin/invitations",
+      operationId: "createInvitation",
+      tags: ["Admin"],
+      summary: "Invite someone by e-mail as a curator, reviewer or admin",
+      guards: [adminOnly, requireWriteScope],
+      body: { json: invitationBody },
+      responses: {
+        201: { description: "Invitation sent", content: { "application/json": { schema: invitationEntry } } },
+        ...problemResponses(400, 401, 403, 409),
+      },
+    },
+    async ({ body }, req, res) => {
+      res.status(201).json(await inviteUser(ctx, currentUser(req), body));
+    },
+  );
 
   // The outbox screen exists only where mail is kept rather than sent (development, or production that opted into
   // PLOTBANK_MAIL_OUTBOX_ONLY); where mail goes out by SMTP the route is simply absent.
   const outboxOnly: RequestHandler = (_req, _res, next) => next(outboxScreenAvailable(ctx.config) ? undefined : notFound());
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/admin/outbox",
-    operationId: "listOutbox",
-    tags: ["Admin"],
-    summary: "Where mail is not sent (development, outbox-only): every message the app has recorded",
-    guards: [outboxOnly, adminOnly],
-    responses: { 200: { description: "Messages, newest first", content: { "application/json": { schema: outboxList } } }, ...problemResponses(401, 403, 404) },
-  }, async (_input, _req, res) => {
-    res.set("Cache-Control", "private, no-store").json({ items: await listOutbox(ctx) });
-  });
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/admin/outbox",
+      operationId: "listOutbox",
+      tags: ["Admin"],
+      summary: "Where mail is not sent (development, outbox-only): every message the app has recorded",
+      guards: [outboxOnly, adminOnly],
+      responses: {
+        200: { description: "Messages, newest first", content: { "application/json": { schema: outboxList } } },
+        ...problemResponses(401, 403, 404),
+      },
+    },
+    async (_input, _req, res) => {
+      res.set("Cache-Control", "private, no-store").json({ items: await listOutbox(ctx) });
+    },
+  );
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/admin/outbox/{id}",
-    operationId: "getOutboxMessage",
-    tags: ["Admin"],
-    summary: "Where mail is not sent (development, outbox-only): one message, with its links",
-    guards: [outboxOnly, adminOnly],
-    params: idParams,
-    responses: { 200: { description: "The message", content: { "application/json": { schema: outboxMessage } } }, ...problemResponses(401, 403, 404) },
-  }, async ({ params: { id } }, _req, res) => {
-    res.set("Cache-Control", "private, no-store").json(await outboxMessageById(ctx, id));
-  });
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/admin/outbox/{id}",
+      operationId: "getOutboxMessage",
+      tags: ["Admin"],
+      summary: "Where mail is not sent (development, outbox-only): one message, with its links",
+      guards: [outboxOnly, adminOnly],
+      params: idParams,
+      responses: {
+        200: { description: "The message", content: { "application/json": { schema: outboxMessage } } },
+        ...problemResponses(401, 403, 404),
+      },
+    },
+    async ({ params: { id } }, _req, res) => {
+      res.set("Cache-Control", "private, no-store").json(await outboxMessageById(ctx, id));
+    },
+  );
 
   return router;
 }

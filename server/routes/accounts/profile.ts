@@ -18,74 +18,103 @@ export function profileRoutes(ctx: AppContext, limiters: AuthLimiters): Router {
   const { db } = ctx;
   const { router, defineRoute } = routeModule(ctx.registry);
   // Only a request with a password in it can guess one; only a refused one counts.
-  const passwordGuard = limiters.currentPassword.map((limit): RequestHandler => (req, res, next) =>
-    (req.body as { currentPassword?: unknown } | undefined)?.currentPassword === undefined ? next() : limit(req, res, next),
+  const passwordGuard = limiters.currentPassword.map(
+    (limit): RequestHandler =>
+      (req, res, next) =>
+        (req.body as { currentPassword?: unknown } | undefined)?.currentPassword === undefined ? next() : limit(req, res, next),
   );
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/account",
-    operationId: "getAccount",
-    tags: ["Accounts"],
-    summary: "Your profile",
-    guards: [requireUser],
-    responses: { 200: { description: "Your profile", content: { "application/json": { schema: me } } }, ...problemResponses(401) },
-  }, async (_input, req, res) => {
-    res.set("Cache-Control", "private, no-store").json(await meOf(db, currentUser(req).id));
-  });
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/account",
+      operationId: "getAccount",
+      tags: ["Accounts"],
+      summary: "Your profile",
+      guards: [requireUser],
+      responses: { 200: { description: "Your profile", content: { "application/json": { schema: me } } }, ...problemResponses(401) },
+    },
+    async (_input, req, res) => {
+      res.set("Cache-Control", "private, no-store").json(await meOf(db, currentUser(req).id));
+    },
+  );
 
-  defineRoute({
-    method: "patch",
-    path: "/api/v1/account",
-    operationId: "updateAccount",
-    tags: ["Accounts"],
-    summary: "Change your name, or your password (with the current one; other sessions end and API tokens are revoked)",
-    description: "Role and e-mail confirmation cannot be changed here; such fields are ignored.",
-    guards: [requireWriteScope, ...passwordGuard],
-    body: { json: profilePatch },
-    responses: { 200: { description: "The updated profile", content: { "application/json": { schema: me } } }, ...problemResponses(400, 401, 403, 429) },
-  }, async ({ body: patch }, req, res) => {
-    const secret = (req.cookies as Record<string, string> | undefined)?.[sessionCookieName];
-    res.json(await updateProfile(ctx, currentUser(req).id, patch, req.auth?.via === "session" ? secret : undefined));
-  });
+  defineRoute(
+    {
+      method: "patch",
+      path: "/api/v1/account",
+      operationId: "updateAccount",
+      tags: ["Accounts"],
+      summary: "Change your name, or your password (with the current one; other sessions end and API tokens are revoked)",
+      description: "Role and e-mail confirmation cannot be changed here; such fields are ignored.",
+      guards: [requireWriteScope, ...passwordGuard],
+      body: { json: profilePatch },
+      responses: {
+        200: { description: "The updated profile", content: { "application/json": { schema: me } } },
+        ...problemResponses(400, 401, 403, 429),
+      },
+    },
+    async ({ body: patch }, req, res) => {
+      const secret = (req.cookies as Record<string, string> | undefined)?.[sessionCookieName];
+      res.json(await updateProfile(ctx, currentUser(req).id, patch, req.auth?.via === "session" ? secret : undefined));
+    },
+  );
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/account/follows",
-    operationId: "listFollows",
-    tags: ["Accounts"],
-    summary: "Datasets you follow (you are e-mailed when a new version is published)",
-    guards: [requireUser],
-    responses: { 200: { description: "Followed datasets", content: { "application/json": { schema: followList } } }, ...problemResponses(401) },
-  }, async (_input, req, res) => {
-    res.set("Cache-Control", "private, no-store").json(await listFollows(ctx, currentUser(req).id));
-  });
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/account/follows",
+      operationId: "listFollows",
+      tags: ["Accounts"],
+      summary: "Datasets you follow (you are e-mailed when a new version is published)",
+      guards: [requireUser],
+      responses: {
+        200: { description: "Followed datasets", content: { "application/json": { schema: followList } } },
+        ...problemResponses(401),
+      },
+    },
+    async (_input, req, res) => {
+      res.set("Cache-Control", "private, no-store").json(await listFollows(ctx, currentUser(req).id));
+    },
+  );
 
-  defineRoute({
-    method: "post",
-    path: "/api/v1/datasets/{slug}/follow",
-    operationId: "followDataset",
-    tags: ["Accounts"],
-    summary: "Follow a published dataset",
-    guards: [requireWriteScope],
-    params: slugParams,
-    responses: { 200: { description: "Following", content: { "application/json": { schema: followState } } }, ...problemResponses(401, 403, 404) },
-  }, async ({ params: { slug } }, req, res) => {
-    res.json(await follow(ctx, currentUser(req).id, slug));
-  });
+  defineRoute(
+    {
+      method: "post",
+      path: "/api/v1/datasets/{slug}/follow",
+      operationId: "followDataset",
+      tags: ["Accounts"],
+      summary: "Follow a published dataset",
+      guards: [requireWriteScope],
+      params: slugParams,
+      responses: {
+        200: { description: "Following", content: { "application/json": { schema: followState } } },
+        ...problemResponses(401, 403, 404),
+      },
+    },
+    async ({ params: { slug } }, req, res) => {
+      res.json(await follow(ctx, currentUser(req).id, slug));
+    },
+  );
 
-  defineRoute({
-    method: "delete",
-    path: "/api/v1/datasets/{slug}/follow",
-    operationId: "unfollowDataset",
-    tags: ["Accounts"],
-    summary: "Stop following a dataset",
-    guards: [requireWriteScope],
-    params: slugParams,
-    responses: { 200: { description: "Not following", content: { "application/json": { schema: followState } } }, ...problemResponses(401, 403) },
-  }, async ({ params: { slug } }, req, res) => {
-    res.json(await unfollow(ctx, currentUser(req).id, slug));
-  });
+  defineRoute(
+    {
+      method: "delete",
+      path: "/api/v1/datasets/{slug}/follow",
+      operationId: "unfollowDataset",
+      tags: ["Accounts"],
+      summary: "Stop following a dataset",
+      guards: [requireWriteScope],
+      params: slugParams,
+      responses: {
+        200: { description: "Not following", content: { "application/json": { schema: followState } } },
+        ...problemResponses(401, 403),
+      },
+    },
+    async ({ params: { slug } }, req, res) => {
+      res.json(await unfollow(ctx, currentUser(req).id, slug));
+    },
+  );
 
   return router;
 }

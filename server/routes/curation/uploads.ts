@@ -33,12 +33,15 @@ function parseOptions(raw: { mapping?: string; units?: string; mode?: string }, 
     try {
       parsed[key] = JSON.parse(raw[key]!);
     } catch {
-      throw new HttpProblem(400, "Bad request", `${key} must be a JSON object.`, { errors: [{ field: `${where}.${key}`, message: "not valid JSON" }] });
+      throw new HttpProblem(400, "Bad request", `${key} must be a JSON object.`, {
+        errors: [{ field: `${where}.${key}`, message: "not valid JSON" }],
+      });
     }
   }
   if (raw.mode) parsed.mode = raw.mode;
   const result = uploadOptions.safeParse(parsed);
-  if (!result.success) throw new HttpProblem(400, "Bad request", "The upload options are not valid.", { errors: zodProblems(result.error, where) });
+  if (!result.success)
+    throw new HttpProblem(400, "Bad request", "The upload options are not valid.", { errors: zodProblems(result.error, where) });
   return result.data;
 }
 
@@ -52,7 +55,10 @@ const cutOff = () =>
  * busboy throws on a missing boundary and emits "Unexpected end of form" on the file stream when the body is cut off,
  * and an error event nobody listens to would end the whole process. `failed()` tells the caller the stream broke.
  */
-function multipartFile(req: Request, limitBytes: number): Promise<{ stream: Readable; filename: string; fields: Record<string, string>; failed: () => boolean }> {
+function multipartFile(
+  req: Request,
+  limitBytes: number,
+): Promise<{ stream: Readable; filename: string; fields: Record<string, string>; failed: () => boolean }> {
   return new Promise((resolve, reject) => {
     const fields: Record<string, string> = {};
     let found = false;
@@ -63,7 +69,11 @@ function multipartFile(req: Request, limitBytes: number): Promise<{ stream: Read
       bb = busboy({ headers: req.headers, limits: { fileSize: limitBytes + 1, files: 1, fields: 10, fieldSize: 64 * 1024 } });
     } catch (error) {
       req.resume();
-      reject(new HttpProblem(400, "Bad request", `The multipart body cannot be read: ${(error as Error).message}.`, { errors: [{ field: "body", message: "no multipart boundary" }] }));
+      reject(
+        new HttpProblem(400, "Bad request", `The multipart body cannot be read: ${(error as Error).message}.`, {
+          errors: [{ field: "body", message: "no multipart boundary" }],
+        }),
+      );
       return;
     }
     bb.on("field", (name, value) => {
@@ -77,7 +87,11 @@ function multipartFile(req: Request, limitBytes: number): Promise<{ stream: Read
       const filename = info.filename || "upload.csv";
       if (hasControlCharacter(filename)) {
         stream.resume();
-        reject(new HttpProblem(400, "Bad request", "The file name holds a control character.", { errors: [{ field: "body.file", message: "the file name contains a control character" }] }));
+        reject(
+          new HttpProblem(400, "Bad request", "The file name holds a control character.", {
+            errors: [{ field: "body.file", message: "the file name contains a control character" }],
+          }),
+        );
         return;
       }
       resolve({ stream, filename, fields, failed: () => broken });
@@ -89,7 +103,12 @@ function multipartFile(req: Request, limitBytes: number): Promise<{ stream: Read
       reject(cutOff());
     });
     bb.on("close", () => {
-      if (!found) reject(new HttpProblem(400, "Bad request", "The multipart body has no file part.", { errors: [{ field: "body.file", message: "missing" }] }));
+      if (!found)
+        reject(
+          new HttpProblem(400, "Bad request", "The multipart body has no file part.", {
+            errors: [{ field: "body.file", message: "missing" }],
+          }),
+        );
     });
     req.pipe(bb);
   });
@@ -99,78 +118,107 @@ export function curationUploadRoutes(ctx: AppContext): Router {
   const { db, registry, config } = ctx;
   const { router, defineRoute } = routeModule(registry);
 
-  defineRoute({
-    method: "post",
-    path: "/api/v1/curation/versions/{id}/uploads/{resource}",
-    operationId: "uploadResource",
-    tags: ["Curation"],
-    summary: "Upload one resource's CSV into a draft; stored only if the whole file validates",
-    description:
-      "Send multipart/form-data with a `file` part (fields `mapping`, `units`, `mode` before it), or the CSV itself as " +
-      "text/csv with the options as query parameters. UTF-8 (a BOM is fine); comma, semicolon or tab delimited (detected). " +
-      "Problems name the file, the row (1-based data row; the header is not counted, so a spreadsheet's line is row + 1), " +
-      "the column and the value. A rejected file is answered 422 with the same problems and changes nothing in the draft. " +
-      `Files over the upload limit (PLOTBANK_UPLOAD_LIMIT_MB, default 200 MB) get 413.`,
-    guards: [requireWriteScope],
-    params,
-    query: optionQuery,
-    body: { stream: { "text/csv": { schema: z.string() }, "multipart/form-data": { schema: z.object({ mapping: z.string().optional(), units: z.string().optional(), mode: z.string().optional(), file: z.string() }) } } },
-    responses: {
-      201: json(uploadResult, "Accepted and stored; responses recomputed"),
-      422: { description: "Rejected: problem+json with `errors` (located problems), `problems`, `reportId` and the file's sha256", content: { "application/problem+json": { schema: uploadRejection } } },
-      ...problemResponses(400, 401, 403, 404, 409, 413),
+  defineRoute(
+    {
+      method: "post",
+      path: "/api/v1/curation/versions/{id}/uploads/{resource}",
+      operationId: "uploadResource",
+      tags: ["Curation"],
+      summary: "Upload one resource's CSV into a draft; stored only if the whole file validates",
+      description:
+        "Send multipart/form-data with a `file` part (fields `mapping`, `units`, `mode` before it), or the CSV itself as " +
+        "text/csv with the options as query parameters. UTF-8 (a BOM is fine); comma, semicolon or tab delimited (detected). " +
+        "Problems name the file, the row (1-based data row; the header is not counted, so a spreadsheet's line is row + 1), " +
+        "the column and the value. A rejected file is answered 422 with the same problems and changes nothing in the draft. " +
+        `Files over the upload limit (PLOTBANK_UPLOAD_LIMIT_MB, default 200 MB) get 413.`,
+      guards: [requireWriteScope],
+      params,
+      query: optionQuery,
+      body: {
+        stream: {
+          "text/csv": { schema: z.string() },
+          "multipart/form-data": {
+            schema: z.object({
+              mapping: z.string().optional(),
+              units: z.string().optional(),
+              mode: z.string().optional(),
+              file: z.string(),
+            }),
+          },
+        },
+      },
+      responses: {
+        201: json(uploadResult, "Accepted and stored; responses recomputed"),
+        422: {
+          description: "Rejected: problem+json with `errors` (located problems), `problems`, `reportId` and the file's sha256",
+          content: { "application/problem+json": { schema: uploadRejection } },
+        },
+        ...problemResponses(400, 401, 403, 404, 409, 413),
+      },
     },
-  }, async ({ params: { id, resource }, query }, req, res) => {
-    const user = currentUser(req);
-    const { dataset } = await versionById(db, id);
-    await assertCanEdit(db, user, dataset);
-    const declared = Number(req.headers["content-length"] ?? 0);
-    const multipart = req.is("multipart/form-data");
-    // Multipart framing adds a few hundred bytes; anything far beyond the limit is refused before reading it.
-    if (declared > config.uploadLimitBytes + (multipart ? 64 * 1024 : 0)) {
-      req.resume();
-      throw tooLarge(config.uploadLimitBytes);
-    }
-    let source: Readable = req;
-    let filename = query.filename ?? `${resource}.csv`;
-    let options: UploadOptions;
-    let partFailed = () => false;
-    if (multipart) {
-      const part = await multipartFile(req, config.uploadLimitBytes);
-      source = part.stream;
-      partFailed = part.failed;
-      filename = part.filename;
-      options = parseOptions({ ...query, ...part.fields }, "body");
-    } else {
-      if (!req.is(["text/csv", "text/plain", "application/octet-stream"])) {
+    async ({ params: { id, resource }, query }, req, res) => {
+      const user = currentUser(req);
+      const { dataset } = await versionById(db, id);
+      await assertCanEdit(db, user, dataset);
+      const declared = Number(req.headers["content-length"] ?? 0);
+      const multipart = req.is("multipart/form-data");
+      // Multipart framing adds a few hundred bytes; anything far beyond the limit is refused before reading it.
+      if (declared > config.uploadLimitBytes + (multipart ? 64 * 1024 : 0)) {
         req.resume();
-        throw new HttpProblem(415, "Unsupported media type", "Send the CSV as multipart/form-data (field `file`) or as a text/csv body.");
+        throw tooLarge(config.uploadLimitBytes);
       }
-      options = parseOptions(query, "query");
-    }
-    let result;
-    try {
-      result = await ingestUpload(ctx, { versionId: id, resource, filename, source, options, userId: user.id });
-    } catch (error) {
-      source.resume();
-      req.resume();
-      throw partFailed() ? cutOff() : error;
-    }
-    if (result.accepted) {
-      res.status(201).json(result);
-      return;
-    }
-    const { errors, warnings, ...rest } = result;
-    const located = result.problems.filter((p) => p.severity === "error").map((p) => ({
-      file: p.file, row: p.row ?? undefined, column: p.column ?? undefined, value: p.value ?? undefined, message: p.message,
-    }));
-    throw new HttpProblem(422, "Unprocessable content", `${filename}: ${errors} error(s) and ${warnings} warning(s); nothing was stored. See report ${result.reportId}.`, {
-      errors: located,
-      errorCount: errors,
-      warningCount: warnings,
-      ...rest,
-    });
-  });
+      let source: Readable = req;
+      let filename = query.filename ?? `${resource}.csv`;
+      let options: UploadOptions;
+      let partFailed = () => false;
+      if (multipart) {
+        const part = await multipartFile(req, config.uploadLimitBytes);
+        source = part.stream;
+        partFailed = part.failed;
+        filename = part.filename;
+        options = parseOptions({ ...query, ...part.fields }, "body");
+      } else {
+        if (!req.is(["text/csv", "text/plain", "application/octet-stream"])) {
+          req.resume();
+          throw new HttpProblem(415, "Unsupported media type", "Send the CSV as multipart/form-data (field `file`) or as a text/csv body.");
+        }
+        options = parseOptions(query, "query");
+      }
+      let result;
+      try {
+        result = await ingestUpload(ctx, { versionId: id, resource, filename, source, options, userId: user.id });
+      } catch (error) {
+        source.resume();
+        req.resume();
+        throw partFailed() ? cutOff() : error;
+      }
+      if (result.accepted) {
+        res.status(201).json(result);
+        return;
+      }
+      const { errors, warnings, ...rest } = result;
+      const located = result.problems
+        .filter((p) => p.severity === "error")
+        .map((p) => ({
+          file: p.file,
+          row: p.row ?? undefined,
+          column: p.column ?? undefined,
+          value: p.value ?? undefined,
+          message: p.message,
+        }));
+      throw new HttpProblem(
+        422,
+        "Unprocessable content",
+        `${filename}: ${errors} error(s) and ${warnings} warning(s); nothing was stored. See report ${result.reportId}.`,
+        {
+          errors: located,
+          errorCount: errors,
+          warningCount: warnings,
+          ...rest,
+        },
+      );
+    },
+  );
 
   return router;
 }

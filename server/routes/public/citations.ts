@@ -20,42 +20,45 @@ export function citationRoutes(ctx: AppContext): Router {
   const { db, config, registry } = ctx;
   const { router, defineRoute } = routeModule(registry);
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/datasets/{slug}/versions/{semver}/citation",
-    operationId: "getCitation",
-    tags: ["Citations"],
-    summary: "How to cite a published version: plain text (APA style), BibTeX, RIS or CSL-JSON",
-    description:
-      "Every format renders from the same CSL-JSON record. The DOI appears once the DOI service has registered it; " +
-      "until then the citation points at the version's stable page. `latest` names the newest published version.",
-    params: citationParams,
-    query: citationQuery,
-    responses: {
-      200: {
-        description: "The citation",
-        content: {
-          "text/plain": { schema: z.string() },
-          "application/x-bibtex": { schema: z.string() },
-          "application/x-research-info-systems": { schema: z.string() },
-          "application/vnd.citationstyles.csl+json": { schema: z.array(z.record(z.string(), z.unknown())) },
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/datasets/{slug}/versions/{semver}/citation",
+      operationId: "getCitation",
+      tags: ["Citations"],
+      summary: "How to cite a published version: plain text (APA style), BibTeX, RIS or CSL-JSON",
+      description:
+        "Every format renders from the same CSL-JSON record. The DOI appears once the DOI service has registered it; " +
+        "until then the citation points at the version's stable page. `latest` names the newest published version.",
+      params: citationParams,
+      query: citationQuery,
+      responses: {
+        200: {
+          description: "The citation",
+          content: {
+            "text/plain": { schema: z.string() },
+            "application/x-bibtex": { schema: z.string() },
+            "application/x-research-info-systems": { schema: z.string() },
+            "application/vnd.citationstyles.csl+json": { schema: z.array(z.record(z.string(), z.unknown())) },
+          },
         },
+        ...problemResponses(400, 404, 429),
       },
-      ...problemResponses(400, 404, 429),
     },
-  }, async ({ params: { slug, semver }, query: { format } }, _req, res) => {
-    const dataset = await loadCitableDataset(db, config, slug);
-    if (!dataset) throw notFound(`No published dataset is called "${slug}".`);
-    const version = findVersion(dataset, semver);
-    if (!version) throw notFound(`Dataset "${slug}" has no published version ${semver}.`);
-    const body = renderCitation(cslItem(version, dataset.slug), format);
-    res
-      .status(200)
-      .set("Cache-Control", "public, max-age=300")
-      .set("Content-Disposition", `inline; filename="${dataset.slug}-v${version.semver}.${citationExtensions[format]}"`)
-      .type(`${citationMediaTypes[format]}; charset=utf-8`)
-      .send(body);
-  });
+    async ({ params: { slug, semver }, query: { format } }, _req, res) => {
+      const dataset = await loadCitableDataset(db, config, slug);
+      if (!dataset) throw notFound(`No published dataset is called "${slug}".`);
+      const version = findVersion(dataset, semver);
+      if (!version) throw notFound(`Dataset "${slug}" has no published version ${semver}.`);
+      const body = renderCitation(cslItem(version, dataset.slug), format);
+      res
+        .status(200)
+        .set("Cache-Control", "public, max-age=300")
+        .set("Content-Disposition", `inline; filename="${dataset.slug}-v${version.semver}.${citationExtensions[format]}"`)
+        .type(`${citationMediaTypes[format]}; charset=utf-8`)
+        .send(body);
+    },
+  );
 
   return router;
 }

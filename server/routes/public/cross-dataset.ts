@@ -17,32 +17,59 @@ const resolution =
 export function crossDatasetRoutes({ db, registry }: AppContext): Router {
   const { router, defineRoute } = routeModule(registry);
 
-  defineRoute(rowsRoute({ path: "/api/v1/responses", operationId: "listResponses", tag: "Rows across datasets", summary: "Site-year responses across datasets", description: resolution, query: crossDatasetYieldQuery, page: responsePage, gone: true }), async ({ query }, req, res) => {
-    const versions = await resolveVersions(db, query);
-    const { dataset: _d, version: _v, ...rest } = query;
-    await serveRows(req, res, { db, resource: responseResource, versions, query: rest, freshness: "moving" });
-  });
+  defineRoute(
+    rowsRoute({
+      path: "/api/v1/responses",
+      operationId: "listResponses",
+      tag: "Rows across datasets",
+      summary: "Site-year responses across datasets",
+      description: resolution,
+      query: crossDatasetYieldQuery,
+      page: responsePage,
+      gone: true,
+    }),
+    async ({ query }, req, res) => {
+      const versions = await resolveVersions(db, query);
+      const { dataset: _d, version: _v, ...rest } = query;
+      await serveRows(req, res, { db, resource: responseResource, versions, query: rest, freshness: "moving" });
+    },
+  );
 
-  defineRoute(rowsRoute({ path: "/api/v1/observations", operationId: "listObservations", tag: "Rows across datasets", summary: "Plot observations across datasets", description: resolution, query: crossDatasetYieldQuery, page: observationPage, gone: true }), async ({ query }, req, res) => {
-    const versions = await resolveVersions(db, query);
-    const { dataset: _d, version: _v, ...rest } = query;
-    await serveRows(req, res, { db, resource: observationResource, versions, query: rest, freshness: "moving" });
-  });
+  defineRoute(
+    rowsRoute({
+      path: "/api/v1/observations",
+      operationId: "listObservations",
+      tag: "Rows across datasets",
+      summary: "Plot observations across datasets",
+      description: resolution,
+      query: crossDatasetYieldQuery,
+      page: observationPage,
+      gone: true,
+    }),
+    async ({ query }, req, res) => {
+      const versions = await resolveVersions(db, query);
+      const { dataset: _d, version: _v, ...rest } = query;
+      await serveRows(req, res, { db, resource: observationResource, versions, query: rest, freshness: "moving" });
+    },
+  );
 
-  defineRoute(rowsRoute({
-    path: "/api/v1/site-years",
-    operationId: "listSiteYears",
-    tag: "Rows across datasets",
-    summary: "Site-years across datasets, with their soil tests",
-    description: `${resolution} Treatment filters keep the site-years that have a matching response.`,
-    query: crossDatasetSiteYearQuery,
-    page: siteYearPage,
-    gone: true,
-  }), async ({ query }, req, res) => {
-    const versions = await resolveVersions(db, query);
-    const { dataset: _d, version: _v, ...rest } = query;
-    await serveRows(req, res, { db, resource: siteYearResource, versions, query: rest, freshness: "moving" });
-  });
+  defineRoute(
+    rowsRoute({
+      path: "/api/v1/site-years",
+      operationId: "listSiteYears",
+      tag: "Rows across datasets",
+      summary: "Site-years across datasets, with their soil tests",
+      description: `${resolution} Treatment filters keep the site-years that have a matching response.`,
+      query: crossDatasetSiteYearQuery,
+      page: siteYearPage,
+      gone: true,
+    }),
+    async ({ query }, req, res) => {
+      const versions = await resolveVersions(db, query);
+      const { dataset: _d, version: _v, ...rest } = query;
+      await serveRows(req, res, { db, resource: siteYearResource, versions, query: rest, freshness: "moving" });
+    },
+  );
 
   return router;
 }

@@ -57,7 +57,10 @@ export function rowsRoute<Q extends z.ZodObject, P extends z.ZodObject | undefin
     responses: <Responses>{
       200: {
         description: "One page of rows (JSON) or all rows (CSV)",
-        headers: { ...cachingHeaders, Link: { description: 'rel="next" (JSON) or rel="describedby" (CSV)', schema: { type: "string" as const } } },
+        headers: {
+          ...cachingHeaders,
+          Link: { description: 'rel="next" (JSON) or rel="describedby" (CSV)', schema: { type: "string" as const } },
+        },
         content: { "application/json": { schema: o.page }, "text/csv": { schema: z.string() } },
       },
       ...readResponses,

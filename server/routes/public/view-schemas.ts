@@ -12,21 +12,24 @@ const viewParams = z.object({ view: z.enum(rowViewNames).describe("A row view: t
 export function viewSchemaRoutes({ registry }: AppContext): Router {
   const { router, defineRoute } = routeModule(registry);
 
-  defineRoute({
-    method: "get",
-    path: "/api/v1/schemas/{view}",
-    operationId: "getViewTableSchema",
-    tags: ["Datasets"],
-    summary: "The Table Schema of a row view's CSV (its columns, types and descriptions); CSV answers link to it as describedby",
-    params: viewParams,
-    query: noQuery,
-    responses: {
-      200: { description: "A Table Schema (v2)", content: { "application/json": { schema: viewTableSchema } } },
-      ...problemResponses(400, 404, 429),
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/schemas/{view}",
+      operationId: "getViewTableSchema",
+      tags: ["Datasets"],
+      summary: "The Table Schema of a row view's CSV (its columns, types and descriptions); CSV answers link to it as describedby",
+      params: viewParams,
+      query: noQuery,
+      responses: {
+        200: { description: "A Table Schema (v2)", content: { "application/json": { schema: viewTableSchema } } },
+        ...problemResponses(400, 404, 429),
+      },
     },
-  }, async ({ params: { view } }, _req, res) => {
-    res.set("Cache-Control", "public, max-age=3600").json(tableSchemaOf(view));
-  });
+    async ({ params: { view } }, _req, res) => {
+      res.set("Cache-Control", "public, max-age=3600").json(tableSchemaOf(view));
+    },
+  );
 
   return router;
 }

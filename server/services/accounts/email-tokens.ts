@@ -73,10 +73,20 @@ export async function consumeEmailToken(db: Db, purpose: EmailTokenPurpose, secr
   const [claimed] = await db
     .update(emailTokens)
     .set({ usedAt: new Date() })
-    .where(and(eq(emailTokens.tokenHash, hash), eq(emailTokens.purpose, purpose), isNull(emailTokens.usedAt), gt(emailTokens.expiresAt, new Date())))
+    .where(
+      and(
+        eq(emailTokens.tokenHash, hash),
+        eq(emailTokens.purpose, purpose),
+        isNull(emailTokens.usedAt),
+        gt(emailTokens.expiresAt, new Date()),
+      ),
+    )
     .returning();
   if (claimed) return claimed;
-  const [row] = await db.select().from(emailTokens).where(and(eq(emailTokens.tokenHash, hash), eq(emailTokens.purpose, purpose)));
+  const [row] = await db
+    .select()
+    .from(emailTokens)
+    .where(and(eq(emailTokens.tokenHash, hash), eq(emailTokens.purpose, purpose)));
   throw refusal(purpose, row);
 }
 

@@ -40,10 +40,23 @@ export async function listFollows(ctx: AppContext, userId: string): Promise<Foll
     ? await ctx.db
         .select({ datasetId: versions.datasetId, semver: versions.semver, state: versions.state })
         .from(versions)
-        .where(and(inArray(versions.datasetId, rows.map((r) => r.id)), eq(versions.state, "published")))
+        .where(
+          and(
+            inArray(
+              versions.datasetId,
+              rows.map((r) => r.id),
+            ),
+            eq(versions.state, "published"),
+          ),
+        )
     : [];
   const latest = latestPublishedByDataset(published);
   return {
-    items: rows.map((r) => ({ slug: r.slug, title: r.title, followedAt: r.followedAt.toISOString(), latestVersion: latest.get(r.id)?.semver ?? null })),
+    items: rows.map((r) => ({
+      slug: r.slug,
+      title: r.title,
+      followedAt: r.followedAt.toISOString(),
+      latestVersion: latest.get(r.id)?.semver ?? null,
+    })),
   };
 }

@@ -57,7 +57,13 @@ export async function acceptInvitation(ctx: AppContext, input: { token: string; 
     const row = await consumeEmailToken(tx, "invite", input.token);
     const [taken] = await tx.select({ id: users.id }).from(users).where(eq(users.email, row.email));
     if (taken) throw conflict("This address already has an account; sign in instead.");
-    const user = await createUser(tx, { email: row.email, displayName: input.displayName, password: input.password, role: row.role ?? "curator", verified: true });
+    const user = await createUser(tx, {
+      email: row.email,
+      displayName: input.displayName,
+      password: input.password,
+      role: row.role ?? "curator",
+      verified: true,
+    });
     await tx.insert(roleChanges).values({ actorId: row.invitedBy, userId: user.id, fromRole: null, toRole: user.role });
     return user;
   });

@@ -38,8 +38,15 @@ export async function notifyReviewRequested(ctx: AppContext, versionId: string):
   const { version, dataset } = await versionWithDataset(ctx, versionId);
   const submitterId = version.submittedBy ?? version.createdBy;
   const active = and(ne(users.id, submitterId), sql`${users.disabledAt} is null`, sql`${users.emailVerifiedAt} is not null`);
-  let recipients = await ctx.db.select().from(users).where(and(eq(users.role, "reviewer"), active));
-  if (recipients.length === 0) recipients = await ctx.db.select().from(users).where(and(eq(users.role, "admin"), active));
+  let recipients = await ctx.db
+    .select()
+    .from(users)
+    .where(and(eq(users.role, "reviewer"), active));
+  if (recipients.length === 0)
+    recipients = await ctx.db
+      .select()
+      .from(users)
+      .where(and(eq(users.role, "admin"), active));
   const submitterName = await displayNameOf(ctx, submitterId);
   const mailer = createMailer(ctx);
   for (const reviewer of recipients) {
@@ -57,9 +64,17 @@ export async function notifyReviewRequested(ctx: AppContext, versionId: string):
 }
 
 /** Tell the submitter (or, failing that, the version's author) what the reviewer decided, with the comment. */
-export async function notifyReviewDecision(ctx: AppContext, versionId: string, decision: "approved" | "returned", comment: string): Promise<void> {
+export async function notifyReviewDecision(
+  ctx: AppContext,
+  versionId: string,
+  decision: "approved" | "returned",
+  comment: string,
+): Promise<void> {
   const { version, dataset } = await versionWithDataset(ctx, versionId);
-  const [submitter] = await ctx.db.select().from(users).where(eq(users.id, version.submittedBy ?? version.createdBy));
+  const [submitter] = await ctx.db
+    .select()
+    .from(users)
+    .where(eq(users.id, version.submittedBy ?? version.createdBy));
   if (!submitter || submitter.disabledAt) return;
   const mail = templates.reviewDecision({
     publicUrl: ctx.config.publicUrl,
@@ -71,7 +86,12 @@ export async function notifyReviewDecision(ctx: AppContext, versionId: string, d
     reviewerName: await displayNameOf(ctx, version.reviewedBy),
     comment,
   });
-  await createMailer(ctx).send({ kind: `review-${decision}`, to: submitter.email, ...mail, meta: { versionId, decision, datasetSlug: dataset.slug } });
+  await createMailer(ctx).send({
+    kind: `review-${decision}`,
+    to: submitter.email,
+    ...mail,
+    meta: { versionId, decision, datasetSlug: dataset.slug },
+  });
 }
 
 /**
@@ -90,7 +110,9 @@ export async function sendReviewMail(what: string, send: () => Promise<unknown>)
 export async function notifyFollowers(ctx: AppContext, versionId: string): Promise<number> {
   const { version, dataset } = await versionWithDataset(ctx, versionId);
   if (version.state !== "published") return 0;
-  const followerIds = (await ctx.db.select({ userId: follows.userId }).from(follows).where(eq(follows.datasetId, dataset.id))).map((f) => f.userId);
+  const followerIds = (await ctx.db.select({ userId: follows.userId }).from(follows).where(eq(follows.datasetId, dataset.id))).map(
+    (f) => f.userId,
+  );
   if (followerIds.length === 0) return 0;
   const followers = await ctx.db
     .select()

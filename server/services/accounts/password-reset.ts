@@ -52,6 +52,12 @@ export async function notifyPasswordChanged(
   how: "changed" | "reset",
   tokens: { revoked: number; kept: number },
 ) {
-  const mail = templates.passwordChanged({ publicUrl: ctx.config.publicUrl, displayName: user.displayName, how, revokedTokens: tokens.revoked, keptTokens: tokens.kept });
+  const mail = templates.passwordChanged({
+    publicUrl: ctx.config.publicUrl,
+    displayName: user.displayName,
+    how,
+    revokedTokens: tokens.revoked,
+    keptTokens: tokens.kept,
+  });
   await createMailer(ctx).send({ kind: "password-changed", to: user.email, ...mail, meta: { userId: user.id, ...tokens } });
 }

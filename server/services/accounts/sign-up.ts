@@ -37,7 +37,13 @@ export async function signUp(ctx: AppContext, body: SignUpBody): Promise<CheckEm
   const existing = await findUserByEmail(ctx.db, body.email);
   if (!existing) {
     try {
-      const user = await createUser(ctx.db, { email: body.email, displayName: body.displayName, password: body.password, role: "member", verified: false });
+      const user = await createUser(ctx.db, {
+        email: body.email,
+        displayName: body.displayName,
+        password: body.password,
+        role: "member",
+        verified: false,
+      });
       await sendVerification(ctx, user);
       return checkYourEmail;
     } catch (error) {

@@ -27,12 +27,15 @@ export function forestRowsCsv(result: MetaAnalysisResponse): string {
     ["ci_upper", (r) => r.ciUpper],
     ["df", (r) => r.df],
     ["p_value", (r) => r.pValue ?? ""],
-    ["significant", (r) => r.significant === null ? "" : r.significant],
+    ["significant", (r) => (r.significant === null ? "" : r.significant)],
     ["weight_pct", (r) => r.weightPercent],
     ["soil_test_analyte", (r) => r.soilTestAnalyte ?? ""],
     ["soil_test_class", (r) => r.soilTestClass ?? ""],
     ["soil_test_value", (r) => r.soilTestValue ?? ""],
     ["check_mean", (r) => r.checkMean],
   ];
-  return csvFile(columns.map(([name]) => name), result.rows.map((r) => columns.map(([, value]) => value(r))));
+  return csvFile(
+    columns.map(([name]) => name),
+    result.rows.map((r) => columns.map(([, value]) => value(r))),
+  );
 }

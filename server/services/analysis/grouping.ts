@@ -7,7 +7,13 @@ type SoilTestFields = Partial<Pick<Contrast, "testedNutrientsStated" | "nLbAc" |
 
 /** The nutrients a contrast tests (the one rule in tested-nutrients.ts); rates missing from a partial row count as 0. */
 function contrastTestedNutrients(row: SoilTestFields) {
-  return testedNutrients({ testedNutrientsStated: row.testedNutrientsStated ?? null, nLbAc: row.nLbAc ?? 0, p2o5LbAc: row.p2o5LbAc ?? 0, k2oLbAc: row.k2oLbAc ?? 0, sLbAc: row.sLbAc ?? 0 });
+  return testedNutrients({
+    testedNutrientsStated: row.testedNutrientsStated ?? null,
+    nLbAc: row.nLbAc ?? 0,
+    p2o5LbAc: row.p2o5LbAc ?? 0,
+    k2oLbAc: row.k2oLbAc ?? 0,
+    sLbAc: row.sLbAc ?? 0,
+  });
 }
 
 /**

@@ -17,14 +17,30 @@ export async function includedTreatments(db: Db, where: SQL | undefined, version
           FROM ${responses} WHERE ${where}) r
     JOIN ${applications} a ON a.treatment_id = r.treatment_id
     ORDER BY r.version_id, r.treatment_code, r.crop, r.row_spacing_in, a.id`);
-  const rows = (result as unknown as { rows: { version_id: string; treatment_code: string; crop: string; row_spacing_in: number | string | null; placement: string; n_lb_ac: number | string; k2o_lb_ac: number | string }[] }).rows;
+  const rows = (
+    result as unknown as {
+      rows: {
+        version_id: string;
+        treatment_code: string;
+        crop: string;
+        row_spacing_in: number | string | null;
+        placement: string;
+        n_lb_ac: number | string;
+        k2o_lb_ac: number | string;
+      }[];
+    }
+  ).rows;
   const slugOf = new Map(versions.map((v) => [v.versionId, v.datasetSlug]));
   const byKey = new Map<string, CautionTreatment>();
   for (const r of rows) {
     const rowSpacingIn = r.row_spacing_in === null ? null : Number(r.row_spacing_in);
     const key = `${r.version_id}\u0000${r.treatment_code}\u0000${r.crop}\u0000${rowSpacingIn}`;
     let t = byKey.get(key);
-    if (!t) byKey.set(key, (t = { dataset: slugOf.get(r.version_id) ?? "", treatment: r.treatment_code, crop: r.crop, rowSpacingIn, applications: [] }));
+    if (!t)
+      byKey.set(
+        key,
+        (t = { dataset: slugOf.get(r.version_id) ?? "", treatment: r.treatment_code, crop: r.crop, rowSpacingIn, applications: [] }),
+      );
     t.applications.push({ placement: r.placement, nLbAc: Number(r.n_lb_ac), k2oLbAc: Number(r.k2o_lb_ac) });
   }
   return [...byKey.values()];

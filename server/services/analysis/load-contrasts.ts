@@ -81,7 +81,21 @@ export type ContrastLabels = Pick<Response, LabelKey>;
 /** A response with its labels, its treatment in words among them. */
 export type Contrast = EstimationContrast & ContrastLabels & { treatmentLabel: string };
 
-const numeric = new Set<string>(["nLbAc", "p2o5LbAc", "k2oLbAc", "sLbAc", "checkMeanKgHa", "treatedMeanKgHa", "mdKgHa", "seKgHa", "lnrr", "lnrrVar", "soilPValue", "soilKValue", "soilSValue"]);
+const numeric = new Set<string>([
+  "nLbAc",
+  "p2o5LbAc",
+  "k2oLbAc",
+  "sLbAc",
+  "checkMeanKgHa",
+  "treatedMeanKgHa",
+  "mdKgHa",
+  "seKgHa",
+  "lnrr",
+  "lnrrVar",
+  "soilPValue",
+  "soilKValue",
+  "soilSValue",
+]);
 
 /** The columns as positional JSON arrays in one json_agg value: at 20,000 rows far cheaper than row-by-row results. */
 function jsonArrays(columns: Record<string, unknown>) {
@@ -122,11 +136,22 @@ const labelIdListLimit = 2000;
  * Stage two: the labels of the named responses, merged onto them. A long list (a whole-forest CSV) re-reads the
  * filtered responses' labels instead of sending thousands of ids.
  */
-export async function withLabels(db: Db, where: SQL | undefined, rows: EstimationContrast[], idListLimit = labelIdListLimit): Promise<Map<number, Contrast>> {
+export async function withLabels(
+  db: Db,
+  where: SQL | undefined,
+  rows: EstimationContrast[],
+  idListLimit = labelIdListLimit,
+): Promise<Map<number, Contrast>> {
   const byId = new Map<number, Contrast>();
   if (rows.length === 0) return byId;
   const keys = Object.keys(labelColumns);
-  const condition = rows.length <= idListLimit ? inArray(responses.id, rows.map((r) => r.id)) : where;
+  const condition =
+    rows.length <= idListLimit
+      ? inArray(
+          responses.id,
+          rows.map((r) => r.id),
+        )
+      : where;
   const result = await db.execute(sql`SELECT ${jsonArrays(labelColumns)} AS rows FROM ${responses} WHERE ${condition}`);
   const labels = toObjects<ContrastLabels>((result as unknown as { rows: { rows: string | null }[] }).rows[0]?.rows, keys);
   const labelOf = new Map(labels.map((l) => [l.id, l]));
@@ -156,7 +181,10 @@ function compareText(a: string, b: string): number {
 
 export async function loadContrasts(db: Db, filters: TrialFilters, groupBy: Grouping | null = null) {
   const versions = await resolveVersions(db, filters);
-  const where = responseConditions(filters, versions.map((v) => v.versionId));
+  const where = responseConditions(
+    filters,
+    versions.map((v) => v.versionId),
+  );
   const rows = await selectEstimationRows(db, where, groupBy);
   return { versions, rows, where };
 }

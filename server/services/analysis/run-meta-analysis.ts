@@ -48,7 +48,10 @@ function splitQuery(query: MetaQuery): { filters: TrialFilters; options: Omit<Me
 export async function runMetaAnalysis(db: Db, query: MetaQuery): Promise<Result> {
   const { filters, options } = splitQuery(query);
   const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null);
-  const [result, included] = await Promise.all([analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named)), includedTreatments(db, where, versions)]);
+  const [result, included] = await Promise.all([
+    analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named)),
+    includedTreatments(db, where, versions),
+  ]);
   return { ...result, cautions: evaluateCautions(included) };
 }
 
@@ -77,16 +80,22 @@ async function analyseContrasts(
     notes.push(`Several crops (${crops.join(", ")}): each response is converted to bu/ac with its own crop's bushel weight, then pooled.`);
   }
   const combinedSiteYears = overall.units.filter((u) => u.contrasts.length > 1).length;
-  if (combinedSiteYears > 0) notes.push(`${combinedSiteYears} site-year(s) had several matching treatments; each was combined into one response (shared-check covariance).`);
+  if (combinedSiteYears > 0)
+    notes.push(
+      `${combinedSiteYears} site-year(s) had several matching treatments; each was combined into one response (shared-check covariance).`,
+    );
 
-  const fit = k > 0 ? metaAnalysis({ yi: overall.units.map((u) => u.yi), vi: overall.units.map((u) => u.vi), method, ci, heterogeneityInterval: false }) : null;
+  const fit =
+    k > 0
+      ? metaAnalysis({ yi: overall.units.map((u) => u.yi), vi: overall.units.map((u) => u.vi), method, ci, heterogeneityInterval: false })
+      : null;
   if (fit) for (const n of fit.notes) if (!notes.includes(n) && !/^(Only|Two site-years)/.test(n)) notes.push(n);
 
   const decision = decisionBlock(overall.units, fit, options, crops);
   const subgroups = grouped && groupBy ? subgroupBlock(grouped.units, groupBy, options, decision) : null;
   const forestUnits = grouped ?? overall;
   const forestTau2 = (grouped ? subgroups?.tau2 : fit?.tau2) ?? 0;
-  const weights = forestUnits === overall ? fit?.weightsPercent ?? [] : withinGroupWeights(grouped!.units, forestTau2);
+  const weights = forestUnits === overall ? (fit?.weightsPercent ?? []) : withinGroupWeights(grouped!.units, forestTau2);
   const limit = options.forestLimit ?? (options.format === "csv" ? "all" : defaultForestLimit);
   const shown = forestSelection(forestUnits.units, forestTau2, limit);
   // Only now are labels read, for the rows the answer names.
@@ -98,9 +107,15 @@ async function analyseContrasts(
   const levelRank = new Map((subgroups?.levels ?? []).map((l, i) => [l.level, i]));
   const rankOf = (unit: AnalysisUnit) => levelRank.get(unit.group ?? "") ?? levelRank.size;
   const forestRows = shown
-    .map((i) => ({ unit: forestUnits.units[i]!, weight: weights[i] ?? 0, contrasts: forestUnits.units[i]!.contrasts.map(labelOf).sort(byForestOrder) }))
+    .map((i) => ({
+      unit: forestUnits.units[i]!,
+      weight: weights[i] ?? 0,
+      contrasts: forestUnits.units[i]!.contrasts.map(labelOf).sort(byForestOrder),
+    }))
     .sort((a, b) => rankOf(a.unit) - rankOf(b.unit) || byForestOrder(a.contrasts[0]!, b.contrasts[0]!))
-    .map(({ unit, weight, contrasts }) => forestRow(unit, contrasts, weight, pooledWeightOf.get(unit.siteYearId) ?? null, filters, versionOf));
+    .map(({ unit, weight, contrasts }) =>
+      forestRow(unit, contrasts, weight, pooledWeightOf.get(unit.siteYearId) ?? null, filters, versionOf),
+    );
   const forest = forestExtent(forestUnits.units.length, forestRows.length, limit, grouped !== null);
   if (forest.note) notes.push(forest.note);
 
@@ -115,7 +130,11 @@ async function analyseContrasts(
         df: fit.df,
         ciMethod: fit.ci,
         predictionInterval: fit.predictionInterval.tKMinus2
-          ? { lower: fit.predictionInterval.tKMinus2.lower, upper: fit.predictionInterval.tKMinus2.upper, df: fit.predictionInterval.tKMinus2.df ?? k - 2 }
+          ? {
+              lower: fit.predictionInterval.tKMinus2.lower,
+              upper: fit.predictionInterval.tKMinus2.upper,
+              df: fit.predictionInterval.tKMinus2.df ?? k - 2,
+            }
           : null,
       }
     : null;
@@ -162,7 +181,10 @@ async function analyseContrasts(
       datasets: new Set(overall.units.map((u) => u.contrasts[0]!.versionId)).size,
       contrastsRead: rows.length,
       combinedSiteYears,
-      excluded: excludedSiteYears(overall.excluded.map((e) => ({ contrast: labelOf(e.contrast), reason: e.reason })), versionOf),
+      excluded: excludedSiteYears(
+        overall.excluded.map((e) => ({ contrast: labelOf(e.contrast), reason: e.reason })),
+        versionOf,
+      ),
       combination: combinationNote,
     },
     notes,
@@ -171,7 +193,14 @@ async function analyseContrasts(
   };
 }
 
-function forestRow(unit: AnalysisUnit, contrasts: Contrast[], weightPercent: number, pooledWeightPercent: number | null, filters: TrialFilters, versionOf: Map<string, ResolvedVersion>) {
+function forestRow(
+  unit: AnalysisUnit,
+  contrasts: Contrast[],
+  weightPercent: number,
+  pooledWeightPercent: number | null,
+  filters: TrialFilters,
+  versionOf: Map<string, ResolvedVersion>,
+) {
   const first = contrasts[0]!;
   const version = versionOf.get(first.versionId);
   const soil = relevantSoilTest(first, filters);
@@ -272,22 +301,48 @@ function levelDecision(units: AnalysisUnit[], level: string, predictive: Predict
  * level's predictive distribution is what `predict()` gives on that model: its estimate and SE with the common τ²,
  * t(k − p) under HKSJ and normal under Wald.
  */
-function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQuery, "method" | "ci">, decision: Result["decision"]): Result["subgroups"] {
-  const levels = orderLevels(by, units.map((u) => u.group ?? ""));
+function subgroupBlock(
+  units: AnalysisUnit[],
+  by: Grouping,
+  options: Pick<MetaQuery, "method" | "ci">,
+  decision: Result["decision"],
+): Result["subgroups"] {
+  const levels = orderLevels(
+    by,
+    units.map((u) => u.group ?? ""),
+  );
   const model = `One model for all groups: each ${by} level has its own mean, and the levels share one between-site-year variance τ² (${options.method}, ${options.ci === "hksj" ? "HKSJ F/t tests" : "Wald χ²/z tests"}).`;
   const notes: string[] = [];
   const count = (level: string) => units.filter((u) => u.group === level).length;
   for (const level of levels) if (count(level) < 5) notes.push(`${level}: only ${count(level)} site-year(s); its estimate is imprecise.`);
   if (units.length === 0) return { by, model, levels: [], betweenGroupTest: null, qm: null, tau2: null, notes };
   if (levels.length < 2) {
-    const only = metaAnalysis({ yi: units.map((u) => u.yi), vi: units.map((u) => u.vi), method: options.method, ci: options.ci, heterogeneityInterval: false });
+    const only = metaAnalysis({
+      yi: units.map((u) => u.yi),
+      vi: units.map((u) => u.vi),
+      method: options.method,
+      ci: options.ci,
+      heterogeneityInterval: false,
+    });
     notes.push("Only one level matches: there is nothing to compare between groups.");
     // One level is the pooled question: its predictive distribution is the pooled t(k − 2) one.
-    const predictive = options.method === "FE" || units.length < 3 ? null : predictiveOf(only.estimate, only.se, only.tau2, units.length - 2);
+    const predictive =
+      options.method === "FE" || units.length < 3 ? null : predictiveOf(only.estimate, only.se, only.tau2, units.length - 2);
     return {
       by,
       model,
-      levels: [{ level: levels[0]!, k: units.length, estimate: only.estimate, se: only.se, ciLower: only.ciLower, ciUpper: only.ciUpper, pValue: only.pValue, ...levelDecision(units, levels[0]!, predictive, decision.breakEven) }],
+      levels: [
+        {
+          level: levels[0]!,
+          k: units.length,
+          estimate: only.estimate,
+          se: only.se,
+          ciLower: only.ciLower,
+          ciUpper: only.ciUpper,
+          pValue: only.pValue,
+          ...levelDecision(units, levels[0]!, predictive, decision.breakEven),
+        },
+      ],
       betweenGroupTest: null,
       qm: null,
       tau2: only.tau2,
@@ -307,7 +362,13 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
   notes.push(...fit.differences.notes.filter((n) => !notes.includes(n)));
   const differ = fit.differences.qm;
   const test = differ
-    ? { statistic: differ.statistic, df: Array.isArray(differ.df) ? differ.df[0] : differ.df, df2: Array.isArray(differ.df) ? differ.df[1] : null, distribution: differ.distribution, pValue: differ.pValue }
+    ? {
+        statistic: differ.statistic,
+        df: Array.isArray(differ.df) ? differ.df[0] : differ.df,
+        df2: Array.isArray(differ.df) ? differ.df[1] : null,
+        distribution: differ.distribution,
+        pValue: differ.pValue,
+      }
     : null;
   const df = fit.perLevel.ci === "hksj" ? fit.perLevel.residualDf : null;
   return {
@@ -321,7 +382,12 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
       ciLower: c.ciLower,
       ciUpper: c.ciUpper,
       pValue: c.pValue,
-      ...levelDecision(units, c.name, options.method === "FE" ? null : predictiveOf(c.estimate, c.se, fit.perLevel.tau2, df), decision.breakEven),
+      ...levelDecision(
+        units,
+        c.name,
+        options.method === "FE" ? null : predictiveOf(c.estimate, c.se, fit.perLevel.tau2, df),
+        decision.breakEven,
+      ),
     })),
     betweenGroupTest: test ? { ...test, text: describeBetweenGroupTest(test) } : null,
     qm: test,
@@ -331,19 +397,38 @@ function subgroupBlock(units: AnalysisUnit[], by: Grouping, options: Pick<MetaQu
 }
 
 /** Response units per bu/ac of a break-even, or why there is none. */
-function breakEvenScale(options: Omit<MetaQuery, keyof TrialFilters>, crops: string[]): { unitsPerBushel: number | null; note: string | null } {
-  if (options.effect === "lnrr") return { unitsPerBushel: null, note: "A break-even yield needs a yield response: ask for effect=md to compare with the cost." };
+function breakEvenScale(
+  options: Omit<MetaQuery, keyof TrialFilters>,
+  crops: string[],
+): { unitsPerBushel: number | null; note: string | null } {
+  if (options.effect === "lnrr")
+    return { unitsPerBushel: null, note: "A break-even yield needs a yield response: ask for effect=md to compare with the cost." };
   if (options.units === "kg/ha") {
-    if (crops.length > 1) return { unitsPerBushel: null, note: "Several crops: a price per bushel has no single kg/ha break-even; choose one crop or bu/ac." };
-    return { unitsPerBushel: crops.length ? kilogramsPerHectarePerBushelPerAcre(cropStandards[crops[0] as StandardCrop]?.poundsPerBushel ?? Number.NaN) : null, note: null };
+    if (crops.length > 1)
+      return { unitsPerBushel: null, note: "Several crops: a price per bushel has no single kg/ha break-even; choose one crop or bu/ac." };
+    return {
+      unitsPerBushel: crops.length
+        ? kilogramsPerHectarePerBushelPerAcre(cropStandards[crops[0] as StandardCrop]?.poundsPerBushel ?? Number.NaN)
+        : null,
+      note: null,
+    };
   }
   return { unitsPerBushel: 1, note: crops.length > 1 ? "Several crops: one price per bushel is applied to all of them." : null };
 }
 
-function decisionBlock(units: AnalysisUnit[], fit: ReturnType<typeof metaAnalysis> | null, options: Omit<MetaQuery, keyof TrialFilters>, crops: string[]): Result["decision"] {
+function decisionBlock(
+  units: AnalysisUnit[],
+  fit: ReturnType<typeof metaAnalysis> | null,
+  options: Omit<MetaQuery, keyof TrialFilters>,
+  crops: string[],
+): Result["decision"] {
   const notes: string[] = [];
   const price = options.price ?? null;
-  const cost = options.cost ?? (options.productCost !== undefined || options.applicationCost !== undefined ? (options.productCost ?? 0) + (options.applicationCost ?? 0) : null);
+  const cost =
+    options.cost ??
+    (options.productCost !== undefined || options.applicationCost !== undefined
+      ? (options.productCost ?? 0) + (options.applicationCost ?? 0)
+      : null);
   const scale = breakEvenScale(options, crops);
   let breakEven: number | null = null;
   if (price !== null && cost !== null) {
@@ -354,7 +439,8 @@ function decisionBlock(units: AnalysisUnit[], fit: ReturnType<typeof metaAnalysi
   }
   const k = units.length;
   const ys = units.map((u) => u.yi);
-  const predictive = (x: number) => (fit ? probabilityNewResponseAbove({ x, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k }) : null);
+  const predictive = (x: number) =>
+    fit ? probabilityNewResponseAbove({ x, estimate: fit.estimate, se: fit.se, tau2: fit.tau2, k }) : null;
   const aboveZero = predictive(0);
   const aboveB = breakEven !== null ? predictive(breakEven) : null;
   for (const n of [aboveZero?.note, aboveB?.note]) if (n && !notes.includes(n)) notes.push(n);
@@ -385,7 +471,13 @@ function excludedSiteYears(excluded: { contrast: Contrast; reason: string }[], v
     if (entry) entry.treatments.push(contrast.treatmentCode);
     else {
       const v = versionOf.get(contrast.versionId);
-      bySiteYear.set(key, { siteYearCode: contrast.siteYearCode, dataset: v?.datasetSlug ?? "", version: v?.semver ?? "", treatments: [contrast.treatmentCode], reason });
+      bySiteYear.set(key, {
+        siteYearCode: contrast.siteYearCode,
+        dataset: v?.datasetSlug ?? "",
+        version: v?.semver ?? "",
+        treatments: [contrast.treatmentCode],
+        reason,
+      });
     }
   }
   return [...bySiteYear.values()];

@@ -48,7 +48,12 @@ function contrastEffect(row: EstimationContrast, effect: EffectMeasure, units: Y
     if (row.lnrr !== null && row.lnrrVar !== null && row.lnrrVar > 0) return { yi: row.lnrr, vi: row.lnrrVar };
     if (!(row.treatedMeanKgHa > 0 && row.checkMeanKgHa > 0)) return { reason: "No log response ratio: a mean yield is not positive." };
     // MSE/r from the balanced identity SE² = 2·MSE/r.
-    return logResponseRatioEffect({ treatmentMean: row.treatedMeanKgHa, checkMean: row.checkMeanKgHa, mse: (row.seKgHa ** 2 * row.replicates) / 2, replicates: row.replicates });
+    return logResponseRatioEffect({
+      treatmentMean: row.treatedMeanKgHa,
+      checkMean: row.checkMeanKgHa,
+      mse: (row.seKgHa ** 2 * row.replicates) / 2,
+      replicates: row.replicates,
+    });
   }
   const factor = yieldFactor(row.crop, units);
   if (factor === null) return { reason: `No standard bushel weight for the crop "${row.crop}"; ask for units=kg/ha.` };
@@ -131,5 +136,11 @@ export function ownTest(unit: Pick<AnalysisUnit, "yi" | "vi" | "df">) {
   const se = Math.sqrt(unit.vi);
   const critical = critical975(unit.df);
   const pValue = unit.df > 0 && se > 0 ? tTwoSidedP(unit.yi / se, unit.df) : null;
-  return { se, ciLower: unit.yi - critical * se, ciUpper: unit.yi + critical * se, pValue, significant: pValue === null ? null : pValue < 0.05 };
+  return {
+    se,
+    ciLower: unit.yi - critical * se,
+    ciUpper: unit.yi + critical * se,
+    pValue,
+    significant: pValue === null ? null : pValue < 0.05,
+  };
 }

@@ -3,7 +3,10 @@ import type { Db } from "@/db/client";
 import { applications } from "@/db/schema";
 import { placementLabels } from "@/constants/vocabulary";
 
-type Application = Pick<typeof applications.$inferSelect, "treatmentId" | "product" | "grade" | "placement" | "nLbAc" | "p2o5LbAc" | "k2oLbAc" | "sLbAc">;
+type Application = Pick<
+  typeof applications.$inferSelect,
+  "treatmentId" | "product" | "grade" | "placement" | "nLbAc" | "p2o5LbAc" | "k2oLbAc" | "sLbAc"
+>;
 
 const nutrientNames = [
   ["nLbAc", "N"],
@@ -27,7 +30,9 @@ function applicationLabel(a: Omit<Application, "treatmentId">): string {
     .sort((x, y) => y.value - x.value)
     .map((r) => `${pounds(r.value)} lb ${r.name}`);
   const placement = (placementLabels[a.placement as keyof typeof placementLabels] ?? a.placement).replace(/ \(.*\)$/, "");
-  return [product, rates.length ? `${rates.join(" + ")}/ac` : null, placement.charAt(0).toLowerCase() + placement.slice(1)].filter(Boolean).join(", ");
+  return [product, rates.length ? `${rates.join(" + ")}/ac` : null, placement.charAt(0).toLowerCase() + placement.slice(1)]
+    .filter(Boolean)
+    .join(", ");
 }
 
 /** Labels of the named treatments from their applications (several applications joined by "; "). */

@@ -104,7 +104,11 @@ export async function loadCitableCatalogue(db: Db, config: AppConfig): Promise<C
 }
 
 export async function loadCitableDatasetOfVersion(db: Db, config: AppConfig, versionId: string): Promise<CitableDataset | undefined> {
-  const [row] = await db.select({ dataset: datasets }).from(versions).innerJoin(datasets, eq(datasets.id, versions.datasetId)).where(eq(versions.id, versionId));
+  const [row] = await db
+    .select({ dataset: datasets })
+    .from(versions)
+    .innerJoin(datasets, eq(datasets.id, versions.datasetId))
+    .where(eq(versions.id, versionId));
   if (!row) return undefined;
   const [built] = await buildCitable(db, config, [row.dataset]);
   return built;
@@ -120,9 +124,19 @@ async function buildCitable(db: Db, config: AppConfig, rows: DatasetRow[]): Prom
   const released = await db
     .select()
     .from(versions)
-    .where(and(inArray(versions.datasetId, rows.map((d) => d.id)), inArray(versions.state, ["published", "withdrawn"])));
+    .where(
+      and(
+        inArray(
+          versions.datasetId,
+          rows.map((d) => d.id),
+        ),
+        inArray(versions.state, ["published", "withdrawn"]),
+      ),
+    );
   const ownerIds = [...new Set(rows.map((d) => d.ownerId))];
-  const owners = new Map((await db.select({ id: users.id, name: users.displayName }).from(users).where(inArray(users.id, ownerIds))).map((u) => [u.id, u.name]));
+  const owners = new Map(
+    (await db.select({ id: users.id, name: users.displayName }).from(users).where(inArray(users.id, ownerIds))).map((u) => [u.id, u.name]),
+  );
   const out: CitableDataset[] = [];
   for (const d of rows) {
     const mine = released.filter((v) => v.datasetId === d.id).sort((a, b) => compareSemver(a.semver, b.semver));
@@ -178,7 +192,18 @@ function toCitableVersion(config: AppConfig, d: DatasetRow, v: VersionRow, owner
   };
 }
 
-function metadataOf({ title, description, licence, keywords, region, crops, creators, contributors, funders, methods }: CitableMetadata): CitableMetadata {
+function metadataOf({
+  title,
+  description,
+  licence,
+  keywords,
+  region,
+  crops,
+  creators,
+  contributors,
+  funders,
+  methods,
+}: CitableMetadata): CitableMetadata {
   return { title, description, licence, keywords, region, crops, creators, contributors, funders, methods };
 }
 

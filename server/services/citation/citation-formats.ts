@@ -78,4 +78,3 @@ function risText(item: CslItem): string {
   lines.push("ER  -");
   return `${lines.join("\n")}\n`;
 }
-

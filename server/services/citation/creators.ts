@@ -10,7 +10,8 @@ export interface Creator {
 }
 
 /** Words that mark a contributor as a group rather than a person (no role says so). */
-const organisationWords = /\b(network|group|university|college|institute|station|laboratory|lab|council|association|cooperative|co-op|service|centre|center|program|programme|project|consortium|society|department|agency|board|team)\b/i;
+const organisationWords =
+  /\b(network|group|university|college|institute|station|laboratory|lab|council|association|cooperative|co-op|service|centre|center|program|programme|project|consortium|society|department|agency|board|team)\b/i;
 
 /**
  * The creators a citation names: contributors in the creator or project-leader role, in their given order; when

@@ -12,7 +12,9 @@ const resourceType = "Fertilizer field-trial data";
  */
 export function versionDoiAttributes(dataset: CitableDataset, version: CitableVersion): DataCiteAttributes {
   const { previous, next } = neighbours(dataset, version.versionId);
-  const related: DataCiteRelatedIdentifier[] = [{ relatedIdentifier: dataset.intendedConceptDoi, relatedIdentifierType: "DOI", relationType: "IsVersionOf" }];
+  const related: DataCiteRelatedIdentifier[] = [
+    { relatedIdentifier: dataset.intendedConceptDoi, relatedIdentifierType: "DOI", relationType: "IsVersionOf" },
+  ];
   if (previous?.doi) related.push({ relatedIdentifier: previous.doi, relatedIdentifierType: "DOI", relationType: "IsNewVersionOf" });
   if (next?.doi) related.push({ relatedIdentifier: next.doi, relatedIdentifierType: "DOI", relationType: "IsPreviousVersionOf" });
   const base = describe(version, version.intendedDoi, version.landingUrl, version.publishedAt);
@@ -46,7 +48,9 @@ function withdrawal(version: CitableVersion) {
 export function conceptDoiAttributes(dataset: CitableDataset): DataCiteAttributes {
   return {
     ...describe(dataset, dataset.intendedConceptDoi, dataset.landingUrl, dataset.versions[0]!.publishedAt),
-    relatedIdentifiers: dataset.versions.flatMap((v) => (v.doi ? [{ relatedIdentifier: v.doi, relatedIdentifierType: "DOI" as const, relationType: "HasVersion" as const }] : [])),
+    relatedIdentifiers: dataset.versions.flatMap((v) =>
+      v.doi ? [{ relatedIdentifier: v.doi, relatedIdentifierType: "DOI" as const, relationType: "HasVersion" as const }] : [],
+    ),
   };
 }
 
@@ -85,7 +89,13 @@ function dataciteCreator(c: Creator): DataCiteCreator {
     nameType: c.personal ? "Personal" : "Organizational",
     ...(c.givenName ? { givenName: c.givenName } : {}),
     ...(c.familyName && c.personal ? { familyName: c.familyName } : {}),
-    ...(c.orcid ? { nameIdentifiers: [{ nameIdentifier: `https://orcid.org/${c.orcid}`, nameIdentifierScheme: "ORCID", schemeUri: "https://orcid.org" }] } : {}),
+    ...(c.orcid
+      ? {
+          nameIdentifiers: [
+            { nameIdentifier: `https://orcid.org/${c.orcid}`, nameIdentifierScheme: "ORCID", schemeUri: "https://orcid.org" },
+          ],
+        }
+      : {}),
     ...(c.affiliation ? { affiliation: [{ name: c.affiliation }] } : {}),
   };
 }

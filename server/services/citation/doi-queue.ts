@@ -54,7 +54,11 @@ export async function drainDoiQueue(ctx: AppContext): Promise<void> {
  * update after a withdrawal, or another try that a person asked for. The version keeps its registered DOI (if it
  * has one) while the update waits.
  */
-export async function queueDoiWork(ctx: AppContext, versionId: string, from: ("none" | "pending" | "registered" | "failed")[]): Promise<boolean> {
+export async function queueDoiWork(
+  ctx: AppContext,
+  versionId: string,
+  from: ("none" | "pending" | "registered" | "failed")[],
+): Promise<boolean> {
   if (!ctx.config.datacite.url) return false;
   const queued = await ctx.db
     .update(versions)

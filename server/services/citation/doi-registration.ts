@@ -52,10 +52,19 @@ async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<D
       if (n?.doi) await client.updateDoi(n.doi, versionDoiAttributes(linked, n));
     }
     const concept = await upsertDoi(client, conceptDoiAttributes(linked));
-    await ctx.db.update(datasets).set({ conceptDoi: concept.doi ?? dataset.intendedConceptDoi }).where(eq(datasets.id, dataset.datasetId));
+    await ctx.db
+      .update(datasets)
+      .set({ conceptDoi: concept.doi ?? dataset.intendedConceptDoi })
+      .where(eq(datasets.id, dataset.datasetId));
     await ctx.db
       .update(versions)
-      .set({ doi: minted.doi ?? version.intendedDoi, doiStatus: "registered", doiAttempts: sql`${versions.doiAttempts} + 1`, doiLastError: null, updatedAt: new Date() })
+      .set({
+        doi: minted.doi ?? version.intendedDoi,
+        doiStatus: "registered",
+        doiAttempts: sql`${versions.doiAttempts} + 1`,
+        doiLastError: null,
+        updatedAt: new Date(),
+      })
       .where(eq(versions.id, versionId));
     return "registered";
   } catch (error) {
@@ -63,7 +72,12 @@ async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<D
     const message = error instanceof Error ? error.message : String(error);
     await ctx.db
       .update(versions)
-      .set({ doiStatus: outcome, doiAttempts: sql`${versions.doiAttempts} + 1`, doiLastError: message.slice(0, 2000), updatedAt: new Date() })
+      .set({
+        doiStatus: outcome,
+        doiAttempts: sql`${versions.doiAttempts} + 1`,
+        doiLastError: message.slice(0, 2000),
+        updatedAt: new Date(),
+      })
       .where(eq(versions.id, versionId));
     return outcome;
   }

@@ -1,8 +1,14 @@
 /** Open licences a version may carry, by SPDX identifier, with their canonical deed URLs. */
 const known: Record<string, { name: string; url: string }> = {
   "CC-BY-4.0": { name: "Creative Commons Attribution 4.0 International", url: "https://creativecommons.org/licenses/by/4.0/" },
-  "CC-BY-SA-4.0": { name: "Creative Commons Attribution Share Alike 4.0 International", url: "https://creativecommons.org/licenses/by-sa/4.0/" },
-  "CC-BY-NC-4.0": { name: "Creative Commons Attribution Non Commercial 4.0 International", url: "https://creativecommons.org/licenses/by-nc/4.0/" },
+  "CC-BY-SA-4.0": {
+    name: "Creative Commons Attribution Share Alike 4.0 International",
+    url: "https://creativecommons.org/licenses/by-sa/4.0/",
+  },
+  "CC-BY-NC-4.0": {
+    name: "Creative Commons Attribution Non Commercial 4.0 International",
+    url: "https://creativecommons.org/licenses/by-nc/4.0/",
+  },
   "CC0-1.0": { name: "Creative Commons Zero v1.0 Universal", url: "https://creativecommons.org/publicdomain/zero/1.0/" },
   "ODbL-1.0": { name: "Open Data Commons Open Database License v1.0", url: "https://opendatacommons.org/licenses/odbl/1-0/" },
   "ODC-By-1.0": { name: "Open Data Commons Attribution License v1.0", url: "https://opendatacommons.org/licenses/by/1-0/" },

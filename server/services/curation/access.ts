@@ -13,7 +13,10 @@ export async function canEditDataset(db: Db, user: User | undefined, dataset: Da
   if (user.role === "admin") return true;
   if (user.role !== "curator") return false;
   if (dataset.ownerId === user.id) return true;
-  const [row] = await db.select().from(datasetEditors).where(and(eq(datasetEditors.datasetId, dataset.id), eq(datasetEditors.userId, user.id)));
+  const [row] = await db
+    .select()
+    .from(datasetEditors)
+    .where(and(eq(datasetEditors.datasetId, dataset.id), eq(datasetEditors.userId, user.id)));
   return !!row;
 }
 
@@ -43,7 +46,11 @@ export async function datasetBySlug(db: Db, slug: string): Promise<Dataset> {
 }
 
 export async function versionById(db: Db, id: string): Promise<{ version: Version; dataset: Dataset }> {
-  const [row] = await db.select({ version: versions, dataset: datasets }).from(versions).innerJoin(datasets, eq(datasets.id, versions.datasetId)).where(eq(versions.id, id));
+  const [row] = await db
+    .select({ version: versions, dataset: datasets })
+    .from(versions)
+    .innerJoin(datasets, eq(datasets.id, versions.datasetId))
+    .where(eq(versions.id, id));
   if (!row) throw notFound("No such version.");
   return row;
 }
@@ -80,12 +87,19 @@ export async function contentAuthors(db: Db, version: Pick<Version, "id" | "crea
 }
 
 /** Approving publishes, so it needs a second person: a reviewer who made none of the version's content. */
-export async function canApprove(db: Db, user: User | undefined, version: Pick<Version, "id" | "state" | "createdBy" | "submittedBy">): Promise<boolean> {
+export async function canApprove(
+  db: Db,
+  user: User | undefined,
+  version: Pick<Version, "id" | "state" | "createdBy" | "submittedBy">,
+): Promise<boolean> {
   if (!user || !isReviewer(user) || version.state !== "in_review") return false;
   return !(await contentAuthors(db, version)).has(user.id);
 }
 
 /** Note that a user changed a draft's content other than by an upload. */
 export async function recordContentEdit(db: Db, versionId: string, userId: string) {
-  await db.insert(versionEdits).values({ versionId, userId }).onConflictDoUpdate({ target: [versionEdits.versionId, versionEdits.userId], set: { lastAt: new Date() } });
+  await db
+    .insert(versionEdits)
+    .values({ versionId, userId })
+    .onConflictDoUpdate({ target: [versionEdits.versionId, versionEdits.userId], set: { lastAt: new Date() } });
 }

@@ -25,7 +25,8 @@ export function versionReferences(table: PgTable): Reference[] {
       const [column, ...more] = reference.columns;
       const target = reference.foreignTable;
       if (!column || more.length) throw new Error(`${getTableName(table)}: only single-column references can be copied`);
-      if (!versionRowTables.includes(target)) throw new Error(`${getTableName(table)}.${column.name} refers to ${getTableName(target)}, which a copy does not carry`);
+      if (!versionRowTables.includes(target))
+        throw new Error(`${getTableName(table)}.${column.name} refers to ${getTableName(target)}, which a copy does not carry`);
       if (!("code" in getTableColumns(target))) throw new Error(`${getTableName(target)} has no code to match its rows across versions`);
       return { column: column.name, table: getTableName(target) };
     });

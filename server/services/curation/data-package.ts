@@ -20,7 +20,10 @@ const licences: Record<string, { path: string; title: string }> = {
 /** A published version by slug and semver (`latest` = highest published). Withdrawn ones answer 410 with the reason. */
 export async function publishedVersion(db: Db, slug: string, semver: string): Promise<{ dataset: Dataset; version: Version }> {
   const dataset = await datasetBySlug(db, slug);
-  const rows = await db.select().from(versions).where(and(eq(versions.datasetId, dataset.id), inArray(versions.state, ["published", "withdrawn"])));
+  const rows = await db
+    .select()
+    .from(versions)
+    .where(and(eq(versions.datasetId, dataset.id), inArray(versions.state, ["published", "withdrawn"])));
   const version = pickVersion(rows, semver);
   if (!version) throw notFound(`Dataset "${slug}" has no published version ${semver}.`);
   if (version.state === "withdrawn") throw versionGone(slug, version.semver, version.withdrawnReason, version.withdrawnAt);
@@ -52,7 +55,9 @@ function servedSchema(version: Version, built: BuiltResource) {
   const schema = packageResourceSchema(version, built.name);
   return {
     ...schema,
-    fields: schema.fields.map((f) => (built.guarded.has(f.name) ? { ...f, description: [f.description, formulaGuardNote].filter(Boolean).join(" ") } : f)),
+    fields: schema.fields.map((f) =>
+      built.guarded.has(f.name) ? { ...f, description: [f.description, formulaGuardNote].filter(Boolean).join(" ") } : f,
+    ),
   };
 }
 
@@ -80,7 +85,13 @@ function packageResourceSchema(version: Version, resource: ResourceName) {
  * recognise a tabular package. Inside the zip the paths are relative (`data/sites.csv`); the descriptor served on its
  * own (`paths: "absolute"`) names each file by the URL that serves it, so it works from its address.
  */
-export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, version: Version, built: BuiltResource[], { paths = "relative" }: { paths?: "relative" | "absolute" } = {}) {
+export function dataPackageDescriptor(
+  publicUrl: string,
+  dataset: Dataset,
+  version: Version,
+  built: BuiltResource[],
+  { paths = "relative" }: { paths?: "relative" | "absolute" } = {},
+) {
   const meta = (version.metadataSnapshot ?? {}) as Partial<Dataset>;
   const licence = meta.licence ?? dataset.licence;
   const known = licences[licence];
@@ -112,7 +123,8 @@ export function dataPackageDescriptor(publicUrl: string, dataset: Dataset, versi
       : {}),
     plotbank: {
       checksum: version.checksum,
-      checksumOf: "SHA-256 over, for each resource in the order sites, site_years, soil_tests, treatments, plots, summaries, its name, a line feed and its CSV file as served",
+      checksumOf:
+        "SHA-256 over, for each resource in the order sites, site_years, soil_tests, treatments, plots, summaries, its name, a line feed and its CSV file as served",
       csv: `CRLF line ends, UTF-8 without a byte-order mark. ${formulaGuardNote}`,
       changelog: version.changelog,
       units: "yields kg/ha at the crop's standard moisture; nutrient rates lb/ac of N, P2O5, K2O and S",
@@ -140,7 +152,11 @@ export async function dataPackageZip(db: Db, publicUrl: string, dataset: Dataset
   for (const resource of resourceOrder) built.push(await buildResource(db, version, resource));
   const zip = new yazl.ZipFile();
   const mtime = version.publishedAt ?? new Date(0);
-  zip.addBuffer(Buffer.from(JSON.stringify(dataPackageDescriptor(publicUrl, dataset, version, built), null, 2) + "\n"), "datapackage.json", { mtime });
+  zip.addBuffer(
+    Buffer.from(JSON.stringify(dataPackageDescriptor(publicUrl, dataset, version, built), null, 2) + "\n"),
+    "datapackage.json",
+    { mtime },
+  );
   for (const r of built) zip.addBuffer(r.csv, `data/${r.name}.csv`, { mtime });
   zip.end();
   return zip.outputStream;

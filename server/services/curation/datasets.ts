@@ -43,7 +43,11 @@ async function describe(db: Db, user: User | undefined, d: Dataset): Promise<Cur
     methods: d.methods,
     ownerId: d.ownerId,
     editorIds: editors.map((e) => e.userId),
-    editors: editors.map((e) => ({ id: e.userId, displayName: e.displayName, email: seesAddresses || e.userId === user?.id ? e.email : "" })),
+    editors: editors.map((e) => ({
+      id: e.userId,
+      displayName: e.displayName,
+      email: seesAddresses || e.userId === user?.id ? e.email : "",
+    })),
     canShare: !!user && (user.role === "admin" || user.id === d.ownerId),
     canEdit,
     versions: vs.map(versionBrief),
@@ -55,7 +59,8 @@ async function describe(db: Db, user: User | undefined, d: Dataset): Promise<Cur
 export async function createDataset(db: Db, user: User, input: DatasetCreate): Promise<CurationDataset> {
   const body = datasetCreate.parse(input);
   const [existing] = await db.select({ id: datasets.id }).from(datasets).where(eq(datasets.slug, body.slug));
-  if (existing) throw conflict(`A dataset is already called "${body.slug}"; choose another slug.`, [{ field: "body.slug", message: "already taken" }]);
+  if (existing)
+    throw conflict(`A dataset is already called "${body.slug}"; choose another slug.`, [{ field: "body.slug", message: "already taken" }]);
   const [d] = await db
     .insert(datasets)
     .values({ ...body, funding: body.funding ?? null, methods: body.methods ?? null, ownerId: user.id })
@@ -65,7 +70,11 @@ export async function createDataset(db: Db, user: User, input: DatasetCreate): P
 
 export async function patchDataset(db: Db, user: User, dataset: Dataset, patch: DatasetPatch): Promise<CurationDataset> {
   await assertCanEdit(db, user, dataset);
-  const [d] = await db.update(datasets).set({ ...patch, updatedAt: new Date() }).where(eq(datasets.id, dataset.id)).returning();
+  const [d] = await db
+    .update(datasets)
+    .set({ ...patch, updatedAt: new Date() })
+    .where(eq(datasets.id, dataset.id))
+    .returning();
   return describe(db, user, d!);
 }
 
@@ -78,7 +87,17 @@ export async function listCurationDatasets(db: Db, user: User): Promise<Curation
     rows = await db
       .select()
       .from(datasets)
-      .where(or(eq(datasets.ownerId, user.id), shared.length ? inArray(datasets.id, shared.map((s) => s.id)) : undefined))
+      .where(
+        or(
+          eq(datasets.ownerId, user.id),
+          shared.length
+            ? inArray(
+                datasets.id,
+                shared.map((s) => s.id),
+              )
+            : undefined,
+        ),
+      )
       .orderBy(desc(datasets.updatedAt));
   }
   return Promise.all(rows.map((d) => describe(db, user, d)));
@@ -98,11 +117,14 @@ function assertCanShare(user: User, dataset: Dataset) {
 export async function addEditor(db: Db, user: User, dataset: Dataset, email: string): Promise<CurationDataset> {
   assertCanShare(user, dataset);
   const editor = await findUserByEmail(db, email);
-  if (editor && editor.id === dataset.ownerId) throw conflict(`${email} owns this dataset already.`, [{ field: "body.email", message: "this is the owner" }]);
+  if (editor && editor.id === dataset.ownerId)
+    throw conflict(`${email} owns this dataset already.`, [{ field: "body.email", message: "this is the owner" }]);
   // One answer for "no account" and "an account that cannot be an editor": sharing must not tell a curator who has
   // an account here, or with which role.
   if (!editor || (editor.role !== "curator" && editor.role !== "admin") || editor.disabledAt) {
-    throw new HttpProblem(404, "Not found", `No curator has the e-mail ${email}.`, { errors: [{ field: "body.email", message: "no curator has this address" }] });
+    throw new HttpProblem(404, "Not found", `No curator has the e-mail ${email}.`, {
+      errors: [{ field: "body.email", message: "no curator has this address" }],
+    });
   }
   await db.insert(datasetEditors).values({ datasetId: dataset.id, userId: editor.id }).onConflictDoNothing();
   return describe(db, user, dataset);

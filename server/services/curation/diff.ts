@@ -23,7 +23,8 @@ const rowsOf = <T>(r: unknown) => (r as { rows: T[] }).rows;
 function sides(resource: ResourceName, fields: string[], from: string, to: string) {
   const q = resourceQueries[resource];
   const json = `jsonb_build_object(${fields.map((f) => `'${f}', (${q.columns[f]})::text`).join(", ")})`;
-  const side = (v: string) => `SELECT ${keyOf[resource]} AS k, ${json} AS j FROM ${q.from} WHERE ${alias[resource]}.version_id = ${uuid(v)}`;
+  const side = (v: string) =>
+    `SELECT ${keyOf[resource]} AS k, ${json} AS j FROM ${q.from} WHERE ${alias[resource]}.version_id = ${uuid(v)}`;
   return `WITH a AS (${side(from)}), b AS (${side(to)})`;
 }
 const kind = "CASE WHEN a.k IS NULL THEN 'added' WHEN b.k IS NULL THEN 'removed' ELSE 'changed' END";
@@ -37,7 +38,8 @@ export function bumpSemver(semver: string, bump: Bump): string {
 }
 
 function schemaDiff(a: TableSchemaDescriptor, b: TableSchemaDescriptor) {
-  const added: string[] = [], removed: string[] = [];
+  const added: string[] = [],
+    removed: string[] = [];
   const changed: { field: string; what: string[] }[] = [];
   for (const resource of resourceOrder) {
     const fa = new Map((a.resources[resource]?.fields ?? []).map((f) => [f.name, f]));
@@ -49,7 +51,9 @@ function schemaDiff(a: TableSchemaDescriptor, b: TableSchemaDescriptor) {
         removed.push(`${resource}.${name}`);
         continue;
       }
-      const what = (["type", "unit", "title", "description", "constraints", "categories"] as const).filter((k) => JSON.stringify(x[k] ?? null) !== JSON.stringify(y[k] ?? null));
+      const what = (["type", "unit", "title", "description", "constraints", "categories"] as const).filter(
+        (k) => JSON.stringify(x[k] ?? null) !== JSON.stringify(y[k] ?? null),
+      );
       if (what.length) changed.push({ field: `${resource}.${name}`, what });
     }
   }
@@ -59,7 +63,8 @@ function schemaDiff(a: TableSchemaDescriptor, b: TableSchemaDescriptor) {
 /** What changed between two versions of one dataset, and the semantic-version bump that change calls for. */
 export async function diffVersions(db: Db, fromId: string, toId: string): Promise<VersionDiff> {
   const [{ version: from }, { version: to }] = await Promise.all([versionById(db, fromId), versionById(db, toId)]);
-  if (from.datasetId !== to.datasetId) throw badRequest("Both versions must belong to the same dataset.", [{ field: "query.to", message: "another dataset's version" }]);
+  if (from.datasetId !== to.datasetId)
+    throw badRequest("Both versions must belong to the same dataset.", [{ field: "query.to", message: "another dataset's version" }]);
   const rows = {} as VersionDiff["rows"];
   const touchedSiteYears = new Map<string, Set<string>>();
   let siteYearAttrChanges: { k: string; aj: Record<string, string | null>; bj: Record<string, string | null> }[] = [];
@@ -69,16 +74,26 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
     const common = fieldsOf(from.tableSchema, resource).filter((f) => fieldsOf(to.tableSchema, resource).includes(f));
     const withs = sides(resource, common, from.id, to.id);
     const counts = rowsOf<{ kind: string; n: number | string }>(
-      await db.execute(sql.raw(`${withs} SELECT ${kind} AS kind, count(*) AS n FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j GROUP BY 1`)),
+      await db.execute(
+        sql.raw(`${withs} SELECT ${kind} AS kind, count(*) AS n FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j GROUP BY 1`),
+      ),
     );
     const n = (k: string) => Number(counts.find((c) => c.kind === k)?.n ?? 0);
     const limit = resource === "site_years" ? 100_000 : 20;
-    const sample = rowsOf<{ kind: "added" | "removed" | "changed"; k: string; aj: Record<string, string | null> | null; bj: Record<string, string | null> | null }>(
+    const sample = rowsOf<{
+      kind: "added" | "removed" | "changed";
+      k: string;
+      aj: Record<string, string | null> | null;
+      bj: Record<string, string | null> | null;
+    }>(
       await db.execute(
-        sql.raw(`${withs} SELECT ${kind} AS kind, coalesce(a.k, b.k) AS k, a.j AS aj, b.j AS bj FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j ORDER BY coalesce(a.k, b.k) COLLATE "C" LIMIT ${limit}`),
+        sql.raw(
+          `${withs} SELECT ${kind} AS kind, coalesce(a.k, b.k) AS k, a.j AS aj, b.j AS bj FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j ORDER BY coalesce(a.k, b.k) COLLATE "C" LIMIT ${limit}`,
+        ),
       ),
     );
-    const parse = (j: unknown) => (typeof j === "string" ? (JSON.parse(j) as Record<string, string | null>) : (j as Record<string, string | null> | null));
+    const parse = (j: unknown) =>
+      typeof j === "string" ? (JSON.parse(j) as Record<string, string | null>) : (j as Record<string, string | null> | null);
     const changedFields = (aj: Record<string, string | null> | null, bj: Record<string, string | null> | null) =>
       aj && bj ? Object.keys(bj).filter((f) => aj[f] !== bj[f]) : Object.keys(aj ?? bj ?? {});
     rows[resource] = {
@@ -94,7 +109,11 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
     }
     if (perSiteYear.includes(resource)) {
       const grouped = rowsOf<{ sy: string }>(
-        await db.execute(sql.raw(`${withs} SELECT DISTINCT split_part(coalesce(a.k, b.k), '/', 1) AS sy FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j`)),
+        await db.execute(
+          sql.raw(
+            `${withs} SELECT DISTINCT split_part(coalesce(a.k, b.k), '/', 1) AS sy FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j`,
+          ),
+        ),
       );
       for (const g of grouped) {
         const set = touchedSiteYears.get(g.sy) ?? new Set<string>();
@@ -112,7 +131,9 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
     for (const r of set) s.add(r);
     changedMap.set(sy, s);
   }
-  siteYears.changed = [...changedMap.entries()].sort(([a], [b]) => (a < b ? -1 : 1)).map(([siteYear, f]) => ({ siteYear, fields: [...f].sort() }));
+  siteYears.changed = [...changedMap.entries()]
+    .sort(([a], [b]) => (a < b ? -1 : 1))
+    .map(([siteYear, f]) => ({ siteYear, fields: [...f].sort() }));
 
   const schema = schemaDiff(from.tableSchema, to.tableSchema);
   const reasons: string[] = [];
@@ -128,7 +149,10 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
     if (siteYears.added.length) reasons.push(`site-years added: ${siteYears.added.join(", ")}`);
     if (schema.added.length) reasons.push(`fields added to the data dictionary: ${schema.added.join(", ")}`);
     if (reasons.length) bump = "minor";
-    else reasons.push(siteYears.changed.length || resourceOrder.some((r) => rows[r].changed || rows[r].added) ? "corrections only" : "no changes");
+    else
+      reasons.push(
+        siteYears.changed.length || resourceOrder.some((r) => rows[r].changed || rows[r].added) ? "corrections only" : "no changes",
+      );
   }
   return {
     from: { id: from.id, semver: from.semver, state: from.state },

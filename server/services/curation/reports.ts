@@ -20,7 +20,10 @@ export interface ReportFilter {
  * upload) stays with the dataset's editors and reviewers: `acceptedOnly` callers get 404 for it.
  */
 async function load(db: Db, versionId: string, reportId: string, acceptedOnly = false) {
-  const [r] = await db.select().from(validationReports).where(and(eq(validationReports.id, reportId), eq(validationReports.versionId, versionId)));
+  const [r] = await db
+    .select()
+    .from(validationReports)
+    .where(and(eq(validationReports.id, reportId), eq(validationReports.versionId, versionId)));
   if (!r || (acceptedOnly && !r.accepted)) throw notFound("No such validation report for this version.");
   return r;
 }
@@ -33,7 +36,13 @@ function matches(p: ValidationProblem, f: Omit<ReportFilter, "limit" | "offset">
   return true;
 }
 
-export async function getReport(db: Db, versionId: string, reportId: string, filter: ReportFilter, acceptedOnly = false): Promise<ValidationReport> {
+export async function getReport(
+  db: Db,
+  versionId: string,
+  reportId: string,
+  filter: ReportFilter,
+  acceptedOnly = false,
+): Promise<ValidationReport> {
   const r = await load(db, versionId, reportId, acceptedOnly);
   const problems = r.problems as unknown as ValidationProblem[];
   const selected = problems.filter((p) => matches(p, filter));
@@ -52,9 +61,17 @@ export async function getReport(db: Db, versionId: string, reportId: string, fil
 }
 
 /** The report as CSV: severity, file, row (1-based data row, header not counted), column, value, message. */
-export async function reportCsv(db: Db, versionId: string, reportId: string, filter: Omit<ReportFilter, "limit" | "offset">, acceptedOnly = false): Promise<string> {
+export async function reportCsv(
+  db: Db,
+  versionId: string,
+  reportId: string,
+  filter: Omit<ReportFilter, "limit" | "offset">,
+  acceptedOnly = false,
+): Promise<string> {
   const r = await load(db, versionId, reportId, acceptedOnly);
-  const rows = (r.problems as unknown as ValidationProblem[]).filter((p) => matches(p, filter)).map((p) => [p.severity, p.file, p.row, p.column, p.value, p.message]);
+  const rows = (r.problems as unknown as ValidationProblem[])
+    .filter((p) => matches(p, filter))
+    .map((p) => [p.severity, p.file, p.row, p.column, p.value, p.message]);
   // The values are what an uploader sent, the text most likely to be hostile: the writer's formula guard applies.
   return csvFile(["severity", "file", "row", "column", "value", "message"], rows);
 }

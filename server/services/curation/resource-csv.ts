@@ -27,45 +27,93 @@ export const resourceQueries: Record<ResourceName, ResourceQuery> = {
     from: "site_years sy JOIN sites s ON s.id = sy.site_id",
     orderBy: `sy.code ${C}`,
     columns: {
-      site_year: "sy.code", site: "s.code", crop: "sy.crop", year: "sy.year", design: "sy.design", blocks: "sy.blocks", tillage: "sy.tillage",
-      previous_crop: "sy.previous_crop", planting_date: "to_char(sy.planting_date, 'YYYY-MM-DD')", row_spacing_in: "sy.row_spacing_in",
-      variety: "sy.variety", maturity_group: "sy.maturity_group",
+      site_year: "sy.code",
+      site: "s.code",
+      crop: "sy.crop",
+      year: "sy.year",
+      design: "sy.design",
+      blocks: "sy.blocks",
+      tillage: "sy.tillage",
+      previous_crop: "sy.previous_crop",
+      planting_date: "to_char(sy.planting_date, 'YYYY-MM-DD')",
+      row_spacing_in: "sy.row_spacing_in",
+      variety: "sy.variety",
+      maturity_group: "sy.maturity_group",
     },
   },
   soil_tests: {
     from: "soil_tests st JOIN site_years sy ON sy.id = st.site_year_id",
     orderBy: `sy.code ${C}, st.analyte ${C}`,
     columns: {
-      site_year: "sy.code", analyte: "st.analyte", value: "st.value", unit: "st.unit", extractant: "st.extractant", depth_in: "st.depth_in",
-      class: "coalesce(st.reported_class, st.class)", interpretation: "st.interpretation",
+      site_year: "sy.code",
+      analyte: "st.analyte",
+      value: "st.value",
+      unit: "st.unit",
+      extractant: "st.extractant",
+      depth_in: "st.depth_in",
+      class: "coalesce(st.reported_class, st.class)",
+      interpretation: "st.interpretation",
     },
   },
   treatments: {
     from: "treatments t LEFT JOIN applications a ON a.treatment_id = t.id",
     orderBy: `t.code ${C}, a.id`,
     columns: {
-      treatment: "t.code", name: "t.name", is_check: "t.is_check", tested_nutrients: "array_to_string(t.tested_nutrients_stated, ';')", application: "row_number() OVER (PARTITION BY t.id ORDER BY a.id)",
-      product: "a.product", grade: "a.grade", product_rate: "a.product_rate", rate_unit: "a.rate_unit", density_lb_gal: "a.density_lb_gal",
-      placement: "a.placement", timing: "a.timing", n_lb_ac: "coalesce(a.n_lb_ac, 0)", p2o5_lb_ac: "coalesce(a.p2o5_lb_ac, 0)",
-      k2o_lb_ac: "coalesce(a.k2o_lb_ac, 0)", s_lb_ac: "coalesce(a.s_lb_ac, 0)",
+      treatment: "t.code",
+      name: "t.name",
+      is_check: "t.is_check",
+      tested_nutrients: "array_to_string(t.tested_nutrients_stated, ';')",
+      application: "row_number() OVER (PARTITION BY t.id ORDER BY a.id)",
+      product: "a.product",
+      grade: "a.grade",
+      product_rate: "a.product_rate",
+      rate_unit: "a.rate_unit",
+      density_lb_gal: "a.density_lb_gal",
+      placement: "a.placement",
+      timing: "a.timing",
+      n_lb_ac: "coalesce(a.n_lb_ac, 0)",
+      p2o5_lb_ac: "coalesce(a.p2o5_lb_ac, 0)",
+      k2o_lb_ac: "coalesce(a.k2o_lb_ac, 0)",
+      s_lb_ac: "coalesce(a.s_lb_ac, 0)",
     },
   },
   plots: {
     from: "plots p JOIN site_years sy ON sy.id = p.site_year_id JOIN treatments t ON t.id = p.treatment_id",
     orderBy: `sy.code ${C}, p.plot ${C}`,
     columns: {
-      site_year: "sy.code", plot: "p.plot", block: "p.block", treatment: "t.code", yield_kg_ha: "p.yield_kg_ha",
-      harvest_moisture_pct: "p.harvest_moisture_pct", stand_count: "p.stand_count", vigour: "p.vigour", test_weight: "p.test_weight",
+      site_year: "sy.code",
+      plot: "p.plot",
+      block: "p.block",
+      treatment: "t.code",
+      yield_kg_ha: "p.yield_kg_ha",
+      harvest_moisture_pct: "p.harvest_moisture_pct",
+      stand_count: "p.stand_count",
+      vigour: "p.vigour",
+      test_weight: "p.test_weight",
     },
   },
   summaries: {
     from: "summary_means m JOIN site_years sy ON sy.id = m.site_year_id JOIN treatments t ON t.id = m.treatment_id",
     orderBy: `sy.code ${C}, t.code ${C}`,
-    columns: { site_year: "sy.code", treatment: "t.code", mean_kg_ha: "m.mean_kg_ha", replicates: "m.replicates", mse: "m.mse", df_error: "m.df_error" },
+    columns: {
+      site_year: "sy.code",
+      treatment: "t.code",
+      mean_kg_ha: "m.mean_kg_ha",
+      replicates: "m.replicates",
+      mse: "m.mse",
+      df_error: "m.df_error",
+    },
   },
 };
 
-const firstAlias: Record<ResourceName, string> = { sites: "s", site_years: "sy", soil_tests: "st", treatments: "t", plots: "p", summaries: "m" };
+const firstAlias: Record<ResourceName, string> = {
+  sites: "s",
+  site_years: "sy",
+  soil_tests: "st",
+  treatments: "t",
+  plots: "p",
+  summaries: "m",
+};
 
 /** The fields of a resource in the version's data dictionary order. */
 export function fieldsOf(schema: TableSchemaDescriptor, resource: ResourceName): string[] {
@@ -78,12 +126,19 @@ const PAGE = 100_000;
  * The rows of one resource of a version, in pages, as PostgreSQL prints each value (so PGlite and PostgreSQL give the
  * same text), null for missing, in the data dictionary's field order and a stable row order.
  */
-async function* resourcePages(db: Db | Tx, versionId: string, fields: string[], resource: ResourceName): AsyncGenerator<(string | null)[][]> {
+async function* resourcePages(
+  db: Db | Tx,
+  versionId: string,
+  fields: string[],
+  resource: ResourceName,
+): AsyncGenerator<(string | null)[][]> {
   const q = resourceQueries[resource];
   const select = fields.map((f, i) => `(${q.columns[f]})::text AS c${i}`).join(", ");
   for (let offset = 0; ; offset += PAGE) {
     const result = await db.execute(
-      sql.raw(`SELECT ${select} FROM ${q.from} WHERE ${firstAlias[resource]}.version_id = '${versionId.replace(/[^0-9a-f-]/gi, "")}' ORDER BY ${q.orderBy} LIMIT ${PAGE} OFFSET ${offset}`),
+      sql.raw(
+        `SELECT ${select} FROM ${q.from} WHERE ${firstAlias[resource]}.version_id = '${versionId.replace(/[^0-9a-f-]/gi, "")}' ORDER BY ${q.orderBy} LIMIT ${PAGE} OFFSET ${offset}`,
+      ),
     );
     const rows = (result as unknown as { rows: Record<string, string | null>[] }).rows;
     if (rows.length === 0) return;
@@ -106,13 +161,22 @@ export async function* resourceCsvChunks(
 ): AsyncGenerator<string> {
   const fields = fieldsOf(schema, resource);
   const types = new Map((schema.resources[resource]?.fields ?? []).map((f) => [f.name, f.type]));
-  const writer = new CsvWriter(fields, fields.map((f) => types.get(f) === "string"));
+  const writer = new CsvWriter(
+    fields,
+    fields.map((f) => types.get(f) === "string"),
+  );
   yield writer.headerLine();
   for await (const page of resourcePages(db, versionId, fields, resource)) yield writer.rows(page);
   for (const name of writer.guardedColumns) guarded?.add(name);
 }
 
-export async function resourceCsv(db: Db | Tx, versionId: string, schema: TableSchemaDescriptor, resource: ResourceName, guarded?: Set<string>): Promise<Buffer> {
+export async function resourceCsv(
+  db: Db | Tx,
+  versionId: string,
+  schema: TableSchemaDescriptor,
+  resource: ResourceName,
+  guarded?: Set<string>,
+): Promise<Buffer> {
   const parts: Buffer[] = [];
   for await (const chunk of resourceCsvChunks(db, versionId, schema, resource, guarded)) parts.push(Buffer.from(chunk, "utf8"));
   return Buffer.concat(parts);

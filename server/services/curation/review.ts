@@ -14,19 +14,25 @@ export async function submitVersion(ctx: AppContext, user: User, versionId: stri
   const { db } = ctx;
   const { version, dataset } = await versionById(db, versionId);
   await assertCanEdit(db, user, dataset);
-  if (version.state !== "draft") throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a draft can be submitted.`);
+  if (version.state !== "draft")
+    throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a draft can be submitted.`);
   await assertSemverIncreases(db, dataset.id, version.semver, "semver");
   const [n] = await db.select({ n: count() }).from(siteYears).where(eq(siteYears.versionId, versionId));
   if (!n?.n) throw conflict(`Version ${version.semver} has no site-years yet; upload its data before submitting it.`);
   const now = new Date();
-  const [submitted] = await db.update(versions).set({ state: "in_review", changelog, submittedBy: user.id, submittedAt: now, updatedAt: now, reviewComment: null }).where(and(eq(versions.id, versionId), eq(versions.state, "draft"))).returning({ id: versions.id });
+  const [submitted] = await db
+    .update(versions)
+    .set({ state: "in_review", changelog, submittedBy: user.id, submittedAt: now, updatedAt: now, reviewComment: null })
+    .where(and(eq(versions.id, versionId), eq(versions.state, "draft")))
+    .returning({ id: versions.id });
   if (submitted) await sendReviewMail(`Review request for version ${versionId}`, () => notifyReviewRequested(ctx, versionId));
 }
 
 async function reviewable(ctx: AppContext, user: User, versionId: string, verb: string) {
   if (!isReviewer(user)) throw forbidden(`Only reviewers ${verb} versions.`);
   const found = await versionById(ctx.db, versionId);
-  if (found.version.state !== "in_review") throw conflict(`Version ${found.version.semver} is ${found.version.state.replace("_", " ")}, not in review.`);
+  if (found.version.state !== "in_review")
+    throw conflict(`Version ${found.version.semver} is ${found.version.state.replace("_", " ")}, not in review.`);
   return found;
 }
 
@@ -79,9 +85,13 @@ export async function withdrawVersion(ctx: AppContext, user: User, versionId: st
   if (!isReviewer(user) && !(await canEditDataset(ctx.db, user, dataset))) {
     throw forbidden(`Only reviewers and the editors of dataset "${dataset.slug}" may withdraw its versions.`);
   }
-  if (version.state !== "published") throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a published version can be withdrawn.`);
+  if (version.state !== "published")
+    throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a published version can be withdrawn.`);
   const now = new Date();
-  await ctx.db.update(versions).set({ state: "withdrawn", withdrawnReason: reason, withdrawnAt: now, updatedAt: now }).where(eq(versions.id, versionId));
+  await ctx.db
+    .update(versions)
+    .set({ state: "withdrawn", withdrawnReason: reason, withdrawnAt: now, updatedAt: now })
+    .where(eq(versions.id, versionId));
   // The DOI stays and keeps resolving to the tombstone; its metadata is updated in the background to say why.
   await queueDoiWork(ctx, versionId, ["registered", "pending"]);
 }
@@ -95,15 +105,17 @@ export async function reviewQueue(ctx: AppContext, user: User) {
     .leftJoin(users, eq(users.id, versions.submittedBy))
     .where(eq(versions.state, "in_review"))
     .orderBy(asc(versions.submittedAt));
-  return Promise.all(rows.map(async (r) => ({
-    versionId: r.v.id,
-    datasetSlug: r.slug,
-    datasetTitle: r.title,
-    semver: r.v.semver,
-    changelog: r.v.changelog,
-    submittedAt: r.v.submittedAt?.toISOString() ?? null,
-    submittedBy: r.v.submittedBy,
-    submittedByName: r.submitter,
-    canApprove: await canApprove(ctx.db, user, r.v),
-  })));
+  return Promise.all(
+    rows.map(async (r) => ({
+      versionId: r.v.id,
+      datasetSlug: r.slug,
+      datasetTitle: r.title,
+      semver: r.v.semver,
+      changelog: r.v.changelog,
+      submittedAt: r.v.submittedAt?.toISOString() ?? null,
+      submittedBy: r.v.submittedBy,
+      submittedByName: r.submitter,
+      canApprove: await canApprove(ctx.db, user, r.v),
+    })),
+  );
 }

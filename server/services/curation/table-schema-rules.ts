@@ -36,9 +36,15 @@ export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocati
       if (names.has(f.name)) problems.push({ field: `${where}.fields.${i}.name`, message: `field ${f.name} appears twice` });
       names.add(f.name);
       if (!(f.name in resourceQueries[resource].columns)) {
-        problems.push({ field: `${where}.fields.${i}.name`, message: `field ${f.name} is not one Plotbank stores for ${resource}; known fields: ${Object.keys(resourceQueries[resource].columns).join(", ")}` });
+        problems.push({
+          field: `${where}.fields.${i}.name`,
+          message: `field ${f.name} is not one Plotbank stores for ${resource}; known fields: ${Object.keys(resourceQueries[resource].columns).join(", ")}`,
+        });
       } else if (baseTypes.get(f.name) !== f.type) {
-        problems.push({ field: `${where}.fields.${i}.type`, message: `field ${f.name} is stored as ${baseTypes.get(f.name)}; its type cannot change` });
+        problems.push({
+          field: `${where}.fields.${i}.type`,
+          message: `field ${f.name} is stored as ${baseTypes.get(f.name)}; its type cannot change`,
+        });
       }
       const c = f.constraints;
       if (c?.minimum !== undefined && c.maximum !== undefined && c.minimum > c.maximum) {
@@ -52,9 +58,14 @@ export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocati
         }
       }
     });
-    for (const name of essential[resource]) if (!names.has(name)) problems.push({ field: `${where}.fields`, message: `field ${name} cannot be removed: the ${resource} table needs it` });
+    for (const name of essential[resource])
+      if (!names.has(name))
+        problems.push({ field: `${where}.fields`, message: `field ${name} cannot be removed: the ${resource} table needs it` });
     if (JSON.stringify(r.primaryKey ?? null) !== JSON.stringify(b.primaryKey ?? null)) {
-      problems.push({ field: `${where}.primaryKey`, message: `the primary key of ${resource} is ${JSON.stringify(b.primaryKey)} and cannot change` });
+      problems.push({
+        field: `${where}.primaryKey`,
+        message: `the primary key of ${resource} is ${JSON.stringify(b.primaryKey)} and cannot change`,
+      });
     }
     if (JSON.stringify(r.foreignKeys ?? null) !== JSON.stringify(b.foreignKeys ?? null)) {
       problems.push({ field: `${where}.foreignKeys`, message: `the foreign keys of ${resource} cannot change` });
@@ -70,9 +81,17 @@ function checkSoilTestSchemes(next: TableSchemaDescriptor): ProblemLocation[] {
   const seen = new Set<string>();
   (next.soilTestSchemes ?? []).forEach((scheme, i) => {
     const where = `body.soilTestSchemes.${i}`;
-    if (builtInSchemeNames.has(scheme.name)) problems.push({ field: `${where}.name`, message: `"${scheme.name}" is a built-in scheme; name it in the interpretation column as it is, or give this one a name of its own` });
+    if (builtInSchemeNames.has(scheme.name))
+      problems.push({
+        field: `${where}.name`,
+        message: `"${scheme.name}" is a built-in scheme; name it in the interpretation column as it is, or give this one a name of its own`,
+      });
     const key = `${scheme.name}\u0000${scheme.analyte}\u0000${scheme.extractant ?? ""}`;
-    if (seen.has(key)) problems.push({ field: `${where}.name`, message: `scheme "${scheme.name}" for ${scheme.analyte}${scheme.extractant ? ` by ${scheme.extractant}` : ""} appears twice` });
+    if (seen.has(key))
+      problems.push({
+        field: `${where}.name`,
+        message: `scheme "${scheme.name}" for ${scheme.analyte}${scheme.extractant ? ` by ${scheme.extractant}` : ""} appears twice`,
+      });
     seen.add(key);
   });
   return problems;

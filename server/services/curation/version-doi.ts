@@ -6,13 +6,20 @@ import { queueDoiWork } from "@/server/services/citation/doi-queue";
 import { canEditDataset, isReviewer, versionById, type Dataset, type User, type Version } from "./access";
 
 const released = (v: Version) => v.state === "published" || v.state === "withdrawn";
-const mayManageDoi = async (ctx: AppContext, user: User | undefined, dataset: Dataset) => isReviewer(user) || (await canEditDataset(ctx.db, user, dataset));
+const mayManageDoi = async (ctx: AppContext, user: User | undefined, dataset: Dataset) =>
+  isReviewer(user) || (await canEditDataset(ctx.db, user, dataset));
 
 /**
  * A released version's DOI registration as its dataset's editors and reviewers see it; null for anyone else.
  * `canEdit` is the caller's canEditDataset answer, which the version desk has already read.
  */
-export function doiRegistrationOf(ctx: AppContext, user: User | undefined, dataset: Dataset, v: Version, canEdit: boolean): DoiRegistration | null {
+export function doiRegistrationOf(
+  ctx: AppContext,
+  user: User | undefined,
+  dataset: Dataset,
+  v: Version,
+  canEdit: boolean,
+): DoiRegistration | null {
   if (!released(v) || !(isReviewer(user) || canEdit)) return null;
   return {
     status: v.doiStatus,
@@ -33,10 +40,13 @@ export async function requeueVersionDoi(ctx: AppContext, user: User, versionId: 
   if (!(await mayManageDoi(ctx, user, dataset))) {
     throw forbidden(`Only reviewers and the editors of dataset "${dataset.slug}" may send its DOI registrations again.`);
   }
-  if (!released(version)) throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a published or withdrawn version has a DOI.`);
+  if (!released(version))
+    throw conflict(`Version ${version.semver} is ${version.state.replace("_", " ")}; only a published or withdrawn version has a DOI.`);
   if (!ctx.config.datacite.url) throw conflict("No DOI service is configured (DATACITE_URL), so there is nothing to send.");
   if (version.doiStatus !== "failed" && version.doiStatus !== "pending") {
-    throw conflict(`The DOI of version ${version.semver} is ${version.doiStatus === "registered" ? "registered already" : "not due for registration"}; only a failed or pending registration can be sent again.`);
+    throw conflict(
+      `The DOI of version ${version.semver} is ${version.doiStatus === "registered" ? "registered already" : "not due for registration"}; only a failed or pending registration can be sent again.`,
+    );
   }
   await queueDoiWork(ctx, versionId, ["failed", "pending"]);
 }

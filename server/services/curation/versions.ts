@@ -9,7 +9,19 @@ import { badRequest, conflict } from "@/server/errors";
 import { compareSemver } from "@/server/services/catalogue";
 import { computeResponses } from "@/server/services/ingest/recompute-responses";
 import { latestPublishedOf } from "@/server/services/latest-version";
-import { assertCanEdit, canApprove, canEditDataset, canReturn, canWithdraw, isReviewer, recordContentEdit, versionById, type Dataset, type User, type Version } from "./access";
+import {
+  assertCanEdit,
+  canApprove,
+  canEditDataset,
+  canReturn,
+  canWithdraw,
+  isReviewer,
+  recordContentEdit,
+  versionById,
+  type Dataset,
+  type User,
+  type Version,
+} from "./access";
 import { copyVersionRows } from "./copy-version";
 import { iso } from "./datasets";
 import { bumpSemver, diffVersions } from "./diff";
@@ -17,20 +29,33 @@ import { checkTableSchemaEdit } from "./table-schema-rules";
 import { doiRegistrationOf } from "./version-doi";
 
 async function latestPublished(db: Db, datasetId: string): Promise<Version | null> {
-  const rows = await db.select().from(versions).where(and(eq(versions.datasetId, datasetId), eq(versions.state, "published")));
+  const rows = await db
+    .select()
+    .from(versions)
+    .where(and(eq(versions.datasetId, datasetId), eq(versions.state, "published")));
   return latestPublishedOf(rows) ?? null;
 }
 
 /** Any version ever published (withdrawn ones too) blocks its number and every lower one. */
 async function highestReleased(db: Db, datasetId: string): Promise<string | null> {
-  const rows = await db.select({ semver: versions.semver }).from(versions).where(and(eq(versions.datasetId, datasetId), inArray(versions.state, ["published", "withdrawn"])));
-  return rows.map((r) => r.semver).sort(compareSemver).at(-1) ?? null;
+  const rows = await db
+    .select({ semver: versions.semver })
+    .from(versions)
+    .where(and(eq(versions.datasetId, datasetId), inArray(versions.state, ["published", "withdrawn"])));
+  return (
+    rows
+      .map((r) => r.semver)
+      .sort(compareSemver)
+      .at(-1) ?? null
+  );
 }
 
 export async function assertSemverIncreases(db: Db, datasetId: string, semver: string, field = "body.semver") {
   const highest = await highestReleased(db, datasetId);
   if (highest && compareSemver(semver, highest) <= 0) {
-    throw conflict(`Version ${semver} must be higher than ${highest}, the latest published version.`, [{ field, message: `must be above ${highest}` }]);
+    throw conflict(`Version ${semver} must be higher than ${highest}, the latest published version.`, [
+      { field, message: `must be above ${highest}` },
+    ]);
   }
 }
 
@@ -38,8 +63,14 @@ export async function assertSemverIncreases(db: Db, datasetId: string, semver: s
 export async function createVersion(ctx: AppContext, user: User, dataset: Dataset, requested?: string): Promise<Version> {
   const { db } = ctx;
   await assertCanEdit(db, user, dataset);
-  const open = await db.select({ semver: versions.semver, state: versions.state }).from(versions).where(and(eq(versions.datasetId, dataset.id), inArray(versions.state, ["draft", "in_review"])));
-  if (open.length) throw conflict(`Dataset "${dataset.slug}" already has version ${open[0]!.semver} in ${open[0]!.state === "draft" ? "draft" : "review"}; finish it first.`);
+  const open = await db
+    .select({ semver: versions.semver, state: versions.state })
+    .from(versions)
+    .where(and(eq(versions.datasetId, dataset.id), inArray(versions.state, ["draft", "in_review"])));
+  if (open.length)
+    throw conflict(
+      `Dataset "${dataset.slug}" already has version ${open[0]!.semver} in ${open[0]!.state === "draft" ? "draft" : "review"}; finish it first.`,
+    );
   const base = await latestPublished(db, dataset.id);
   const highest = await highestReleased(db, dataset.id);
   const semver = requested ?? (highest ? bumpSemver(highest, "minor") : "1.0.0");
@@ -47,7 +78,13 @@ export async function createVersion(ctx: AppContext, user: User, dataset: Datase
   return db.transaction(async (tx) => {
     const [v] = await tx
       .insert(versions)
-      .values({ datasetId: dataset.id, semver, tableSchema: base?.tableSchema ?? defaultTableSchema(), basedOnVersionId: base?.id ?? null, createdBy: user.id })
+      .values({
+        datasetId: dataset.id,
+        semver,
+        tableSchema: base?.tableSchema ?? defaultTableSchema(),
+        basedOnVersionId: base?.id ?? null,
+        createdBy: user.id,
+      })
       .returning();
     if (base) await copyVersionRows(tx, base.id, v!.id);
     return v!;
@@ -55,9 +92,18 @@ export async function createVersion(ctx: AppContext, user: User, dataset: Datase
 }
 
 async function resourceCounts(db: Db, versionId: string): Promise<Record<ResourceName, number> & { responses: number }> {
-  const n = async (table: typeof sites | typeof siteYears | typeof soilTests | typeof treatments | typeof plots | typeof summaryMeans | typeof responses) =>
-    (await db.select({ n: count() }).from(table).where(eq(table.versionId, versionId)))[0]?.n ?? 0;
-  const [a, b, c, d, e, f, g] = await Promise.all([n(sites), n(siteYears), n(soilTests), n(treatments), n(plots), n(summaryMeans), n(responses)]);
+  const n = async (
+    table: typeof sites | typeof siteYears | typeof soilTests | typeof treatments | typeof plots | typeof summaryMeans | typeof responses,
+  ) => (await db.select({ n: count() }).from(table).where(eq(table.versionId, versionId)))[0]?.n ?? 0;
+  const [a, b, c, d, e, f, g] = await Promise.all([
+    n(sites),
+    n(siteYears),
+    n(soilTests),
+    n(treatments),
+    n(plots),
+    n(summaryMeans),
+    n(responses),
+  ]);
   return { sites: a, site_years: b, soil_tests: c, treatments: d, plots: e, summaries: f, responses: g };
 }
 
@@ -84,11 +130,22 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
     tombstone
       ? []
       : db
-          .select({ id: uploads.id, resource: uploads.resource, filename: uploads.filename, byteSize: uploads.byteSize, sha256: uploads.sha256, rowCount: uploads.rowCount, options: uploads.options, createdAt: uploads.createdAt })
+          .select({
+            id: uploads.id,
+            resource: uploads.resource,
+            filename: uploads.filename,
+            byteSize: uploads.byteSize,
+            sha256: uploads.sha256,
+            rowCount: uploads.rowCount,
+            options: uploads.options,
+            createdAt: uploads.createdAt,
+          })
           .from(uploads)
           .where(eq(uploads.versionId, v.id))
           .orderBy(desc(uploads.createdAt)),
-    tombstone ? [] : db.select().from(validationReports).where(eq(validationReports.versionId, v.id)).orderBy(desc(validationReports.createdAt)),
+    tombstone
+      ? []
+      : db.select().from(validationReports).where(eq(validationReports.versionId, v.id)).orderBy(desc(validationReports.createdAt)),
     latestPublished(db, dataset.id),
     v.basedOnVersionId ? db.select({ semver: versions.semver }).from(versions).where(eq(versions.id, v.basedOnVersionId)) : [],
     canEditDataset(db, user, dataset),
@@ -130,7 +187,16 @@ export async function versionDetail(ctx: AppContext, user: User | undefined, ver
     counts: counts ? (perResource as Record<ResourceName, number>) : null,
     responses: responseCount ?? null,
     uncomputedSiteYears: tombstone || !editable ? [] : await uncomputedSiteYears(db, v.id),
-    uploads: ups.map((u) => ({ id: u.id, resource: u.resource as ResourceName, filename: u.filename, byteSize: u.byteSize, sha256: u.sha256, rowCount: u.rowCount, options: u.options, createdAt: u.createdAt.toISOString() })),
+    uploads: ups.map((u) => ({
+      id: u.id,
+      resource: u.resource as ResourceName,
+      filename: u.filename,
+      byteSize: u.byteSize,
+      sha256: u.sha256,
+      rowCount: u.rowCount,
+      options: u.options,
+      createdAt: u.createdAt.toISOString(),
+    })),
     reports: visibleReports.map((r) => ({
       id: r.id,
       resource: r.resource as ResourceName,
@@ -161,10 +227,17 @@ export async function patchVersion(db: Db, user: User, versionId: string, patch:
   await assertDraft(version);
   if (patch.semver) {
     await assertSemverIncreases(db, dataset.id, patch.semver);
-    const [clash] = await db.select({ id: versions.id }).from(versions).where(and(eq(versions.datasetId, dataset.id), eq(versions.semver, patch.semver), ne(versions.id, versionId)));
-    if (clash) throw conflict(`Dataset "${dataset.slug}" already has a version ${patch.semver}.`, [{ field: "body.semver", message: "taken" }]);
+    const [clash] = await db
+      .select({ id: versions.id })
+      .from(versions)
+      .where(and(eq(versions.datasetId, dataset.id), eq(versions.semver, patch.semver), ne(versions.id, versionId)));
+    if (clash)
+      throw conflict(`Dataset "${dataset.slug}" already has a version ${patch.semver}.`, [{ field: "body.semver", message: "taken" }]);
   }
-  await db.update(versions).set({ ...patch, updatedAt: new Date() }).where(eq(versions.id, versionId));
+  await db
+    .update(versions)
+    .set({ ...patch, updatedAt: new Date() })
+    .where(eq(versions.id, versionId));
   await recordContentEdit(db, versionId, user.id);
 }
 

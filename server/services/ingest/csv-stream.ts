@@ -20,15 +20,22 @@ const utf16be = Buffer.from([0xfe, 0xff]);
 
 /** The file is not UTF-8 text; say where and what to do, rather than storing text the database cannot hold. */
 function notUtf8(byteOffset: number, why: string): HttpProblem {
-  return new HttpProblem(400, "Bad request", `The file is not UTF-8 text: ${why}, near byte ${byteOffset}. Save it as "CSV UTF-8" and upload it again.`, {
-    errors: [{ field: "file", message: `not UTF-8 text near byte ${byteOffset}` }],
-  });
+  return new HttpProblem(
+    400,
+    "Bad request",
+    `The file is not UTF-8 text: ${why}, near byte ${byteOffset}. Save it as "CSV UTF-8" and upload it again.`,
+    {
+      errors: [{ field: "file", message: `not UTF-8 text near byte ${byteOffset}` }],
+    },
+  );
 }
 
 /** The file is over the upload limit: answered as 413 naming the limit. */
 export function tooLarge(limitBytes: number): HttpProblem {
   const mb = (limitBytes / 1024 / 1024).toFixed(limitBytes < 1024 * 1024 ? 3 : 0);
-  return new HttpProblem(413, "Content too large", `The file is larger than the upload limit of ${limitBytes} bytes (${mb} MB).`, { limit: limitBytes });
+  return new HttpProblem(413, "Content too large", `The file is larger than the upload limit of ${limitBytes} bytes (${mb} MB).`, {
+    limit: limitBytes,
+  });
 }
 
 /**
@@ -65,7 +72,8 @@ export async function readCsvStream(
       chunks.push(chunk);
       let s = decoder.write(chunk);
       const bad = s.indexOf("\uFFFD");
-      if (bad >= 0) return done(notUtf8(byteSize - chunk.length, "it has bytes that are not valid UTF-8 (Latin-1 or Windows-1252, perhaps)"));
+      if (bad >= 0)
+        return done(notUtf8(byteSize - chunk.length, "it has bytes that are not valid UTF-8 (Latin-1 or Windows-1252, perhaps)"));
       if (first && s.length > 0) {
         first = false;
         if (s.charCodeAt(0) === 0xfeff) s = s.slice(1);

@@ -66,7 +66,10 @@ export function productPoundsPerAcre(rate: number, unit: string, densityLbGal: n
 export const isFluidUnit = (unit: string) => unit === "gal/ac" || unit === "L/ha";
 
 /** Grade percentages as oxides; an elemental grade (P, K) is converted to P2O5 and K2O. */
-export function gradeAsOxides(grade: { nitrogenPercent: number; phosphatePercent: number; potashPercent: number; sulfurPercent?: number }, basis: UploadUnits["gradeBasis"]) {
+export function gradeAsOxides(
+  grade: { nitrogenPercent: number; phosphatePercent: number; potashPercent: number; sulfurPercent?: number },
+  basis: UploadUnits["gradeBasis"],
+) {
   if (basis === "oxide") return grade;
   return {
     ...grade,

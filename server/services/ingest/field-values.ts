@@ -50,9 +50,12 @@ function compileField(field: TableSchemaField, missingValues: ReadonlySet<string
         case "integer":
         case "year": {
           const n = parseNumber(s);
-          if (n === null) return { ok: false, message: `${field.name} must be a number${field.type === "number" ? "" : " (whole)"}, got "${raw}"` };
-          if (field.type !== "number" && !Number.isInteger(n)) return { ok: false, message: `${field.name} must be a whole number, got "${raw}"` };
-          if (field.type === "year" && (n < 1000 || n > 9999)) return { ok: false, message: `${field.name} must be a four-digit year, got "${raw}"` };
+          if (n === null)
+            return { ok: false, message: `${field.name} must be a number${field.type === "number" ? "" : " (whole)"}, got "${raw}"` };
+          if (field.type !== "number" && !Number.isInteger(n))
+            return { ok: false, message: `${field.name} must be a whole number, got "${raw}"` };
+          if (field.type === "year" && (n < 1000 || n > 9999))
+            return { ok: false, message: `${field.name} must be a four-digit year, got "${raw}"` };
           const bad = range(n);
           if (bad) return { ok: false, message: `${field.name} ${bad}` };
           value = n;
@@ -73,8 +76,10 @@ function compileField(field: TableSchemaField, missingValues: ReadonlySet<string
           break;
         }
         default:
-          if (c.minLength !== undefined && s.length < c.minLength) return { ok: false, message: `${field.name} is shorter than ${c.minLength} characters` };
-          if (c.maxLength !== undefined && s.length > c.maxLength) return { ok: false, message: `${field.name} is longer than ${c.maxLength} characters` };
+          if (c.minLength !== undefined && s.length < c.minLength)
+            return { ok: false, message: `${field.name} is shorter than ${c.minLength} characters` };
+          if (c.maxLength !== undefined && s.length > c.maxLength)
+            return { ok: false, message: `${field.name} is longer than ${c.maxLength} characters` };
           if (pattern && !pattern.test(s)) return { ok: false, message: `${field.name} "${raw}" does not match the pattern ${c.pattern}` };
           value = s;
       }

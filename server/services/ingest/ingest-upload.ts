@@ -39,7 +39,13 @@ export interface IngestInput {
 }
 
 /** Which file column feeds which field, and the problems of the header. */
-function mapHeader(header: string[], schema: TableSchemaResource, compiled: Map<string, CompiledField>, options: UploadOptions, report: Reporter) {
+function mapHeader(
+  header: string[],
+  schema: TableSchemaResource,
+  compiled: Map<string, CompiledField>,
+  options: UploadOptions,
+  report: Reporter,
+) {
   const byLower = new Map(schema.fields.map((f) => [f.name.toLowerCase(), f.name]));
   const columns: (CompiledField | null)[] = [];
   const seen = new Map<string, string>();
@@ -69,7 +75,8 @@ function mapHeader(header: string[], schema: TableSchemaResource, compiled: Map<
     columns.push(compiled.get(target)!);
   });
   for (const [name, field] of compiled) {
-    if (field.required && !seen.has(name)) report.error(null, name, null, `required field ${name} has no column; add it or map a column to it`);
+    if (field.required && !seen.has(name))
+      report.error(null, name, null, `required field ${name} has no column; add it or map a column to it`);
   }
   return { columns, columnOf: (field: string) => seen.get(field) ?? field };
 }
@@ -90,7 +97,14 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
 
   const state = await loadDraftState(db, input.versionId);
   const report = new Reporter(input.filename);
-  const handler = ingestFor[input.resource]({ state, options: input.options, report, versionId: input.versionId, bulkCopy: database.kind === "pglite", soilTestSchemes: version.tableSchema.soilTestSchemes ?? [] });
+  const handler = ingestFor[input.resource]({
+    state,
+    options: input.options,
+    report,
+    versionId: input.versionId,
+    bulkCopy: database.kind === "pglite",
+    soilTestSchemes: version.tableSchema.soilTestSchemes ?? [],
+  });
   let columns: (CompiledField | null)[] = [];
   let header: string[] = [];
   const fieldNames = schema.fields.map((f) => f.name);
@@ -128,18 +142,36 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
   const problems = report.all();
   // Plots files: responses from the file's rows, so the plots need not be read back inside the transaction.
   const fileOutcomes = report.errors === 0 && handler.plotOutcomeRequest ? plotOutcomes(handler.plotOutcomeRequest()) : undefined;
-  const base = { resource: input.resource, filename: input.filename, rows: read.rows, sha256: read.sha256, byteSize: read.byteSize, delimiter: read.delimiter };
+  const base = {
+    resource: input.resource,
+    filename: input.filename,
+    rows: read.rows,
+    sha256: read.sha256,
+    byteSize: read.byteSize,
+    delimiter: read.delimiter,
+  };
   if (report.errors > 0) {
     const [saved] = await db
       .insert(validationReports)
       .values({ versionId: input.versionId, resource: input.resource, filename: input.filename, accepted: false, problems })
       .returning({ id: validationReports.id });
-    return { ...base, accepted: false, reportId: saved!.id, uploadId: null, errors: report.errors, warnings: report.warnings, problems: problems.slice(0, 200), responses: null };
+    return {
+      ...base,
+      accepted: false,
+      reportId: saved!.id,
+      uploadId: null,
+      errors: report.errors,
+      warnings: report.warnings,
+      problems: problems.slice(0, 200),
+      responses: null,
+    };
   }
 
   let recomputed: RecomputeResult | null = null;
   const { uploadId, reportId } = await db.transaction(async (tx) => {
-    const locked = await tx.execute<{ state: string; updated_at: string | Date }>(sql`select state, updated_at from versions where id = ${input.versionId} for update`);
+    const locked = await tx.execute<{ state: string; updated_at: string | Date }>(
+      sql`select state, updated_at from versions where id = ${input.versionId} for update`,
+    );
     const row = (locked as unknown as { rows: { state: string; updated_at: string | Date }[] }).rows[0];
     if (!row || row.state !== "draft" || new Date(row.updated_at).getTime() !== stamp) {
       throw conflict("The draft changed while the file was being checked (another upload or a submission); upload it again.");
@@ -167,7 +199,13 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
     }));
     const [saved] = await tx
       .insert(validationReports)
-      .values({ versionId: input.versionId, resource: input.resource, filename: input.filename, accepted: true, problems: [...problems, ...notes] })
+      .values({
+        versionId: input.versionId,
+        resource: input.resource,
+        filename: input.filename,
+        accepted: true,
+        problems: [...problems, ...notes],
+      })
       .returning({ id: validationReports.id });
     await tx.update(versions).set({ updatedAt: new Date() }).where(eq(versions.id, input.versionId));
     report.warnings += notes.length;

@@ -28,11 +28,24 @@ const CHUNK = 400;
  * Computes the responses of a draft's site-years again (all of them, or those a file touched), inside the upload's
  * transaction. A site-year whose responses cannot be computed keeps none and is listed with the reason.
  */
-export async function recomputeResponses(database: Database, tx: Tx, versionId: string, affected: Affected, fromFile?: FilePlotOutcomes): Promise<RecomputeResult> {
+export async function recomputeResponses(
+  database: Database,
+  tx: Tx,
+  versionId: string,
+  affected: Affected,
+  fromFile?: FilePlotOutcomes,
+): Promise<RecomputeResult> {
   const computed = await computeResponses(tx, versionId, affected, fromFile);
   if (affected === "all") await tx.delete(responses).where(eq(responses.versionId, versionId));
-  else if (computed.siteYearIds.length) await tx.delete(responses).where(and(eq(responses.versionId, versionId), inArray(responses.siteYearId, computed.siteYearIds)));
-  await insertRows(database, tx, responses, responseKeys, computed.rows.map((row) => responseKeys.map((key) => row[key])));
+  else if (computed.siteYearIds.length)
+    await tx.delete(responses).where(and(eq(responses.versionId, versionId), inArray(responses.siteYearId, computed.siteYearIds)));
+  await insertRows(
+    database,
+    tx,
+    responses,
+    responseKeys,
+    computed.rows.map((row) => responseKeys.map((key) => row[key])),
+  );
   return { siteYears: computed.siteYearIds.length, rows: computed.rows.length, uncomputed: computed.uncomputed };
 }
 
@@ -46,18 +59,35 @@ export type FilePlotOutcomes = Map<number, SiteYearOutcome>;
  * The response rows of a draft's site-years (read only), and the site-years that have none, with the reason.
  * With `fromFile`, plots come from that file alone: a site-year it has no yields for has no plots with yields now.
  */
-export async function computeResponses(tx: Tx, versionId: string, affected: Affected, fromFile?: FilePlotOutcomes, codeListLimit = 1000): Promise<{ siteYearIds: number[]; rows: ResponseRow[]; uncomputed: RecomputeResult["uncomputed"] }> {
+export async function computeResponses(
+  tx: Tx,
+  versionId: string,
+  affected: Affected,
+  fromFile?: FilePlotOutcomes,
+  codeListLimit = 1000,
+): Promise<{ siteYearIds: number[]; rows: ResponseRow[]; uncomputed: RecomputeResult["uncomputed"] }> {
   // A file of thousands of site-years would send thousands of codes as parameters; reading the version's site-years
   // and keeping the named ones is cheaper then.
   const byList = affected !== "all" && affected.siteYearCodes.length <= codeListLimit;
   const fetched = await tx
     .select({
-      id: siteYears.id, code: siteYears.code, siteCode: sites.code, crop: siteYears.crop, year: siteYears.year, tillage: siteYears.tillage,
-      rowSpacingIn: siteYears.rowSpacingIn, plantingDate: siteYears.plantingDate,
+      id: siteYears.id,
+      code: siteYears.code,
+      siteCode: sites.code,
+      crop: siteYears.crop,
+      year: siteYears.year,
+      tillage: siteYears.tillage,
+      rowSpacingIn: siteYears.rowSpacingIn,
+      plantingDate: siteYears.plantingDate,
     })
     .from(siteYears)
     .innerJoin(sites, eq(sites.id, siteYears.siteId))
-    .where(and(eq(siteYears.versionId, versionId), byList ? inArray(siteYears.code, affected.siteYearCodes.length ? affected.siteYearCodes : ["\u0000"]) : undefined))
+    .where(
+      and(
+        eq(siteYears.versionId, versionId),
+        byList ? inArray(siteYears.code, affected.siteYearCodes.length ? affected.siteYearCodes : ["\u0000"]) : undefined,
+      ),
+    )
     .orderBy(asc(siteYears.code));
   const named = affected === "all" || byList ? null : new Set(affected.siteYearCodes);
   const syRows = named ? fetched.filter((s) => named.has(s.code)) : fetched;
@@ -120,20 +150,56 @@ export async function computeResponses(tx: Tx, versionId: string, affected: Affe
         continue;
       }
       const soil = soilBySy.get(sy.id);
-      const p = soil?.get("P"), k = soil?.get("K"), s = soil?.get("S");
+      const p = soil?.get("P"),
+        k = soil?.get("K"),
+        s = soil?.get("S");
       for (const r of outcome.rows) {
         const t = trtById.get(r.treatmentId)!;
         out.push({
-          versionId, siteYearId: sy.id, treatmentId: r.treatmentId, checkTreatmentId: r.checkTreatmentId, siteCode: sy.siteCode, siteYearCode: sy.code,
-          treatmentCode: t.code, crop: sy.crop, year: sy.year, tillage: sy.tillage, rowSpacingIn: sy.rowSpacingIn, plantingDate: sy.plantingDate,
-          nutrients: pgArray(t.nutrients), placements: pgArray(t.placements), nLbAc: t.nLbAc, p2o5LbAc: t.p2o5LbAc, k2oLbAc: t.k2oLbAc, sLbAc: t.sLbAc,
-          soilPClass: p?.cls ?? null, soilPValue: p?.value ?? null, soilKClass: k?.cls ?? null, soilKValue: k?.value ?? null,
-          soilSClass: s?.cls ?? null, soilSValue: s?.value ?? null, checkMeanKgHa: r.checkMean, treatedMeanKgHa: r.treatedMean,
-          mdKgHa: r.md, seKgHa: r.se, dfError: r.dfError, lnrr: r.lnrr, lnrrVar: r.lnrrVar, pValue: r.pValue, lsd05KgHa: r.lsd05,
-          cvPct: r.cvPct, replicates: r.replicates, balanced: r.balanced, fromSummary: r.fromSummary,
+          versionId,
+          siteYearId: sy.id,
+          treatmentId: r.treatmentId,
+          checkTreatmentId: r.checkTreatmentId,
+          siteCode: sy.siteCode,
+          siteYearCode: sy.code,
+          treatmentCode: t.code,
+          crop: sy.crop,
+          year: sy.year,
+          tillage: sy.tillage,
+          rowSpacingIn: sy.rowSpacingIn,
+          plantingDate: sy.plantingDate,
+          nutrients: pgArray(t.nutrients),
+          placements: pgArray(t.placements),
+          nLbAc: t.nLbAc,
+          p2o5LbAc: t.p2o5LbAc,
+          k2oLbAc: t.k2oLbAc,
+          sLbAc: t.sLbAc,
+          soilPClass: p?.cls ?? null,
+          soilPValue: p?.value ?? null,
+          soilKClass: k?.cls ?? null,
+          soilKValue: k?.value ?? null,
+          soilSClass: s?.cls ?? null,
+          soilSValue: s?.value ?? null,
+          checkMeanKgHa: r.checkMean,
+          treatedMeanKgHa: r.treatedMean,
+          mdKgHa: r.md,
+          seKgHa: r.se,
+          dfError: r.dfError,
+          lnrr: r.lnrr,
+          lnrrVar: r.lnrrVar,
+          pValue: r.pValue,
+          lsd05KgHa: r.lsd05,
+          cvPct: r.cvPct,
+          replicates: r.replicates,
+          balanced: r.balanced,
+          fromSummary: r.fromSummary,
           testedNutrientsStated: t.testedNutrientsStated ? pgArray(t.testedNutrientsStated) : null,
-          soilPReportedClass: p?.reported ?? null, soilPScheme: p?.scheme ?? null, soilKReportedClass: k?.reported ?? null,
-          soilKScheme: k?.scheme ?? null, soilSReportedClass: s?.reported ?? null, soilSScheme: s?.scheme ?? null,
+          soilPReportedClass: p?.reported ?? null,
+          soilPScheme: p?.scheme ?? null,
+          soilKReportedClass: k?.reported ?? null,
+          soilKScheme: k?.scheme ?? null,
+          soilSReportedClass: s?.reported ?? null,
+          soilSScheme: s?.scheme ?? null,
         });
       }
     }

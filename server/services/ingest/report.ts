@@ -34,7 +34,14 @@ export class Reporter {
     if (this.dropped === 0) return this.problems;
     return [
       ...this.problems,
-      { severity: "error", file: this.file, row: null, column: null, value: null, message: `${this.dropped} further problems were counted but not listed; fix the ones above and upload again.` },
+      {
+        severity: "error",
+        file: this.file,
+        row: null,
+        column: null,
+        value: null,
+        message: `${this.dropped} further problems were counted but not listed; fix the ones above and upload again.`,
+      },
     ];
   }
 }

@@ -32,9 +32,15 @@ function findCheck(treatmentIds: Iterable<number>, isCheck: (id: number) => bool
  * Responses of a site-year from its plots: the RCBD ANOVA (least squares when plots are missing), then every
  * treatment against the check with the contrast's own variance from the fitted model.
  */
-export function responsesFromPlots(plots: readonly { treatmentId: number; block: number; y: number }[], isCheck: (id: number) => boolean): SiteYearOutcome {
+export function responsesFromPlots(
+  plots: readonly { treatmentId: number; block: number; y: number }[],
+  isCheck: (id: number) => boolean,
+): SiteYearOutcome {
   if (plots.length === 0) return { ok: false, reason: "no plot has a yield" };
-  const check = findCheck(plots.map((p) => p.treatmentId), isCheck);
+  const check = findCheck(
+    plots.map((p) => p.treatmentId),
+    isCheck,
+  );
   if (typeof check === "string") return { ok: false, reason: check };
   let anova;
   try {
@@ -42,7 +48,8 @@ export function responsesFromPlots(plots: readonly { treatmentId: number; block:
   } catch (error) {
     return { ok: false, reason: (error as Error).message.replace(/^rcbdAnova: /, "") };
   }
-  if (anova.mse === null || !anova.adjustedMeanCovariance) return { ok: false, reason: "no error degrees of freedom (too few plots), so responses have no standard error" };
+  if (anova.mse === null || !anova.adjustedMeanCovariance)
+    return { ok: false, reason: "no error degrees of freedom (too few plots), so responses have no standard error" };
   const contrasts = treatmentVersusCheckContrasts(anova, String(check));
   const checkIndex = anova.treatments.indexOf(String(check));
   const cov = anova.adjustedMeanCovariance;
@@ -56,7 +63,9 @@ export function responsesFromPlots(plots: readonly { treatmentId: number; block:
     if (mean.adjustedMean > 0 && checkMean > 0) {
       lnrr = Math.log(mean.adjustedMean / checkMean);
       // Delta method on the adjusted means, with their covariance from the fit.
-      const vt = cov[index]![index]!, vc = cov[checkIndex]![checkIndex]!, vtc = cov[index]![checkIndex]!;
+      const vt = cov[index]![index]!,
+        vc = cov[checkIndex]![checkIndex]!,
+        vtc = cov[index]![checkIndex]!;
       lnrrVar = vt / mean.adjustedMean ** 2 + vc / checkMean ** 2 - (2 * vtc) / (mean.adjustedMean * checkMean);
     }
     return {
@@ -81,9 +90,15 @@ export function responsesFromPlots(plots: readonly { treatmentId: number; block:
 }
 
 /** Responses of a site-year published as means with r, the MSE and its df (no plots). */
-export function responsesFromSummaries(means: readonly { treatmentId: number; mean: number; replicates: number; mse: number; dfError: number }[], isCheck: (id: number) => boolean): SiteYearOutcome {
+export function responsesFromSummaries(
+  means: readonly { treatmentId: number; mean: number; replicates: number; mse: number; dfError: number }[],
+  isCheck: (id: number) => boolean,
+): SiteYearOutcome {
   if (means.length < 2) return { ok: false, reason: "fewer than two treatment means" };
-  const check = findCheck(means.map((m) => m.treatmentId), isCheck);
+  const check = findCheck(
+    means.map((m) => m.treatmentId),
+    isCheck,
+  );
   if (typeof check === "string") return { ok: false, reason: check };
   const c = means.find((m) => m.treatmentId === check)!;
   const { mse, dfError } = c;
@@ -98,7 +113,10 @@ export function responsesFromSummaries(means: readonly { treatmentId: number; me
   const rows = means
     .filter((m) => m.treatmentId !== check)
     .map((m): TreatmentResponse => {
-      const lr = m.mean > 0 && c.mean > 0 ? logResponseRatioEffect({ treatmentMean: m.mean, checkMean: c.mean, mse, replicates: Math.min(m.replicates, c.replicates) }) : null;
+      const lr =
+        m.mean > 0 && c.mean > 0
+          ? logResponseRatioEffect({ treatmentMean: m.mean, checkMean: c.mean, mse, replicates: Math.min(m.replicates, c.replicates) })
+          : null;
       return {
         treatmentId: m.treatmentId,
         checkTreatmentId: check,

@@ -44,7 +44,9 @@ export async function storeUpload(database: Database, tx: Tx, u: UploadRecord): 
   const client = database.kind === "pglite" ? (tx as unknown as { session?: { client?: RawQuery } }).session?.client : undefined;
   if (client) {
     const id = randomUUID();
-    const head = [id, u.versionId, u.resource, u.filename].map(quote).join(",") + `,${u.byteSize},${quote(u.sha256)},${u.rowCount},${quote(JSON.stringify(u.options))},"`;
+    const head =
+      [id, u.versionId, u.resource, u.filename].map(quote).join(",") +
+      `,${u.byteSize},${quote(u.sha256)},${u.rowCount},${quote(JSON.stringify(u.options))},"`;
     const tail = `",${u.uploadedBy ? quote(u.uploadedBy) : ""}\n`;
     const blob = new Blob([head, ...u.chunks.map((c) => escapeQuotes(c) as unknown as BlobPart), tail]);
     await client.query(

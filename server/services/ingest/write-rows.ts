@@ -80,7 +80,13 @@ export class RowBuffer {
  * multi-row INSERTs on PostgreSQL. `keys` names the row's columns in order by their db/schema property names; the SQL
  * names come from the Drizzle table, never from user input.
  */
-export async function insertRows<T extends PgTable>(database: Database, tx: Tx, into: T, keys: readonly ColumnKey<T>[], input: readonly Cell[][] | RowBuffer): Promise<void> {
+export async function insertRows<T extends PgTable>(
+  database: Database,
+  tx: Tx,
+  into: T,
+  keys: readonly ColumnKey<T>[],
+  input: readonly Cell[][] | RowBuffer,
+): Promise<void> {
   if (input.length === 0) return;
   const table = tableName(into);
   const columns = columnNames(into, keys);
@@ -104,7 +110,13 @@ export async function insertRows<T extends PgTable>(database: Database, tx: Tx, 
   for (let start = 0; start < rows.length; start += perBatch) {
     const batch = rows.slice(start, start + perBatch);
     const values = sql.join(
-      batch.map((row) => sql`(${sql.join(row.map((v) => sql`${v}`), sql`, `)})`),
+      batch.map(
+        (row) =>
+          sql`(${sql.join(
+            row.map((v) => sql`${v}`),
+            sql`, `,
+          )})`,
+      ),
       sql`, `,
     );
     await tx.execute(sql`INSERT INTO ${sql.raw(table)} (${sql.raw(columns.join(", "))}) VALUES ${values}`);

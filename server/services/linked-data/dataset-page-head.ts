@@ -47,6 +47,8 @@ export function datasetPageHead(ctx: AppContext) {
       `    <script type="application/ld+json">${scriptSafeJson(found.jsonLd)}</script>`;
     // The dataset's description takes the place of the site's.
     const page = html.replace(/<meta [^>]*name="description"[^>]*>\s*/, "");
-    return /<title>[\s\S]*?<\/title>/.test(page) ? page.replace(/<title>[\s\S]*?<\/title>/, () => head) : page.replace("</head>", () => `${head}\n</head>`);
+    return /<title>[\s\S]*?<\/title>/.test(page)
+      ? page.replace(/<title>[\s\S]*?<\/title>/, () => head)
+      : page.replace("</head>", () => `${head}\n</head>`);
   };
 }

@@ -48,8 +48,13 @@ export const catalogueTitle = "Plotbank field-trial catalogue";
 export async function dcatCatalog(ctx: AppContext): Promise<Node> {
   const { db, config } = ctx;
   const catalogue = await loadCitableCatalogue(db, config);
-  const listed = catalogue.map((d) => ({ d, published: d.versions.filter((v) => v.state === "published") })).filter((x) => x.published.length);
-  const seasons = await seasonsByVersion(db, listed.flatMap((x) => x.published.map((v) => v.versionId)));
+  const listed = catalogue
+    .map((d) => ({ d, published: d.versions.filter((v) => v.state === "published") }))
+    .filter((x) => x.published.length);
+  const seasons = await seasonsByVersion(
+    db,
+    listed.flatMap((x) => x.published.map((v) => v.versionId)),
+  );
   const concepts: Node[] = [];
   const versions: Node[] = [];
   for (const { d, published } of listed) {
@@ -90,7 +95,14 @@ export async function dcatCatalog(ctx: AppContext): Promise<Node> {
   };
 }
 
-function versionNode(publicUrl: string, d: CitableDataset, v: CitableVersion, previous: CitableVersion | undefined, seasons: YearSpan | undefined, distributions: Distribution[]): Node {
+function versionNode(
+  publicUrl: string,
+  d: CitableDataset,
+  v: CitableVersion,
+  previous: CitableVersion | undefined,
+  seasons: YearSpan | undefined,
+  distributions: Distribution[],
+): Node {
   return {
     "@id": v.landingUrl,
     "@type": "dcat:Dataset",
@@ -148,7 +160,9 @@ function distributionNode(x: Distribution, v: CitableVersion): Node {
 }
 
 function licenceNode(licence: CitableVersion["licence"]): Node {
-  return licence.url ? { "@id": licence.url, "rdfs:label": licence.name } : { "@id": `https://spdx.org/licenses/${encodeURIComponent(licence.spdx)}.html`, "rdfs:label": licence.name };
+  return licence.url
+    ? { "@id": licence.url, "rdfs:label": licence.name }
+    : { "@id": `https://spdx.org/licenses/${encodeURIComponent(licence.spdx)}.html`, "rdfs:label": licence.name };
 }
 
 /**

@@ -19,7 +19,6 @@ export interface Distribution {
   conformsTo: string;
 }
 
-
 /** Published versions never change, so the size and digest of a download, once computed, hold for good. */
 const factsCache = new Map<string, { byteSize: number; sha256: string }>();
 

@@ -1,5 +1,11 @@
 import type { AppContext } from "@/server/context";
-import { findVersion, loadCitableDataset, publisherName, type CitableDataset, type CitableVersion } from "@/server/services/citation/citable-version";
+import {
+  findVersion,
+  loadCitableDataset,
+  publisherName,
+  type CitableDataset,
+  type CitableVersion,
+} from "@/server/services/citation/citable-version";
 import type { Creator } from "@/server/services/citation/creators";
 import type { TableSchemaDescriptor } from "@/schemas/table-schema";
 import { seasonsByVersion } from "./coverage";
@@ -75,7 +81,12 @@ export async function schemaOrgDataset(
       encodingFormat: x.mediaType,
       contentUrl: x.downloadUrl,
     })),
-    includedInDataCatalog: { "@type": "DataCatalog", "@id": `${ctx.config.publicUrl}/api/v1/catalog`, name: catalogueTitle, url: ctx.config.publicUrl },
+    includedInDataCatalog: {
+      "@type": "DataCatalog",
+      "@id": `${ctx.config.publicUrl}/api/v1/catalog`,
+      name: catalogueTitle,
+      url: ctx.config.publicUrl,
+    },
     ...(pinned
       ? { isPartOf: wholeDataset }
       : {

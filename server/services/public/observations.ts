@@ -3,7 +3,15 @@ import { plots, sites, siteYears, treatments } from "@/db/schema";
 import type { TrialFilters } from "@/schemas/filters";
 import { observationRow, type ObservationRow } from "@/schemas/public";
 import { observationConditions } from "@/server/services/trial-filter";
-import { columnsFromFields, moistureBasisOf, orNull, provenanceLookup, versionIdsOf, yieldConverter, type RowResource } from "./row-resource";
+import {
+  columnsFromFields,
+  moistureBasisOf,
+  orNull,
+  provenanceLookup,
+  versionIdsOf,
+  yieldConverter,
+  type RowResource,
+} from "./row-resource";
 
 /** Plot observations with their site-year and treatment codes; yields in the unit asked for. */
 export const observationResource: RowResource<ObservationRow, Partial<TrialFilters>> = {

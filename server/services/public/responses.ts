@@ -5,7 +5,15 @@ import type { TrialFilters } from "@/schemas/filters";
 import { responseRow, type ResponseRow } from "@/schemas/public";
 import { countedSoilTest, filterNutrientsOf, testedNutrients } from "@/server/services/tested-nutrients";
 import { responseConditions } from "@/server/services/trial-filter";
-import { columnsFromFields, moistureBasisOf, orNull, provenanceLookup, versionIdsOf, yieldConverter, type RowResource } from "./row-resource";
+import {
+  columnsFromFields,
+  moistureBasisOf,
+  orNull,
+  provenanceLookup,
+  versionIdsOf,
+  yieldConverter,
+  type RowResource,
+} from "./row-resource";
 
 const checkTreatment = alias(treatments, "check_treatment");
 

@@ -61,16 +61,16 @@ export function columnsFromFields<Row extends object>(
   fields: readonly (keyof Row & string)[],
   replace: Partial<Record<keyof Row & string, CsvColumn<Row>[]>> = {},
 ): CsvColumn<Row>[] {
-  return fields.flatMap((name) =>
-    replace[name] ??
-    [
-      {
-        name,
-        value: (row: Row): CsvValue => {
-          const v = row[name] as unknown;
-          return Array.isArray(v) ? v.join(";") : (v as CsvValue);
+  return fields.flatMap(
+    (name) =>
+      replace[name] ?? [
+        {
+          name,
+          value: (row: Row): CsvValue => {
+            const v = row[name] as unknown;
+            return Array.isArray(v) ? v.join(";") : (v as CsvValue);
+          },
         },
-      },
-    ],
+      ],
   );
 }

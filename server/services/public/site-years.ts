@@ -18,7 +18,14 @@ const soilColumns: CsvColumn<SiteYearRow>[] = (["P", "K", "S"] as const).flatMap
       return t ? pick(t) : null;
     },
   });
-  return [column("Value", (t) => t.value), column("Unit", (t) => t.unit), column("Extractant", (t) => t.extractant), column("Class", (t) => t.class), column("ReportedClass", (t) => t.reportedClass), column("Scheme", (t) => t.interpretation)];
+  return [
+    column("Value", (t) => t.value),
+    column("Unit", (t) => t.unit),
+    column("Extractant", (t) => t.extractant),
+    column("Class", (t) => t.class),
+    column("ReportedClass", (t) => t.reportedClass),
+    column("Scheme", (t) => t.interpretation),
+  ];
 });
 
 const soilFieldFacts = (["P", "K", "S"] as const).flatMap((analyte) => [
@@ -45,7 +52,16 @@ export const siteYearResource: RowResource<SiteYearRow, Partial<TrialFilters>> =
     const testsBySiteYear = new Map<number, SoilTest[]>();
     for (const t of tests) {
       const list = testsBySiteYear.get(t.siteYearId) ?? [];
-      list.push({ analyte: t.analyte, value: t.value, unit: t.unit, extractant: t.extractant, depthIn: t.depthIn, class: t.class, reportedClass: t.reportedClass, interpretation: t.interpretation });
+      list.push({
+        analyte: t.analyte,
+        value: t.value,
+        unit: t.unit,
+        extractant: t.extractant,
+        depthIn: t.depthIn,
+        class: t.class,
+        reportedClass: t.reportedClass,
+        interpretation: t.interpretation,
+      });
       testsBySiteYear.set(t.siteYearId, list);
     }
     return rows.map(({ siteYear: sy, siteCode, location, soilTexture }) => ({

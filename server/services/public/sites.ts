@@ -14,7 +14,14 @@ export const siteResource: RowResource<SiteRow, object> = {
       .where(and(inArray(sites.versionId, versionIdsOf(scope)), gt(sites.id, afterId)))
       .orderBy(sites.id)
       .limit(limit);
-    return rows.map((r) => ({ id: r.id, ...from(r.versionId), code: r.code, location: r.location, soilSeries: r.soilSeries, soilTexture: r.soilTexture }));
+    return rows.map((r) => ({
+      id: r.id,
+      ...from(r.versionId),
+      code: r.code,
+      location: r.location,
+      soilSeries: r.soilSeries,
+      soilTexture: r.soilTexture,
+    }));
   },
   csvColumns: columnsFromFields<SiteRow>(Object.keys(siteRow.shape) as (keyof SiteRow)[]),
 };

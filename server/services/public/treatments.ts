@@ -22,7 +22,9 @@ export const treatmentResource: RowResource<TreatmentRow, Partial<TrialFilters>>
       .orderBy(treatments.id)
       .limit(limit);
     const ids = rows.map((r) => r.id);
-    const apps = ids.length ? await db.select().from(applications).where(inArray(applications.treatmentId, ids)).orderBy(applications.id) : [];
+    const apps = ids.length
+      ? await db.select().from(applications).where(inArray(applications.treatmentId, ids)).orderBy(applications.id)
+      : [];
     const byTreatment = new Map<number, Application[]>();
     for (const a of apps) {
       const list = byTreatment.get(a.treatmentId) ?? [];

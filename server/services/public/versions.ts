@@ -38,7 +38,10 @@ function summaryOf(v: VersionRow, d: DatasetRow): VersionSummary {
 async function publicVersionsOf(db: Db, slug: string): Promise<{ dataset: DatasetRow; versions: VersionRow[] }> {
   const [dataset] = await db.select().from(datasets).where(eq(datasets.slug, slug));
   const rows = dataset
-    ? await db.select().from(versions).where(and(eq(versions.datasetId, dataset.id), inArray(versions.state, [...publicStates])))
+    ? await db
+        .select()
+        .from(versions)
+        .where(and(eq(versions.datasetId, dataset.id), inArray(versions.state, [...publicStates])))
     : [];
   if (!dataset || rows.length === 0) throw notFound(`No published dataset is called "${slug}".`);
   return { dataset, versions: rows.sort((a, b) => compareSemver(b.semver, a.semver)) };
@@ -49,7 +52,17 @@ export async function datasetDetail(db: Db, slug: string): Promise<DatasetDetail
   const summary = (await listPublishedDatasets(db)).find((s) => s.slug === slug);
   // A dataset whose every version was withdrawn still has a page: its tombstones.
   const base = summary ?? {
-    ...(({ id, slug, title, crops, region, description, licence, keywords, contributors }) => ({ id, slug, title, crops, region, description, licence, keywords, contributors }))(d),
+    ...(({ id, slug, title, crops, region, description, licence, keywords, contributors }) => ({
+      id,
+      slug,
+      title,
+      crops,
+      region,
+      description,
+      licence,
+      keywords,
+      contributors,
+    }))(d),
     latestVersion: null,
     publishedAt: null,
     siteYears: 0,
@@ -81,7 +94,8 @@ export interface PathVersion extends ResolvedVersion {
 export async function pathVersion(db: Db, slug: string, semver: string): Promise<PathVersion> {
   const { dataset, versions: vs } = await publicVersionsOf(db, slug);
   const v = pickVersion(vs, semver);
-  if (!v) throw notFound(semver === latestAlias ? `Dataset "${slug}" has no published version.` : `Dataset "${slug}" has no version ${semver}.`);
+  if (!v)
+    throw notFound(semver === latestAlias ? `Dataset "${slug}" has no published version.` : `Dataset "${slug}" has no version ${semver}.`);
   return {
     versionId: v.id,
     datasetId: dataset.id,
@@ -107,14 +121,21 @@ export async function versionDetail(db: Db, v: PathVersion): Promise<VersionDeta
   if (v.state === "withdrawn") return { ...base, counts: null, yearFrom: null, yearTo: null, links: {} };
   const id = v.versionId;
   const n = (table: typeof sites | typeof siteYears | typeof treatments | typeof plots | typeof responses) =>
-    db.select({ n: count() }).from(table).where(eq(table.versionId, id)).then((r) => r[0]?.n ?? 0);
+    db
+      .select({ n: count() })
+      .from(table)
+      .where(eq(table.versionId, id))
+      .then((r) => r[0]?.n ?? 0);
   const [s, sy, t, p, r, years] = await Promise.all([
     n(sites),
     n(siteYears),
     n(treatments),
     n(plots),
     n(responses),
-    db.select({ from: min(siteYears.year), to: max(siteYears.year) }).from(siteYears).where(eq(siteYears.versionId, id)),
+    db
+      .select({ from: min(siteYears.year), to: max(siteYears.year) })
+      .from(siteYears)
+      .where(eq(siteYears.versionId, id)),
   ]);
   const path = versionPath(v.datasetSlug, v.semver);
   return {

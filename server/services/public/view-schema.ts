@@ -31,7 +31,8 @@ interface JsonProperty {
   description?: string;
 }
 
-const tableType = (t: string | undefined): TableSchemaField["type"] => (t === "integer" || t === "number" || t === "boolean" ? t : "string");
+const tableType = (t: string | undefined): TableSchemaField["type"] =>
+  t === "integer" || t === "number" || t === "boolean" ? t : "string";
 
 /**
  * The Table Schema of a view's CSV, derived from the row's zod contract and the CSV columns it is written with, so
@@ -39,7 +40,10 @@ const tableType = (t: string | undefined): TableSchemaField["type"] => (t === "i
  */
 export function viewTableSchema(name: RowViewName): ViewTableSchema {
   const resource: ViewSource = rowViews[name];
-  const json = z.toJSONSchema(resource.row, { io: "output", unrepresentable: "any" }) as { properties?: Record<string, JsonProperty>; required?: string[] };
+  const json = z.toJSONSchema(resource.row, { io: "output", unrepresentable: "any" }) as {
+    properties?: Record<string, JsonProperty>;
+    required?: string[];
+  };
   const required = new Set(json.required ?? []);
   const fields = resource.csvColumns.map((column): TableSchemaField => {
     const extra = resource.csvFields?.[column.name];
@@ -50,7 +54,12 @@ export function viewTableSchema(name: RowViewName): ViewTableSchema {
     const main = variants.find((v) => v.type !== "null") ?? {};
     const jsonType = Array.isArray(main.type) ? main.type.find((t) => t !== "null") : main.type;
     const list = jsonType === "array" || jsonType === "object";
-    const description = [prop.description ?? main.description, list ? (column.name === "applications" ? "applications separated by ' | '" : "values separated by ';'") : undefined].filter(Boolean).join("; ");
+    const description = [
+      prop.description ?? main.description,
+      list ? (column.name === "applications" ? "applications separated by ' | '" : "values separated by ';'") : undefined,
+    ]
+      .filter(Boolean)
+      .join("; ");
     const constraints: NonNullable<TableSchemaField["constraints"]> = {};
     if (required.has(column.name) && !nullable && !list) constraints.required = true;
     if (main.enum?.every((e) => typeof e === "string")) constraints.enum = main.enum as string[];

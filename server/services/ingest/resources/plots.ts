@@ -11,7 +11,10 @@ const MOISTURE_MIN = 5;
 const MOISTURE_MAX = 40;
 
 export function plotsIngest({ state, options, report, versionId, bulkCopy }: IngestContext): ResourceIngest {
-  const tallies = new Map<string, SiteYearTally & { factor: number; crop: string; blocks: number; rcbd: boolean; id: number; plots: Set<string> }>();
+  const tallies = new Map<
+    string,
+    SiteYearTally & { factor: number; crop: string; blocks: number; rcbd: boolean; id: number; plots: Set<string> }
+  >();
   const out = new RowBuffer(bulkCopy);
   const harvestBasis = options.units.yieldMoisture === "harvest";
   return {
@@ -32,25 +35,47 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy }: Ing
         } catch (error) {
           return report.error(row, "yield_kg_ha", null, (error as Error).message);
         }
-        if (sy.hasSummaries) report.error(row, "site_year", code, `site-year "${code}" already has summary means; a site-year has either plots or summaries`);
-        tally = { ...newTally(code, row), factor, crop: sy.crop, blocks: sy.blocks, rcbd: sy.design === "RCBD", id: sy.id, plots: new Set() };
+        if (sy.hasSummaries)
+          report.error(row, "site_year", code, `site-year "${code}" already has summary means; a site-year has either plots or summaries`);
+        tally = {
+          ...newTally(code, row),
+          factor,
+          crop: sy.crop,
+          blocks: sy.blocks,
+          rcbd: sy.design === "RCBD",
+          id: sy.id,
+          plots: new Set(),
+        };
         tallies.set(code, tally);
       }
       const trt = state.treatments.get(trtCode);
-      if (!trt) return report.error(row, "treatment", trtCode, `treatment "${trtCode}" is not in this version; upload it in treatments first`);
-      if (block > tally.blocks) return report.error(row, "block", String(block), `block ${block} is outside 1–${tally.blocks}, the blocks of site-year "${code}"`);
-      if (tally.plots.has(plot)) return report.error(row, "plot", plot, `plot "${plot}" appears twice in site-year "${code}" (site_year + plot is the primary key)`);
+      if (!trt)
+        return report.error(row, "treatment", trtCode, `treatment "${trtCode}" is not in this version; upload it in treatments first`);
+      if (block > tally.blocks)
+        return report.error(row, "block", String(block), `block ${block} is outside 1–${tally.blocks}, the blocks of site-year "${code}"`);
+      if (tally.plots.has(plot))
+        return report.error(row, "plot", plot, `plot "${plot}" appears twice in site-year "${code}" (site_year + plot is the primary key)`);
       tally.plots.add(plot);
       const moisture = num(v.harvest_moisture_pct);
       if (moisture !== null && (moisture < MOISTURE_MIN || moisture > MOISTURE_MAX)) {
-        report.error(row, "harvest_moisture_pct", String(moisture), `harvest moisture ${moisture} % is not plausible (expected ${MOISTURE_MIN}–${MOISTURE_MAX} %)`);
+        report.error(
+          row,
+          "harvest_moisture_pct",
+          String(moisture),
+          `harvest moisture ${moisture} % is not plausible (expected ${MOISTURE_MIN}–${MOISTURE_MAX} %)`,
+        );
       }
       let y = num(v.yield_kg_ha);
       if (y !== null) {
         y *= tally.factor;
         if (harvestBasis) {
           if (moisture === null) {
-            report.error(row, "harvest_moisture_pct", null, "yields are given at harvest moisture, so harvest_moisture_pct is required to move them to standard moisture");
+            report.error(
+              row,
+              "harvest_moisture_pct",
+              null,
+              "yields are given at harvest moisture, so harvest_moisture_pct is required to move them to standard moisture",
+            );
             y = null;
           } else if (moisture >= MOISTURE_MIN && moisture <= MOISTURE_MAX) y = toStandardMoisture(y, moisture, tally.crop);
         }
@@ -59,7 +84,12 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy }: Ing
       const cell = `${trtCode}|${block}`;
       const seen = tally.cells.get(cell) ?? 0;
       if (seen >= 1 && tally.rcbd) {
-        report.error(row, "block", String(block), `treatment "${trtCode}" appears more than once in block ${block} of site-year "${code}"; an RCBD has each treatment once per block`);
+        report.error(
+          row,
+          "block",
+          String(block),
+          `treatment "${trtCode}" appears more than once in block ${block} of site-year "${code}"; an RCBD has each treatment once per block`,
+        );
       }
       if (y !== null) {
         tally.cells.set(cell, seen + 1);
@@ -101,7 +131,24 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy }: Ing
         const ids = [...tallies.values()].filter((t) => state.siteYears.get(t.code)?.hasPlots).map((t) => t.id);
         if (ids.length) await tx.delete(plots).where(and(eq(plots.versionId, versionId), inArray(plots.siteYearId, ids)));
       }
-      await insertRows(database, tx, plots, ["versionId", "siteYearId", "treatmentId", "plot", "block", "yieldKgHa", "harvestMoisturePct", "standCount", "vigour", "testWeight"], out);
+      await insertRows(
+        database,
+        tx,
+        plots,
+        [
+          "versionId",
+          "siteYearId",
+          "treatmentId",
+          "plot",
+          "block",
+          "yieldKgHa",
+          "harvestMoisturePct",
+          "standCount",
+          "vigour",
+          "testWeight",
+        ],
+        out,
+      );
       return options.mode === "replace" ? "all" : { siteYearCodes: [...tallies.keys()] };
     },
   };

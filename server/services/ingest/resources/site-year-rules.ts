@@ -15,16 +15,35 @@ export interface SiteYearTally {
 }
 
 export function newTally(code: string, row: number): SiteYearTally {
-  return { code, firstRow: row, treatments: new Set(), cells: new Map(), yields: [], yieldRows: [], yieldTreatmentIds: [], yieldBlocks: [] };
+  return {
+    code,
+    firstRow: row,
+    treatments: new Set(),
+    cells: new Map(),
+    yields: [],
+    yieldRows: [],
+    yieldTreatmentIds: [],
+    yieldBlocks: [],
+  };
 }
 
 /** Exactly one untreated check among the treatments a site-year uses. */
 export function checkRule(tally: SiteYearTally, state: DraftState, report: Reporter) {
   const checks = [...tally.treatments].filter((t) => state.treatments.get(t)?.isCheck);
   if (checks.length === 0) {
-    report.error(tally.firstRow, "treatment", null, `site-year "${tally.code}" has no untreated check among its treatments (${[...tally.treatments].sort().join(", ")}); every site-year needs exactly one`);
+    report.error(
+      tally.firstRow,
+      "treatment",
+      null,
+      `site-year "${tally.code}" has no untreated check among its treatments (${[...tally.treatments].sort().join(", ")}); every site-year needs exactly one`,
+    );
   } else if (checks.length > 1) {
-    report.error(tally.firstRow, "treatment", checks.join(", "), `site-year "${tally.code}" has ${checks.length} checks (${checks.sort().join(", ")}); every site-year needs exactly one`);
+    report.error(
+      tally.firstRow,
+      "treatment",
+      checks.join(", "),
+      `site-year "${tally.code}" has ${checks.length} checks (${checks.sort().join(", ")}); every site-year needs exactly one`,
+    );
   }
 }
 
@@ -37,7 +56,12 @@ export function balanceRule(tally: SiteYearTally, blocks: number, report: Report
   if (missing.length) {
     const total = tally.treatments.size * blocks;
     const list = missing.length > 8 ? `${missing.slice(0, 8).join("; ")}; …` : missing.join("; ");
-    report.warn(null, "block", null, `site-year "${tally.code}" is unbalanced: ${missing.length} of ${total} plots missing or without yield (${list}); its responses use the least-squares fit and are flagged balanced=false`);
+    report.warn(
+      null,
+      "block",
+      null,
+      `site-year "${tally.code}" is unbalanced: ${missing.length} of ${total} plots missing or without yield (${list}); its responses use the least-squares fit and are flagged balanced=false`,
+    );
   }
 }
 
@@ -50,7 +74,12 @@ export function outlierRule(tally: SiteYearTally, report: Reporter, file = "yiel
   if (!(median > 0)) return;
   tally.yields.forEach((y, i) => {
     if (y < 0.4 * median || y > 2 * median) {
-      report.warn(tally.yieldRows[i]!, file, String(Math.round(y)), `yield ${Math.round(y)} kg/ha is far outside site-year "${tally.code}"'s range (median ${Math.round(median)} kg/ha); check it`);
+      report.warn(
+        tally.yieldRows[i]!,
+        file,
+        String(Math.round(y)),
+        `yield ${Math.round(y)} kg/ha is far outside site-year "${tally.code}"'s range (median ${Math.round(median)} kg/ha); check it`,
+      );
     }
   });
 }

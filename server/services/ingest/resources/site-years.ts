@@ -26,8 +26,10 @@ export function siteYearsIngest({ state, options, report, versionId }: IngestCon
       const code = str(v.site_year);
       const siteCode = str(v.site);
       if (code === null || siteCode === null || v.crop === null || v.year === null || v.blocks === null) return;
-      if (rows.has(code)) return report.error(row, "site_year", code, `site-year "${code}" appears twice in the file (site_year is the primary key)`);
-      if (!state.sites.has(siteCode)) return report.error(row, "site", siteCode, `site "${siteCode}" is not in this version; upload it in sites first`);
+      if (rows.has(code))
+        return report.error(row, "site_year", code, `site-year "${code}" appears twice in the file (site_year is the primary key)`);
+      if (!state.sites.has(siteCode))
+        return report.error(row, "site", siteCode, `site "${siteCode}" is not in this version; upload it in sites first`);
       const year = num(v.year)!;
       const plantingDate = str(v.planting_date);
       if (plantingDate && Math.abs(Number(plantingDate.slice(0, 4)) - year) > 1) {
@@ -36,7 +38,12 @@ export function siteYearsIngest({ state, options, report, versionId }: IngestCon
       const existing = state.siteYears.get(code);
       const blocks = num(v.blocks)!;
       if (existing && (existing.hasPlots || existing.hasSummaries) && existing.crop !== v.crop) {
-        report.warn(row, "crop", String(v.crop), `site-year "${code}" changes crop from ${existing.crop}; its yields were converted for ${existing.crop}`);
+        report.warn(
+          row,
+          "crop",
+          String(v.crop),
+          `site-year "${code}" changes crop from ${existing.crop}; its yields were converted for ${existing.crop}`,
+        );
       }
       rows.set(code, {
         code,
@@ -57,7 +64,12 @@ export function siteYearsIngest({ state, options, report, versionId }: IngestCon
       if (options.mode !== "replace") return;
       for (const [code, sy] of state.siteYears) {
         if (!rows.has(code) && (sy.hasPlots || sy.hasSummaries || sy.hasSoilTests)) {
-          report.error(null, "site_year", code, `site-year "${code}" is missing from the file but still has plots, summaries or soil tests in the draft; remove those first`);
+          report.error(
+            null,
+            "site_year",
+            code,
+            `site-year "${code}" is missing from the file but still has plots, summaries or soil tests in the draft; remove those first`,
+          );
         }
       }
     },
@@ -79,15 +91,46 @@ export function siteYearsIngest({ state, options, report, versionId }: IngestCon
           maturityGroup: r.maturityGroup,
         };
         if (state.siteYears.has(r.code)) {
-          await tx.update(siteYears).set(values).where(and(eq(siteYears.versionId, versionId), eq(siteYears.code, r.code)));
+          await tx
+            .update(siteYears)
+            .set(values)
+            .where(and(eq(siteYears.versionId, versionId), eq(siteYears.code, r.code)));
         } else fresh.push(r);
       }
       await insertRows(
         database,
         tx,
         siteYears,
-        ["versionId", "siteId", "code", "crop", "year", "design", "blocks", "tillage", "previousCrop", "plantingDate", "rowSpacingIn", "variety", "maturityGroup"],
-        fresh.map((r) => [versionId, state.sites.get(r.siteCode)!.id, r.code, r.crop, r.year, r.design, r.blocks, r.tillage, r.previousCrop, r.plantingDate, r.rowSpacingIn, r.variety, r.maturityGroup]),
+        [
+          "versionId",
+          "siteId",
+          "code",
+          "crop",
+          "year",
+          "design",
+          "blocks",
+          "tillage",
+          "previousCrop",
+          "plantingDate",
+          "rowSpacingIn",
+          "variety",
+          "maturityGroup",
+        ],
+        fresh.map((r) => [
+          versionId,
+          state.sites.get(r.siteCode)!.id,
+          r.code,
+          r.crop,
+          r.year,
+          r.design,
+          r.blocks,
+          r.tillage,
+          r.previousCrop,
+          r.plantingDate,
+          r.rowSpacingIn,
+          r.variety,
+          r.maturityGroup,
+        ]),
       );
       if (options.mode === "replace") {
         const gone = [...state.siteYears.keys()].filter((c) => !rows.has(c));

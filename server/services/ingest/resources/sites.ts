@@ -23,7 +23,13 @@ export function sitesIngest({ state, options, report, versionId }: IngestContext
     finish() {
       if (options.mode !== "replace") return;
       for (const [code, site] of state.sites) {
-        if (!rows.has(code) && site.used) report.error(null, "site", code, `site "${code}" is missing from the file but its site-years are still in the draft; remove them first`);
+        if (!rows.has(code) && site.used)
+          report.error(
+            null,
+            "site",
+            code,
+            `site "${code}" is missing from the file but its site-years are still in the draft; remove them first`,
+          );
       }
     },
     count: () => rows.size,
@@ -31,10 +37,19 @@ export function sitesIngest({ state, options, report, versionId }: IngestContext
       const fresh: SiteRow[] = [];
       for (const r of rows.values()) {
         if (state.sites.has(r.code)) {
-          await tx.update(sites).set({ location: r.location, soilSeries: r.soilSeries, soilTexture: r.soilTexture }).where(and(eq(sites.versionId, versionId), eq(sites.code, r.code)));
+          await tx
+            .update(sites)
+            .set({ location: r.location, soilSeries: r.soilSeries, soilTexture: r.soilTexture })
+            .where(and(eq(sites.versionId, versionId), eq(sites.code, r.code)));
         } else fresh.push(r);
       }
-      await insertRows(database, tx, sites, ["versionId", "code", "location", "soilSeries", "soilTexture"], fresh.map((r) => [versionId, r.code, r.location, r.soilSeries, r.soilTexture]));
+      await insertRows(
+        database,
+        tx,
+        sites,
+        ["versionId", "code", "location", "soilSeries", "soilTexture"],
+        fresh.map((r) => [versionId, r.code, r.location, r.soilSeries, r.soilTexture]),
+      );
       if (options.mode === "replace") {
         const gone = [...state.sites.keys()].filter((c) => !rows.has(c));
         if (gone.length) await tx.delete(sites).where(and(eq(sites.versionId, versionId), inArray(sites.code, gone)));

@@ -33,7 +33,12 @@ function readClass(input: ClassInput): { scale: string | null; label: string | n
   const onScale = (label: string) => (soilTestClasses as readonly string[]).includes(label);
   if (!schemeName) {
     if (reported !== null && !onScale(reported)) {
-      report.error(row, "class", reported, `class "${reported}" is not on the ordinal scale (${soilTestClasses.join(", ")}); name the interpretation scheme that uses it in the interpretation column, registered in the data dictionary's soilTestSchemes or built in (${[...builtInSchemeNames].join(", ")})`);
+      report.error(
+        row,
+        "class",
+        reported,
+        `class "${reported}" is not on the ordinal scale (${soilTestClasses.join(", ")}); name the interpretation scheme that uses it in the interpretation column, registered in the data dictionary's soilTestSchemes or built in (${[...builtInSchemeNames].join(", ")})`,
+      );
       return null;
     }
     return { scale: reported, label: reported, scheme: null };
@@ -50,18 +55,35 @@ function readClass(input: ClassInput): { scale: string | null; label: string | n
   const scheme = found.scheme;
   const thresholdsApply = scheme.thresholds !== "as reported" && !found.extractantDiffers && scheme.unit === unit;
   if (scheme.thresholds !== "as reported" && !thresholdsApply) {
-    const why = found.extractantDiffers ? `is for ${scheme.extractant}, not ${extractant ?? "no extractant"}` : `has thresholds in ${scheme.unit}, not ${unit}`;
-    report.warn(row, "interpretation", schemeName, `scheme "${scheme.name}" ${why}; its labels are used but the class was not checked against the value`);
+    const why = found.extractantDiffers
+      ? `is for ${scheme.extractant}, not ${extractant ?? "no extractant"}`
+      : `has thresholds in ${scheme.unit}, not ${unit}`;
+    report.warn(
+      row,
+      "interpretation",
+      schemeName,
+      `scheme "${scheme.name}" ${why}; its labels are used but the class was not checked against the value`,
+    );
   }
   const byValue = thresholdsApply ? classifyByThresholds(scheme, value) : null;
   if (reported === null) return { scale: byValue?.scale ?? null, label: byValue?.label ?? null, scheme: scheme.name };
   const cls = classOfLabel(scheme, reported);
   if (!cls) {
-    report.error(row, "class", reported, `class "${reported}" is not a label of scheme "${scheme.name}" (${scheme.classes.map((c) => c.label).join(", ")})`);
+    report.error(
+      row,
+      "class",
+      reported,
+      `class "${reported}" is not a label of scheme "${scheme.name}" (${scheme.classes.map((c) => c.label).join(", ")})`,
+    );
     return null;
   }
   if (byValue && byValue.label !== cls.label) {
-    report.warn(row, "class", reported, `class "${reported}" contradicts scheme "${scheme.name}": ${analyte} = ${value} ${unit}${extractant ? ` (${extractant})` : ""} falls in "${byValue.label}" by its thresholds; kept as the trial reported it`);
+    report.warn(
+      row,
+      "class",
+      reported,
+      `class "${reported}" contradicts scheme "${scheme.name}": ${analyte} = ${value} ${unit}${extractant ? ` (${extractant})` : ""} falls in "${byValue.label}" by its thresholds; kept as the trial reported it`,
+    );
   }
   return { scale: cls.scale, label: cls.label, scheme: scheme.name };
 }
@@ -79,7 +101,13 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
       const sy = state.siteYears.get(code);
       if (!sy) return report.error(row, "site_year", code, `site-year "${code}" is not in this version; upload it in site_years first`);
       const key = `${code}\u0000${analyte}`;
-      if (keys.has(key)) return report.error(row, "analyte", analyte, `site-year "${code}" has a second ${analyte} test (site_year + analyte is the primary key)`);
+      if (keys.has(key))
+        return report.error(
+          row,
+          "analyte",
+          analyte,
+          `site-year "${code}" has a second ${analyte} test (site_year + analyte is the primary key)`,
+        );
       keys.add(key);
       let value = num(v.value)!;
       let unit = str(v.unit) ?? unitOf[analyte] ?? null;
@@ -92,9 +120,20 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
       if (unitOf[analyte] && unit !== unitOf[analyte]) {
         return report.error(row, "unit", unit, `${analyte} is measured in ${unitOf[analyte]}, not ${unit}`);
       }
-      if (analyte === "pH" && (value < 3 || value > 11)) return report.error(row, "value", String(value), `a soil pH of ${value} is not plausible (3–11)`);
+      if (analyte === "pH" && (value < 3 || value > 11))
+        return report.error(row, "value", String(value), `a soil pH of ${value} is not plausible (3–11)`);
       const extractant = str(v.extractant);
-      const reading = readClass({ analyte, value, unit, extractant, reported: str(v.class), schemeName: str(v.interpretation), schemes: soilTestSchemes, row, report });
+      const reading = readClass({
+        analyte,
+        value,
+        unit,
+        extractant,
+        reported: str(v.class),
+        schemeName: str(v.interpretation),
+        schemes: soilTestSchemes,
+        row,
+        report,
+      });
       if (!reading) return;
       siteYearCodes.add(code);
       out.push([versionId, sy.id, analyte, value, unit, extractant, num(v.depth_in), reading.scale, reading.scheme, reading.label]);
@@ -107,7 +146,13 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
         const ids = [...siteYearCodes].map((c) => state.siteYears.get(c)!.id);
         if (ids.length) await tx.delete(soilTests).where(and(eq(soilTests.versionId, versionId), inArray(soilTests.siteYearId, ids)));
       }
-      await insertRows(database, tx, soilTests, ["versionId", "siteYearId", "analyte", "value", "unit", "extractant", "depthIn", "class", "interpretation", "reportedClass"], out);
+      await insertRows(
+        database,
+        tx,
+        soilTests,
+        ["versionId", "siteYearId", "analyte", "value", "unit", "extractant", "depthIn", "class", "interpretation", "reportedClass"],
+        out,
+      );
       return options.mode === "replace" ? "all" : { siteYearCodes: [...siteYearCodes] };
     },
   };

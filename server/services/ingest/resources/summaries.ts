@@ -14,7 +14,8 @@ export function summariesIngest({ state, options, report, versionId }: IngestCon
     row(v, row) {
       const code = str(v.site_year);
       const trtCode = str(v.treatment);
-      if (code === null || trtCode === null || v.mean_kg_ha === null || v.replicates === null || v.mse === null || v.df_error === null) return;
+      if (code === null || trtCode === null || v.mean_kg_ha === null || v.replicates === null || v.mse === null || v.df_error === null)
+        return;
       let tally = tallies.get(code);
       const sy = state.siteYears.get(code);
       if (!sy) return report.error(row, "site_year", code, `site-year "${code}" is not in this version; upload it in site_years first`);
@@ -27,15 +28,28 @@ export function summariesIngest({ state, options, report, versionId }: IngestCon
         } catch (error) {
           return report.error(row, "mean_kg_ha", null, (error as Error).message);
         }
-        if (sy.hasPlots) report.error(row, "site_year", code, `site-year "${code}" already has plots; a site-year has either plots or summaries`);
+        if (sy.hasPlots)
+          report.error(row, "site_year", code, `site-year "${code}" already has plots; a site-year has either plots or summaries`);
         tally = { ...newTally(code, row), factor, id: sy.id, mse, df };
         tallies.set(code, tally);
       } else if (tally.mse !== mse || tally.df !== df) {
-        report.error(row, "mse", String(mse), `site-year "${code}" has one ANOVA, so mse and df_error must be the same on all its rows (data row ${tally.firstRow} has ${tally.mse} with ${tally.df} df)`);
+        report.error(
+          row,
+          "mse",
+          String(mse),
+          `site-year "${code}" has one ANOVA, so mse and df_error must be the same on all its rows (data row ${tally.firstRow} has ${tally.mse} with ${tally.df} df)`,
+        );
       }
       const trt = state.treatments.get(trtCode);
-      if (!trt) return report.error(row, "treatment", trtCode, `treatment "${trtCode}" is not in this version; upload it in treatments first`);
-      if (tally.treatments.has(trtCode)) return report.error(row, "treatment", trtCode, `treatment "${trtCode}" appears twice for site-year "${code}" (site_year + treatment is the primary key)`);
+      if (!trt)
+        return report.error(row, "treatment", trtCode, `treatment "${trtCode}" is not in this version; upload it in treatments first`);
+      if (tally.treatments.has(trtCode))
+        return report.error(
+          row,
+          "treatment",
+          trtCode,
+          `treatment "${trtCode}" appears twice for site-year "${code}" (site_year + treatment is the primary key)`,
+        );
       tally.treatments.add(trtCode);
       // An MSE is in squared yield units, so it converts with the square of the yield factor.
       out.push([versionId, sy.id, trt.id, num(v.mean_kg_ha)! * tally.factor, num(v.replicates), mse * tally.factor ** 2, df]);
@@ -43,7 +57,13 @@ export function summariesIngest({ state, options, report, versionId }: IngestCon
     finish() {
       for (const tally of tallies.values()) {
         checkRule(tally, state, report);
-        if (tally.treatments.size < 2) report.error(tally.firstRow, "treatment", null, `site-year "${tally.code}" has only one treatment; a response needs the check and at least one other`);
+        if (tally.treatments.size < 2)
+          report.error(
+            tally.firstRow,
+            "treatment",
+            null,
+            `site-year "${tally.code}" has only one treatment; a response needs the check and at least one other`,
+          );
       }
     },
     count: () => out.length,
@@ -51,9 +71,16 @@ export function summariesIngest({ state, options, report, versionId }: IngestCon
       if (options.mode === "replace") await tx.delete(summaryMeans).where(eq(summaryMeans.versionId, versionId));
       else {
         const ids = [...tallies.values()].map((t) => t.id);
-        if (ids.length) await tx.delete(summaryMeans).where(and(eq(summaryMeans.versionId, versionId), inArray(summaryMeans.siteYearId, ids)));
+        if (ids.length)
+          await tx.delete(summaryMeans).where(and(eq(summaryMeans.versionId, versionId), inArray(summaryMeans.siteYearId, ids)));
       }
-      await insertRows(database, tx, summaryMeans, ["versionId", "siteYearId", "treatmentId", "meanKgHa", "replicates", "mse", "dfError"], out);
+      await insertRows(
+        database,
+        tx,
+        summaryMeans,
+        ["versionId", "siteYearId", "treatmentId", "meanKgHa", "replicates", "mse", "dfError"],
+        out,
+      );
       return options.mode === "replace" ? "all" : { siteYearCodes: [...tallies.keys()] };
     },
   };

@@ -39,10 +39,23 @@ const required = ["product", "grade", "product_rate", "rate_unit", "placement", 
 function totals(t: TreatmentRow) {
   const apps = [...t.applications.values()];
   const sum = (k: "n" | "p2o5" | "k2o" | "s") => round(apps.reduce((a, x) => a + x[k], 0));
-  const n = sum("n"), p2o5 = sum("p2o5"), k2o = sum("k2o"), s = sum("s");
+  const n = sum("n"),
+    p2o5 = sum("p2o5"),
+    k2o = sum("k2o"),
+    s = sum("s");
   const nutrients = [n > 0 && "N", p2o5 > 0 && "P", k2o > 0 && "K", s > 0 && "S"].filter((x): x is string => !!x);
   const placements = [...new Set(apps.map((a) => a.placement))].sort();
-  return { name: t.name, isCheck: t.isCheck, nLbAc: n, p2o5LbAc: p2o5, k2oLbAc: k2o, sLbAc: s, nutrients, placements, testedNutrientsStated: t.tested?.nutrients ?? null };
+  return {
+    name: t.name,
+    isCheck: t.isCheck,
+    nLbAc: n,
+    p2o5LbAc: p2o5,
+    k2oLbAc: k2o,
+    sLbAc: s,
+    nutrients,
+    placements,
+    testedNutrientsStated: t.tested?.nutrients ?? null,
+  };
 }
 
 export function treatmentsIngest({ state, options, report, versionId }: IngestContext): ResourceIngest {
@@ -83,7 +96,13 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
       if (testedCell !== null) {
         const parsed = parseTestedNutrients(testedCell);
         if (!parsed.ok) return report.error(row, "tested_nutrients", testedCell, parsed.message);
-        if (isCheck) return report.error(row, "tested_nutrients", testedCell, `treatment "${code}" is the untreated check, so it tests nothing; leave tested_nutrients blank`);
+        if (isCheck)
+          return report.error(
+            row,
+            "tested_nutrients",
+            testedCell,
+            `treatment "${code}" is the untreated check, so it tests nothing; leave tested_nutrients blank`,
+          );
         tested = { cell: testedCell, nutrients: parsed.value, row };
       }
       let t = rows.get(code);
@@ -92,19 +111,35 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
         rows.set(code, t);
       } else {
         if (t.name !== name) report.error(row, "name", name, `treatment "${code}" is called "${t.name}" in data row ${t.firstRow}`);
-        if (t.isCheck !== isCheck) report.error(row, "is_check", String(v.is_check), `treatment "${code}" has is_check ${t.isCheck} in data row ${t.firstRow}`);
+        if (t.isCheck !== isCheck)
+          report.error(row, "is_check", String(v.is_check), `treatment "${code}" has is_check ${t.isCheck} in data row ${t.firstRow}`);
         // The statement belongs to the treatment: a blank on a later application row repeats the first one.
         if (tested && t.tested && tested.nutrients.join(";") !== t.tested.nutrients.join(";")) {
-          report.error(row, "tested_nutrients", testedCell, `treatment "${code}" states tested_nutrients "${t.tested.cell}" in data row ${t.tested.row}`);
+          report.error(
+            row,
+            "tested_nutrients",
+            testedCell,
+            `treatment "${code}" states tested_nutrients "${t.tested.cell}" in data row ${t.tested.row}`,
+          );
         } else if (tested && !t.tested) t.tested = tested;
       }
       if (t.applications.has(appNo) || (isCheck && t.firstRow !== row)) {
-        return report.error(row, "application", String(appNo), `treatment "${code}" already has application ${appNo} (treatment + application is the primary key)`);
+        return report.error(
+          row,
+          "application",
+          String(appNo),
+          `treatment "${code}" already has application ${appNo} (treatment + application is the primary key)`,
+        );
       }
       count += 1;
       if (isCheck) {
         if (v.product !== null || (num(v.product_rate) ?? 0) > 0) {
-          report.error(row, "product", str(v.product), `treatment "${code}" is the untreated check, so it has no product; give it one row with the product blank`);
+          report.error(
+            row,
+            "product",
+            str(v.product),
+            `treatment "${code}" is the untreated check, so it has no product; give it one row with the product blank`,
+          );
         }
         return;
       }
@@ -122,7 +157,13 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
       let density = num(v.density_lb_gal);
       if (isFluidUnit(unit) && density === null) {
         density = typicalDensity(grade);
-        if (density === null) return report.error(row, "density_lb_gal", null, `a fluid rate (${unit}) of grade ${grade} needs density_lb_gal; no typical density is on file for it`);
+        if (density === null)
+          return report.error(
+            row,
+            "density_lb_gal",
+            null,
+            `a fluid rate (${unit}) of grade ${grade} needs density_lb_gal; no typical density is on file for it`,
+          );
       }
       const productLbAc = productPoundsPerAcre(num(v.product_rate)!, unit, density);
       const rates = nutrientRates(productLbAc, parsed);
@@ -139,29 +180,51 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
         k2o: round(rates.potash),
         s: round(rates.sulfur),
       };
-      for (const [field, computed] of [["n_lb_ac", app.n], ["p2o5_lb_ac", app.p2o5], ["k2o_lb_ac", app.k2o], ["s_lb_ac", app.s]] as const) {
+      for (const [field, computed] of [
+        ["n_lb_ac", app.n],
+        ["p2o5_lb_ac", app.p2o5],
+        ["k2o_lb_ac", app.k2o],
+        ["s_lb_ac", app.s],
+      ] as const) {
         const given = num(v[field]);
         if (given !== null && Math.abs(given - computed) > 0.5 + 0.02 * computed) {
-          report.warn(row, field, String(given), `${field} ${given} differs from ${computed} computed from grade ${grade} at ${app.productRate} ${unit}; the computed value is stored`);
+          report.warn(
+            row,
+            field,
+            String(given),
+            `${field} ${given} differs from ${computed} computed from grade ${grade} at ${app.productRate} ${unit}; the computed value is stored`,
+          );
         }
       }
       t.applications.set(appNo, app);
     },
     finish() {
       for (const t of rows.values()) {
-        if (!t.isCheck && t.applications.size === 0) report.error(t.firstRow, "treatment", t.code, `treatment "${t.code}" is not the check but has no valid application`);
+        if (!t.isCheck && t.applications.size === 0)
+          report.error(t.firstRow, "treatment", t.code, `treatment "${t.code}" is not the check but has no valid application`);
         if (t.tested && t.applications.size > 0) {
           const supplied = totals(t).nutrients;
           const absent = t.tested.nutrients.filter((n) => !supplied.includes(n));
           if (absent.length) {
-            report.error(t.tested.row, "tested_nutrients", t.tested.cell, `treatment "${t.code}" states it tests ${absent.join(", ")}, but its products add no ${absent.join(" or ")}`);
+            report.error(
+              t.tested.row,
+              "tested_nutrients",
+              t.tested.cell,
+              `treatment "${t.code}" states it tests ${absent.join(", ")}, but its products add no ${absent.join(" or ")}`,
+            );
           }
         }
       }
       warnCautions();
       if (options.mode === "replace") {
         for (const [code, t] of state.treatments) {
-          if (!rows.has(code) && t.used) report.error(null, "treatment", code, `treatment "${code}" is missing from the file but plots or summaries still use it; remove those first`);
+          if (!rows.has(code) && t.used)
+            report.error(
+              null,
+              "treatment",
+              code,
+              `treatment "${code}" is missing from the file but plots or summaries still use it; remove those first`,
+            );
         }
       }
     },
@@ -175,19 +238,57 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
           await tx.update(treatments).set(values).where(eq(treatments.id, existing.id));
           ids.set(t.code, existing.id);
         } else {
-          const [inserted] = await tx.insert(treatments).values({ versionId, code: t.code, ...values }).returning({ id: treatments.id });
+          const [inserted] = await tx
+            .insert(treatments)
+            .values({ versionId, code: t.code, ...values })
+            .returning({ id: treatments.id });
           ids.set(t.code, inserted!.id);
         }
       }
       const touched = [...ids.values()];
-      if (touched.length) await tx.delete(applications).where(and(eq(applications.versionId, versionId), inArray(applications.treatmentId, touched)));
+      if (touched.length)
+        await tx.delete(applications).where(and(eq(applications.versionId, versionId), inArray(applications.treatmentId, touched)));
       const appRows: Cell[][] = [];
       for (const t of rows.values()) {
         for (const a of [...t.applications.entries()].sort(([x], [y]) => x - y).map(([, a]) => a)) {
-          appRows.push([versionId, ids.get(t.code)!, a.product, a.grade, a.productRate, a.rateUnit, a.densityLbGal, a.placement, a.timing, a.n, a.p2o5, a.k2o, a.s]);
+          appRows.push([
+            versionId,
+            ids.get(t.code)!,
+            a.product,
+            a.grade,
+            a.productRate,
+            a.rateUnit,
+            a.densityLbGal,
+            a.placement,
+            a.timing,
+            a.n,
+            a.p2o5,
+            a.k2o,
+            a.s,
+          ]);
         }
       }
-      await insertRows(database, tx, applications, ["versionId", "treatmentId", "product", "grade", "productRate", "rateUnit", "densityLbGal", "placement", "timing", "nLbAc", "p2o5LbAc", "k2oLbAc", "sLbAc"], appRows);
+      await insertRows(
+        database,
+        tx,
+        applications,
+        [
+          "versionId",
+          "treatmentId",
+          "product",
+          "grade",
+          "productRate",
+          "rateUnit",
+          "densityLbGal",
+          "placement",
+          "timing",
+          "nLbAc",
+          "p2o5LbAc",
+          "k2oLbAc",
+          "sLbAc",
+        ],
+        appRows,
+      );
       if (options.mode === "replace") {
         const gone = [...state.treatments.entries()].filter(([c]) => !rows.has(c)).map(([, t]) => t.id);
         if (gone.length) await tx.delete(treatments).where(inArray(treatments.id, gone));
