@@ -103,9 +103,12 @@ describe("favicon", () => {
 });
 
 describe("deep links", () => {
-  it("a reload on a deep path serves the app, not a 404", async () => {
-    const res = await fetch(`${server.url}/datasets/some-slug`);
+  it("a reload on a deep path serves the app, not a 404; a dataset page that names nothing is a 404 with the app", async () => {
+    const res = await fetch(`${server.url}/datasets/soybean-starter-p-placement`);
     expect(res.status).toBe(200);
     expect(res.headers.get("content-type")).toMatch(/text\/html/);
+    const unknown = await fetch(`${server.url}/datasets/some-slug`);
+    expect(unknown.status).toBe(404);
+    expect(unknown.headers.get("content-type")).toMatch(/text\/html/);
   });
 });
