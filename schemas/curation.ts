@@ -78,6 +78,9 @@ export const curationDataset = datasetSummary
       .describe("Curators the owner has shared the dataset with; e-mail addresses only for its owner, editors and admins"),
     canShare: z.boolean().describe("The signed-in user may add and remove editors (the owner or an admin)"),
     canEdit: z.boolean().describe("The signed-in user may edit this dataset's drafts"),
+    canStartVersion: z
+      .boolean()
+      .describe("The signed-in user may start a new version now (an editor, with no draft or version in review open)"),
     versions: z.array(versionBrief).describe("Newest first"),
     createdAt: z.string(),
     updatedAt: z.string(),

@@ -1,6 +1,5 @@
 import { useLocalSearchParams, useRouter } from "expo-router";
 import { StyleSheet, View } from "react-native";
-import { canStartVersion } from "@/components/curation/action-policy";
 import { EditorsPanel } from "@/components/curation/editors-panel";
 import { FieldError } from "@/components/ui/text-field";
 import { LinkButton } from "@/components/curation/link-button";
@@ -14,9 +13,8 @@ import { Text } from "@/components/ui/text";
 import { space } from "@/constants/theme";
 import { useCurationDataset } from "@/hooks/use-curation-datasets";
 import { useCreateVersionMutation } from "@/hooks/use-curation-versions";
-import type { SessionUser } from "@/hooks/use-session";
 
-function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
+function DatasetDesk({ slug }: { slug: string }) {
   const router = useRouter();
   const dataset = useCurationDataset(slug);
   const start = useCreateVersionMutation(slug);
@@ -51,7 +49,7 @@ function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
             label={`${open.state === "draft" ? "Continue draft" : "Open version in review"} v${open.semver}`}
           />
         ) : null}
-        {canStartVersion(user, d) ? (
+        {d.canStartVersion ? (
           <Button
             label={first ? "Start version 1.0.0" : "Start a new version"}
             busy={start.isPending}
@@ -63,7 +61,7 @@ function DatasetDesk({ slug, user }: { slug: string; user: SessionUser }) {
         ) : null}
       </View>
       {start.isError ? <FieldError message={start.error.message} /> : null}
-      {!first && canStartVersion(user, d) ? (
+      {!first && d.canStartVersion ? (
         <Text variant="caption">
           A new version starts as a copy of the latest published one; upload the new season or corrections into it.
         </Text>
@@ -83,7 +81,7 @@ export default function DatasetDeskScreen() {
   const { slug } = useLocalSearchParams<{ slug: string }>();
   return (
     <Screen title="Dataset" subtitle="Its versions, from the first draft to the latest publication.">
-      <WorkbenchGate>{(user) => <DatasetDesk slug={slug} user={user} />}</WorkbenchGate>
+      <WorkbenchGate>{() => <DatasetDesk slug={slug} />}</WorkbenchGate>
     </Screen>
   );
 }

@@ -32,6 +32,16 @@ async function isPublic(db: Db, dataset: Dataset): Promise<boolean> {
 
 export const isReviewer = (user: User | undefined) => user?.role === "reviewer" || user?.role === "admin";
 
+/**
+ * Who may start a new version of a dataset: a curator or admin who edits it, while no version is open (a draft or
+ * one in review). Starting one also refuses these cases; the answer carries this so screens need not work it out.
+ */
+export const canStartVersion = (user: User | undefined, datasetEditable: boolean, versionStates: readonly Version["state"][]) =>
+  !!user &&
+  datasetEditable &&
+  (user.role === "curator" || user.role === "admin") &&
+  !versionStates.some((s) => s === "draft" || s === "in_review");
+
 /** Any reviewer may send a version in review back to its curators, their own included. */
 export const canReturn = (user: User | undefined, version: Pick<Version, "state">) => version.state === "in_review" && isReviewer(user);
 

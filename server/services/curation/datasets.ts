@@ -6,7 +6,7 @@ import { datasetCreate } from "@/schemas/curation";
 import { conflict, forbidden, HttpProblem, notFound } from "@/server/errors";
 import { findUserByEmail } from "@/server/services/users";
 import { compareSemver, datasetDescription } from "@/server/services/catalogue";
-import { assertCanEdit, canEditDataset, type Dataset, type User } from "./access";
+import { assertCanEdit, canEditDataset, canStartVersion, type Dataset, type User } from "./access";
 
 export const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
@@ -50,6 +50,11 @@ async function describe(db: Db, user: User | undefined, d: Dataset): Promise<Cur
     })),
     canShare: !!user && (user.role === "admin" || user.id === d.ownerId),
     canEdit,
+    canStartVersion: canStartVersion(
+      user,
+      canEdit,
+      vs.map((v) => v.state),
+    ),
     versions: vs.map(versionBrief),
     createdAt: d.createdAt.toISOString(),
     updatedAt: d.updatedAt.toISOString(),
