@@ -175,20 +175,48 @@ export function testsAnyOf(c: TestedNutrientColumns, wanted: readonly string[]):
   return sql`(${testedNutrientsSql(c)} && ${textArray(wanted)})`;
 }
 
+/** SQL: whether an analyte is a candidate for the soil test that counts (see countedSoilTest). */
+function soilCandidateSql(c: TestedNutrientColumns, filterNutrients: readonly string[]): (a: Analyte) => SQL {
+  const tested = testedNutrientsSql(c);
+  const narrowedTo = analytes.filter((a) => filterNutrients.includes(a));
+  return (a) => {
+    const testsIt = sql`${textLiteral(a)} = ANY(${tested})`;
+    if (narrowedTo.length === 0 || narrowedTo.includes(a)) return testsIt;
+    // Not a filtered analyte: a candidate only when the response tests none of the filtered ones.
+    return sql`${testsIt} AND NOT (${tested} && ${textArray(narrowedTo)})`;
+  };
+}
+
 /** SQL of `countedSoilTest(...).class`, for the soil-test-class filter. */
 export function countedSoilClassSql(
   c: TestedNutrientColumns,
   soil: Record<Analyte, ColumnLike>,
   filterNutrients: readonly string[] = [],
 ): SQL {
-  const tested = testedNutrientsSql(c);
-  const narrowedTo = analytes.filter((a) => filterNutrients.includes(a));
-  const candidate = (a: Analyte) => {
-    const testsIt = sql`${textLiteral(a)} = ANY(${tested})`;
-    if (narrowedTo.length === 0 || narrowedTo.includes(a)) return testsIt;
-    // Not a filtered analyte: a candidate only when the response tests none of the filtered ones.
-    return sql`${testsIt} AND NOT (${tested} && ${textArray(narrowedTo)})`;
-  };
+  const candidate = soilCandidateSql(c, filterNutrients);
   const whens = analytes.map((a) => sql`WHEN ${candidate(a)} AND ${soil[a]} IS NOT NULL THEN ${soil[a]}`);
   return sql`(CASE ${sql.join(whens, sql` `)} END)`;
+}
+
+/**
+ * SQL of `testedNutrients` exactly as the TypeScript returns it, for answers built in SQL: a stated list is put in
+ * N, P, K, S order without repeats (testedNutrientsSql keeps it as stored, which is all a filter needs).
+ */
+export function testedNutrientListSql(c: TestedNutrientColumns): SQL {
+  const inOrder = (n: Nutrient) => sql`CASE WHEN ${textLiteral(n)} = ANY(${c.stated}) THEN ${textLiteral(n)} END`;
+  const stated = sql`array_remove(ARRAY[${sql.join(nutrients.map(inOrder), sql`, `)}]::text[], NULL)`;
+  const derived = testedNutrientsSql({ ...c, stated: sql`NULL::text[]` });
+  return sql`(CASE WHEN ${c.stated} IS NULL THEN ${derived} ELSE ${stated} END)`;
+}
+
+/** SQL of `countedSoilTest(...).analyte`: the first candidate with a class, else the first candidate, else null. */
+export function countedSoilAnalyteSql(
+  c: TestedNutrientColumns,
+  soilClass: Record<Analyte, ColumnLike>,
+  filterNutrients: readonly string[] = [],
+): SQL {
+  const candidate = soilCandidateSql(c, filterNutrients);
+  const withClass = analytes.map((a) => sql`WHEN ${candidate(a)} AND ${soilClass[a]} IS NOT NULL THEN ${textLiteral(a)}`);
+  const first = analytes.map((a) => sql`WHEN ${candidate(a)} THEN ${textLiteral(a)}`);
+  return sql`(CASE ${sql.join([...withClass, ...first], sql` `)} END)`;
 }

@@ -81,13 +81,22 @@ export async function serveRows<Row extends { id: number }, F>(req: Request, res
     return;
   }
 
+  const head = (nextPageToken: string | null) => {
+    if (nextPageToken) {
+      const base = req.originalUrl.split("?")[0]!;
+      res.setHeader("Link", `<${nextPageUrl(base, req.query as Record<string, unknown>, nextPageToken)}>; rel="next"`);
+    }
+    return { nextPageToken, versions, ...(units ? { units } : {}) };
+  };
+  if (o.resource.readJsonPage) {
+    // The items come from the database as JSON text; only the page's own fields are encoded here.
+    const page = await o.resource.readJsonPage(o.db, scope, afterId, limit);
+    const nextPageToken = page.read > limit && page.lastId !== null ? encodePageToken(page.lastId, hash) : null;
+    res.type("application/json").send(`{"items":${page.itemsJson},${JSON.stringify(head(nextPageToken)).slice(1)}`);
+    return;
+  }
   const rows = await read(afterId, limit + 1);
   const items = rows.slice(0, limit);
   const last = items[items.length - 1];
-  const nextPageToken = rows.length > limit && last ? encodePageToken(last.id, hash) : null;
-  if (nextPageToken) {
-    const base = req.originalUrl.split("?")[0]!;
-    res.setHeader("Link", `<${nextPageUrl(base, req.query as Record<string, unknown>, nextPageToken)}>; rel="next"`);
-  }
-  res.json({ items, nextPageToken, versions, ...(units ? { units } : {}) });
+  res.json({ items, ...head(rows.length > limit && last ? encodePageToken(last.id, hash) : null) });
 }

@@ -1,21 +1,43 @@
-import { and, eq, gt } from "drizzle-orm";
+import { and, eq, gt, sql, type SQL } from "drizzle-orm";
 import { alias } from "drizzle-orm/pg-core";
 import { responses, treatments } from "@/db/schema";
 import type { TrialFilters } from "@/schemas/filters";
 import { responseRow, type ResponseRow } from "@/schemas/public";
-import { countedSoilTest, filterNutrientsOf, testedNutrients } from "@/server/services/tested-nutrients";
+import type { Db } from "@/db/client";
+import {
+  countedSoilAnalyteSql,
+  countedSoilClassSql,
+  countedSoilTest,
+  filterNutrientsOf,
+  testedNutrientListSql,
+  testedNutrients,
+} from "@/server/services/tested-nutrients";
 import { responseConditions } from "@/server/services/trial-filter";
 import {
   columnsFromFields,
+  encodedPage,
   moistureBasisOf,
   orNull,
   provenanceLookup,
   versionIdsOf,
   yieldConverter,
+  yieldConverterSql,
   type RowResource,
+  type RowScope,
 } from "./row-resource";
 
 const checkTreatment = alias(treatments, "check_treatment");
+
+/** The stored responses a page reads, with their check's code: the SELECT both encodings start from (bench/api.ts times it bare). */
+export function responseQuery(db: Db, scope: RowScope<TrialFilters>, afterId: number, limit: number) {
+  return db
+    .select({ r: responses, checkTreatmentCode: checkTreatment.code })
+    .from(responses)
+    .innerJoin(checkTreatment, eq(checkTreatment.id, responses.checkTreatmentId))
+    .where(and(responseConditions(scope.filters, versionIdsOf(scope)), gt(responses.id, afterId)))
+    .orderBy(responses.id)
+    .limit(limit);
+}
 
 /**
  * One row per site-year × treatment against its check: the mean difference with its SE and df, the site-year's
@@ -26,13 +48,7 @@ export const responseResource: RowResource<ResponseRow, TrialFilters> = {
   row: responseRow,
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
-    const rows = await db
-      .select({ r: responses, checkTreatmentCode: checkTreatment.code })
-      .from(responses)
-      .innerJoin(checkTreatment, eq(checkTreatment.id, responses.checkTreatmentId))
-      .where(and(responseConditions(scope.filters, versionIdsOf(scope)), gt(responses.id, afterId)))
-      .orderBy(responses.id)
-      .limit(limit);
+    const rows = await responseQuery(db, scope, afterId, limit);
     return rows.map(({ r, checkTreatmentCode }) => {
       const { unit, convert: y } = yieldConverter(r.crop, scope.units);
       const tested = testedNutrients(r);
@@ -89,5 +105,89 @@ export const responseResource: RowResource<ResponseRow, TrialFilters> = {
       };
     });
   },
+  readJsonPage: (db, scope, afterId, limit) => jsonPage(db, scope, responseFieldsSql(scope), afterId, limit),
   csvColumns: columnsFromFields<ResponseRow>(Object.keys(responseRow.shape) as (keyof ResponseRow)[]),
 };
+
+const tested = {
+  stated: responses.testedNutrientsStated,
+  nLbAc: responses.nLbAc,
+  p2o5LbAc: responses.p2o5LbAc,
+  k2oLbAc: responses.k2oLbAc,
+  sLbAc: responses.sLbAc,
+};
+const soilClass = { P: responses.soilPClass, K: responses.soilKClass, S: responses.soilSClass };
+
+/**
+ * The same row as `readBatch` builds, field by field in SQL, for JSON pages encoded by the database. Keyed by the
+ * row's fields, so a field added to the contract and not here is a type error; tests/server/api-rows-sql-json.test.ts
+ * compares both paths on random data and filters.
+ */
+function responseFieldsSql(scope: RowScope<TrialFilters>): Record<keyof ResponseRow, SQL> {
+  const { provenance, yieldUnit, moistureBasis, convert } = yieldConverterSql(scope, responses.versionId, responses.crop);
+  const filterNutrients = filterNutrientsOf(scope.filters);
+  return {
+    id: sql`${responses.id}`,
+    ...provenance,
+    siteCode: sql`${responses.siteCode}`,
+    siteYearCode: sql`${responses.siteYearCode}`,
+    treatmentCode: sql`${responses.treatmentCode}`,
+    checkTreatmentCode: sql`${checkTreatment.code}`,
+    crop: sql`${responses.crop}`,
+    year: sql`${responses.year}`,
+    tillage: sql`${responses.tillage}`,
+    rowSpacingIn: sql`${responses.rowSpacingIn}`,
+    plantingDate: sql`${responses.plantingDate}`,
+    nutrients: sql`${responses.nutrients}`,
+    testedNutrients: testedNutrientListSql(tested),
+    testedNutrientsStated: sql`(${responses.testedNutrientsStated} IS NOT NULL)`,
+    placements: sql`${responses.placements}`,
+    nLbAc: sql`${responses.nLbAc}`,
+    p2o5LbAc: sql`${responses.p2o5LbAc}`,
+    k2oLbAc: sql`${responses.k2oLbAc}`,
+    sLbAc: sql`${responses.sLbAc}`,
+    soilTestAnalyte: countedSoilAnalyteSql(tested, soilClass, filterNutrients),
+    soilTestClass: countedSoilClassSql(tested, soilClass, filterNutrients),
+    soilPClass: sql`${responses.soilPClass}`,
+    soilPValue: sql`${responses.soilPValue}`,
+    soilPReportedClass: sql`${responses.soilPReportedClass}`,
+    soilPScheme: sql`${responses.soilPScheme}`,
+    soilKClass: sql`${responses.soilKClass}`,
+    soilKValue: sql`${responses.soilKValue}`,
+    soilKReportedClass: sql`${responses.soilKReportedClass}`,
+    soilKScheme: sql`${responses.soilKScheme}`,
+    soilSClass: sql`${responses.soilSClass}`,
+    soilSValue: sql`${responses.soilSValue}`,
+    soilSReportedClass: sql`${responses.soilSReportedClass}`,
+    soilSScheme: sql`${responses.soilSScheme}`,
+    yieldUnit,
+    moistureBasisPct: moistureBasis,
+    checkMean: convert(responses.checkMeanKgHa),
+    treatedMean: convert(responses.treatedMeanKgHa),
+    md: convert(responses.mdKgHa),
+    se: convert(responses.seKgHa),
+    df: sql`${responses.dfError}`,
+    lnrr: sql`${responses.lnrr}`,
+    lnrrVar: sql`${responses.lnrrVar}`,
+    pValue: sql`${responses.pValue}`,
+    lsd05: convert(responses.lsd05KgHa),
+    cvPct: sql`${responses.cvPct}`,
+    replicates: sql`${responses.replicates}`,
+    balanced: sql`${responses.balanced}`,
+    fromSummary: sql`${responses.fromSummary}`,
+  };
+}
+
+function jsonPage(db: Db, scope: RowScope<TrialFilters>, fields: Record<string, SQL>, afterId: number, limit: number) {
+  const select = sql.join(
+    Object.entries(fields).map(([name, value]) => sql`${value} AS ${sql.identifier(name)}`),
+    sql`, `,
+  );
+  return encodedPage(
+    db,
+    sql`SELECT ${select} FROM ${responses} INNER JOIN ${treatments} ${sql.identifier("check_treatment")} ON ${eq(checkTreatment.id, responses.checkTreatmentId)}
+        WHERE ${and(responseConditions(scope.filters, versionIdsOf(scope)), gt(responses.id, afterId))}
+        ORDER BY ${responses.id} LIMIT ${limit + 1}`,
+    limit,
+  );
+}

@@ -1,9 +1,11 @@
+import { sql, type SQL } from "drizzle-orm";
+import type { AnyPgColumn } from "drizzle-orm/pg-core";
 import type { z } from "zod";
 import type { Db } from "@/db/client";
 import type { YieldUnit } from "@/schemas/public";
 import type { CsvColumn, CsvValue } from "@/server/csv";
 import type { ResolvedVersion } from "@/server/services/trial-filter";
-import { cropStandards, kilogramsPerHectareToBushelsPerAcre, type StandardCrop } from "@/stats/units";
+import { cropStandards, kilogramsPerHectarePerBushelPerAcre, kilogramsPerHectareToBushelsPerAcre, type StandardCrop } from "@/stats/units";
 
 /** What a read is about: the versions it reads, its filters and (where yields appear) the unit asked for. */
 export interface RowScope<F> {
@@ -21,6 +23,11 @@ export interface RowResource<Row extends { id: number }, F> {
   /** The row's contract schema: JSON pages are its items, and the CSV's Table Schema is derived from it. */
   row: z.ZodObject;
   readBatch(db: Db, scope: RowScope<F>, afterId: number, limit: number): Promise<Row[]>;
+  /**
+   * The same rows as `readBatch`, encoded as JSON by the database: a JSON page is then one string from the database
+   * to the socket, with no object per row on the way. Optional; pages fall back to `readBatch` + JSON.stringify.
+   */
+  readJsonPage?(db: Db, scope: RowScope<F>, afterId: number, limit: number): Promise<EncodedPage>;
   csvColumns: readonly CsvColumn<Row>[];
   /** Table Schema facts of CSV columns that are not a field of the row (flattened ones). */
   csvFields?: Record<string, { type: "string" | "number" | "integer"; description: string }>;
@@ -73,4 +80,58 @@ export function columnsFromFields<Row extends object>(
         },
       ],
   );
+}
+
+/** A JSON page as the database wrote it: the items array's text, how many rows it read (up to limit + 1) and the last item's id. */
+export interface EncodedPage {
+  itemsJson: string;
+  read: number;
+  lastId: number | null;
+}
+
+/**
+ * Run a SELECT of up to limit + 1 rows whose columns are named as the row's fields, and encode the first `limit` of
+ * them as a JSON array in the database (row_to_json prints doubles in their shortest exact form, as JSON.stringify
+ * does, and dates as ISO strings). The extra row only says whether there is a next page.
+ */
+export async function encodedPage(db: Db, rows: SQL, limit: number): Promise<EncodedPage> {
+  const result = await db.execute(sql`
+    SELECT count(*)::int AS read,
+           max(p.id) FILTER (WHERE p.rn <= ${limit})::float8 AS last_id,
+           coalesce(string_agg(p.j, ',' ORDER BY p.id) FILTER (WHERE p.rn <= ${limit}), '') AS items
+    FROM (SELECT o.id, row_number() OVER (ORDER BY o.id) AS rn, row_to_json(o)::text AS j FROM (${rows}) o) p`);
+  const row = (result as unknown as { rows: { read: number; last_id: number | null; items: string }[] }).rows[0]!;
+  return { itemsJson: `[${row.items}]`, read: Number(row.read), lastId: row.last_id === null ? null : Number(row.last_id) };
+}
+
+const literal = (x: number) => sql.raw(`${x}::float8`);
+const standardCrops = Object.keys(cropStandards) as StandardCrop[];
+
+/**
+ * The SQL twins of `provenanceLookup` and `yieldConverter`, for rows encoded by the database: the same division by
+ * the same double, so the numbers are the ones the TypeScript path gives.
+ */
+export function yieldConverterSql(scope: RowScope<unknown>, versionId: AnyPgColumn, crop: AnyPgColumn) {
+  const byVersion = (pick: (v: RowScope<unknown>["versions"][number]) => string) =>
+    scope.versions.length === 0
+      ? sql`''::text`
+      : sql`(CASE ${versionId} ${sql.join(
+          scope.versions.map((v) => sql`WHEN ${v.versionId}::uuid THEN ${pick(v)}::text`),
+          sql` `,
+        )} ELSE '' END)`;
+  const perCrop = (value: (c: StandardCrop) => SQL, otherwise: SQL) =>
+    sql`(CASE ${crop} ${sql.join(
+      standardCrops.map((c) => sql`WHEN ${c}::text THEN ${value(c)}`),
+      sql` `,
+    )} ELSE ${otherwise} END)`;
+  const toBushels = scope.units === "bu/ac";
+  return {
+    provenance: { dataset: byVersion((v) => v.datasetSlug), version: byVersion((v) => v.semver) },
+    yieldUnit: toBushels ? perCrop(() => sql`'bu/ac'::text`, sql`'kg/ha'::text`) : sql`'kg/ha'::text`,
+    moistureBasis: perCrop((c) => literal(cropStandards[c].standardMoisturePercent), sql`NULL::float8`),
+    convert: (kgHa: AnyPgColumn) =>
+      toBushels
+        ? perCrop((c) => sql`${kgHa} / ${literal(kilogramsPerHectarePerBushelPerAcre(cropStandards[c].poundsPerBushel))}`, sql`${kgHa}`)
+        : sql`${kgHa}`,
+  };
 }
