@@ -90,37 +90,41 @@ export async function siteYearAnova(db: Db, version: AnovaVersion, code: string,
     },
     measure: { name: query.measure, title: measure.title, unit: converter.unit },
   };
-  const nothing = {
-    computed: false,
-    balanced: null,
-    plots: 0,
-    missingPlots: [],
-    table: null,
-    mse: null,
-    dfError: null,
-    grandMean: null,
-    cvPercent: null,
-    lsd: { alpha: 0.05 as const, single: null, pairs: [] },
-    means: [],
-    notes: [],
-  };
-
   if (plotRows.length > 0)
     return { ...base, ...fromPlots(plotRows, siteYear.blocks, treatmentById, byCode, converter.convert, measure.title) };
   if (summaryRows.length > 0) {
     if (query.measure !== "yield")
       return {
         ...base,
-        ...nothing,
-        source: "summary",
-        reason: `The site-year is published as yield means only (no plots), so there is no ${measure.title.toLowerCase()} to analyse.`,
+        ...uncomputed(
+          "summary",
+          `The site-year is published as yield means only (no plots), so there is no ${measure.title.toLowerCase()} to analyse.`,
+        ),
       };
     return { ...base, ...fromSummaries(summaryRows, treatmentById, converter.convert) };
   }
-  return { ...base, ...nothing, source: "none", reason: "The site-year has neither plots nor published means." };
+  return { ...base, ...uncomputed("none", "The site-year has neither plots nor published means.") };
 }
 
 type Body = Omit<SiteYearAnova, "dataset" | "version" | "versionState" | "siteYear" | "measure">;
+
+/** An answer that says why there is no table, and nothing else. */
+const uncomputed = (source: Body["source"], reason: string): Body => ({
+  source,
+  computed: false,
+  reason,
+  balanced: null,
+  plots: 0,
+  missingPlots: [],
+  table: null,
+  mse: null,
+  dfError: null,
+  grandMean: null,
+  cvPercent: null,
+  lsd: { alpha: 0.05, single: null, pairs: [] },
+  means: [],
+  notes: [],
+});
 
 function fromPlots(
   plotRows: { plot: string; block: number; treatmentId: number; value: number | null }[],
@@ -145,22 +149,7 @@ function fromPlots(
     }
   }
   missingPlots.sort((a, b) => a.block - b.block || a.treatment.localeCompare(b.treatment, "en", { numeric: true }));
-  const refused = (reason: string): Body => ({
-    source: "plots",
-    computed: false,
-    reason,
-    balanced: null,
-    plots: observed.length,
-    missingPlots,
-    table: null,
-    mse: null,
-    dfError: null,
-    grandMean: null,
-    cvPercent: null,
-    lsd: { alpha: 0.05, single: null, pairs: [] },
-    means: [],
-    notes: [],
-  });
+  const refused = (reason: string): Body => ({ ...uncomputed("plots", reason), plots: observed.length, missingPlots });
   if (observed.length === 0) return refused(`No plot of the site-year has a value of ${title.toLowerCase()}.`);
   let anova;
   try {
