@@ -19,7 +19,7 @@ export interface AnovaChoice {
 const enc = encodeURIComponent;
 const versionBase = (slug: string, semver: string) => `/api/v1/datasets/${enc(slug)}/versions/${enc(semver)}`;
 
-export const siteYearAnovaPath = (source: AnovaSource, code: string, { measure, units }: AnovaChoice) =>
+const siteYearAnovaPath = (source: AnovaSource, code: string, { measure, units }: AnovaChoice) =>
   `${"versionId" in source ? `/api/v1/curation/versions/${enc(source.versionId)}` : versionBase(source.slug, source.semver)}` +
   `/site-years/${enc(code)}/anova?measure=${measure}&units=${enc(units)}`;
 

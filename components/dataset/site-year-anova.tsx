@@ -85,7 +85,7 @@ function missingText(a: SiteYearAnova): string {
  * or one per pair when plots are missing) and the least-squares means with their SEs. Draws no data of its own, so
  * any screen holding a `SiteYearAnova` answer can show it.
  */
-export function SiteYearAnovaView({ anova: a }: { anova: SiteYearAnova }) {
+function SiteYearAnovaView({ anova: a }: { anova: SiteYearAnova }) {
   const unit = a.measure.unit;
   const pairsOpen = a.lsd.single === null;
   return (

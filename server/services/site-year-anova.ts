@@ -11,7 +11,7 @@ import { pairwiseLeastSignificantDifferences, rcbdAnova, tQuantile, type AnovaTa
  * column: point it at the shared measure vocabulary when there is one. Yield is stored in kg/ha and converted to the
  * unit asked for; the others keep the unit of their column in the data dictionary.
  */
-export function anovaMeasureColumn(measure: AnovaMeasure) {
+function anovaMeasureColumn(measure: AnovaMeasure) {
   switch (measure) {
     case "yield":
       return { column: plots.yieldKgHa, title: "Yield", unit: null, convertsYield: true };

@@ -1,7 +1,17 @@
 import type { Browser } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { SiteYearAnova } from "@/schemas/site-year-anova";
-import { desktop, launchBrowser, newContext, phone, screenshot, startServer, watchPage, type RunningServer } from "./harness";
+import {
+  axeViolations,
+  desktop,
+  launchBrowser,
+  newContext,
+  phone,
+  screenshot,
+  startServer,
+  watchPage,
+  type RunningServer,
+} from "./harness";
 
 const slug = "soybean-starter-p-placement";
 let server: RunningServer;
@@ -83,6 +93,7 @@ describe("a site-year's ANOVA on the demo dataset page", () => {
     await view.getByTestId("anova-means").getByText(Math.round(kgCheck.lsMean!).toLocaleString("en-US"), { exact: true }).waitFor();
     await card.getByRole("radio", { name: "Measure: Harvest moisture" }).click();
     await view.getByText(/Harvest moisture \(%\)/).waitFor();
+    expect(await axeViolations(page), "axe-core on the open analysis").toEqual([]);
     await screenshot(page, "site-year-anova-desktop");
     expect(problems).toEqual([]);
     await context.close();
@@ -111,6 +122,7 @@ describe("a site-year's ANOVA on the demo dataset page", () => {
       expect(box.x + box.width, id).toBeLessThanOrEqual(phone.width);
     }
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(phone.width);
+    expect(await axeViolations(page), "axe-core on the open analysis").toEqual([]);
     await screenshot(page, "site-year-anova-phone");
     expect(problems).toEqual([]);
     await context.close();
