@@ -25,13 +25,18 @@ function formatNumber(value: number | null | undefined): string {
   const text = Math.abs(value).toLocaleString("en-US", { minimumFractionDigits: digits, maximumFractionDigits: digits });
   return value < 0 && Number(text.replace(/,/g, "")) !== 0 ? `−${text}` : text;
 }
+/** Sums of squares in (kg/ha)² run to millions: from 10,000 on, the table writes them as 432K or 1.3M to fit a phone. */
+function formatSquare(value: number | null | undefined): string {
+  if (value === null || value === undefined || !Number.isFinite(value) || Math.abs(value) < 10_000) return formatNumber(value);
+  return value.toLocaleString("en-US", { notation: "compact", maximumSignificantDigits: 3 });
+}
 type TermRow = NonNullable<SiteYearAnova["table"]>["block"];
 const pCell = (p: number | null) => (p === null ? "–" : p < 0.001 ? "<0.001" : p.toFixed(3));
 const termCells = (name: string, r: TermRow) => [
   name,
   String(r.df),
-  formatNumber(r.sumOfSquares),
-  formatNumber(r.meanSquare),
+  formatSquare(r.sumOfSquares),
+  formatSquare(r.meanSquare),
   r.fStatistic === null ? "–" : r.fStatistic.toFixed(2),
   pCell(r.pValue),
 ];
@@ -124,12 +129,12 @@ function SiteYearAnovaView({ anova: a }: { anova: SiteYearAnova }) {
             [
               "Residual",
               String(a.table.residual.df),
-              formatNumber(a.table.residual.sumOfSquares),
-              formatNumber(a.table.residual.meanSquare),
+              formatSquare(a.table.residual.sumOfSquares),
+              formatSquare(a.table.residual.meanSquare),
               "",
               "",
             ],
-            ["Total", String(a.table.total.df), formatNumber(a.table.total.sumOfSquares), "", "", ""],
+            ["Total", String(a.table.total.df), formatSquare(a.table.total.sumOfSquares), "", "", ""],
           ]}
         />
       ) : null}

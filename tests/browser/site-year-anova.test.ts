@@ -122,6 +122,16 @@ describe("a site-year's ANOVA on the demo dataset page", () => {
       expect(box.x + box.width, id).toBeLessThanOrEqual(phone.width);
     }
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(phone.width);
+    // In kg/ha the sums of squares run to millions; every cell of the table still fits on one line.
+    await page.getByRole("radio", { name: "Yield unit: kg/ha" }).click();
+    await view.getByText(/Yield \(kg\/ha\)/).waitFor();
+    const total = view.getByTestId("anova-table").getByRole("row").filter({ hasText: "Total" }).getByRole("cell").nth(1);
+    await expect(total.innerText()).resolves.toMatch(/^\d+(\.\d+)?[KM]$/);
+    const heights = await view
+      .getByTestId("anova-table")
+      .locator('[role="cell"], [role="rowheader"], [role="columnheader"]')
+      .evaluateAll((cells) => cells.map((c) => (c.firstElementChild as HTMLElement | null)?.getBoundingClientRect().height ?? 0));
+    for (const h of heights) expect(h).toBeLessThanOrEqual(24);
     expect(await axeViolations(page), "axe-core on the open analysis").toEqual([]);
     await screenshot(page, "site-year-anova-phone");
     expect(problems).toEqual([]);
