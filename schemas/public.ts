@@ -17,7 +17,7 @@ export type YieldUnit = (typeof yieldUnits)[number];
 // ---------------------------------------------------------------- query parameters
 
 /** Bushels per acre by default: the unit the trials' users plan in. Canonical storage is kg/ha at standard moisture. */
-const unitsParam = z
+export const unitsParam = z
   .enum(yieldUnits)
   .default("bu/ac")
   .describe("Unit of yields, responses, SEs and LSDs: bu/ac (default; crop test weight) or kg/ha. Both at the crop's standard moisture.");

@@ -14,6 +14,7 @@ import { defaultEvidenceState, routerParams } from "@/lib/share-link";
 import type { VersionSummary } from "@/schemas/public";
 import { DataDictionary } from "./data-dictionary";
 import { FollowButton } from "./follow-button";
+import { SiteYearAnovaCard } from "./site-year-anova-card";
 
 function VersionEntry({ v }: { v: VersionSummary }) {
   const withdrawn = v.state === "withdrawn";
@@ -65,9 +66,9 @@ function Tombstone({ v, newest }: { v: VersionSummary; newest: VersionSummary | 
 /**
  * A dataset's public page: what it is, its data dictionary, versions, downloads, licence and citation. `version`
  * (from ?version=, where each version's DOI lands) picks the version shown; choosing another rewrites the URL, so a
- * copied link opens the same version.
+ * copied link opens the same version; `siteYear` (from ?siteYear=) opens that site-year's analysis.
  */
-export function DatasetPage({ slug, version }: { slug: string; version?: string }) {
+export function DatasetPage({ slug, version, siteYear }: { slug: string; version?: string; siteYear?: string }) {
   const detail = useDatasetDetail(slug);
   const published = detail.data?.versions.filter((v) => v.state === "published") ?? [];
   const asked = version ? detail.data?.versions.find((v) => v.semver === version) : undefined;
@@ -144,6 +145,7 @@ export function DatasetPage({ slug, version }: { slug: string; version?: string 
           <Text variant="caption">Licence {current.licence}: reuse with attribution to the citation below.</Text>
         </Card>
       ) : null}
+      {current && current.state === "published" ? <SiteYearAnovaCard slug={slug} semver={current.semver} siteYear={siteYear} /> : null}
       {current && current.state === "published" ? (
         <Card testID="citation">
           <CitationPanel slug={slug} semver={current.semver} />

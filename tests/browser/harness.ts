@@ -1,4 +1,4 @@
-import { existsSync, mkdirSync } from "node:fs";
+import { existsSync, mkdirSync, readFileSync } from "node:fs";
 import type { AddressInfo } from "node:net";
 import path from "node:path";
 import { chromium, type Browser, type BrowserContext, type Page } from "playwright-core";
@@ -95,4 +95,28 @@ export function watchPage(page: Page): string[] {
     if (m.type() === "error") problems.push(`console error: ${m.text()}`);
   });
   return problems;
+}
+
+const axeSource = readFileSync(require.resolve("axe-core/axe.min.js"), "utf8");
+export const axeVersion = (JSON.parse(readFileSync(require.resolve("axe-core/package.json"), "utf8")) as { version: string }).version;
+
+interface Violation {
+  id: string;
+  impact: string | null;
+  nodes: { target: string[]; html: string }[];
+}
+
+/** axe-core's violations of its default rules on the rendered page (WCAG 2.0–2.2 A/AA and best practices). */
+export async function axeViolations(page: Page): Promise<Violation[]> {
+  // Evaluated over the DevTools protocol, not added as a <script>: the page's Content-Security-Policy stays as served.
+  await page.evaluate(axeSource);
+  return page.evaluate(async () => {
+    const axe = (window as unknown as { axe: { run: (c: Document, o: object) => Promise<{ violations: Violation[] }> } }).axe;
+    const result = await axe.run(document, { resultTypes: ["violations"] });
+    return result.violations.map((v) => ({
+      id: v.id,
+      impact: v.impact,
+      nodes: v.nodes.map((n) => ({ target: n.target, html: n.html.slice(0, 160) })),
+    }));
+  });
 }

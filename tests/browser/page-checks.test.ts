@@ -1,8 +1,17 @@
-import { readFileSync } from "node:fs";
 import type { Browser, Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { appRoutes } from "@/server/app-routes";
-import { desktop, launchBrowser, newContext, phone, startServer, watchPage, type RunningServer } from "./harness";
+import {
+  axeVersion,
+  axeViolations,
+  desktop,
+  launchBrowser,
+  newContext,
+  phone,
+  startServer,
+  watchPage,
+  type RunningServer,
+} from "./harness";
 import { openScreen, screenFixture, screenVisits, signInAs, type ScreenFixture } from "./page-screens";
 
 /**
@@ -14,29 +23,6 @@ import { openScreen, screenFixture, screenVisits, signInAs, type ScreenFixture }
  * - there is exactly one h1, and every other heading is h2–h6 (axe checks that no level is skipped);
  * - the console shows no error and the page sees no Content-Security-Policy violation.
  */
-const axeSource = readFileSync(require.resolve("axe-core/axe.min.js"), "utf8");
-const axeVersion = (JSON.parse(readFileSync(require.resolve("axe-core/package.json"), "utf8")) as { version: string }).version;
-
-interface Violation {
-  id: string;
-  impact: string | null;
-  nodes: { target: string[]; html: string }[];
-}
-
-async function axeViolations(page: Page): Promise<Violation[]> {
-  // Evaluated over the DevTools protocol, not added as a <script>: the page's Content-Security-Policy stays as served.
-  await page.evaluate(axeSource);
-  return page.evaluate(async () => {
-    const axe = (window as unknown as { axe: { run: (c: Document, o: object) => Promise<{ violations: Violation[] }> } }).axe;
-    const result = await axe.run(document, { resultTypes: ["violations"] });
-    return result.violations.map((v) => ({
-      id: v.id,
-      impact: v.impact,
-      nodes: v.nodes.map((n) => ({ target: n.target, html: n.html.slice(0, 160) })),
-    }));
-  });
-}
-
 /** What the document says about itself once the screen has drawn. */
 const pageFacts = (page: Page) =>
   page.evaluate(() => ({

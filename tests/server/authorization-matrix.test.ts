@@ -219,6 +219,12 @@ const table: Record<string, Row> = {
   "GET /api/v1/responses": { expect: everyone(200) },
   "GET /api/v1/observations": { expect: everyone(200) },
   "GET /api/v1/site-years": { expect: everyone(200) },
+  "GET /api/v1/datasets/:slug/versions/:semver/site-years/:code/anova": { expect: everyone(200), params: () => ({ code: "TB-02-2020" }) },
+  "GET /api/v1/site-years/:code/anova": {
+    expect: everyone(200),
+    params: () => ({ code: "TB-02-2020" }),
+    query: (c) => ({ dataset: c.fx.slug }),
+  },
   "GET /api/v1/analyses/meta": { expect: everyone(200), query: (c) => ({ dataset: c.fx.slug }) },
 
   // Session: anyone may try to sign in or out; "who am I" answers everyone, and names only the caller (a visitor: no one).
@@ -326,6 +332,10 @@ const table: Record<string, Row> = {
     body: () => ({ semver: "2.0.0" }),
   },
   "GET /api/v1/curation/versions/:id": { expect: draftView(200), params: (c) => ({ id: c.fx.draftId }) },
+  "GET /api/v1/curation/versions/:id/site-years/:code/anova": {
+    expect: draftView(200),
+    params: (c) => ({ id: c.fx.draftId, code: "TB-01-2021" }),
+  },
   "PATCH /api/v1/curation/versions/:id": {
     expect: ownerWrite("ok", "hidden"),
     params: (c) => ({ id: c.fx.draftId }),
@@ -423,6 +433,11 @@ async function newFixture(t: TestApp): Promise<Fixture> {
         .returning()
     )[0]!;
   const published = await version("1.0.0");
+  // One site-year in the published version (written before it is published), so its site-year reads can answer.
+  const [publishedSite] = await db.insert(sites).values({ versionId: published.id, code: "TB-02", location: "Wren County" }).returning();
+  await db
+    .insert(siteYears)
+    .values({ versionId: published.id, siteId: publishedSite!.id, code: "TB-02-2020", crop: "corn", year: 2020, blocks: 4 });
   const draft = await version("1.1.0");
   const inReview = await version("1.2.0");
   await db

@@ -2,6 +2,7 @@ import { Router } from "express";
 import type { AppContext } from "@/server/context";
 import { curationDatasetRoutes } from "./datasets";
 import { curationExportRoutes } from "./exports";
+import { curationSiteYearAnovaRoutes } from "./site-year-anova";
 import { curationUploadRoutes } from "./uploads";
 import { curationVersionRoutes } from "./versions";
 
@@ -12,5 +13,6 @@ export function curationRoutes(ctx: AppContext): Router {
   router.use(curationVersionRoutes(ctx));
   router.use(curationUploadRoutes(ctx));
   router.use(curationExportRoutes(ctx));
+  router.use(curationSiteYearAnovaRoutes(ctx));
   return router;
 }
