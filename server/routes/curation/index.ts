@@ -2,6 +2,7 @@ import { Router } from "express";
 import type { AppContext } from "@/server/context";
 import { curationDatasetRoutes } from "./datasets";
 import { curationExportRoutes } from "./exports";
+import { curationReviewRoutes } from "./review";
 import { curationUploadRoutes } from "./uploads";
 import { curationVersionRoutes } from "./versions";
 
@@ -10,6 +11,7 @@ export function curationRoutes(ctx: AppContext): Router {
   const router = Router();
   router.use(curationDatasetRoutes(ctx));
   router.use(curationVersionRoutes(ctx));
+  router.use(curationReviewRoutes(ctx));
   router.use(curationUploadRoutes(ctx));
   router.use(curationExportRoutes(ctx));
   return router;
