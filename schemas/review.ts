@@ -119,7 +119,7 @@ export const reviewSummaryQuery = z
   })
   .strict();
 
-export const reviewRule = z.object({
+const reviewRule = z.object({
   code: z.enum(reviewFlagCodes),
   title: z.string(),
   rule: z.string(),

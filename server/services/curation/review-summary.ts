@@ -13,7 +13,7 @@ import { commentCounts } from "./review-comments";
  * The rules behind the review screen's flags. Each says what it looks at, its cut-off and where that comes from; a
  * flag asks the reviewer to look, it never blocks a version.
  */
-export const reviewRules: { code: ReviewFlagCode; title: string; rule: string; source: string }[] = [
+const reviewRules: { code: ReviewFlagCode; title: string; rule: string; source: string }[] = [
   {
     code: "outlier-plot",
     title: "Outlying plot",
@@ -65,7 +65,7 @@ const median = (xs: number[]) => {
 };
 
 /** The modified z-score of x against others (Iglewicz & Hoaglin 1993); null with fewer than 4 others or MAD 0. */
-export function modifiedZScore(x: number, others: number[]): number | null {
+function modifiedZScore(x: number, others: number[]): number | null {
   if (others.length < 4) return null;
   const med = median(others);
   const mad = median(others.map((o) => Math.abs(o - med)));
