@@ -67,7 +67,7 @@ export const versionRowsPage = z
   .meta({ id: "VersionRowsPage" });
 export type VersionRowsPage = z.infer<typeof versionRowsPage>;
 
-export const reviewFlagCodes = ["outlier-plot", "unbalanced", "check-off", "response-implausible", "high-cv", "no-responses"] as const;
+const reviewFlagCodes = ["outlier-plot", "unbalanced", "check-off", "response-implausible", "high-cv", "no-responses"] as const;
 export type ReviewFlagCode = (typeof reviewFlagCodes)[number];
 const reviewFlag = z.object({ code: z.enum(reviewFlagCodes), message: z.string() });
 
@@ -80,7 +80,7 @@ const siteYearResponse = z.object({
 });
 
 const nullableNumber = z.union([z.number(), z.null()]);
-export const siteYearResult = z
+const siteYearResult = z
   .object({
     siteYear: z.string(),
     site: z.string(),
@@ -157,7 +157,7 @@ export const reviewCommentBody = z
   .strict()
   .meta({ id: "ReviewCommentCreate" });
 
-export const reviewComment = z
+const reviewComment = z
   .object({
     id: z.string(),
     versionId: z.string(),
