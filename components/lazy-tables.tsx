@@ -18,3 +18,7 @@ export const ProblemReportTable = suspended<ComponentProps<typeof Tables.Problem
   () => tables().then((m) => ({ default: m.ProblemReportTable })),
   label,
 );
+export const VersionRowsGrid = suspended<ComponentProps<typeof Tables.VersionRowsGrid>>(
+  () => tables().then((m) => ({ default: m.VersionRowsGrid })),
+  label,
+);

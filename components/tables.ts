@@ -3,3 +3,4 @@
 export { DictionaryEditor } from "./curation/dictionary-editor";
 export { ProblemReportTable } from "./curation/problem-report-table";
 export { SiteYearTable } from "./evidence/site-year-table";
+export { VersionRowsGrid } from "./review/version-rows-grid";

@@ -330,7 +330,13 @@ export const editorParams = z.object({ slug: line(), userId: z.uuid() });
 const bump = z.enum(["major", "minor", "patch"]);
 const siteYearChange = z.object({ siteYear: z.string(), fields: z.array(z.string()) });
 const rowChange = z.object({ key: z.string(), change: z.enum(["added", "removed", "changed"]), fields: z.array(z.string()) });
-const rowDiff = z.object({ added: z.number().int(), removed: z.number().int(), changed: z.number().int(), sample: z.array(rowChange) });
+const rowDiff = z.object({
+  added: z.number().int(),
+  removed: z.number().int(),
+  changed: z.number().int(),
+  fields: z.array(z.object({ field: z.string(), rows: z.number().int() })).describe("The fields whose values changed, with how many rows"),
+  sample: z.array(rowChange),
+});
 export const versionDiff = z
   .object({
     from: z.object({ id: z.string(), semver, state: versionState }),
@@ -344,6 +350,7 @@ export const versionDiff = z
     }),
     suggestedBump: bump,
     reasons: z.array(z.string()),
+    explanation: z.string().describe('The suggested bump in words: "minor: 4 site-years added (…), no published value changed"'),
     suggestedSemver: semver,
   })
   .meta({ id: "VersionDiff" });

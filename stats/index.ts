@@ -12,6 +12,7 @@ export * from "@/stats/mean-separation";
 export * from "@/stats/rcbd-anova";
 export * from "@/stats/pairwise-lsd";
 export * from "@/stats/one-way-anova";
+export * from "@/stats/studentized-residuals";
 export * from "@/stats/effects";
 export * from "@/stats/decision";
 export * from "@/stats/units";

@@ -45,7 +45,8 @@ export function DataGrid<F extends TableFeatures, T extends RowData>({
   const width = (id: string) => widths[id] ?? 140;
   const total = Object.values(widths).reduce((a, b) => a + b, 0);
   return (
-    <ScrollView horizontal style={styles.scroller} contentContainerStyle={{ minWidth: "100%" }}>
+    // Focusable, so a keyboard can scroll a grid of plain values sideways (axe: scrollable-region-focusable).
+    <ScrollView horizontal focusable style={styles.scroller} contentContainerStyle={{ minWidth: "100%" }}>
       <View role="table" accessibilityLabel={label} style={[styles.table, { minWidth: total }]}>
         <View role="rowgroup">
           {table.getHeaderGroups().map((group) => (

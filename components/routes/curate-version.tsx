@@ -11,6 +11,7 @@ import { VersionActions } from "@/components/curation/version-actions";
 import { VersionDiffView } from "@/components/curation/version-diff-view";
 import { VersionOverview } from "@/components/curation/version-overview";
 import { WorkbenchGate } from "@/components/curation/workbench-gate";
+import { ReviewPanel } from "@/components/review/review-panel";
 import { Screen } from "@/components/screen";
 import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
@@ -18,7 +19,7 @@ import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
 import { useVersion } from "@/hooks/use-curation-versions";
 
-type Panel = "overview" | "upload" | "dictionary" | "changes";
+type Panel = "overview" | "review" | "upload" | "dictionary" | "changes";
 
 function VersionDesk({ id }: { id: string }) {
   const version = useVersion(id);
@@ -29,6 +30,7 @@ function VersionDesk({ id }: { id: string }) {
   const editable = v.canEdit && v.state === "draft";
   const tabs = [
     { value: "overview" as const, label: "Overview" },
+    ...(v.state === "draft" || v.state === "in_review" ? [{ value: "review" as const, label: "Review: data and results" }] : []),
     ...(editable ? [{ value: "upload" as const, label: "Upload" }] : []),
     { value: "dictionary" as const, label: "Data dictionary" },
     ...(v.basedOnVersionId ? [{ value: "changes" as const, label: `Changes since v${v.basedOnSemver}` }] : []),
@@ -62,6 +64,7 @@ function VersionDesk({ id }: { id: string }) {
       <DoiStatusCard version={v} />
       <SegmentTabs label="Version panels" tabs={tabs} value={current} onChange={setPanel} />
       {current === "overview" ? <VersionOverview version={v} /> : null}
+      {current === "review" ? <ReviewPanel version={v} /> : null}
       {current === "upload" ? <UploadPanel version={v} /> : null}
       {current === "dictionary" ? <DictionaryEditor version={v} /> : null}
       {current === "changes" && v.basedOnVersionId ? <VersionDiffView from={v.basedOnVersionId} to={v.id} /> : null}

@@ -21,6 +21,7 @@ import {
   datasets,
   emailTokens,
   outbox,
+  reviewComments,
   sessions,
   siteYears,
   sites,
@@ -375,6 +376,39 @@ const table: Record<string, Row> = {
     params: (c) => ({ id: c.fx.publishedId }),
   },
   "GET /api/v1/curation/diff": { expect: draftView(200), query: (c) => ({ from: c.fx.publishedId, to: c.fx.draftId }) },
+  "GET /api/v1/curation/diff/rows": {
+    expect: draftView(200),
+    query: (c) => ({ from: c.fx.publishedId, to: c.fx.draftId, resource: "site_years" }),
+  },
+  "GET /api/v1/curation/versions/:id/review": { expect: draftView(200), params: (c) => ({ id: c.fx.draftId }) },
+  "GET /api/v1/curation/versions/:id/rows/:resource": {
+    expect: draftView(200),
+    params: (c) => ({ id: c.fx.draftId, resource: "site_years" }),
+  },
+  // The draft's Evidence preview: its editors and reviewers only, everyone else is told the draft does not exist.
+  "GET /api/v1/curation/versions/:id/preview/meta": { expect: draftView(200), params: (c) => ({ id: c.fx.draftId }) },
+  "GET /api/v1/curation/versions/:id/comments": { expect: draftView(200), params: (c) => ({ id: c.fx.inReviewId }) },
+  "POST /api/v1/curation/versions/:id/comments": {
+    expect: { ...reviewerWrite(201), curatorOwner: 403, curatorEditor: 403, curatorOther: 404, member: 404, writeToken: 403 },
+    params: (c) => ({ id: c.fx.inReviewId }),
+    body: () => ({ siteYear: "TB-01-2021", body: "Block 3 looks low against the other blocks." }),
+  },
+  "POST /api/v1/curation/versions/:id/comments/:commentId/resolve": {
+    expect: { ...ownerWrite(200, 404), member: 404, reviewer: 200 },
+    params: async (c) => {
+      const [comment] = await c.t.ctx.db
+        .insert(reviewComments)
+        .values({
+          versionId: c.fx.inReviewId,
+          siteYearCode: "TB-01-2021",
+          body: "Check the yields.",
+          authorId: world.users.reviewer.id,
+          stateWhenMade: "in_review",
+        })
+        .returning();
+      return { id: c.fx.inReviewId, commentId: comment!.id };
+    },
+  },
   "GET /api/v1/curation/review-queue": { expect: { ...adminOnly(200), reviewer: 200 } },
   "POST /api/v1/curation/versions/:id/uploads/:resource": {
     expect: ownerWrite(201, "hidden"),
@@ -440,6 +474,11 @@ async function newFixture(t: TestApp): Promise<Fixture> {
     .values({ versionId: published.id, siteId: publishedSite!.id, code: "TB-02-2020", crop: "corn", year: 2020, blocks: 4 });
   const draft = await version("1.1.0");
   const inReview = await version("1.2.0");
+  // A site-year in the version in review (written before it is in review), for reviewers' comments on it.
+  const [reviewSite] = await db.insert(sites).values({ versionId: inReview.id, code: "TB-01", location: "Wren County" }).returning();
+  await db
+    .insert(siteYears)
+    .values({ versionId: inReview.id, siteId: reviewSite!.id, code: "TB-01-2021", crop: "corn", year: 2021, blocks: 4 });
   await db
     .update(versions)
     .set({ state: "published", publishedAt: new Date(), submittedBy: world.curatorOwner.id })

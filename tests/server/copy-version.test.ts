@@ -97,7 +97,7 @@ afterAll(async () => t?.close());
 describe("a new draft copied from the published version", () => {
   it("copies every table that holds a version's trial rows", () => {
     // Version-scoped tables that are a version's own history, not its data, and stay with it.
-    const notCopied = new Set(["uploads", "validation_reports", "version_edits"]);
+    const notCopied = new Set(["uploads", "validation_reports", "version_edits", "review_comments"]);
     const versionScoped = (Object.values(schema) as unknown[])
       .filter((value): value is PgTable => is(value, PgTable))
       .filter((table) => getTableConfig(table).foreignKeys.some((key) => key.reference().foreignTable === schema.versions))

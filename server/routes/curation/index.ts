@@ -3,6 +3,7 @@ import type { AppContext } from "@/server/context";
 import { curationDatasetRoutes } from "./datasets";
 import { curationExportRoutes } from "./exports";
 import { curationSiteYearAnovaRoutes } from "./site-year-anova";
+import { curationReviewRoutes } from "./review";
 import { curationUploadRoutes } from "./uploads";
 import { curationVersionRoutes } from "./versions";
 
@@ -11,6 +12,7 @@ export function curationRoutes(ctx: AppContext): Router {
   const router = Router();
   router.use(curationDatasetRoutes(ctx));
   router.use(curationVersionRoutes(ctx));
+  router.use(curationReviewRoutes(ctx));
   router.use(curationUploadRoutes(ctx));
   router.use(curationExportRoutes(ctx));
   router.use(curationSiteYearAnovaRoutes(ctx));

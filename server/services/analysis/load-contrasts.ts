@@ -179,8 +179,16 @@ function compareText(a: string, b: string): number {
   return a < b ? -1 : a > b ? 1 : 0;
 }
 
-export async function loadContrasts(db: Db, filters: TrialFilters, groupBy: Grouping | null = null) {
-  const versions = await resolveVersions(db, filters);
+/** Which versions an analysis reads: the published ones the filters name, or one given version (a draft's preview). */
+export type VersionResolver = (db: Db, filters: TrialFilters) => Promise<ResolvedVersion[]>;
+
+export async function loadContrasts(
+  db: Db,
+  filters: TrialFilters,
+  groupBy: Grouping | null = null,
+  resolve: VersionResolver = resolveVersions,
+) {
+  const versions = await resolve(db, filters);
   const where = responseConditions(
     filters,
     versions.map((v) => v.versionId),

@@ -25,7 +25,15 @@ import {
 } from "@/stats";
 import { nutrientRuleInForce } from "@/server/services/tested-nutrients";
 import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
-import { byForestOrder, loadContrasts, withLabels, type Contrast, type EstimationContrast, type ResolvedVersion } from "./load-contrasts";
+import {
+  byForestOrder,
+  loadContrasts,
+  withLabels,
+  type Contrast,
+  type EstimationContrast,
+  type ResolvedVersion,
+  type VersionResolver,
+} from "./load-contrasts";
 import { buildUnits, ownTest, type AnalysisUnit } from "./site-year-effects";
 import { evaluateCautions } from "@/server/services/cautions";
 import { includedTreatments } from "./included-treatments";
@@ -45,9 +53,9 @@ function splitQuery(query: MetaQuery): { filters: TrialFilters; options: Omit<Me
  * filtered responses → one effect per site-year → pooled estimate, heterogeneity, subgroups, decision numbers, with
  * the provenance needed to re-derive every number.
  */
-export async function runMetaAnalysis(db: Db, query: MetaQuery): Promise<Result> {
+export async function runMetaAnalysis(db: Db, query: MetaQuery, resolve?: VersionResolver): Promise<Result> {
   const { filters, options } = splitQuery(query);
-  const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null);
+  const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null, resolve);
   const [result, included] = await Promise.all([
     analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named)),
     includedTreatments(db, where, versions),

@@ -75,6 +75,21 @@ export async function assertCanView(db: Db, user: User | undefined, dataset: Dat
   throw notFound("No such version.");
 }
 
+/**
+ * The review screen's own reads (the draft's Evidence preview, per-site-year results, comments) are for the
+ * dataset's editors and reviewers only, whatever the version's state; anyone else is told the version does not exist.
+ */
+export async function assertEditorOrReviewer(db: Db, user: User | undefined, dataset: Dataset) {
+  if (isReviewer(user) || (await canEditDataset(db, user, dataset))) return;
+  throw notFound("No such version.");
+}
+
+/** Reviewers (and admins) comment on the site-years of a version while it is in review. */
+export const canComment = (user: User | undefined, version: Pick<Version, "state">) => version.state === "in_review" && isReviewer(user);
+
+/** Resolving a comment: the dataset's editors (who answer it) and reviewers. */
+export const canResolveComment = (user: User | undefined, datasetEditable: boolean) => isReviewer(user) || datasetEditable;
+
 export async function assertCanEdit(db: Db, user: User | undefined, dataset: Dataset) {
   if (!(await canEditDataset(db, user, dataset))) {
     // A dataset nobody published is known only to its editors and reviewers: to anyone else it does not exist.

@@ -1,10 +1,11 @@
 import { sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import type { VersionDiff } from "@/schemas/curation";
+import type { VersionDiffRows } from "@/schemas/review";
 import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
 import { badRequest } from "@/server/errors";
 import { versionById } from "./access";
-import { fieldsOf, resourceOrder, resourceQueries } from "./resource-csv";
+import { fieldsOf, firstAlias, resourceOrder, resourceQueries } from "./resource-csv";
 
 const keyOf: Record<ResourceName, string> = {
   sites: "s.code",
@@ -14,7 +15,6 @@ const keyOf: Record<ResourceName, string> = {
   plots: "sy.code || '/' || p.plot",
   summaries: "sy.code || '/' || t.code",
 };
-const alias: Record<ResourceName, string> = { sites: "s", site_years: "sy", soil_tests: "st", treatments: "t", plots: "p", summaries: "m" };
 const perSiteYear: ResourceName[] = ["soil_tests", "plots", "summaries"];
 
 const uuid = (s: string) => `'${s.replace(/[^0-9a-f-]/gi, "")}'`;
@@ -24,7 +24,7 @@ function sides(resource: ResourceName, fields: string[], from: string, to: strin
   const q = resourceQueries[resource];
   const json = `jsonb_build_object(${fields.map((f) => `'${f}', (${q.columns[f]})::text`).join(", ")})`;
   const side = (v: string) =>
-    `SELECT ${keyOf[resource]} AS k, ${json} AS j FROM ${q.from} WHERE ${alias[resource]}.version_id = ${uuid(v)}`;
+    `SELECT ${keyOf[resource]} AS k, ${json} AS j FROM ${q.from} WHERE ${firstAlias[resource]}.version_id = ${uuid(v)}`;
   return `WITH a AS (${side(from)}), b AS (${side(to)})`;
 }
 const kind = "CASE WHEN a.k IS NULL THEN 'added' WHEN b.k IS NULL THEN 'removed' ELSE 'changed' END";
@@ -60,6 +60,38 @@ function schemaDiff(a: TableSchemaDescriptor, b: TableSchemaDescriptor) {
   return { added, removed, changed };
 }
 
+const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
+const listed = (items: string[], max = 5) =>
+  items.length > max ? `${items.slice(0, max).join(", ")} and ${items.length - max} more` : items.join(", ");
+
+/**
+ * The suggested bump in one sentence a reviewer can check against the rows: what was added, removed or changed, and
+ * where ("minor: 4 site-years added (…), no published value changed").
+ */
+function explainBump(bump: Bump, reasons: string[], siteYears: VersionDiff["siteYears"], rows: VersionDiff["rows"]): string {
+  if (bump === "major") return `major: ${reasons.join("; ")}`;
+  const changed = resourceOrder.filter((r) => rows[r].changed > 0);
+  const valueWords = changed.length
+    ? `${plural(
+        changed.reduce((a, r) => a + rows[r].changed, 0),
+        "published row",
+      )} changed (${changed
+        .map((r) => `${r}: ${rows[r].fields.map((f) => f.field).join(", ")}`)
+        .join("; ")})${siteYears.changed.length ? ` at ${listed(siteYears.changed.map((c) => c.siteYear))}` : ""}`
+    : "no published value changed";
+  if (bump === "minor") {
+    const what = [
+      siteYears.added.length ? `${plural(siteYears.added.length, "site-year")} added (${listed(siteYears.added)})` : null,
+      ...reasons.filter((r) => r.startsWith("fields added")),
+    ].filter((x): x is string => !!x);
+    return `minor: ${what.join("; ")}, ${valueWords}`;
+  }
+  const added = resourceOrder.filter((r) => rows[r].added > 0);
+  if (!changed.length && !added.length) return "patch: no changes; the rows and the data dictionary are the same";
+  const addedWords = added.length ? `; rows added to ${added.join(", ")} within existing site-years` : "";
+  return `patch: no site-year added or removed; ${valueWords}${addedWords}`;
+}
+
 /** What changed between two versions of one dataset, and the semantic-version bump that change calls for. */
 export async function diffVersions(db: Db, fromId: string, toId: string): Promise<VersionDiff> {
   const [{ version: from }, { version: to }] = await Promise.all([versionById(db, fromId), versionById(db, toId)]);
@@ -79,6 +111,13 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
       ),
     );
     const n = (k: string) => Number(counts.find((c) => c.kind === k)?.n ?? 0);
+    const fieldCounts = rowsOf<{ field: string; n: number | string }>(
+      await db.execute(
+        sql.raw(
+          `${withs} SELECT f.key AS field, count(*) AS n FROM a JOIN b ON a.k = b.k, jsonb_each_text(b.j) f WHERE a.j IS DISTINCT FROM b.j AND (a.j ->> f.key) IS DISTINCT FROM f.value GROUP BY 1`,
+        ),
+      ),
+    );
     const limit = resource === "site_years" ? 100_000 : 20;
     const sample = rowsOf<{
       kind: "added" | "removed" | "changed";
@@ -100,6 +139,10 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
       added: n("added"),
       removed: n("removed"),
       changed: n("changed"),
+      fields: common.flatMap((field) => {
+        const c = fieldCounts.find((x) => x.field === field);
+        return c ? [{ field, rows: Number(c.n) }] : [];
+      }),
       sample: sample.slice(0, 20).map((s) => ({ key: s.k, change: s.kind, fields: changedFields(parse(s.aj), parse(s.bj)) })),
     };
     if (resource === "site_years") {
@@ -155,6 +198,7 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
       );
   }
   return {
+    explanation: explainBump(bump, reasons, siteYears, rows),
     from: { id: from.id, semver: from.semver, state: from.state },
     to: { id: to.id, semver: to.semver, state: to.state },
     siteYears,
@@ -163,5 +207,61 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
     suggestedBump: bump,
     reasons,
     suggestedSemver: bumpSemver(from.semver, bump),
+  };
+}
+
+/** The site-year a row key belongs to, for the resources whose rows live inside one. */
+const siteYearOfKey = (resource: ResourceName, key: string) =>
+  resource === "site_years" ? key : perSiteYear.includes(resource) ? (key.split("/")[0] ?? null) : null;
+
+/**
+ * One page of a resource's differing rows between two versions, with the old and new value of every cell: changed
+ * rows (both sides), added rows (new values only) and removed ones (old values only), in key order.
+ */
+export async function diffRows(
+  db: Db,
+  fromId: string,
+  toId: string,
+  resource: ResourceName,
+  { page, limit, change }: { page: number; limit: number; change?: "added" | "removed" | "changed" },
+): Promise<VersionDiffRows> {
+  const [{ version: from }, { version: to }] = await Promise.all([versionById(db, fromId), versionById(db, toId)]);
+  if (from.datasetId !== to.datasetId)
+    throw badRequest("Both versions must belong to the same dataset.", [{ field: "query.to", message: "another dataset's version" }]);
+  const fields = fieldsOf(from.tableSchema, resource).filter((f) => fieldsOf(to.tableSchema, resource).includes(f));
+  const withs = sides(resource, fields, from.id, to.id);
+  const only = change ? ` AND ${kind} = '${change}'` : "";
+  const body = `FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j${only}`;
+  const [counted] = rowsOf<{ n: number | string }>(await db.execute(sql.raw(`${withs} SELECT count(*) AS n ${body}`)));
+  const found = rowsOf<{ kind: "added" | "removed" | "changed"; k: string; aj: unknown; bj: unknown }>(
+    await db.execute(
+      sql.raw(
+        `${withs} SELECT ${kind} AS kind, coalesce(a.k, b.k) AS k, a.j AS aj, b.j AS bj ${body} ORDER BY coalesce(a.k, b.k) COLLATE "C" LIMIT ${limit} OFFSET ${(page - 1) * limit}`,
+      ),
+    ),
+  );
+  const parse = (j: unknown) => (typeof j === "string" ? JSON.parse(j) : j) as Record<string, string | null> | null;
+  return {
+    from: { id: from.id, semver: from.semver, state: from.state },
+    to: { id: to.id, semver: to.semver, state: to.state },
+    resource,
+    fields,
+    page,
+    limit,
+    total: Number(counted?.n ?? 0),
+    rows: found.map((r) => {
+      const a = parse(r.aj),
+        b = parse(r.bj);
+      return {
+        key: r.k,
+        siteYear: siteYearOfKey(resource, r.k),
+        change: r.kind,
+        cells: fields.map((field) => {
+          const old = a ? (a[field] ?? null) : null;
+          const value = b ? (b[field] ?? null) : null;
+          return { field, old, new: value, changed: !!a && !!b && old !== value };
+        }),
+      };
+    }),
   };
 }

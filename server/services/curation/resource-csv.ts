@@ -106,7 +106,8 @@ export const resourceQueries: Record<ResourceName, ResourceQuery> = {
   },
 };
 
-const firstAlias: Record<ResourceName, string> = {
+/** The alias of each resource's own table in its FROM clause (whose version_id selects the version). */
+export const firstAlias: Record<ResourceName, string> = {
   sites: "s",
   site_years: "sy",
   soil_tests: "st",
