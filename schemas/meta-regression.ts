@@ -6,9 +6,9 @@ import { listOf } from "./filters";
  * GET /api/v1/analyses/meta that ask for them and the blocks they add. Nothing here is in a default answer.
  */
 
-export const moderators = ["soilTestValue", "checkYield", "plantingDayOfYear", "rate"] as const;
+const moderators = ["soilTestValue", "checkYield", "plantingDayOfYear", "rate"] as const;
 export type Moderator = (typeof moderators)[number];
-export const includeDetails = ["heterogeneityIntervals"] as const;
+const includeDetails = ["heterogeneityIntervals"] as const;
 const subgroupTau2Modes = ["common", "separate"] as const;
 
 export const metaDetailOptionShape = {

@@ -12,7 +12,7 @@ const height = 250;
 const margin = { left: 48, right: 12, top: 10, bottom: 40 };
 
 /** The fitted line over the soil test with its confidence band, and the critical level to mark. */
-export interface ScatterLine {
+interface ScatterLine {
   points: { x: number; fitted: number; ciLower: number; ciUpper: number }[];
   criticalLevel: number | null;
 }

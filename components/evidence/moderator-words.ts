@@ -7,13 +7,13 @@ import { formatPValue, formatResponse, unitLabel } from "./format";
  */
 
 /** A moderator value to three significant figures, without trailing zeros ("23.4", "150", "0.0123"). */
-export function formatModerator(value: number): string {
+function formatModerator(value: number): string {
   if (!Number.isFinite(value)) return "–";
   const rounded = Number(value.toPrecision(3));
   return Math.abs(rounded) >= 1000 ? String(Math.round(rounded)) : String(rounded);
 }
 
-export interface CrossingWords {
+interface CrossingWords {
   target: number;
   value: number | null;
   withinObservedRange: boolean | null;
