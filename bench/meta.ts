@@ -3,12 +3,12 @@ import type { AddressInfo } from "node:net";
 import path from "node:path";
 import { eq } from "drizzle-orm";
 import { migrateDatabase, openDatabase } from "@/db/client";
-import { datasets, responses, siteYears, sites, treatments, users, versions } from "@/db/schema";
+import { datasets, responses, siteYears, sites, soilTests, treatments, users, versions } from "@/db/schema";
 import type { TableSchemaDescriptor } from "@/schemas/table-schema";
 import { createApp } from "@/server/app";
 import { loadConfig } from "@/server/config";
 import type { AppContext } from "@/server/context";
-import { metaAnalysis } from "@/stats";
+import { continuousModeratorRegression, metaAnalysis } from "@/stats";
 
 /**
  * Meta-analysis speed: REML + HKSJ on k = 100, 1,000 and 10,000 effects, and the whole /api/v1/analyses/meta endpoint
@@ -129,6 +129,11 @@ async function bulkInsert(ctx: AppContext, count: number) {
         })),
       )
       .returning({ id: siteYears.id, code: siteYears.code, year: siteYears.year });
+    // Bray-P1 soil-test P (ppm) spread within each class, so moderator=soilTestValue has a line to fit.
+    const soilP = sy.map((_, i) => Math.round(10 * (4 + 6 * ((start + i) % 5) + 5 * u())) / 10);
+    await db
+      .insert(soilTests)
+      .values(sy.map((s, i) => ({ versionId, siteYearId: s.id, analyte: "P", value: soilP[i]!, unit: "ppm", extractant: "Bray-P1" })));
     await db.insert(responses).values(
       sy.map((s, i) => {
         const cls = classes[(start + i) % 5]!;
@@ -150,7 +155,7 @@ async function bulkInsert(ctx: AppContext, count: number) {
           k2oLbAc: 0,
           sLbAc: 0,
           soilPClass: cls,
-          soilPValue: 4 + 6 * classes.indexOf(cls),
+          soilPValue: soilP[i]!,
           checkMeanKgHa: 3500,
           treatedMeanKgHa: 3500 + md,
           mdKgHa: md,
@@ -180,6 +185,7 @@ async function main() {
     "?dataset=bench-large",
     "?dataset=bench-large&groupBy=soilTestClass&price=11&cost=24",
     "?dataset=bench-large&forestLimit=all",
+    "?dataset=bench-large&nutrient=P&moderator=soilTestValue",
   ]) {
     const r = await timeRequest(`${large.url}/api/v1/analyses/meta${query}`, 7);
     const size = r.bytes > 1024 * 1024 ? `${(r.bytes / 1024 / 1024).toFixed(1)} MB` : `${(r.bytes / 1024).toFixed(0)} KB`;
@@ -212,6 +218,13 @@ async function fitAndDemo(rows: { case: string; k: number; medianMs: number; not
     rows.push({ case: `metaAnalysis REML + HKSJ`, k, medianMs: t.medianMs, note: `${t.runs} runs` });
     const q = timeIt(() => metaAnalysis({ yi, vi, method: "REML", ci: "hksj" }), 2, 200);
     rows.push({ case: `… with Q-profile τ²/I² intervals`, k, medianMs: q.medianMs, note: `${q.runs} runs` });
+  }
+  for (const k of [1_000, 20_000]) {
+    const { yi, vi } = effects(k);
+    const u = generator(k + 11);
+    const x = yi.map(() => 4 + 30 * u());
+    const t = timeIt(() => continuousModeratorRegression({ yi, vi, x, method: "REML", ci: "hksj" }), 3, 300);
+    rows.push({ case: `meta-regression ~ x, REML + HKSJ, R² and 25-point band`, k, medianMs: t.medianMs, note: `${t.runs} runs` });
   }
 
   const demo = await serve();

@@ -23,3 +23,20 @@ const metaAnalysisQuery = (state: EvidenceState) => {
 };
 
 export const useMetaAnalysis = (state: EvidenceState) => useQuery(metaAnalysisQuery(state));
+
+/**
+ * The response along the soil test: the same question with moderator=soilTestValue and no forest rows, asked only
+ * when the scatter is open, so the screen's first answer stays small. A 422 (soil tests on several scales) is an
+ * answer to show, not a failure to retry.
+ */
+export const useSoilTestLine = (state: EvidenceState) => {
+  const path = `${metaApiPath(state)}&moderator=soilTestValue&forestLimit=0`;
+  return useQuery({
+    queryKey: [...analysisKeys.metas(), "soilTestValue", path],
+    queryFn: ({ signal }) => api(path, metaAnalysisResult, { signal }),
+    staleTime: staleTimeMs,
+    placeholderData: keepPreviousData,
+    retry: (count, error) =>
+      count < 1 && !(error instanceof Error && "status" in error && [400, 422].includes((error as { status: number }).status)),
+  });
+};

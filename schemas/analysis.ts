@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { trialFilterShape, trialFilters } from "./filters";
 import { yieldUnits, type YieldUnit } from "./public";
+import { heterogeneityInterval, metaDetailOptionShape, moderatorRegression, separateSubgroups } from "./meta-regression";
 
 export { type YieldUnit };
 
@@ -51,7 +52,7 @@ const filterKeys = Object.keys(trialFilterShape) as (keyof typeof trialFilterSha
 
 /** GET /api/v1/analyses/meta query: the shared filters plus the options; unknown parameters are refused. */
 export const metaQuery = z
-  .object({ ...trialFilterShape, ...metaOptionShape })
+  .object({ ...trialFilterShape, ...metaOptionShape, ...metaDetailOptionShape })
   .strict()
   .superRefine((q, ctx) => {
     // The filters' own cross-field rules (version needs dataset, year order) come from the one shared contract.
@@ -62,6 +63,8 @@ export const metaQuery = z
     if (q.cost !== undefined && (q.productCost !== undefined || q.applicationCost !== undefined)) {
       ctx.addIssue({ code: "custom", path: ["cost"], message: "give either cost or productCost/applicationCost, not both" });
     }
+    if (q.subgroupTau2 === "separate" && q.groupBy === undefined)
+      ctx.addIssue({ code: "custom", path: ["subgroupTau2"], message: "separate subgroup fits need groupBy" });
   })
   .meta({ id: "MetaAnalysisQuery" });
 export type MetaQuery = z.infer<typeof metaQuery>;
@@ -174,6 +177,7 @@ const heterogeneity = z
     tau2: z.number(),
     tau: z.number(),
     plainWords: z.string(),
+    interval: z.union([heterogeneityInterval, z.null()]).optional().describe("With include=heterogeneityIntervals; null for FE"),
   })
   .meta({ id: "Heterogeneity" });
 
@@ -223,6 +227,7 @@ const subgroups = z
       .describe("Deprecated: the same test as betweenGroupTest without its text, kept under its old name for existing scripts"),
     tau2: z.number().nullable().describe("Residual τ² shared by the levels"),
     notes: z.array(z.string()),
+    separate: separateSubgroups.optional(),
   })
   .meta({ id: "Subgroups" });
 
@@ -335,6 +340,7 @@ export const metaAnalysisResult = z
     provenance: analysisProvenance,
     notes: z.array(z.string()),
     cautions: z.array(caution).describe("Every caution rule, those tripped by the included treatments first, naming them"),
+    moderatorRegression: moderatorRegression.optional().describe("With moderator="),
   })
   .meta({ id: "MetaAnalysis" });
 export type MetaAnalysisResponse = z.infer<typeof metaAnalysisResult>;

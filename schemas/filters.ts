@@ -10,7 +10,7 @@ export { crops, nutrients, placements, soilTestClasses, tillages };
  * A comma-separated or repeated query parameter, parsed into a list of allowed values. OpenAPI cannot see through the
  * transform, so the list and its allowed values are declared beside it.
  */
-const listOf = <T extends readonly [string, ...string[]]>(values: T) =>
+export const listOf = <T extends readonly [string, ...string[]]>(values: T) =>
   z
     .union([line(), z.array(line())])
     .transform((v) => (Array.isArray(v) ? v : v.split(",")).map((s) => s.trim()).filter(Boolean))

@@ -22,3 +22,5 @@ export * from "@/stats/meta/meta-regression";
 export * from "@/stats/meta/meta-analysis";
 export * from "@/stats/meta/heterogeneity-interval";
 export * from "@/stats/meta/subgroups";
+export * from "@/stats/meta/continuous-moderator";
+export * from "@/stats/meta/line-crossing";

@@ -1,6 +1,6 @@
 import { useState } from "react";
 import { StyleSheet, View, type LayoutChangeEvent } from "react-native";
-import Svg, { G, Line, Text as SvgText } from "react-native-svg";
+import Svg, { G, Line, Polygon, Polyline, Text as SvgText } from "react-native-svg";
 import { Text } from "@/components/ui/text";
 import { colors, fonts, soilClassColors, space } from "@/constants/theme";
 import type { ForestRow } from "@/schemas/analysis";
@@ -11,27 +11,44 @@ import { linearScale, niceDomain } from "./scale";
 const height = 250;
 const margin = { left: 48, right: 12, top: 10, bottom: 40 };
 
-/** Response against the soil-test value, one marker per site-year, coloured and shaped by soil-test class. */
+/** The fitted line over the soil test with its confidence band, and the critical level to mark. */
+interface ScatterLine {
+  points: { x: number; fitted: number; ciLower: number; ciUpper: number }[];
+  criticalLevel: number | null;
+}
+
+/**
+ * Response against the soil-test value, one marker per site-year, coloured and shaped by soil-test class; with `line`,
+ * the fitted meta-regression line, its 95 % band and a mark at the critical level.
+ */
 export function SoilTestScatter({
   rows,
   format,
   unitLabel,
   summary,
+  line,
 }: {
   rows: ForestRow[];
   format: (v: number) => string;
   unitLabel: string;
   summary: string;
+  line?: ScatterLine | null;
 }) {
   const [width, setWidth] = useState(280);
   const onLayout = (e: LayoutChangeEvent) => setWidth(Math.max(260, Math.floor(e.nativeEvent.layout.width)));
   const points = rows.filter((r): r is ForestRow & { soilTestValue: number } => r.soilTestValue !== null);
   const analyte = points[0]?.soilTestAnalyte ?? "";
+  const band = line?.points ?? [];
+  const critical = line?.criticalLevel ?? null;
   const xs = niceDomain(
-    points.map((p) => p.soilTestValue),
+    [
+      ...points.map((p) => p.soilTestValue),
+      ...band.map((b) => b.x),
+      ...(critical !== null && critical < 2 * Math.max(...band.map((b) => b.x)) ? [critical] : []),
+    ],
     false,
   );
-  const ys = niceDomain(points.map((p) => p.estimate));
+  const ys = niceDomain([...points.map((p) => p.estimate), ...band.flatMap((b) => [b.ciLower, b.ciUpper])]);
   const x = linearScale(xs.domain, [margin.left, width - margin.right]);
   const y = linearScale(ys.domain, [height - margin.bottom, margin.top]);
   const present = soilTestClasses.filter((c) => points.some((p) => p.soilTestClass === c));
@@ -78,6 +95,34 @@ export function SoilTestScatter({
           >
             Soil-test {analyte} (as reported) · response in {unitLabel}
           </SvgText>
+          {band.length > 1 ? (
+            <G testID="soil-line">
+              <Polygon
+                points={[
+                  ...band.map((b) => `${x(b.x)},${y(b.ciUpper)}`),
+                  ...[...band].reverse().map((b) => `${x(b.x)},${y(b.ciLower)}`),
+                ].join(" ")}
+                fill={colors.field}
+                fillOpacity={0.15}
+              />
+              <Polyline
+                points={band.map((b) => `${x(b.x)},${y(b.fitted)}`).join(" ")}
+                fill="none"
+                stroke={colors.fieldDark}
+                strokeWidth={2}
+              />
+              {critical !== null && x(critical) >= margin.left && x(critical) <= width - margin.right ? (
+                <Line
+                  x1={x(critical)}
+                  x2={x(critical)}
+                  y1={margin.top}
+                  y2={height - margin.bottom}
+                  stroke={colors.fieldDark}
+                  strokeDasharray="2 3"
+                />
+              ) : null}
+            </G>
+          ) : null}
           <G>
             {points.map((p) => (
               <Marker

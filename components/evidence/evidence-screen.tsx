@@ -3,7 +3,6 @@ import { router, useLocalSearchParams } from "expo-router";
 import { useCallback, useEffect, useMemo, useRef, useState } from "react";
 import { Platform, Pressable, ScrollView, StyleSheet, View } from "react-native";
 import { ForestPlot, type ForestGroup } from "@/components/charts/forest-plot";
-import { SoilTestScatter } from "@/components/charts/scatter-plot";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
 import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
@@ -38,6 +37,7 @@ import { ProvenancePanel } from "./provenance-panel";
 import { SiteYearTable } from "@/components/lazy-tables";
 import { PageHead } from "@/components/page-head";
 import { levelLabels, SubgroupView } from "./subgroup-view";
+import { SoilTestPanel } from "./soil-test-panel";
 import { SummaryCard } from "./summary-card";
 
 function origin(): string {
@@ -188,8 +188,19 @@ function Results({
         </Disclosure>
       </Card>
       <Card>
-        <Disclosure title="Response and soil test" hint="Coloured and shaped by soil-test class" testID="open-scatter">
-          <SoilTestScatter rows={result.rows} format={fmt} unitLabel={unitLabel(result.units)} summary={scatterSummary(result)} />
+        <Disclosure
+          title="Response and soil test"
+          hint="Coloured and shaped by soil-test class, with the fitted line and the critical soil-test level"
+          testID="open-scatter"
+        >
+          <SoilTestPanel
+            result={result}
+            state={state}
+            prices={prices}
+            format={fmt}
+            unitLabel={unitLabel(result.units)}
+            summary={scatterSummary(result)}
+          />
         </Disclosure>
       </Card>
       <Card>

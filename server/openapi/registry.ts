@@ -57,6 +57,7 @@ const problemDescriptions: Record<number, string> = {
   409: "The resource's state does not allow this.",
   413: "The body is larger than the limit.",
   415: "The body is not of a media type this operation accepts (JSON, or multipart for uploads).",
+  422: "The request is valid but cannot be answered as asked (e.g. site-years on different scales); `detail` says what to change.",
   429: "Over the rate limit; see Retry-After.",
   500: "The server failed; the problem carries no detail of the failure.",
 };

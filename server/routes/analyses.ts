@@ -23,14 +23,17 @@ export function analysisRoutes({ db, registry }: AppContext): Router {
         "Hartung–Knapp–Sidik–Jonkman (default) or Wald; the prediction interval uses t(k − 2). With price and cost, the " +
         "decision block gives the break-even response and the chance a new site-year exceeds it. `format=csv` returns " +
         'the per-site-year rows (reproduce in R: `rma(yi = estimate, sei = se, data = d, method = "REML", test = "knha")`). ' +
-        "k = 0 is an answer (200), not an error. Results summarise these trials; a field can differ.",
+        "k = 0 is an answer (200), not an error. Results summarise these trials; a field can differ. " +
+        "`moderator=` adds a meta-regression on a continuous moderator (slope, R², residual heterogeneity, the fitted line and its " +
+        "band, and for the soil test its critical level); it is refused with 422 when the site-years are on different scales. " +
+        "`include=heterogeneityIntervals` and `subgroupTau2=separate` add heterogeneity detail; a default answer has none of these.",
       query: metaQuery,
       responses: {
         200: {
           description: "The analysis with its provenance",
           content: { "application/json": { schema: metaAnalysisResult }, "text/csv": { schema: { type: "string" } } },
         },
-        ...problemResponses(400, 404, 429),
+        ...problemResponses(400, 404, 422, 429),
       },
     },
     async ({ query }, _req, res) => {

@@ -93,6 +93,18 @@ export const cautionRules: CautionRule[] = [
   { code: "local-advice", text: "Local recommendations and licensed advisers have the last word.", source: noSource },
 ];
 
+/**
+ * Said beside every critical soil-test level: a level read off a line fitted to these trials, not a recommendation.
+ * Not among the rules above, because it speaks of an estimate rather than of a treatment.
+ */
+export const criticalLevelCaution = {
+  code: "critical-level-estimate" as const,
+  text:
+    "This critical soil-test level is an estimate from these trials, read where the fitted line crosses; it is only as good as the " +
+    "spread of soil tests behind it and holds for this extractant and unit only. Local calibrations and a licensed adviser have the last word.",
+  source: noSource,
+};
+
 /** Each rule that a treatment trips, with the words saying how. */
 export function trippedRules(t: CautionTreatment): { rule: CautionRule; detail: string }[] {
   return cautionRules.flatMap((rule) => {

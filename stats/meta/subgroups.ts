@@ -100,28 +100,14 @@ export function commonTauSquaredSubgroups(input: SubgroupInput): CommonTauSquare
 }
 
 /**
- * Subgroup analysis: common-τ² moderator model plus separate fits per level with Q_between.
+ * A separate meta-analysis within each level (each with its own τ²), then Q_between over the level estimates.
  * @example
- * // Curtis & Wang (1998) by functional group; metafor: rma(yi, vi, mods = ~ fungrp, method = "REML", test = "knha")
- * subgroupAnalysis({ yi, vi, groups: fungrp, method: "REML", ci: "hksj" }).commonTau2.differences.qm?.pValue // 0.933521492178781
+ * // Michael et al. (2013) by critique; metafor 3.8-1: rma(yi, vi, subset = g == level, method = "REML", test = "knha")
+ * separateSubgroupFits({ yi, vi, groups, method: "REML", ci: "hksj" }).qBetween.statistic // 1.26083028007404
  */
-export function subgroupAnalysis(input: SubgroupInput): SubgroupResult {
+export function separateSubgroupFits(input: SubgroupInput): SeparateSubgroups {
   const { yi, vi, groups } = input;
-  if (groups.length !== yi.length) throw new RangeError(`subgroupAnalysis: ${groups.length} group labels for ${yi.length} site-years`);
-  groups.forEach((group, index) => {
-    if (typeof group !== "string" || group === "") throw new RangeError(`subgroupAnalysis: site-year ${index + 1} has no group`);
-  });
   const levels = input.levels ? [...input.levels] : [...new Set(groups)].sort(naturalOrder);
-  if (levels.length < 2) throw new RangeError("subgroupAnalysis: the moderator needs at least two levels");
-  const notes: string[] = [];
-  const countPerLevel: Record<string, number> = {};
-  for (const level of levels) countPerLevel[level] = groups.filter((group) => group === level).length;
-  for (const level of levels) {
-    const count = countPerLevel[level] ?? 0;
-    if (count === 0) throw new RangeError(`subgroupAnalysis: level "${level}" has no site-years`);
-    if (count < 5) notes.push(`Level "${level}" has only ${count} site-year(s): its estimate and τ² are imprecise.`);
-  }
-  const commonTau2 = commonTauSquaredSubgroups({ ...input, levels });
   const perLevel: Record<string, MetaAnalysisResult> = {};
   for (const level of levels) {
     const indices = groups.flatMap((group, index) => (group === level ? [index] : []));
@@ -141,11 +127,38 @@ export function subgroupAnalysis(input: SubgroupInput): SubgroupResult {
   const pooled = fits.reduce((sum, fit, index) => sum + (weights[index] ?? 0) * fit.estimate, 0) / totalWeight;
   const statistic = fits.reduce((sum, fit, index) => sum + (weights[index] ?? 0) * (fit.estimate - pooled) ** 2, 0);
   const df = levels.length - 1;
+  return { perLevel, qBetween: { statistic, df, pValue: chiSquareSurvival(statistic, df) } };
+}
+
+/**
+ * Subgroup analysis: common-τ² moderator model plus separate fits per level with Q_between.
+ * @example
+ * // Curtis & Wang (1998) by functional group; metafor: rma(yi, vi, mods = ~ fungrp, method = "REML", test = "knha")
+ * subgroupAnalysis({ yi, vi, groups: fungrp, method: "REML", ci: "hksj" }).commonTau2.differences.qm?.pValue // 0.933521492178781
+ */
+export function subgroupAnalysis(input: SubgroupInput): SubgroupResult {
+  const { yi, groups } = input;
+  if (groups.length !== yi.length) throw new RangeError(`subgroupAnalysis: ${groups.length} group labels for ${yi.length} site-years`);
+  groups.forEach((group, index) => {
+    if (typeof group !== "string" || group === "") throw new RangeError(`subgroupAnalysis: site-year ${index + 1} has no group`);
+  });
+  const levels = input.levels ? [...input.levels] : [...new Set(groups)].sort(naturalOrder);
+  if (levels.length < 2) throw new RangeError("subgroupAnalysis: the moderator needs at least two levels");
+  const notes: string[] = [];
+  const countPerLevel: Record<string, number> = {};
+  for (const level of levels) countPerLevel[level] = groups.filter((group) => group === level).length;
+  for (const level of levels) {
+    const count = countPerLevel[level] ?? 0;
+    if (count === 0) throw new RangeError(`subgroupAnalysis: level "${level}" has no site-years`);
+    if (count < 5) notes.push(`Level "${level}" has only ${count} site-year(s): its estimate and τ² are imprecise.`);
+  }
+  const commonTau2 = commonTauSquaredSubgroups({ ...input, levels });
+  const separate = separateSubgroupFits({ ...input, levels });
   return {
     levels,
     countPerLevel,
     commonTau2,
-    separate: { perLevel, qBetween: { statistic, df, pValue: chiSquareSurvival(statistic, df) } },
+    separate,
     notes,
   };
 }

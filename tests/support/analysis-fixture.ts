@@ -1,6 +1,6 @@
 import { eq } from "drizzle-orm";
 import type { TableSchemaDescriptor } from "@/schemas/table-schema";
-import { datasets, responses, siteYears, sites, treatments, versions } from "@/db/schema";
+import { datasets, responses, siteYears, sites, soilTests, treatments, versions } from "@/db/schema";
 import type { AppContext } from "@/server/context";
 import { makeUser } from "./test-app";
 
@@ -25,6 +25,8 @@ export interface FixtureResponse {
   tillage?: string | null;
   rowSpacingIn?: number | null;
   plantingDate?: string | null;
+  /** P2O5 of the treatment, lb/ac (default 40). */
+  p2o5LbAc?: number;
 }
 
 export interface FixtureDataset {
@@ -33,6 +35,8 @@ export interface FixtureDataset {
   licence?: string;
   state?: "published" | "withdrawn" | "draft";
   responses: FixtureResponse[];
+  /** Also record each site-year's P soil test (ppm) with this extractant, as an upload would. */
+  soilPExtractant?: string;
 }
 
 /**
@@ -105,6 +109,10 @@ export async function insertAnalysisFixture(ctx: AppContext, input: FixtureDatas
         })
         .returning({ id: siteYears.id });
       siteYearIds.set(r.siteYear, sy!.id);
+      if (input.soilPExtractant && r.soilPValue !== null && r.soilPValue !== undefined)
+        await db
+          .insert(soilTests)
+          .values({ versionId, siteYearId: sy!.id, analyte: "P", value: r.soilPValue, unit: "ppm", extractant: input.soilPExtractant });
     }
     const replicates = r.replicates ?? 4;
     const checkMean = r.checkMean ?? 3500;
@@ -128,7 +136,7 @@ export async function insertAnalysisFixture(ctx: AppContext, input: FixtureDatas
         nutrients: r.nutrients ?? ["P"],
         placements: r.placements ?? ["2x2-band"],
         nLbAc: 0,
-        p2o5LbAc: 40,
+        p2o5LbAc: r.p2o5LbAc ?? 40,
         k2oLbAc: 0,
         sLbAc: 0,
         soilPClass: r.soilPClass === undefined ? "low" : r.soilPClass,

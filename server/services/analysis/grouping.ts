@@ -6,7 +6,7 @@ import type { Contrast, EstimationContrast } from "./load-contrasts";
 type SoilTestFields = Partial<Pick<Contrast, "testedNutrientsStated" | "nLbAc" | "p2o5LbAc" | "k2oLbAc" | "sLbAc">> & SoilTestsByAnalyte;
 
 /** The nutrients a contrast tests (the one rule in tested-nutrients.ts); rates missing from a partial row count as 0. */
-function contrastTestedNutrients(row: SoilTestFields) {
+export function contrastTestedNutrients(row: SoilTestFields) {
   return testedNutrients({
     testedNutrientsStated: row.testedNutrientsStated ?? null,
     nLbAc: row.nLbAc ?? 0,

@@ -3,6 +3,7 @@ import type { Db } from "@/db/client";
 import { responses } from "@/db/schema";
 import type { Grouping } from "@/schemas/analysis";
 import type { TrialFilters } from "@/schemas/filters";
+import type { Moderator } from "@/schemas/meta-regression";
 import { conflict } from "@/server/errors";
 import { resolveVersions, responseConditions, type ResolvedVersion } from "@/server/services/trial-filter";
 import { treatmentLabels } from "./treatment-labels";
@@ -50,6 +51,15 @@ const groupingColumnsOf = {
 } satisfies Record<Grouping, Partial<Record<keyof Response, unknown>>>;
 type GroupingKey = { [G in Grouping]: keyof (typeof groupingColumnsOf)[G] }[Grouping];
 
+/** The columns a continuous moderator reads (the check mean is always read). */
+const moderatorColumnsOf = {
+  soilTestValue: { ...testedColumns, soilPValue: responses.soilPValue, soilKValue: responses.soilKValue, soilSValue: responses.soilSValue },
+  checkYield: {},
+  plantingDayOfYear: { plantingDate: responses.plantingDate },
+  rate: testedColumns,
+} satisfies Record<Moderator, Partial<Record<keyof Response, unknown>>>;
+type ModeratorKey = { [M in Moderator]: keyof (typeof moderatorColumnsOf)[M] }[Moderator];
+
 const labelColumns = {
   id: responses.id,
   siteCode: responses.siteCode,
@@ -75,7 +85,7 @@ const labelColumns = {
 type LabelKey = keyof typeof labelColumns;
 
 /** A response as the estimates see it; the grouping columns are present when that grouping was asked. */
-export type EstimationContrast = Pick<Response, EstimationKey> & Partial<Pick<Response, GroupingKey>>;
+export type EstimationContrast = Pick<Response, EstimationKey> & Partial<Pick<Response, GroupingKey | ModeratorKey>>;
 /** What a forest row or an exclusion names of a response. */
 export type ContrastLabels = Pick<Response, LabelKey>;
 /** A response with its labels, its treatment in words among them. */
@@ -119,8 +129,17 @@ function toObjects<T>(text: string | null | undefined, keys: string[], versionId
 }
 
 /** Stage one: every filtered response's estimation columns, one aggregate per dataset version (in id order). */
-async function selectEstimationRows(db: Db, where: SQL | undefined, groupBy: Grouping | null): Promise<EstimationContrast[]> {
-  const columns = { ...estimationColumns, ...(groupBy ? groupingColumnsOf[groupBy] : {}) };
+async function selectEstimationRows(
+  db: Db,
+  where: SQL | undefined,
+  groupBy: Grouping | null,
+  moderator: Moderator | null,
+): Promise<EstimationContrast[]> {
+  const columns = {
+    ...estimationColumns,
+    ...(groupBy ? groupingColumnsOf[groupBy] : {}),
+    ...(moderator ? moderatorColumnsOf[moderator] : {}),
+  };
   const keys = Object.keys(columns);
   const result = await db.execute(
     sql`SELECT ${responses.versionId} AS version_id, ${jsonArrays(columns)} AS rows FROM ${responses} WHERE ${where} GROUP BY ${responses.versionId} ORDER BY ${responses.versionId}`,
@@ -186,6 +205,7 @@ export async function loadContrasts(
   db: Db,
   filters: TrialFilters,
   groupBy: Grouping | null = null,
+  moderator: Moderator | null = null,
   resolve: VersionResolver = resolveVersions,
 ) {
   const versions = await resolve(db, filters);
@@ -193,7 +213,7 @@ export async function loadContrasts(
     filters,
     versions.map((v) => v.versionId),
   );
-  const rows = await selectEstimationRows(db, where, groupBy);
+  const rows = await selectEstimationRows(db, where, groupBy, moderator);
   return { versions, rows, where };
 }
 

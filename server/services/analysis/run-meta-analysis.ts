@@ -38,6 +38,7 @@ import { buildUnits, ownTest, type AnalysisUnit } from "./site-year-effects";
 import { evaluateCautions } from "@/server/services/cautions";
 import { includedTreatments } from "./included-treatments";
 import { describeBetweenGroupTest, combinationNote, describeHeterogeneity, sampleSizeNotes } from "./wording";
+import { intervalOut, moderatorBlock, readSoilScales, separateBlock, subgroupInputOf, type SoilScales } from "./moderator-regression";
 
 type Result = MetaAnalysisResponse;
 
@@ -55,9 +56,16 @@ function splitQuery(query: MetaQuery): { filters: TrialFilters; options: Omit<Me
  */
 export async function runMetaAnalysis(db: Db, query: MetaQuery, resolve?: VersionResolver): Promise<Result> {
   const { filters, options } = splitQuery(query);
-  const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null, resolve);
+  const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null, options.moderator ?? null, resolve);
   const [result, included] = await Promise.all([
-    analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named)),
+    analyseContrasts(
+      rows,
+      versions,
+      filters,
+      options,
+      (named) => withLabels(db, where, named),
+      () => readSoilScales(db, where),
+    ),
     includedTreatments(db, where, versions),
   ]);
   return { ...result, cautions: evaluateCautions(included) };
@@ -72,6 +80,7 @@ async function analyseContrasts(
   filters: TrialFilters,
   options: Omit<MetaQuery, keyof TrialFilters>,
   labelsOf: LabelReader,
+  soilScales: () => Promise<SoilScales>,
 ): Promise<Result> {
   const { effect, method, ci, units } = options;
   const groupBy = options.groupBy ?? null;
@@ -95,7 +104,13 @@ async function analyseContrasts(
 
   const fit =
     k > 0
-      ? metaAnalysis({ yi: overall.units.map((u) => u.yi), vi: overall.units.map((u) => u.vi), method, ci, heterogeneityInterval: false })
+      ? metaAnalysis({
+          yi: overall.units.map((u) => u.yi),
+          vi: overall.units.map((u) => u.vi),
+          method,
+          ci,
+          heterogeneityInterval: options.include?.includes("heterogeneityIntervals") ?? false,
+        })
       : null;
   if (fit) for (const n of fit.notes) if (!notes.includes(n) && !/^(Only|Two site-years)/.test(n)) notes.push(n);
 
@@ -157,8 +172,25 @@ async function analyseContrasts(
           tau2: fit.tau2,
           tau: fit.tau,
           plainWords: describeHeterogeneity({ i2Percent: fit.i2Percent, tau: fit.tau, k, units: unitLabel, qPValue: fit.q.pValue }),
+          ...(options.include?.includes("heterogeneityIntervals")
+            ? { interval: fit.heterogeneityInterval ? intervalOut(fit.heterogeneityInterval) : null }
+            : {}),
         }
       : null;
+  const moderatorRegression = options.moderator
+    ? await moderatorBlock({
+        units: overall.units,
+        moderator: options.moderator,
+        filters,
+        options,
+        unitLabel,
+        breakEven: decision.breakEven,
+        slugOf,
+        versionOf,
+        soilScales,
+        labelsOf,
+      })
+    : undefined;
 
   return {
     k,
@@ -198,6 +230,7 @@ async function analyseContrasts(
     notes,
     // The standing cautions; runMetaAnalysis evaluates the rules against the included treatments.
     cautions: evaluateCautions([]),
+    ...(moderatorRegression ? { moderatorRegression } : {}),
   };
 }
 
@@ -312,6 +345,25 @@ function levelDecision(units: AnalysisUnit[], level: string, predictive: Predict
 function subgroupBlock(
   units: AnalysisUnit[],
   by: Grouping,
+  options: Pick<MetaQuery, "method" | "ci" | "include" | "subgroupTau2">,
+  decision: Result["decision"],
+): Result["subgroups"] {
+  const block = subgroupFits(units, by, options, decision);
+  if (options.subgroupTau2 !== "separate" || !block) return block;
+  return {
+    ...block,
+    separate: separateBlock(
+      units,
+      block.levels.map((l) => l.level),
+      options,
+      describeBetweenGroupTest,
+    ),
+  };
+}
+
+function subgroupFits(
+  units: AnalysisUnit[],
+  by: Grouping,
   options: Pick<MetaQuery, "method" | "ci">,
   decision: Result["decision"],
 ): Result["subgroups"] {
@@ -358,12 +410,7 @@ function subgroupBlock(
     };
   }
   const fit = commonTauSquaredSubgroups({
-    yi: units.map((u) => u.yi),
-    vi: units.map((u) => u.vi),
-    groups: units.map((u) => u.group ?? ""),
-    levels,
-    method: options.method,
-    ci: options.ci,
+    ...subgroupInputOf(units, levels, options),
     // The answer reports no R², and the overall fit is made once elsewhere.
     r2: false,
   });
