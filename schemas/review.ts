@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { metaOptionShape } from "./analysis";
+import { metaDetailOptionShape } from "./meta-regression";
 import { semver } from "./curation";
 import { versionState } from "./dataset";
 import { trialFilterShape } from "./filters";
@@ -147,7 +148,7 @@ const { dataset: _dataset, version: _version, ...draftFilterShape } = trialFilte
 const { format: _format, ...draftOptionShape } = metaOptionShape;
 /** The Evidence screen's filters and options, without dataset and version (the draft is the one version read). */
 export const draftPreviewQuery = z
-  .object({ ...draftFilterShape, ...draftOptionShape })
+  .object({ ...draftFilterShape, ...draftOptionShape, ...metaDetailOptionShape })
   .strict()
   .meta({ id: "DraftPreviewQuery" });
 export type DraftPreviewQuery = z.infer<typeof draftPreviewQuery>;
