@@ -10,6 +10,7 @@ import { publicReadCors } from "./cors";
 import type { AppConfig } from "./config";
 import type { AppContext } from "./context";
 import { notFoundHandler, problemMiddleware } from "./errors";
+import { createJobQueue } from "./jobs";
 import { mountApiDocs } from "./openapi/docs";
 import { createRegistry, generateOpenApiDocument } from "./openapi/registry";
 import { apiRateLimits, pageRateLimit } from "./rate-limit";
@@ -30,7 +31,8 @@ export interface CreateAppOptions {
 /** Build the Express app. It does not listen: server/main.ts does, and tests drive it through supertest. */
 export function createApp({ database, config, webDistDir, apiObserver }: CreateAppOptions): { app: Express; ctx: AppContext } {
   const registry = createRegistry();
-  const ctx: AppContext = { database, db: database.db, config, registry };
+  const base = { database, db: database.db, config, registry };
+  const ctx: AppContext = { ...base, jobs: createJobQueue(base) };
   registerPublishHooks();
   const app = express();
   app.disable("x-powered-by");

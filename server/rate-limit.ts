@@ -4,7 +4,7 @@ import type { AppConfig } from "./config";
 import { HttpProblem } from "./errors";
 
 /** Health checks and the OpenAPI document are never limited: monitors and code generators poll them. */
-export const rateLimitExempt = new Set(["/health", "/openapi.json"]);
+export const rateLimitExempt = new Set(["/health", "/health/ready", "/openapi.json"]);
 
 const windowMs = 60_000;
 const readMethods = new Set(["GET", "HEAD", "OPTIONS"]);

@@ -2,3 +2,4 @@ export * from "./enums";
 export * from "./accounts";
 export * from "./datasets";
 export * from "./trials";
+export * from "./operations";

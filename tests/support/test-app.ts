@@ -62,9 +62,10 @@ export async function testApp(overrides: Partial<AppConfig> = {}, options: { web
     ctx,
     database,
     async close() {
-      // A DOI pass still running would write to a closed database.
+      // A job still running would write to a closed database; retries due later are dropped with the queue.
       await drainDoiQueue(ctx);
       await mailDeliveriesEnded(ctx);
+      await ctx.jobs.stop();
       await database.close();
       await dropDatabase?.();
     },
