@@ -16,6 +16,8 @@ export interface GraphileQueueOptions {
   /** Jobs one process runs at once (each lane still runs one at a time). */
   concurrency?: number;
   pollIntervalMs?: number;
+  /** Attempts of every job, instead of each task's default. */
+  maxAttempts?: number;
 }
 
 /** graphile-worker's messages at warning and above go to the log; its chatter about each job does not. */
@@ -62,7 +64,7 @@ export function graphileQueue(options: GraphileQueueOptions): JobQueue {
 
   return {
     kind: "postgres",
-    async add(task: JobTask, payload, { key, mode = "replace", lane, maxAttempts = defaultMaxAttempts[task] }) {
+    async add(task: JobTask, payload, { key, mode = "replace", lane, maxAttempts = options.maxAttempts ?? defaultMaxAttempts[task] }) {
       await db.execute(sql`select graphile_worker.add_job(
         identifier => ${task}, payload => ${JSON.stringify(payload)}::json, queue_name => ${lane ?? null},
         max_attempts => ${maxAttempts}, job_key => ${key}, job_key_mode => ${mode === "keep" ? "unsafe_dedupe" : "replace"})`);

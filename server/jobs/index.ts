@@ -15,6 +15,6 @@ export function createJobQueue(ctx: Omit<AppContext, "jobs">): JobQueue {
     "mail-deliver": (payload) => deliverMail(app, payload),
   };
   if (ctx.database.kind === "postgres" && ctx.config.databaseUrl)
-    return graphileQueue({ connectionString: ctx.config.databaseUrl, db: ctx.db, handlers });
-  return inProcessQueue(handlers);
+    return graphileQueue({ connectionString: ctx.config.databaseUrl, db: ctx.db, handlers, maxAttempts: ctx.config.jobMaxAttempts });
+  return inProcessQueue(handlers, { maxAttempts: ctx.config.jobMaxAttempts });
 }

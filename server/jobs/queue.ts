@@ -76,8 +76,12 @@ interface LocalJob {
 }
 
 /** The queue for a database only this process uses (PGlite): jobs live in memory, handlers run here. */
-export function inProcessQueue(handlers: JobHandlers, options: { log?: (message: string) => void } = {}): JobQueue {
+export function inProcessQueue(
+  handlers: JobHandlers,
+  options: { log?: (message: string) => void; backOff?: (attempts: number) => number; maxAttempts?: number } = {},
+): JobQueue {
   const log = options.log ?? ((m) => console.error(m));
+  const backOff = options.backOff ?? backOffMs;
   const jobs = new Map<string, LocalJob>();
   const busyLanes = new Set<string>();
   const inFlight = new Set<Promise<void>>();
@@ -127,7 +131,7 @@ export function inProcessQueue(handlers: JobHandlers, options: { log?: (message:
       } else if (job.attempts >= job.maxAttempts) {
         job.failedAt = Date.now();
         log(`Job ${job.task} (${job.key}) failed for good after ${job.attempts} attempts: ${job.lastError}`);
-      } else job.runAt = Date.now() + backOffMs(job.attempts);
+      } else job.runAt = Date.now() + backOff(job.attempts);
     } finally {
       job.running = false;
     }
@@ -137,7 +141,7 @@ export function inProcessQueue(handlers: JobHandlers, options: { log?: (message:
 
   return {
     kind: "in-process",
-    async add(task, payload, { key, mode = "replace", lane = task, maxAttempts = defaultMaxAttempts[task] }) {
+    async add(task, payload, { key, mode = "replace", lane = task, maxAttempts = options.maxAttempts ?? defaultMaxAttempts[task] }) {
       const existing = byKey(key);
       if (existing && mode === "keep") return;
       if (existing?.running) existing.again = { payload };
