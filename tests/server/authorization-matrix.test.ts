@@ -177,6 +177,7 @@ const emailToken = async (c: Cell, purpose: "verify" | "reset" | "invite") => {
 const table: Record<string, Row> = {
   // Health, documents, public catalogue and data: open to all; a revoked token is still refused (401).
   "GET /api/v1/health": { expect: everyone(200) },
+  "GET /api/v1/health/ready": { expect: everyone(200) },
   "GET /api/v1/openapi.json": { expect: everyone(200) },
   // The docs page and its files are served outside the API router, before authentication; the rest of /api is a 404.
   "GET /api/docs": {

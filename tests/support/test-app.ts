@@ -75,7 +75,7 @@ export async function testApp(overrides: Partial<AppConfig> = {}, options: { web
 let databaseCounter = 0;
 
 /** A database of its own for each test app, so test files can run in parallel against one server. */
-async function createPostgresDatabase(adminUrl: string) {
+export async function createPostgresDatabase(adminUrl: string) {
   const name = `plotbank_t_${process.pid}_${++databaseCounter}_${Date.now().toString(36)}`;
   const admin = new pg.Client({ connectionString: adminUrl });
   await admin.connect();
