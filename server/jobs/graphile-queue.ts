@@ -1,4 +1,5 @@
 import { EventEmitter } from "node:events";
+import pg from "pg";
 import os from "node:os";
 import { sql } from "drizzle-orm";
 import { Logger, run, runMigrations, type Runner, type Task, type WorkerEvents } from "graphile-worker";
@@ -40,6 +41,9 @@ export function graphileQueue(options: GraphileQueueOptions): JobQueue {
   let runner: Runner | undefined;
   let heartbeat: ReturnType<typeof setInterval> | undefined;
   const workerIds = new Set<string>();
+  // Our own pool, ended by us: graphile-worker writes a job's completion after its handler returns, and a pool that
+  // the runner ended on stop would lose that write, leaving a finished job locked.
+  let pgPool: pg.Pool | undefined;
 
   const taskList = Object.fromEntries(
     Object.entries(handlers).map(([name, handler]): [string, Task] => [name, (payload) => handler(payload as Record<string, unknown>)]),
@@ -56,7 +60,7 @@ export function graphileQueue(options: GraphileQueueOptions): JobQueue {
     );
     const gone = silent.map((r) => r.worker_id).filter((id) => !workerIds.has(id));
     if (gone.length > 0) {
-      // Worker ids are `worker-` and hex digits, so a comma-joined list splits back exactly.
+      // Pool ids are `pool-` and hex digits, so a comma-joined list splits back exactly.
       await db.execute(sql`select graphile_worker.force_unlock_workers(string_to_array(${gone.join(",")}, ','))`);
       console.error(`job queue: released the jobs of workers that went silent: ${gone.join(", ")}`);
     }
@@ -73,9 +77,13 @@ export function graphileQueue(options: GraphileQueueOptions): JobQueue {
       if (runner) return;
       await runMigrations({ connectionString, logger: quietLogger });
       const events: WorkerEvents = new EventEmitter();
-      events.on("worker:create", ({ worker }) => workerIds.add(worker.workerId));
+      // Jobs are locked in the name of the pool that took them, so that is the id the heartbeat reports.
+      events.on("pool:create", ({ workerPool }) => workerIds.add(workerPool.id));
+      pgPool = new pg.Pool({ connectionString, max: (options.concurrency ?? 2) + 2 });
+      pgPool.on("error", (error) => console.error(`job queue: an idle connection failed: ${error.message}`));
+      pgPool.on("connect", (client) => client.on("error", (error) => console.error(`job queue: a connection failed: ${error.message}`)));
       runner = await run({
-        connectionString,
+        pgPool,
         concurrency: options.concurrency ?? 2,
         pollInterval: options.pollIntervalMs ?? 1000,
         noHandleSignals: true,
@@ -96,7 +104,18 @@ export function graphileQueue(options: GraphileQueueOptions): JobQueue {
       await r?.stop();
       const ids = [...workerIds];
       workerIds.clear();
-      for (const id of ids) await db.execute(sql`delete from job_workers where worker_id = ${id}`);
+      // Then the completions of those jobs are written (a moment after their handlers return).
+      const until = Date.now() + 5_000;
+      for (const id of ids) {
+        while (Date.now() < until) {
+          const [row] = await queryRows<{ n: string }>(db, sql`select count(*) as n from graphile_worker.jobs where locked_by = ${id}`);
+          if (Number(row?.n ?? 0) === 0) break;
+          await new Promise((resolve) => setTimeout(resolve, 50));
+        }
+        await db.execute(sql`delete from job_workers where worker_id = ${id}`);
+      }
+      await pgPool?.end();
+      pgPool = undefined;
     },
     async drain() {
       for (;;) {
