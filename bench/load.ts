@@ -1,6 +1,7 @@
 import autocannon from "autocannon";
 import { mkdirSync, writeFileSync } from "node:fs";
 import path from "node:path";
+import { readMix } from "./read-mix";
 import { startServerProcess } from "./server-process";
 
 /**
@@ -11,15 +12,7 @@ import { startServerProcess } from "./server-process";
 const seconds = Number(process.env.LOAD_SECONDS ?? 60);
 const connections = Number(process.env.LOAD_CONNECTIONS ?? 50);
 
-const paths = [
-  "/api/v1/datasets",
-  "/api/v1/responses?nutrient=P&placement=2x2-band&soilTestClass=low",
-  "/api/v1/analyses/meta?crop=soybean&nutrient=P&placement=2x2-band&groupBy=soilTestClass&price=11&cost=18",
-  "/api/v1/analyses/meta?crop=corn&nutrient=K",
-  "/api/v1/observations?crop=soybean&limit=200",
-  "/api/v1/site-years?crop=soybean",
-  "/api/v1/health",
-];
+const paths = readMix;
 
 async function main() {
   // Quotas are raised for the throughput run; a short second run at the default quota shows the designed 429s.

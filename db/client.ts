@@ -1,4 +1,5 @@
-import { mkdirSync } from "node:fs";
+import { mkdirSync, readFileSync } from "node:fs";
+import { sql, type SQL } from "drizzle-orm";
 import path from "node:path";
 import { PGlite } from "@electric-sql/pglite";
 import { drizzle as drizzlePglite } from "drizzle-orm/pglite";
@@ -55,4 +56,34 @@ export async function migrateDatabase(database: Database): Promise<void> {
   } else {
     await migratePglite(database.db as never, { migrationsFolder });
   }
+}
+
+/**
+ * Every migration in drizzle/ has been applied: the newest one recorded in the database is at least as new as the
+ * newest this code ships (drizzle records each migration's journal time as created_at).
+ */
+export async function migrationsApplied(database: Database): Promise<boolean> {
+  const journal = JSON.parse(readFileSync(path.join(migrationsFolder, "meta/_journal.json"), "utf8")) as { entries: { when: number }[] };
+  const newest = Math.max(...journal.entries.map((e) => e.when));
+  try {
+    const [row] = await queryRows<{ newest: string | number | null }>(
+      database.db,
+      sql`select max(created_at) as newest from drizzle.__drizzle_migrations`,
+    );
+    return Number(row?.newest ?? 0) >= newest;
+  } catch {
+    return false; // no migration table: nothing was ever applied
+  }
+}
+
+/** The rows of a raw SQL query, from PGlite and node-postgres alike (both answer `{ rows }`). */
+export async function queryRows<T>(db: Db, query: SQL): Promise<T[]> {
+  const result = (await db.execute(query)) as unknown as { rows: T[] };
+  return result.rows;
+}
+
+/** A timer that alone does not keep the process alive (tests, shutdown). */
+export function unrefTimer<T>(timer: T): T {
+  (timer as unknown as { unref?: () => void }).unref?.();
+  return timer;
 }

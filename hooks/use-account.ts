@@ -5,11 +5,13 @@ import {
   adminUser,
   adminUserList,
   checkEmail,
+  failedJobList,
   followList,
   followState,
   invitationEntry,
   invitationList,
   invitationPreview,
+  jobRetried,
   me,
   outboxList,
   outboxMessage,
@@ -28,6 +30,7 @@ const accountKeys = {
   admin: () => [...accountKeys.all, "admin"] as const,
   users: () => [...accountKeys.admin(), "users"] as const,
   roleChanges: () => [...accountKeys.admin(), "role-changes"] as const,
+  failedJobs: () => [...accountKeys.admin(), "failed-jobs"] as const,
   invitations: () => [...accountKeys.admin(), "invitations"] as const,
   outbox: () => [...accountKeys.admin(), "outbox"] as const,
   outboxMessage: (id: string) => [...accountKeys.outbox(), id] as const,
@@ -158,5 +161,17 @@ export function useInviteMutation() {
     mutationFn: (body: { email: string; role: "curator" | "reviewer" | "admin" }) =>
       api("/api/v1/admin/invitations", invitationEntry, { method: "POST", body }),
     onSuccess: () => client.invalidateQueries({ queryKey: accountKeys.admin() }),
+  });
+}
+
+/** Background jobs that used up their attempts (admins). */
+export const useFailedJobsQuery = () =>
+  useQuery({ queryKey: accountKeys.failedJobs(), queryFn: ({ signal }) => api("/api/v1/admin/jobs/failed", failedJobList, { signal }) });
+
+export function useRetryJobMutation() {
+  const client = useQueryClient();
+  return useMutation({
+    mutationFn: (id: string) => api(`/api/v1/admin/jobs/${encodeURIComponent(id)}/retry`, jobRetried, { method: "POST" }),
+    onSuccess: () => client.invalidateQueries({ queryKey: accountKeys.failedJobs() }),
   });
 }

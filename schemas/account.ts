@@ -134,3 +134,20 @@ export const outboxMessage = outboxSummary
   .extend({ text: z.string(), html: z.string().nullable(), links: z.array(z.string()) })
   .meta({ id: "OutboxMessage" });
 export type OutboxMessage = z.infer<typeof outboxMessage>;
+
+/** A background job that used up its attempts: what it was for, how often it ran and the last error. */
+export const failedJob = z
+  .object({
+    id: z.string(),
+    task: z.enum(["doi-register", "mail-deliver"]),
+    /** What the job is about: `doi:<version id>` or `mail:<outbox message id>`. */
+    key: z.union([z.string(), z.null()]),
+    attempts: z.number().int(),
+    maxAttempts: z.number().int(),
+    lastError: z.union([z.string(), z.null()]),
+    failedAt: z.string(),
+  })
+  .meta({ id: "FailedJob" });
+export type FailedJobEntry = z.infer<typeof failedJob>;
+export const failedJobList = z.object({ items: z.array(failedJob) }).meta({ id: "FailedJobList" });
+export const jobRetried = z.object({ id: z.string(), retried: z.literal(true) }).meta({ id: "JobRetried" });

@@ -36,3 +36,18 @@ export const health = z
   })
   .meta({ id: "Health" });
 export type Health = z.infer<typeof health>;
+
+export const readiness = z
+  .object({
+    ready: z.boolean(),
+    checks: z.object({
+      database: z.boolean(),
+      /** Every migration this code expects is applied. */
+      migrations: z.boolean(),
+      /** The background-job queue is taking jobs (false while the process stops). */
+      jobQueue: z.boolean(),
+    }),
+    jobQueue: z.enum(["postgres", "in-process"]),
+  })
+  .meta({ id: "Readiness" });
+export type Readiness = z.infer<typeof readiness>;

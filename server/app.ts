@@ -10,9 +10,11 @@ import { publicReadCors } from "./cors";
 import type { AppConfig } from "./config";
 import type { AppContext } from "./context";
 import { notFoundHandler, problemMiddleware } from "./errors";
+import { createJobQueue } from "./jobs";
 import { mountApiDocs } from "./openapi/docs";
 import { createRegistry, generateOpenApiDocument } from "./openapi/registry";
 import { apiRateLimits, pageRateLimit } from "./rate-limit";
+import { rateLimitStores } from "./rate-limit-store";
 import { apiRoutes } from "./routes";
 import { datasetPageHead } from "./services/linked-data/dataset-page-head";
 import { registerPublishHooks } from "./services/publish-hook-setup";
@@ -30,7 +32,8 @@ export interface CreateAppOptions {
 /** Build the Express app. It does not listen: server/main.ts does, and tests drive it through supertest. */
 export function createApp({ database, config, webDistDir, apiObserver }: CreateAppOptions): { app: Express; ctx: AppContext } {
   const registry = createRegistry();
-  const ctx: AppContext = { database, db: database.db, config, registry };
+  const base = { database, db: database.db, config, registry, rateLimitStores: rateLimitStores(database) };
+  const ctx: AppContext = { ...base, jobs: createJobQueue(base) };
   registerPublishHooks();
   const app = express();
   app.disable("x-powered-by");
@@ -70,7 +73,7 @@ export function createApp({ database, config, webDistDir, apiObserver }: CreateA
   api.use(express.json({ limit: "1mb" }));
   api.use(authenticate(ctx.db));
   api.use(csrfGuard(config.publicUrl));
-  api.use(apiRateLimits(config));
+  api.use(apiRateLimits(config, ctx.rateLimitStores));
   api.use(apiRoutes(ctx));
 
   let openApiDocument: ReturnType<typeof generateOpenApiDocument> | undefined;
@@ -86,7 +89,7 @@ export function createApp({ database, config, webDistDir, apiObserver }: CreateA
 
   app.use(crawlerRoutes(ctx));
   if (webDistDir !== false) {
-    app.use("/datasets", pageRateLimit(config));
+    app.use("/datasets", pageRateLimit(config, ctx.rateLimitStores));
     webInlineScripts = mountWebApp(app, webDistDir, datasetPageHead(ctx));
   }
   app.use(problemMiddleware);

@@ -37,6 +37,8 @@ const env = z.object({
   DATACITE_USER: z.string().default("PLOTBANK.DEMO"),
   DATACITE_PASSWORD: z.string().default("local-fake"),
   DATACITE_PREFIX: z.string().default("10.80555"),
+  /** Attempts a background job gets before it is kept as failed for an admin (default: 10 for DOIs, 8 for mail). */
+  PLOTBANK_JOB_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(100).optional(),
   NODE_ENV: z.string().default("development"),
 });
 
@@ -59,6 +61,8 @@ export interface AppConfig {
   mailOutboxOnly: boolean;
   mailFrom: string;
   datacite: { url?: string; user: string; password: string; prefix: string };
+  /** Attempts of every background job, when the operator sets one number for all. */
+  jobMaxAttempts?: number;
   /** Development conveniences (the admin outbox screen) are on unless NODE_ENV is production. */
   development: boolean;
   version: string;
@@ -82,6 +86,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env, overrides: P
     mailOutboxOnly: e.PLOTBANK_MAIL_OUTBOX_ONLY,
     mailFrom: e.MAIL_FROM,
     datacite: { url: e.DATACITE_URL, user: e.DATACITE_USER, password: e.DATACITE_PASSWORD, prefix: e.DATACITE_PREFIX },
+    jobMaxAttempts: e.PLOTBANK_JOB_MAX_ATTEMPTS,
     development: e.NODE_ENV !== "production",
     version: appVersion(),
   };

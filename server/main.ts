@@ -7,9 +7,8 @@ import { createApp } from "./app";
 import { mountDevProxy, proxyUpgrades } from "./dev-proxy";
 import { loadConfig, refuseUndeliverableMail } from "./config";
 import { closeServer, listen, localUrl } from "./listen";
-import { mailDeliveriesEnded } from "./mail/mailer";
 import { startLocalDataCiteUnlessConfigured } from "./doi/local-datacite";
-import { startDoiRetryLoop } from "./services/citation/doi-queue";
+import { startDoiCatchUp } from "./services/citation/doi-queue";
 import { webDistDir } from "./web";
 import { seedDemo } from "@/datasets";
 
@@ -17,16 +16,21 @@ async function main() {
   const config = loadConfig();
   refuseUndeliverableMail(config);
   const devProxy = process.env.PLOTBANK_WEB_PROXY;
-  if (!devProxy && !existsSync(path.join(webDistDir, "index.html"))) {
+  // An API-only process (behind a proxy that serves the web export elsewhere, or the multi-process tests) builds nothing.
+  const serveWeb = process.env.PLOTBANK_SERVE_WEB !== "off";
+  if (serveWeb && !devProxy && !existsSync(path.join(webDistDir, "index.html"))) {
     console.log("Building the web app (first start only, about a minute)…");
     const build = spawnSync("npm", ["run", "build:web"], { stdio: "inherit" });
     if (build.status !== 0) throw new Error("The web build failed; see the output above.");
   }
   const database = await openDatabase({ url: config.databaseUrl, dataDir: config.dataDir });
-  await migrateDatabase(database);
+  // With several processes on one server, one migration runner (`npm run db:migrate`) goes first and the processes
+  // start with PLOTBANK_MIGRATE=off; readiness says 503 until the database has every migration this code expects.
+  if (process.env.PLOTBANK_MIGRATE !== "off") await migrateDatabase(database);
   const dataCite = await startLocalDataCiteUnlessConfigured(config);
-  const { app, ctx } = createApp({ database, config, webDistDir: devProxy ? false : undefined });
-  const stopDoiRetries = startDoiRetryLoop(ctx);
+  const { app, ctx } = createApp({ database, config, webDistDir: devProxy || !serveWeb ? false : undefined });
+  await ctx.jobs.start();
+  const stopDoiCatchUp = startDoiCatchUp(ctx);
   if (devProxy) mountDevProxy(app, devProxy);
 
   // The port is bound before the demo loads: with PORT=0 only the bound socket knows the address, and the demo's
@@ -47,13 +51,13 @@ async function main() {
       process.exit(1);
     }
     stopping = true;
-    console.log(`${signal}: finishing the requests in flight and closing the database…`);
+    console.log(`${signal}: taking no new requests or jobs, finishing those in flight, then closing the database…`);
     let code = 0;
     try {
-      await closeServer(server, 10_000);
+      stopDoiCatchUp();
+      // Readiness answers 503 from here (the queue no longer runs), so a proxy stops sending; the running job ends.
+      await Promise.all([ctx.jobs.stop(), closeServer(server, 10_000)]);
       await seeding.catch(() => undefined);
-      stopDoiRetries();
-      await mailDeliveriesEnded(ctx);
       await dataCite.stop();
       await database.close();
     } catch (error) {

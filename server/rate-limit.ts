@@ -1,10 +1,11 @@
 import type { Request, RequestHandler } from "express";
 import { ipKeyGenerator, rateLimit } from "express-rate-limit";
 import type { AppConfig } from "./config";
+import type { RateLimitStores } from "./rate-limit-store";
 import { HttpProblem } from "./errors";
 
 /** Health checks and the OpenAPI document are never limited: monitors and code generators poll them. */
-export const rateLimitExempt = new Set(["/health", "/openapi.json"]);
+export const rateLimitExempt = new Set(["/health", "/health/ready", "/openapi.json"]);
 
 const windowMs = 60_000;
 const readMethods = new Set(["GET", "HEAD", "OPTIONS"]);
@@ -25,8 +26,9 @@ function tooMany(who: string): RequestHandler {
  * The web app's dataset pages read the database to put the dataset's title and JSON-LD into the HTML: they share the
  * anonymous per-address quota's size, with counters of their own.
  */
-export function pageRateLimit(config: Pick<AppConfig, "anonRatePerMinute">): RequestHandler {
+export function pageRateLimit(config: Pick<AppConfig, "anonRatePerMinute">, stores: RateLimitStores = () => undefined): RequestHandler {
   return rateLimit({
+    store: stores("pages"),
     windowMs,
     limit: config.anonRatePerMinute,
     standardHeaders: "draft-8",
@@ -42,7 +44,10 @@ export function pageRateLimit(config: Pick<AppConfig, "anonRatePerMinute">): Req
  * user for the web app's session). Headers follow the IETF RateLimit draft 8 on every answer. A 304 does not count:
  * `skipSuccessfulRequests` with "success" meaning exactly a 304 gives back the hit once the answer is sent.
  */
-export function apiRateLimits(config: Pick<AppConfig, "anonRatePerMinute" | "tokenRatePerMinute">): RequestHandler[] {
+export function apiRateLimits(
+  config: Pick<AppConfig, "anonRatePerMinute" | "tokenRatePerMinute">,
+  stores: RateLimitStores = () => undefined,
+): RequestHandler[] {
   const common = {
     windowMs,
     standardHeaders: "draft-8" as const,
@@ -54,6 +59,7 @@ export function apiRateLimits(config: Pick<AppConfig, "anonRatePerMinute" | "tok
     rateLimit({
       ...common,
       identifier: "anonymous",
+      store: stores("anonymous"),
       limit: config.anonRatePerMinute,
       // Anonymous writes are sign-in, sign-up and resets, which have their own tighter limits; a spent read quota
       // must not stop someone from signing in to get the higher one.
@@ -64,6 +70,7 @@ export function apiRateLimits(config: Pick<AppConfig, "anonRatePerMinute" | "tok
     rateLimit({
       ...common,
       identifier: "client",
+      store: stores("client"),
       limit: config.tokenRatePerMinute,
       skip: (req) => rateLimitExempt.has(req.path) || !req.user,
       keyGenerator: (req) => (req.auth?.via === "token" && req.auth.tokenId ? `token:${req.auth.tokenId}` : `user:${req.user!.id}`),

@@ -1,6 +1,7 @@
 import { View } from "react-native";
 import { AdminGate } from "@/components/account/admin-gate";
 import { TextLink } from "@/components/account/auth-panel";
+import { FailedJobs } from "@/components/account/failed-jobs";
 import { InviteForm } from "@/components/account/invite-form";
 import { PeopleList } from "@/components/account/people-list";
 import { RoleChangeLog } from "@/components/account/role-change-log";
@@ -20,6 +21,7 @@ export default function PeopleAndRolesScreen() {
         <View style={wide ? { flex: 2, gap: space.lg } : { gap: space.lg, alignSelf: "stretch" }}>
           <InviteForm />
           <RoleChangeLog />
+          <FailedJobs />
         </View>
       </View>
     </AdminGate>

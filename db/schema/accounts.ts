@@ -1,4 +1,4 @@
-import { index, pgTable, text, timestamp, uuid, jsonb } from "drizzle-orm/pg-core";
+import { index, integer, pgTable, text, timestamp, uuid, jsonb } from "drizzle-orm/pg-core";
 import { emailTokenPurposeEnum, roleEnum, tokenScopeEnum } from "./enums";
 
 export const users = pgTable("users", {
@@ -78,6 +78,14 @@ export const outbox = pgTable("outbox", {
   meta: jsonb("meta").$type<Record<string, unknown>>(),
   transport: text("transport").notNull().default("outbox"),
   createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  /**
+   * One delivery record per message and recipient: a notice that may be asked for twice (a follower's new-version
+   * notice) carries a key naming what it is about, so the second ask finds the first record instead of a new one.
+   */
+  deliveryKey: text("delivery_key").unique(),
+  /** When the transport took the message; a retried delivery job that finds this set sends nothing. */
+  deliveredAt: timestamp("delivered_at", { withTimezone: true }),
+  deliveryAttempts: integer("delivery_attempts").notNull().default(0),
 });
 
 export const roleChanges = pgTable("role_changes", {

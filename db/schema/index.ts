@@ -3,3 +3,4 @@ export * from "./accounts";
 export * from "./datasets";
 export * from "./trials";
 export * from "./review";
+export * from "./operations";

@@ -1,6 +1,7 @@
 import type { RequestHandler } from "express";
 import { ipKeyGenerator, rateLimit } from "express-rate-limit";
 import type { AppConfig } from "@/server/config";
+import type { RateLimitStores } from "@/server/rate-limit-store";
 import { HttpProblem } from "@/server/errors";
 import { normaliseEmail } from "@/server/services/users";
 
@@ -29,7 +30,7 @@ function emailKey(req: Parameters<RequestHandler>[0]): string {
  * e-mail address (slows guessing one account's password from many addresses, and keeps a mailbox from being
  * flooded with links). Each app gets its own counters, so parallel test apps never share them.
  */
-function pair(limits: Limits, what: string, onlyFailures: boolean): RequestHandler[] {
+function pair(limits: Limits, what: string, onlyFailures: boolean, stores: RateLimitStores, name: string): RequestHandler[] {
   const common = {
     windowMs: limits.windowMs,
     standardHeaders: "draft-7" as const,
@@ -38,8 +39,8 @@ function pair(limits: Limits, what: string, onlyFailures: boolean): RequestHandl
     handler: refuse(what),
   };
   return [
-    rateLimit({ ...common, limit: limits.perIp, keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}` }),
-    rateLimit({ ...common, limit: limits.perAccount, keyGenerator: emailKey }),
+    rateLimit({ ...common, store: stores(`${name}-ip`), limit: limits.perIp, keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}` }),
+    rateLimit({ ...common, store: stores(`${name}-email`), limit: limits.perAccount, keyGenerator: emailKey }),
   ];
 }
 
@@ -52,7 +53,7 @@ export interface AuthLimiters {
   currentPassword: RequestHandler[];
 }
 
-export function authLimiters(limits: Limits): AuthLimiters {
+export function authLimiters(limits: Limits, stores: RateLimitStores = () => undefined): AuthLimiters {
   const common = {
     windowMs: limits.windowMs,
     standardHeaders: "draft-7" as const,
@@ -61,11 +62,21 @@ export function authLimiters(limits: Limits): AuthLimiters {
     handler: refuse("wrong current passwords"),
   };
   return {
-    signIn: pair(limits, "sign-in attempts", true),
-    emailLinks: pair(limits, "requests for e-mailed links", false),
+    signIn: pair(limits, "sign-in attempts", true, stores, "sign-in"),
+    emailLinks: pair(limits, "requests for e-mailed links", false, stores, "email-links"),
     currentPassword: [
-      rateLimit({ ...common, limit: limits.perIp, keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}` }),
-      rateLimit({ ...common, limit: limits.perAccount, keyGenerator: (req) => `user:${req.user?.id ?? ""}` }),
+      rateLimit({
+        ...common,
+        store: stores("password-ip"),
+        limit: limits.perIp,
+        keyGenerator: (req) => `ip:${ipKeyGenerator(req.ip ?? "")}`,
+      }),
+      rateLimit({
+        ...common,
+        store: stores("password-user"),
+        limit: limits.perAccount,
+        keyGenerator: (req) => `user:${req.user?.id ?? ""}`,
+      }),
     ],
   };
 }

@@ -178,6 +178,7 @@ const emailToken = async (c: Cell, purpose: "verify" | "reset" | "invite") => {
 const table: Record<string, Row> = {
   // Health, documents, public catalogue and data: open to all; a revoked token is still refused (401).
   "GET /api/v1/health": { expect: everyone(200) },
+  "GET /api/v1/health/ready": { expect: everyone(200) },
   "GET /api/v1/openapi.json": { expect: everyone(200) },
   // The docs page and its files are served outside the API router, before authentication; the rest of /api is a 404.
   "GET /api/docs": {
@@ -282,6 +283,18 @@ const table: Record<string, Row> = {
   "POST /api/v1/admin/invitations": {
     expect: adminOnly(201),
     body: () => ({ email: `${fresh("invite")}@tallgrass.test`, role: "curator" }),
+  },
+  "GET /api/v1/admin/jobs/failed": { expect: adminOnly(200) },
+  "POST /api/v1/admin/jobs/:id/retry": {
+    expect: adminOnly(202),
+    // A delivery job for a message id that cannot exist fails on its one attempt and waits for an admin.
+    params: async (c) => {
+      const key = fresh("broken-mail");
+      await c.t.ctx.jobs.add("mail-deliver", { outboxId: key }, { key, maxAttempts: 1 });
+      await c.t.ctx.jobs.drain();
+      const job = (await c.t.ctx.jobs.failed()).find((j) => j.key === key);
+      return { id: job!.id };
+    },
   },
   "GET /api/v1/admin/outbox": { expect: adminOnly(200) },
   "GET /api/v1/admin/outbox/:id": {

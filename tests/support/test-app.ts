@@ -62,9 +62,10 @@ export async function testApp(overrides: Partial<AppConfig> = {}, options: { web
     ctx,
     database,
     async close() {
-      // A DOI pass still running would write to a closed database.
+      // A job still running would write to a closed database; retries due later are dropped with the queue.
       await drainDoiQueue(ctx);
       await mailDeliveriesEnded(ctx);
+      await ctx.jobs.stop();
       await database.close();
       await dropDatabase?.();
     },
@@ -74,7 +75,7 @@ export async function testApp(overrides: Partial<AppConfig> = {}, options: { web
 let databaseCounter = 0;
 
 /** A database of its own for each test app, so test files can run in parallel against one server. */
-async function createPostgresDatabase(adminUrl: string) {
+export async function createPostgresDatabase(adminUrl: string) {
   const name = `plotbank_t_${process.pid}_${++databaseCounter}_${Date.now().toString(36)}`;
   const admin = new pg.Client({ connectionString: adminUrl });
   await admin.connect();

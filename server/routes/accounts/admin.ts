@@ -3,6 +3,8 @@ import { z } from "zod";
 import {
   adminUser,
   adminUserList,
+  failedJobList,
+  jobRetried,
   invitationBody,
   invitationEntry,
   invitationList,
@@ -22,6 +24,7 @@ import { inviteUser, listOpenInvitations } from "@/server/services/accounts/invi
 import { listOutbox, outboxMessageById } from "@/server/services/accounts/outbox";
 
 const idParams = z.object({ id: z.uuid() });
+const jobIdParams = z.object({ id: z.string().regex(/^\d{1,19}$/, "a job id is a number") });
 const adminOnly = requireRole("admin");
 
 /** People & roles, invitations and (where mail is kept rather than sent) the outbox. Admins only. */
@@ -161,6 +164,45 @@ export function adminRoutes(ctx: AppContext): Router {
     },
     async ({ params: { id } }, _req, res) => {
       res.set("Cache-Control", "private, no-store").json(await outboxMessageById(ctx, id));
+    },
+  );
+
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/admin/jobs/failed",
+      operationId: "listFailedJobs",
+      tags: ["Admin"],
+      summary: "Background jobs (DOI registration, mail delivery) that used up their attempts, with the last error",
+      guards: [adminOnly],
+      responses: {
+        200: { description: "Failed jobs, newest first", content: { "application/json": { schema: failedJobList } } },
+        ...problemResponses(401, 403),
+      },
+    },
+    async (_input, _req, res) => {
+      const items = (await ctx.jobs.failed()).map((j) => ({ ...j, task: j.task as "doi-register" | "mail-deliver" }));
+      res.set("Cache-Control", "private, no-store").json({ items });
+    },
+  );
+
+  defineRoute(
+    {
+      method: "post",
+      path: "/api/v1/admin/jobs/{id}/retry",
+      operationId: "retryFailedJob",
+      tags: ["Admin"],
+      summary: "Send a failed background job round again, from its first attempt",
+      guards: [adminOnly, requireWriteScope],
+      params: jobIdParams,
+      responses: {
+        202: { description: "Queued again", content: { "application/json": { schema: jobRetried } } },
+        ...problemResponses(401, 403, 404),
+      },
+    },
+    async ({ params: { id } }, _req, res) => {
+      if (!(await ctx.jobs.retry(id))) throw notFound("No failed job has this id (it may have been retried already).");
+      res.status(202).json({ id, retried: true as const });
     },
   );
 

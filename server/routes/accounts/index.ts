@@ -12,7 +12,7 @@ import { signUpRoutes } from "./sign-up";
 
 /** Accounts: session, sign-up, e-mail links, profile, follows and administration. One set of abuse limiters per app. */
 export function accountRoutes(ctx: AppContext): Router {
-  const limiters = authLimiters(ctx.config.authLimits);
+  const limiters = authLimiters(ctx.config.authLimits, ctx.rateLimitStores);
   const router = Router();
   router.use(sessionRoutes(ctx, limiters));
   router.use(signUpRoutes(ctx, limiters));

@@ -130,7 +130,14 @@ export async function notifyFollowers(ctx: AppContext, versionId: string): Promi
       semver: version.semver,
       changelog: version.changelog,
     });
-    await mailer.send({ kind: "new-version", to: follower.email, ...mail, meta: { versionId, datasetSlug: dataset.slug } });
+    await mailer.send({
+      kind: "new-version",
+      to: follower.email,
+      ...mail,
+      meta: { versionId, datasetSlug: dataset.slug },
+      // Two runs of the hook at once both pass the check above; the key lets only one record (and one delivery) in.
+      deliveryKey: `new-version:${versionId}:${follower.email}`,
+    });
     sent += 1;
   }
   return sent;

@@ -1,58 +1,25 @@
 import { and, eq, inArray } from "drizzle-orm";
+import { unrefTimer } from "@/db/client";
 import { versions } from "@/db/schema";
 import type { AppContext } from "@/server/context";
-import { retryPendingDois } from "./doi-registration";
 
 /**
- * DOI work runs in the background, one pass at a time per app: nobody's request waits on the DOI service, and two
- * passes never register the same version at once. A pass picks up every version whose DOI is due (see
- * retryPendingDois), so queueing is only "mark it pending, then make sure a pass runs".
+ * DOI work is a job on the app's job queue (server/jobs): nobody's request waits on the DOI service, one job per
+ * version (its key), and the versions of one dataset go through one lane, so two of them never update the dataset's
+ * concept DOI at once, whichever processes run them.
  */
-interface Worker {
-  pass: Promise<void> | undefined;
-  /** Work was queued while a pass ran: run one more when it ends. */
-  again: boolean;
-}
+const doiJob = (versionId: string) => `doi:${versionId}`;
+const doiLane = (datasetId: string) => `doi:${datasetId}`;
 
-const workers = new WeakMap<AppContext, Worker>();
-
-function workerOf(ctx: AppContext): Worker {
-  let w = workers.get(ctx);
-  if (!w) workers.set(ctx, (w = { pass: undefined, again: false }));
-  return w;
-}
-
-/** Start a background pass now, or one more after the pass that is running. */
-function kickDoiQueue(ctx: AppContext): void {
-  if (!ctx.config.datacite.url) return;
-  const w = workerOf(ctx);
-  if (w.pass) {
-    w.again = true;
-    return;
-  }
-  w.pass = (async () => {
-    do {
-      w.again = false;
-      const s = await retryPendingDois(ctx);
-      if (s.pending || s.failed) console.log(`DOI pass: ${s.registered} registered, ${s.pending} still pending, ${s.failed} refused`);
-    } while (w.again);
-  })()
-    .catch((error) => console.error("DOI pass failed:", error))
-    .finally(() => {
-      w.pass = undefined;
-    });
-}
-
-/** Wait until no DOI pass is running (shutdown, and tests that read the outcome). */
+/** Wait until no job is due or running (shutdown, and tests that read the outcome). */
 export async function drainDoiQueue(ctx: AppContext): Promise<void> {
-  const w = workers.get(ctx);
-  while (w?.pass) await w.pass;
+  await ctx.jobs.drain();
 }
 
 /**
- * Queue a version's DOI work for the next pass, due at once: its first registration after publication, a metadata
- * update after a withdrawal, or another try that a person asked for. The version keeps its registered DOI (if it
- * has one) while the update waits.
+ * Queue a version's DOI work, due at once: its first registration after publication, a metadata update after a
+ * withdrawal, or another try that a person asked for (which starts a failed job over). The version keeps its
+ * registered DOI (if it has one) while the update waits.
  */
 export async function queueDoiWork(
   ctx: AppContext,
@@ -64,15 +31,31 @@ export async function queueDoiWork(
     .update(versions)
     .set({ doiStatus: "pending", doiAttempts: 0 })
     .where(and(eq(versions.id, versionId), inArray(versions.state, ["published", "withdrawn"]), inArray(versions.doiStatus, from)))
-    .returning({ id: versions.id });
-  kickDoiQueue(ctx);
+    .returning({ id: versions.id, datasetId: versions.datasetId });
+  for (const q of queued) await ctx.jobs.add("doi-register", { versionId: q.id }, { key: doiJob(q.id), lane: doiLane(q.datasetId) });
   return queued.length > 0;
 }
 
-/** The background retry: a pass every `intervalMs` picks up versions whose back-off has run out. Returns its stop. */
-export function startDoiRetryLoop(ctx: AppContext, intervalMs = 15_000): () => void {
-  const timer = setInterval(() => kickDoiQueue(ctx), intervalMs);
-  // The retry loop alone must not keep the process alive (tests, shutdown).
-  (timer as unknown as { unref?: () => void }).unref?.();
+/**
+ * Every released version still without its DOI gets a job unless it has one already (waiting, running or failed):
+ * the catch-up for work queued by a process that stopped between marking a version pending and adding its job.
+ */
+export async function queueWaitingDois(ctx: AppContext): Promise<number> {
+  if (!ctx.config.datacite.url) return 0;
+  const waiting = await ctx.db
+    .select({ id: versions.id, datasetId: versions.datasetId })
+    .from(versions)
+    .where(and(inArray(versions.state, ["published", "withdrawn"]), inArray(versions.doiStatus, ["none", "pending"])))
+    .orderBy(versions.publishedAt);
+  for (const v of waiting)
+    await ctx.jobs.add("doi-register", { versionId: v.id }, { key: doiJob(v.id), lane: doiLane(v.datasetId), mode: "keep" });
+  return waiting.length;
+}
+
+/** The catch-up at start and then every `intervalMs`. Returns its stop. */
+export function startDoiCatchUp(ctx: AppContext, intervalMs = 5 * 60_000): () => void {
+  const run = () => queueWaitingDois(ctx).catch((error) => console.error("Queueing waiting DOIs failed:", error));
+  void run();
+  const timer = unrefTimer(setInterval(run, intervalMs));
   return () => clearInterval(timer);
 }

@@ -19,12 +19,27 @@ function clientOf(ctx: AppContext): DataCiteClient | undefined {
   return url ? createDataCiteClient({ url, user, password }) : undefined;
 }
 
-/** Mint a DOI, or bring its metadata up to date when it exists already (a retry after a lost answer). */
+/**
+ * Mint a DOI, or bring its metadata up to date when it exists already. The DOI is the idempotency key: it is looked up
+ * first (an earlier attempt, or a process that died after its request reached the service, may have minted it), and a
+ * 422 "already been taken" from a create that raced another is taken as the update path.
+ */
 async function upsertDoi(client: DataCiteClient, attributes: DataCiteAttributes): Promise<DataCiteAttributes> {
+  if (attributes.doi && (await doiExists(client, attributes.doi))) return client.updateDoi(attributes.doi, attributes);
   try {
     return await client.createDoi(attributes);
   } catch (error) {
     if (error instanceof DataCiteRequestError && error.alreadyTaken) return client.updateDoi(attributes.doi!, attributes);
+    throw error;
+  }
+}
+
+async function doiExists(client: DataCiteClient, doi: string): Promise<boolean> {
+  try {
+    await client.getDoi(doi);
+    return true;
+  } catch (error) {
+    if (error instanceof DataCiteRequestError && error.status === 404) return false;
     throw error;
   }
 }
@@ -35,12 +50,12 @@ async function upsertDoi(client: DataCiteClient, attributes: DataCiteAttributes)
  * version stays published with doi_status pending (the service was unreachable or refused for now) or failed
  * (it rejected the metadata itself), and the error is kept for curators to read.
  */
-async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<DoiOutcome> {
+async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<{ outcome: DoiOutcome; error?: string }> {
   const client = clientOf(ctx);
-  if (!client) return "skipped";
+  if (!client) return { outcome: "skipped" };
   const dataset = await loadCitableDatasetOfVersion(ctx.db, ctx.config, versionId);
   const version = dataset?.versions.find((v) => v.versionId === versionId);
-  if (!dataset || !version) return "skipped";
+  if (!dataset || !version) return { outcome: "skipped" };
   try {
     const attributes = versionDoiAttributes(dataset, version);
     const minted = version.doi ? await client.updateDoi(version.doi, attributes) : await upsertDoi(client, attributes);
@@ -66,7 +81,7 @@ async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<D
         updatedAt: new Date(),
       })
       .where(eq(versions.id, versionId));
-    return "registered";
+    return { outcome: "registered" };
   } catch (error) {
     const outcome = error instanceof DataCiteRequestError && error.permanent ? "failed" : "pending";
     const message = error instanceof Error ? error.message : String(error);
@@ -79,8 +94,18 @@ async function registerVersionDoi(ctx: AppContext, versionId: string): Promise<D
         updatedAt: new Date(),
       })
       .where(eq(versions.id, versionId));
-    return outcome;
+    return { outcome, error: message };
   }
+}
+
+/**
+ * The job-queue task for one version: register it (or refresh its metadata). A failure worth retrying is thrown, so
+ * the queue tries again after its back-off and, after the last attempt, keeps the job as failed for an admin; a
+ * refusal of the metadata itself is recorded on the version (doi_status failed) for its curators and not retried.
+ */
+export async function runDoiJob(ctx: AppContext, versionId: string): Promise<void> {
+  const { outcome, error } = await registerVersionDoi(ctx, versionId);
+  if (outcome === "pending") throw new Error(error ?? "The DOI service did not register the DOI.");
 }
 
 export interface RetrySummary {
@@ -106,7 +131,7 @@ export async function retryPendingDois(ctx: AppContext, options: { now?: Date } 
   for (const v of waiting) {
     if (v.attempts > 0 && v.updatedAt.getTime() + retryDelayMs(v.attempts) > now) continue;
     summary.attempted++;
-    const outcome = await registerVersionDoi(ctx, v.id);
+    const { outcome } = await registerVersionDoi(ctx, v.id);
     if (outcome === "registered") summary.registered++;
     else if (outcome === "failed") summary.failed++;
     else if (outcome === "pending") summary.pending++;
