@@ -1,7 +1,9 @@
 import { Router } from "express";
 import type { AppContext } from "@/server/context";
 import { curationDatasetRoutes } from "./datasets";
+import { curationDictionaryRoutes } from "./dictionary-fields";
 import { curationExportRoutes } from "./exports";
+import { curationTemplateRoutes } from "./templates";
 import { curationUploadRoutes } from "./uploads";
 import { curationVersionRoutes } from "./versions";
 
@@ -10,7 +12,9 @@ export function curationRoutes(ctx: AppContext): Router {
   const router = Router();
   router.use(curationDatasetRoutes(ctx));
   router.use(curationVersionRoutes(ctx));
+  router.use(curationDictionaryRoutes(ctx));
   router.use(curationUploadRoutes(ctx));
+  router.use(curationTemplateRoutes(ctx));
   router.use(curationExportRoutes(ctx));
   return router;
 }
