@@ -6,6 +6,20 @@ import type { FieldRename } from "@/schemas/curation";
 import { customFieldName, isStoredField } from "@/server/services/ingest/custom-fields";
 import { resourceOrder, resourceQueries } from "./resource-csv";
 
+/**
+ * JSON with object keys sorted: a dictionary read back from a jsonb column has its keys in jsonb's order (shorter
+ * keys first), so the same keys must compare equal whatever order they arrive in.
+ */
+function canonical(value: unknown): string {
+  if (Array.isArray(value)) return `[${value.map(canonical).join(",")}]`;
+  if (value && typeof value === "object")
+    return `{${Object.keys(value)
+      .sort()
+      .map((k) => `${JSON.stringify(k)}:${canonical((value as Record<string, unknown>)[k])}`)
+      .join(",")}}`;
+  return JSON.stringify(value ?? null);
+}
+
 /** Fields the tables cannot do without: keys, references and NOT NULL columns. */
 const essential: Record<ResourceName, string[]> = {
   sites: ["site", "location"],
@@ -65,13 +79,13 @@ export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocati
     for (const name of essential[resource])
       if (!names.has(name))
         problems.push({ field: `${where}.fields`, message: `field ${name} cannot be removed: the ${resource} table needs it` });
-    if (JSON.stringify(r.primaryKey ?? null) !== JSON.stringify(b.primaryKey ?? null)) {
+    if (canonical(r.primaryKey ?? null) !== canonical(b.primaryKey ?? null)) {
       problems.push({
         field: `${where}.primaryKey`,
         message: `the primary key of ${resource} is ${JSON.stringify(b.primaryKey)} and cannot change`,
       });
     }
-    if (JSON.stringify(r.foreignKeys ?? null) !== JSON.stringify(b.foreignKeys ?? null)) {
+    if (canonical(r.foreignKeys ?? null) !== canonical(b.foreignKeys ?? null)) {
       problems.push({ field: `${where}.foreignKeys`, message: `the foreign keys of ${resource} cannot change` });
     }
   }
