@@ -5,7 +5,7 @@ import { line, paragraph } from "./safe-text";
 import { datasetSummary, versionState } from "./dataset";
 import { crops } from "./filters";
 import { problemLocation } from "./problem";
-import { resourceName, tableSchemaDescriptor } from "./table-schema";
+import { resourceName, tableSchemaDescriptor, tableSchemaField } from "./table-schema";
 
 /** Contracts of the curation side: datasets, draft versions, uploads and their reports, review, diffs. */
 
@@ -187,7 +187,31 @@ export const versionDetail = z
   .meta({ id: "CurationVersionDetail" });
 export type VersionDetail = z.infer<typeof versionDetail>;
 
-export const tableSchemaUpdate = tableSchemaDescriptor;
+/** A renamed field of the curator's own: its values in the draft follow it to the new name. */
+const fieldRename = z
+  .object({ resource: resourceName, from: line().min(1).max(64), to: line().min(1).max(64) })
+  .strict()
+  .meta({ id: "FieldRename" });
+export type FieldRename = z.infer<typeof fieldRename>;
+
+export const tableSchemaUpdate = tableSchemaDescriptor
+  .extend({
+    renames: z
+      .array(fieldRename)
+      .max(200)
+      .optional()
+      .describe("Fields of the curator's own renamed in this edit: the values stored under `from` move to `to`"),
+  })
+  .meta({ id: "VersionTableSchemasUpdate" });
+export type TableSchemaUpdate = z.infer<typeof tableSchemaUpdate>;
+
+/** A field of the curator's own added to one resource's dictionary. */
+export const fieldAddBody = z.object({ resource: resourceName, field: tableSchemaField }).strict().meta({ id: "FieldAdd" });
+/** A field's new name and/or new definition. */
+export const fieldChangeBody = z
+  .object({ name: line().min(1).max(64).optional(), field: tableSchemaField.partial().optional() })
+  .strict()
+  .meta({ id: "FieldChange" });
 
 export const versionPatch = z
   .object({
@@ -287,23 +311,82 @@ export const uploadResult = z
   .meta({ id: "UploadResult" });
 export type UploadResult = z.infer<typeof uploadResult>;
 
+/** The RFC 9457 members of every refused upload (422). */
+const rejectionHead = {
+  type: z.string(),
+  title: z.string(),
+  status: z.literal(422),
+  detail: z.string(),
+  instance: z.string(),
+};
+
 /**
  * A rejected upload (422, application/problem+json): `errors` lists the located problems (file, row, column, value),
  * the counts are `errorCount` and `warningCount`, and the rest is the upload result. Nothing was stored.
  */
 export const uploadRejection = z
   .object({
-    type: z.string(),
-    title: z.string(),
-    status: z.literal(422),
-    detail: z.string(),
-    instance: z.string(),
+    ...rejectionHead,
     errors: z.array(problemLocation).describe("The errors among the first 200 problems, located by file, row, column and value"),
     errorCount: z.number().int(),
     warningCount: z.number().int(),
     ...uploadResult.omit({ errors: true, warnings: true }).shape,
   })
   .meta({ id: "UploadRejection" });
+
+/** One sheet of a workbook upload: its upload result, and whether it was stored. */
+export const workbookSheetResult = uploadResult
+  .extend({
+    sheet: z.string().describe("The sheet's name as the workbook spells it"),
+    status: z
+      .enum(["stored", "not stored", "rejected"])
+      .describe(
+        "stored; not stored: valid, but another sheet has errors and a workbook is stored whole or not at all; rejected: has errors",
+      ),
+  })
+  .meta({ id: "WorkbookSheetResult" });
+export type WorkbookSheetResult = z.infer<typeof workbookSheetResult>;
+
+export const workbookUploadResult = z
+  .object({
+    accepted: z.boolean(),
+    filename: z.string(),
+    sha256: z.string(),
+    byteSize: z.number().int(),
+    errors: z.number().int(),
+    warnings: z.number().int(),
+    sheets: z
+      .array(workbookSheetResult)
+      .describe("The sheets checked, in the order they were checked (resources before those that refer to them)"),
+    notChecked: z
+      .array(z.object({ sheet: z.string(), resource: resourceName }))
+      .describe("Sheets after a rejected one: not checked, since their references would point at rows not stored"),
+  })
+  .meta({ id: "WorkbookUploadResult" });
+export type WorkbookUploadResult = z.infer<typeof workbookUploadResult>;
+
+/** A rejected workbook (422): the located errors of the rejected sheet, the counts, and the workbook result. */
+export const workbookRejection = z
+  .object({
+    ...rejectionHead,
+    errors: z
+      .array(problemLocation)
+      .describe("The errors of the rejected sheet, located by file (workbook and sheet), row, column and value"),
+    errorCount: z.number().int(),
+    warningCount: z.number().int(),
+    ...workbookUploadResult.omit({ errors: true, warnings: true }).shape,
+  })
+  .meta({ id: "WorkbookRejection" });
+
+/** A workbook whose sheets are named after no resource (422): the sheets found and the names expected. */
+export const sheetNamesRejection = z
+  .object({
+    ...rejectionHead,
+    errors: z.array(problemLocation),
+    sheetsFound: z.array(z.string()),
+    sheetsExpected: z.array(resourceName),
+  })
+  .meta({ id: "SheetNamesRejection" });
 
 export const submitBody = z
   .object({ changelog: paragraph().trim().min(3).max(20_000) })

@@ -6,6 +6,7 @@ import {
   doublePrecision,
   index,
   integer,
+  jsonb,
   pgTable,
   real,
   smallint,
@@ -268,4 +269,22 @@ export const responses = pgTable(
     index("responses_nutrients_gin").using("gin", t.nutrients),
     index("responses_placements_gin").using("gin", t.placements),
   ],
+);
+
+/**
+ * Values of the fields a curator added to a version's data dictionary (fields Plotbank has no column for): one row
+ * per resource row, keyed by that resource's primary-key values joined with U+001F, field name → typed value.
+ */
+export const customValues = pgTable(
+  "custom_values",
+  {
+    id: bigint("id", { mode: "number" }).primaryKey().generatedAlwaysAsIdentity(),
+    versionId: uuid("version_id")
+      .notNull()
+      .references(() => versions.id, { onDelete: "cascade" }),
+    resource: text("resource").notNull(),
+    rowKey: text("row_key").notNull(),
+    values: jsonb("values").$type<Record<string, string | number | boolean | null>>().notNull(),
+  },
+  (t) => [uniqueIndex("custom_values_row_uq").on(t.versionId, t.resource, t.rowKey)],
 );

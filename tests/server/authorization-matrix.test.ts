@@ -11,6 +11,7 @@
  * middleware mounted at its own path under /api (listed as "USE /path", exercised with GET) all need a decision.
  */
 import { and, eq, inArray } from "drizzle-orm";
+import ExcelJS from "exceljs";
 import express, { type Express } from "express";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -36,6 +37,14 @@ import { issueEmailToken } from "@/server/services/accounts/email-tokens";
 import { sitesCsv } from "@/tests/server/curation-fixtures";
 import { makeUser, testApp, testPassword, type TestApp } from "@/tests/support/test-app";
 import { binary, unzip } from "@/tests/support/zip";
+
+/** A workbook with one sheet, the sites of the CSV fixture. */
+const sitesWorkbook = await (async () => {
+  const workbook = new ExcelJS.Workbook();
+  const sheet = workbook.addWorksheet("sites");
+  for (const line of sitesCsv.trim().split("\n")) sheet.addRow(line.split(","));
+  return Buffer.from(await workbook.xlsx.writeBuffer());
+})();
 
 const actors = [
   "anonymous",
@@ -91,7 +100,7 @@ interface Row {
   /** Extra request headers (a CORS preflight's Origin and Access-Control-Request-Method). */
   headers?: Record<string, string>;
   /** A multipart file to attach instead of a JSON body. */
-  file?: { field: string; name: string; content: string };
+  file?: { field: string; name: string; content: string | Buffer };
   /** Checks beyond the status; returns what is wrong, or null. */
   check?: (res: request.Response, text: string, c: Cell) => string | null;
   params?: (c: Cell) => Promise<Record<string, string>> | Record<string, string>;
@@ -428,6 +437,31 @@ const table: Record<string, Row> = {
     params: (c) => ({ id: c.fx.draftId, resource: "sites" }),
     file: { field: "file", name: "sites.csv", content: sitesCsv },
   },
+  "POST /api/v1/curation/versions/:id/workbook-uploads": {
+    expect: ownerWrite(201, "hidden"),
+    params: (c) => ({ id: c.fx.draftId }),
+    file: { field: "file", name: "trials.xlsx", content: sitesWorkbook },
+  },
+  "POST /api/v1/curation/versions/:id/table-schema/fields": {
+    expect: ownerWrite(200, "hidden"),
+    params: (c) => ({ id: c.fx.draftId }),
+    body: () => ({ resource: "sites", field: { name: "seed_lot", type: "string", description: "Seed lot of the site's variety." } }),
+  },
+  "PATCH /api/v1/curation/versions/:id/table-schema/fields/:resource/:name": {
+    expect: ownerWrite(200, "hidden"),
+    params: (c) => ({ id: c.fx.draftId, resource: "sites", name: "soil_series" }),
+    body: () => ({ field: { description: "Soil series as the county survey maps it." } }),
+  },
+  "DELETE /api/v1/curation/versions/:id/table-schema/fields/:resource/:name": {
+    expect: ownerWrite(200, "hidden"),
+    params: (c) => ({ id: c.fx.draftId, resource: "sites", name: "soil_series" }),
+  },
+  "GET /api/v1/curation/versions/:id/templates/:resource.csv": {
+    expect: draftView(200, 401),
+    params: (c) => ({ id: c.fx.draftId, resource: "plots" }),
+  },
+  "GET /api/v1/curation/versions/:id/templates/workbook.xlsx": { expect: draftView(200, 401), params: (c) => ({ id: c.fx.draftId }) },
+  "GET /api/v1/curation/versions/:id/templates/README.txt": { expect: draftView(200, 401), params: (c) => ({ id: c.fx.draftId }) },
 };
 
 type TokenActor = "readToken" | "writeToken" | "revokedToken" | "expiredToken";
@@ -696,7 +730,12 @@ describe("authorization matrix", () => {
         if (row.query) req = req.query(row.query(cell));
         if (actor.endsWith("Token")) req = req.set("Authorization", `Bearer ${world.tokens[actor as TokenActor]}`);
         else if (user) req = req.set("Cookie", `${sessionCookieName}=${(await createSession(t.ctx.db, user.id)).secret}`);
-        if (row.file) req = req.attach(row.file.field, Buffer.from(row.file.content, "utf8"), row.file.name);
+        if (row.file)
+          req = req.attach(
+            row.file.field,
+            Buffer.isBuffer(row.file.content) ? row.file.content : Buffer.from(row.file.content, "utf8"),
+            row.file.name,
+          );
         else if (body !== undefined) req = req.send(body as object);
         const res = await req;
         const text = bodyText(res);

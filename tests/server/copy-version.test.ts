@@ -67,11 +67,16 @@ beforeAll(async () => {
     "site_year,analyte,value,unit,extractant,depth_in,class,interpretation\nTB-01-2021,K,110,ppm,ammonium-acetate,6,low,tallgrass-illustrative\nTB-01-2021,S,6,ppm,calcium-phosphate,6,low,tallgrass-illustrative\n",
   ).expect(201);
   // A site-year published as means (summary_means), with the variety columns filled.
+  // A field of the curator's own, so custom_values has rows to copy.
+  await f.curatorAgent
+    .post(`/api/v1/curation/versions/${f.versionId}/table-schema/fields`)
+    .send({ resource: "sites", field: { name: "drainage", type: "string" } })
+    .expect(200);
   await upload(
     f.curatorAgent,
     f.versionId,
     "sites",
-    "site,location,soil_series,soil_texture\nTB-05,Osage Bend County,Marrow,clay loam\n",
+    "site,location,soil_series,soil_texture,drainage\nTB-05,Osage Bend County,Marrow,clay loam,tiled\n",
   ).expect(201);
   await upload(
     f.curatorAgent,

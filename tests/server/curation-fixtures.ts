@@ -1,3 +1,4 @@
+import ExcelJS from "exceljs";
 import type { Express } from "express";
 import type request from "supertest";
 import { expect } from "vitest";
@@ -9,11 +10,11 @@ export type Agent = ReturnType<typeof request.agent>;
 
 export const sitesCsv =
   "site,location,soil_series,soil_texture\nTB-01,Wren County,Harlan,silt loam\nTB-02,Osage Bend County,Marrow,clay loam\n";
-const siteYearsCsv =
+export const siteYearsCsv =
   "site_year,site,crop,year,design,blocks,tillage,previous_crop,planting_date,row_spacing_in\n" +
   "TB-01-2021,TB-01,soybean,2021,RCBD,4,no-till,corn,2021-05-12,30\n" +
   "TB-02-2021,TB-02,soybean,2021,RCBD,4,conventional,corn,2021-05-20,30\n";
-const soilTestsCsv =
+export const soilTestsCsv =
   "site_year,analyte,value,unit,extractant,depth_in,class,interpretation\n" +
   "TB-01-2021,P,7,ppm,Bray-P1,6,low,tallgrass-illustrative\n" +
   "TB-02-2021,P,24,ppm,Bray-P1,6,very_high,tallgrass-illustrative\n";
@@ -72,12 +73,8 @@ export function upload(
 
 let counter = 0;
 
-/** A curator's dataset with a first draft holding the two-site-year starter trial above. */
-export async function draftWithData(
-  app: Express,
-  ctx: AppContext,
-  opts: { plots?: string | false; treatments?: string } = {},
-): Promise<Fixture> {
+/** A curator's dataset with a first, empty draft. */
+export async function emptyDraft(app: Express, ctx: AppContext): Promise<Fixture> {
   const curator = await makeUser(ctx, "curator");
   const reviewer = await makeUser(ctx, "reviewer");
   const curatorAgent = await signedInAgent(app, curator.email);
@@ -88,7 +85,17 @@ export async function draftWithData(
     .send({ slug, title: "Starter placement test", crops: ["soybean"], region: "Tallgrass Basin", description: "Test dataset." })
     .expect(201);
   const v = await curatorAgent.post(`/api/v1/datasets/${slug}/versions`).send({}).expect(201);
-  const versionId = v.body.id as string;
+  return { curator, curatorAgent, reviewer, reviewerAgent, slug, versionId: v.body.id as string };
+}
+
+/** A curator's dataset with a first draft holding the two-site-year starter trial above. */
+export async function draftWithData(
+  app: Express,
+  ctx: AppContext,
+  opts: { plots?: string | false; treatments?: string } = {},
+): Promise<Fixture> {
+  const fixture = await emptyDraft(app, ctx);
+  const { curatorAgent, versionId } = fixture;
   for (const [resource, csv] of [
     ["sites", sitesCsv],
     ["site_years", siteYearsCsv],
@@ -102,7 +109,47 @@ export async function draftWithData(
     const res = await upload(curatorAgent, versionId, "plots", opts.plots ?? plotsCsv());
     expect(res.status, JSON.stringify(res.body).slice(0, 2000)).toBe(201);
   }
-  return { curator, curatorAgent, reviewer, reviewerAgent, slug, versionId };
+  return fixture;
+}
+
+export type WorkbookCell = string | number | boolean | Date | null | { formula: string; result: string | number };
+
+/** A workbook with the given sheets, written by ExcelJS as a spreadsheet program would save it. */
+export async function workbookOf(sheets: Record<string, WorkbookCell[][]>): Promise<Buffer> {
+  const workbook = new ExcelJS.Workbook();
+  for (const [name, rows] of Object.entries(sheets)) {
+    const sheet = workbook.addWorksheet(name);
+    for (const row of rows) sheet.addRow(row);
+  }
+  return Buffer.from(await workbook.xlsx.writeBuffer());
+}
+
+/** CSV fixture text as sheet rows: numbers as numbers, ISO dates as date cells, true/false as booleans. */
+export function sheetRows(csv: string): WorkbookCell[][] {
+  return csv
+    .trim()
+    .split("\n")
+    .map((line, i) =>
+      line.split(",").map((cell) => {
+        if (i === 0 || cell === "") return cell === "" ? null : cell;
+        if (/^-?\d+(\.\d+)?$/.test(cell)) return Number(cell);
+        if (/^\d{4}-\d{2}-\d{2}$/.test(cell)) return new Date(`${cell}T00:00:00Z`);
+        if (cell === "true" || cell === "false") return cell === "true";
+        return cell;
+      }),
+    );
+}
+
+export function uploadWorkbook(
+  agent: Agent,
+  versionId: string,
+  workbook: Buffer,
+  fields: Record<string, string> = {},
+  filename = "trials.xlsx",
+) {
+  let req = agent.post(`/api/v1/curation/versions/${versionId}/workbook-uploads`);
+  for (const [k, v] of Object.entries(fields)) req = req.field(k, v);
+  return req.attach("file", workbook, filename);
 }
 
 export { versionFingerprint } from "@/tests/support/version-fingerprint";

@@ -2,7 +2,18 @@ import { createHash } from "node:crypto";
 import { sql } from "drizzle-orm";
 import type { AppContext } from "@/server/context";
 
-const versionTables = ["sites", "site_years", "soil_tests", "treatments", "applications", "plots", "summary_means", "responses", "uploads"];
+const versionTables = [
+  "sites",
+  "site_years",
+  "soil_tests",
+  "treatments",
+  "applications",
+  "plots",
+  "summary_means",
+  "responses",
+  "uploads",
+  "custom_values",
+];
 
 /** A fingerprint of everything a version holds: its own row and every row of its tables, ids included. */
 export async function versionFingerprint(ctx: AppContext, versionId: string): Promise<string> {

@@ -1,9 +1,11 @@
 import { Router } from "express";
 import type { AppContext } from "@/server/context";
 import { curationDatasetRoutes } from "./datasets";
+import { curationDictionaryRoutes } from "./dictionary-fields";
 import { curationExportRoutes } from "./exports";
-import { curationSiteYearAnovaRoutes } from "./site-year-anova";
 import { curationReviewRoutes } from "./review";
+import { curationSiteYearAnovaRoutes } from "./site-year-anova";
+import { curationTemplateRoutes } from "./templates";
 import { curationUploadRoutes } from "./uploads";
 import { curationVersionRoutes } from "./versions";
 
@@ -13,7 +15,9 @@ export function curationRoutes(ctx: AppContext): Router {
   router.use(curationDatasetRoutes(ctx));
   router.use(curationVersionRoutes(ctx));
   router.use(curationReviewRoutes(ctx));
+  router.use(curationDictionaryRoutes(ctx));
   router.use(curationUploadRoutes(ctx));
+  router.use(curationTemplateRoutes(ctx));
   router.use(curationExportRoutes(ctx));
   router.use(curationSiteYearAnovaRoutes(ctx));
   return router;

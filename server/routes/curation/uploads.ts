@@ -2,7 +2,16 @@ import busboy from "busboy";
 import type { Request, Router } from "express";
 import type { Readable } from "node:stream";
 import { z } from "zod";
-import { uploadOptions, uploadRejection, uploadResult, type UploadOptions } from "@/schemas/curation";
+import {
+  uploadOptions,
+  uploadRejection,
+  uploadResult,
+  sheetNamesRejection,
+  workbookRejection,
+  workbookUploadResult,
+  type UploadOptions,
+  type ValidationProblem,
+} from "@/schemas/curation";
 import { hasControlCharacter, line } from "@/schemas/safe-text";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
@@ -13,6 +22,7 @@ import { problemResponses } from "@/server/openapi/registry";
 import { assertCanEdit, versionById } from "@/server/services/curation/access";
 import { tooLarge } from "@/server/services/ingest/csv-stream";
 import { ingestUpload } from "@/server/services/ingest/ingest-upload";
+import { ingestWorkbook } from "@/server/services/ingest/ingest-workbook";
 import { json } from "./docs";
 
 const params = z.object({ id: z.uuid(), resource: resourceName });
@@ -58,6 +68,7 @@ const cutOff = () =>
 function multipartFile(
   req: Request,
   limitBytes: number,
+  defaultName = "upload.csv",
 ): Promise<{ stream: Readable; filename: string; fields: Record<string, string>; failed: () => boolean }> {
   return new Promise((resolve, reject) => {
     const fields: Record<string, string> = {};
@@ -84,7 +95,7 @@ function multipartFile(
       stream.on("error", () => {
         broken = true;
       });
-      const filename = info.filename || "upload.csv";
+      const filename = info.filename || defaultName;
       if (hasControlCharacter(filename)) {
         stream.resume();
         reject(
@@ -113,6 +124,65 @@ function multipartFile(
     req.pipe(bb);
   });
 }
+
+/** An upload request's file and options: a multipart part, or the body itself when its type is one of `bodyTypes`. */
+async function uploadRequest(
+  req: Request,
+  query: { mapping?: string; units?: string; mode?: string; filename?: string },
+  limitBytes: number,
+  how: { defaultName: string; bodyTypes: string[]; refusal: string; mapping: boolean },
+): Promise<{ source: Readable; filename: string; options: UploadOptions; partFailed: () => boolean }> {
+  const declared = Number(req.headers["content-length"] ?? 0);
+  const multipart = req.is("multipart/form-data");
+  // Multipart framing adds a few hundred bytes; anything far beyond the limit is refused before reading it.
+  if (declared > limitBytes + (multipart ? 64 * 1024 : 0)) {
+    req.resume();
+    throw tooLarge(limitBytes);
+  }
+  if (!multipart) {
+    if (!req.is(how.bodyTypes)) {
+      req.resume();
+      throw new HttpProblem(415, "Unsupported media type", how.refusal);
+    }
+    return { source: req, filename: query.filename ?? how.defaultName, options: parseOptions(query, "query"), partFailed: () => false };
+  }
+  const part = await multipartFile(req, limitBytes, how.defaultName);
+  if (!how.mapping && part.fields.mapping) {
+    part.stream.resume();
+    throw new HttpProblem(400, "Bad request", "Column mappings are for CSV uploads; in a workbook, name each column after its field.", {
+      errors: [{ field: "body.mapping", message: "not accepted with a workbook" }],
+    });
+  }
+  return {
+    source: part.stream,
+    filename: part.filename,
+    options: parseOptions({ ...query, ...part.fields }, "body"),
+    partFailed: part.failed,
+  };
+}
+
+/** Runs the ingest; a failure drains the request, and a multipart body that broke off is named as such. */
+async function ingesting<T>(req: Request, upload: { source: Readable; partFailed: () => boolean }, run: () => Promise<T>): Promise<T> {
+  try {
+    return await run();
+  } catch (error) {
+    upload.source.resume();
+    req.resume();
+    throw upload.partFailed() ? cutOff() : error;
+  }
+}
+
+/** The located errors of a rejected file's problems, as the 422 lists them. */
+const locatedErrors = (problems: ValidationProblem[]) =>
+  problems
+    .filter((p) => p.severity === "error")
+    .map((p) => ({
+      file: p.file,
+      row: p.row ?? undefined,
+      column: p.column ?? undefined,
+      value: p.value ?? undefined,
+      message: p.message,
+    }));
 
 export function curationUploadRoutes(ctx: AppContext): Router {
   const { db, registry, config } = ctx;
@@ -160,52 +230,22 @@ export function curationUploadRoutes(ctx: AppContext): Router {
       const user = currentUser(req);
       const { dataset } = await versionById(db, id);
       await assertCanEdit(db, user, dataset);
-      const declared = Number(req.headers["content-length"] ?? 0);
-      const multipart = req.is("multipart/form-data");
-      // Multipart framing adds a few hundred bytes; anything far beyond the limit is refused before reading it.
-      if (declared > config.uploadLimitBytes + (multipart ? 64 * 1024 : 0)) {
-        req.resume();
-        throw tooLarge(config.uploadLimitBytes);
-      }
-      let source: Readable = req;
-      let filename = query.filename ?? `${resource}.csv`;
-      let options: UploadOptions;
-      let partFailed = () => false;
-      if (multipart) {
-        const part = await multipartFile(req, config.uploadLimitBytes);
-        source = part.stream;
-        partFailed = part.failed;
-        filename = part.filename;
-        options = parseOptions({ ...query, ...part.fields }, "body");
-      } else {
-        if (!req.is(["text/csv", "text/plain", "application/octet-stream"])) {
-          req.resume();
-          throw new HttpProblem(415, "Unsupported media type", "Send the CSV as multipart/form-data (field `file`) or as a text/csv body.");
-        }
-        options = parseOptions(query, "query");
-      }
-      let result;
-      try {
-        result = await ingestUpload(ctx, { versionId: id, resource, filename, source, options, userId: user.id });
-      } catch (error) {
-        source.resume();
-        req.resume();
-        throw partFailed() ? cutOff() : error;
-      }
+      const upload = await uploadRequest(req, query, config.uploadLimitBytes, {
+        defaultName: `${resource}.csv`,
+        bodyTypes: ["text/csv", "text/plain", "application/octet-stream"],
+        refusal: "Send the CSV as multipart/form-data (field `file`) or as a text/csv body.",
+        mapping: true,
+      });
+      const { filename } = upload;
+      const result = await ingesting(req, upload, () =>
+        ingestUpload(ctx, { versionId: id, resource, filename, source: upload.source, options: upload.options, userId: user.id }),
+      );
       if (result.accepted) {
         res.status(201).json(result);
         return;
       }
       const { errors, warnings, ...rest } = result;
-      const located = result.problems
-        .filter((p) => p.severity === "error")
-        .map((p) => ({
-          file: p.file,
-          row: p.row ?? undefined,
-          column: p.column ?? undefined,
-          value: p.value ?? undefined,
-          message: p.message,
-        }));
+      const located = locatedErrors(result.problems);
       throw new HttpProblem(
         422,
         "Unprocessable content",
@@ -216,6 +256,75 @@ export function curationUploadRoutes(ctx: AppContext): Router {
           warningCount: warnings,
           ...rest,
         },
+      );
+    },
+  );
+
+  const xlsxType = "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet";
+  defineRoute(
+    {
+      method: "post",
+      path: "/api/v1/curation/versions/{id}/workbook-uploads",
+      operationId: "uploadWorkbook",
+      tags: ["Curation"],
+      summary: "Upload an .xlsx workbook with one sheet per resource into a draft; every sheet is stored, or none",
+      description:
+        "Send multipart/form-data with a `file` part (fields `units`, `mode` before it), or the workbook itself as " +
+        `${xlsxType} with the options as query parameters. Each sheet is named after its resource (sites, site_years, soil_tests, ` +
+        "treatments, plots, summaries; any case; a README sheet is skipped) and is checked exactly as that resource's CSV, in the " +
+        "order resources refer to each other. Formula cells are read as their last calculated values and reported as warnings; date " +
+        "cells, and whole numbers in date fields (spreadsheet date serials), are read as YYYY-MM-DD. Rows are numbered as in CSV: a " +
+        "data row's number is its spreadsheet line minus the header's line. A sheet with errors rejects the whole workbook (422): " +
+        "nothing is stored, and the sheets after it are not checked. A file that is not an .xlsx workbook, is encrypted or is empty is " +
+        "a 400; sheets named after no resource are a 422 naming the sheets found and the names expected. Column mappings are for " +
+        "CSV uploads only: name the columns after the data dictionary's fields.",
+      guards: [requireWriteScope],
+      params: z.object({ id: z.uuid() }),
+      query: optionQuery.omit({ mapping: true }),
+      body: {
+        stream: {
+          [xlsxType]: { schema: z.string() },
+          "multipart/form-data": {
+            schema: z.object({ units: z.string().optional(), mode: z.string().optional(), file: z.string() }),
+          },
+        },
+      },
+      responses: {
+        201: json(workbookUploadResult, "Every sheet accepted and stored; responses recomputed"),
+        422: {
+          description:
+            "Rejected: problem+json with `errors` (the rejected sheet's located problems; `file` names the workbook and sheet) and the per-sheet results, or the sheet names found and expected",
+          content: { "application/problem+json": { schema: z.union([workbookRejection, sheetNamesRejection]) } },
+        },
+        ...problemResponses(400, 401, 403, 404, 409, 413),
+      },
+    },
+    async ({ params: { id }, query }, req, res) => {
+      const user = currentUser(req);
+      const { dataset } = await versionById(db, id);
+      await assertCanEdit(db, user, dataset);
+      const upload = await uploadRequest(req, query, config.uploadLimitBytes, {
+        defaultName: "workbook.xlsx",
+        bodyTypes: [xlsxType, "application/octet-stream"],
+        refusal: `Send the workbook as multipart/form-data (field \`file\`) or as a ${xlsxType} body.`,
+        mapping: false,
+      });
+      const { filename } = upload;
+      const result = await ingesting(req, upload, () =>
+        ingestWorkbook(ctx, { versionId: id, filename, source: upload.source, options: upload.options, userId: user.id }),
+      );
+      if (result.accepted) {
+        res.status(201).json(result);
+        return;
+      }
+      const { errors, warnings, ...rest } = result;
+      const rejected = result.sheets.find((s) => s.status === "rejected");
+      const located = locatedErrors(rejected?.problems ?? []);
+      throw new HttpProblem(
+        422,
+        "Unprocessable content",
+        `${filename}: sheet ${rejected?.sheet ?? "?"} has ${errors} error(s); nothing in the workbook was stored. See report ${rejected?.reportId ?? "?"}.`,
+        { errors: located, errorCount: errors, warningCount: warnings, ...rest },
       );
     },
   );

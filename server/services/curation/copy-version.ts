@@ -1,14 +1,24 @@
 import { getTableColumns, getTableName, sql, type SQL } from "drizzle-orm";
 import { getTableConfig, type PgTable } from "drizzle-orm/pg-core";
 import { writableKeys } from "@/db/columns";
-import { applications, plots, responses, sites, siteYears, soilTests, summaryMeans, treatments, versions } from "@/db/schema";
+import { applications, customValues, plots, responses, sites, siteYears, soilTests, summaryMeans, treatments, versions } from "@/db/schema";
 import type { Tx } from "@/server/services/ingest/write-rows";
 
 /**
  * The tables holding a version's trial rows, each after the tables it refers to (the order a copy writes them in).
  * A version's uploads and validation reports are its own history and are not copied.
  */
-export const versionRowTables: readonly PgTable[] = [sites, siteYears, soilTests, treatments, applications, plots, summaryMeans, responses];
+export const versionRowTables: readonly PgTable[] = [
+  sites,
+  siteYears,
+  soilTests,
+  treatments,
+  applications,
+  plots,
+  summaryMeans,
+  responses,
+  customValues,
+];
 
 /** A column that points at another version-scoped row: the copy points it at the row with the same code in the new version. */
 interface Reference {

@@ -5,7 +5,7 @@ import type { VersionDiffRows } from "@/schemas/review";
 import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
 import { badRequest } from "@/server/errors";
 import { versionById } from "./access";
-import { fieldsOf, firstAlias, resourceOrder, resourceQueries } from "./resource-csv";
+import { columnSql, fieldsOf, firstAlias, resourceOrder, resourceQueries } from "./resource-csv";
 
 const keyOf: Record<ResourceName, string> = {
   sites: "s.code",
@@ -22,7 +22,7 @@ const rowsOf = <T>(r: unknown) => (r as { rows: T[] }).rows;
 
 function sides(resource: ResourceName, fields: string[], from: string, to: string) {
   const q = resourceQueries[resource];
-  const json = `jsonb_build_object(${fields.map((f) => `'${f}', (${q.columns[f]})::text`).join(", ")})`;
+  const json = `jsonb_build_object(${fields.map((f) => `'${f}', (${columnSql(resource, f)})::text`).join(", ")})`;
   const side = (v: string) =>
     `SELECT ${keyOf[resource]} AS k, ${json} AS j FROM ${q.from} WHERE ${firstAlias[resource]}.version_id = ${uuid(v)}`;
   return `WITH a AS (${side(from)}), b AS (${side(to)})`;

@@ -3,6 +3,7 @@ import { sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
 import { CsvWriter } from "@/server/csv";
+import { customColumnSql, customFieldName } from "@/server/services/ingest/custom-fields";
 import type { Tx } from "@/server/services/ingest/write-rows";
 
 /** Resources in the fixed order of exports and of the version checksum. */
@@ -116,10 +117,16 @@ export const firstAlias: Record<ResourceName, string> = {
   summaries: "m",
 };
 
-/** The fields of a resource in the version's data dictionary order. */
+/** The fields of a resource in the version's data dictionary order: stored columns and the curator's own fields. */
 export function fieldsOf(schema: TableSchemaDescriptor, resource: ResourceName): string[] {
-  return (schema.resources[resource]?.fields ?? []).map((f) => f.name).filter((f) => f in resourceQueries[resource].columns);
+  return (schema.resources[resource]?.fields ?? [])
+    .map((f) => f.name)
+    .filter((f) => f in resourceQueries[resource].columns || customFieldName.test(f));
 }
+
+/** A field's SQL over the resource's FROM clause: its column, or its value among the custom values. */
+export const columnSql = (resource: ResourceName, field: string): string =>
+  resourceQueries[resource].columns[field] ?? customColumnSql(resource, field);
 
 const PAGE = 100_000;
 
@@ -134,7 +141,7 @@ async function* resourcePages(
   resource: ResourceName,
 ): AsyncGenerator<(string | null)[][]> {
   const q = resourceQueries[resource];
-  const select = fields.map((f, i) => `(${q.columns[f]})::text AS c${i}`).join(", ");
+  const select = fields.map((f, i) => `(${columnSql(resource, f)})::text AS c${i}`).join(", ");
   for (let offset = 0; ; offset += PAGE) {
     const result = await db.execute(
       sql.raw(

@@ -2,7 +2,23 @@ import { defaultTableSchema } from "@/datasets/default-table-schema";
 import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
 import type { ProblemLocation } from "@/server/errors";
 import { builtInSchemeNames } from "@/server/services/soil-test-schemes";
+import type { FieldRename } from "@/schemas/curation";
+import { customFieldName, isStoredField } from "@/server/services/ingest/custom-fields";
 import { resourceOrder, resourceQueries } from "./resource-csv";
+
+/**
+ * JSON with object keys sorted: a dictionary read back from a jsonb column has its keys in jsonb's order (shorter
+ * keys first), so the same keys must compare equal whatever order they arrive in.
+ */
+function canonical(value: unknown): string {
+  if (Array.isArray(value)) return `[${value.map(canonical).join(",")}]`;
+  if (value && typeof value === "object")
+    return `{${Object.keys(value)
+      .sort()
+      .map((k) => `${JSON.stringify(k)}:${canonical((value as Record<string, unknown>)[k])}`)
+      .join(",")}}`;
+  return JSON.stringify(value ?? null);
+}
 
 /** Fields the tables cannot do without: keys, references and NOT NULL columns. */
 const essential: Record<ResourceName, string[]> = {
@@ -16,8 +32,8 @@ const essential: Record<ResourceName, string[]> = {
 
 /**
  * What a curator may change in a draft's data dictionary: titles, descriptions, units shown, constraints, categories
- * and missing-value codes; optional fields may be dropped (and added back). Types, keys and the fields the tables
- * need stay as they are, because the stored columns do.
+ * and missing-value codes; optional fields may be dropped (and added back), and fields of the curator's own added,
+ * renamed and removed. Types, keys and the fields the tables need stay as they are, because the stored columns do.
  */
 export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocation[] {
   const base = defaultTableSchema();
@@ -36,10 +52,12 @@ export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocati
       if (names.has(f.name)) problems.push({ field: `${where}.fields.${i}.name`, message: `field ${f.name} appears twice` });
       names.add(f.name);
       if (!(f.name in resourceQueries[resource].columns)) {
-        problems.push({
-          field: `${where}.fields.${i}.name`,
-          message: `field ${f.name} is not one Plotbank stores for ${resource}; known fields: ${Object.keys(resourceQueries[resource].columns).join(", ")}`,
-        });
+        // A field of the curator's own: its values are kept beside the row (custom_values), under a plain name.
+        if (!customFieldName.test(f.name))
+          problems.push({
+            field: `${where}.fields.${i}.name`,
+            message: `field name "${f.name}" must start with a lower-case letter and hold only letters, digits and underscores (for example seed_lot)`,
+          });
       } else if (baseTypes.get(f.name) !== f.type) {
         problems.push({
           field: `${where}.fields.${i}.type`,
@@ -61,13 +79,13 @@ export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocati
     for (const name of essential[resource])
       if (!names.has(name))
         problems.push({ field: `${where}.fields`, message: `field ${name} cannot be removed: the ${resource} table needs it` });
-    if (JSON.stringify(r.primaryKey ?? null) !== JSON.stringify(b.primaryKey ?? null)) {
+    if (canonical(r.primaryKey ?? null) !== canonical(b.primaryKey ?? null)) {
       problems.push({
         field: `${where}.primaryKey`,
         message: `the primary key of ${resource} is ${JSON.stringify(b.primaryKey)} and cannot change`,
       });
     }
-    if (JSON.stringify(r.foreignKeys ?? null) !== JSON.stringify(b.foreignKeys ?? null)) {
+    if (canonical(r.foreignKeys ?? null) !== canonical(b.foreignKeys ?? null)) {
       problems.push({ field: `${where}.foreignKeys`, message: `the foreign keys of ${resource} cannot change` });
     }
   }
@@ -93,6 +111,37 @@ function checkSoilTestSchemes(next: TableSchemaDescriptor): ProblemLocation[] {
         message: `scheme "${scheme.name}" for ${scheme.analyte}${scheme.extractant ? ` by ${scheme.extractant}` : ""} appears twice`,
       });
     seen.add(key);
+  });
+  return problems;
+}
+
+/**
+ * Renames in a dictionary edit: each names a field of the curator's own that the draft had and the edit no longer
+ * has, and a new name the edit has. Plotbank's own fields keep their names, which the API and the analyses read.
+ */
+export function checkRenames(
+  before: TableSchemaDescriptor,
+  next: TableSchemaDescriptor,
+  renames: readonly FieldRename[],
+): ProblemLocation[] {
+  const problems: ProblemLocation[] = [];
+  const names = (d: TableSchemaDescriptor, r: ResourceName) => new Set((d.resources[r]?.fields ?? []).map((f) => f.name));
+  renames.forEach((r, i) => {
+    const where = `body.renames.${i}`;
+    if (isStoredField(r.resource, r.from)) {
+      problems.push({
+        field: `${where}.from`,
+        message: `${r.from} is a field Plotbank stores and reads under this name; change its title or description instead`,
+      });
+    } else if (!names(before, r.resource).has(r.from)) {
+      problems.push({ field: `${where}.from`, message: `the ${r.resource} dictionary has no field ${r.from} to rename` });
+    } else if (names(next, r.resource).has(r.from)) {
+      problems.push({ field: `${where}.from`, message: `field ${r.from} is renamed but still in the ${r.resource} dictionary` });
+    }
+    if (!names(next, r.resource).has(r.to))
+      problems.push({ field: `${where}.to`, message: `the new name ${r.to} is not a field of the ${r.resource} dictionary` });
+    else if (isStoredField(r.resource, r.to) || names(before, r.resource).has(r.to))
+      problems.push({ field: `${where}.to`, message: `the ${r.resource} dictionary already has a field ${r.to}` });
   });
   return problems;
 }

@@ -2,11 +2,12 @@ import { and, count, desc, eq, inArray, ne } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { plots, responses, siteYears, sites, soilTests, summaryMeans, treatments, uploads, validationReports, versions } from "@/db/schema";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
-import type { VersionDetail } from "@/schemas/curation";
-import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
+import type { TableSchemaUpdate, VersionDetail } from "@/schemas/curation";
+import type { ResourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
 import { badRequest, conflict } from "@/server/errors";
 import { compareSemver } from "@/server/services/catalogue";
+import { customFieldsOf, dropCustomValues, renameCustomValues } from "@/server/services/ingest/custom-fields";
 import { computeResponses } from "@/server/services/ingest/recompute-responses";
 import { latestPublishedOf } from "@/server/services/latest-version";
 import {
@@ -25,7 +26,8 @@ import {
 import { copyVersionRows } from "./copy-version";
 import { iso } from "./datasets";
 import { bumpSemver, diffVersions } from "./diff";
-import { checkTableSchemaEdit } from "./table-schema-rules";
+import { checkRenames, checkTableSchemaEdit } from "./table-schema-rules";
+import { resourceOrder } from "./resource-csv";
 import { doiRegistrationOf } from "./version-doi";
 
 async function latestPublished(db: Db, datasetId: string): Promise<Version | null> {
@@ -241,12 +243,23 @@ export async function patchVersion(db: Db, user: User, versionId: string, patch:
   await recordContentEdit(db, versionId, user.id);
 }
 
-export async function putTableSchema(db: Db, user: User, versionId: string, schema: TableSchemaDescriptor) {
+export async function putTableSchema(db: Db, user: User, versionId: string, update: TableSchemaUpdate) {
   const { version, dataset } = await versionById(db, versionId);
   await assertCanEdit(db, user, dataset);
   await assertDraft(version);
-  const problems = checkTableSchemaEdit(schema);
+  const { renames = [], ...schema } = update;
+  const problems = [...checkTableSchemaEdit(schema), ...checkRenames(version.tableSchema, schema, renames)];
   if (problems.length) throw badRequest("The data dictionary cannot be changed so.", problems);
-  await db.update(versions).set({ tableSchema: schema, updatedAt: new Date() }).where(eq(versions.id, versionId));
+  await db.transaction(async (tx) => {
+    await tx.update(versions).set({ tableSchema: schema, updatedAt: new Date() }).where(eq(versions.id, versionId));
+    // Values of the curator's own fields follow a rename and leave with a removed field.
+    for (const r of renames) await renameCustomValues(tx, versionId, r.resource, r.from, r.to);
+    for (const resource of resourceOrder) {
+      const kept = new Set(customFieldsOf(resource, schema.resources[resource]));
+      const renamed = new Set(renames.filter((r) => r.resource === resource).map((r) => r.from));
+      for (const name of customFieldsOf(resource, version.tableSchema.resources[resource]))
+        if (!kept.has(name) && !renamed.has(name)) await dropCustomValues(tx, versionId, resource, name);
+    }
+  });
   await recordContentEdit(db, versionId, user.id);
 }
