@@ -220,6 +220,7 @@ const table: Record<string, Row> = {
   "GET /api/v1/observations": { expect: everyone(200) },
   "GET /api/v1/site-years": { expect: everyone(200) },
   "GET /api/v1/analyses/meta": { expect: everyone(200), query: (c) => ({ dataset: c.fx.slug }) },
+  "GET /api/v1/analyses/seed-safety": { expect: everyone(200), query: (c) => ({ dataset: c.fx.slug }) },
 
   // Session: anyone may try to sign in or out; "who am I" answers everyone, and names only the caller (a visitor: no one).
   "POST /api/v1/session": {

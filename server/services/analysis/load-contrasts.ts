@@ -6,6 +6,8 @@ import type { TrialFilters } from "@/schemas/filters";
 import { conflict } from "@/server/errors";
 import { resolveVersions, responseConditions, type ResolvedVersion } from "@/server/services/trial-filter";
 import { treatmentLabels } from "./treatment-labels";
+import { defaultMeasure } from "@/constants/measures";
+import { resolveMeasure } from "@/server/services/measures";
 
 type Response = typeof responses.$inferSelect;
 
@@ -179,14 +181,14 @@ function compareText(a: string, b: string): number {
   return a < b ? -1 : a > b ? 1 : 0;
 }
 
-export async function loadContrasts(db: Db, filters: TrialFilters, groupBy: Grouping | null = null) {
+/** The filtered responses of one measure (yield by default; an unknown measure is a 400) with the versions read. */
+export async function loadContrasts(db: Db, filters: TrialFilters, groupBy: Grouping | null = null, measureName: string = defaultMeasure) {
   const versions = await resolveVersions(db, filters);
-  const where = responseConditions(
-    filters,
-    versions.map((v) => v.versionId),
-  );
+  const versionIds = versions.map((v) => v.versionId);
+  const measure = await resolveMeasure(db, measureName, versionIds);
+  const where = responseConditions(filters, versionIds, measure.name);
   const rows = await selectEstimationRows(db, where, groupBy);
-  return { versions, rows, where };
+  return { versions, rows, where, measure };
 }
 
 export type { ResolvedVersion };

@@ -24,6 +24,7 @@ import {
   type StandardCrop,
 } from "@/stats";
 import { nutrientRuleInForce } from "@/server/services/tested-nutrients";
+import type { MeasureDefinition } from "@/constants/measures";
 import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
 import { byForestOrder, loadContrasts, withLabels, type Contrast, type EstimationContrast, type ResolvedVersion } from "./load-contrasts";
 import { buildUnits, ownTest, type AnalysisUnit } from "./site-year-effects";
@@ -47,9 +48,9 @@ function splitQuery(query: MetaQuery): { filters: TrialFilters; options: Omit<Me
  */
 export async function runMetaAnalysis(db: Db, query: MetaQuery): Promise<Result> {
   const { filters, options } = splitQuery(query);
-  const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null);
+  const { versions, rows, where, measure } = await loadContrasts(db, filters, options.groupBy ?? null, options.measure);
   const [result, included] = await Promise.all([
-    analyseContrasts(rows, versions, filters, options, (named) => withLabels(db, where, named)),
+    analyseContrasts(rows, versions, filters, options, measure, (named) => withLabels(db, where, named)),
     includedTreatments(db, where, versions),
   ]);
   return { ...result, cautions: evaluateCautions(included) };
@@ -63,11 +64,16 @@ async function analyseContrasts(
   versions: ResolvedVersion[],
   filters: TrialFilters,
   options: Omit<MetaQuery, keyof TrialFilters>,
+  measure: MeasureDefinition,
   labelsOf: LabelReader,
 ): Promise<Result> {
-  const { effect, method, ci, units } = options;
+  const { effect, method, ci } = options;
+  const isYield = measure.name === "yield";
+  // Only yield converts (bu/ac ↔ kg/ha); every other measure is pooled in its own unit.
+  const units = isYield ? options.units : null;
+  const measureUnit = units ?? measure.unit;
   const groupBy = options.groupBy ?? null;
-  const unitLabel = effect === "lnrr" ? "ln(treated/check)" : units;
+  const unitLabel = effect === "lnrr" ? "ln(treated/check)" : measureUnit;
   const versionOf = new Map(versions.map((v) => [v.versionId, v]));
   const slugOf = (row: EstimationContrast) => versionOf.get(row.versionId)?.datasetSlug ?? "";
 
@@ -76,7 +82,7 @@ async function analyseContrasts(
   const k = overall.units.length;
   const notes = [...sampleSizeNotes(k)];
   const crops = [...new Set(overall.units.map((u) => u.contrasts[0]!.crop))];
-  if (effect === "md" && units === "bu/ac" && crops.length > 1) {
+  if (isYield && effect === "md" && units === "bu/ac" && crops.length > 1) {
     notes.push(`Several crops (${crops.join(", ")}): each response is converted to bu/ac with its own crop's bushel weight, then pooled.`);
   }
   const combinedSiteYears = overall.units.filter((u) => u.contrasts.length > 1).length;
@@ -91,7 +97,7 @@ async function analyseContrasts(
       : null;
   if (fit) for (const n of fit.notes) if (!notes.includes(n) && !/^(Only|Two site-years)/.test(n)) notes.push(n);
 
-  const decision = decisionBlock(overall.units, fit, options, crops);
+  const decision = decisionBlock(overall.units, fit, options, crops, isYield);
   const subgroups = grouped && groupBy ? subgroupBlock(grouped.units, groupBy, options, decision) : null;
   const forestUnits = grouped ?? overall;
   const forestTau2 = (grouped ? subgroups?.tau2 : fit?.tau2) ?? 0;
@@ -154,6 +160,14 @@ async function analyseContrasts(
 
   return {
     k,
+    measure: {
+      name: measure.name,
+      title: measure.title,
+      unit: measureUnit,
+      better: measure.better,
+      rating: measure.rating,
+      scale: measure.scale ?? null,
+    },
     effect,
     units: unitLabel,
     rows: forestRows,
@@ -400,7 +414,13 @@ function subgroupBlock(
 function breakEvenScale(
   options: Omit<MetaQuery, keyof TrialFilters>,
   crops: string[],
+  isYield: boolean,
 ): { unitsPerBushel: number | null; note: string | null } {
+  if (!isYield)
+    return {
+      unitsPerBushel: null,
+      note: "A break-even and the chance it pays apply to yield only: ask for measure=yield to compare with the cost.",
+    };
   if (options.effect === "lnrr")
     return { unitsPerBushel: null, note: "A break-even yield needs a yield response: ask for effect=md to compare with the cost." };
   if (options.units === "kg/ha") {
@@ -421,6 +441,7 @@ function decisionBlock(
   fit: ReturnType<typeof metaAnalysis> | null,
   options: Omit<MetaQuery, keyof TrialFilters>,
   crops: string[],
+  isYield: boolean,
 ): Result["decision"] {
   const notes: string[] = [];
   const price = options.price ?? null;
@@ -429,9 +450,10 @@ function decisionBlock(
     (options.productCost !== undefined || options.applicationCost !== undefined
       ? (options.productCost ?? 0) + (options.applicationCost ?? 0)
       : null);
-  const scale = breakEvenScale(options, crops);
+  const scale = breakEvenScale(options, crops, isYield);
   let breakEven: number | null = null;
-  if (price !== null && cost !== null) {
+  if (!isYield) notes.push(scale.note!);
+  else if (price !== null && cost !== null) {
     if (scale.note) notes.push(scale.note);
     if (scale.unitsPerBushel !== null) breakEven = breakEvenResponse(cost, price) * scale.unitsPerBushel;
   } else {

@@ -115,9 +115,22 @@ const firstAlias: Record<ResourceName, string> = {
   summaries: "m",
 };
 
+/**
+ * The SQL expression of one field, or undefined when Plotbank stores no such field: the table's columns, and for
+ * plots also the measures the data dictionary adds (kept by name in plots.other_measures). Measure names are
+ * snake_case by the contract, so they are safe inside the literal.
+ */
+export function columnOf(schema: TableSchemaDescriptor, resource: ResourceName, field: string): string | undefined {
+  const stored = resourceQueries[resource].columns[field];
+  if (stored !== undefined) return stored;
+  if (resource === "plots" && /^[a-z][a-z0-9_]*$/.test(field) && (schema.measures ?? []).some((m) => m.name === field))
+    return `p.other_measures->>'${field}'`;
+  return undefined;
+}
+
 /** The fields of a resource in the version's data dictionary order. */
 export function fieldsOf(schema: TableSchemaDescriptor, resource: ResourceName): string[] {
-  return (schema.resources[resource]?.fields ?? []).map((f) => f.name).filter((f) => f in resourceQueries[resource].columns);
+  return (schema.resources[resource]?.fields ?? []).map((f) => f.name).filter((f) => columnOf(schema, resource, f) !== undefined);
 }
 
 const PAGE = 100_000;
@@ -129,11 +142,12 @@ const PAGE = 100_000;
 async function* resourcePages(
   db: Db | Tx,
   versionId: string,
+  schema: TableSchemaDescriptor,
   fields: string[],
   resource: ResourceName,
 ): AsyncGenerator<(string | null)[][]> {
   const q = resourceQueries[resource];
-  const select = fields.map((f, i) => `(${q.columns[f]})::text AS c${i}`).join(", ");
+  const select = fields.map((f, i) => `(${columnOf(schema, resource, f)})::text AS c${i}`).join(", ");
   for (let offset = 0; ; offset += PAGE) {
     const result = await db.execute(
       sql.raw(
@@ -166,7 +180,7 @@ export async function* resourceCsvChunks(
     fields.map((f) => types.get(f) === "string"),
   );
   yield writer.headerLine();
-  for await (const page of resourcePages(db, versionId, fields, resource)) yield writer.rows(page);
+  for await (const page of resourcePages(db, versionId, schema, fields, resource)) yield writer.rows(page);
   for (const name of writer.guardedColumns) guarded?.add(name);
 }
 

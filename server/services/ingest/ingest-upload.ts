@@ -104,6 +104,8 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
     versionId: input.versionId,
     bulkCopy: database.kind === "pglite",
     soilTestSchemes: version.tableSchema.soilTestSchemes ?? [],
+    measures: version.tableSchema.measures ?? [],
+    standUnit: version.tableSchema.resources.plots?.fields.find((f) => f.name === "stand_count")?.unit,
   });
   let columns: (CompiledField | null)[] = [];
   let header: string[] = [];

@@ -5,6 +5,7 @@ import type { TrialFilters } from "@/schemas/filters";
 import { responseRow, type ResponseRow } from "@/schemas/public";
 import { countedSoilTest, filterNutrientsOf, testedNutrients } from "@/server/services/tested-nutrients";
 import { responseConditions } from "@/server/services/trial-filter";
+import { resolveMeasure } from "@/server/services/measures";
 import {
   columnsFromFields,
   moistureBasisOf,
@@ -21,20 +22,24 @@ const checkTreatment = alias(treatments, "check_treatment");
  * One row per site-year × treatment against its check: the mean difference with its SE and df, the site-year's
  * own p and LSD, and the covariates the filters use. Differences, SEs and LSDs convert like yields (linearly).
  */
-export const responseResource: RowResource<ResponseRow, TrialFilters> = {
+export const responseResource: RowResource<ResponseRow, TrialFilters & { measure?: string }> = {
   name: "responses",
   row: responseRow,
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
+    const { measure = "yield", ...filters } = scope.filters;
+    // Yield converts to the asked units; every other measure is answered in its own unit.
+    const definition = measure === "yield" ? null : await resolveMeasure(db, measure, versionIdsOf(scope));
     const rows = await db
       .select({ r: responses, checkTreatmentCode: checkTreatment.code })
       .from(responses)
       .innerJoin(checkTreatment, eq(checkTreatment.id, responses.checkTreatmentId))
-      .where(and(responseConditions(scope.filters, versionIdsOf(scope)), gt(responses.id, afterId)))
+      .where(and(responseConditions(filters, versionIdsOf(scope), measure), gt(responses.id, afterId)))
       .orderBy(responses.id)
       .limit(limit);
     return rows.map(({ r, checkTreatmentCode }) => {
-      const { unit, convert: y } = yieldConverter(r.crop, scope.units);
+      const asYield = yieldConverter(r.crop, scope.units);
+      const y = definition ? (x: number) => x : asYield.convert;
       const tested = testedNutrients(r);
       const counted = countedSoilTest(tested, r, filterNutrientsOf(scope.filters));
       return {
@@ -71,8 +76,11 @@ export const responseResource: RowResource<ResponseRow, TrialFilters> = {
         soilSValue: r.soilSValue,
         soilSReportedClass: r.soilSReportedClass,
         soilSScheme: r.soilSScheme,
-        yieldUnit: unit,
+        yieldUnit: asYield.unit,
         moistureBasisPct: moistureBasisOf(r.crop),
+        measure,
+        unit: definition ? definition.unit : asYield.unit,
+        relativeToCheck: r.checkMeanKgHa > 0 ? r.treatedMeanKgHa / r.checkMeanKgHa : null,
         checkMean: y(r.checkMeanKgHa),
         treatedMean: y(r.treatedMeanKgHa),
         md: y(r.mdKgHa),
