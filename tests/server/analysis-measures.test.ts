@@ -223,10 +223,12 @@ describe("meta-analysis and seed safety of the stand", () => {
   });
 });
 
+let draftId = "";
 describe("recompute per measure", () => {
   it("a new draft's plots without stand counts drop its stand responses and keep yield's", async () => {
     const v = await f.curatorAgent.post(`/api/v1/datasets/${f.slug}/versions`).send({});
     expect(v.status, JSON.stringify(v.body).slice(0, 1000)).toBe(201);
+    draftId = v.body.id;
     const count = async (versionId: string) =>
       (
         (await t.ctx.db.execute(
@@ -247,5 +249,30 @@ describe("recompute per measure", () => {
     const res = await upload(f.curatorAgent, v.body.id, "plots", noStand + "\n");
     expect(res.status, JSON.stringify(res.body).slice(0, 1000)).toBe(201);
     expect(await count(v.body.id)).toEqual([{ measure: "yield", n: 24 }]);
+  });
+
+  it("stand counts per 10 ft of row, as the data dictionary states, become plants/ac with the site-year's row spacing", async () => {
+    const current = await f.curatorAgent.get(`/api/v1/curation/versions/${draftId}`).expect(200);
+    const schema = current.body.tableSchema;
+    const stand = schema.resources.plots.fields.find((x: { name: string }) => x.name === "stand_count");
+    stand.unit = "plants/m";
+    const bad = await f.curatorAgent.put(`/api/v1/curation/versions/${draftId}/table-schema`).send(schema).expect(400);
+    expect(bad.body.errors).toContainEqual(expect.objectContaining({ field: "body.resources.plots.fields.stand_count.unit" }));
+    stand.unit = "plants/10 ft row";
+    await f.curatorAgent.put(`/api/v1/curation/versions/${draftId}/table-schema`).send(schema).expect(200);
+    // The same counts read as per 10 ft of 30-in row: 43,560 ft² ÷ (10 ft × 2.5 ft) = 1,742.4 times as many plants/ac.
+    const res = await upload(f.curatorAgent, draftId, "plots", plotsCsv);
+    expect(res.status, JSON.stringify(res.body).slice(0, 1000)).toBe(201);
+    const rows = (
+      (await t.ctx.db.execute(
+        sql`select site_year_code, check_mean_kg_ha from responses where version_id = ${draftId} and measure = 'stand' and treatment_code = 'IF' order by site_year_code`,
+      )) as unknown as { rows: { site_year_code: string; check_mean_kg_ha: number }[] }
+    ).rows;
+    expect(rows).toHaveLength(8);
+    for (const row of rows) {
+      const fit = reference.per_site_year.find((p) => p.site_year === row.site_year_code)!.stand;
+      // Source: R's treatment means of the synthetic trial (aov), times 43,560 / (10 × 30 / 12).
+      expectClose(row.check_mean_kg_ha, fit.means.CHK! * 1742.4, CLOSED_FORM, `${row.site_year_code} check stand`);
+    }
   });
 });
