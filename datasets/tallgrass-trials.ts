@@ -15,6 +15,8 @@ interface DemoTreatment {
   applications: string[];
   /** The nutrients the curator states the treatment tests ("P", "N;S"); blank leaves them to the products. */
   tested?: string;
+  /** N + K2O placed with the seed, lb/ac (in-furrow applications only): the demo's stand and early-growth injury grow with it. */
+  seedPlacedNK2o?: number;
   /** Expected yield response (kg/ha) on this site-year. */
   response(ctx: { site: DemoSite; pClass: string; kClass: string; early: boolean; rng: Random }): number;
 }
@@ -136,11 +138,28 @@ export function treatmentsCsv(trial: DemoTrial): string {
   return lines.join("\n") + "\n";
 }
 
-/** Plots of an RCBD: block effects, plot noise at a CV of 7 %, harvest moisture around the standard. */
+/**
+ * Invented seed-placement injury: the share of the stand lost per lb/ac of N + K2O with the seed, soybean (more
+ * salt-sensitive than corn), half again on sandy soils; and the early-growth points lost per lb/ac. Plausible in size
+ * for the demo ("some stand loss at pop-up rates"), not taken from any trial.
+ */
+const standLossPerLb = { soybean: 0.016, corn: 0.006 } as const;
+const vigourLossPerLb = 0.22;
+const injuryOf = (seedNK2o: number, crop: "soybean" | "corn", sandy: boolean) =>
+  seedNK2o * (sandy ? 1.5 : 1) * (crop === "soybean" ? 1 : 0.4);
+
+/**
+ * Plots of an RCBD: block effects, plot noise at a CV of 7 %, harvest moisture around the standard, stand counts and
+ * early-growth scores (1–9) that carry the seed-placement injury above. Vigour draws from its own seed, so the yields
+ * (and the demo's answer) are those the earlier releases had.
+ */
 export function plotsCsv(trial: DemoTrial, sys: DemoSiteYear[], options: { withTypo?: boolean } = {}): string {
-  const lines = ["site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct,stand_count"];
+  const lines = ["site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct,stand_count,vigour"];
   for (const sy of sys) {
     const rng = mulberry32(`${trial.key}:${sy.code}`);
+    const vigourRng = mulberry32(`${trial.key}:${sy.code}:vigour`);
+    const sandy = sy.site.texture.includes("sand");
+    const siteVigour = vigourRng.between(5.5, 7.5);
     const t = soil(sy.site, sy.code.replace(/-[EN]$/, ""));
     const base = (sy.crop === "soybean" ? sy.site.soyYield : sy.site.cornYield) * rng.between(0.9, 1.08) * (sy.early ? 1.04 : 1);
     const effects = trial.treatments.map((tr) => tr.response({ site: sy.site, pClass: t.pClass, kClass: t.kClass, early: sy.early, rng }));
@@ -153,14 +172,14 @@ export function plotsCsv(trial: DemoTrial, sys: DemoSiteYear[], options: { withT
         const key = `${sy.code}/${plot}`;
         let y = base + effects[ti]! + blockEffect + rng.normal(0, CV * base);
         const moisture = Math.round((sy.crop === "soybean" ? rng.between(11.5, 15) : rng.between(15, 21)) * 10) / 10;
+        const injury = injuryOf(tr.seedPlacedNK2o ?? 0, sy.crop, sandy);
         const stand = Math.round(
-          (sy.crop === "soybean" ? 120_000 : 33_000) *
-            rng.between(0.9, 1.05) *
-            (tr.applications.some((a) => a.includes("in-furrow")) ? 0.97 : 1),
+          (sy.crop === "soybean" ? 120_000 : 33_000) * rng.between(0.9, 1.05) * Math.max(0, 1 - standLossPerLb[sy.crop] * injury),
         );
+        const vigour = Math.min(9, Math.max(1, Math.round(siteVigour + vigourRng.normal(0, 0.7) - vigourLossPerLb * injury)));
         if (trial.lostPlots?.has(key)) return;
         if (options.withTypo && trial.typo?.plot === key) y *= trial.typo.factor;
-        lines.push(`${sy.code},${plot},${b},${tr.code},${Math.round(y)},${moisture},${stand}`);
+        lines.push(`${sy.code},${plot},${b},${tr.code},${Math.round(y)},${moisture},${stand},${vigour}`);
       });
     }
   }
@@ -181,6 +200,8 @@ export const starterTrial: DemoTrial = {
       tested: "P",
       name: "In-furrow 10-34-0, 3 gal/ac",
       applications: ["APP 10-34-0,10-34-0,3,gal/ac,in-furrow,at-planting"],
+      // 3 gal × 11.4 lb/gal × 10 % N.
+      seedPlacedNK2o: 3.42,
       response: ({ pClass }) => 0.45 * pResponse[pClass]! - 25,
     },
     {
@@ -188,6 +209,8 @@ export const starterTrial: DemoTrial = {
       tested: "P",
       name: "In-furrow MAP, 40 lb/ac",
       applications: ["MAP,11-52-0,40,lb/ac,in-furrow,at-planting"],
+      // 40 lb × 11 % N.
+      seedPlacedNK2o: 4.4,
       response: ({ pClass }) => 0.55 * pResponse[pClass]! - 40,
     },
     {

@@ -1,7 +1,8 @@
 import { keepPreviousData, queryOptions, useQuery } from "@tanstack/react-query";
 import { staleTimeMs } from "@/constants/theme";
 import { api } from "@/lib/api-client";
-import { metaApiPath, type EvidenceState } from "@/lib/share-link";
+import { metaApiPath, seedSafetyApiPath, type EvidenceState } from "@/lib/share-link";
+import { seedSafetyResult } from "@/schemas/seed-safety";
 import { metaAnalysisResult } from "@/schemas/analysis";
 
 const analysisKeys = {
@@ -40,3 +41,16 @@ export const useSoilTestLine = (state: EvidenceState) => {
       count < 1 && !(error instanceof Error && "status" in error && [400, 422].includes((error as { status: number }).status)),
   });
 };
+
+const seedSafetyQuery = (state: EvidenceState) => {
+  const path = seedSafetyApiPath(state);
+  return queryOptions({
+    queryKey: [...analysisKeys.all, "seed-safety", path] as const,
+    queryFn: ({ signal }) => api(path, seedSafetyResult, { signal }),
+    staleTime: staleTimeMs,
+    placeholderData: keepPreviousData,
+  });
+};
+
+/** The seed-safety evidence of the screen's filters; asked only when stand or early growth is compared. */
+export const useSeedSafety = (state: EvidenceState, enabled: boolean) => useQuery({ ...seedSafetyQuery(state), enabled });

@@ -13,6 +13,8 @@ export interface EvidenceState {
   ci: CiMethod;
   groupBy: Grouping;
   units: YieldUnit;
+  /** What to compare: yield, stand, vigour, test-weight, moisture, or a measure a data dictionary adds. */
+  measure: string;
   price?: number;
   productCost?: number;
   applicationCost?: number;
@@ -25,6 +27,7 @@ export const defaultEvidenceState: EvidenceState = {
   ci: "hksj",
   groupBy: "soilTestClass",
   units: "bu/ac",
+  measure: "yield",
 };
 
 export const priceKeys = ["price", "productCost", "applicationCost"] as const;
@@ -35,7 +38,7 @@ type Params = Record<string, string | string[] | undefined>;
 
 const filterKeys = Object.keys(trialFilterShape) as (keyof TrialFilters)[];
 /** Every key the screen writes to its URL; the router gets `undefined` for the ones not set, to clear them. */
-const evidenceParamKeys = [...filterKeys, "effect", "method", "ci", "groupBy", "units", ...priceKeys] as const;
+const evidenceParamKeys = [...filterKeys, "effect", "method", "ci", "groupBy", "units", "measure", ...priceKeys] as const;
 
 function parseField<T>(
   schema: { safeParse(v: unknown): { success: true; data: T } | { success: false } },
@@ -64,6 +67,7 @@ export function evidenceStateFromParams(params: Params): EvidenceState {
     ci: parseField(metaOptionShape.ci, params.ci) ?? defaultEvidenceState.ci,
     groupBy: parseField(metaOptionShape.groupBy, params.groupBy) ?? defaultEvidenceState.groupBy,
     units: parseField(metaOptionShape.units, params.units) ?? defaultEvidenceState.units,
+    measure: parseField(metaOptionShape.measure, params.measure) ?? defaultEvidenceState.measure,
   };
   for (const key of priceKeys) {
     const value = parseField(metaOptionShape[key], params[key]);
@@ -78,7 +82,7 @@ export function evidenceStateFromParams(params: Params): EvidenceState {
  */
 export function paramsFromEvidenceState(state: EvidenceState, options: { withPrices?: boolean } = {}): Record<string, string> {
   const out: Record<string, string> = { ...filtersToQuery(state.filters) };
-  for (const key of ["effect", "method", "ci", "groupBy", "units"] as const) {
+  for (const key of ["effect", "method", "ci", "groupBy", "units", "measure"] as const) {
     if (state[key] !== defaultEvidenceState[key]) out[key] = state[key];
   }
   if (options.withPrices) for (const key of priceKeys) if (state[key] !== undefined) out[key] = String(state[key]);
@@ -101,6 +105,11 @@ function toQueryString(params: Record<string, string>): string {
 }
 
 export const metaApiPath = (state: EvidenceState) => `/api/v1/analyses/meta${toQueryString(apiParamsFromEvidenceState(state))}`;
+/** The seed-safety question of the screen: its filters but placement (the answer compares placements), and its measure. */
+export const seedSafetyApiPath = (state: EvidenceState) => {
+  const { placement: _placement, ...filters } = state.filters;
+  return `/api/v1/analyses/seed-safety${toQueryString({ ...filtersToQuery(filters), measure: state.measure })}`;
+};
 /** A link to the screen; the prices go in only when the user asks for them. */
 export const shareUrl = (origin: string, state: EvidenceState, options: { withPrices?: boolean } = {}) =>
   `${origin.replace(/\/$/, "")}/${toQueryString(paramsFromEvidenceState(state, options))}`;

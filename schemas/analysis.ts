@@ -2,6 +2,8 @@ import { z } from "zod";
 import { trialFilterShape, trialFilters } from "./filters";
 import { yieldUnits, type YieldUnit } from "./public";
 import { heterogeneityInterval, metaDetailOptionShape, moderatorRegression, separateSubgroups } from "./meta-regression";
+import { measureParam } from "./measures";
+import { betterDirections } from "@/constants/measures";
 
 export { type YieldUnit };
 
@@ -22,6 +24,7 @@ export const defaultForestLimit = 200;
 
 /** The analysis options beside the shared trial filters; each also appears in share links of the Evidence screen. */
 export const metaOptionShape = {
+  measure: measureParam,
   effect: z.enum(effectMeasures).default("md").describe("md: yield response (treated − check); lnrr: log response ratio ln(treated/check)"),
   method: z
     .enum(tauMethods)
@@ -300,7 +303,7 @@ export const cautionCodes = [
 ] as const;
 export type CautionCode = (typeof cautionCodes)[number];
 
-const caution = z
+export const cautionShape = z
   .object({
     code: z
       .enum(cautionCodes)
@@ -324,13 +327,26 @@ const caution = z
       .describe("The included treatments that trip the rule"),
   })
   .meta({ id: "Caution" });
-export type Caution = z.infer<typeof caution>;
+export type Caution = z.infer<typeof cautionShape>;
+
+/** The measure an analysis is about, with the unit its responses are in and which direction is better. */
+export const analysedMeasure = z
+  .object({
+    name: z.string(),
+    title: z.string(),
+    unit: z.string().describe("Unit of the measure's responses (yield: the answer's `units`)"),
+    better: z.enum(betterDirections),
+    rating: z.boolean().describe("A score on a scale rather than a quantity"),
+    scale: z.string().nullable().describe("A rating's scale in words"),
+  })
+  .meta({ id: "AnalysedMeasure" });
 
 export const metaAnalysisResult = z
   .object({
     k: z.number().int(),
+    measure: analysedMeasure,
     effect: z.enum(effectMeasures),
-    units: z.string().describe("bu/ac, kg/ha, or ln(ratio)"),
+    units: z.string().describe("bu/ac or kg/ha for yield, the measure's unit for another measure, or ln(ratio)"),
     rows: z.array(forestRow).describe("Per-site-year rows, bounded by forestLimit (see `forest`)"),
     forest: forestExtent,
     pooled: pooledEstimate.nullable(),
@@ -339,7 +355,7 @@ export const metaAnalysisResult = z
     decision: decisionNumbers,
     provenance: analysisProvenance,
     notes: z.array(z.string()),
-    cautions: z.array(caution).describe("Every caution rule, those tripped by the included treatments first, naming them"),
+    cautions: z.array(cautionShape).describe("Every caution rule, those tripped by the included treatments first, naming them"),
     moderatorRegression: moderatorRegression.optional().describe("With moderator="),
   })
   .meta({ id: "MetaAnalysis" });

@@ -4,6 +4,7 @@ import { contributor } from "./dataset-metadata";
 import { line } from "./safe-text";
 import { crops, nutrients, placements, soilTestClasses, tillages, trialFilters, trialFilterShape } from "./filters";
 import { tableSchemaField } from "./table-schema";
+import { measureParam } from "./measures";
 
 /**
  * Contracts of the public read API: dataset and version metadata, the row shapes of every resource, and the query
@@ -77,6 +78,10 @@ function yearsInOrder(f: { yearFrom?: number; yearTo?: number }, ctx: z.Refineme
 export const crossDatasetYieldQuery = trialFilters
   .safeExtend({ ...documentedLists, units: unitsParam, ...pagingShape })
   .meta({ id: "CrossDatasetYieldQuery" });
+/** Cross-dataset responses: the rows-with-yields query plus the measure they are about. */
+export const crossDatasetResponseQuery = crossDatasetYieldQuery
+  .safeExtend({ measure: measureParam })
+  .meta({ id: "CrossDatasetResponseQuery" });
 /** Cross-dataset site-years: every shared filter and paging. */
 export const crossDatasetSiteYearQuery = trialFilters
   .safeExtend({ ...documentedLists, ...pagingShape })
@@ -87,6 +92,12 @@ export const versionYieldQuery = z
   .strict()
   .superRefine(yearsInOrder)
   .meta({ id: "VersionYieldQuery" });
+/** Responses of one version: its rows-with-yields query plus the measure they are about. */
+export const versionResponseQuery = z
+  .object({ ...versionFilterShape, units: unitsParam, measure: measureParam, ...pagingShape })
+  .strict()
+  .superRefine(yearsInOrder)
+  .meta({ id: "VersionResponseQuery" });
 export const versionSiteYearQuery = z
   .object({ ...versionFilterShape, ...pagingShape })
   .strict()
@@ -328,7 +339,17 @@ export const responseRow = z
     soilSReportedClass: z.string().nullable(),
     soilSScheme: z.string().nullable(),
     ...yieldUnitShape,
-    checkMean: z.number().describe("Mean yield of the check"),
+    measure: z
+      .string()
+      .describe("What was measured (measure=): yield, stand, vigour, test-weight, moisture, or a measure the data dictionary adds"),
+    unit: z.string().describe("Unit of checkMean, treatedMean, md, se and lsd05: yieldUnit for yield, else the measure's own unit"),
+    relativeToCheck: z
+      .number()
+      .nullable()
+      .describe(
+        "treatedMean ÷ checkMean (e.g. relative stand: 0.93 is 93 % of the check's stand); null when the check mean is not positive",
+      ),
+    checkMean: z.number().describe("Mean of the check (yield, or the measure asked for)"),
     treatedMean: z.number(),
     md: z.number().describe("Mean difference, treated − check"),
     se: z.number().describe("Standard error of the difference from the site-year's ANOVA"),

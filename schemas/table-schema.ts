@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { resourceNames } from "@/constants/vocabulary";
+import { betterDirections } from "@/constants/measures";
 import { line, paragraph } from "./safe-text";
 import { soilTestScheme } from "./soil-test-schemes";
 
@@ -60,9 +61,36 @@ const tableSchemaResource = z
   })
   .meta({ id: "TableSchema" });
 
+/**
+ * A measure a curator adds to a version: its values are the plots field of the same name (a number field the plots
+ * resource lists), and its responses are computed per site-year like yield's, in its unit.
+ */
+export const dictionaryMeasure = z
+  .object({
+    name: line()
+      .min(1)
+      .max(64)
+      .regex(/^[a-z][a-z0-9_]*$/, "snake_case, starting with a letter; the plots field of the same name holds its values"),
+    title: line().min(1).max(120),
+    unit: line().min(1).max(40).describe('Unit of the values, e.g. "cm", "score", "g/plant"'),
+    better: z.enum(betterDirections).describe("Which direction is better"),
+    rating: z.boolean().describe("A rating (a score on a scale) rather than a quantity"),
+    scale: line().max(120).optional().describe('A rating\'s scale in words, e.g. "1 (poor) to 5 (excellent)"'),
+    description: paragraph().max(2000).optional(),
+  })
+  .meta({ id: "DictionaryMeasure" });
+export type DictionaryMeasure = z.infer<typeof dictionaryMeasure>;
+
 export const tableSchemaDescriptor = z
   .object({
     resources: z.record(resourceName, tableSchemaResource),
+    measures: z
+      .array(dictionaryMeasure)
+      .max(20)
+      .optional()
+      .describe(
+        "Measures of this version beside the built-in ones (yield, stand, vigour, test-weight, moisture); each names a plots field",
+      ),
     soilTestSchemes: z
       .array(soilTestScheme)
       .max(50)

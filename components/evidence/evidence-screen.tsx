@@ -39,6 +39,8 @@ import { PageHead } from "@/components/page-head";
 import { levelLabels, SubgroupView } from "./subgroup-view";
 import { SoilTestPanel } from "./soil-test-panel";
 import { SummaryCard } from "./summary-card";
+import { MeasureChoice } from "./measure-choice";
+import { SeedSafetyPanel } from "./seed-safety-panel";
 
 function origin(): string {
   if (Platform.OS === "web" && typeof window !== "undefined") return window.location.origin;
@@ -164,8 +166,10 @@ function Results({
   return (
     <View style={styles.stack}>
       <SummaryCard result={result} units={state.units} onUnits={(units) => update({ ...state, units })} />
+      <SeedSafetyPanel state={state} />
       <Cautions cautions={result.cautions} />
-      <BreakEvenPanel result={result} prices={prices} onPrices={setPrices} />
+      {/* Whether it pays is a question about yield only. */}
+      {result.measure.name === "yield" ? <BreakEvenPanel result={result} prices={prices} onPrices={setPrices} /> : null}
       <SubgroupView result={result} groupBy={state.groupBy} onGroupBy={(groupBy) => update({ ...state, groupBy })} prices={prices} />
       <Card>
         <Disclosure
@@ -222,7 +226,8 @@ function Results({
   );
 }
 
-const evidenceDescription = "A random-effects meta-analysis of the yield response across the site-years you filter to.";
+const evidenceDescription =
+  "A random-effects meta-analysis of the yield response (or stand, early growth, test weight, moisture) across the site-years you filter to.";
 
 function ShareButton({ state, prices }: { state: EvidenceState; prices: Prices }) {
   const [shown, setShown] = useState<string | null>(null);
@@ -308,6 +313,7 @@ export function EvidenceScreen() {
         Evidence
       </Text>
       <Text variant="caption">{evidenceDescription}</Text>
+      <MeasureChoice measure={state.measure} onMeasure={(measure) => update({ ...state, measure })} />
       {analysis.isFetching && analysis.data ? (
         <Text variant="caption" role="status" aria-live="polite" testID="updating">
           Updating…

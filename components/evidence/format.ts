@@ -1,15 +1,22 @@
 /** Number formatting for the Evidence screen: responses in their units, intervals, probabilities and p values. */
 
 function decimalsFor(units: string): number {
-  if (units === "kg/ha") return 0;
+  if (units === "kg/ha" || units === "plants/ac") return 0;
   if (units === "ln(treated/check)") return 3;
+  if (units === "score") return 2;
   return 1;
 }
 
 /** A response with its sign, e.g. "+3.4", "−12" (a true minus sign reads better than a hyphen). */
 export function formatResponse(value: number, units: string): string {
-  const fixed = Math.abs(value).toFixed(decimalsFor(units));
-  const zero = Number(fixed) === 0;
+  const digits = decimalsFor(units);
+  const rounded = Math.abs(value).toFixed(digits);
+  const zero = Number(rounded) === 0;
+  // Counts in the thousands (plants/ac) read better grouped: "−6,800".
+  const fixed =
+    units === "plants/ac" && Math.abs(value) >= 10_000
+      ? Number(rounded).toLocaleString("en-US", { maximumFractionDigits: digits })
+      : rounded;
   return `${zero ? "" : value < 0 ? "−" : "+"}${fixed}`;
 }
 

@@ -19,11 +19,21 @@ export function SummaryCard({
   const { pooled, heterogeneity, decision, provenance } = result;
   const u = result.units;
   const lnrr = result.effect === "lnrr";
+  const isYield = result.measure.name === "yield";
+  const title = isYield ? "Mean yield response" : `Mean ${result.measure.title.toLowerCase()} response`;
   return (
     <Card testID="summary-card" aria-label="Summary">
       <View style={styles.head}>
-        <Text variant="heading">Mean yield response</Text>
-        {!lnrr ? (
+        <Text variant="heading" testID="summary-title">
+          {title}
+        </Text>
+        {!isYield ? (
+          <Text variant="caption" testID="measure-unit">
+            Treated − check, in {result.measure.unit}
+            {result.measure.scale ? ` (${result.measure.scale})` : ""}; {result.measure.better} is better.
+          </Text>
+        ) : null}
+        {!lnrr && isYield ? (
           <ChoiceChips
             label="Units"
             testID="units-toggle"

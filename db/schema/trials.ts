@@ -169,6 +169,8 @@ export const plots = pgTable(
     standCount: real("stand_count"),
     vigour: real("vigour"),
     testWeight: real("test_weight"),
+    /** Values of the measures a version's data dictionary adds (`measures`), by measure name; null: none recorded. */
+    otherMeasures: jsonb("other_measures").$type<Record<string, number>>(),
   },
   (t) => [uniqueIndex("plots_site_year_plot_uq").on(t.siteYearId, t.plot), index("plots_version_idx").on(t.versionId, t.siteYearId)],
 );
@@ -197,8 +199,10 @@ export const summaryMeans = pgTable(
 );
 
 /**
- * One row per site-year × treatment against that site-year's check, computed from the site-year's ANOVA when a
- * version's data change. Site-year covariates are copied in so the filtered reads need no joins.
+ * One row per site-year × treatment × measure against that site-year's check, computed from the site-year's ANOVA of
+ * that measure when a version's data change. Site-year covariates are copied in so the filtered reads need no joins.
+ * The *KgHa columns hold yield in kg/ha; for another measure they hold its values in that measure's unit
+ * (constants/measures.ts, or the version's data dictionary).
  */
 export const responses = pgTable(
   "responses",
@@ -216,6 +220,8 @@ export const responses = pgTable(
     checkTreatmentId: bigint("check_treatment_id", { mode: "number" })
       .notNull()
       .references(() => treatments.id, { onDelete: "cascade" }),
+    /** What was measured: yield, stand, vigour, test-weight, moisture, or a measure the data dictionary adds. */
+    measure: text("measure").notNull().default("yield"),
     siteCode: text("site_code").notNull(),
     siteYearCode: text("site_year_code").notNull(),
     treatmentCode: text("treatment_code").notNull(),
@@ -263,7 +269,7 @@ export const responses = pgTable(
     fromSummary: boolean("from_summary").notNull().default(false),
   },
   (t) => [
-    uniqueIndex("responses_site_year_treatment_uq").on(t.siteYearId, t.treatmentId),
+    uniqueIndex("responses_site_year_treatment_measure_uq").on(t.siteYearId, t.treatmentId, t.measure),
     index("responses_version_idx").on(t.versionId),
     index("responses_filter_idx").on(t.versionId, t.crop, t.year),
     index("responses_nutrients_gin").using("gin", t.nutrients),

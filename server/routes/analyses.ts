@@ -5,6 +5,8 @@ import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
 import { forestRowsCsv } from "@/server/services/analysis/forest-csv";
 import { runMetaAnalysis } from "@/server/services/analysis/run-meta-analysis";
+import { seedSafety } from "@/server/services/analysis/seed-safety";
+import { seedSafetyQuery, seedSafetyResult } from "@/schemas/seed-safety";
 
 export function analysisRoutes({ db, registry }: AppContext): Router {
   const { router, defineRoute } = routeModule(registry);
@@ -23,7 +25,9 @@ export function analysisRoutes({ db, registry }: AppContext): Router {
         "Hartung–Knapp–Sidik–Jonkman (default) or Wald; the prediction interval uses t(k − 2). With price and cost, the " +
         "decision block gives the break-even response and the chance a new site-year exceeds it. `format=csv` returns " +
         'the per-site-year rows (reproduce in R: `rma(yi = estimate, sei = se, data = d, method = "REML", test = "knha")`). ' +
-        "k = 0 is an answer (200), not an error. Results summarise these trials; a field can differ. " +
+        "k = 0 is an answer (200), not an error. `measure=` pools another measure (stand, vigour, test-weight, moisture, or " +
+        "one a data dictionary adds) in its own unit; the decision block's break-even applies to yield only. Results " +
+        "summarise these trials; a field can differ. " +
         "`moderator=` adds a meta-regression on a continuous moderator (slope, R², residual heterogeneity, the fitted line and its " +
         "band, and for the soil test its critical level); it is refused with 422 when the site-years are on different scales. " +
         "`include=heterogeneityIntervals` and `subgroupTau2=separate` add heterogeneity detail; a default answer has none of these.",
@@ -46,6 +50,33 @@ export function analysisRoutes({ db, registry }: AppContext): Router {
           .send(forestRowsCsv(result));
         return;
       }
+      res.json(result);
+    },
+  );
+
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/analyses/seed-safety",
+      operationId: "seedSafety",
+      tags: ["Analyses"],
+      summary: "Did seed-placed (in-furrow) treatments reduce the stand or early growth?",
+      description:
+        "Takes the shared filters but placement: the stand (or early-growth) response of treatments with an in-furrow " +
+        "application against their checks, pooled per site-year (REML, HKSJ) as a difference and as a relative change, " +
+        "beside treatments placed away from the seed; how many site-year tests found a loss (Fisher's protected LSD); every " +
+        "contrast with the N + K2O placed with the seed; and the caution rules tested on the seed-placed treatments. " +
+        'Reproduce a pooled value in R with `rma(yi = md, sei = se, method = "REML", test = "knha")` on /api/v1/responses?measure=stand&placement=in-furrow ' +
+        "after combining each site-year's treatments. Local recommendations and licensed advisers have the last word.",
+      query: seedSafetyQuery,
+      responses: {
+        200: { description: "The seed-safety evidence", content: { "application/json": { schema: seedSafetyResult } } },
+        ...problemResponses(400, 404, 429),
+      },
+    },
+    async ({ query }, _req, res) => {
+      const result = await seedSafety(db, query);
+      res.set("Cache-Control", "public, max-age=60");
       res.json(result);
     },
   );

@@ -4,6 +4,7 @@ import type { Db } from "@/db/client";
 import { datasets, plots, responses, siteYears, soilTests, treatments, versions } from "@/db/schema";
 import type { TrialFilters } from "@/schemas/filters";
 import { notFound } from "@/server/errors";
+import { defaultMeasure } from "@/constants/measures";
 import { latestAlias, latestPublishedByDataset, versionGone } from "./latest-version";
 import { countedSoilClassSql, filterNutrientsOf, testsAnyOf } from "./tested-nutrients";
 
@@ -139,8 +140,9 @@ export function filterConditions(filters: Partial<TrialFilters>, versionIds: str
 }
 
 /** WHERE conditions on the responses table for one set of filters, within the resolved versions. */
-export function responseConditions(filters: TrialFilters, versionIds: string[]): SQL | undefined {
-  return filterConditions(filters, versionIds, responseColumns);
+/** Responses of one measure (yield unless named; constants/measures.ts) that match the filters. */
+export function responseConditions(filters: TrialFilters, versionIds: string[], measure: string = defaultMeasure): SQL | undefined {
+  return and(filterConditions(filters, versionIds, responseColumns), eq(responses.measure, measure));
 }
 
 const treatmentColumns: FilterColumns["treatment"] = {

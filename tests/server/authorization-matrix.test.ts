@@ -237,6 +237,7 @@ const table: Record<string, Row> = {
     query: (c) => ({ dataset: c.fx.slug }),
   },
   "GET /api/v1/analyses/meta": { expect: everyone(200), query: (c) => ({ dataset: c.fx.slug }) },
+  "GET /api/v1/analyses/seed-safety": { expect: everyone(200), query: (c) => ({ dataset: c.fx.slug }) },
 
   // Session: anyone may try to sign in or out; "who am I" answers everyone, and names only the caller (a visitor: no one).
   "POST /api/v1/session": {

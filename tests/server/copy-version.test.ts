@@ -59,6 +59,8 @@ beforeAll(async () => {
     .map((line, i) => (i === 0 ? `${line},tested_nutrients` : `${line},${line.startsWith("CHK") ? "" : "P"}`))
     .join("\n");
   f = await draftWithData(t.app, t.ctx, { plots: `${plots}\n`, treatments: `${treatments}\n` });
+  // A value of a measure a data dictionary adds (tests/server/analysis-measures.test.ts uploads one), so that column is filled too.
+  await t.ctx.db.execute(sql`update plots set other_measures = '{"lodging_score": 2}'::jsonb where version_id = ${f.versionId}`);
   // Potassium and sulfur tests too, so every soil column of the responses is filled.
   await upload(
     f.curatorAgent,

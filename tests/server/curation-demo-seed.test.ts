@@ -53,7 +53,7 @@ describe("the Tallgrass Basin demo", () => {
   it("responses are larger on low-testing soils, near zero on high; plot CV is 5–10 %; some site-years are unbalanced", async () => {
     const byClass = await rows<{ soil_p_class: string; md: number; cv: number }>(sql`
       select soil_p_class, avg(md_kg_ha) as md, avg(cv_pct) as cv from responses r join versions v on v.id = r.version_id
-      join datasets d on d.id = v.dataset_id where d.slug = 'soybean-starter-p-placement' and v.semver = '1.1.1' and r.treatment_code = 'BAND-MAP'
+      join datasets d on d.id = v.dataset_id where d.slug = 'soybean-starter-p-placement' and v.semver = '1.1.1' and r.treatment_code = 'BAND-MAP' and r.measure = 'yield'
       group by soil_p_class`);
     const md = Object.fromEntries(byClass.map((r) => [r.soil_p_class, Number(r.md)]));
     expect(md.low ?? md.very_low).toBeGreaterThan(150);

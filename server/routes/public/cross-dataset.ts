@@ -1,11 +1,19 @@
 import type { Router } from "express";
-import { crossDatasetSiteYearQuery, crossDatasetYieldQuery, observationPage, responsePage, siteYearPage } from "@/schemas/public";
+import {
+  crossDatasetResponseQuery,
+  crossDatasetSiteYearQuery,
+  crossDatasetYieldQuery,
+  observationPage,
+  responsePage,
+  siteYearPage,
+} from "@/schemas/public";
 import type { AppContext } from "@/server/context";
 import { routeModule } from "@/server/openapi/define-route";
 import { observationResource } from "@/server/services/public/observations";
 import { responseResource } from "@/server/services/public/responses";
 import { siteYearResource } from "@/server/services/public/site-years";
 import { resolveVersions } from "@/server/services/trial-filter";
+import { resolveMeasure } from "@/server/services/measures";
 import { rowsRoute } from "./rows-doc";
 import { serveRows } from "./serve-rows";
 
@@ -24,13 +32,18 @@ export function crossDatasetRoutes({ db, registry }: AppContext): Router {
       tag: "Rows across datasets",
       summary: "Site-year responses across datasets",
       description: resolution,
-      query: crossDatasetYieldQuery,
+      query: crossDatasetResponseQuery,
       page: responsePage,
       gone: true,
     }),
     async ({ query }, req, res) => {
       const versions = await resolveVersions(db, query);
       const { dataset: _d, version: _v, ...rest } = query;
+      await resolveMeasure(
+        db,
+        query.measure,
+        versions.map((v) => v.versionId),
+      );
       await serveRows(req, res, { db, resource: responseResource, versions, query: rest, freshness: "moving" });
     },
   );

@@ -8,12 +8,14 @@ import {
   versionSiteQuery,
   versionSiteYearQuery,
   versionTreatmentQuery,
+  versionResponseQuery,
   versionYieldQuery,
 } from "@/schemas/public";
 import type { AppContext } from "@/server/context";
 import { routeModule } from "@/server/openapi/define-route";
 import { observationResource } from "@/server/services/public/observations";
 import { responseResource } from "@/server/services/public/responses";
+import { resolveMeasure } from "@/server/services/measures";
 import { siteResource } from "@/server/services/public/sites";
 import { siteYearResource } from "@/server/services/public/site-years";
 import { treatmentResource } from "@/server/services/public/treatments";
@@ -108,13 +110,14 @@ export function versionRowRoutes({ db, registry }: AppContext): Router {
       operationId: "listVersionResponses",
       tag: "Version rows",
       summary: "Site-year responses of a version: each treatment against its check",
-      query: versionYieldQuery,
+      query: versionResponseQuery,
       params: versionPathParams,
       page: responsePage,
       gone: true,
     }),
     async ({ params, query }, req, res) => {
       const v = await versionOf(params);
+      await resolveMeasure(db, query.measure, [v.versionId]);
       await serveRows(req, res, { db, resource: responseResource, versions: [v], query: query, freshness: v.pinned ? "pinned" : "moving" });
     },
   );

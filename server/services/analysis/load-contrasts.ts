@@ -7,6 +7,8 @@ import type { Moderator } from "@/schemas/meta-regression";
 import { conflict } from "@/server/errors";
 import { resolveVersions, responseConditions, type ResolvedVersion } from "@/server/services/trial-filter";
 import { treatmentLabels } from "./treatment-labels";
+import { defaultMeasure } from "@/constants/measures";
+import { resolveMeasure } from "@/server/services/measures";
 
 type Response = typeof responses.$inferSelect;
 
@@ -201,20 +203,23 @@ function compareText(a: string, b: string): number {
 /** Which versions an analysis reads: the published ones the filters name, or one given version (a draft's preview). */
 export type VersionResolver = (db: Db, filters: TrialFilters) => Promise<ResolvedVersion[]>;
 
-export async function loadContrasts(
-  db: Db,
-  filters: TrialFilters,
-  groupBy: Grouping | null = null,
-  moderator: Moderator | null = null,
-  resolve: VersionResolver = resolveVersions,
-) {
-  const versions = await resolve(db, filters);
-  const where = responseConditions(
-    filters,
-    versions.map((v) => v.versionId),
-  );
-  const rows = await selectEstimationRows(db, where, groupBy, moderator);
-  return { versions, rows, where };
+/** What an analysis reads beside its filters: the grouping, a continuous moderator, the measure and the versions. */
+export interface ContrastOptions {
+  groupBy?: Grouping | null;
+  moderator?: Moderator | null;
+  /** Yield by default; an unknown measure is a 400. */
+  measure?: string;
+  resolve?: VersionResolver;
+}
+
+/** The filtered responses of one measure with the versions read. */
+export async function loadContrasts(db: Db, filters: TrialFilters, options: ContrastOptions = {}) {
+  const versions = await (options.resolve ?? resolveVersions)(db, filters);
+  const versionIds = versions.map((v) => v.versionId);
+  const measure = await resolveMeasure(db, options.measure ?? defaultMeasure, versionIds);
+  const where = responseConditions(filters, versionIds, measure.name);
+  const rows = await selectEstimationRows(db, where, options.groupBy ?? null, options.moderator ?? null);
+  return { versions, rows, where, measure };
 }
 
 export type { ResolvedVersion };

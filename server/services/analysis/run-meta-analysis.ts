@@ -24,6 +24,7 @@ import {
   type StandardCrop,
 } from "@/stats";
 import { nutrientRuleInForce } from "@/server/services/tested-nutrients";
+import type { MeasureDefinition } from "@/constants/measures";
 import { groupLevel, orderLevels, relevantSoilTest } from "./grouping";
 import {
   byForestOrder,
@@ -56,13 +57,19 @@ function splitQuery(query: MetaQuery): { filters: TrialFilters; options: Omit<Me
  */
 export async function runMetaAnalysis(db: Db, query: MetaQuery, resolve?: VersionResolver): Promise<Result> {
   const { filters, options } = splitQuery(query);
-  const { versions, rows, where } = await loadContrasts(db, filters, options.groupBy ?? null, options.moderator ?? null, resolve);
+  const { versions, rows, where, measure } = await loadContrasts(db, filters, {
+    groupBy: options.groupBy ?? null,
+    moderator: options.moderator ?? null,
+    measure: options.measure,
+    resolve,
+  });
   const [result, included] = await Promise.all([
     analyseContrasts(
       rows,
       versions,
       filters,
       options,
+      measure,
       (named) => withLabels(db, where, named),
       () => readSoilScales(db, where),
     ),
@@ -79,12 +86,17 @@ async function analyseContrasts(
   versions: ResolvedVersion[],
   filters: TrialFilters,
   options: Omit<MetaQuery, keyof TrialFilters>,
+  measure: MeasureDefinition,
   labelsOf: LabelReader,
   soilScales: () => Promise<SoilScales>,
 ): Promise<Result> {
-  const { effect, method, ci, units } = options;
+  const { effect, method, ci } = options;
+  const isYield = measure.name === "yield";
+  // Only yield converts (bu/ac ↔ kg/ha); every other measure is pooled in its own unit.
+  const units = isYield ? options.units : null;
+  const measureUnit = units ?? measure.unit;
   const groupBy = options.groupBy ?? null;
-  const unitLabel = effect === "lnrr" ? "ln(treated/check)" : units;
+  const unitLabel = effect === "lnrr" ? "ln(treated/check)" : measureUnit;
   const versionOf = new Map(versions.map((v) => [v.versionId, v]));
   const slugOf = (row: EstimationContrast) => versionOf.get(row.versionId)?.datasetSlug ?? "";
 
@@ -93,7 +105,7 @@ async function analyseContrasts(
   const k = overall.units.length;
   const notes = [...sampleSizeNotes(k)];
   const crops = [...new Set(overall.units.map((u) => u.contrasts[0]!.crop))];
-  if (effect === "md" && units === "bu/ac" && crops.length > 1) {
+  if (isYield && effect === "md" && units === "bu/ac" && crops.length > 1) {
     notes.push(`Several crops (${crops.join(", ")}): each response is converted to bu/ac with its own crop's bushel weight, then pooled.`);
   }
   const combinedSiteYears = overall.units.filter((u) => u.contrasts.length > 1).length;
@@ -114,7 +126,7 @@ async function analyseContrasts(
       : null;
   if (fit) for (const n of fit.notes) if (!notes.includes(n) && !/^(Only|Two site-years)/.test(n)) notes.push(n);
 
-  const decision = decisionBlock(overall.units, fit, options, crops);
+  const decision = decisionBlock(overall.units, fit, options, crops, isYield);
   const subgroups = grouped && groupBy ? subgroupBlock(grouped.units, groupBy, options, decision) : null;
   const forestUnits = grouped ?? overall;
   const forestTau2 = (grouped ? subgroups?.tau2 : fit?.tau2) ?? 0;
@@ -194,6 +206,14 @@ async function analyseContrasts(
 
   return {
     k,
+    measure: {
+      name: measure.name,
+      title: measure.title,
+      unit: measureUnit,
+      better: measure.better,
+      rating: measure.rating,
+      scale: measure.scale ?? null,
+    },
     effect,
     units: unitLabel,
     rows: forestRows,
@@ -455,7 +475,13 @@ function subgroupFits(
 function breakEvenScale(
   options: Omit<MetaQuery, keyof TrialFilters>,
   crops: string[],
+  isYield: boolean,
 ): { unitsPerBushel: number | null; note: string | null } {
+  if (!isYield)
+    return {
+      unitsPerBushel: null,
+      note: "A break-even and the chance it pays apply to yield only: ask for measure=yield to compare with the cost.",
+    };
   if (options.effect === "lnrr")
     return { unitsPerBushel: null, note: "A break-even yield needs a yield response: ask for effect=md to compare with the cost." };
   if (options.units === "kg/ha") {
@@ -476,6 +502,7 @@ function decisionBlock(
   fit: ReturnType<typeof metaAnalysis> | null,
   options: Omit<MetaQuery, keyof TrialFilters>,
   crops: string[],
+  isYield: boolean,
 ): Result["decision"] {
   const notes: string[] = [];
   const price = options.price ?? null;
@@ -484,9 +511,10 @@ function decisionBlock(
     (options.productCost !== undefined || options.applicationCost !== undefined
       ? (options.productCost ?? 0) + (options.applicationCost ?? 0)
       : null);
-  const scale = breakEvenScale(options, crops);
+  const scale = breakEvenScale(options, crops, isYield);
   let breakEven: number | null = null;
-  if (price !== null && cost !== null) {
+  if (!isYield) notes.push(scale.note!);
+  else if (price !== null && cost !== null) {
     if (scale.note) notes.push(scale.note);
     if (scale.unitsPerBushel !== null) breakEven = breakEvenResponse(cost, price) * scale.unitsPerBushel;
   } else {

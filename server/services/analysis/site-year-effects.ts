@@ -23,7 +23,7 @@ export interface AnalysisUnit {
   yi: number;
   vi: number;
   df: number;
-  /** Check mean in the reported units (bu/ac or kg/ha). */
+  /** Check mean in the reported units (bu/ac or kg/ha for yield, else the measure's unit). */
   checkMean: number;
 }
 
@@ -32,21 +32,24 @@ export interface ExcludedContrast {
   reason: string;
 }
 
-/** kg/ha → the requested units for one crop (bu/ac with the crop's own bushel weight). */
-function yieldFactor(crop: string, units: YieldUnit): number | null {
-  if (units === "kg/ha") return 1;
+/**
+ * kg/ha → the requested units for one crop (bu/ac with the crop's own bushel weight). `null` units: a measure other
+ * than yield, answered in its own unit as stored.
+ */
+function yieldFactor(crop: string, units: YieldUnit | null): number | null {
+  if (units === null || units === "kg/ha") return 1;
   const standard = cropStandards[crop as StandardCrop];
   return standard ? 1 / kilogramsPerHectarePerBushelPerAcre(standard.poundsPerBushel) : null;
 }
 
 /** A contrast's effect in the requested scale, or why it cannot enter. */
-function contrastEffect(row: EstimationContrast, effect: EffectMeasure, units: YieldUnit): SiteYearEffect | { reason: string } {
+function contrastEffect(row: EstimationContrast, effect: EffectMeasure, units: YieldUnit | null): SiteYearEffect | { reason: string } {
   if (!(Number.isFinite(row.seKgHa) && row.seKgHa > 0)) {
     return { reason: "No within-site-year error: the SE of the response is 0 or missing, so the site-year cannot be weighted." };
   }
   if (effect === "lnrr") {
     if (row.lnrr !== null && row.lnrrVar !== null && row.lnrrVar > 0) return { yi: row.lnrr, vi: row.lnrrVar };
-    if (!(row.treatedMeanKgHa > 0 && row.checkMeanKgHa > 0)) return { reason: "No log response ratio: a mean yield is not positive." };
+    if (!(row.treatedMeanKgHa > 0 && row.checkMeanKgHa > 0)) return { reason: "No log response ratio: a mean is not positive." };
     // MSE/r from the balanced identity SE² = 2·MSE/r.
     return logResponseRatioEffect({
       treatmentMean: row.treatedMeanKgHa,
@@ -65,7 +68,12 @@ function contrastEffect(row: EstimationContrast, effect: EffectMeasure, units: Y
  * the covariance MSE/r that the shared check induces (Borenstein et al. 2009, ch. 24). MSE/r is recovered as SE²/2,
  * exact for a balanced RCBD; for unbalanced site-years the smallest contrast's SE²/2 is used, a close approximation.
  */
-function combineUnit(contrasts: EstimationContrast[], effects: SiteYearEffect[], effect: EffectMeasure, units: YieldUnit): SiteYearEffect {
+function combineUnit(
+  contrasts: EstimationContrast[],
+  effects: SiteYearEffect[],
+  effect: EffectMeasure,
+  units: YieldUnit | null,
+): SiteYearEffect {
   if (effects.length === 1) return effects[0]!;
   const sems = contrasts.map((c) => c.seKgHa ** 2 / 2);
   const first = contrasts[0]!;
@@ -81,7 +89,7 @@ function combineUnit(contrasts: EstimationContrast[], effects: SiteYearEffect[],
 /** Group contrasts into analysis units by site-year (and group level), leaving out what cannot be computed. */
 export function buildUnits(
   rows: EstimationContrast[],
-  options: { effect: EffectMeasure; units: YieldUnit; levelOf?: (row: EstimationContrast) => string },
+  options: { effect: EffectMeasure; units: YieldUnit | null; levelOf?: (row: EstimationContrast) => string },
 ): { units: AnalysisUnit[]; excluded: ExcludedContrast[] } {
   const excluded: ExcludedContrast[] = [];
   // Keyed by site-year id alone when ungrouped: at 20,000 site-years string keys were a visible share of the time.

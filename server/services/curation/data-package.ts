@@ -130,6 +130,8 @@ export function dataPackageDescriptor(
       units: "yields kg/ha at the crop's standard moisture; nutrient rates lb/ac of N, P2O5, K2O and S",
       // The schemes soil_tests rows name in `interpretation` (the built-in ones are listed in the API's OpenAPI document).
       ...(version.tableSchema.soilTestSchemes?.length ? { soilTestSchemes: version.tableSchema.soilTestSchemes } : {}),
+      // The measures the plots resource adds beside the built-in ones, with their unit and better direction.
+      ...(version.tableSchema.measures?.length ? { measures: version.tableSchema.measures } : {}),
     },
     resources: built.map((r) => ({
       name: r.name,

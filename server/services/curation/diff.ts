@@ -5,7 +5,7 @@ import type { VersionDiffRows } from "@/schemas/review";
 import type { ResourceName, TableSchemaDescriptor } from "@/schemas/table-schema";
 import { badRequest } from "@/server/errors";
 import { versionById } from "./access";
-import { columnSql, fieldsOf, firstAlias, resourceOrder, resourceQueries } from "./resource-csv";
+import { columnOf, fieldsOf, firstAlias, resourceOrder, resourceQueries } from "./resource-csv";
 
 const keyOf: Record<ResourceName, string> = {
   sites: "s.code",
@@ -20,9 +20,9 @@ const perSiteYear: ResourceName[] = ["soil_tests", "plots", "summaries"];
 const uuid = (s: string) => `'${s.replace(/[^0-9a-f-]/gi, "")}'`;
 const rowsOf = <T>(r: unknown) => (r as { rows: T[] }).rows;
 
-function sides(resource: ResourceName, fields: string[], from: string, to: string) {
+function sides(schema: TableSchemaDescriptor, resource: ResourceName, fields: string[], from: string, to: string) {
   const q = resourceQueries[resource];
-  const json = `jsonb_build_object(${fields.map((f) => `'${f}', (${columnSql(resource, f)})::text`).join(", ")})`;
+  const json = `jsonb_build_object(${fields.map((f) => `'${f}', (${columnOf(schema, resource, f)})::text`).join(", ")})`;
   const side = (v: string) =>
     `SELECT ${keyOf[resource]} AS k, ${json} AS j FROM ${q.from} WHERE ${firstAlias[resource]}.version_id = ${uuid(v)}`;
   return `WITH a AS (${side(from)}), b AS (${side(to)})`;
@@ -104,7 +104,7 @@ export async function diffVersions(db: Db, fromId: string, toId: string): Promis
 
   for (const resource of resourceOrder) {
     const common = fieldsOf(from.tableSchema, resource).filter((f) => fieldsOf(to.tableSchema, resource).includes(f));
-    const withs = sides(resource, common, from.id, to.id);
+    const withs = sides(to.tableSchema, resource, common, from.id, to.id);
     const counts = rowsOf<{ kind: string; n: number | string }>(
       await db.execute(
         sql.raw(`${withs} SELECT ${kind} AS kind, count(*) AS n FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j GROUP BY 1`),
@@ -229,7 +229,7 @@ export async function diffRows(
   if (from.datasetId !== to.datasetId)
     throw badRequest("Both versions must belong to the same dataset.", [{ field: "query.to", message: "another dataset's version" }]);
   const fields = fieldsOf(from.tableSchema, resource).filter((f) => fieldsOf(to.tableSchema, resource).includes(f));
-  const withs = sides(resource, fields, from.id, to.id);
+  const withs = sides(to.tableSchema, resource, fields, from.id, to.id);
   const only = change ? ` AND ${kind} = '${change}'` : "";
   const body = `FROM a FULL JOIN b ON a.k = b.k WHERE a.j IS DISTINCT FROM b.j${only}`;
   const [counted] = rowsOf<{ n: number | string }>(await db.execute(sql.raw(`${withs} SELECT count(*) AS n ${body}`)));

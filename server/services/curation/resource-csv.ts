@@ -117,16 +117,24 @@ export const firstAlias: Record<ResourceName, string> = {
   summaries: "m",
 };
 
-/** The fields of a resource in the version's data dictionary order: stored columns and the curator's own fields. */
-export function fieldsOf(schema: TableSchemaDescriptor, resource: ResourceName): string[] {
-  return (schema.resources[resource]?.fields ?? [])
-    .map((f) => f.name)
-    .filter((f) => f in resourceQueries[resource].columns || customFieldName.test(f));
+/**
+ * The SQL expression of one field, or undefined when Plotbank stores no such field: the table's columns; for plots
+ * the measures the data dictionary adds (kept by name in plots.other_measures; measure names are snake_case by the
+ * contract, so they are safe inside the literal); and the curator's own fields, kept in custom_values.
+ */
+export function columnOf(schema: TableSchemaDescriptor, resource: ResourceName, field: string): string | undefined {
+  const stored = resourceQueries[resource].columns[field];
+  if (stored !== undefined) return stored;
+  if (resource === "plots" && /^[a-z][a-z0-9_]*$/.test(field) && (schema.measures ?? []).some((m) => m.name === field))
+    return `p.other_measures->>'${field}'`;
+  if (customFieldName.test(field)) return customColumnSql(resource, field);
+  return undefined;
 }
 
-/** A field's SQL over the resource's FROM clause: its column, or its value among the custom values. */
-export const columnSql = (resource: ResourceName, field: string): string =>
-  resourceQueries[resource].columns[field] ?? customColumnSql(resource, field);
+/** The fields of a resource in the version's data dictionary order: stored columns, added measures and the curator's own fields. */
+export function fieldsOf(schema: TableSchemaDescriptor, resource: ResourceName): string[] {
+  return (schema.resources[resource]?.fields ?? []).map((f) => f.name).filter((f) => columnOf(schema, resource, f) !== undefined);
+}
 
 const PAGE = 100_000;
 
@@ -137,11 +145,12 @@ const PAGE = 100_000;
 async function* resourcePages(
   db: Db | Tx,
   versionId: string,
+  schema: TableSchemaDescriptor,
   fields: string[],
   resource: ResourceName,
 ): AsyncGenerator<(string | null)[][]> {
   const q = resourceQueries[resource];
-  const select = fields.map((f, i) => `(${columnSql(resource, f)})::text AS c${i}`).join(", ");
+  const select = fields.map((f, i) => `(${columnOf(schema, resource, f)})::text AS c${i}`).join(", ");
   for (let offset = 0; ; offset += PAGE) {
     const result = await db.execute(
       sql.raw(
@@ -174,7 +183,7 @@ export async function* resourceCsvChunks(
     fields.map((f) => types.get(f) === "string"),
   );
   yield writer.headerLine();
-  for await (const page of resourcePages(db, versionId, fields, resource)) yield writer.rows(page);
+  for await (const page of resourcePages(db, versionId, schema, fields, resource)) yield writer.rows(page);
   for (const name of writer.guardedColumns) guarded?.add(name);
 }
 

@@ -4,6 +4,7 @@ import type { ProblemLocation } from "@/server/errors";
 import { builtInSchemeNames } from "@/server/services/soil-test-schemes";
 import type { FieldRename } from "@/schemas/curation";
 import { customFieldName, isStoredField } from "@/server/services/ingest/custom-fields";
+import { builtInMeasureDefinitions, isBuiltInMeasure, standUnits } from "@/constants/measures";
 import { resourceOrder, resourceQueries } from "./resource-csv";
 
 /**
@@ -48,10 +49,14 @@ export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocati
     const b = base.resources[resource]!;
     const baseTypes = new Map(b.fields.map((f) => [f.name, f.type]));
     const names = new Set<string>();
+    const measureFields = new Set(resource === "plots" ? (next.measures ?? []).map((m) => m.name) : []);
     r.fields.forEach((f, i) => {
       if (names.has(f.name)) problems.push({ field: `${where}.fields.${i}.name`, message: `field ${f.name} appears twice` });
       names.add(f.name);
-      if (!(f.name in resourceQueries[resource].columns)) {
+      if (measureFields.has(f.name) && !(f.name in resourceQueries[resource].columns)) {
+        if (f.type !== "number")
+          problems.push({ field: `${where}.fields.${i}.type`, message: `field ${f.name} holds a measure, so its type is number` });
+      } else if (!(f.name in resourceQueries[resource].columns)) {
         // A field of the curator's own: its values are kept beside the row (custom_values), under a plain name.
         if (!customFieldName.test(f.name))
           problems.push({
@@ -89,7 +94,39 @@ export function checkTableSchemaEdit(next: TableSchemaDescriptor): ProblemLocati
       problems.push({ field: `${where}.foreignKeys`, message: `the foreign keys of ${resource} cannot change` });
     }
   }
-  problems.push(...checkSoilTestSchemes(next));
+  problems.push(...checkSoilTestSchemes(next), ...checkMeasures(next));
+  return problems;
+}
+
+/**
+ * The measures a version adds: one per name, under names neither the built-in measures nor the stored plots columns
+ * use, each with its number field in plots. The stand count's unit is one Plotbank can convert to plants/ac.
+ */
+function checkMeasures(next: TableSchemaDescriptor): ProblemLocation[] {
+  const problems: ProblemLocation[] = [];
+  const plotFields = new Map((next.resources.plots?.fields ?? []).map((f) => [f.name, f]));
+  const stand = plotFields.get(builtInMeasureDefinitions.stand.field);
+  if (stand?.unit !== undefined && !(standUnits as readonly string[]).includes(stand.unit))
+    problems.push({
+      field: "body.resources.plots.fields.stand_count.unit",
+      message: `stand counts are given in ${standUnits.join(" or ")}; "${stand.unit}" cannot be converted`,
+    });
+  const seen = new Set<string>();
+  (next.measures ?? []).forEach((m, i) => {
+    const where = `body.measures.${i}.name`;
+    if (isBuiltInMeasure(m.name) || m.name in resourceQueries.plots.columns)
+      problems.push({
+        field: where,
+        message: `"${m.name}" is a built-in measure or a stored plots column; give the measure a name of its own`,
+      });
+    else if (!plotFields.has(m.name))
+      problems.push({
+        field: where,
+        message: `measure ${m.name} needs a number field named ${m.name} in resources.plots, which holds its values`,
+      });
+    if (seen.has(m.name)) problems.push({ field: where, message: `measure ${m.name} appears twice` });
+    seen.add(m.name);
+  });
   return problems;
 }
 

@@ -104,7 +104,12 @@ async function resourceCounts(db: Db, versionId: string): Promise<Record<Resourc
     n(treatments),
     n(plots),
     n(summaryMeans),
-    n(responses),
+    // Yield responses, one per site-year × treatment (other measures' responses sit beside them).
+    db
+      .select({ n: count() })
+      .from(responses)
+      .where(and(eq(responses.versionId, versionId), eq(responses.measure, "yield")))
+      .then((r) => r[0]?.n ?? 0),
   ]);
   return { sites: a, site_years: b, soil_tests: c, treatments: d, plots: e, summaries: f, responses: g };
 }

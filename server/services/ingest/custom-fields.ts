@@ -27,9 +27,18 @@ export const customFieldName = /^[a-z][a-zA-Z0-9_]{0,63}$/;
 
 export const isStoredField = (resource: ResourceName, name: string): boolean => name in resourceQueries[resource].columns;
 
-/** The fields of a resource's dictionary that Plotbank has no column for. */
-export function customFieldsOf(resource: ResourceName, schema: TableSchemaResource | undefined): string[] {
-  return (schema?.fields ?? []).map((f) => f.name).filter((name) => !isStoredField(resource, name));
+/**
+ * The fields of a resource's dictionary that Plotbank has no column for. Measures the dictionary adds to plots are
+ * not among them: their values go to plots.other_measures, where the analyses read them.
+ */
+export function customFieldsOf(
+  resource: ResourceName,
+  schema: TableSchemaResource | undefined,
+  measureNames: readonly string[] = [],
+): string[] {
+  return (schema?.fields ?? [])
+    .map((f) => f.name)
+    .filter((name) => !isStoredField(resource, name) && !(resource === "plots" && measureNames.includes(name)));
 }
 
 const SEPARATOR = "\u001f";

@@ -134,8 +134,11 @@ export async function checkRows(
     versionId: version.id,
     bulkCopy: ctx.database.kind === "pglite",
     soilTestSchemes: version.tableSchema.soilTestSchemes ?? [],
+    measures: version.tableSchema.measures ?? [],
+    standUnit: version.tableSchema.resources.plots?.fields.find((f) => f.name === "stand_count")?.unit,
   });
-  const custom = new CustomValueBuffer(input.resource, customFieldsOf(input.resource, schema));
+  const measureNames = (version.tableSchema.measures ?? []).map((m) => m.name);
+  const custom = new CustomValueBuffer(input.resource, customFieldsOf(input.resource, schema, measureNames));
   let columns: (CompiledField | null)[] = [];
   let header: string[] = [];
   const fieldNames = schema.fields.map((f) => f.name);

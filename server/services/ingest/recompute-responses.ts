@@ -1,6 +1,7 @@
-import { and, asc, eq, inArray, isNotNull } from "drizzle-orm";
+import { and, asc, eq, inArray, isNotNull, or } from "drizzle-orm";
 import type { Database } from "@/db/client";
-import { plots, responses, sites, siteYears, soilTests, summaryMeans, treatments } from "@/db/schema";
+import { plots, responses, sites, siteYears, soilTests, summaryMeans, treatments, versions } from "@/db/schema";
+import { builtInMeasureDefinitions } from "@/constants/measures";
 import type { Cell } from "./field-values";
 import type { Affected } from "./resource-ingest";
 import { responsesFromPlots, responsesFromSummaries, type SiteYearOutcome } from "./site-year-responses";
@@ -9,6 +10,7 @@ import { writableKeys, type FullRow } from "@/db/columns";
 
 export interface RecomputeResult {
   siteYears: number;
+  /** Yield responses written (the responses of other measures are written beside them, and not counted here). */
   rows: number;
   uncomputed: { siteYear: string; reason: string }[];
 }
@@ -46,7 +48,11 @@ export async function recomputeResponses(
     responseKeys,
     computed.rows.map((row) => responseKeys.map((key) => row[key])),
   );
-  return { siteYears: computed.siteYearIds.length, rows: computed.rows.length, uncomputed: computed.uncomputed };
+  return {
+    siteYears: computed.siteYearIds.length,
+    rows: computed.rows.filter((r) => r.measure === "yield").length,
+    uncomputed: computed.uncomputed,
+  };
 }
 
 /**
@@ -94,7 +100,11 @@ export async function computeResponses(
   const siteYearIds = syRows.map((s) => s.id);
   const rows: ResponseRow[] = [];
 
-  const trtRows = await tx.select().from(treatments).where(eq(treatments.versionId, versionId));
+  const [trtRows, [version]] = await Promise.all([
+    tx.select().from(treatments).where(eq(treatments.versionId, versionId)),
+    tx.select({ tableSchema: versions.tableSchema }).from(versions).where(eq(versions.id, versionId)),
+  ]);
+  const addedMeasures = (version?.tableSchema.measures ?? []).map((m) => m.name);
   const trtById = new Map(trtRows.map((t) => [t.id, t]));
   const isCheck = (id: number) => trtById.get(id)?.isCheck === true;
   const uncomputed: RecomputeResult["uncomputed"] = [];
@@ -103,7 +113,7 @@ export async function computeResponses(
   for (let start = 0; start < syRows.length; start += CHUNK) {
     const chunk = syRows.slice(start, start + CHUNK);
     const chunkIds = chunk.map((s) => s.id);
-    const [plotRows, meanRows, soilRows] = await Promise.all([
+    const [plotRows, meanRows, soilRows, measureRows] = await Promise.all([
       fileOutcomes
         ? Promise.resolve([])
         : tx
@@ -112,7 +122,9 @@ export async function computeResponses(
             .where(and(inArray(plots.siteYearId, chunkIds), isNotNull(plots.yieldKgHa))),
       tx.select().from(summaryMeans).where(inArray(summaryMeans.siteYearId, chunkIds)),
       tx.select().from(soilTests).where(inArray(soilTests.siteYearId, chunkIds)),
+      readOtherMeasures(tx, chunkIds, addedMeasures.length > 0),
     ]);
+    const otherBySy = otherMeasurePlots(measureRows, addedMeasures);
     const plotsBySy = new Map<number, { treatmentId: number; block: number; y: number }[]>();
     for (const p of plotRows) {
       let list = plotsBySy.get(p.siteYearId);
@@ -153,56 +165,113 @@ export async function computeResponses(
       const p = soil?.get("P"),
         k = soil?.get("K"),
         s = soil?.get("S");
-      for (const r of outcome.rows) {
-        const t = trtById.get(r.treatmentId)!;
-        out.push({
-          versionId,
-          siteYearId: sy.id,
-          treatmentId: r.treatmentId,
-          checkTreatmentId: r.checkTreatmentId,
-          siteCode: sy.siteCode,
-          siteYearCode: sy.code,
-          treatmentCode: t.code,
-          crop: sy.crop,
-          year: sy.year,
-          tillage: sy.tillage,
-          rowSpacingIn: sy.rowSpacingIn,
-          plantingDate: sy.plantingDate,
-          nutrients: pgArray(t.nutrients),
-          placements: pgArray(t.placements),
-          nLbAc: t.nLbAc,
-          p2o5LbAc: t.p2o5LbAc,
-          k2oLbAc: t.k2oLbAc,
-          sLbAc: t.sLbAc,
-          soilPClass: p?.cls ?? null,
-          soilPValue: p?.value ?? null,
-          soilKClass: k?.cls ?? null,
-          soilKValue: k?.value ?? null,
-          soilSClass: s?.cls ?? null,
-          soilSValue: s?.value ?? null,
-          checkMeanKgHa: r.checkMean,
-          treatedMeanKgHa: r.treatedMean,
-          mdKgHa: r.md,
-          seKgHa: r.se,
-          dfError: r.dfError,
-          lnrr: r.lnrr,
-          lnrrVar: r.lnrrVar,
-          pValue: r.pValue,
-          lsd05KgHa: r.lsd05,
-          cvPct: r.cvPct,
-          replicates: r.replicates,
-          balanced: r.balanced,
-          fromSummary: r.fromSummary,
-          testedNutrientsStated: t.testedNutrientsStated ? pgArray(t.testedNutrientsStated) : null,
-          soilPReportedClass: p?.reported ?? null,
-          soilPScheme: p?.scheme ?? null,
-          soilKReportedClass: k?.reported ?? null,
-          soilKScheme: k?.scheme ?? null,
-          soilSReportedClass: s?.reported ?? null,
-          soilSScheme: s?.scheme ?? null,
-        });
+      // Yield first, then every other measure the site-year's plots record (a measure that cannot be computed for
+      // a site-year has no responses there; only yield's reasons are reported).
+      const measured: { measure: string; rows: typeof outcome.rows }[] = [{ measure: "yield", rows: outcome.rows }];
+      for (const [measure, list] of otherBySy.get(sy.id) ?? []) {
+        const other = responsesFromPlots(list, isCheck);
+        if (other.ok) measured.push({ measure, rows: other.rows });
       }
+      for (const { measure, rows: measureResponses } of measured)
+        for (const r of measureResponses) {
+          const t = trtById.get(r.treatmentId)!;
+          out.push({
+            versionId,
+            measure,
+            siteYearId: sy.id,
+            treatmentId: r.treatmentId,
+            checkTreatmentId: r.checkTreatmentId,
+            siteCode: sy.siteCode,
+            siteYearCode: sy.code,
+            treatmentCode: t.code,
+            crop: sy.crop,
+            year: sy.year,
+            tillage: sy.tillage,
+            rowSpacingIn: sy.rowSpacingIn,
+            plantingDate: sy.plantingDate,
+            nutrients: pgArray(t.nutrients),
+            placements: pgArray(t.placements),
+            nLbAc: t.nLbAc,
+            p2o5LbAc: t.p2o5LbAc,
+            k2oLbAc: t.k2oLbAc,
+            sLbAc: t.sLbAc,
+            soilPClass: p?.cls ?? null,
+            soilPValue: p?.value ?? null,
+            soilKClass: k?.cls ?? null,
+            soilKValue: k?.value ?? null,
+            soilSClass: s?.cls ?? null,
+            soilSValue: s?.value ?? null,
+            checkMeanKgHa: r.checkMean,
+            treatedMeanKgHa: r.treatedMean,
+            mdKgHa: r.md,
+            seKgHa: r.se,
+            dfError: r.dfError,
+            lnrr: r.lnrr,
+            lnrrVar: r.lnrrVar,
+            pValue: r.pValue,
+            lsd05KgHa: r.lsd05,
+            cvPct: r.cvPct,
+            replicates: r.replicates,
+            balanced: r.balanced,
+            fromSummary: r.fromSummary,
+            testedNutrientsStated: t.testedNutrientsStated ? pgArray(t.testedNutrientsStated) : null,
+            soilPReportedClass: p?.reported ?? null,
+            soilPScheme: p?.scheme ?? null,
+            soilKReportedClass: k?.reported ?? null,
+            soilKScheme: k?.scheme ?? null,
+            soilSReportedClass: s?.reported ?? null,
+            soilSScheme: s?.scheme ?? null,
+          });
+        }
     }
   }
   return { siteYearIds, rows, uncomputed };
+}
+
+/** The plots columns of the built-in measures other than yield, by measure name. */
+const otherBuiltIns = {
+  stand: plots.standCount,
+  vigour: plots.vigour,
+  "test-weight": plots.testWeight,
+  moisture: plots.harvestMoisturePct,
+} as const satisfies Partial<Record<keyof typeof builtInMeasureDefinitions, unknown>>;
+
+/** The plots of a chunk of site-years that record any measure besides yield. */
+function readOtherMeasures(tx: Tx, siteYearIds: number[], withAdded: boolean) {
+  const recorded = [...Object.values(otherBuiltIns).map((c) => isNotNull(c)), ...(withAdded ? [isNotNull(plots.otherMeasures)] : [])];
+  return tx
+    .select({
+      siteYearId: plots.siteYearId,
+      treatmentId: plots.treatmentId,
+      block: plots.block,
+      ...otherBuiltIns,
+      otherMeasures: plots.otherMeasures,
+    })
+    .from(plots)
+    .where(and(inArray(plots.siteYearId, siteYearIds), or(...recorded)));
+}
+
+type MeasurePlot = { treatmentId: number; block: number; y: number };
+
+/** Site-year → measure → its plots with a value, for every measure but yield. */
+function otherMeasurePlots(rows: Awaited<ReturnType<typeof readOtherMeasures>>, added: string[]): Map<number, Map<string, MeasurePlot[]>> {
+  const out = new Map<number, Map<string, MeasurePlot[]>>();
+  const push = (siteYearId: number, measure: string, plot: MeasurePlot) => {
+    let bySy = out.get(siteYearId);
+    if (!bySy) out.set(siteYearId, (bySy = new Map()));
+    let list = bySy.get(measure);
+    if (!list) bySy.set(measure, (list = []));
+    list.push(plot);
+  };
+  for (const row of rows) {
+    for (const measure of Object.keys(otherBuiltIns) as (keyof typeof otherBuiltIns)[]) {
+      const y = row[measure];
+      if (y !== null && Number.isFinite(y)) push(row.siteYearId, measure, { treatmentId: row.treatmentId, block: row.block, y });
+    }
+    for (const measure of added) {
+      const y = row.otherMeasures?.[measure];
+      if (typeof y === "number" && Number.isFinite(y)) push(row.siteYearId, measure, { treatmentId: row.treatmentId, block: row.block, y });
+    }
+  }
+  return out;
 }

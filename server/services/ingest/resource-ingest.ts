@@ -1,7 +1,7 @@
 import type { Database } from "@/db/client";
 import type { UploadOptions } from "@/schemas/curation";
 import type { SoilTestScheme } from "@/schemas/soil-test-schemes";
-import type { ResourceName } from "@/schemas/table-schema";
+import type { DictionaryMeasure, ResourceName } from "@/schemas/table-schema";
 import type { DraftState } from "./draft-state";
 import type { Cell } from "./field-values";
 import type { PlotOutcomeRequest } from "./plot-outcomes";
@@ -20,6 +20,10 @@ export interface IngestContext {
   bulkCopy: boolean;
   /** Soil-test interpretation schemes registered in the version's data dictionary (beside the built-in ones). */
   soilTestSchemes: SoilTestScheme[];
+  /** Measures the version's data dictionary adds; plots files carry their values in fields of the same names. */
+  measures: DictionaryMeasure[];
+  /** The unit the data dictionary states for stand_count (plants/ac, or plants/10 ft row to convert). */
+  standUnit: string | undefined;
 }
 
 /** Which site-years' responses must be computed again after a write. */

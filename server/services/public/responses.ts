@@ -1,5 +1,5 @@
 import { and, eq, gt, sql, type SQL } from "drizzle-orm";
-import { alias } from "drizzle-orm/pg-core";
+import { alias, type AnyPgColumn } from "drizzle-orm/pg-core";
 import { responses, treatments } from "@/db/schema";
 import type { TrialFilters } from "@/schemas/filters";
 import { responseRow, type ResponseRow } from "@/schemas/public";
@@ -13,6 +13,7 @@ import {
   testedNutrients,
 } from "@/server/services/tested-nutrients";
 import { responseConditions } from "@/server/services/trial-filter";
+import { resolveMeasure } from "@/server/services/measures";
 import {
   columnsFromFields,
   encodedPage,
@@ -28,13 +29,27 @@ import {
 
 const checkTreatment = alias(treatments, "check_treatment");
 
+type ResponseFilters = TrialFilters & { measure?: string };
+
+/** The WHERE of a page: the filters within the versions read, of one measure (yield unless asked), after the cursor. */
+function pageConditions(scope: RowScope<ResponseFilters>, afterId: number) {
+  const { measure = "yield", ...filters } = scope.filters;
+  return and(responseConditions(filters, versionIdsOf(scope), measure), gt(responses.id, afterId));
+}
+
+/** Yield converts to the asked units; every other measure is answered in its own unit (null: yield). */
+async function measureOf(db: Db, scope: RowScope<ResponseFilters>) {
+  const measure = scope.filters.measure ?? "yield";
+  return { measure, definition: measure === "yield" ? null : await resolveMeasure(db, measure, versionIdsOf(scope)) };
+}
+
 /** The stored responses a page reads, with their check's code: the SELECT both encodings start from (bench/api.ts times it bare). */
-export function responseQuery(db: Db, scope: RowScope<TrialFilters>, afterId: number, limit: number) {
+export function responseQuery(db: Db, scope: RowScope<ResponseFilters>, afterId: number, limit: number) {
   return db
     .select({ r: responses, checkTreatmentCode: checkTreatment.code })
     .from(responses)
     .innerJoin(checkTreatment, eq(checkTreatment.id, responses.checkTreatmentId))
-    .where(and(responseConditions(scope.filters, versionIdsOf(scope)), gt(responses.id, afterId)))
+    .where(pageConditions(scope, afterId))
     .orderBy(responses.id)
     .limit(limit);
 }
@@ -43,14 +58,16 @@ export function responseQuery(db: Db, scope: RowScope<TrialFilters>, afterId: nu
  * One row per site-year × treatment against its check: the mean difference with its SE and df, the site-year's
  * own p and LSD, and the covariates the filters use. Differences, SEs and LSDs convert like yields (linearly).
  */
-export const responseResource: RowResource<ResponseRow, TrialFilters> = {
+export const responseResource: RowResource<ResponseRow, ResponseFilters> = {
   name: "responses",
   row: responseRow,
   async readBatch(db, scope, afterId, limit) {
     const from = provenanceLookup(scope);
+    const { measure, definition } = await measureOf(db, scope);
     const rows = await responseQuery(db, scope, afterId, limit);
     return rows.map(({ r, checkTreatmentCode }) => {
-      const { unit, convert: y } = yieldConverter(r.crop, scope.units);
+      const asYield = yieldConverter(r.crop, scope.units);
+      const y = definition ? (x: number) => x : asYield.convert;
       const tested = testedNutrients(r);
       const counted = countedSoilTest(tested, r, filterNutrientsOf(scope.filters));
       return {
@@ -87,8 +104,11 @@ export const responseResource: RowResource<ResponseRow, TrialFilters> = {
         soilSValue: r.soilSValue,
         soilSReportedClass: r.soilSReportedClass,
         soilSScheme: r.soilSScheme,
-        yieldUnit: unit,
+        yieldUnit: asYield.unit,
         moistureBasisPct: moistureBasisOf(r.crop),
+        measure,
+        unit: definition ? definition.unit : asYield.unit,
+        relativeToCheck: r.checkMeanKgHa > 0 ? r.treatedMeanKgHa / r.checkMeanKgHa : null,
         checkMean: y(r.checkMeanKgHa),
         treatedMean: y(r.treatedMeanKgHa),
         md: y(r.mdKgHa),
@@ -105,7 +125,8 @@ export const responseResource: RowResource<ResponseRow, TrialFilters> = {
       };
     });
   },
-  readJsonPage: (db, scope, afterId, limit) => jsonPage(db, scope, responseFieldsSql(scope), afterId, limit),
+  readJsonPage: async (db, scope, afterId, limit) =>
+    jsonPage(db, scope, responseFieldsSql(scope, await measureOf(db, scope)), afterId, limit),
   csvColumns: columnsFromFields<ResponseRow>(Object.keys(responseRow.shape) as (keyof ResponseRow)[]),
 };
 
@@ -123,8 +144,13 @@ const soilClass = { P: responses.soilPClass, K: responses.soilKClass, S: respons
  * row's fields, so a field added to the contract and not here is a type error; tests/server/api-rows-sql-json.test.ts
  * compares both paths on random data and filters.
  */
-function responseFieldsSql(scope: RowScope<TrialFilters>): Record<keyof ResponseRow, SQL> {
-  const { provenance, yieldUnit, moistureBasis, convert } = yieldConverterSql(scope, responses.versionId, responses.crop);
+function responseFieldsSql(
+  scope: RowScope<ResponseFilters>,
+  { measure, definition }: Awaited<ReturnType<typeof measureOf>>,
+): Record<keyof ResponseRow, SQL> {
+  const asYield = yieldConverterSql(scope, responses.versionId, responses.crop);
+  const { provenance, yieldUnit, moistureBasis } = asYield;
+  const convert = definition ? (column: AnyPgColumn) => sql`${column}` : asYield.convert;
   const filterNutrients = filterNutrientsOf(scope.filters);
   return {
     id: sql`${responses.id}`,
@@ -162,6 +188,9 @@ function responseFieldsSql(scope: RowScope<TrialFilters>): Record<keyof Response
     soilSScheme: sql`${responses.soilSScheme}`,
     yieldUnit,
     moistureBasisPct: moistureBasis,
+    measure: sql`${measure}::text`,
+    unit: definition ? sql`${definition.unit}::text` : yieldUnit,
+    relativeToCheck: sql`(CASE WHEN ${responses.checkMeanKgHa} > 0 THEN ${responses.treatedMeanKgHa} / ${responses.checkMeanKgHa} END)`,
     checkMean: convert(responses.checkMeanKgHa),
     treatedMean: convert(responses.treatedMeanKgHa),
     md: convert(responses.mdKgHa),
@@ -178,7 +207,7 @@ function responseFieldsSql(scope: RowScope<TrialFilters>): Record<keyof Response
   };
 }
 
-function jsonPage(db: Db, scope: RowScope<TrialFilters>, fields: Record<string, SQL>, afterId: number, limit: number) {
+function jsonPage(db: Db, scope: RowScope<ResponseFilters>, fields: Record<string, SQL>, afterId: number, limit: number) {
   const select = sql.join(
     Object.entries(fields).map(([name, value]) => sql`${value} AS ${sql.identifier(name)}`),
     sql`, `,
@@ -186,7 +215,7 @@ function jsonPage(db: Db, scope: RowScope<TrialFilters>, fields: Record<string, 
   return encodedPage(
     db,
     sql`SELECT ${select} FROM ${responses} INNER JOIN ${treatments} ${sql.identifier("check_treatment")} ON ${eq(checkTreatment.id, responses.checkTreatmentId)}
-        WHERE ${and(responseConditions(scope.filters, versionIdsOf(scope)), gt(responses.id, afterId))}
+        WHERE ${pageConditions(scope, afterId)}
         ORDER BY ${responses.id} LIMIT ${limit + 1}`,
     limit,
   );

@@ -131,7 +131,12 @@ export async function versionDetail(db: Db, v: PathVersion): Promise<VersionDeta
     n(siteYears),
     n(treatments),
     n(plots),
-    n(responses),
+    // Counted as yield responses (a site-year × treatment), whatever other measures the plots record.
+    db
+      .select({ n: count() })
+      .from(responses)
+      .where(and(eq(responses.versionId, id), eq(responses.measure, "yield")))
+      .then((r) => r[0]?.n ?? 0),
     db
       .select({ from: min(siteYears.year), to: max(siteYears.year) })
       .from(siteYears)

@@ -1,4 +1,5 @@
 import { and, eq, inArray } from "drizzle-orm";
+import { plantsPerAcreFromPer10Ft } from "@/constants/measures";
 import { plots } from "@/db/schema";
 import { toStandardMoisture, yieldFactorToKgHa } from "../edge-units";
 import { num, type IngestContext, type ResourceIngest } from "../resource-ingest";
@@ -10,7 +11,8 @@ import { balanceRule, checkRule, newTally, outlierRule, type SiteYearTally } fro
 const MOISTURE_MIN = 5;
 const MOISTURE_MAX = 40;
 
-export function plotsIngest({ state, options, report, versionId, bulkCopy }: IngestContext): ResourceIngest {
+export function plotsIngest({ state, options, report, versionId, bulkCopy, measures, standUnit }: IngestContext): ResourceIngest {
+  const standPer10Ft = standUnit === "plants/10 ft row";
   const tallies = new Map<
     string,
     SiteYearTally & { factor: number; crop: string; blocks: number; rcbd: boolean; id: number; plots: Set<string> }
@@ -98,7 +100,37 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy }: Ing
         tally.yieldTreatmentIds.push(trt.id);
         tally.yieldBlocks.push(block);
       } else if (!tally.cells.has(cell)) tally.cells.set(cell, 0);
-      out.push([versionId, tally.id, trt.id, plot, block, y, moisture, num(v.stand_count), num(v.vigour), num(v.test_weight)]);
+      let stand = num(v.stand_count);
+      if (stand !== null && standPer10Ft) {
+        const rowSpacing = state.siteYears.get(code)?.rowSpacingIn ?? null;
+        if (rowSpacing === null || !(rowSpacing > 0)) {
+          report.error(
+            row,
+            "stand_count",
+            String(stand),
+            `stand counts are per 10 ft of row, and site-year "${code}" has no row spacing to turn them into plants/ac`,
+          );
+          stand = null;
+        } else stand = plantsPerAcreFromPer10Ft(stand, rowSpacing);
+      }
+      let added: Record<string, number> | null = null;
+      for (const m of measures) {
+        const value = num(v[m.name]);
+        if (value !== null) (added ??= {})[m.name] = value;
+      }
+      out.push([
+        versionId,
+        tally.id,
+        trt.id,
+        plot,
+        block,
+        y,
+        moisture,
+        stand,
+        num(v.vigour),
+        num(v.test_weight),
+        added === null ? null : JSON.stringify(added),
+      ]);
     },
     finish() {
       for (const tally of tallies.values()) {
@@ -146,6 +178,7 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy }: Ing
           "standCount",
           "vigour",
           "testWeight",
+          "otherMeasures",
         ],
         out,
       );
