@@ -1,5 +1,4 @@
 import { keepPreviousData, queryOptions, useQuery } from "@tanstack/react-query";
-import { staleTimeMs } from "@/constants/theme";
 import { api } from "@/lib/api-client";
 import { metaApiPath, type EvidenceState } from "@/lib/share-link";
 import { metaAnalysisResult } from "@/schemas/analysis";
@@ -15,10 +14,12 @@ const metaAnalysisQuery = (state: EvidenceState) => {
   return queryOptions({
     queryKey: analysisKeys.meta(path),
     queryFn: ({ signal }) => api(path, metaAnalysisResult, { signal }),
-    staleTime: staleTimeMs,
+    // A named published version never changes, so neither does its answer. Over the latest versions an answer holds
+    // until a new version is published: after 10 minutes it is asked again, and the browser sends its ETag, so an
+    // unchanged answer comes back as a 304 (no analysis, no quota).
+    staleTime: state.filters.dataset && state.filters.version && state.filters.version !== "latest" ? Infinity : 10 * 60_000,
     // Keep the last result on screen while a changed filter loads, so the page does not jump.
     placeholderData: keepPreviousData,
-    retry: (count, error) => count < 1 && !(error instanceof Error && "status" in error && (error as { status: number }).status === 400),
   });
 };
 

@@ -3,6 +3,7 @@ import cookieParser from "cookie-parser";
 import express, { type Express, type RequestHandler } from "express";
 import helmet from "helmet";
 import type { Database } from "@/db/client";
+import { appCookieOnApi, appCookieOnPages } from "./auth/app-cookie";
 import { authenticate } from "./auth/authenticate";
 import { csrfGuard } from "./auth/csrf";
 import { crawlerRoutes } from "./crawlers";
@@ -69,6 +70,7 @@ export function createApp({ database, config, webDistDir, apiObserver }: CreateA
   api.use(publicReadCors());
   api.use(express.json({ limit: "1mb" }));
   api.use(authenticate(ctx.db));
+  api.use(appCookieOnApi(config));
   api.use(csrfGuard(config.publicUrl));
   api.use(apiRateLimits(config));
   api.use(apiRoutes(ctx));
@@ -87,7 +89,7 @@ export function createApp({ database, config, webDistDir, apiObserver }: CreateA
   app.use(crawlerRoutes(ctx));
   if (webDistDir !== false) {
     app.use("/datasets", pageRateLimit(config));
-    webInlineScripts = mountWebApp(app, webDistDir, datasetPageHead(ctx));
+    webInlineScripts = mountWebApp(app, webDistDir, datasetPageHead(ctx), undefined, appCookieOnPages(config));
   }
   app.use(problemMiddleware);
   return { app, ctx };
