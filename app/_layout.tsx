@@ -1,22 +1,31 @@
-import { QueryClient, QueryClientProvider } from "@tanstack/react-query";
-import { useFonts } from "expo-font";
+import { QueryClientProvider } from "@tanstack/react-query";
+import { PersistQueryClientProvider } from "@tanstack/react-query-persist-client";
 import { Stack } from "expo-router";
 import { StatusBar } from "expo-status-bar";
 import { useState } from "react";
 import { AppFrame } from "@/components/app-frame";
-import { fontAssets } from "@/constants/fonts";
+import { useAppFontsReady } from "@/hooks/use-app-fonts";
+import { makeQueryClient, persistOptions } from "@/lib/query-client";
 
 export default function RootLayout() {
-  const [fontsLoaded, fontError] = useFonts(fontAssets);
-  const [queryClient] = useState(() => new QueryClient({ defaultOptions: { queries: { retry: 1, refetchOnWindowFocus: false } } }));
-  // Render once the shipped fonts are in (or failed: system fonts are an acceptable fallback).
-  if (!fontsLoaded && !fontError) return null;
-  return (
-    <QueryClientProvider client={queryClient}>
+  // Native waits for the shipped TTFs (or their failure); the web never waits (font-display: swap).
+  const fontsReady = useAppFontsReady();
+  const [queryClient] = useState(makeQueryClient);
+  const [persist] = useState(persistOptions);
+  if (!fontsReady) return null;
+  const tree = (
+    <>
       <StatusBar style="dark" />
       <AppFrame>
         <Stack screenOptions={{ headerShown: false, contentStyle: { backgroundColor: "transparent" } }} />
       </AppFrame>
-    </QueryClientProvider>
+    </>
+  );
+  return persist ? (
+    <PersistQueryClientProvider client={queryClient} persistOptions={persist}>
+      {tree}
+    </PersistQueryClientProvider>
+  ) : (
+    <QueryClientProvider client={queryClient}>{tree}</QueryClientProvider>
   );
 }

@@ -1,3 +1,5 @@
+import { fontFamilies } from "./font-families";
+
 /**
  * Plotbank's palette. Text colours are chosen for WCAG AA contrast (4.5:1 or more) on the surfaces they sit on:
  * ink on paper 14.8:1, muted on paper 6.0:1, white on field 6.4:1, danger on paper 6.1:1, wheatText on wheatTint 5.8:1.
@@ -32,12 +34,8 @@ export const soilClassColors: Record<string, string> = {
   very_high: "#253494",
 };
 
-export const fonts = {
-  regular: "Inter_400Regular",
-  medium: "Inter_500Medium",
-  semibold: "Inter_600SemiBold",
-  bold: "Inter_700Bold",
-} as const;
+/** Inter's faces (on the web followed by the system font, see constants/font-families.web.ts). */
+export const fonts = fontFamilies;
 
 export const space = { xs: 4, sm: 8, md: 12, lg: 16, xl: 24, xxl: 32 } as const;
 export const radius = { sm: 6, md: 10, lg: 14 } as const;

@@ -1,5 +1,4 @@
 import { keepPreviousData, queryOptions, useQuery } from "@tanstack/react-query";
-import { staleTimeMs } from "@/constants/theme";
 import { api } from "@/lib/api-client";
 import { metaApiPath, seedSafetyApiPath, type EvidenceState } from "@/lib/share-link";
 import { seedSafetyResult } from "@/schemas/seed-safety";
@@ -11,15 +10,22 @@ const analysisKeys = {
   meta: (path: string) => [...analysisKeys.metas(), path] as const,
 };
 
+/**
+ * How long an answer stays fresh: a named published version never changes, so neither does its answer. Over the
+ * latest versions an answer holds until a new version is published: after 10 minutes it is asked again, and the
+ * browser sends its ETag, so an unchanged answer comes back as a 304 (no analysis, no quota).
+ */
+const staleTimeOf = (state: EvidenceState) =>
+  state.filters.dataset && state.filters.version && state.filters.version !== "latest" ? Infinity : 10 * 60_000;
+
 const metaAnalysisQuery = (state: EvidenceState) => {
   const path = metaApiPath(state);
   return queryOptions({
     queryKey: analysisKeys.meta(path),
     queryFn: ({ signal }) => api(path, metaAnalysisResult, { signal }),
-    staleTime: staleTimeMs,
+    staleTime: staleTimeOf(state),
     // Keep the last result on screen while a changed filter loads, so the page does not jump.
     placeholderData: keepPreviousData,
-    retry: (count, error) => count < 1 && !(error instanceof Error && "status" in error && (error as { status: number }).status === 400),
   });
 };
 
@@ -35,7 +41,7 @@ export const useSoilTestLine = (state: EvidenceState) => {
   return useQuery({
     queryKey: [...analysisKeys.metas(), "soilTestValue", path],
     queryFn: ({ signal }) => api(path, metaAnalysisResult, { signal }),
-    staleTime: staleTimeMs,
+    staleTime: staleTimeOf(state),
     placeholderData: keepPreviousData,
     retry: (count, error) =>
       count < 1 && !(error instanceof Error && "status" in error && [400, 422].includes((error as { status: number }).status)),
@@ -47,7 +53,7 @@ const seedSafetyQuery = (state: EvidenceState) => {
   return queryOptions({
     queryKey: [...analysisKeys.all, "seed-safety", path] as const,
     queryFn: ({ signal }) => api(path, seedSafetyResult, { signal }),
-    staleTime: staleTimeMs,
+    staleTime: staleTimeOf(state),
     placeholderData: keepPreviousData,
   });
 };

@@ -95,7 +95,8 @@ export async function send(path: string, options: RequestOptions = {}): Promise<
     } catch {
       // Not problem+json (a proxy error page, say): report the status alone.
     }
-    throw new ApiError(res.status, problem, problem?.detail ?? problem?.title ?? `The server answered ${res.status}.`);
+    const retryAfter = res.status === 429 ? Number(res.headers.get("Retry-After")) || undefined : undefined;
+    throw new ApiError(res.status, problem, problem?.detail ?? problem?.title ?? `The server answered ${res.status}.`, { retryAfter });
   }
   return res;
 }

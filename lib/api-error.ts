@@ -13,18 +13,31 @@ export type ApiErrorKind = "offline" | "status" | "shape" | "not-json";
 /** Every failure of an API call, so callers and screens handle one error type. */
 export class ApiError extends Error {
   readonly kind: ApiErrorKind;
+  /** When the answer came (ms since the epoch), to count down a Retry-After from. */
+  readonly at = Date.now();
+  /** Seconds the server asked to wait (Retry-After of a 429). */
+  readonly retryAfter?: number;
   constructor(
     readonly status: number,
     readonly problem: Problem | null,
     message: string,
-    options: { kind?: ApiErrorKind; cause?: unknown } = {},
+    options: { kind?: ApiErrorKind; cause?: unknown; retryAfter?: number } = {},
   ) {
     super(message, options.cause === undefined ? undefined : { cause: options.cause });
     this.name = "ApiError";
     this.kind = options.kind ?? (status === 0 ? "offline" : "status");
+    this.retryAfter = options.retryAfter;
   }
   get offline() {
     return this.kind === "offline";
+  }
+  /** Over a rate limit (429): wait retryAfter seconds and ask again. */
+  get busy() {
+    return this.status === 429;
+  }
+  /** When to ask again after a 429. */
+  get retryAt() {
+    return this.at + (this.retryAfter ?? 60) * 1000;
   }
   /** "body.email" → message, for showing errors at their fields. */
   fieldErrors(prefix = "body."): Record<string, string> {

@@ -3,6 +3,7 @@ import cookieParser from "cookie-parser";
 import express, { type Express, type RequestHandler } from "express";
 import helmet from "helmet";
 import type { Database } from "@/db/client";
+import { appCookieOnApi, appCookieOnPages } from "./auth/app-cookie";
 import { authenticate } from "./auth/authenticate";
 import { csrfGuard } from "./auth/csrf";
 import { crawlerRoutes } from "./crawlers";
@@ -72,6 +73,7 @@ export function createApp({ database, config, webDistDir, apiObserver }: CreateA
   api.use(publicReadCors());
   api.use(express.json({ limit: "1mb" }));
   api.use(authenticate(ctx.db));
+  api.use(appCookieOnApi(config));
   api.use(csrfGuard(config.publicUrl));
   api.use(apiRateLimits(config, ctx.rateLimitStores));
   api.use(apiRoutes(ctx));
@@ -90,7 +92,7 @@ export function createApp({ database, config, webDistDir, apiObserver }: CreateA
   app.use(crawlerRoutes(ctx));
   if (webDistDir !== false) {
     app.use("/datasets", pageRateLimit(config, ctx.rateLimitStores));
-    webInlineScripts = mountWebApp(app, webDistDir, datasetPageHead(ctx));
+    webInlineScripts = mountWebApp(app, webDistDir, datasetPageHead(ctx), undefined, appCookieOnPages(config, ctx.rateLimitStores));
   }
   app.use(problemMiddleware);
   return { app, ctx };

@@ -1,3 +1,4 @@
+import { randomBytes } from "node:crypto";
 import path from "node:path";
 import { z } from "zod";
 
@@ -13,6 +14,12 @@ const env = z.object({
   PLOTBANK_UPLOAD_LIMIT_MB: z.coerce.number().positive().default(200),
   PLOTBANK_ANON_RATE_PER_MIN: z.coerce.number().int().positive().default(60),
   PLOTBANK_TOKEN_RATE_PER_MIN: z.coerce.number().int().positive().default(1000),
+  /** The web app's own requests, per browser (its signed app cookie), instead of per address. */
+  PLOTBANK_APP_RATE_PER_MIN: z.coerce.number().int().positive().default(600),
+  /** New browsers (app cookies) one address may be given per hour; past it, its pages come without one. */
+  PLOTBANK_APP_BROWSERS_PER_IP_HOUR: z.coerce.number().int().positive().default(60),
+  /** Signs the app cookies (HMAC-SHA256); several processes behind one address need the same value. */
+  PLOTBANK_SECRET: z.string().min(32, "PLOTBANK_SECRET must be at least 32 characters").optional(),
   /** Sign-in and e-mail-link requests allowed per IP and per e-mail address in each window. */
   PLOTBANK_AUTH_PER_IP: z.coerce.number().int().positive().default(20),
   PLOTBANK_AUTH_PER_ACCOUNT: z.coerce.number().int().positive().default(5),
@@ -52,6 +59,14 @@ export interface AppConfig {
   uploadLimitBytes: number;
   anonRatePerMinute: number;
   tokenRatePerMinute: number;
+  /** The web app's quota per browser, counted by its signed app cookie (server/auth/app-cookie.ts). */
+  appRatePerMinute: number;
+  /** How many new app cookies one address gets per hour. */
+  appBrowsersPerIpHour: number;
+  /** The window of the API quotas, in ms (60,000: the quotas are per minute; tests shorten it). */
+  rateWindowMs: number;
+  /** The key that signs the app cookies; random per process when PLOTBANK_SECRET is unset. */
+  secret: string;
   /** Abuse limits on sign-in, sign-up and reset requests. */
   authLimits: { windowMs: number; perIp: number; perAccount: number };
   /** Express's "trust proxy" setting: false (no proxy), a hop count, or the trusted addresses/ranges. */
@@ -80,6 +95,10 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env, overrides: P
     uploadLimitBytes: Math.round(e.PLOTBANK_UPLOAD_LIMIT_MB * 1024 * 1024),
     anonRatePerMinute: e.PLOTBANK_ANON_RATE_PER_MIN,
     tokenRatePerMinute: e.PLOTBANK_TOKEN_RATE_PER_MIN,
+    appRatePerMinute: e.PLOTBANK_APP_RATE_PER_MIN,
+    appBrowsersPerIpHour: e.PLOTBANK_APP_BROWSERS_PER_IP_HOUR,
+    rateWindowMs: 60_000,
+    secret: e.PLOTBANK_SECRET ?? randomBytes(32).toString("base64url"),
     authLimits: { windowMs: e.PLOTBANK_AUTH_WINDOW_MIN * 60_000, perIp: e.PLOTBANK_AUTH_PER_IP, perAccount: e.PLOTBANK_AUTH_PER_ACCOUNT },
     trustProxy: parseTrustProxy(e.PLOTBANK_TRUST_PROXY),
     smtpUrl: e.SMTP_URL,

@@ -1,7 +1,9 @@
 import { createHash } from "node:crypto";
 import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
-import express, { type Express } from "express";
+import express, { type Express, type RequestHandler } from "express";
+import { webFontCss } from "@/constants/web-fonts";
+import { evidenceStateFromParams, metaApiPath } from "@/lib/share-link";
 import { appRouteMatcher } from "./app-routes";
 
 export const webDistDir = path.resolve(__dirname, "../dist");
@@ -26,6 +28,19 @@ function inlineScriptHashes(html: string): string[] {
   return hashes;
 }
 
+/**
+ * The Evidence screen (`/`) asks for one analysis, named by the page's own query: a preload link lets the browser
+ * send that request with the HTML instead of after the JavaScript has arrived and run, which on a slow link is
+ * seconds earlier. The app's fetch of the same URL (same credentials mode) picks up the preloaded answer.
+ */
+export function evidencePreload(originalUrl: string): string {
+  const url = new URL(originalUrl, "http://page.invalid");
+  const params: Record<string, string> = {};
+  for (const [key, value] of url.searchParams) params[key] = value;
+  const href = metaApiPath(evidenceStateFromParams(params)).replace(/&/g, "&amp;").replace(/"/g, "&quot;");
+  return `<link rel="preload" as="fetch" crossorigin="use-credentials" href="${href}">`;
+}
+
 /** The page to serve: index.html as a transform left it, and whether what the address names exists (else 404). */
 export type PageAnswer = string | { html: string; found: boolean };
 
@@ -40,6 +55,8 @@ export function mountWebApp(
   distDir = webDistDir,
   transformIndex?: (html: string, url: string) => Promise<PageAnswer> | PageAnswer,
   isScreen: (pathname: string) => boolean = appRouteMatcher(),
+  /** Run before each page is sent (the app cookie, server/auth/app-cookie.ts). */
+  pageHandlers: RequestHandler[] = [],
 ): string[] {
   const indexPath = path.join(distDir, "index.html");
   if (!existsSync(indexPath)) {
@@ -53,7 +70,10 @@ export function mountWebApp(
   }
   // data-rh marks the description as expo-router/head's (as its server rendering does), so each screen's own replaces
   // it in the browser instead of adding a second one.
-  const indexHtml = readFileSync(indexPath, "utf8").replace('<meta name="description"', '<meta data-rh="true" name="description"');
+  // The fonts' @font-face rules go into the page itself (font-display: swap, constants/web-fonts.ts).
+  const indexHtml = readFileSync(indexPath, "utf8")
+    .replace('<meta name="description"', '<meta data-rh="true" name="description"')
+    .replace("</head>", `<style id="web-fonts">${webFontCss}</style></head>`);
   app.use(
     express.static(distDir, {
       index: false,
@@ -64,12 +84,14 @@ export function mountWebApp(
       },
     }),
   );
-  app.get("/{*splat}", async (req, res, next) => {
+  app.get("/{*splat}", ...pageHandlers, async (req, res, next) => {
     if (req.path.startsWith("/api/")) return next();
     try {
       // The whole URL: a page may depend on its query (a dataset page on ?version=).
       const page = transformIndex ? await transformIndex(indexHtml, req.originalUrl) : indexHtml;
-      const { html, found } = typeof page === "string" ? { html: page, found: true } : page;
+      const answer = typeof page === "string" ? { html: page, found: true } : page;
+      const found = answer.found;
+      const html = req.path === "/" ? answer.html.replace("</head>", `${evidencePreload(req.originalUrl)}</head>`) : answer.html;
       res.setHeader("Cache-Control", "no-cache");
       res
         .status(found && isScreen(req.path) ? 200 : 404)

@@ -13,6 +13,8 @@ declare global {
       user?: User;
       /** How the request authenticated; absent for anonymous requests. */
       auth?: { via: "session" | "token"; scope: "read" | "write"; tokenId?: string };
+      /** The browser of a valid web-app cookie (server/auth/app-cookie.ts); absent otherwise. */
+      appBrowser?: { id: string; expiresAt: number };
     }
   }
 }

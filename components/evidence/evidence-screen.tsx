@@ -5,7 +5,7 @@ import { Platform, Pressable, ScrollView, StyleSheet, View } from "react-native"
 import { ForestPlot, type ForestGroup } from "@/components/charts/forest-plot";
 import { Button } from "@/components/ui/button";
 import { Card } from "@/components/ui/card";
-import { EmptyState, ErrorState, LoadingState } from "@/components/ui/state-views";
+import { BusyState, EmptyState, ErrorState, isBusy, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, minTap, radius, space } from "@/constants/theme";
 import { useMetaAnalysis } from "@/hooks/use-analysis";
@@ -14,6 +14,7 @@ import { useLayout } from "@/hooks/use-layout";
 import { apiUrl } from "@/lib/api-client";
 import { ApiError } from "@/lib/api-error";
 import { loadPrices, savePrices } from "@/lib/device-storage";
+import { startedAt } from "@/lib/query-client";
 import {
   countActiveFilters,
   evidenceStateFromParams,
@@ -56,6 +57,24 @@ function useEvidenceState(): [EvidenceState, (next: EvidenceState) => void] {
   const update = useCallback((next: EvidenceState) => router.setParams(routerParams(next)), []);
   return [state, update];
 }
+
+/** Filter taps in quick succession make one request: the query follows the screen's state after it rests this long. */
+const settleMs = 300;
+
+function useSettledState(state: EvidenceState): EvidenceState {
+  const [settled, setSettled] = useState(state);
+  const path = metaApiPath(state);
+  const latest = useRef(state);
+  latest.current = state;
+  useEffect(() => {
+    const timer = setTimeout(() => setSettled(latest.current), settleMs);
+    return () => clearTimeout(timer);
+  }, [path]);
+  // Options that do not change the request (prices) pass at once.
+  return metaApiPath(settled) === path ? state : settled;
+}
+
+const savedDate = (ms: number) => new Date(ms).toLocaleString(undefined, { dateStyle: "medium", timeStyle: "short" });
 
 /**
  * The grower's prices live on this device: loaded from its storage, or taken from a link that carries them, and
@@ -273,7 +292,7 @@ function ShareButton({ state, prices }: { state: EvidenceState; prices: Prices }
 export function EvidenceScreen() {
   const { wide } = useLayout();
   const [state, update] = useEvidenceState();
-  const analysis = useMetaAnalysis(state);
+  const analysis = useMetaAnalysis(useSettledState(state));
   const [prices, setPrices] = usePrices(state, update, analysis.data !== undefined);
   const datasets = useDatasetList();
   const years = useMemo(() => {
@@ -286,25 +305,32 @@ export function EvidenceScreen() {
   const filters = <FilterPanel filters={state.filters} onChange={(f) => update({ ...state, filters: f })} years={years} />;
 
   // Without a network the query pauses rather than fails; say so instead of showing stale numbers as current.
+  // An answer of the current filters that was saved on this device in an earlier visit is shown, with its date.
   const offline = analysis.fetchStatus === "paused";
-  const body = offline ? (
-    <ErrorState error={new ApiError(0, null, "offline")} onRetry={() => analysis.refetch()} />
-  ) : analysis.isError ? (
-    <ErrorState error={analysis.error} onRetry={() => analysis.refetch()} />
-  ) : !analysis.data ? (
-    <LoadingState label="Pooling the site-years…" />
-  ) : analysis.data.k === 0 ? (
-    <View style={styles.stack} testID="empty-result">
-      <EmptyState
-        title="No site-years match; widen these filters"
-        hint={analysis.data.notes.join(" ")}
-        action={<Button label="Clear filters" tone="secondary" onPress={() => update({ ...state, filters: {} })} />}
-      />
-      <Cautions cautions={analysis.data.cautions} />
-    </View>
-  ) : (
-    <Results result={analysis.data} state={state} update={update} prices={prices} setPrices={setPrices} />
-  );
+  const current = analysis.data !== undefined && !analysis.isPlaceholderData;
+  const savedAt = current && analysis.dataUpdatedAt < startedAt ? analysis.dataUpdatedAt : null;
+  const busy = analysis.isFetching && isBusy(analysis.failureReason) ? analysis.failureReason : null;
+  const body =
+    offline && !current ? (
+      <ErrorState error={new ApiError(0, null, "offline")} onRetry={() => analysis.refetch()} />
+    ) : busy && !current ? (
+      <BusyState error={busy} />
+    ) : analysis.isError ? (
+      <ErrorState error={analysis.error} onRetry={() => analysis.refetch()} />
+    ) : !analysis.data ? (
+      <LoadingState label="Pooling the site-years…" />
+    ) : analysis.data.k === 0 ? (
+      <View style={styles.stack} testID="empty-result">
+        <EmptyState
+          title="No site-years match; widen these filters"
+          hint={analysis.data.notes.join(" ")}
+          action={<Button label="Clear filters" tone="secondary" onPress={() => update({ ...state, filters: {} })} />}
+        />
+        <Cautions cautions={analysis.data.cautions} />
+      </View>
+    ) : (
+      <Results result={analysis.data} state={state} update={update} prices={prices} setPrices={setPrices} />
+    );
 
   const header = (
     <View style={styles.header}>
@@ -314,9 +340,15 @@ export function EvidenceScreen() {
       </Text>
       <Text variant="caption">{evidenceDescription}</Text>
       <MeasureChoice measure={state.measure} onMeasure={(measure) => update({ ...state, measure })} />
-      {analysis.isFetching && analysis.data ? (
+      {savedAt !== null ? (
+        <Text variant="caption" role="status" testID="saved-answer">
+          {offline
+            ? `You are offline: this is the answer saved on this device on ${savedDate(savedAt)}.`
+            : `Saved on this device on ${savedDate(savedAt)}; checking for a newer answer…`}
+        </Text>
+      ) : analysis.isFetching && analysis.data && !offline ? (
         <Text variant="caption" role="status" aria-live="polite" testID="updating">
-          Updating…
+          {busy ? `Busy — trying again in ${Math.max(1, Math.ceil((busy.retryAt - Date.now()) / 1000))} s` : "Updating…"}
         </Text>
       ) : null}
     </View>

@@ -72,7 +72,10 @@ export function generateOpenApiDocument(registry: OpenAPIRegistry, version: stri
         "Versioned fertilizer field-trial data: datasets, site-years, treatments, plot observations, site-year responses " +
         "against the untreated check, and random-effects meta-analyses, all with one set of typed filters. " +
         "Published data are open to everyone (CC BY 4.0 unless a version says otherwise); tokens raise the rate limit " +
-        "and allow writes for curators. Results summarise the trials in the data: a field can differ, seed-placed " +
+        "and allow writes for curators. Quotas (see the RateLimit-Policy header): anonymous callers 60 requests a minute " +
+        "per IP address; the web app's own requests, which carry its signed HttpOnly `pb_app` cookie (HMAC, per browser, " +
+        "2 hours; a forged or expired one counts as none), 600 a minute per browser; tokens and signed-in users 1,000 " +
+        "a minute. A 304 counts against no quota. Results summarise the trials in the data: a field can differ, seed-placed " +
         "fertilizer can injure a stand, and local recommendations and licensed advisers have the last word.",
       license: { name: "API: MIT; data: per version (default CC BY 4.0)" },
     },

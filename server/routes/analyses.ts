@@ -3,12 +3,14 @@ import { metaAnalysisResult, metaQuery } from "@/schemas/analysis";
 import type { AppContext } from "@/server/context";
 import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
+import { cacheable, strongEtag } from "@/server/caching";
+import { resolveVersions } from "@/server/services/trial-filter";
 import { forestRowsCsv } from "@/server/services/analysis/forest-csv";
 import { runMetaAnalysis } from "@/server/services/analysis/run-meta-analysis";
 import { seedSafety } from "@/server/services/analysis/seed-safety";
 import { seedSafetyQuery, seedSafetyResult } from "@/schemas/seed-safety";
 
-export function analysisRoutes({ db, registry }: AppContext): Router {
+export function analysisRoutes({ db, registry, config }: AppContext): Router {
   const { router, defineRoute } = routeModule(registry);
 
   defineRoute(
@@ -37,12 +39,19 @@ export function analysisRoutes({ db, registry }: AppContext): Router {
           description: "The analysis with its provenance",
           content: { "application/json": { schema: metaAnalysisResult }, "text/csv": { schema: { type: "string" } } },
         },
+        304: { description: "Not modified: the copy named by If-None-Match is current (the same versions and query)" },
         ...problemResponses(400, 404, 422, 429),
       },
     },
-    async ({ query }, _req, res) => {
+    async ({ query }, req, res) => {
+      // An analysis is a function of the versions it reads, the query and this server's code: its ETag is known before
+      // any response is read, so a revalidation (If-None-Match) is a 304 without the analysis, and counts against no
+      // quota. A named version is immutable, so its answer is cached as such.
+      const versionIds = (await resolveVersions(db, query)).map((v) => v.versionId).sort();
+      const etag = strongEtag(["meta", config.version, versionIds, Object.entries(query).sort(([a], [b]) => a.localeCompare(b))]);
+      const pinned = !!query.dataset && !!query.version && query.version !== "latest";
+      if (cacheable(req, res, etag, pinned ? "pinned" : "moving")) return;
       const result = await runMetaAnalysis(db, query);
-      res.set("Cache-Control", "public, max-age=60");
       if (query.format === "csv") {
         res
           .type("text/csv; charset=utf-8")
