@@ -9,10 +9,10 @@
 export const builtInMeasures = ["yield", "stand", "vigour", "test-weight", "moisture"] as const;
 export type BuiltInMeasure = (typeof builtInMeasures)[number];
 /** A measure's name: a built-in one, or one a version's data dictionary defines (snake_case, like its plots field). */
-export type MeasureName = BuiltInMeasure | (string & {});
+type MeasureName = BuiltInMeasure | (string & {});
 
 export const betterDirections = ["higher", "lower"] as const;
-export type BetterDirection = (typeof betterDirections)[number];
+type BetterDirection = (typeof betterDirections)[number];
 
 export interface MeasureDefinition {
   name: string;

@@ -13,7 +13,7 @@ export const webFontFaces = [
 ] as const;
 
 export const webFontFile = (family: string) => `${family}.woff2`;
-export const webFontUrl = (family: string) => `/fonts/${webFontFile(family)}`;
+const webFontUrl = (family: string) => `/fonts/${webFontFile(family)}`;
 
 /**
  * What the subsets keep: printable ASCII, Latin-1, the Latin Extended-A letters of names, and the punctuation, math

@@ -14,13 +14,13 @@ const busyAttempts = 5;
  * Whether to try a failed request again: after a 429 yes (after its Retry-After, up to busyAttempts); a request the
  * server refused as such (400–499) no; anything else once.
  */
-export function retryPolicy(failureCount: number, error: unknown): boolean {
+function retryPolicy(failureCount: number, error: unknown): boolean {
   if (error instanceof ApiError && error.busy) return failureCount < busyAttempts;
   if (error instanceof ApiError && error.status >= 400 && error.status < 500) return false;
   return failureCount < 1;
 }
 
-export function retryDelay(failureCount: number, error: unknown): number {
+function retryDelay(failureCount: number, error: unknown): number {
   if (error instanceof ApiError && error.busy) return Math.max(0, error.retryAt - Date.now());
   return Math.min(1000 * 2 ** failureCount, 30_000);
 }

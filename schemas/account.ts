@@ -136,7 +136,7 @@ export const outboxMessage = outboxSummary
 export type OutboxMessage = z.infer<typeof outboxMessage>;
 
 /** A background job that used up its attempts: what it was for, how often it ran and the last error. */
-export const failedJob = z
+const failedJob = z
   .object({
     id: z.string(),
     task: z.enum(["doi-register", "mail-deliver"]),

@@ -335,7 +335,7 @@ export const uploadRejection = z
   .meta({ id: "UploadRejection" });
 
 /** One sheet of a workbook upload: its upload result, and whether it was stored. */
-export const workbookSheetResult = uploadResult
+const workbookSheetResult = uploadResult
   .extend({
     sheet: z.string().describe("The sheet's name as the workbook spells it"),
     status: z

@@ -65,7 +65,7 @@ const tableSchemaResource = z
  * A measure a curator adds to a version: its values are the plots field of the same name (a number field the plots
  * resource lists), and its responses are computed per site-year like yield's, in its unit.
  */
-export const dictionaryMeasure = z
+const dictionaryMeasure = z
   .object({
     name: line()
       .min(1)

@@ -11,7 +11,7 @@ const sweepEveryMs = 60_000;
  * a new window, any other gains a hit, and the statement returns the count and the window's end. Which client a hit
  * belongs to is the limiter's key generator's business; the store only counts what it is given.
  */
-export class PostgresRateLimitStore implements Store {
+class PostgresRateLimitStore implements Store {
   readonly localKeys = false;
   private windowMs = 60_000;
   private lastSweep = 0;

@@ -44,13 +44,13 @@ export function pageRateLimit(
 /** Which quota a request counts against, and under which key: the one place that decides who is counted how. */
 type QuotaClass = "anonymous" | "app" | "client";
 
-export function quotaClass(req: Request): QuotaClass {
+function quotaClass(req: Request): QuotaClass {
   if (req.user) return "client";
   if (req.appBrowser) return "app";
   return "anonymous";
 }
 
-export function quotaKey(req: Request): string {
+function quotaKey(req: Request): string {
   switch (quotaClass(req)) {
     case "client":
       return req.auth?.via === "token" && req.auth.tokenId ? `token:${req.auth.tokenId}` : `user:${req.user!.id}`;

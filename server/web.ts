@@ -33,7 +33,7 @@ function inlineScriptHashes(html: string): string[] {
  * send that request with the HTML instead of after the JavaScript has arrived and run, which on a slow link is
  * seconds earlier. The app's fetch of the same URL (same credentials mode) picks up the preloaded answer.
  */
-export function evidencePreload(originalUrl: string): string {
+function evidencePreload(originalUrl: string): string {
   const url = new URL(originalUrl, "http://page.invalid");
   const params: Record<string, string> = {};
   for (const [key, value] of url.searchParams) params[key] = value;

@@ -8,7 +8,7 @@ import { unrefTimer } from "@/db/client";
  */
 export type JobTask = "doi-register" | "mail-deliver";
 
-export interface AddJobOptions {
+interface AddJobOptions {
   /** At most one waiting, running-and-waiting or failed job per key. */
   key: string;
   /**
@@ -48,13 +48,13 @@ export interface JobQueue {
   retry(id: string): Promise<boolean>;
 }
 
-export type JobHandler = (payload: Record<string, unknown>) => Promise<void>;
+type JobHandler = (payload: Record<string, unknown>) => Promise<void>;
 export type JobHandlers = Record<JobTask, JobHandler>;
 
 export const defaultMaxAttempts: Record<JobTask, number> = { "doi-register": 10, "mail-deliver": 8 };
 
 /** The in-process queue waits 30 s, 1, 2, 4 … minutes between attempts, never more than an hour. */
-export function backOffMs(attempts: number): number {
+function backOffMs(attempts: number): number {
   if (attempts <= 0) return 0;
   return Math.min(30_000 * 2 ** (attempts - 1), 60 * 60_000);
 }

@@ -13,7 +13,7 @@ export async function startFakeDoiService(): Promise<{ fake: FakeDataCite; datac
   return { fake, datacite: (url = started) => ({ url, ...fakeDoiCredentials, prefix: fakeDoiPrefix }) };
 }
 
-export interface DoiCall {
+interface DoiCall {
   method: string;
   path: string;
   /** The DOI the call is about: from the path, or from the body of a POST. */

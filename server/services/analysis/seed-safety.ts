@@ -11,7 +11,7 @@ import { buildUnits, ownTest } from "./site-year-effects";
 
 type Group = NonNullable<SeedSafetyResult["seedPlaced"]>;
 
-export const lossRule =
+const lossRule =
   "A site-year's own test found a loss when its treatment F test has p < 0.05 and the treatment is below the check by more than " +
   "the site-year's LSD (α = 0.05), Fisher's protected LSD; where the site-year is unbalanced and has no single LSD, when the " +
   "contrast's own 95 % interval lies below zero.";

@@ -40,7 +40,7 @@ export async function queueDoiWork(
  * Every released version still without its DOI gets a job unless it has one already (waiting, running or failed):
  * the catch-up for work queued by a process that stopped between marking a version pending and adding its job.
  */
-export async function queueWaitingDois(ctx: AppContext): Promise<number> {
+async function queueWaitingDois(ctx: AppContext): Promise<number> {
   if (!ctx.config.datacite.url) return 0;
   const waiting = await ctx.db
     .select({ id: versions.id, datasetId: versions.datasetId })

@@ -104,7 +104,7 @@ function fieldList(schema: TableSchemaDescriptor, resource: ResourceName): Table
 }
 
 /** The example rows of a resource under the version's dictionary: its fields, in its order. */
-export function exampleRows(schema: TableSchemaDescriptor, resource: ResourceName): CsvValue[][] {
+function exampleRows(schema: TableSchemaDescriptor, resource: ResourceName): CsvValue[][] {
   const fields = fieldList(schema, resource);
   return examples[resource].map((row) => fields.map((f) => (f.name in row ? (row[f.name] ?? null) : customExample(f))));
 }

@@ -44,7 +44,7 @@ export function customFieldsOf(
 const SEPARATOR = "\u001f";
 
 /** The key of a parsed row, as `rowKeySql` prints the same row back from the tables. */
-export function rowKeyOf(resource: ResourceName, values: RowValues): string {
+function rowKeyOf(resource: ResourceName, values: RowValues): string {
   return primaryKeys[resource].map((f) => (values[f] === null || values[f] === undefined ? "" : String(values[f]))).join(SEPARATOR);
 }
 

@@ -5,13 +5,13 @@ import { HttpProblem } from "@/server/errors";
 import type { SheetValue } from "./sheet-cells";
 
 /** One row of a sheet: its line number in the sheet (1-based, as the spreadsheet shows it) and its cells. */
-export interface SheetRow {
+interface SheetRow {
   line: number;
   cells: SheetValue[];
 }
 
 /** A cell whose value came from a formula: the value read is the one the spreadsheet last calculated. */
-export interface FormulaCell {
+interface FormulaCell {
   line: number;
   column: number;
   address: string;
