@@ -8,8 +8,6 @@
 
 export const builtInMeasures = ["yield", "stand", "vigour", "test-weight", "moisture"] as const;
 export type BuiltInMeasure = (typeof builtInMeasures)[number];
-/** A measure's name: a built-in one, or one a version's data dictionary defines (snake_case, like its plots field). */
-type MeasureName = BuiltInMeasure | (string & {});
 
 export const betterDirections = ["higher", "lower"] as const;
 type BetterDirection = (typeof betterDirections)[number];
