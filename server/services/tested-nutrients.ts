@@ -159,15 +159,20 @@ export interface TestedNutrientColumns {
 const textLiteral = (s: string) => sql.raw(`'${s.replaceAll("'", "''")}'`);
 const textArray = (values: readonly string[]) => sql`ARRAY[${sql.join(values.map(textLiteral), sql`, `)}]::text[]`;
 
-/** SQL of `testedNutrients`: the stated array, else the nutrients at or above the carrier share of the largest rate. */
-export function testedNutrientsSql(c: TestedNutrientColumns): SQL {
+/** SQL of `derivedTestedNutrients`: the nutrients at or above the carrier share of the largest rate, in N, P, K, S order. */
+function derivedTestedNutrientsSql(c: TestedNutrientColumns): SQL {
   const largest = sql`GREATEST(${c.nLbAc}, ${c.p2o5LbAc}, ${c.k2oLbAc}, ${c.sLbAc})`;
   const share = sql.raw(`${carrierShare}::float8`);
   const one = (n: Nutrient) => {
     const rate = c[rateOf[n]];
     return sql`CASE WHEN ${rate} > 0 AND ${rate} >= ${share} * ${largest} THEN ${textLiteral(n)} END`;
   };
-  return sql`COALESCE(${c.stated}, array_remove(ARRAY[${sql.join(nutrients.map(one), sql`, `)}]::text[], NULL))`;
+  return sql`array_remove(ARRAY[${sql.join(nutrients.map(one), sql`, `)}]::text[], NULL)`;
+}
+
+/** SQL of `testedNutrients`: the stated array, else the nutrients at or above the carrier share of the largest rate. */
+export function testedNutrientsSql(c: TestedNutrientColumns): SQL {
+  return sql`COALESCE(${c.stated}, ${derivedTestedNutrientsSql(c)})`;
 }
 
 /** SQL: the response tests at least one of these nutrients. */
@@ -205,8 +210,7 @@ export function countedSoilClassSql(
 export function testedNutrientListSql(c: TestedNutrientColumns): SQL {
   const inOrder = (n: Nutrient) => sql`CASE WHEN ${textLiteral(n)} = ANY(${c.stated}) THEN ${textLiteral(n)} END`;
   const stated = sql`array_remove(ARRAY[${sql.join(nutrients.map(inOrder), sql`, `)}]::text[], NULL)`;
-  const derived = testedNutrientsSql({ ...c, stated: sql`NULL::text[]` });
-  return sql`(CASE WHEN ${c.stated} IS NULL THEN ${derived} ELSE ${stated} END)`;
+  return sql`(CASE WHEN ${c.stated} IS NULL THEN ${derivedTestedNutrientsSql(c)} ELSE ${stated} END)`;
 }
 
 /** SQL of `countedSoilTest(...).analyte`: the first candidate with a class, else the first candidate, else null. */
