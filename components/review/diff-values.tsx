@@ -15,7 +15,7 @@ import { Pager } from "./pager";
 
 const changeWords = { added: "Added", removed: "Removed", changed: "Changed" } as const;
 const toneOf = { added: colors.fieldDark, removed: colors.danger, changed: colors.info } as const;
-const show = (x: string | null) => (x === null || x === "" ? "∅" : x);
+const show = (x: string | null) => (x === null || x === "" ? "(empty)" : x);
 
 function DiffRow({ row }: { row: VersionDiffRows["rows"][number] }) {
   const cells =

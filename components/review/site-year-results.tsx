@@ -67,7 +67,7 @@ function SiteYearCard({ result, summary, comments }: { result: SiteYearResult; s
         <View style={styles.flags} role="list" aria-label={`Flags on ${r.siteYear}`}>
           {r.flags.map((f, i) => (
             <Text key={`${f.code}-${i}`} role="listitem" style={styles.flag}>
-              ⚑ {summary.rules.find((x) => x.code === f.code)?.title ?? f.code}: {f.message}
+              Flag · {summary.rules.find((x) => x.code === f.code)?.title ?? f.code}: {f.message}
             </Text>
           ))}
         </View>

@@ -165,10 +165,10 @@ export const plots = pgTable(
     block: smallint("block").notNull(),
     yieldKgHa: doublePrecision("yield_kg_ha"),
     /** As reported, before normalising to the standard moisture. */
-    harvestMoisturePct: real("harvest_moisture_pct"),
-    standCount: real("stand_count"),
-    vigour: real("vigour"),
-    testWeight: real("test_weight"),
+    harvestMoisturePct: doublePrecision("harvest_moisture_pct"),
+    standCount: doublePrecision("stand_count"),
+    vigour: doublePrecision("vigour"),
+    testWeight: doublePrecision("test_weight"),
     /** Values of the measures a version's data dictionary adds (`measures`), by measure name; null: none recorded. */
     otherMeasures: jsonb("other_measures").$type<Record<string, number>>(),
   },

@@ -237,6 +237,7 @@ describe("recompute per measure", () => {
       ).rows;
     expect(await count(v.body.id)).toEqual([
       { measure: "lodging_score", n: 24 },
+      { measure: "moisture", n: 24 },
       { measure: "stand", n: 24 },
       { measure: "vigour", n: 24 },
       { measure: "yield", n: 24 },
@@ -248,7 +249,10 @@ describe("recompute per measure", () => {
       .join("\n");
     const res = await upload(f.curatorAgent, v.body.id, "plots", noStand + "\n");
     expect(res.status, JSON.stringify(res.body).slice(0, 1000)).toBe(201);
-    expect(await count(v.body.id)).toEqual([{ measure: "yield", n: 24 }]);
+    expect(await count(v.body.id)).toEqual([
+      { measure: "moisture", n: 24 },
+      { measure: "yield", n: 24 },
+    ]);
   });
 
   it("stand counts per 10 ft of row, as the data dictionary states, become plants/ac with the site-year's row spacing", async () => {

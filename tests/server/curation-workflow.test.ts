@@ -136,7 +136,7 @@ describe("draft → review → published → next version", () => {
     expect(d.suggestedSemver).toBe("2.0.0");
     // The unbalanced site-year still has responses, flagged.
     const r = await t.ctx.db.execute(
-      sql`select bool_and(balanced) as b, count(*) as n from responses where version_id = ${v2.id} and site_year_code = 'TB-02-2021'`,
+      sql`select bool_and(balanced) as b, count(*) as n from responses where version_id = ${v2.id} and site_year_code = 'TB-02-2021' and measure = 'yield'`,
     );
     const row = (r as unknown as { rows: { b: boolean; n: number | string }[] }).rows[0]!;
     expect(row.b).toBe(false);

@@ -335,7 +335,7 @@ describe("domain rules", () => {
       }),
     );
     const r = await rows<{ balanced: boolean; lsd05_kg_ha: number | null }>(
-      sql`select balanced, lsd05_kg_ha from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021'`,
+      sql`select balanced, lsd05_kg_ha from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021' and measure = 'yield'`,
     );
     expect(r).toHaveLength(3);
     expect(r.every((x) => x.balanced === false && x.lsd05_kg_ha === null)).toBe(true);
@@ -420,7 +420,7 @@ describe("summaries and reports", () => {
     ).expect(201);
     expect(res.body.responses.uncomputed).toEqual([]);
     const [r] = await rows<{ md_kg_ha: number; se_kg_ha: number; from_summary: boolean; df_error: number }>(
-      sql`select md_kg_ha, se_kg_ha, from_summary, df_error from responses where version_id = ${f.versionId} and site_year_code = 'TB-05-2021'`,
+      sql`select md_kg_ha, se_kg_ha, from_summary, df_error from responses where version_id = ${f.versionId} and site_year_code = 'TB-05-2021' and measure = 'yield'`,
     );
     expect(r).toMatchObject({ md_kg_ha: 300, from_summary: true, df_error: 9 });
     expect(r!.se_kg_ha).toBeCloseTo(Math.sqrt((2 * 20000) / 4), 9);

@@ -155,7 +155,8 @@ export async function reviewSummary(
         sLbAc: responses.sLbAc,
       })
       .from(responses)
-      .where(eq(responses.versionId, versionId))
+      // The reviewer's table is of yield responses; other measures are read on the Evidence screen's draft preview.
+      .where(and(eq(responses.versionId, versionId), eq(responses.measure, "yield")))
       .orderBy(sql`${responses.treatmentCode} COLLATE "C"`),
     db
       .select({ siteYearId: plots.siteYearId, plot: plots.plot, block: plots.block, treatment: treatments.code, y: plots.yieldKgHa })

@@ -118,7 +118,10 @@ async function resourceCounts(db: Db, versionId: string): Promise<Record<Resourc
 async function uncomputedSiteYears(db: Db, versionId: string) {
   const [all, withResponses] = await Promise.all([
     db.select({ id: siteYears.id, code: siteYears.code }).from(siteYears).where(eq(siteYears.versionId, versionId)),
-    db.selectDistinct({ id: responses.siteYearId }).from(responses).where(eq(responses.versionId, versionId)),
+    db
+      .selectDistinct({ id: responses.siteYearId })
+      .from(responses)
+      .where(and(eq(responses.versionId, versionId), eq(responses.measure, "yield"))),
   ]);
   const have = new Set(withResponses.map((r) => r.id));
   const missing = all.filter((s) => !have.has(s.id));
