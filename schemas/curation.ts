@@ -261,7 +261,7 @@ export const uploadOptions = z
       .enum(["merge", "replace"])
       .default("merge")
       .describe(
-        "merge: rows keyed as existing ones replace them (plots, summaries and soil tests per site-year), others are added; replace: the file becomes the whole resource",
+        "merge: each row replaces the draft's row with the same key (sites by site, site-years by site_year, treatments by treatment with all its applications, soil tests by site_year + analyte, plots by site_year + plot, summaries by site_year + treatment) and other rows are added; the draft's other rows stay, and the checks judge the merged version. replace: the file becomes the whole resource",
       ),
   })
   .strict()

@@ -10,6 +10,7 @@ export {
 } from "@/stats/linear-model";
 export * from "@/stats/mean-separation";
 export * from "@/stats/rcbd-anova";
+export * from "@/stats/design-balance";
 export * from "@/stats/one-way-anova";
 export * from "@/stats/effects";
 export * from "@/stats/decision";

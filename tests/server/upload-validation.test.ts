@@ -179,7 +179,8 @@ describe("domain rules", () => {
       .split("\n")
       .filter((l) => !l.includes(",CHK,"))
       .join("\n");
-    let body = await rejected("plots", noCheck);
+    // Replace: the file is the whole of the plots, so nothing of the draft's plots is merged in.
+    let body = await rejected("plots", noCheck, { mode: "replace" });
     expect(body.errors).toContainEqual(
       expect.objectContaining({ column: "treatment", message: expect.stringMatching(/site-year "TB-01-2021" has no untreated check/) }),
     );
@@ -187,6 +188,7 @@ describe("domain rules", () => {
     body = await rejected(
       "plots",
       plotsCsv({ override: { "TB-02-2021/101": "TB-02-2021,101,1,CHK2,4100,13" } }).replace(/TB-02-2021,102,1,IF/, "TB-02-2021,102,1,CHK"),
+      { mode: "replace" },
     );
     expect(body.errors.map((e) => e.message).join("\n")).toMatch(/site-year "TB-02-2021" has 2 checks \(CHK, CHK2\)/);
   });
@@ -326,12 +328,14 @@ describe("domain rules", () => {
   });
 
   it("missing plots are accepted with an unbalance warning; responses use the least-squares fit", async () => {
-    const res = await upload(f.curatorAgent, f.versionId, "plots", plotsCsv({ skip: ["TB-01-2021/203", "TB-01-2021/204"] })).expect(201);
+    const res = await upload(f.curatorAgent, f.versionId, "plots", plotsCsv({ skip: ["TB-01-2021/203", "TB-01-2021/204"] }), {
+      mode: "replace",
+    }).expect(201);
     expect(res.body.problems).toContainEqual(
       expect.objectContaining({
         severity: "warning",
         column: "block",
-        message: expect.stringMatching(/TB-01-2021" is unbalanced: 2 of 16 plots missing/),
+        message: expect.stringMatching(/Site-year TB-01-2021 is unbalanced: 2 of 16 plots missing/),
       }),
     );
     const r = await rows<{ balanced: boolean; lsd05_kg_ha: number | null }>(

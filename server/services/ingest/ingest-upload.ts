@@ -137,6 +137,8 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
     if (ok) handler.row(values, index);
   });
   if (read.rows === 0) report.error(null, null, null, "the file has a header but no data rows");
+  // Read outside the write transaction; the stale-draft stamp below refuses the write if the draft moved meanwhile.
+  if (input.options.mode === "merge") await handler.mergeExisting?.(db);
   handler.finish();
 
   const problems = report.all();

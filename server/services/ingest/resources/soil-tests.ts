@@ -91,6 +91,8 @@ function readClass(input: ClassInput): { scale: string | null; label: string | n
 export function soilTestsIngest({ state, options, report, versionId, soilTestSchemes }: IngestContext): ResourceIngest {
   const keys = new Set<string>();
   const siteYearCodes = new Set<string>();
+  /** Analytes per site-year id the file gives: a merge replaces exactly those tests and keeps the others. */
+  const analytesOf = new Map<number, string[]>();
   const out: Cell[][] = [];
   return {
     resource: "soil_tests",
@@ -136,6 +138,9 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
       });
       if (!reading) return;
       siteYearCodes.add(code);
+      const list = analytesOf.get(sy.id) ?? [];
+      list.push(analyte);
+      analytesOf.set(sy.id, list);
       out.push([versionId, sy.id, analyte, value, unit, extractant, num(v.depth_in), reading.scale, reading.scheme, reading.label]);
     },
     finish() {},
@@ -143,8 +148,11 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
     async write(database, tx: Tx) {
       if (options.mode === "replace") await tx.delete(soilTests).where(eq(soilTests.versionId, versionId));
       else {
-        const ids = [...siteYearCodes].map((c) => state.siteYears.get(c)!.id);
-        if (ids.length) await tx.delete(soilTests).where(and(eq(soilTests.versionId, versionId), inArray(soilTests.siteYearId, ids)));
+        for (const [id, analytes] of analytesOf) {
+          await tx
+            .delete(soilTests)
+            .where(and(eq(soilTests.versionId, versionId), eq(soilTests.siteYearId, id), inArray(soilTests.analyte, analytes)));
+        }
       }
       await insertRows(
         database,
