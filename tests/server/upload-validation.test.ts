@@ -125,7 +125,13 @@ describe("Table Schema rules, located by row and column", () => {
       expect.objectContaining({ column: "blocks", message: expect.stringMatching(/required field blocks has no column/) }),
     );
     body = await rejected("site_years", "site_year,site,crop,year,blocks\nTB-01-2023,TB-01,soybean,2023,\n");
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "blocks", message: "blocks is required but missing" }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({
+        row: 1,
+        column: "blocks",
+        message: "Site-year TB-01-2023: blocks (replicates) is required but the cell is empty; fill it in",
+      }),
+    );
   });
 
   it("an enum, a range and a date", async () => {
@@ -134,10 +140,21 @@ describe("Table Schema rules, located by row and column", () => {
       "site_year,site,crop,year,blocks,row_spacing_in,planting_date\nTB-01-2023,TB-01,rice,2023,4,30,2023-05-10\nTB-01-2024,TB-01,soybean,2024,4,100,2024-05-10\nTB-01-2025,TB-01,soybean,2025,4,30,2025-02-30\n",
     );
     expect(body.errors).toContainEqual(
-      expect.objectContaining({ row: 1, column: "crop", value: "rice", message: expect.stringMatching(/not one of the allowed values/) }),
+      expect.objectContaining({
+        row: 1,
+        column: "crop",
+        value: "rice",
+        message: expect.stringMatching(
+          /^Site-year TB-01-2023: crop "rice" is not one of the values this column takes: .*; use one of them as written$/,
+        ),
+      }),
     );
     expect(body.errors).toContainEqual(
-      expect.objectContaining({ row: 2, column: "row_spacing_in", message: expect.stringMatching(/above the maximum 60 in/) }),
+      expect.objectContaining({
+        row: 2,
+        column: "row_spacing_in",
+        message: expect.stringMatching(/row spacing \(row_spacing_in\) 100 in is above the highest accepted value, 60 in/),
+      }),
     );
     expect(body.errors).toContainEqual(
       expect.objectContaining({ row: 3, column: "planting_date", message: expect.stringMatching(/YYYY-MM-DD/) }),

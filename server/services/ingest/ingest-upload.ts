@@ -5,6 +5,7 @@ import type { UploadOptions, UploadResult, ValidationProblem } from "@/schemas/c
 import type { ResourceName, TableSchemaResource } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
 import { conflict, HttpProblem } from "@/server/errors";
+import { rowName } from "@/schemas/messages";
 import { readCsvStream } from "./csv-stream";
 import { loadDraftState } from "./draft-state";
 import { compileResource, type CompiledField } from "./field-values";
@@ -123,18 +124,22 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
     }
     const values: RowValues = {};
     for (const name of fieldNames) values[name] = null;
-    let ok = true;
+    let failed: { at: number; message: string }[] | null = null;
     for (let i = 0; i < cells.length; i++) {
       const column = columns[i];
       if (!column) continue;
       const parsed = column.parse(cells[i]!);
       if (parsed.ok) values[column.field.name] = parsed.value;
-      else {
-        ok = false;
-        report.error(index, header[i]!, cells[i]!, parsed.message);
-      }
+      else (failed ??= []).push({ at: i, message: parsed.message });
     }
-    if (ok) handler.row(values, index);
+    if (!failed) return handler.row(values, index);
+    // Each message starts with the row's name ("Plot 203 of TB-01-2021: …"), read from its key cells as written.
+    const raw: Record<string, string> = {};
+    columns.forEach((column, i) => {
+      if (column) raw[column.field.name] = cells[i]!.trim();
+    });
+    const name = rowName(input.resource, raw);
+    for (const { at, message } of failed) report.error(index, header[at]!, cells[at]!, name ? `${name}: ${message}` : message);
   });
   if (read.rows === 0) report.error(null, null, null, "the file has a header but no data rows");
   // Read outside the write transaction; the stale-draft stamp below refuses the write if the draft moved meanwhile.

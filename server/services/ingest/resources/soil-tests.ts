@@ -1,6 +1,7 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { soilTests } from "@/db/schema";
 import { soilTestClasses } from "@/schemas/filters";
+import { cellMessages } from "@/schemas/messages";
 import type { SoilTestScheme } from "@/schemas/soil-test-schemes";
 import { builtInSchemeNames, classifyByThresholds, classOfLabel, findScheme } from "@/server/services/soil-test-schemes";
 import type { Reporter } from "../report";
@@ -120,7 +121,7 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
         unit = "ppm";
       }
       if (unitOf[analyte] && unit !== unitOf[analyte]) {
-        return report.error(row, "unit", unit, `${analyte} is measured in ${unitOf[analyte]}, not ${unit}`);
+        return report.error(row, "unit", unit, `${analyte} test of ${code}: ${cellMessages.wrongUnit(analyte, unitOf[analyte]!, unit)}`);
       }
       if (analyte === "pH" && (value < 3 || value > 11))
         return report.error(row, "value", String(value), `a soil pH of ${value} is not plausible (3–11)`);
