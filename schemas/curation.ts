@@ -206,9 +206,25 @@ const validationProblem = z
     column: z.string().nullable(),
     value: z.string().nullable(),
     message: z.string(),
+    kind: z
+      .string()
+      .optional()
+      .describe('What sort of problem this is, for problems that repeat ("no-responses:no plots or summary means yet", "unbalanced")'),
+    place: z.string().optional().describe("Where it is, as the group's list names it (a site-year, a plot, a treatment)"),
   })
   .meta({ id: "ValidationProblem" });
 export type ValidationProblem = z.infer<typeof validationProblem>;
+
+const problemGroup = z
+  .object({
+    severity,
+    kind: z.string().nullable().describe("The problems' kind; null for a problem of its own"),
+    count: z.number().int(),
+    places: z.array(z.string()).describe("The first few places, in report order"),
+    message: z.string().describe('One sentence for them all, e.g. "No responses yet at 72 site-years (…): TB-01-2021, … and 69 more"'),
+  })
+  .meta({ id: "ProblemGroup" });
+export type ProblemGroup = z.infer<typeof problemGroup>;
 
 export const validationReport = z
   .object({
@@ -220,6 +236,7 @@ export const validationReport = z
     errors: z.number().int(),
     warnings: z.number().int(),
     total: z.number().int().describe("Problems matching the filter, before limit"),
+    groups: z.array(problemGroup).describe("Every problem of the report, one entry per kind with its count (not filtered)"),
     problems: z.array(validationProblem),
     createdAt: z.string(),
   })
@@ -281,6 +298,7 @@ export const uploadResult = z
     delimiter: z.string(),
     errors: z.number().int(),
     warnings: z.number().int(),
+    groups: z.array(problemGroup).describe("All problems of the file, one entry per kind with its count and first places"),
     problems: z.array(validationProblem).describe("The first 200 problems; the report has them all"),
     responses: z.object({ siteYears: z.number().int(), rows: z.number().int(), uncomputed: z.array(uncomputedSiteYear) }).nullable(),
   })

@@ -175,3 +175,38 @@ export function rowName(resource: string, values: Record<string, unknown>): stri
       return null;
   }
 }
+
+/* ---------- Repeated problems, grouped: "No responses yet at 72 site-years: TB-01-2021, … and 69 more" ---------- */
+
+/** How many places a group names before "and N more". */
+export const GROUP_PLACES = 3;
+
+/** "TB-01-2021, TB-02-2021, TB-03-2021 and 69 more". */
+export function placeList(places: readonly string[], count: number): string {
+  const shown = places.slice(0, GROUP_PLACES);
+  if (count <= shown.length) return shown.length > 1 ? `${shown.slice(0, -1).join(", ")} and ${shown.at(-1)}` : (shown[0] ?? "");
+  return `${shown.join(", ")} and ${count - shown.length} more`;
+}
+
+/** One sentence for `count` problems of one kind ("base:detail"); a single problem keeps its own message. */
+export function groupMessage(kind: string, count: number, places: readonly string[], first: string): string {
+  if (count === 1) return first;
+  const cut = kind.indexOf(":");
+  const base = cut < 0 ? kind : kind.slice(0, cut);
+  const detail = cut < 0 ? "" : kind.slice(cut + 1);
+  const list = placeList(places, count);
+  switch (base) {
+    case "no-responses":
+      return `No responses yet at ${count} site-years${detail ? ` (${detail})` : ""}: ${list}`;
+    case "unbalanced":
+      return `${count} site-years are unbalanced, so their responses use the least-squares fit and are stored as unbalanced (balanced = false): ${list}; add the missing plots to balance them`;
+    case "unused-blocks":
+      return `${count} site-years declare blocks that no plot with a yield is in: ${list}; each is analysed with the blocks that have yields`;
+    case "outlier":
+      return `${count} yields are far outside their site-year's range: ${list}; check them`;
+    case "caution":
+      return `${count} treatments trip caution ${detail}: ${list}; see each warning below for how`;
+    default:
+      return `${first} (${count} like this: ${list})`;
+  }
+}

@@ -139,3 +139,31 @@ describe("the balance warning says what is stored", () => {
     expect(stored.every((r) => r.balanced === false)).toBe(true);
   });
 });
+
+describe("repeated warnings are grouped", () => {
+  it("one entry per kind with its count and first places, in the upload answer and in the stored report", async () => {
+    const codes = ["TB-02-2031", "TB-02-2032", "TB-02-2033", "TB-02-2034", "TB-02-2035"];
+    const res = await upload(
+      f.curatorAgent,
+      f.versionId,
+      "site_years",
+      `site_year,site,crop,year,blocks\n${codes.map((c) => `${c},TB-02,soybean,${c.slice(-4)},4`).join("\n")}\n`,
+    ).expect(201);
+    const body = uploadResult.parse(res.body);
+    // Five site-years without plots, one entry (the upload recomputes the site-years it touches).
+    const group = body.groups.find((g) => g.kind === "no-responses:no plots or summary means yet")!;
+    expect(group).toEqual({
+      severity: "warning",
+      kind: "no-responses:no plots or summary means yet",
+      count: 5,
+      places: ["TB-02-2031", "TB-02-2032", "TB-02-2033"],
+      message: "No responses yet at 5 site-years (no plots or summary means yet): TB-02-2031, TB-02-2032, TB-02-2033 and 2 more",
+    });
+    expect(body.groups.filter((g) => g.kind?.startsWith("no-responses"))).toHaveLength(1);
+    // Every single warning stays in the report, each with its place.
+    expect(body.problems.filter((p) => p.kind === group.kind).map((p) => p.place)).toEqual(codes);
+    const stored = await f.curatorAgent.get(`/api/v1/curation/versions/${f.versionId}/reports/${body.reportId}?severity=error`).expect(200);
+    expect(stored.body.problems).toEqual([]);
+    expect(stored.body.groups).toContainEqual(group);
+  });
+});

@@ -11,7 +11,7 @@ import { loadDraftState } from "./draft-state";
 import { compileResource, type CompiledField } from "./field-values";
 import { plotOutcomes } from "./plot-outcomes";
 import { recomputeResponses, type RecomputeResult } from "./recompute-responses";
-import { Reporter } from "./report";
+import { groupProblems, Reporter } from "./report";
 import { storeUpload } from "./upload-store";
 import type { IngestContext, ResourceIngest, RowValues } from "./resource-ingest";
 import { plotsIngest } from "./resources/plots";
@@ -169,6 +169,7 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
       uploadId: null,
       errors: report.errors,
       warnings: report.warnings,
+      groups: groupProblems(problems),
       problems: problems.slice(0, 200),
       responses: null,
     };
@@ -202,7 +203,9 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
       row: null,
       column: null,
       value: u.siteYear,
-      message: `site-year "${u.siteYear}" has no responses: ${u.reason}`,
+      message: `Site-year ${u.siteYear} has no responses yet: ${u.reason}`,
+      kind: `no-responses:${u.reason}`,
+      place: u.siteYear,
     }));
     const [saved] = await tx
       .insert(validationReports)
@@ -227,6 +230,7 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
     uploadId,
     errors: 0,
     warnings: report.warnings,
+    groups: groupProblems(problems),
     problems: problems.slice(0, 200),
     responses: r ? { siteYears: r.siteYears, rows: r.rows, uncomputed: r.uncomputed } : null,
   };

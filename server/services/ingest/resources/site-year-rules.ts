@@ -69,6 +69,7 @@ export function balanceRule(tally: SiteYearTally, declaredBlocks: number, codeOf
       "block",
       null,
       `Site-year ${tally.code} is unbalanced: ${what}. Its responses use the least-squares fit and are stored as unbalanced (balanced = false); add the missing plots to balance it.`,
+      { kind: "unbalanced", place: tally.code },
     );
   }
   const used = new Set(tally.yieldBlocks);
@@ -80,6 +81,7 @@ export function balanceRule(tally: SiteYearTally, declaredBlocks: number, codeOf
       "block",
       null,
       `Site-year ${tally.code} declares ${declaredBlocks} blocks, but no plot with a yield is in block ${unused.join(", ")}; it is analysed with the ${used.size} blocks that have yields${design.balanced ? " and stays balanced" : ""}. Correct blocks in site_years if the design had fewer.`,
+      { kind: "unused-blocks", place: tally.code },
     );
   }
 }
@@ -99,6 +101,7 @@ export function outlierRule(tally: SiteYearTally, report: Reporter, file = "yiel
         file,
         String(Math.round(y)),
         `yield ${Math.round(y)} kg/ha is far outside site-year "${tally.code}"'s range (median ${Math.round(median)} kg/ha); check it`,
+        { kind: "outlier", place: `row ${tally.yieldRows[i]} (${tally.code})` },
       );
     }
   });
