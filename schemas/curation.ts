@@ -305,6 +305,35 @@ export const uploadResult = z
   .meta({ id: "UploadResult" });
 export type UploadResult = z.infer<typeof uploadResult>;
 
+/** One cell changed by hand, with the reason the changelog keeps. */
+export const cellEditBody = z
+  .object({
+    resource: resourceName,
+    key: z
+      .record(line().max(64), line().max(200))
+      .describe('The row\'s key fields as its CSV prints them, e.g. {"site_year":"TB-01-2021","plot":"203"}'),
+    field: line().min(1).max(64).describe("The data-dictionary field to change (not a key field)"),
+    value: line().max(2000).describe("The new value as a CSV cell would hold it, in the stored unit; empty for a missing value"),
+    reason: paragraph().trim().min(3).max(2000).describe("Why: recorded in the version's changelog"),
+  })
+  .strict()
+  .meta({ id: "CellEdit" });
+export type CellEdit = z.infer<typeof cellEditBody>;
+
+export const cellEditResult = z
+  .object({
+    resource: resourceName,
+    key: z.record(z.string(), z.string()),
+    field: z.string(),
+    from: z.string().nullable(),
+    to: z.string().nullable(),
+    reason: z.string(),
+    changelog: z.string().describe("The version's changelog with the edit's line"),
+    upload: uploadResult.describe("The check and write the edit went through, as an upload of the edited row"),
+  })
+  .meta({ id: "CellEditResult" });
+export type CellEditResult = z.infer<typeof cellEditResult>;
+
 /**
  * A rejected upload (422, application/problem+json): `errors` lists the located problems (file, row, column, value),
  * the counts are `errorCount` and `warningCount`, and the rest is the upload result. Nothing was stored.

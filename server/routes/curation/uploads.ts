@@ -2,7 +2,7 @@ import busboy from "busboy";
 import type { Request, Router } from "express";
 import type { Readable } from "node:stream";
 import { z } from "zod";
-import { uploadOptions, uploadRejection, uploadResult, type UploadOptions } from "@/schemas/curation";
+import { cellEditBody, cellEditResult, uploadOptions, uploadRejection, uploadResult, type UploadOptions } from "@/schemas/curation";
 import { hasControlCharacter, line } from "@/schemas/safe-text";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
@@ -13,6 +13,7 @@ import { problemResponses } from "@/server/openapi/registry";
 import { assertCanEdit, versionById } from "@/server/services/curation/access";
 import { tooLarge } from "@/server/services/ingest/csv-stream";
 import { ingestUpload } from "@/server/services/ingest/ingest-upload";
+import { editCell } from "@/server/services/curation/cell-edit";
 import { json } from "./docs";
 
 const params = z.object({ id: z.uuid(), resource: resourceName });
@@ -217,6 +218,34 @@ export function curationUploadRoutes(ctx: AppContext): Router {
           ...rest,
         },
       );
+    },
+  );
+
+  defineRoute(
+    {
+      method: "post",
+      path: "/api/v1/curation/versions/{id}/cells",
+      operationId: "editCell",
+      tags: ["Curation"],
+      summary: "Change one cell of a draft, with a reason; checked and written as a merge upload of that row",
+      description:
+        "The row named by `key` (its primary-key fields as the resource CSV prints them) gets `value` in `field`, in the stored " +
+        "unit. The edited row goes through the same checks as an upload in merge mode, on the version as the edit would leave " +
+        "it; responses are recomputed, and the version's changelog gets a line with the old and new value and the reason. " +
+        "A refused edit is a 422 whose `errors` name `body.value` (or the key or field) and changes nothing.",
+      guards: [requireWriteScope],
+      params: z.object({ id: z.uuid() }),
+      body: { json: cellEditBody },
+      responses: {
+        200: json(cellEditResult, "Applied; the version's changelog records it"),
+        ...problemResponses(400, 401, 403, 404, 409, 422),
+      },
+    },
+    async ({ params: { id }, body }, req, res) => {
+      const user = currentUser(req);
+      const { dataset } = await versionById(db, id);
+      await assertCanEdit(db, user, dataset);
+      res.json(await editCell(ctx, id, user.id, body));
     },
   );
 

@@ -13,6 +13,7 @@ import { plotOutcomes } from "./plot-outcomes";
 import { recomputeResponses, type RecomputeResult } from "./recompute-responses";
 import { groupProblems, Reporter } from "./report";
 import { storeUpload } from "./upload-store";
+import type { Tx } from "./write-rows";
 import type { IngestContext, ResourceIngest, RowValues } from "./resource-ingest";
 import { plotsIngest } from "./resources/plots";
 import { siteYearsIngest } from "./resources/site-years";
@@ -37,6 +38,8 @@ export interface IngestInput {
   source: Readable;
   options: UploadOptions;
   userId: string | null;
+  /** Runs inside the write transaction after the rows are stored (a cell edit records itself there). */
+  afterWrite?: (tx: Tx) => Promise<void>;
 }
 
 /** Which file column feeds which field, and the problems of the header. */
@@ -217,6 +220,7 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
         problems: [...problems, ...notes],
       })
       .returning({ id: validationReports.id });
+    await input.afterWrite?.(tx);
     await tx.update(versions).set({ updatedAt: new Date() }).where(eq(versions.id, input.versionId));
     report.warnings += notes.length;
     problems.push(...notes);
