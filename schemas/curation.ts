@@ -305,6 +305,24 @@ export const uploadResult = z
   .meta({ id: "UploadResult" });
 export type UploadResult = z.infer<typeof uploadResult>;
 
+export const draftRowsQuery = z
+  .object({
+    limit: z.coerce.number().int().min(1).max(1000).default(200),
+    offset: z.coerce.number().int().min(0).default(0),
+  })
+  .strict();
+
+export const draftRows = z
+  .object({
+    resource: resourceName,
+    fields: z.array(z.string()).describe("The data dictionary's fields, in order: the columns of `rows`"),
+    keyFields: z.array(z.string()).describe("The fields that name a row (a cell edit's key); they are not edited in place"),
+    total: z.number().int(),
+    rows: z.array(z.array(z.union([z.string(), z.null()]))).describe("Values in the stored unit, as the resource CSV prints them"),
+  })
+  .meta({ id: "DraftRows" });
+export type DraftRows = z.infer<typeof draftRows>;
+
 /** One cell changed by hand, with the reason the changelog keeps. */
 export const cellEditBody = z
   .object({

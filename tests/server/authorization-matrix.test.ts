@@ -366,6 +366,10 @@ const table: Record<string, Row> = {
   },
   "GET /api/v1/curation/diff": { expect: draftView(200), query: (c) => ({ from: c.fx.publishedId, to: c.fx.draftId }) },
   "GET /api/v1/curation/review-queue": { expect: { ...adminOnly(200), reviewer: 200 } },
+  "GET /api/v1/curation/versions/:id/rows/:resource": {
+    expect: draftView(200, 401),
+    params: (c) => ({ id: c.fx.draftId, resource: "sites" }),
+  },
   "POST /api/v1/curation/versions/:id/cells": {
     expect: ownerWrite(200, "hidden"),
     params: (c) => ({ id: c.fx.draftId }),

@@ -2,18 +2,28 @@ import busboy from "busboy";
 import type { Request, Router } from "express";
 import type { Readable } from "node:stream";
 import { z } from "zod";
-import { cellEditBody, cellEditResult, uploadOptions, uploadRejection, uploadResult, type UploadOptions } from "@/schemas/curation";
+import {
+  draftRows,
+  draftRowsQuery,
+  cellEditBody,
+  cellEditResult,
+  uploadOptions,
+  uploadRejection,
+  uploadResult,
+  type UploadOptions,
+} from "@/schemas/curation";
 import { hasControlCharacter, line } from "@/schemas/safe-text";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
-import { currentUser, requireWriteScope } from "@/server/auth/guards";
+import { currentUser, requireUser, requireWriteScope } from "@/server/auth/guards";
 import { HttpProblem, zodProblems } from "@/server/errors";
 import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
-import { assertCanEdit, versionById } from "@/server/services/curation/access";
+import { assertCanEdit, assertCanView, versionById } from "@/server/services/curation/access";
 import { tooLarge } from "@/server/services/ingest/csv-stream";
 import { ingestUpload } from "@/server/services/ingest/ingest-upload";
-import { editCell } from "@/server/services/curation/cell-edit";
+import { editCell, rowKey } from "@/server/services/curation/cell-edit";
+import { fieldsOf, resourceRowsPage } from "@/server/services/curation/resource-csv";
 import { json } from "./docs";
 
 const params = z.object({ id: z.uuid(), resource: resourceName });
@@ -218,6 +228,27 @@ export function curationUploadRoutes(ctx: AppContext): Router {
           ...rest,
         },
       );
+    },
+  );
+
+  defineRoute(
+    {
+      method: "get",
+      path: "/api/v1/curation/versions/{id}/rows/{resource}",
+      operationId: "getDraftRows",
+      tags: ["Curation"],
+      summary: "A page of one resource's rows of a version, as its CSV prints them (the desk's data grid)",
+      guards: [requireUser],
+      params,
+      query: draftRowsQuery,
+      responses: { 200: json(draftRows, "The rows"), ...problemResponses(400, 401, 404) },
+    },
+    async ({ params: { id, resource }, query }, req, res) => {
+      const { version, dataset } = await versionById(db, id);
+      await assertCanView(db, req.user, dataset, version);
+      const fields = fieldsOf(version.tableSchema, resource);
+      const page = await resourceRowsPage(db, id, fields, resource, query.limit, query.offset);
+      res.json({ resource, fields, keyFields: rowKey[resource], ...page });
     },
   );
 

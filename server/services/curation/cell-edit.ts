@@ -22,7 +22,7 @@ const mergeKey: Record<ResourceName, string[]> = {
   summaries: ["site_year", "treatment"],
 };
 /** Fields that name a row: changing one would make another row, so they are not edited in place. */
-const rowKey: Record<ResourceName, string[]> = { ...mergeKey, treatments: ["treatment", "application"] };
+export const rowKey: Record<ResourceName, string[]> = { ...mergeKey, treatments: ["treatment", "application"] };
 
 const fieldProblem = (status: number, message: string, field = "body.key") =>
   new HttpProblem(status, status === 404 ? "Not found" : "Unprocessable content", message, { errors: [{ field, message }] });

@@ -222,3 +222,26 @@ export async function resourceRowsByKey(
   const rows = (result as unknown as { rows: Record<string, string | null>[] }).rows;
   return rows.map((row) => fields.map((_, i) => row[`c${i}`] ?? null));
 }
+
+/** One page of a resource's rows as the resource CSV prints them, with the number of rows in all (the desk's data grid). */
+export async function resourceRowsPage(
+  db: Db | Tx,
+  versionId: string,
+  fields: string[],
+  resource: ResourceName,
+  limit: number,
+  offset: number,
+): Promise<{ total: number; rows: (string | null)[][] }> {
+  const q = resourceQueries[resource];
+  const select = fields.map((f, i) => `(${q.columns[f]})::text AS c${i}`).join(", ");
+  const where = sql.raw(` WHERE ${firstAlias[resource]}.version_id = `);
+  const [page, count] = await Promise.all([
+    db.execute(
+      sql`${sql.raw(`SELECT ${select} FROM ${q.from}`)}${where}${versionId} ORDER BY ${sql.raw(q.orderBy)} LIMIT ${limit} OFFSET ${offset}`,
+    ),
+    db.execute(sql`${sql.raw(`SELECT count(*)::int AS n FROM ${q.from}`)}${where}${versionId}`),
+  ]);
+  const rows = (page as unknown as { rows: Record<string, string | null>[] }).rows;
+  const total = Number((count as unknown as { rows: { n: number | string }[] }).rows[0]?.n ?? 0);
+  return { total, rows: rows.map((row) => fields.map((_, i) => row[`c${i}`] ?? null)) };
+}
