@@ -230,9 +230,25 @@ const validationProblem = z
     column: z.string().nullable(),
     value: z.string().nullable(),
     message: z.string(),
+    kind: z
+      .string()
+      .optional()
+      .describe('What sort of problem this is, for problems that repeat ("no-responses:no plots or summary means yet", "unbalanced")'),
+    place: z.string().optional().describe("Where it is, as the group's list names it (a site-year, a plot, a treatment)"),
   })
   .meta({ id: "ValidationProblem" });
 export type ValidationProblem = z.infer<typeof validationProblem>;
+
+const problemGroup = z
+  .object({
+    severity,
+    kind: z.string().nullable().describe("The problems' kind; null for a problem of its own"),
+    count: z.number().int(),
+    places: z.array(z.string()).describe("The first few places, in report order"),
+    message: z.string().describe('One sentence for them all, e.g. "No responses yet at 72 site-years (…): TB-01-2021, … and 69 more"'),
+  })
+  .meta({ id: "ProblemGroup" });
+export type ProblemGroup = z.infer<typeof problemGroup>;
 
 export const validationReport = z
   .object({
@@ -244,6 +260,7 @@ export const validationReport = z
     errors: z.number().int(),
     warnings: z.number().int(),
     total: z.number().int().describe("Problems matching the filter, before limit"),
+    groups: z.array(problemGroup).describe("Every problem of the report, one entry per kind with its count (not filtered)"),
     problems: z.array(validationProblem),
     createdAt: z.string(),
   })
@@ -285,7 +302,7 @@ export const uploadOptions = z
       .enum(["merge", "replace"])
       .default("merge")
       .describe(
-        "merge: rows keyed as existing ones replace them (plots, summaries and soil tests per site-year), others are added; replace: the file becomes the whole resource",
+        "merge: each row replaces the draft's row with the same key (sites by site, site-years by site_year, treatments by treatment with all its applications, soil tests by site_year + analyte, plots by site_year + plot, summaries by site_year + treatment) and other rows are added; the draft's other rows stay, and the checks judge the merged version. replace: the file becomes the whole resource",
       ),
   })
   .strict()
@@ -305,6 +322,7 @@ export const uploadResult = z
     delimiter: z.string(),
     errors: z.number().int(),
     warnings: z.number().int(),
+    groups: z.array(problemGroup).describe("All problems of the file, one entry per kind with its count and first places"),
     problems: z.array(validationProblem).describe("The first 200 problems; the report has them all"),
     responses: z.object({ siteYears: z.number().int(), rows: z.number().int(), uncomputed: z.array(uncomputedSiteYear) }).nullable(),
   })
@@ -319,6 +337,35 @@ const rejectionHead = {
   detail: z.string(),
   instance: z.string(),
 };
+
+/** One cell changed by hand, with the reason the changelog keeps. */
+export const cellEditBody = z
+  .object({
+    resource: resourceName,
+    key: z
+      .record(line().max(64), line().max(200))
+      .describe('The row\'s key fields as its CSV prints them, e.g. {"site_year":"TB-01-2021","plot":"203"}'),
+    field: line().min(1).max(64).describe("The data-dictionary field to change (not a key field)"),
+    value: line().max(2000).describe("The new value as a CSV cell would hold it, in the stored unit; empty for a missing value"),
+    reason: paragraph().trim().min(3).max(2000).describe("Why: recorded in the version's changelog"),
+  })
+  .strict()
+  .meta({ id: "CellEdit" });
+export type CellEdit = z.infer<typeof cellEditBody>;
+
+export const cellEditResult = z
+  .object({
+    resource: resourceName,
+    key: z.record(z.string(), z.string()),
+    field: z.string(),
+    from: z.string().nullable(),
+    to: z.string().nullable(),
+    reason: z.string(),
+    changelog: z.string().describe("The version's changelog with the edit's line"),
+    upload: uploadResult.describe("The check and write the edit went through, as an upload of the edited row"),
+  })
+  .meta({ id: "CellEditResult" });
+export type CellEditResult = z.infer<typeof cellEditResult>;
 
 /**
  * A rejected upload (422, application/problem+json): `errors` lists the located problems (file, row, column, value),

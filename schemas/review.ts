@@ -60,6 +60,7 @@ export const versionRowsPage = z
     versionId: z.string(),
     resource: resourceName,
     fields: z.array(z.string()),
+    keyFields: z.array(z.string()).describe("The fields that name a row (a cell edit's `key`); they are not edited in place"),
     page: z.number().int(),
     limit: z.number().int(),
     total: z.number().int(),

@@ -1,4 +1,6 @@
 import { z } from "zod";
+// Installs the readable wording of zod issues wherever a request schema is loaded, in the server and in the app.
+import "@/schemas/messages";
 
 /**
  * Text the contract accepts. PostgreSQL cannot store U+0000 in text (it fails the whole statement), a line break in a

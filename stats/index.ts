@@ -11,6 +11,7 @@ export {
 export * from "@/stats/mean-separation";
 export * from "@/stats/rcbd-anova";
 export * from "@/stats/pairwise-lsd";
+export * from "@/stats/design-balance";
 export * from "@/stats/one-way-anova";
 export * from "@/stats/studentized-residuals";
 export * from "@/stats/effects";

@@ -1,7 +1,8 @@
 /**
  * Analysis of variance of one site-year laid out as a randomized complete block design (RCBD).
  */
-import { anovaRow, exactFitResidualSs, fitLinearModel, factorLevels, type AnovaTableRow } from "@/stats/linear-model";
+import { anovaRow, exactFitResidualSs, fitLinearModel, type AnovaTableRow } from "@/stats/linear-model";
+import { designBalance } from "@/stats/design-balance";
 import { coefficientOfVariationPercent, meanSeparation, type MeanSeparation } from "@/stats/mean-separation";
 
 /** One plot of a site-year: its block (replicate), treatment and measured response (e.g. yield). */
@@ -85,21 +86,13 @@ export function rcbdAnova(plots: readonly RcbdPlot[]): RcbdAnovaResult {
   const notes: string[] = [];
   const blockValues = plots.map((plot) => plot.block);
   const treatmentValues = plots.map((plot) => plot.treatment);
-  const blocks = factorLevels({ values: blockValues });
-  const treatments = factorLevels({ values: treatmentValues });
+  const design = designBalance(plots);
+  const { blocks, treatments, balanced } = design;
   if (treatments.length < 2) throw new RangeError("rcbdAnova: at least two treatments are needed");
   if (blocks.length < 2) notes.push("Only one block: the block term has no degrees of freedom.");
-
-  const cellCounts = new Map<string, number>();
-  for (const plot of plots) {
-    const key = `${plot.treatment}\u0000${plot.block}`;
-    cellCounts.set(key, (cellCounts.get(key) ?? 0) + 1);
-  }
-  const counts = treatments.flatMap((treatment) => blocks.map((block) => cellCounts.get(`${treatment}\u0000${block}`) ?? 0));
-  const firstCount = counts[0] ?? 0;
-  const balanced = firstCount > 0 && counts.every((count) => count === firstCount);
+  const firstCount = design.perCell ?? 0;
   if (!balanced) {
-    const missing = counts.filter((count) => count === 0).length;
+    const missing = design.emptyCells.length;
     notes.push(
       `Unbalanced design (${missing} treatment-block cell(s) without a plot, or unequal plots per cell): ` +
         "fitted as the least-squares model y ~ block + treatment; the treatment SS is adjusted for blocks " +

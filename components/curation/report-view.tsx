@@ -30,6 +30,19 @@ export function ReportView({ versionId, reportId }: { versionId: string; reportI
           {r.accepted ? "" : ". Nothing from this file was saved: fix the rows below and upload it again."}
         </Text>
       </View>
+      {r.groups.some((g) => g.count > 1) ? (
+        <View role="list" accessibilityLabel="Problems by kind" style={styles.groups}>
+          {r.groups.map((g, i) => (
+            <View key={`${g.kind ?? "one"}-${i}`} role="listitem" style={styles.group}>
+              <Text style={{ color: g.severity === "error" ? colors.danger : colors.wheatText }}>
+                {g.severity === "error" ? "Error" : "Warning"}
+                {g.count > 1 ? ` ×${g.count}` : ""}
+              </Text>
+              <Text style={styles.grow}>{g.message}</Text>
+            </View>
+          ))}
+        </View>
+      ) : null}
       <ProblemReportTable
         problems={r.problems}
         filename={r.filename}
@@ -45,6 +58,9 @@ export function ReportView({ versionId, reportId }: { versionId: string; reportI
 
 const styles = StyleSheet.create({
   verdict: { padding: space.md, borderRadius: 10, gap: space.xs },
+  groups: { gap: space.xs },
+  group: { flexDirection: "row", gap: space.sm, flexWrap: "wrap" },
+  grow: { flex: 1, minWidth: 200 },
   ok: { backgroundColor: colors.fieldTint },
   bad: { backgroundColor: colors.dangerTint },
 });

@@ -202,11 +202,12 @@ export function UploadPanel({ version }: { version: VersionDetail }) {
           <Text variant="subheading" style={{ color: colors.wheatText }}>
             Site-years without responses
           </Text>
-          {upload.data.responses.uncomputed.map((u) => (
-            <Text key={u.siteYear}>
-              {u.siteYear}: {u.reason}
-            </Text>
-          ))}
+          <Text>
+            {upload.data.groups
+              .filter((g) => g.kind?.startsWith("no-responses:"))
+              .map((g) => g.message)
+              .join(" · ")}
+          </Text>
         </Card>
       ) : null}
     </View>

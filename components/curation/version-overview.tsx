@@ -9,6 +9,14 @@ import { resourceName } from "@/schemas/table-schema";
 import { resourceTitles } from "@/constants/vocabulary";
 import { formatBytes, formatDay } from "./format";
 import { ReportView } from "./report-view";
+import { placeList } from "@/schemas/messages";
+
+/** Site-years without responses, one line per reason ("no plots or summary means yet: TB-01, TB-02, TB-03 and 69 more"). */
+function groupByReason(list: readonly { siteYear: string; reason: string }[]): [string, string[]][] {
+  const by = new Map<string, string[]>();
+  for (const u of list) by.set(u.reason, [...(by.get(u.reason) ?? []), u.siteYear]);
+  return [...by];
+}
 
 /** What the version holds: rows per resource, site-years without responses, uploads and their reports. */
 export function VersionOverview({ version }: { version: VersionDetail }) {
@@ -38,9 +46,9 @@ export function VersionOverview({ version }: { version: VersionDetail }) {
             <Text variant="subheading" style={{ color: colors.wheatText }}>
               Site-years without responses ({version.uncomputedSiteYears.length})
             </Text>
-            {version.uncomputedSiteYears.map((u) => (
-              <Text key={u.siteYear}>
-                {u.siteYear}: {u.reason}
+            {groupByReason(version.uncomputedSiteYears).map(([reason, codes]) => (
+              <Text key={reason}>
+                {reason}: {placeList(codes, codes.length)}
               </Text>
             ))}
           </View>

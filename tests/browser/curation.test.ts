@@ -200,10 +200,7 @@ describe("the curator's workbench at desktop size", () => {
     await expect(page.getByRole("button", { name: "Approve and publish" }).count()).resolves.toBe(0);
     await page.getByRole("button", { name: "Submit for review" }).click();
     await page.getByRole("button", { name: "Confirm: submit for review" }).click();
-    await page
-      .getByText(/at least 3|too small|Too small/i)
-      .first()
-      .waitFor();
+    await page.getByText("needs at least 3 characters, found 0; write a few more words").first().waitFor();
     await page.getByLabel("Changelog", { exact: true }).fill("First release: the 2021 season at TB-05 and TB-06.");
     await expect(page.getByLabel("Version number", { exact: true }).inputValue()).resolves.toBe("1.0.0");
     await page.getByRole("button", { name: "Confirm: submit for review" }).click();

@@ -433,6 +433,11 @@ const table: Record<string, Row> = {
     },
   },
   "GET /api/v1/curation/review-queue": { expect: { ...adminOnly(200), reviewer: 200 } },
+  "POST /api/v1/curation/versions/:id/cells": {
+    expect: ownerWrite(200, "hidden"),
+    params: (c) => ({ id: c.fx.draftId }),
+    body: () => ({ resource: "sites", key: { site: "TB-01" }, field: "location", value: "Wren County", reason: "Spelling of the county." }),
+  },
   "POST /api/v1/curation/versions/:id/uploads/:resource": {
     expect: ownerWrite(201, "hidden"),
     params: (c) => ({ id: c.fx.draftId, resource: "sites" }),

@@ -128,8 +128,8 @@ describe("draft → review → published → next version", () => {
     expect(detail.uncomputedSiteYears).toEqual([{ siteYear: "TB-01-2022", reason: "no plots or summary means yet" }]);
     expect(detail.suggestedBump).toBe("minor");
 
-    // Merging a site-year's plots replaces that site-year's plots: the skipped plot is gone.
-    await upload(f.curatorAgent, v2.id, "plots", plotsCsv({ skip: ["TB-02-2021/101"] })).expect(201);
+    // Replacing the plots with a file that lacks one plot removes it.
+    await upload(f.curatorAgent, v2.id, "plots", plotsCsv({ skip: ["TB-02-2021/101"] }), { mode: "replace" }).expect(201);
     d = versionDiff.parse((await f.curatorAgent.get(`/api/v1/curation/diff?from=${v2.basedOnVersionId}&to=${v2.id}`).expect(200)).body);
     expect(d.rows.plots.removed).toBe(1);
     expect(d.suggestedBump).toBe("major");

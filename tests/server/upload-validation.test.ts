@@ -125,7 +125,13 @@ describe("Table Schema rules, located by row and column", () => {
       expect.objectContaining({ column: "blocks", message: expect.stringMatching(/required field blocks has no column/) }),
     );
     body = await rejected("site_years", "site_year,site,crop,year,blocks\nTB-01-2023,TB-01,soybean,2023,\n");
-    expect(body.errors).toContainEqual(expect.objectContaining({ row: 1, column: "blocks", message: "blocks is required but missing" }));
+    expect(body.errors).toContainEqual(
+      expect.objectContaining({
+        row: 1,
+        column: "blocks",
+        message: "Site-year TB-01-2023: blocks (replicates) is required but the cell is empty; fill it in",
+      }),
+    );
   });
 
   it("an enum, a range and a date", async () => {
@@ -134,10 +140,21 @@ describe("Table Schema rules, located by row and column", () => {
       "site_year,site,crop,year,blocks,row_spacing_in,planting_date\nTB-01-2023,TB-01,rice,2023,4,30,2023-05-10\nTB-01-2024,TB-01,soybean,2024,4,100,2024-05-10\nTB-01-2025,TB-01,soybean,2025,4,30,2025-02-30\n",
     );
     expect(body.errors).toContainEqual(
-      expect.objectContaining({ row: 1, column: "crop", value: "rice", message: expect.stringMatching(/not one of the allowed values/) }),
+      expect.objectContaining({
+        row: 1,
+        column: "crop",
+        value: "rice",
+        message: expect.stringMatching(
+          /^Site-year TB-01-2023: crop "rice" is not one of the values this column takes: .*; use one of them as written$/,
+        ),
+      }),
     );
     expect(body.errors).toContainEqual(
-      expect.objectContaining({ row: 2, column: "row_spacing_in", message: expect.stringMatching(/above the maximum 60 in/) }),
+      expect.objectContaining({
+        row: 2,
+        column: "row_spacing_in",
+        message: expect.stringMatching(/row spacing \(row_spacing_in\) 100 in is above the highest accepted value, 60 in/),
+      }),
     );
     expect(body.errors).toContainEqual(
       expect.objectContaining({ row: 3, column: "planting_date", message: expect.stringMatching(/YYYY-MM-DD/) }),
@@ -179,7 +196,8 @@ describe("domain rules", () => {
       .split("\n")
       .filter((l) => !l.includes(",CHK,"))
       .join("\n");
-    let body = await rejected("plots", noCheck);
+    // Replace: the file is the whole of the plots, so nothing of the draft's plots is merged in.
+    let body = await rejected("plots", noCheck, { mode: "replace" });
     expect(body.errors).toContainEqual(
       expect.objectContaining({ column: "treatment", message: expect.stringMatching(/site-year "TB-01-2021" has no untreated check/) }),
     );
@@ -187,6 +205,7 @@ describe("domain rules", () => {
     body = await rejected(
       "plots",
       plotsCsv({ override: { "TB-02-2021/101": "TB-02-2021,101,1,CHK2,4100,13" } }).replace(/TB-02-2021,102,1,IF/, "TB-02-2021,102,1,CHK"),
+      { mode: "replace" },
     );
     expect(body.errors.map((e) => e.message).join("\n")).toMatch(/site-year "TB-02-2021" has 2 checks \(CHK, CHK2\)/);
   });
@@ -326,12 +345,14 @@ describe("domain rules", () => {
   });
 
   it("missing plots are accepted with an unbalance warning; responses use the least-squares fit", async () => {
-    const res = await upload(f.curatorAgent, f.versionId, "plots", plotsCsv({ skip: ["TB-01-2021/203", "TB-01-2021/204"] })).expect(201);
+    const res = await upload(f.curatorAgent, f.versionId, "plots", plotsCsv({ skip: ["TB-01-2021/203", "TB-01-2021/204"] }), {
+      mode: "replace",
+    }).expect(201);
     expect(res.body.problems).toContainEqual(
       expect.objectContaining({
         severity: "warning",
         column: "block",
-        message: expect.stringMatching(/TB-01-2021" is unbalanced: 2 of 16 plots missing/),
+        message: expect.stringMatching(/Site-year TB-01-2021 is unbalanced: 2 of 16 plots missing/),
       }),
     );
     const r = await rows<{ balanced: boolean; lsd05_kg_ha: number | null }>(

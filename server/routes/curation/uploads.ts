@@ -3,6 +3,8 @@ import type { Request, Router } from "express";
 import type { Readable } from "node:stream";
 import { z } from "zod";
 import {
+  cellEditBody,
+  cellEditResult,
   uploadOptions,
   uploadRejection,
   uploadResult,
@@ -15,7 +17,7 @@ import {
 import { hasControlCharacter, line } from "@/schemas/safe-text";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
-import { currentUser, requireWriteScope } from "@/server/auth/guards";
+import { currentUser, requireUser, requireWriteScope } from "@/server/auth/guards";
 import { HttpProblem, zodProblems } from "@/server/errors";
 import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
@@ -23,6 +25,7 @@ import { assertCanEdit, versionById } from "@/server/services/curation/access";
 import { tooLarge } from "@/server/services/ingest/csv-stream";
 import { ingestUpload } from "@/server/services/ingest/ingest-upload";
 import { ingestWorkbook } from "@/server/services/ingest/ingest-workbook";
+import { editCell } from "@/server/services/curation/cell-edit";
 import { json } from "./docs";
 
 const params = z.object({ id: z.uuid(), resource: resourceName });
@@ -326,6 +329,34 @@ export function curationUploadRoutes(ctx: AppContext): Router {
         `${filename}: sheet ${rejected?.sheet ?? "?"} has ${errors} error(s); nothing in the workbook was stored. See report ${rejected?.reportId ?? "?"}.`,
         { errors: located, errorCount: errors, warningCount: warnings, ...rest },
       );
+    },
+  );
+
+  defineRoute(
+    {
+      method: "post",
+      path: "/api/v1/curation/versions/{id}/cells",
+      operationId: "editCell",
+      tags: ["Curation"],
+      summary: "Change one cell of a draft, with a reason; checked and written as a merge upload of that row",
+      description:
+        "The row named by `key` (its primary-key fields as the resource CSV prints them) gets `value` in `field`, in the stored " +
+        "unit. The edited row goes through the same checks as an upload in merge mode, on the version as the edit would leave " +
+        "it; responses are recomputed, and the version's changelog gets a line with the old and new value and the reason. " +
+        "A refused edit is a 422 whose `errors` name `body.value` (or the key or field) and changes nothing.",
+      guards: [requireWriteScope],
+      params: z.object({ id: z.uuid() }),
+      body: { json: cellEditBody },
+      responses: {
+        200: json(cellEditResult, "Applied; the version's changelog records it"),
+        ...problemResponses(400, 401, 403, 404, 409, 422),
+      },
+    },
+    async ({ params: { id }, body }, req, res) => {
+      const user = currentUser(req);
+      const { dataset } = await versionById(db, id);
+      await assertCanEdit(db, user, dataset);
+      res.json(await editCell(ctx, id, user.id, body));
     },
   );
 

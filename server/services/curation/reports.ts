@@ -1,3 +1,4 @@
+import { groupProblems } from "@/server/services/ingest/report";
 import { and, eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import { validationReports } from "@/db/schema";
@@ -55,6 +56,7 @@ export async function getReport(
     errors: problems.filter((p) => p.severity === "error").length,
     warnings: problems.filter((p) => p.severity === "warning").length,
     total: selected.length,
+    groups: groupProblems(problems),
     problems: selected.slice(filter.offset, filter.offset + filter.limit),
     createdAt: r.createdAt.toISOString(),
   };

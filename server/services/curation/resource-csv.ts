@@ -211,3 +211,32 @@ export async function versionChecksum(db: Db | Tx, versionId: string, schema: Ta
   }
   return `sha256:${hash.digest("hex")}`;
 }
+
+/**
+ * The rows of one resource whose key fields print as the given text (e.g. site_year "TB-01-2021" and plot "203"), as
+ * the resource CSV writes them: the rows a cell edit starts from. Field names come from `resourceQueries`, values go
+ * as parameters.
+ */
+export async function resourceRowsByKey(
+  db: Db | Tx,
+  versionId: string,
+  schema: TableSchemaDescriptor,
+  fields: string[],
+  resource: ResourceName,
+  key: Record<string, string>,
+): Promise<(string | null)[][]> {
+  const q = resourceQueries[resource];
+  const select = fields.map((f, i) => `(${columnOf(schema, resource, f)})::text AS c${i}`).join(", ");
+  // Row numbers (treatments' application) are computed over the whole version before the key narrows the rows.
+  const inner = sql.raw(`SELECT ${select} FROM ${q.from} WHERE ${firstAlias[resource]}.version_id = `);
+  const conditions = Object.entries(key).map(([field, value]) => {
+    const i = fields.indexOf(field);
+    if (i < 0) throw new RangeError(`resourceRowsByKey: ${field} is not a field of ${resource}`);
+    return sql` AND k.${sql.raw(`c${i}`)} = ${value}`;
+  });
+  const result = await db.execute(
+    sql`SELECT * FROM (${inner}${versionId} ORDER BY ${sql.raw(q.orderBy)}) k WHERE true${sql.join(conditions, sql``)}`,
+  );
+  const rows = (result as unknown as { rows: Record<string, string | null>[] }).rows;
+  return rows.map((row) => fields.map((_, i) => row[`c${i}`] ?? null));
+}

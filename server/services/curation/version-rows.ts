@@ -2,7 +2,8 @@ import { sql } from "drizzle-orm";
 import type { Db } from "@/db/client";
 import type { ResourceName } from "@/schemas/table-schema";
 import type { VersionRowsPage } from "@/schemas/review";
-import { firstAlias, fieldsOf, resourceQueries } from "./resource-csv";
+import { columnOf, firstAlias, fieldsOf, resourceQueries } from "./resource-csv";
+import { rowKey } from "./cell-edit";
 import { versionById } from "./access";
 
 const rowsOf = <T>(r: unknown) => (r as { rows: T[] }).rows;
@@ -21,7 +22,7 @@ export async function versionRows(
   const q = resourceQueries[resource];
   const fields = fieldsOf(version.tableSchema, resource);
   const where = `${firstAlias[resource]}.version_id = '${version.id.replace(/[^0-9a-f-]/gi, "")}'`;
-  const select = fields.map((f, i) => `(${q.columns[f]})::text AS c${i}`).join(", ");
+  const select = fields.map((f, i) => `(${columnOf(version.tableSchema, resource, f)})::text AS c${i}`).join(", ");
   // Counted as the file's rows: a treatment with two applications is two rows.
   const [counted] = rowsOf<{ n: number | string }>(
     await db.execute(sql.raw(`SELECT count(*) AS n FROM (SELECT 1 FROM ${q.from} WHERE ${where}) r`)),
@@ -35,6 +36,7 @@ export async function versionRows(
     versionId: version.id,
     resource,
     fields,
+    keyFields: rowKey[resource],
     page,
     limit,
     total: Number(counted?.n ?? 0),

@@ -1,3 +1,4 @@
+import { cellMessages as say, missingValueWords } from "@/schemas/messages";
 import type { TableSchemaField, TableSchemaResource } from "@/schemas/table-schema";
 
 export type Cell = string | number | boolean | null;
@@ -23,9 +24,10 @@ function compileField(field: TableSchemaField, missingValues: ReadonlySet<string
   const allowed = c.enum ?? field.categories?.map((cat) => cat.value);
   const allowedSet = allowed ? new Set(allowed) : undefined;
   const pattern = c.pattern ? new RegExp(`^(?:${c.pattern})$`) : undefined;
+  const f = { name: field.name, title: field.title, unit: field.unit, required };
   const range = (n: number): string | null => {
-    if (c.minimum !== undefined && n < c.minimum) return `is below the minimum ${c.minimum}${field.unit ? ` ${field.unit}` : ""}`;
-    if (c.maximum !== undefined && n > c.maximum) return `is above the maximum ${c.maximum}${field.unit ? ` ${field.unit}` : ""}`;
+    if (c.minimum !== undefined && n < c.minimum) return say.belowMinimum(f, n, c.minimum);
+    if (c.maximum !== undefined && n > c.maximum) return say.aboveMaximum(f, n, c.maximum);
     return null;
   };
   const parseNumber = (s: string): number | null => {
@@ -42,7 +44,7 @@ function compileField(field: TableSchemaField, missingValues: ReadonlySet<string
     parse(raw) {
       const s = raw.trim();
       if (missingValues.has(s) || (s === "" && missingValues.has(raw))) {
-        return required ? { ok: false, message: `${field.name} is required but missing` } : { ok: true, value: null };
+        return required ? { ok: false, message: say.missing(f) } : { ok: true, value: null };
       }
       let value: Cell;
       switch (field.type) {
@@ -50,43 +52,35 @@ function compileField(field: TableSchemaField, missingValues: ReadonlySet<string
         case "integer":
         case "year": {
           const n = parseNumber(s);
-          if (n === null)
-            return { ok: false, message: `${field.name} must be a number${field.type === "number" ? "" : " (whole)"}, got "${raw}"` };
-          if (field.type !== "number" && !Number.isInteger(n))
-            return { ok: false, message: `${field.name} must be a whole number, got "${raw}"` };
-          if (field.type === "year" && (n < 1000 || n > 9999))
-            return { ok: false, message: `${field.name} must be a four-digit year, got "${raw}"` };
+          if (n === null || (field.type !== "number" && !Number.isInteger(n)))
+            return { ok: false, message: say.notNumber(f, raw, field.type !== "number", missingValueWords[field.name]) };
+          if (field.type === "year" && (n < 1000 || n > 9999)) return { ok: false, message: say.notYear(f, raw) };
           const bad = range(n);
-          if (bad) return { ok: false, message: `${field.name} ${bad}` };
+          if (bad) return { ok: false, message: bad };
           value = n;
           break;
         }
         case "boolean":
           if (trueValues.has(s)) value = true;
           else if (falseValues.has(s)) value = false;
-          else return { ok: false, message: `${field.name} must be true or false, got "${raw}"` };
+          else return { ok: false, message: say.notBoolean(f, raw) };
           break;
         case "date": {
           const m = isoDate.exec(s);
           const d = m ? new Date(`${s}T00:00:00Z`) : null;
           if (!m || !d || Number.isNaN(d.getTime()) || d.toISOString().slice(0, 10) !== s) {
-            return { ok: false, message: `${field.name} must be a date as YYYY-MM-DD, got "${raw}"` };
+            return { ok: false, message: say.notDate(f, raw) };
           }
           value = s;
           break;
         }
         default:
-          if (c.minLength !== undefined && s.length < c.minLength)
-            return { ok: false, message: `${field.name} is shorter than ${c.minLength} characters` };
-          if (c.maxLength !== undefined && s.length > c.maxLength)
-            return { ok: false, message: `${field.name} is longer than ${c.maxLength} characters` };
-          if (pattern && !pattern.test(s)) return { ok: false, message: `${field.name} "${raw}" does not match the pattern ${c.pattern}` };
+          if (c.minLength !== undefined && s.length < c.minLength) return { ok: false, message: say.tooShort(f, raw, c.minLength) };
+          if (c.maxLength !== undefined && s.length > c.maxLength) return { ok: false, message: say.tooLong(f, raw, c.maxLength) };
+          if (pattern && !pattern.test(s)) return { ok: false, message: say.noPattern(f, raw, c.pattern!) };
           value = s;
       }
-      if (allowedSet && !allowedSet.has(String(value))) {
-        const list = allowed!.length > 12 ? `${allowed!.slice(0, 12).join(", ")} …` : allowed!.join(", ");
-        return { ok: false, message: `${field.name} "${raw}" is not one of the allowed values: ${list}` };
-      }
+      if (allowedSet && !allowedSet.has(String(value))) return { ok: false, message: say.notAllowed(f, raw, allowed!) };
       return { ok: true, value };
     },
   };

@@ -5,6 +5,7 @@ import type { UploadOptions, UploadResult, ValidationProblem } from "@/schemas/c
 import type { ResourceName, TableSchemaResource } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
 import { conflict, HttpProblem } from "@/server/errors";
+import { rowName } from "@/schemas/messages";
 import { readCsvStream } from "./csv-stream";
 import { CustomValueBuffer, customFieldsOf } from "./custom-fields";
 import { loadDraftState, type DraftState } from "./draft-state";
@@ -12,7 +13,7 @@ import { compileResource, type CompiledField } from "./field-values";
 import { cellText, type SheetValue } from "./sheet-cells";
 import { plotOutcomes } from "./plot-outcomes";
 import { recomputeResponses, type RecomputeResult } from "./recompute-responses";
-import { Reporter } from "./report";
+import { groupProblems, Reporter } from "./report";
 import { storeUpload } from "./upload-store";
 import type { IngestContext, ResourceIngest, RowValues } from "./resource-ingest";
 import type { Tx } from "./write-rows";
@@ -39,6 +40,8 @@ export interface IngestInput {
   source: Readable;
   options: UploadOptions;
   userId: string | null;
+  /** Runs inside the write transaction after the rows are stored (a cell edit records itself there). */
+  afterWrite?: (tx: Tx) => Promise<void>;
 }
 
 /** Which file column feeds which field, and the problems of the header. */
@@ -157,7 +160,7 @@ export async function checkRows(
     }
     const values: RowValues = {};
     for (const name of fieldNames) values[name] = null;
-    let ok = true;
+    let failed: { at: number; message: string; text: string }[] | null = null;
     for (let i = 0; i < cells.length; i++) {
       const column = columns[i];
       if (!column) continue;
@@ -165,18 +168,25 @@ export async function checkRows(
       const text = typeof raw === "string" ? raw : cellText(raw, column.field.type);
       const parsed = column.parse(text);
       if (parsed.ok) values[column.field.name] = parsed.value;
-      else {
-        ok = false;
-        report.error(index, header[i]!, text, parsed.message);
-      }
+      else (failed ??= []).push({ at: i, message: parsed.message, text });
     }
-    if (ok) {
+    if (!failed) {
       handler.row(values, index);
       custom.add(values);
+      return;
     }
+    // Each message starts with the row's name ("Plot 203 of TB-01-2021: …"), read from its key cells as written.
+    const named: Record<string, string> = {};
+    columns.forEach((column, i) => {
+      if (column) named[column.field.name] = cellText(cells[i]!, column.field.type).trim();
+    });
+    const name = rowName(input.resource, named);
+    for (const { at, message, text } of failed) report.error(index, header[at]!, text, name ? `${name}: ${message}` : message);
   });
   if (read.rows === 0) report.error(null, null, null, "the file has a header but no data rows");
   input.source.notes?.(report, header);
+  // Read outside the write transaction; the stale-draft stamp refuses the write if the draft moved meanwhile.
+  if (input.options.mode === "merge") await handler.mergeExisting?.(ctx.db);
   handler.finish();
   // Plots files: responses from the file's rows, so the plots need not be read back inside the transaction.
   const fileOutcomes = report.errors === 0 && handler.plotOutcomeRequest ? plotOutcomes(handler.plotOutcomeRequest()) : undefined;
@@ -200,6 +210,7 @@ export function uploadResultOf(
     delimiter: c.read.delimiter,
     errors: c.report.errors,
     warnings: c.report.warnings,
+    groups: groupProblems(c.problems),
     problems: c.problems.slice(0, 200),
     responses: stored.recomputed
       ? { siteYears: stored.recomputed.siteYears, rows: stored.recomputed.rows, uncomputed: stored.recomputed.uncomputed }
@@ -257,7 +268,9 @@ export async function writeChecked(
     row: null,
     column: null,
     value: u.siteYear,
-    message: `site-year "${u.siteYear}" has no responses: ${u.reason}`,
+    message: `Site-year ${u.siteYear} has no responses yet: ${u.reason}`,
+    kind: `no-responses:${u.reason}`,
+    place: u.siteYear,
   }));
   c.problems.push(...notes);
   c.report.warnings += notes.length;
@@ -296,7 +309,9 @@ export async function ingestUpload(ctx: AppContext, input: IngestInput): Promise
   }
   const stored = await ctx.db.transaction(async (tx) => {
     await lockDraft(tx, input.versionId, stamp);
-    return writeChecked(ctx, tx, input.versionId, checked, {}, input.userId);
+    const written = await writeChecked(ctx, tx, input.versionId, checked, {}, input.userId);
+    await input.afterWrite?.(tx);
+    return written;
   });
   return uploadResultOf(checked, stored);
 }

@@ -36,6 +36,11 @@ export type Affected = { siteYearCodes: string[] } | "all";
 export interface ResourceIngest {
   resource: ResourceName;
   row(values: RowValues, row: number): void;
+  /**
+   * Merge mode, after the file is read and before finish(): fold in the draft's rows that the file's keys touch but do
+   * not replace, so the whole-file rules judge the version as the merge will leave it.
+   */
+  mergeExisting?(tx: Tx): Promise<void>;
   finish(): void;
   /** Rows the file contributes (for the upload record). */
   count(): number;

@@ -1,6 +1,7 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { plantsPerAcreFromPer10Ft } from "@/constants/measures";
 import { plots } from "@/db/schema";
+import type { Cell } from "../field-values";
 import { toStandardMoisture, yieldFactorToKgHa } from "../edge-units";
 import { num, type IngestContext, type ResourceIngest } from "../resource-ingest";
 import type { PlotOutcomeRequest } from "../plot-outcomes";
@@ -11,12 +12,38 @@ import { balanceRule, checkRule, newTally, outlierRule, type SiteYearTally } fro
 const MOISTURE_MIN = 5;
 const MOISTURE_MAX = 40;
 
+/** The plot columns a file fills, in the order the rows are kept. */
+const plotKeys = [
+  "versionId",
+  "siteYearId",
+  "treatmentId",
+  "plot",
+  "block",
+  "yieldKgHa",
+  "harvestMoisturePct",
+  "standCount",
+  "vigour",
+  "testWeight",
+  "otherMeasures",
+] as const;
+
 export function plotsIngest({ state, options, report, versionId, bulkCopy, measures, standUnit }: IngestContext): ResourceIngest {
   const standPer10Ft = standUnit === "plants/10 ft row";
   const tallies = new Map<
     string,
-    SiteYearTally & { factor: number; crop: string; blocks: number; rcbd: boolean; id: number; plots: Set<string> }
+    SiteYearTally & {
+      factor: number;
+      crop: string;
+      blocks: number;
+      rcbd: boolean;
+      id: number;
+      plots: Set<string>;
+      /** The file's row of the first plot in each treatment × block cell, to name it when the draft's plots clash. */
+      cellRows: Map<string, number>;
+    }
   >();
+  const codeOfTreatment = new Map([...state.treatments].map(([code, t]) => [t.id, code]));
+  const merging = options.mode === "merge";
   const out = new RowBuffer(bulkCopy);
   const harvestBasis = options.units.yieldMoisture === "harvest";
   return {
@@ -47,6 +74,7 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy, measu
           rcbd: sy.design === "RCBD",
           id: sy.id,
           plots: new Set(),
+          cellRows: new Map(),
         };
         tallies.set(code, tally);
       }
@@ -93,6 +121,7 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy, measu
           `treatment "${trtCode}" appears more than once in block ${block} of site-year "${code}"; an RCBD has each treatment once per block`,
         );
       }
+      if (!tally.cellRows.has(cell)) tally.cellRows.set(cell, row);
       if (y !== null) {
         tally.cells.set(cell, seen + 1);
         tally.yields.push(y);
@@ -132,10 +161,51 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy, measu
         added === null ? null : JSON.stringify(added),
       ]);
     },
+    /**
+     * Merge: the site-years the file touches keep their other plots, so the rules run on the plots the draft will hold.
+     * The file's plots replace the draft's plots of the same site_year + plot; the rest are read here and written again.
+     */
+    async mergeExisting(tx) {
+      if (!merging) return;
+      const ids = [...tallies.values()].filter((t) => state.siteYears.get(t.code)?.hasPlots).map((t) => t.id);
+      if (ids.length === 0) return;
+      const byId = new Map([...tallies.values()].map((t) => [t.id, t]));
+      const existing = await tx
+        .select()
+        .from(plots)
+        .where(and(eq(plots.versionId, versionId), inArray(plots.siteYearId, ids)));
+      for (const p of existing) {
+        const tally = byId.get(p.siteYearId)!;
+        if (tally.plots.has(p.plot)) continue;
+        tally.plots.add(p.plot);
+        const trtCode = codeOfTreatment.get(p.treatmentId) ?? String(p.treatmentId);
+        tally.treatments.add(trtCode);
+        const cell = `${trtCode}|${p.block}`;
+        const seen = tally.cells.get(cell) ?? 0;
+        if (seen >= 1 && tally.rcbd && tally.cellRows.has(cell)) {
+          report.error(
+            tally.cellRows.get(cell)!,
+            "block",
+            String(p.block),
+            `Site-year ${tally.code}: treatment ${trtCode} is already in block ${p.block} (plot ${p.plot} in the draft); an RCBD has each treatment once per block. Give this row the block it was really in, or correct plot ${p.plot}.`,
+          );
+        }
+        if (p.yieldKgHa !== null) {
+          tally.cells.set(cell, seen + 1);
+          tally.yields.push(p.yieldKgHa);
+          // Plots already in the draft were checked when they came in: no row of this file to name.
+          tally.yieldRows.push(-1);
+          tally.yieldTreatmentIds.push(p.treatmentId);
+          tally.yieldBlocks.push(p.block);
+        } else if (!tally.cells.has(cell)) tally.cells.set(cell, 0);
+        // Stored values go back as stored: stand counts already in plants/ac, added measures as their JSON.
+        out.push(plotKeys.map((k) => (k === "otherMeasures" ? (p.otherMeasures === null ? null : JSON.stringify(p.otherMeasures)) : p[k]) as Cell));
+      }
+    },
     finish() {
       for (const tally of tallies.values()) {
         checkRule(tally, state, report);
-        balanceRule(tally, tally.blocks, report);
+        balanceRule(tally, tally.blocks, (id) => codeOfTreatment.get(id) ?? String(id), report);
         outlierRule(tally, report);
         // A million-plot file leaves two million small strings in these; the write does not need them, and a smaller
         // heap keeps the garbage collector from slowing the COPY that follows.
@@ -163,25 +233,7 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy, measu
         const ids = [...tallies.values()].filter((t) => state.siteYears.get(t.code)?.hasPlots).map((t) => t.id);
         if (ids.length) await tx.delete(plots).where(and(eq(plots.versionId, versionId), inArray(plots.siteYearId, ids)));
       }
-      await insertRows(
-        database,
-        tx,
-        plots,
-        [
-          "versionId",
-          "siteYearId",
-          "treatmentId",
-          "plot",
-          "block",
-          "yieldKgHa",
-          "harvestMoisturePct",
-          "standCount",
-          "vigour",
-          "testWeight",
-          "otherMeasures",
-        ],
-        out,
-      );
+      await insertRows(database, tx, plots, plotKeys, out);
       return options.mode === "replace" ? "all" : { siteYearCodes: [...tallies.keys()] };
     },
   };

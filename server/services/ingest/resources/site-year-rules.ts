@@ -1,3 +1,4 @@
+import { designBalance } from "@/stats";
 import type { DraftState } from "../draft-state";
 import type { Reporter } from "../report";
 
@@ -47,20 +48,40 @@ export function checkRule(tally: SiteYearTally, state: DraftState, report: Repor
   }
 }
 
-/** Missing treatment × block cells: allowed, but the design is then unbalanced and the report says so. */
-export function balanceRule(tally: SiteYearTally, blocks: number, report: Reporter) {
-  const missing: string[] = [];
-  for (const t of [...tally.treatments].sort()) {
-    for (let b = 1; b <= blocks; b++) if (!tally.cells.get(`${t}|${b}`)) missing.push(`${t} in block ${b}`);
-  }
-  if (missing.length) {
-    const total = tally.treatments.size * blocks;
+/**
+ * Missing treatment × block cells: allowed, but the design is then unbalanced and the report says so. Balance is
+ * judged on the plots with a yield, by the same rule the ANOVA uses (stats/design-balance.ts), so the warning and the
+ * stored balanced flag always agree. Blocks the site-year declares but no plot with a yield uses are a note of their
+ * own: they leave the fit balanced.
+ */
+export function balanceRule(tally: SiteYearTally, declaredBlocks: number, codeOf: (treatmentId: number) => string, report: Reporter) {
+  if (tally.yields.length === 0) return;
+  const design = designBalance(tally.yieldTreatmentIds.map((id, i) => ({ treatment: codeOf(id), block: String(tally.yieldBlocks[i]) })));
+  if (!design.balanced) {
+    const missing = design.emptyCells.map((c) => `${c.treatment} in block ${c.block}`);
+    const total = design.treatments.length * design.blocks.length;
     const list = missing.length > 8 ? `${missing.slice(0, 8).join("; ")}; …` : missing.join("; ");
+    const what = missing.length
+      ? `${missing.length} of ${total} plots missing or without yield (${list})`
+      : "some treatment × block cells hold more plots than others";
     report.warn(
       null,
       "block",
       null,
-      `site-year "${tally.code}" is unbalanced: ${missing.length} of ${total} plots missing or without yield (${list}); its responses use the least-squares fit and are flagged balanced=false`,
+      `Site-year ${tally.code} is unbalanced: ${what}. Its responses use the least-squares fit and are stored as unbalanced (balanced = false); add the missing plots to balance it.`,
+      { kind: "unbalanced", place: tally.code },
+    );
+  }
+  const used = new Set(tally.yieldBlocks);
+  const unused: number[] = [];
+  for (let b = 1; b <= declaredBlocks; b++) if (!used.has(b)) unused.push(b);
+  if (unused.length && used.size > 0) {
+    report.warn(
+      null,
+      "block",
+      null,
+      `Site-year ${tally.code} declares ${declaredBlocks} blocks, but no plot with a yield is in block ${unused.join(", ")}; it is analysed with the ${used.size} blocks that have yields${design.balanced ? " and stays balanced" : ""}. Correct blocks in site_years if the design had fewer.`,
+      { kind: "unused-blocks", place: tally.code },
     );
   }
 }
@@ -73,12 +94,14 @@ export function outlierRule(tally: SiteYearTally, report: Reporter, file = "yiel
   const median = sorted.length % 2 ? sorted[mid]! : (sorted[mid - 1]! + sorted[mid]!) / 2;
   if (!(median > 0)) return;
   tally.yields.forEach((y, i) => {
+    if (tally.yieldRows[i]! < 0) return;
     if (y < 0.4 * median || y > 2 * median) {
       report.warn(
         tally.yieldRows[i]!,
         file,
         String(Math.round(y)),
         `yield ${Math.round(y)} kg/ha is far outside site-year "${tally.code}"'s range (median ${Math.round(median)} kg/ha); check it`,
+        { kind: "outlier", place: `row ${tally.yieldRows[i]} (${tally.code})` },
       );
     }
   });

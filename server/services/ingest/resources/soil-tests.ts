@@ -1,6 +1,7 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { soilTests } from "@/db/schema";
 import { soilTestClasses } from "@/schemas/filters";
+import { cellMessages } from "@/schemas/messages";
 import type { SoilTestScheme } from "@/schemas/soil-test-schemes";
 import { builtInSchemeNames, classifyByThresholds, classOfLabel, findScheme } from "@/server/services/soil-test-schemes";
 import type { Reporter } from "../report";
@@ -91,6 +92,8 @@ function readClass(input: ClassInput): { scale: string | null; label: string | n
 export function soilTestsIngest({ state, options, report, versionId, soilTestSchemes }: IngestContext): ResourceIngest {
   const keys = new Set<string>();
   const siteYearCodes = new Set<string>();
+  /** Analytes per site-year id the file gives: a merge replaces exactly those tests and keeps the others. */
+  const analytesOf = new Map<number, string[]>();
   const out: Cell[][] = [];
   return {
     resource: "soil_tests",
@@ -118,7 +121,7 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
         unit = "ppm";
       }
       if (unitOf[analyte] && unit !== unitOf[analyte]) {
-        return report.error(row, "unit", unit, `${analyte} is measured in ${unitOf[analyte]}, not ${unit}`);
+        return report.error(row, "unit", unit, `${analyte} test of ${code}: ${cellMessages.wrongUnit(analyte, unitOf[analyte]!, unit)}`);
       }
       if (analyte === "pH" && (value < 3 || value > 11))
         return report.error(row, "value", String(value), `a soil pH of ${value} is not plausible (3–11)`);
@@ -136,6 +139,9 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
       });
       if (!reading) return;
       siteYearCodes.add(code);
+      const list = analytesOf.get(sy.id) ?? [];
+      list.push(analyte);
+      analytesOf.set(sy.id, list);
       out.push([versionId, sy.id, analyte, value, unit, extractant, num(v.depth_in), reading.scale, reading.scheme, reading.label]);
     },
     finish() {},
@@ -143,8 +149,11 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
     async write(database, tx: Tx) {
       if (options.mode === "replace") await tx.delete(soilTests).where(eq(soilTests.versionId, versionId));
       else {
-        const ids = [...siteYearCodes].map((c) => state.siteYears.get(c)!.id);
-        if (ids.length) await tx.delete(soilTests).where(and(eq(soilTests.versionId, versionId), inArray(soilTests.siteYearId, ids)));
+        for (const [id, analytes] of analytesOf) {
+          await tx
+            .delete(soilTests)
+            .where(and(eq(soilTests.versionId, versionId), eq(soilTests.siteYearId, id), inArray(soilTests.analyte, analytes)));
+        }
       }
       await insertRows(
         database,

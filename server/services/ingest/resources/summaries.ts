@@ -54,6 +54,34 @@ export function summariesIngest({ state, options, report, versionId }: IngestCon
       // An MSE is in squared yield units, so it converts with the square of the yield factor.
       out.push([versionId, sy.id, trt.id, num(v.mean_kg_ha)! * tally.factor, num(v.replicates), mse * tally.factor ** 2, df]);
     },
+    /** Merge: the site-year keeps its other treatments' means, which must share the file's ANOVA (mse, df_error). */
+    async mergeExisting(tx) {
+      if (options.mode !== "merge") return;
+      const ids = [...tallies.values()].filter((t) => state.siteYears.get(t.code)?.hasSummaries).map((t) => t.id);
+      if (ids.length === 0) return;
+      const byId = new Map([...tallies.values()].map((t) => [t.id, t]));
+      const codeOf = new Map([...state.treatments].map(([code, t]) => [t.id, code]));
+      const existing = await tx
+        .select()
+        .from(summaryMeans)
+        .where(and(eq(summaryMeans.versionId, versionId), inArray(summaryMeans.siteYearId, ids)));
+      for (const m of existing) {
+        const tally = byId.get(m.siteYearId)!;
+        const code = codeOf.get(m.treatmentId) ?? String(m.treatmentId);
+        if (tally.treatments.has(code)) continue;
+        tally.treatments.add(code);
+        const fileMse = tally.mse * tally.factor ** 2;
+        if (Math.abs(m.mse - fileMse) > 1e-6 * Math.max(1, Math.abs(fileMse)) || m.dfError !== tally.df) {
+          report.error(
+            tally.firstRow,
+            "mse",
+            String(tally.mse),
+            `Site-year ${tally.code} has one ANOVA, but the draft's mean of treatment ${code} has mse ${m.mse} (kg/ha)² with ${m.dfError} df and this file gives ${fileMse} with ${tally.df}; upload all of the site-year's means with the same mse and df_error.`,
+          );
+        }
+        out.push([versionId, m.siteYearId, m.treatmentId, m.meanKgHa, m.replicates, m.mse, m.dfError]);
+      }
+    },
     finish() {
       for (const tally of tallies.values()) {
         checkRule(tally, state, report);

@@ -78,7 +78,7 @@ export function treatmentsIngest({ state, options, report, versionId }: IngestCo
           const message = `treatment "${t.code}" trips caution ${rule.code}${crop ? ` on ${crop}` : ""}: ${detail}. ${rule.text} (${rule.source})`;
           if (said.has(message)) continue;
           said.add(message);
-          report.warn(t.firstRow, "treatment", t.code, message);
+          report.warn(t.firstRow, "treatment", t.code, message, { kind: `caution:${rule.code}`, place: t.code });
         }
       }
     }
