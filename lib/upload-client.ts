@@ -58,7 +58,7 @@ export function uploadWithProgress(
         onProgress?.(1);
         return resolve(body);
       }
-      if (xhr.status === 422 && body && typeof body === "object" && "reportId" in body) {
+      if (xhr.status === 422 && body && typeof body === "object" && ("reportId" in body || "sheets" in body)) {
         const { errorCount, warningCount, ...rest } = body as Record<string, unknown>;
         return resolve({ ...rest, errors: errorCount, warnings: warningCount });
       }

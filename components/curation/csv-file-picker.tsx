@@ -14,6 +14,9 @@ export function CsvFilePicker({
   file: PickedFile | null;
   onPick: (file: PickedFile | null) => void;
   label?: string;
+  /** File types for the web chooser; the phone's picker offers every document. */
+  accept?: string;
+  inputLabel?: string;
 }) {
   return (
     <View style={styles.row}>

@@ -11,10 +11,14 @@ export function CsvFilePicker({
   file,
   onPick,
   label = "Choose CSV file",
+  accept = ".csv,.tsv,.txt,text/csv,text/tab-separated-values,text/plain",
+  inputLabel = "CSV file",
 }: {
   file: PickedFile | null;
   onPick: (file: PickedFile | null) => void;
   label?: string;
+  accept?: string;
+  inputLabel?: string;
 }) {
   const input = useRef<HTMLInputElement>(null);
   return (
@@ -22,8 +26,8 @@ export function CsvFilePicker({
       <input
         ref={input}
         type="file"
-        accept=".csv,.tsv,.txt,text/csv,text/tab-separated-values,text/plain"
-        aria-label="CSV file"
+        accept={accept}
+        aria-label={inputLabel}
         style={{ position: "absolute", width: 1, height: 1, opacity: 0, overflow: "hidden" }}
         onChange={(e) => {
           const f = e.currentTarget.files?.[0];

@@ -7,6 +7,7 @@ import { LinkButton } from "@/components/curation/link-button";
 import { SegmentTabs } from "@/components/curation/segment-tabs";
 import { StateBadge } from "@/components/curation/state-badge";
 import { UploadPanel } from "@/components/curation/upload-panel";
+import { TemplateLinks, WorkbookPanel } from "@/components/curation/workbook-panel";
 import { VersionActions } from "@/components/curation/version-actions";
 import { VersionDiffView } from "@/components/curation/version-diff-view";
 import { VersionOverview } from "@/components/curation/version-overview";
@@ -65,7 +66,13 @@ function VersionDesk({ id }: { id: string }) {
       <SegmentTabs label="Version panels" tabs={tabs} value={current} onChange={setPanel} />
       {current === "overview" ? <VersionOverview version={v} /> : null}
       {current === "review" ? <ReviewPanel version={v} /> : null}
-      {current === "upload" ? <UploadPanel version={v} /> : null}
+      {current === "upload" ? (
+        <>
+          <TemplateLinks version={v} />
+          <UploadPanel version={v} />
+          <WorkbookPanel version={v} />
+        </>
+      ) : null}
       {current === "dictionary" ? <DictionaryEditor version={v} /> : null}
       {current === "changes" && v.basedOnVersionId ? <VersionDiffView from={v.basedOnVersionId} to={v.id} /> : null}
     </>
