@@ -29,32 +29,42 @@ const TREATMENTS = 5;
 const BLOCKS = 20;
 const PER_SITE_YEAR = TREATMENTS * BLOCKS;
 const SITE_YEARS = Math.ceil(ROWS / PER_SITE_YEAR);
-const options: UploadOptions = {
+export const benchUploadOptions: UploadOptions = {
   mapping: {},
   units: { yield: "kg/ha", yieldMoisture: "standard", soilTest: "ppm", gradeBasis: "oxide" },
   mode: "merge",
 };
+const options = benchUploadOptions;
 
 let peakRss = 0;
+// Sampled only when this file is the program run (bench/ingest-xlsx.ts imports it).
 const sampler = setInterval(() => {
   peakRss = Math.max(peakRss, process.memoryUsage().rss);
 }, 25);
+if (require.main !== module) clearInterval(sampler);
 
 const syCode = (i: number) => `S${String(Math.floor(i / 100)).padStart(4, "0")}-${2000 + (i % 100)}`;
 
-/** The plots file as 64 KiB-ish chunks, never one string. */
-function plotChunks(): Buffer[] {
+/** The bench's plot rows, one at a time: site-year, plot, block, treatment, yield (kg/ha), harvest moisture (%). */
+export function* plotRows(rows: number): Generator<[string, number, number, string, number, number]> {
   const rng = mulberry32("bench-plots");
-  const chunks: Buffer[] = [Buffer.from("site_year,plot,block,treatment,yield_kg_ha,harvest_moisture_pct\n")];
-  let lines: string[] = [];
-  for (let r = 0; r < ROWS; r++) {
+  for (let r = 0; r < rows; r++) {
     const sy = Math.floor(r / PER_SITE_YEAR);
     const within = r % PER_SITE_YEAR;
-    const block = Math.floor(within / TREATMENTS) + 1;
     const t = within % TREATMENTS;
-    lines.push(
-      `${syCode(sy)},${within + 1},${block},T${t},${Math.round(3800 + t * 60 + rng.normal(0, 250))},${(12 + rng.next() * 3).toFixed(1)}`,
-    );
+    const y = Math.round(3800 + t * 60 + rng.normal(0, 250));
+    yield [syCode(sy), within + 1, Math.floor(within / TREATMENTS) + 1, `T${t}`, y, Number((12 + rng.next() * 3).toFixed(1))];
+  }
+}
+
+export const plotHeader = ["site_year", "plot", "block", "treatment", "yield_kg_ha", "harvest_moisture_pct"];
+
+/** The plots file as 64 KiB-ish chunks, never one string. */
+export function plotChunks(rows = ROWS): Buffer[] {
+  const chunks: Buffer[] = [Buffer.from(plotHeader.join(",") + "\n")];
+  let lines: string[] = [];
+  for (const row of plotRows(rows)) {
+    lines.push(row.map((v, i) => (i === 5 ? (v as number).toFixed(1) : String(v))).join(","));
     if (lines.length === 2000) {
       chunks.push(Buffer.from(lines.join("\n") + "\n"));
       lines = [];
@@ -64,7 +74,9 @@ function plotChunks(): Buffer[] {
   return chunks;
 }
 
-async function prepare() {
+/** A fresh in-memory database with a draft holding the bench's sites, treatments and site-years (for `rows` plots). */
+export async function prepare(rows = ROWS) {
+  const siteYearCount = Math.ceil(rows / PER_SITE_YEAR);
   const database = await openDatabase();
   await migrateDatabase(database);
   const config = loadConfig({ NODE_ENV: "production", PLOTBANK_DEMO: "off" } as NodeJS.ProcessEnv, {
@@ -92,7 +104,7 @@ async function prepare() {
     });
     if (!r.accepted) throw new Error(JSON.stringify(r.problems.slice(0, 3)));
   };
-  const siteCount = Math.ceil(SITE_YEARS / 100);
+  const siteCount = Math.ceil(siteYearCount / 100);
   await up(
     "sites",
     "site,location\n" + Array.from({ length: siteCount }, (_, i) => `S${String(i).padStart(4, "0")},Bench County`).join("\n") + "\n",
@@ -110,7 +122,7 @@ async function prepare() {
     "site_years",
     "site_year,site,crop,year,blocks\n" +
       Array.from(
-        { length: SITE_YEARS },
+        { length: siteYearCount },
         (_, i) => `${syCode(i)},S${String(Math.floor(i / 100)).padStart(4, "0")},soybean,${2000 + (i % 100)},${BLOCKS}`,
       ).join("\n") +
       "\n",
@@ -270,7 +282,8 @@ ratio service/COPY, best run of each: **${out.ratio.toFixed(2)}** (of the means:
   writeFileSync(path.join(dir, "ingest.json"), JSON.stringify(out, null, 2) + "\n");
 }
 
-main().catch((error) => {
-  console.error(error);
-  process.exit(1);
-});
+if (require.main === module)
+  main().catch((error) => {
+    console.error(error);
+    process.exit(1);
+  });
