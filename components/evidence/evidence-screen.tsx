@@ -346,7 +346,8 @@ export function EvidenceScreen() {
             ? `You are offline: this is the answer saved on this device on ${savedDate(savedAt)}.`
             : `Saved on this device on ${savedDate(savedAt)}; checking for a newer answer…`}
         </Text>
-      ) : analysis.isFetching && analysis.data && !offline ? (
+      ) : analysis.isFetching && analysis.data && !offline && !(busy && !current) ? (
+        // While the body says Busy (no answer of these filters yet), the header does not say it a second time.
         <Text variant="caption" role="status" aria-live="polite" testID="updating">
           {busy ? `Busy — trying again in ${Math.max(1, Math.ceil((busy.retryAt - Date.now()) / 1000))} s` : "Updating…"}
         </Text>
