@@ -105,9 +105,14 @@ function usePrices(state: EvidenceState, update: (next: EvidenceState) => void, 
       live = false;
     };
   }, []);
-  const setPrices = useCallback((p: Prices) => {
-    setPricesState(p);
-    void savePrices(p);
+  // A change names only the fields it changes and is merged into the latest prices: the three fields settle on
+  // their own timers, often in the same tick, and each must not undo another's.
+  const setPrices = useCallback((change: Prices) => {
+    setPricesState((current) => {
+      const next = { ...current, ...change };
+      void savePrices(next);
+      return next;
+    });
   }, []);
   return [prices, setPrices];
 }
