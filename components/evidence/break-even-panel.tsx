@@ -106,7 +106,8 @@ export function BreakEvenPanel({
 }: {
   result: MetaAnalysisResponse;
   prices: Prices;
-  onPrices: (p: Prices) => void;
+  /** Merges the fields given into the prices (the others stay). */
+  onPrices: (change: Prices) => void;
 }) {
   const d = result.decision;
   const u = result.units;
@@ -131,7 +132,7 @@ export function BreakEvenPanel({
             unit={f.unit}
             testID={f.testID}
             value={prices[f.key]}
-            onValue={(v) => onPrices({ ...prices, [f.key]: v })}
+            onValue={(v) => onPrices({ [f.key]: v })}
           />
         ))}
       </View>

@@ -105,9 +105,14 @@ function usePrices(state: EvidenceState, update: (next: EvidenceState) => void, 
       live = false;
     };
   }, []);
-  const setPrices = useCallback((p: Prices) => {
-    setPricesState(p);
-    void savePrices(p);
+  // A change names only the fields it changes and is merged into the latest prices: the three fields settle on
+  // their own timers, often in the same tick, and each must not undo another's.
+  const setPrices = useCallback((change: Prices) => {
+    setPricesState((current) => {
+      const next = { ...current, ...change };
+      void savePrices(next);
+      return next;
+    });
   }, []);
   return [prices, setPrices];
 }
@@ -346,7 +351,8 @@ export function EvidenceScreen() {
             ? `You are offline: this is the answer saved on this device on ${savedDate(savedAt)}.`
             : `Saved on this device on ${savedDate(savedAt)}; checking for a newer answer…`}
         </Text>
-      ) : analysis.isFetching && analysis.data && !offline ? (
+      ) : analysis.isFetching && analysis.data && !offline && !(busy && !current) ? (
+        // While the body says Busy (no answer of these filters yet), the header does not say it a second time.
         <Text variant="caption" role="status" aria-live="polite" testID="updating">
           {busy ? `Busy — trying again in ${Math.max(1, Math.ceil((busy.retryAt - Date.now()) / 1000))} s` : "Updating…"}
         </Text>

@@ -165,8 +165,11 @@ describe("prices stay on the device", () => {
     await page.getByTestId("break-even").filter({ hasText: "$25.00/ac ÷ $11.35/bu" }).waitFor();
     // Change a filter too, so a request is certainly made while prices are set.
     await page.getByTestId("filters-toggle").click();
+    // Filter changes are debounced: wait for the analysis request itself, not only the address.
+    const asked = page.waitForRequest((r) => r.url().includes("/api/v1/analyses/meta") && r.url().includes("soilTestClass=low"));
     await page.getByTestId("filter-soil-low").click();
     await page.waitForURL(/soilTestClass=low/);
+    await asked;
     await settled(page);
     await page.getByTestId("break-even").waitFor();
     await page.waitForLoadState("networkidle");

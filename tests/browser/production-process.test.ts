@@ -166,7 +166,7 @@ describe("the production process (server/main.ts)", () => {
     const serverPid = children[0]!.pid;
 
     expect(await npm.stop("SIGTERM")).toEqual({ code: 0, signal: null });
-    expect(npm.output()).toContain("SIGTERM: finishing the requests in flight and closing the database");
+    expect(npm.output()).toContain("SIGTERM: taking no new requests or jobs, finishing those in flight, then closing the database");
     // Nothing is left listening: the port refuses, and the server's process is gone.
     await expect(fetch(`${npm.url}/api/v1/health`)).rejects.toThrow();
     expect(() => process.kill(serverPid, 0)).toThrow(/ESRCH/);

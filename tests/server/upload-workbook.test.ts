@@ -70,7 +70,9 @@ describe("a workbook with one sheet per resource", () => {
       sql`select plot, block from plots where version_id = ${f.versionId} order by plot limit 1`,
     );
     expect(plot).toEqual({ plot: "101", block: 1 });
-    const [responses] = await rows<{ n: number | string }>(sql`select count(*) as n from responses where version_id = ${f.versionId} and measure = 'yield'`);
+    const [responses] = await rows<{ n: number | string }>(
+      sql`select count(*) as n from responses where version_id = ${f.versionId} and measure = 'yield'`,
+    );
     expect(Number(responses!.n)).toBe(6);
   });
 
@@ -197,7 +199,9 @@ describe("a 50,000-row plots sheet", () => {
     expect(res.body.sheets.find((s: { resource: string }) => s.resource === "plots").rows).toBe(50_000);
     const [count] = await rows<{ n: number | string }>(sql`select count(*) as n from plots where version_id = ${f.versionId}`);
     expect(Number(count!.n)).toBe(50_000);
-    const [responses] = await rows<{ n: number | string }>(sql`select count(*) as n from responses where version_id = ${f.versionId} and measure = 'yield'`);
+    const [responses] = await rows<{ n: number | string }>(
+      sql`select count(*) as n from responses where version_id = ${f.versionId} and measure = 'yield'`,
+    );
     expect(Number(responses!.n)).toBe(2500);
   }, 300_000);
 });

@@ -72,6 +72,38 @@ async function sheetNamesByPart(buffer: Buffer): Promise<Map<string, string>> {
   return names;
 }
 
+/** The parts ExcelJS's streaming reader must have read before a worksheet to parse it in place. */
+const partsFirst = [
+  "[Content_Types].xml",
+  "_rels/.rels",
+  "xl/workbook.xml",
+  "xl/_rels/workbook.xml.rels",
+  "xl/sharedStrings.xml",
+  "xl/styles.xml",
+];
+const emptySharedStrings =
+  '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n<sst xmlns="http://schemas.openxmlformats.org/spreadsheetml/2006/main" count="0" uniqueCount="0"/>';
+
+/**
+ * The workbook's zip with the parts a worksheet depends on first, stored uncompressed. ExcelJS's streaming reader
+ * parks a worksheet that comes before the shared strings or the workbook's relationships in a temporary file, and
+ * while it does the zip stream runs on and parts after it can be lost (some writers, ExcelJS among them, put the
+ * worksheets first): a sheet then goes missing or its text cells read as objects. In this order every worksheet
+ * is parsed as it streams. A workbook without shared strings (inline strings only) gets an empty table for the same
+ * reason.
+ */
+async function readerOrder(buffer: Buffer): Promise<Buffer> {
+  const zip = await JSZip.loadAsync(buffer);
+  const names = Object.keys(zip.files).filter((n) => !zip.files[n]!.dir);
+  const out = new JSZip();
+  for (const name of [...partsFirst, ...names.filter((n) => !partsFirst.includes(n))]) {
+    const file = zip.file(name);
+    if (file) out.file(name, await file.async("nodebuffer"));
+    else if (name === "xl/sharedStrings.xml") out.file(name, emptySharedStrings);
+  }
+  return out.generateAsync({ type: "nodebuffer", compression: "STORE" });
+}
+
 type RawCellValue = ExcelJS.CellValue | undefined;
 
 /** A cell value as ExcelJS reads it, reduced to what a sheet holds: a formula gives its cached result. */
@@ -113,7 +145,7 @@ export async function readWorkbook(buffer: Buffer): Promise<SheetRead[]> {
   }
   const sheets: SheetRead[] = [];
   try {
-    const reader = new ExcelJS.stream.xlsx.WorkbookReader(Readable.from([buffer]), {
+    const reader = new ExcelJS.stream.xlsx.WorkbookReader(Readable.from([await readerOrder(buffer)]), {
       sharedStrings: "cache",
       hyperlinks: "ignore",
       styles: "cache",
