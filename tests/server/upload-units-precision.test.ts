@@ -8,6 +8,7 @@ import fc from "fast-check";
 import Papa from "papaparse";
 import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { metaAnalysisResult } from "@/schemas/analysis";
 import { observationPage, responsePage } from "@/schemas/public";
 import { siteYearAnova } from "@/schemas/site-year-anova";
 import { versionRowsPage } from "@/schemas/review";
@@ -172,5 +173,12 @@ describe("published rows read back as given", () => {
       const row = csv.find((c) => c.siteYearCode === r.siteYearCode && c.treatmentCode === r.treatmentCode)!;
       for (const field of ["checkMean", "treatedMean", "md", "se"] as const) expect(Number(row[field])).toBe(r[field]);
     }
+  });
+
+  it("the meta-analysis's forest rows give the check's mean in bu/ac as given", async () => {
+    const res = await request(t.app).get(`/api/v1/analyses/meta?dataset=${inBushels.slug}&units=bu/ac&forestLimit=all`).expect(200);
+    const rows = metaAnalysisResult.parse(res.body).rows.filter((r) => r.siteYearCode === "TB-01-2021");
+    expect(rows.length).toBeGreaterThan(0);
+    for (const r of rows) expect(r.checkMean).toBe(63);
   });
 });
