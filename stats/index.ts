@@ -17,6 +17,7 @@ export * from "@/stats/studentized-residuals";
 export * from "@/stats/effects";
 export * from "@/stats/decision";
 export * from "@/stats/units";
+export * from "@/stats/precision";
 export * from "@/stats/meta/types";
 export { estimateTauSquared } from "@/stats/meta/tau-squared";
 export * from "@/stats/meta/meta-regression";

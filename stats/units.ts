@@ -174,3 +174,12 @@ export function partsPerMillionToPoundsPerAcreSixInch(ppm: number): number {
   assertFinite(ppm, "ppm");
   return ppm * 2;
 }
+
+/**
+ * Soil-test lb/ac in a 6-inch layer → ppm: ÷ 2, the reverse of `partsPerMillionToPoundsPerAcreSixInch`.
+ * @example poundsPerAcreSixInchToPartsPerMillion(30) // 15
+ */
+export function poundsPerAcreSixInchToPartsPerMillion(poundsPerAcre: number): number {
+  assertFinite(poundsPerAcre, "lb/ac");
+  return poundsPerAcre / 2;
+}

@@ -1,15 +1,10 @@
-/** Number formatting for the Evidence screen: responses in their units, intervals, probabilities and p values. */
+import { shownDecimals } from "@/constants/precision";
 
-function decimalsFor(units: string): number {
-  if (units === "kg/ha" || units === "plants/ac") return 0;
-  if (units === "ln(treated/check)") return 3;
-  if (units === "score") return 2;
-  return 1;
-}
+/** Number formatting for the Evidence screen: responses in their units, intervals, probabilities and p values. */
 
 /** A response with its sign, e.g. "+3.4", "−12" (a true minus sign reads better than a hyphen). */
 export function formatResponse(value: number, units: string): string {
-  const digits = decimalsFor(units);
+  const digits = shownDecimals(units);
   const rounded = Math.abs(value).toFixed(digits);
   const zero = Number(rounded) === 0;
   // Counts in the thousands (plants/ac) read better grouped: "−6,800".

@@ -57,7 +57,9 @@ export async function siteYearAnova(db: Db, version: AnovaVersion, code: string,
   if (!sy) throw notFound(`Version ${version.semver} of "${version.datasetSlug}" has no site-year "${code}".`);
   const { siteYear } = sy;
   const measure = anovaMeasureColumn(query.measure);
-  const converter = measure.convertsYield ? yieldConverter(siteYear.crop, query.units) : { unit: measure.unit!, convert: (v: number) => v };
+  const converter = measure.convertsYield
+    ? yieldConverter(siteYear.crop, query.units)
+    : { unit: measure.unit!, convert: (v: number) => v, scale: 1 };
   const [plotRows, summaryRows] = await Promise.all([
     db
       .select({ plot: plots.plot, block: plots.block, treatmentId: plots.treatmentId, value: measure.column })
@@ -101,7 +103,7 @@ export async function siteYearAnova(db: Db, version: AnovaVersion, code: string,
           `The site-year is published as yield means only (no plots), so there is no ${measure.title.toLowerCase()} to analyse.`,
         ),
       };
-    return { ...base, ...fromSummaries(summaryRows, treatmentById, converter.convert) };
+    return { ...base, ...fromSummaries(summaryRows, treatmentById, converter) };
   }
   return { ...base, ...uncomputed("none", "The site-year has neither plots nor published means.") };
 }
@@ -203,9 +205,10 @@ function fromPlots(
 function fromSummaries(
   rows: (typeof summaryMeans.$inferSelect)[],
   treatmentById: Map<number, Treatment>,
-  convert: (v: number) => number,
+  { convert, scale }: { convert: (v: number) => number; scale: number },
 ): Body {
-  const factor = convert(1);
+  // The MSE is in the square of the unit: it scales by the unrounded factor (the means are rounded as reported values).
+  const factor = scale;
   const treatmentOf = (id: number): Treatment => treatmentById.get(id) ?? { code: String(id), name: String(id), isCheck: false };
   const check = rows.find((r) => treatmentOf(r.treatmentId).isCheck) ?? rows[0]!;
   const mse = check.mse * factor * factor;

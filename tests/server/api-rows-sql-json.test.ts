@@ -7,13 +7,15 @@ import { nutrients, placements, soilTestClasses, trialFilters, type TrialFilters
 import { responseResource } from "@/server/services/public/responses";
 import type { RowScope } from "@/server/services/public/row-resource";
 import { resolveVersions, type ResolvedVersion } from "@/server/services/trial-filter";
+import { kilogramsPerHectarePerBushelPerAcre } from "@/stats/units";
 import { insertPublicFixture } from "@/tests/support/public-fixture";
 import { makeUser, testApp, type TestApp } from "@/tests/support/test-app";
 
 /**
  * JSON pages of responses (any measure) are encoded by the database (readJsonPage); CSV and the fallback build each row in
  * TypeScript (readBatch). Both must give the same rows: on the public fixture through HTTP, and on random rows (odd
- * doubles, nulls, crops without a bushel weight, stated nutrients out of order) with random filters, units and pages.
+ * doubles, nulls, crops without a bushel weight, stated nutrients out of order, values the rounding of converted values
+ * must treat alike) with random filters, units and pages.
  */
 let t: TestApp;
 let randomVersion: ResolvedVersion;
@@ -56,10 +58,18 @@ async function insertRandomResponses(count: number): Promise<ResolvedVersion> {
   // Doubles of every precision, but none so small that PostgreSQL's division would underflow (|x| < 1e-300: no
   // yield, difference or SE comes near that; PostgreSQL raises an error where JavaScript returns 0).
   const positive = fc.double({ min: 1e-200, max: 2e4, noNaN: true, noDefaultInfinity: true });
+  // Values the rounding rule for converted values must treat alike in both encodings (stats/precision.ts): exact
+  // ties at the 15th significant digit (to even: …0.0004882812 and …0.0014648438) and soybean yields given in bu/ac.
+  const roundingCases = fc.constantFrom(
+    12345.00048828125,
+    12345.00146484375,
+    ...[63, 47.5, 58.25].map((buAc) => buAc * kilogramsPerHectarePerBushelPerAcre(60)),
+  );
+  const yieldLike = fc.oneof(positive, roundingCases);
   const double = fc.oneof(
     fc.constant(0),
-    positive,
-    positive.map((x) => -x),
+    yieldLike,
+    yieldLike.map((x) => -x),
   );
   const maybe = <T>(a: fc.Arbitrary<T>) => fc.option(a, { nil: null });
   const rate = fc.oneof(fc.constant(0), fc.constantFrom(5, 11, 26, 52), positive);
@@ -79,15 +89,15 @@ async function insertRandomResponses(count: number): Promise<ResolvedVersion> {
       k2oLbAc: rate,
       sLbAc: rate,
       soil: fc.array(fc.tuple(maybe(fc.constantFrom(...soilTestClasses)), maybe(positive)), { minLength: 3, maxLength: 3 }),
-      checkMeanKgHa: positive,
-      treatedMeanKgHa: positive,
+      checkMeanKgHa: yieldLike,
+      treatedMeanKgHa: yieldLike,
       mdKgHa: double,
-      seKgHa: positive,
+      seKgHa: yieldLike,
       dfError: fc.integer({ min: 1, max: 60 }),
       lnrr: maybe(double),
       lnrrVar: maybe(positive),
       pValue: maybe(fc.double({ min: 0, max: 1, noNaN: true })),
-      lsd05KgHa: maybe(positive),
+      lsd05KgHa: maybe(yieldLike),
       cvPct: maybe(positive),
       replicates: fc.integer({ min: 2, max: 8 }),
       balanced: fc.boolean(),

@@ -18,6 +18,7 @@ import {
   normalQuantile,
   predictiveProbabilityAbove,
   probabilityNewResponseAbove,
+  roundConverted,
   shareSignificant,
   cropStandards,
   tQuantile,
@@ -292,7 +293,8 @@ function forestRow(
     soilTestValue: soil.value,
     soilTestReportedClass: soil.reportedClass,
     soilTestScheme: soil.scheme,
-    checkMean: unit.checkMean,
+    // The check's mean as a converted data value (stats/precision.ts); the moderator fit reads the unrounded one.
+    checkMean: roundConverted(unit.checkMean),
   };
 }
 

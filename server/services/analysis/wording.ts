@@ -1,4 +1,5 @@
 import { formatPValue } from "@/components/evidence/format";
+import { shownDecimals } from "@/constants/precision";
 
 /** The words an analysis result carries: notes and heterogeneity in plain language (the cautions are in cautions.ts). */
 
@@ -41,7 +42,7 @@ export function describeHeterogeneity(input: {
 }
 
 function formatNumber(value: number, units: string): string {
-  return units === "kg/ha" ? value.toFixed(0) : value.toFixed(1);
+  return value.toFixed(shownDecimals(units));
 }
 
 export function sampleSizeNotes(k: number): string[] {

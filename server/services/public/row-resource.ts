@@ -5,6 +5,7 @@ import type { Db } from "@/db/client";
 import type { YieldUnit } from "@/schemas/public";
 import type { CsvColumn, CsvValue } from "@/server/csv";
 import type { ResolvedVersion } from "@/server/services/trial-filter";
+import { roundConverted } from "@/stats/precision";
 import { cropStandards, kilogramsPerHectarePerBushelPerAcre, kilogramsPerHectareToBushelsPerAcre, type StandardCrop } from "@/stats/units";
 
 /** What a read is about: the versions it reads, its filters and (where yields appear) the unit asked for. */
@@ -53,11 +54,18 @@ export function moistureBasisOf(crop: string): number | null {
 /**
  * How a crop's yield-like quantities (yields, differences, SEs, LSDs) come out of canonical kg/ha in the unit asked
  * for. bu/ac needs the crop's test weight; a crop without one stays in kg/ha, and its rows say so in `yieldUnit`.
+ * `convert` gives a value as it is reported, rounded by the one rule for converted values (stats/precision.ts; kg/ha
+ * too, as a yield given in bu/ac was converted on the way in); `scale` is the unrounded factor, for quantities in the
+ * square of the unit (an MSE) and other arithmetic.
  */
-export function yieldConverter(crop: string, unit: YieldUnit): { unit: YieldUnit; convert: (kgHa: number) => number } {
-  if (unit === "kg/ha" || !isStandardCrop(crop)) return { unit: "kg/ha", convert: (v) => v };
+export function yieldConverter(crop: string, unit: YieldUnit): { unit: YieldUnit; convert: (kgHa: number) => number; scale: number } {
+  if (unit === "kg/ha" || !isStandardCrop(crop)) return { unit: "kg/ha", convert: (v) => roundConverted(v), scale: 1 };
   const lbPerBu = cropStandards[crop].poundsPerBushel;
-  return { unit, convert: (v) => kilogramsPerHectareToBushelsPerAcre(v, lbPerBu) };
+  return {
+    unit,
+    convert: (v) => roundConverted(kilogramsPerHectareToBushelsPerAcre(v, lbPerBu)),
+    scale: kilogramsPerHectareToBushelsPerAcre(1, lbPerBu),
+  };
 }
 
 /** The same for a quantity that may be missing. */
@@ -108,8 +116,14 @@ const literal = (x: number) => sql.raw(`${x}::float8`);
 const standardCrops = Object.keys(cropStandards) as StandardCrop[];
 
 /**
+ * The SQL twin of `roundConverted` (stats/precision.ts): PostgreSQL casts float8 to numeric through printf("%.15g"),
+ * 15 significant digits with ties to even, and row_to_json prints the numeric as it is.
+ */
+const roundConvertedSql = (value: SQL) => sql`(${value})::numeric`;
+
+/**
  * The SQL twins of `provenanceLookup` and `yieldConverter`, for rows encoded by the database: the same division by
- * the same double, so the numbers are the ones the TypeScript path gives.
+ * the same double, rounded by the same rule, so the numbers are the ones the TypeScript path gives.
  */
 export function yieldConverterSql(scope: RowScope<unknown>, versionId: AnyPgColumn, crop: AnyPgColumn) {
   const byVersion = (pick: (v: RowScope<unknown>["versions"][number]) => string) =>
@@ -130,8 +144,10 @@ export function yieldConverterSql(scope: RowScope<unknown>, versionId: AnyPgColu
     yieldUnit: toBushels ? perCrop(() => sql`'bu/ac'::text`, sql`'kg/ha'::text`) : sql`'kg/ha'::text`,
     moistureBasis: perCrop((c) => literal(cropStandards[c].standardMoisturePercent), sql`NULL::float8`),
     convert: (kgHa: AnyPgColumn) =>
-      toBushels
-        ? perCrop((c) => sql`${kgHa} / ${literal(kilogramsPerHectarePerBushelPerAcre(cropStandards[c].poundsPerBushel))}`, sql`${kgHa}`)
-        : sql`${kgHa}`,
+      roundConvertedSql(
+        toBushels
+          ? perCrop((c) => sql`${kgHa} / ${literal(kilogramsPerHectarePerBushelPerAcre(cropStandards[c].poundsPerBushel))}`, sql`${kgHa}`)
+          : sql`${kgHa}`,
+      ),
   };
 }

@@ -1,6 +1,7 @@
 import { and, eq, inArray } from "drizzle-orm";
 import { plantsPerAcreFromPer10Ft } from "@/constants/measures";
 import { plots } from "@/db/schema";
+import { roundConverted } from "@/stats/precision";
 import type { Cell } from "../field-values";
 import { toStandardMoisture, yieldFactorToKgHa } from "../edge-units";
 import { num, type IngestContext, type ResourceIngest } from "../resource-ingest";
@@ -96,6 +97,8 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy, measu
         );
       }
       let y = num(v.yield_kg_ha);
+      // Yields keep the full double of their conversion to kg/ha (rounding them would spoil the round trip back to
+      // the unit given; stats/precision.ts); the stand, never converted back, is rounded by the rule.
       if (y !== null) {
         y *= tally.factor;
         if (harvestBasis) {
@@ -140,7 +143,7 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy, measu
             `stand counts are per 10 ft of row, and site-year "${code}" has no row spacing to turn them into plants/ac`,
           );
           stand = null;
-        } else stand = plantsPerAcreFromPer10Ft(stand, rowSpacing);
+        } else stand = roundConverted(plantsPerAcreFromPer10Ft(stand, rowSpacing));
       }
       let added: Record<string, number> | null = null;
       for (const m of measures) {
@@ -199,7 +202,9 @@ export function plotsIngest({ state, options, report, versionId, bulkCopy, measu
           tally.yieldBlocks.push(p.block);
         } else if (!tally.cells.has(cell)) tally.cells.set(cell, 0);
         // Stored values go back as stored: stand counts already in plants/ac, added measures as their JSON.
-        out.push(plotKeys.map((k) => (k === "otherMeasures" ? (p.otherMeasures === null ? null : JSON.stringify(p.otherMeasures)) : p[k]) as Cell));
+        out.push(
+          plotKeys.map((k) => (k === "otherMeasures" ? (p.otherMeasures === null ? null : JSON.stringify(p.otherMeasures)) : p[k]) as Cell),
+        );
       }
     },
     finish() {

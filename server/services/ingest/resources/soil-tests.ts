@@ -3,6 +3,8 @@ import { soilTests } from "@/db/schema";
 import { soilTestClasses } from "@/schemas/filters";
 import { cellMessages } from "@/schemas/messages";
 import type { SoilTestScheme } from "@/schemas/soil-test-schemes";
+import { roundConverted } from "@/stats/precision";
+import { poundsPerAcreSixInchToPartsPerMillion } from "@/stats/units";
 import { builtInSchemeNames, classifyByThresholds, classOfLabel, findScheme } from "@/server/services/soil-test-schemes";
 import type { Reporter } from "../report";
 import { num, str, type IngestContext, type ResourceIngest } from "../resource-ingest";
@@ -117,7 +119,7 @@ export function soilTestsIngest({ state, options, report, versionId, soilTestSch
       if (unit === null) return report.error(row, "unit", null, `unit is required for analyte ${analyte}`);
       if (options.units.soilTest === "lb/ac" && unitOf[analyte] === "ppm") {
         // ppm × 2 ≈ lb/ac for a 6-inch layer (University of Minnesota Extension); the reverse here.
-        value = value / 2;
+        value = roundConverted(poundsPerAcreSixInchToPartsPerMillion(value));
         unit = "ppm";
       }
       if (unitOf[analyte] && unit !== unitOf[analyte]) {
