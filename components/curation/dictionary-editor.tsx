@@ -156,7 +156,8 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
       text("enumText", "Allowed values"),
       helper.display({
         id: "remove",
-        header: "",
+        // A column header needs words (axe: empty-table-header); a read-only dictionary has nothing to remove.
+        header: readOnly ? "—" : "Remove",
         cell: (c) =>
           readOnly ? null : (
             <Button

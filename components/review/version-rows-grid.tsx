@@ -53,7 +53,8 @@ function RowsTable({
                 <Pressable
                   role="button"
                   aria-pressed={on}
-                  accessibilityLabel={`Change ${field} of ${describeKey(key)} (now ${c.getValue() === "" ? "empty" : c.getValue()})`}
+                  // The visible value starts the name (WCAG 2.5.3, label in name), then what picking it does.
+                  accessibilityLabel={`${c.getValue() === "" ? "empty" : c.getValue()}: change ${field} of ${describeKey(key)}`}
                   onPress={() => onPick({ resource, key, field, current: c.row.original[i] ?? null })}
                   style={({ focused, hovered }: { pressed: boolean; focused?: boolean; hovered?: boolean }) => [
                     styles.editable,

@@ -6,7 +6,17 @@ import { approveVersion, submitVersion } from "@/server/services/curation/review
 import { findUserByEmail } from "@/server/services/users";
 import { curationDataset, versionDetail } from "@/schemas/curation";
 import { versionRowsPage } from "@/schemas/review";
-import { desktop, launchBrowser, newContext, phone, screenshot, startServer, watchPage, type RunningServer } from "./harness";
+import {
+  axeViolations,
+  desktop,
+  launchBrowser,
+  newContext,
+  phone,
+  screenshot,
+  startServer,
+  watchPage,
+  type RunningServer,
+} from "./harness";
 import { signInAs } from "./page-screens";
 
 /**
@@ -122,8 +132,17 @@ describe("the version desk's data grid, dictionary and merge uploads at 1280x800
     await page.getByRole("tab", { name: "Data grid" }).click();
     await page
       .getByRole("table", { name: "Plots rows" })
-      .getByRole("button", { name: `Change yield_kg_ha of site_year ${row[at("site_year")]}, plot ${row[at("plot")]} (now ${corrected})` })
+      .getByRole("button", { name: `${corrected}: change yield_kg_ha of site_year ${row[at("site_year")]}, plot ${row[at("plot")]}` })
       .waitFor();
+
+    // The published version it is based on shows the same grid read-only: no cell to pick, no Upload tab.
+    await page.goto(`${server.url}/curate/versions/${(await apiVersion(page, id)).basedOnVersionId}`);
+    await page.getByRole("tab", { name: "Data grid" }).click();
+    const published = page.getByRole("table", { name: "Site-years rows" });
+    await published.getByText(row[at("site_year")]!, { exact: true }).first().waitFor();
+    await page.getByText(/This version is published, so its rows are read-only/).waitFor();
+    await expect(published.getByRole("button").count()).resolves.toBe(0);
+    await expect(page.getByRole("tab", { name: "Upload" }).count()).resolves.toBe(0);
     expect(problems).toEqual([]);
     await context.close();
   }, 180_000);
@@ -142,9 +161,9 @@ describe("the version desk's data grid, dictionary and merge uploads at 1280x800
     const grid = page.getByRole("table", { name: "Plots rows" });
     await grid.waitFor();
     // Key fields are not offered for editing.
-    await expect(grid.getByRole("button", { name: /^Change site_year of / }).count()).resolves.toBe(0);
-    await expect(grid.getByRole("button", { name: /^Change plot of / }).count()).resolves.toBe(0);
-    await grid.getByRole("button", { name: `Change yield_kg_ha of site_year ${siteYear}, plot ${plot} (now ${old})` }).click();
+    await expect(grid.getByRole("button", { name: /: change site_year of / }).count()).resolves.toBe(0);
+    await expect(grid.getByRole("button", { name: /: change plot of / }).count()).resolves.toBe(0);
+    await grid.getByRole("button", { name: `${old}: change yield_kg_ha of site_year ${siteYear}, plot ${plot}` }).click();
     const form = page.getByRole("group", { name: `Change yield_kg_ha of site_year ${siteYear}, plot ${plot}` });
     await form.waitFor();
     await expect(form.getByLabel("New value", { exact: true }).inputValue()).resolves.toBe(old);
@@ -161,9 +180,10 @@ describe("the version desk's data grid, dictionary and merge uploads at 1280x800
     const refusal = (await form.getByRole("alert").allTextContents()).join(" ");
     expect(refusal).toMatch(/number/i);
     await screenshot(page, "desk-grid-refused-desktop");
+    expect((await axeViolations(page)).map((v) => `${v.id}: ${v.nodes.map((n) => n.html).join(" | ")}`)).toEqual([]);
     expect((await firstPlot(page, id)).row[at("yield_kg_ha")]).toBe(old);
     expect((await apiVersion(page, id)).changelog).toBe(changelogBefore);
-    await grid.getByRole("button", { name: `Change yield_kg_ha of site_year ${siteYear}, plot ${plot} (now ${old})` }).waitFor();
+    await grid.getByRole("button", { name: `${old}: change yield_kg_ha of site_year ${siteYear}, plot ${plot}` }).waitFor();
 
     // A good value: the grid shows it and the changelog records the change with its reason.
     const corrected = String(Math.round(Number(old)) + 210);
@@ -175,7 +195,7 @@ describe("the version desk's data grid, dictionary and merge uploads at 1280x800
       .filter({ hasText: `Saved: yield_kg_ha of site_year ${siteYear}, plot ${plot} is now ${corrected}` })
       .waitFor();
     await page.getByRole("status").getByText(`Changelog: ${line}`).waitFor();
-    await grid.getByRole("button", { name: `Change yield_kg_ha of site_year ${siteYear}, plot ${plot} (now ${corrected})` }).waitFor();
+    await grid.getByRole("button", { name: `${corrected}: change yield_kg_ha of site_year ${siteYear}, plot ${plot}` }).waitFor();
     // The desk's head shows the version's changelog, now with the line.
     await page.getByText(line, { exact: false }).first().waitFor();
     await screenshot(page, "desk-grid-saved-desktop");
@@ -214,14 +234,15 @@ describe("the version desk's data grid, dictionary and merge uploads at 1280x800
     expect(after.soilTestSchemes ?? []).toEqual(before.soilTestSchemes ?? []);
     expect(after.measures ?? []).toEqual(before.measures ?? []);
     await screenshot(page, "desk-dictionary-added-desktop");
+    expect((await axeViolations(page)).map((v) => `${v.id}: ${v.nodes.map((n) => n.html).join(" | ")}`)).toEqual([]);
 
     // A value in the new field, through the grid.
     await page.getByRole("tab", { name: "Data grid" }).click();
-    await page.getByRole("button", { name: `Change seed_lot of ${where} (now empty)` }).click();
+    await page.getByRole("button", { name: `empty: change seed_lot of ${where}` }).click();
     await page.getByLabel("New value", { exact: true }).fill("LOT-17");
     await page.getByLabel("Reason for the change", { exact: true }).fill("Bag tag read at planting.");
     await page.getByRole("button", { name: "Save the change" }).click();
-    await page.getByRole("button", { name: `Change seed_lot of ${where} (now LOT-17)` }).waitFor();
+    await page.getByRole("button", { name: `LOT-17: change seed_lot of ${where}` }).waitFor();
 
     // Plotbank's own fields keep their names: the server's refusal sits at the Field cell, and nothing is saved.
     await page.getByRole("tab", { name: "Data dictionary" }).click();
@@ -256,7 +277,7 @@ describe("the version desk's data grid, dictionary and merge uploads at 1280x800
     expect((await apiRows(page, id, "plots", 1)).fields).not.toContain("seed_batch");
     await page.getByRole("tab", { name: "Data grid" }).click();
     await page.getByRole("table", { name: "Plots rows" }).waitFor();
-    await expect(page.getByRole("button", { name: /^Change seed_batch of / }).count()).resolves.toBe(0);
+    await expect(page.getByRole("button", { name: /: change seed_batch of / }).count()).resolves.toBe(0);
     // The refused rename is a 400 answered at its cell; Chromium logs every 4xx.
     expect(problems.filter((p) => !/status of 400/.test(p))).toEqual([]);
     await context.close();
@@ -272,7 +293,7 @@ describe("the data grid and dictionary at phone size", () => {
     const grid = page.getByRole("table", { name: "Plots rows" });
     await grid.waitFor();
     await grid
-      .getByRole("button", { name: /^Change harvest_moisture_pct of / })
+      .getByRole("button", { name: /: change harvest_moisture_pct of / })
       .first()
       .click();
     // The form opens focused, which brings it into view below the grid.
