@@ -126,6 +126,7 @@ describe("the version desk's data grid, dictionary and merge uploads at 1280x800
     const changed = page.getByRole("list", { name: "Plots: rows that differ" }).getByRole("listitem");
     await expect(changed.count()).resolves.toBe(1);
     await changed.getByText(`yield_kg_ha: ${old} → ${corrected}`).waitFor();
+    await changed.first().scrollIntoViewIfNeeded();
     await screenshot(page, "desk-merge-diff-desktop");
 
     // The data grid shows the stored value.
