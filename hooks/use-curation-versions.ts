@@ -2,8 +2,7 @@ import { queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/r
 import { z } from "zod";
 import { datasetKeys } from "@/hooks/use-datasets";
 import { api } from "@/lib/api-client";
-import { versionDetail, versionDiff } from "@/schemas/curation";
-import type { TableSchemaDescriptor } from "@/schemas/table-schema";
+import { versionDetail, versionDiff, type TableSchemaUpdate } from "@/schemas/curation";
 import { curationKeys, curationPaths, draftStaleMs } from "./curation-keys";
 
 /** One version on the workbench: its detail, its changes against another, its edits and its review-flow steps. */
@@ -51,7 +50,7 @@ export function useUpdateVersionMutation(id: string) {
 export function useSaveTableSchemaMutation(id: string) {
   const qc = useQueryClient();
   return useMutation({
-    mutationFn: (body: TableSchemaDescriptor) => api(curationPaths.tableSchema(id), z.unknown(), { method: "PUT", body }),
+    mutationFn: (body: TableSchemaUpdate) => api(curationPaths.tableSchema(id), z.unknown(), { method: "PUT", body }),
     onSuccess: () => qc.invalidateQueries({ queryKey: curationKeys.version(id) }),
   });
 }

@@ -1,5 +1,6 @@
 import { keepPreviousData, queryOptions, useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { metaAnalysisResult } from "@/schemas/analysis";
+import { cellEditResult, type CellEdit } from "@/schemas/curation";
 import { reviewComments, reviewSummary, versionDiffRows, versionRowsPage } from "@/schemas/review";
 import type { ResourceName } from "@/schemas/table-schema";
 import { api } from "@/lib/api-client";
@@ -13,11 +14,12 @@ const qs = (params: Record<string, string | number | undefined>) =>
 
 const reviewPaths = {
   summary: (id: string, page: number, flagged: boolean) => `${v(id)}/review?${qs({ page, flagged: flagged ? "true" : undefined })}`,
-  rows: (id: string, resource: ResourceName, page: number) => `${v(id)}/rows/${resource}?${qs({ page })}`,
+  rows: (id: string, resource: ResourceName, page: number, limit?: number) => `${v(id)}/rows/${resource}?${qs({ page, limit })}`,
   diffRows: (from: string, to: string, resource: ResourceName, page: number) =>
     `/api/v1/curation/diff/rows?${qs({ from, to, resource, page, limit: 20 })}`,
   preview: (id: string, filters: Record<string, string | undefined>) => `${v(id)}/preview/meta?${qs(filters)}`,
   comments: (id: string) => `${v(id)}/comments`,
+  cells: (id: string) => `${v(id)}/cells`,
   resolve: (id: string, commentId: string) => `${v(id)}/comments/${encodeURIComponent(commentId)}/resolve`,
 };
 
@@ -25,7 +27,8 @@ const reviewPaths = {
 const reviewKeys = {
   all: (id: string) => [...curationKeys.details(), "review", id] as const,
   summary: (id: string, page: number, flagged: boolean) => [...reviewKeys.all(id), "summary", page, flagged] as const,
-  rows: (id: string, resource: ResourceName, page: number) => [...reviewKeys.all(id), "rows", resource, page] as const,
+  rows: (id: string, resource: ResourceName, page: number, limit?: number) =>
+    [...reviewKeys.all(id), "rows", resource, page, limit ?? "default"] as const,
   diffRows: (from: string, to: string, resource: ResourceName, page: number) =>
     [...reviewKeys.all(to), "diff-rows", from, resource, page] as const,
   preview: (id: string, filters: Record<string, string | undefined>) => [...reviewKeys.all(id), "preview", filters] as const,
@@ -42,10 +45,10 @@ export const useReviewSummary = (id: string, page: number, flagged: boolean) =>
     }),
   );
 
-export const useVersionRows = (id: string, resource: ResourceName, page: number) =>
+export const useVersionRows = (id: string, resource: ResourceName, page: number, limit?: number) =>
   useQuery({
-    queryKey: reviewKeys.rows(id, resource, page),
-    queryFn: ({ signal }) => api(reviewPaths.rows(id, resource, page), versionRowsPage, { signal }),
+    queryKey: reviewKeys.rows(id, resource, page, limit),
+    queryFn: ({ signal }) => api(reviewPaths.rows(id, resource, page, limit), versionRowsPage, { signal }),
     staleTime: draftStaleMs,
     placeholderData: keepPreviousData,
   });
@@ -88,5 +91,17 @@ export function useResolveCommentMutation(id: string) {
   return useMutation({
     mutationFn: (commentId: string) => api(reviewPaths.resolve(id, commentId), reviewComments, { method: "POST" }),
     onSuccess: (comments) => qc.setQueryData(reviewKeys.comments(id), comments),
+  });
+}
+
+/**
+ * One cell of a draft changed with a reason. An accepted edit changes the rows, the responses, the diff and the
+ * changelog, so every detail of the workbench is read again.
+ */
+export function useCellEditMutation(id: string) {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (body: CellEdit) => api(reviewPaths.cells(id), cellEditResult, { method: "POST", body }),
+    onSuccess: () => qc.invalidateQueries({ queryKey: curationKeys.details() }),
   });
 }

@@ -18,7 +18,7 @@ function render<P extends object>(renderer: unknown, props: P): React.ReactNode 
 }
 
 // Inter's contextual alternates draw "20x1" as "20×1"; a data value must show the characters it holds.
-const literal = (Platform.OS === "web" ? { fontFeatureSettings: '"calt" 0' } : {}) as TextStyle;
+export const literal = (Platform.OS === "web" ? { fontFeatureSettings: '"calt" 0' } : {}) as TextStyle;
 
 function renderContent(node: React.ReactNode) {
   if (typeof node === "string" || typeof node === "number") return <Text style={[styles.cellText, literal]}>{node}</Text>;

@@ -9,7 +9,7 @@ import { useSaveTableSchemaMutation } from "@/hooks/use-curation-versions";
 import type { VersionDetail } from "@/schemas/curation";
 import { resourceName, tableSchemaDescriptor, tableSchemaFieldType, type ResourceName } from "@/schemas/table-schema";
 import { DataGrid } from "./data-grid";
-import { blankRow, rowsOf, withResourceFields, type DictionaryRow } from "./dictionary-rows";
+import { blankRow, renamesOf, rowsOf, withResourceFields, type DictionaryRow, type RowRename } from "./dictionary-rows";
 import { issuesUnder, serverFieldIssues, zodFieldIssues, type FieldIssues } from "./field-issues";
 import { ChoiceChips } from "@/components/ui/choice-chips";
 import { FieldError } from "@/components/ui/text-field";
@@ -30,6 +30,19 @@ const issueKey: Record<TextKey, string> = {
 const widths = { name: 170, type: 110, unit: 100, description: 280, required: 100, minimum: 100, maximum: 100, enumText: 220, remove: 110 };
 const resourceOptions = resourceName.options.map((value) => ({ value, label: resourceTitles[value] }));
 const typeHint = tableSchemaFieldType.options.join(", ");
+/** How a row is named to assistive tech: by its stored name, so the name stays put while the Field cell is edited. */
+const rowName = (row: DictionaryRow, index: number) => (row.original ? `field ${row.original.name}` : `new field ${index + 1}`);
+
+/** The server's answer about a rename (renames.N.from/to) shown at the Field cell of the row it came from. */
+function atRenamedRows(issues: FieldIssues, renames: readonly RowRename[]): FieldIssues {
+  const out: FieldIssues = {};
+  for (const [key, message] of Object.entries(issues)) {
+    const m = /^renames\.(\d+)\./.exec(key);
+    const r = m ? renames[Number(m[1])] : undefined;
+    out[r ? `resources.${r.resource}.fields.${r.row}.name` : key] ??= message;
+  }
+  return out;
+}
 
 function Cell({
   value,
@@ -91,11 +104,13 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
     [resource, version.tableSchema],
   );
   const removeRow = useCallback(
-    (index: number) =>
+    (index: number) => {
+      setSaved(false);
       setRowsByResource((all) => {
         const current = all[resource] ?? rowsOf(version.tableSchema.resources[resource]?.fields ?? []);
         return { ...all, [resource]: current.filter((_, i) => i !== index) };
-      }),
+      });
+    },
     [resource, version.tableSchema],
   );
 
@@ -108,7 +123,7 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
         cell: (c) => (
           <Cell
             value={c.getValue()}
-            label={`${resourceTitles[resource]} field ${c.row.original.name || c.row.index + 1}: ${header}`}
+            label={`${resourceTitles[resource]} ${rowName(c.row.original, c.row.index)}: ${header}`}
             error={rowIssues(c.row.index)[issueKey[key]]}
             readOnly={readOnly}
             onChange={(v) => update(c.row.index, { [key]: v })}
@@ -127,7 +142,7 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
             role="checkbox"
             aria-checked={c.getValue()}
             aria-disabled={readOnly}
-            accessibilityLabel={`${resourceTitles[resource]} field ${c.row.original.name || c.row.index + 1}: required`}
+            accessibilityLabel={`${resourceTitles[resource]} ${rowName(c.row.original, c.row.index)}: required`}
             disabled={readOnly}
             onPress={() => update(c.row.index, { required: !c.getValue() })}
             style={styles.check}
@@ -141,13 +156,14 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
       text("enumText", "Allowed values"),
       helper.display({
         id: "remove",
-        header: "",
+        // A column header needs words (axe: empty-table-header); a read-only dictionary has nothing to remove.
+        header: readOnly ? "—" : "Remove",
         cell: (c) =>
           readOnly ? null : (
             <Button
               label="Remove"
               tone="quiet"
-              accessibilityLabel={`Remove field ${c.row.original.name || c.row.index + 1}`}
+              accessibilityLabel={`Remove ${resourceTitles[resource].toLowerCase()} ${rowName(c.row.original, c.row.index)}`}
               onPress={() => removeRow(c.row.index)}
             />
           ),
@@ -159,8 +175,11 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
 
   const onSave = async () => {
     let descriptor = version.tableSchema;
-    for (const [res, edited] of Object.entries(rowsByResource) as [ResourceName, DictionaryRow[]][])
+    const renames: RowRename[] = [];
+    for (const [res, edited] of Object.entries(rowsByResource) as [ResourceName, DictionaryRow[]][]) {
       descriptor = withResourceFields(descriptor, res, edited);
+      renames.push(...renamesOf(res, edited));
+    }
     const checked = tableSchemaDescriptor.safeParse(descriptor);
     if (!checked.success) {
       setIssues(zodFieldIssues(checked.error));
@@ -170,11 +189,14 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
     }
     setIssues({});
     try {
-      await save.mutateAsync(checked.data);
+      await save.mutateAsync({ ...checked.data, renames: renames.map(({ row: _row, ...r }) => r) });
       setRowsByResource({});
       setSaved(true);
     } catch (error) {
-      setIssues(serverFieldIssues(error));
+      const found = atRenamedRows(serverFieldIssues(error), renames);
+      setIssues(found);
+      const first = /^resources\.(\w+)\./.exec(Object.keys(found)[0] ?? "")?.[1];
+      if (first && (resourceName.options as readonly string[]).includes(first)) setResource(first as ResourceName);
     }
   };
 
@@ -189,14 +211,20 @@ export function DictionaryEditor({ version }: { version: VersionDetail }) {
         {readOnly ? " This version is not an editable draft, so the dictionary is read-only." : ""}
       </Text>
       <ChoiceChips label="Resource" choices={resourceOptions} selected={[resource]} onToggle={setResource} />
-      <Text variant="caption">Types: {typeHint}. Allowed values are separated by commas.</Text>
+      <Text variant="caption">
+        Types: {typeHint}. Allowed values are separated by commas. A field of your own keeps its values when you rename it and takes them
+        with it when you remove it; Plotbank's own fields keep their names.
+      </Text>
       <DataGrid table={table} widths={widths} label={`${resourceTitles[resource]} data dictionary`} />
       {readOnly ? null : (
         <View style={styles.actions}>
           <Button
             label="Add field"
             tone="secondary"
-            onPress={() => setRowsByResource((all) => ({ ...all, [resource]: [...rows, blankRow()] }))}
+            onPress={() => {
+              setSaved(false);
+              setRowsByResource((all) => ({ ...all, [resource]: [...rows, blankRow()] }));
+            }}
           />
           <Button label="Save dictionary" busy={save.isPending} disabled={!dirty} onPress={onSave} />
           {saved ? (

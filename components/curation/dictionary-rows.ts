@@ -1,3 +1,4 @@
+import type { FieldRename } from "@/schemas/curation";
 import type { ResourceName, TableSchemaDescriptor, TableSchemaField } from "@/schemas/table-schema";
 
 /** One data-dictionary field as the editor holds it: numbers and enum lists as typed text until saved. */
@@ -80,7 +81,10 @@ export function fieldOf(row: DictionaryRow): TableSchemaField {
   };
 }
 
-/** The whole descriptor with one resource's fields replaced. */
+/**
+ * The whole descriptor with one resource's fields replaced; the rest of it (other resources, the version's own
+ * measures and soil-test schemes) stays as it is.
+ */
 export function withResourceFields(
   descriptor: TableSchemaDescriptor,
   resource: ResourceName,
@@ -88,5 +92,18 @@ export function withResourceFields(
 ): TableSchemaDescriptor {
   const current = descriptor.resources[resource];
   const fields = rows.map(fieldOf);
-  return { resources: { ...descriptor.resources, [resource]: { ...(current ?? {}), fields } } };
+  return { ...descriptor, resources: { ...descriptor.resources, [resource]: { ...(current ?? {}), fields } } };
+}
+
+/** A stored field whose name was changed in the grid, with the row it sits in (for showing the server's answer there). */
+export interface RowRename extends FieldRename {
+  row: number;
+}
+
+/** The renames a save sends, so the values stored under a field's old name follow it to the new one. */
+export function renamesOf(resource: ResourceName, rows: readonly DictionaryRow[]): RowRename[] {
+  return rows.flatMap((r, row) => {
+    const to = r.name.trim();
+    return r.original && to && to !== r.original.name ? [{ resource, from: r.original.name, to, row }] : [];
+  });
 }

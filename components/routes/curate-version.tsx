@@ -1,7 +1,7 @@
 import { useLocalSearchParams } from "expo-router";
 import { useState } from "react";
 import { StyleSheet, View } from "react-native";
-import { DictionaryEditor } from "@/components/lazy-tables";
+import { DictionaryEditor, VersionRowsGrid } from "@/components/lazy-tables";
 import { DoiStatusCard } from "@/components/curation/doi-status-card";
 import { LinkButton } from "@/components/curation/link-button";
 import { SegmentTabs } from "@/components/curation/segment-tabs";
@@ -18,9 +18,10 @@ import { Card } from "@/components/ui/card";
 import { ErrorState, LoadingState } from "@/components/ui/state-views";
 import { Text } from "@/components/ui/text";
 import { colors, space } from "@/constants/theme";
+import { versionStateLabels } from "@/constants/vocabulary";
 import { useVersion } from "@/hooks/use-curation-versions";
 
-type Panel = "overview" | "review" | "upload" | "dictionary" | "changes";
+type Panel = "overview" | "review" | "grid" | "upload" | "dictionary" | "changes";
 
 function VersionDesk({ id }: { id: string }) {
   const version = useVersion(id);
@@ -32,6 +33,7 @@ function VersionDesk({ id }: { id: string }) {
   const tabs = [
     { value: "overview" as const, label: "Overview" },
     ...(v.state === "draft" || v.state === "in_review" ? [{ value: "review" as const, label: "Review: data and results" }] : []),
+    { value: "grid" as const, label: "Data grid" },
     ...(editable ? [{ value: "upload" as const, label: "Upload" }] : []),
     { value: "dictionary" as const, label: "Data dictionary" },
     ...(v.basedOnVersionId ? [{ value: "changes" as const, label: `Changes since v${v.basedOnSemver}` }] : []),
@@ -66,6 +68,19 @@ function VersionDesk({ id }: { id: string }) {
       <SegmentTabs label="Version panels" tabs={tabs} value={current} onChange={setPanel} />
       {current === "overview" ? <VersionOverview version={v} /> : null}
       {current === "review" ? <ReviewPanel version={v} /> : null}
+      {current === "grid" ? (
+        <Card>
+          <Text variant="heading">Data grid</Text>
+          <Text variant="caption">
+            {editable
+              ? "Change a cell with a reason: the row is checked as a merge upload would be, and the changelog records the old and new value."
+              : v.state === "draft"
+                ? "Only the dataset's editors change a draft's cells; here its rows are read-only."
+                : `This version is ${versionStateLabels[v.state].toLowerCase()}, so its rows are read-only; changes go into a new draft.`}
+          </Text>
+          <VersionRowsGrid versionId={v.id} editable={editable} />
+        </Card>
+      ) : null}
       {current === "upload" ? (
         <>
           <TemplateLinks version={v} />

@@ -88,6 +88,10 @@ describe("reviewing with the data in view, at 1280x800", () => {
     );
     await card.getByRole("table", { name: `Responses at ${siteYear}` }).waitFor();
     await card.getByRole("button", { name: `Full ANOVA of ${siteYear}` }).waitFor();
+    // The draft's rows, read-only for the reviewer.
+    const rows = rpage.getByRole("table", { name: "Site-years rows" });
+    await rows.getByText(siteYear, { exact: true }).first().waitFor();
+    await expect(rows.getByRole("button", { name: /: change / }).count()).resolves.toBe(0);
     await screenshot(rpage, "review-screen-reviewer-desktop");
     await expect(axeRuleIdsBroken(rpage)).resolves.toEqual([]);
 
@@ -106,6 +110,9 @@ describe("reviewing with the data in view, at 1280x800", () => {
     const curatorCtx = await newContext(browser, desktop);
     const page = await signIn(curatorCtx, "curator@plotbank.test");
     const problems = watchPage(page);
+    // The return's comment heads the version desk; the site-year's comment sits beside it in the review panel.
+    await page.getByText("Reviewer's comment", { exact: true }).waitFor();
+    await page.getByText(`See the comment on ${siteYear}.`, { exact: true }).waitFor();
     await openReview(page);
     const own = page.getByTestId(`site-year-${siteYear}`);
     await own.getByTestId("review-comment").filter({ hasText: comment }).waitFor();

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { toDatasetBody, initialValues } from "@/components/curation/dataset-form-values";
-import { fieldOf, rowsOf, withResourceFields } from "@/components/curation/dictionary-rows";
+import { blankRow, fieldOf, renamesOf, rowsOf, withResourceFields } from "@/components/curation/dictionary-rows";
 import { issuesUnder, serverFieldIssues, zodFieldIssues } from "@/components/curation/field-issues";
 import { defaultTableSchema } from "@/datasets/default-table-schema";
 import { ApiError } from "@/lib/api-error";
@@ -83,6 +83,23 @@ describe("the data-dictionary rows", () => {
     const keys = Object.keys(zodFieldIssues(parsed.error!));
     expect(keys).toContain("resources.plots.fields.4.constraints.minimum");
     expect(keys).toContain("resources.plots.fields.0.name");
+  });
+
+  it("a save keeps the version's own soil-test schemes and measures beside the edited fields", () => {
+    const scheme = { name: "lab-s", title: "A lab's sulfate-S classes", analyte: "S", unit: "ppm", classes: [] } as never;
+    const measure = { name: "plant_height", title: "Plant height", unit: "cm", better: "higher", rating: false } as const;
+    const descriptor = { ...defaultTableSchema(), soilTestSchemes: [scheme], measures: [measure] };
+    const next = withResourceFields(descriptor, "plots", rowsOf(plots.fields));
+    expect(next.soilTestSchemes).toEqual([scheme]);
+    expect(next.measures).toEqual([measure]);
+  });
+
+  it("a stored field whose name cell changed is a rename from its stored name; a new row is not", () => {
+    const rows = [...rowsOf([...plots.fields, { name: "seed_lot", type: "string" }]), { ...blankRow(), name: "seed_tag" }];
+    const i = rows.findIndex((r) => r.name === "seed_lot");
+    rows[i] = { ...rows[i]!, name: " seed_batch " };
+    expect(renamesOf("plots", rows)).toEqual([{ resource: "plots", from: "seed_lot", to: "seed_batch", row: i }]);
+    expect(renamesOf("plots", rowsOf(plots.fields))).toEqual([]);
   });
 
   it("enum categories follow the allowed values", () => {
