@@ -11,7 +11,7 @@ import { z } from "zod";
 type RawIssue = z.core.$ZodRawIssue;
 
 /** A value as the message quotes it: text in quotes, cut at 40 characters; nothing as "nothing". */
-export function quoted(value: unknown): string {
+function quoted(value: unknown): string {
   if (value === undefined || value === null || value === "") return "nothing";
   if (typeof value === "string") return `"${value.length > 40 ? `${value.slice(0, 40)}…` : value}"`;
   if (typeof value === "number" || typeof value === "boolean") return String(value);
@@ -32,7 +32,7 @@ const kindWords: Record<string, string> = {
 };
 
 /** A list of allowed values, the first dozen in full. */
-export function choiceList(values: readonly unknown[]): string {
+function choiceList(values: readonly unknown[]): string {
   const shown = values.slice(0, 12).map((v) => (typeof v === "string" ? v : String(v)));
   return values.length > 12 ? `${shown.join(", ")} and ${values.length - 12} more` : shown.join(", ");
 }
@@ -46,7 +46,7 @@ const formatWords: Record<string, { expected: string; fix: string }> = {
 };
 
 /** The message for one zod issue, or undefined for an issue whose schema already words it. */
-export function issueMessage(issue: RawIssue): string | undefined {
+function issueMessage(issue: RawIssue): string | undefined {
   const found = quoted(issue.input);
   switch (issue.code) {
     case "invalid_type": {
@@ -102,7 +102,7 @@ z.config({ customError: issueMessage });
 /* ---------- Cell messages of uploads: "Plot 203: yield "n/a" is not a number; leave the cell empty …" ---------- */
 
 /** The field as a curator knows it: its title in lower case, with the column name when they differ. */
-export function fieldWords(field: { name: string; title?: string }): string {
+function fieldWords(field: { name: string; title?: string }): string {
   if (!field.title) return field.name;
   const title = field.title.charAt(0).toLowerCase() + field.title.slice(1);
   // "Blocks (replicates)" already names blocks; "Row spacing" does not name row_spacing_in.
