@@ -17,7 +17,7 @@ import {
 import { hasControlCharacter, line } from "@/schemas/safe-text";
 import { resourceName } from "@/schemas/table-schema";
 import type { AppContext } from "@/server/context";
-import { currentUser, requireUser, requireWriteScope } from "@/server/auth/guards";
+import { currentUser, requireWriteScope } from "@/server/auth/guards";
 import { HttpProblem, zodProblems } from "@/server/errors";
 import { routeModule } from "@/server/openapi/define-route";
 import { problemResponses } from "@/server/openapi/registry";
