@@ -27,7 +27,7 @@ describe("one cell edited by hand, with a reason", () => {
     const before = await yieldOf("203");
     const [response] = await rows<{ treated_mean_kg_ha: number }>(
       sql`select r.treated_mean_kg_ha from responses r join treatments tr on tr.id = r.treatment_id
-          where r.version_id = ${f.versionId} and r.site_year_code = 'TB-01-2021' and tr.code = 'BAND'`,
+          where r.version_id = ${f.versionId} and r.site_year_code = 'TB-01-2021' and tr.code = 'BAND' and r.measure = 'yield'`,
     );
     const res = await edit({
       resource: "plots",
@@ -44,7 +44,7 @@ describe("one cell edited by hand, with a reason", () => {
     // 203 is BAND in block 2: the BAND mean moves by a quarter of the change.
     const [after] = await rows<{ treated_mean_kg_ha: number }>(
       sql`select r.treated_mean_kg_ha from responses r join treatments tr on tr.id = r.treatment_id
-          where r.version_id = ${f.versionId} and r.site_year_code = 'TB-01-2021' and tr.code = 'BAND'`,
+          where r.version_id = ${f.versionId} and r.site_year_code = 'TB-01-2021' and tr.code = 'BAND' and r.measure = 'yield'`,
     );
     expect(after!.treated_mean_kg_ha).toBeCloseTo(response!.treated_mean_kg_ha + 100, 6);
     const n = await rows<{ n: number | string }>(sql`select count(*) as n from plots where version_id = ${f.versionId}`);

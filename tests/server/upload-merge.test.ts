@@ -23,7 +23,7 @@ describe("merge mode checks the merged version", () => {
     );
     expect(before).toHaveLength(16);
     const [oldCheck] = await rows<{ check_mean_kg_ha: number }>(
-      sql`select check_mean_kg_ha from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021' limit 1`,
+      sql`select check_mean_kg_ha from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021' and measure = 'yield' limit 1`,
     );
     const res = await upload(f.curatorAgent, f.versionId, "plots", `${plotsHeader}\nTB-01-2021,101,1,CHK,3400,13.1\n`, { mode: "merge" });
     expect(res.status, JSON.stringify(res.body).slice(0, 1500)).toBe(201);
@@ -39,7 +39,7 @@ describe("merge mode checks the merged version", () => {
     expect(after.find((p) => p.plot === "101")!.yield_kg_ha).toBe(3400);
     expect(after.filter((p) => p.plot !== "101")).toEqual(before.filter((p) => p.plot !== "101"));
     const [newCheck] = await rows<{ check_mean_kg_ha: number; balanced: boolean }>(
-      sql`select check_mean_kg_ha, balanced from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021' limit 1`,
+      sql`select check_mean_kg_ha, balanced from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021' and measure = 'yield' limit 1`,
     );
     // The check's mean moves by the change in one of its four plots.
     const oldYield = before.find((p) => p.plot === "101")!.yield_kg_ha;
@@ -80,7 +80,7 @@ describe("merge mode checks the merged version", () => {
       { code: "TB-02-2021", analyte: "P", value: 24 },
     ]);
     const responses = await rows<{ soil_p_value: number; soil_k_value: number }>(
-      sql`select soil_p_value, soil_k_value from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021'`,
+      sql`select soil_p_value, soil_k_value from responses where version_id = ${f.versionId} and site_year_code = 'TB-01-2021' and measure = 'yield'`,
     );
     expect(responses.length).toBe(3);
     expect(responses.every((r) => r.soil_p_value === 9 && r.soil_k_value === 140)).toBe(true);
@@ -120,7 +120,7 @@ describe("the balance warning says what is stored", () => {
     expect(messages).not.toMatch(/TB-01-2021 is unbalanced/);
     expect(messages).toMatch(/Site-year TB-01-2021 declares 5 blocks, but no plot with a yield is in block 5; .* stays balanced/);
     let stored = await rows<{ balanced: boolean }>(
-      sql`select balanced from responses where version_id = ${g.versionId} and site_year_code = 'TB-01-2021'`,
+      sql`select balanced from responses where version_id = ${g.versionId} and site_year_code = 'TB-01-2021' and measure = 'yield'`,
     );
     expect(stored.length).toBe(3);
     expect(stored.every((r) => r.balanced)).toBe(true);
@@ -134,7 +134,7 @@ describe("the balance warning says what is stored", () => {
         .join("\n"),
     ).toMatch(/Site-year TB-01-2021 is unbalanced: 1 of 16 plots missing or without yield \(BAND in block 2\).*balanced = false/);
     stored = await rows<{ balanced: boolean }>(
-      sql`select balanced from responses where version_id = ${g.versionId} and site_year_code = 'TB-01-2021'`,
+      sql`select balanced from responses where version_id = ${g.versionId} and site_year_code = 'TB-01-2021' and measure = 'yield'`,
     );
     expect(stored.every((r) => r.balanced === false)).toBe(true);
   });
