@@ -23,6 +23,11 @@ export interface ContinuousModeratorInput {
   gridSize?: number;
   /** Q-profile interval of the residual τ², τ, I², H² (default false). */
   heterogeneityInterval?: boolean;
+  /**
+   * τ² of the model without the moderator on these same effects, by the same method, when the caller has fitted it
+   * already (the pooled estimate on the same site-years); it is then not fitted again.
+   */
+  tau2WithoutModerator?: number;
 }
 
 export interface FittedLinePoint {
@@ -67,13 +72,15 @@ export function continuousModeratorRegression(input: ContinuousModeratorInput): 
   let tau2WithoutModerator: number | null = null;
   let r2Percent: number | null = null;
   if (method !== "FE") {
-    tau2WithoutModerator = estimateTauSquared(
-      yi,
-      vi,
-      yi.map(() => [1]),
-      method,
-      input.control,
-    ).tau2;
+    tau2WithoutModerator =
+      input.tau2WithoutModerator ??
+      estimateTauSquared(
+        yi,
+        vi,
+        yi.map(() => [1]),
+        method,
+        input.control,
+      ).tau2;
     r2Percent = tau2WithoutModerator > 0 ? Math.max(0, (100 * (tau2WithoutModerator - fit.tau2)) / tau2WithoutModerator) : null;
   }
   const critical = fit.ci === "hksj" ? tQuantile(1 - (1 - level) / 2, fit.residualDf) : normalQuantile(1 - (1 - level) / 2);

@@ -1,7 +1,7 @@
-import { inArray, sql, type SQL } from "drizzle-orm";
+import { inArray, sql } from "drizzle-orm";
 import { breakEvenWhat, describeCrossing, describeSlope } from "@/components/evidence/moderator-words";
 import type { Db } from "@/db/client";
-import { responses, soilTests } from "@/db/schema";
+import { soilTests } from "@/db/schema";
 import type { MetaQuery } from "@/schemas/analysis";
 import type { TrialFilters } from "@/schemas/filters";
 import type { HeterogeneityIntervalShape, Moderator, ModeratorRegressionShape, SeparateSubgroupsShape } from "@/schemas/meta-regression";
@@ -20,20 +20,31 @@ import { contrastTestedNutrients, relevantSoilTest } from "./grouping";
 import type { Contrast, EstimationContrast, ResolvedVersion } from "./load-contrasts";
 import type { AnalysisUnit } from "./site-year-effects";
 
-/** A soil test's scale: its unit and extractant, by `${siteYearId}:${analyte}`. */
-export type SoilScales = Map<string, { unit: string; extractant: string | null }>;
+/** A soil test's scale: its unit and extractant, by analyte and then by site-year id. */
+export type SoilScales = Map<string, Map<number, { unit: string; extractant: string | null }>>;
 
-/** The units and extractants of the filtered site-years' P, K and S soil tests, in one aggregate. */
-export async function readSoilScales(db: Db, where: SQL | undefined): Promise<SoilScales> {
-  const result =
-    await db.execute(sql`SELECT json_agg(json_build_array(${soilTests.siteYearId}, ${soilTests.analyte}, ${soilTests.unit}, ${soilTests.extractant}))::text AS rows
-    FROM ${soilTests}
-    WHERE ${inArray(soilTests.analyte, ["P", "K", "S"])}
-      AND ${soilTests.siteYearId} IN (SELECT ${responses.siteYearId} FROM ${responses} WHERE ${where})`);
-  const text = (result as unknown as { rows: { rows: string | null }[] }).rows[0]?.rows;
+/**
+ * The units and extractants of the P, K and S soil tests of the versions read, one row per analyte × unit × extractant
+ * with its site-year ids: at 20,000 site-years on one scale that is one short row rather than 20,000, and no join
+ * with the filtered responses (a site-year the filters leave out is simply never looked up).
+ */
+export async function readSoilScales(db: Db, versionIds: string[]): Promise<SoilScales> {
   const scales: SoilScales = new Map();
-  for (const [siteYearId, analyte, unit, extractant] of text ? (JSON.parse(text) as [number, string, string, string | null][]) : [])
-    scales.set(`${siteYearId}:${analyte}`, { unit, extractant });
+  if (versionIds.length === 0) return scales;
+  const result =
+    await db.execute(sql`SELECT ${soilTests.analyte} AS analyte, ${soilTests.unit} AS unit, ${soilTests.extractant} AS extractant,
+      json_agg(${soilTests.siteYearId} ORDER BY ${soilTests.id})::text AS ids
+    FROM ${soilTests}
+    WHERE ${inArray(soilTests.versionId, versionIds)} AND ${inArray(soilTests.analyte, ["P", "K", "S"])}
+    GROUP BY 1, 2, 3
+    ORDER BY min(${soilTests.id})`);
+  const groups = (result as unknown as { rows: { analyte: string; unit: string; extractant: string | null; ids: string }[] }).rows;
+  for (const { analyte, unit, extractant, ids } of groups) {
+    const scale = { unit, extractant };
+    const bySiteYear = scales.get(analyte) ?? new Map<number, { unit: string; extractant: string | null }>();
+    scales.set(analyte, bySiteYear);
+    for (const id of JSON.parse(ids) as number[]) bySiteYear.set(id, scale);
+  }
   return scales;
 }
 
@@ -71,7 +82,7 @@ function readModerator(unit: AnalysisUnit, moderator: Moderator, filters: TrialF
       const soil = relevantSoilTest(first, filters);
       if (!soil.analyte) return { value: null, reason: "tests no soil-tested nutrient (P, K, S)" };
       if (soil.value === null || !Number.isFinite(soil.value)) return { value: null, reason: `no ${soil.analyte} soil-test value` };
-      const scale = scales.get(`${unit.siteYearId}:${soil.analyte}`);
+      const scale = scales.get(soil.analyte)?.get(unit.siteYearId);
       const extractant = scale?.extractant ?? null;
       const u = scale?.unit ?? "unit not recorded";
       const by = extractant ?? "extractant not recorded";
@@ -196,6 +207,8 @@ export async function moderatorBlock(input: {
   slugOf: (row: EstimationContrast) => string;
   versionOf: Map<string, ResolvedVersion>;
   soilScales: () => Promise<SoilScales>;
+  /** τ² of the pooled fit on all `units` (same method), reused for R² when no site-year is left out of the line. */
+  pooledTau2: number | null;
   labelsOf: (rows: EstimationContrast[]) => Promise<Map<number, Contrast>>;
 }): Promise<ModeratorRegressionShape> {
   const { units, moderator, filters, options, unitLabel } = input;
@@ -268,7 +281,15 @@ export async function moderatorBlock(input: {
   }
 
   const intervals = options.include?.includes("heterogeneityIntervals") ?? false;
-  const result = continuousModeratorRegression({ yi, vi, x, method: options.method, ci: options.ci, heterogeneityInterval: intervals });
+  const result = continuousModeratorRegression({
+    yi,
+    vi,
+    x,
+    method: options.method,
+    ci: options.ci,
+    heterogeneityInterval: intervals,
+    ...(excluded.length === 0 && input.pooledTau2 !== null ? { tau2WithoutModerator: input.pooledTau2 } : {}),
+  });
   const { fit, line } = result;
   for (const n of fit.notes) if (!notes.includes(n)) notes.push(n);
   const df = fit.ci === "hksj" ? fit.residualDf : null;

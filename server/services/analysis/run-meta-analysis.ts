@@ -72,7 +72,11 @@ export async function runMetaAnalysis(db: Db, query: MetaQuery, resolve?: Versio
       options,
       measure,
       (named) => withLabels(db, where, named),
-      () => readSoilScales(db, where),
+      () =>
+        readSoilScales(
+          db,
+          versions.map((v) => v.versionId),
+        ),
     ),
     includedTreatments(db, where, versions),
   ]);
@@ -201,6 +205,7 @@ async function analyseContrasts(
         slugOf,
         versionOf,
         soilScales,
+        pooledTau2: fit?.tau2 ?? null,
         labelsOf,
       })
     : undefined;
